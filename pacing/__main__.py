@@ -1,0 +1,5 @@
+import sys
+
+from pacing.cli import main
+
+sys.exit(main())

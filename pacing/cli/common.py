@@ -1,0 +1,68 @@
+"""Flags shared by several commands, and their conversion to library objects.
+
+Units on the command line are SI unless a flag says otherwise (`--humidity` in percent,
+`--temperature` in °C, `--flat-pace` as M:SS per km, `--target-time` as H:MM:SS).
+"""
+
+from __future__ import annotations
+
+import argparse
+
+from pacing.errors import InputError
+
+
+def add_air_flags(parser: argparse.ArgumentParser) -> None:
+    """Air and wind flags (issue: cycling physics), shared by plan, compare and fieldtest."""
+    group = parser.add_argument_group("air and wind")
+    group.add_argument("--temperature", type=float, default=20.0,
+                       help="air temperature at the start [°C] (default 20)")
+    group.add_argument("--humidity", type=float, default=50.0,
+                       help="relative humidity [%%] (default 50)")
+    group.add_argument("--sea-level-pressure", type=float, default=101325.0,
+                       help="pressure reduced to sea level [Pa] (default 101325)")
+    group.add_argument("--wind-speed", type=float, default=0.0,
+                       help="wind speed at the measurement height [m/s] (default 0)")
+    group.add_argument("--wind-from", type=float, default=0.0,
+                       help="direction the wind blows FROM [deg clockwise from north]")
+    group.add_argument("--wind-height", type=float, default=10.0,
+                       help="height of the wind measurement [m] (default 10, weather reports)")
+    group.add_argument("--roughness", type=float, default=0.03,
+                       help="terrain roughness length z0 [m] (default 0.03, open terrain)")
+
+
+def add_rider_flags(parser: argparse.ArgumentParser) -> None:
+    """Cycling rider flags."""
+    group = parser.add_argument_group("rider and bike")
+    group.add_argument("--mass", type=float, default=80.0,
+                       help="rider + bike + kit [kg] (default 80)")
+    group.add_argument("--cda", type=float, default=None,
+                       help="drag area CdA [m²] (default 0.30 cycling; from height and mass "
+                            "running)")
+    group.add_argument("--crr", type=float, default=0.0032,
+                       help="rolling resistance coefficient (default 0.0032)")
+    group.add_argument("--efficiency", type=float, default=0.976,
+                       help="drivetrain efficiency (default 0.976)")
+    group.add_argument("--drafting", type=float, default=0.0,
+                       help="drag reduction from drafting [%%] (default 0)")
+
+
+def parse_clock(text: str, what: str) -> float:
+    """'H:MM:SS', 'M:SS' or plain seconds → seconds [s]."""
+    try:
+        parts = [float(p) for p in str(text).strip().split(":")]
+    except ValueError:
+        raise InputError(f"{what} must look like H:MM:SS or M:SS, got {text!r}") from None
+    if not 1 <= len(parts) <= 3 or any(p < 0 for p in parts):
+        raise InputError(f"{what} must look like H:MM:SS or M:SS, got {text!r}")
+    seconds = 0.0
+    for part in parts:
+        seconds = seconds * 60.0 + part
+    if seconds <= 0:
+        raise InputError(f"{what} must be positive, got {text!r}")
+    return seconds
+
+
+def require(condition: bool, message: str) -> None:
+    """Raise InputError(message) unless condition holds."""
+    if not condition:
+        raise InputError(message)
