@@ -1,0 +1,72 @@
+"""``pacing plan ROUTE.gpx …``: predict a race and its pacing plan (cycling or running).
+
+The parser lists every flag of the command (a contract other tools rely on); the work is done
+by pacing.cli.plan_cycling.run and pacing.cli.plan_running.run.
+"""
+
+from __future__ import annotations
+
+import argparse
+
+from pacing.cli.common import add_air_flags, add_rider_flags
+
+CYCLING_STRATEGIES = ("constant", "fastest", "target-time")
+RUNNING_STRATEGIES = ("equal-effort", "even-pace", "fastest")
+
+
+def add_parser(subparsers: argparse._SubParsersAction) -> None:
+    parser = subparsers.add_parser(
+        "plan",
+        help="predict finish time and segment targets for a power or pace plan",
+        description="Predict finish time and segment targets on a GPX course.",
+    )
+    add_plan_flags(parser)
+    parser.set_defaults(run=run)
+
+
+def add_plan_flags(parser: argparse.ArgumentParser) -> None:
+    """Every flag of the plan command (compare reuses them)."""
+    parser.add_argument("route", help="GPX file of the course")
+    parser.add_argument("--sport", choices=("cycling", "running"), default="cycling")
+    parser.add_argument("--json", action="store_true", help="print JSON instead of a table")
+    parser.add_argument("--step", type=float, default=None,
+                        help="resampling step of the course [m]")
+    parser.add_argument("--flat", action="store_true",
+                        help="treat a course without elevation as flat (with a warning)")
+    parser.add_argument("--segment-length", type=float, default=None,
+                        help="split into segments of this length [m] instead of by grade")
+    add_rider_flags(parser)
+    add_air_flags(parser)
+    cyc = parser.add_argument_group("cycling plan")
+    cyc.add_argument("--power", type=float, default=None,
+                     help="constant crank power, or the mean power to match [W]")
+    cyc.add_argument("--strategy", default=None,
+                     help="cycling: constant|fastest|target-time; "
+                          "running: equal-effort|even-pace|fastest")
+    cyc.add_argument("--target-time", default=None, help="finish time to reach, H:MM:SS")
+    cyc.add_argument("--cp", type=float, default=None, help="critical power [W]")
+    cyc.add_argument("--w-prime", type=float, default=None, help="W′ [J]")
+    cyc.add_argument("--w-prime-reserve", type=float, default=0.0,
+                     help="W′ balance never to go below [J] (default 0)")
+    cyc.add_argument("--max-power-ratio", type=float, default=None,
+                     help="segment power at most this multiple of critical power (or of the "
+                          "mean power when --cp is not given)")
+    cyc.add_argument("--start-speed", type=float, default=0.0,
+                     help="speed at the start line [m/s] (default 0, standing start)")
+    run = parser.add_argument_group("running plan")
+    run.add_argument("--flat-pace", default=None,
+                     help="pace held on flat ground in still air, M:SS per km")
+    run.add_argument("--body-mass", type=float, default=None, help="runner's body mass [kg]")
+    run.add_argument("--height", type=float, default=None, help="runner's height [m]")
+    run.add_argument("--critical-speed", type=float, default=None, help="critical speed [m/s]")
+    run.add_argument("--d-prime", type=float, default=None, help="D′ [m]")
+
+
+def run(args: argparse.Namespace) -> int:
+    if args.sport == "running":
+        from pacing.cli import plan_running
+
+        return plan_running.run(args)
+    from pacing.cli import plan_cycling
+
+    return plan_cycling.run(args)
