@@ -14,7 +14,7 @@ $(STAMP): pyproject.toml
 
 ## Start the web app on the demo course (installs first).
 app: $(STAMP)
-	$(BIN)/streamlit run app.py --browser.gatherUsageStats false
+	$(BIN)/streamlit run app.py
 
 ## Run the whole test suite (installs first).
 test: $(STAMP)
