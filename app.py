@@ -1,7 +1,203 @@
-"""Streamlit front end (placeholder until the web-app issue lands)."""
+"""Streamlit front end: from a GPX course to a race plan and a segment target table.
 
+One page, top to bottom: route → athlete and equipment → weather → pacing approach → predicted
+race → downloads. The page only calls the library (ui.pipeline); expensive steps are cached on
+the file's bytes and the inputs. Run with ``make app`` (``streamlit run app.py``).
+"""
+
+from __future__ import annotations
+
+import hashlib
+from pathlib import Path
+
+import numpy as np
 import streamlit as st
 
-st.set_page_config(page_title="pacing", layout="wide")
-st.title("pacing")
-st.write("Race-pacing planner for cycling and running.")
+from pacing.errors import InputError
+from pacing.io.exports import segment_table
+from pacing.units import format_quantity
+from pacing.wind import ROUGHNESS_LENGTHS
+from ui import figures, pipeline, sections, text
+
+st.set_page_config(page_title="pacing · race plan", layout="wide")
+
+
+# ------------------------------------------------------------------------------ cached steps
+
+@st.cache_data(max_entries=16, show_spinner=False)
+def read_demo(path: str) -> bytes:
+    return Path(path).read_bytes()
+
+
+@st.cache_resource(max_entries=12, show_spinner="Reading the course…")
+def cached_course(data: bytes, name: str, window: float, max_grade: float):
+    return pipeline.load_course_from_bytes(data, name, window, max_grade)
+
+
+@st.cache_data(max_entries=64, show_spinner=False)
+def cached_bounds(course_key: str, _course, mode: str, length, marks: tuple) -> np.ndarray:
+    return pipeline.segment_bounds(_course, mode, length, marks)
+
+
+@st.cache_resource(max_entries=64, show_spinner="Working out the race…")
+def cached_outcome(course_key: str, _course, bounds: tuple, athlete: tuple, weather: tuple,
+                   approach: tuple):
+    """(outcome, None) or (None, error message): refusals are cached too, so a slow refusal
+    is not recomputed on every rerun."""
+    arguments = (_course, np.asarray(bounds), dict(athlete), dict(weather), dict(approach))
+    try:
+        if dict(athlete)["sport"] == "running":
+            return pipeline.running_outcome(*arguments), None
+        return pipeline.cycling_outcome(*arguments), None
+    except InputError as error:
+        return None, str(error).splitlines()[0] if str(error) else "bad input"
+
+
+@st.cache_resource(max_entries=32, show_spinner=False)
+def cached_profile(course_key: str, _course, system: str, bounds: tuple | None):
+    return figures.profile_figure(_course, system,
+                                  None if bounds is None else np.asarray(bounds))
+
+
+@st.cache_resource(max_entries=32, show_spinner=False)
+def cached_map(course_key: str, _course, system: str, wind_speed: float, wind_from: float):
+    return figures.route_map_figure(_course, system, wind_speed, wind_from)
+
+
+@st.cache_resource(max_entries=32, show_spinner=False)
+def cached_along(outcome_key: str, _outcome, system: str):
+    return figures.along_course_figure(_outcome.distance, _outcome.speed, _outcome.power,
+                                       _outcome.headwind, _outcome.w_prime_balance, system)
+
+
+def show_error(error: Exception) -> None:
+    """One clear line in the page for a bad input."""
+    message = str(error).splitlines()[0] if str(error) else type(error).__name__
+    st.error(f"⚠ {message}")
+
+
+# ------------------------------------------------------------------------------------- page
+
+system = st.sidebar.radio("Units", ("metric", "imperial"), key="units",
+                          help="applies to every input, chart, table and download")
+st.sidebar.caption(text.SPEED_CAUTION)
+st.sidebar.caption(text.EXERTION_CAUTION)
+
+st.title("Race plan")
+st.caption("Load a course, describe the athlete and the day, and take away segment targets.")
+
+course = None
+course_key = ""
+bounds = None
+map_slot = None
+
+# 1 · route -----------------------------------------------------------------------------
+st.header(text.SECTION_ROUTE)
+try:
+    demos = pipeline.demo_routes()
+except OSError:
+    demos = {}
+cols = st.columns([2, 3])
+choice = cols[0].selectbox("Demo course", list(demos) or ["(none available yet)"],
+                           key="demo_route", disabled=not demos,
+                           help="invented courses shipped with the program")
+upload = cols[1].file_uploader("…or your own course (GPX)", type=["gpx"], key="upload_gpx")
+smoothing = sections.smoothing_inputs(system)
+source_bytes, source_name = None, None
+if upload is not None:
+    source_bytes, source_name = upload.getvalue(), Path(upload.name).stem
+elif demos:
+    source_bytes, source_name = read_demo(str(demos[choice])), choice
+if source_bytes is None:
+    st.warning("No course yet: upload a GPX file.")
+else:
+    try:
+        course = cached_course(source_bytes, source_name, smoothing["window"],
+                               smoothing["max_grade"])
+        course_key = (hashlib.sha1(source_bytes).hexdigest()
+                      + f":{smoothing['window']}:{smoothing['max_grade']}")
+    except InputError as error:
+        show_error(error)
+if course is not None:
+    sections.route_facts(course, system)
+    try:
+        split = sections.split_inputs(system)
+        bounds = cached_bounds(course_key, course, split["mode"], split["length"],
+                               split["marks"])
+        sections.segment_overview(course, bounds, system)
+    except InputError as error:
+        show_error(error)
+    cols = st.columns([3, 2])
+    with cols[0]:
+        st.plotly_chart(cached_profile(course_key, course, system,
+                                       None if bounds is None else tuple(map(int, bounds))),
+                        key="profile")
+    map_slot = cols[1].empty()
+
+# 2 · athlete and equipment ---------------------------------------------------------------
+st.header(text.SECTION_RIDER)
+athlete = None
+try:
+    athlete = sections.athlete_inputs(system)
+except InputError as error:
+    show_error(error)
+
+# 3 · weather -----------------------------------------------------------------------------
+st.header(text.SECTION_WEATHER)
+weather = sections.weather_inputs(system, ROUGHNESS_LENGTHS)
+if map_slot is not None:
+    with map_slot:
+        st.plotly_chart(cached_map(course_key, course, system, weather.get("wind_speed", 0.0),
+                                   weather.get("wind_from", 0.0)), key="map")
+
+# 4 · approach ----------------------------------------------------------------------------
+st.header(text.SECTION_APPROACH)
+approach = None
+if athlete is not None:
+    try:
+        approach = sections.approach_inputs(athlete["sport"], athlete)
+    except InputError as error:
+        show_error(error)
+
+# 5 · outcome -----------------------------------------------------------------------------
+st.header(text.SECTION_OUTCOME)
+outcome = None
+table = None
+if course is None or bounds is None or athlete is None or approach is None:
+    st.info("Fix the inputs above to see the predicted race.")
+else:
+    inputs = (tuple(int(b) for b in bounds), tuple(sorted(athlete.items())),
+              tuple(sorted(weather.items())), tuple(sorted(approach.items())))
+    outcome_key = course_key + hashlib.sha1(repr(inputs).encode()).hexdigest()
+    try:
+        outcome, refusal = cached_outcome(course_key, course, *inputs)
+        if refusal:
+            show_error(InputError(refusal))
+    except InputError as error:
+        show_error(error)
+if outcome is not None:
+    sections.outcome_headline(outcome, system)
+    st.warning(text.SPEED_CAUTION)
+    if outcome.exhausted_at is not None:
+        st.warning(
+            "⚠ W′ runs out at "
+            f"{format_quantity(outcome.exhausted_at, 'distance', system, 1)}: this plan asks "
+            "more than the athlete's critical power and W′ allow. Lower the power or choose "
+            "the quickest plan within limits.")
+    for note in outcome.notes:
+        st.caption(f"Note: {note}")
+    st.plotly_chart(cached_along(outcome_key, outcome, system), key="along")
+    st.subheader("Segment targets")
+    try:
+        table = segment_table(outcome.rows, system)
+        st.dataframe(table, hide_index=True, key="targets")
+    except InputError as error:
+        show_error(error)
+    st.caption(text.EXERTION_CAUTION)
+
+# 6 · take it with you --------------------------------------------------------------------
+st.header(text.SECTION_TAKEAWAY)
+if outcome is not None and table is not None:
+    sections.downloads(outcome, course, table, system, course.name)
+else:
+    st.caption("Downloads appear once there is a predicted race.")

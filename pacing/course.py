@@ -1,20 +1,117 @@
-"""Course geometry along the distance: resampled points, grades, headings, corner radii.
+"""Course geometry along the distance: resampled points, grades, headings, corner radii, segments.
 
 Conventions (see DEVELOPERS.md):
 - N points at a uniform horizontal step; *point* arrays have length N.
 - A *piece* is the stretch between point i and i+1; *piece* arrays have length N-1.
 - Grade is rise over run (a fraction, 0.05 = 5 %); heading is degrees clockwise from true north
   in [0, 360).
+- Segments are given by boundary point indices (`bounds`: increasing, first 0, last N-1).
+
+Building a course from a track (`build_course`):
+
+1. validate the positions and elevations, drop repeated consecutive points;
+2. measure each raw piece on the WGS84 ellipsoid (pyproj.Geod, Karney 2013), which also handles
+   tracks that cross the antimeridian;
+3. resample along the track at a uniform step, moving along each raw piece's geodesic;
+4. clean the elevation: smooth over a distance window (`ElevationSmoothing`, scipy.signal
+   windows), then limit the grade; the raw ascent is kept for comparison;
+5. heading of each piece (geodesic azimuth) and corner radius at each point (circumradius of
+   points a few tens of metres apart, in an azimuthal equidistant projection around the point).
+
+pyproj is the one library outside numpy/scipy this module imports (DEVELOPERS.md, Conventions).
+
+References
+----------
+Karney, C.F.F. (2013). Algorithms for geodesics. J Geodesy 87:43-55. doi:10.1007/s00190-012-0578-z
 """
 
 from __future__ import annotations
 
+import heapq
+import math
 from dataclasses import dataclass
 
 import numpy as np
+from pyproj import Geod
+
+from pacing.errors import InputError
 
 STRAIGHT_ROAD_RADIUS = 1000.0
 """Corner radius reported for straight road [m]: larger radii never limit speed."""
+
+DEFAULT_STEP = 10.0
+"""Default resampling step along the course [m]: fine enough to keep the shape of a hairpin
+bend, coarse enough that 200 km make 20,000 points."""
+
+MINIMUM_STEP = 1.0
+"""Smallest resampling step accepted [m]."""
+
+MAXIMUM_STEP = 1000.0
+"""Largest resampling step accepted [m]."""
+
+MAXIMUM_COURSE_POINTS = 2_000_000
+"""Most points a resampled course may have (course length / step)."""
+
+CORNER_SPAN = 20.0
+"""Distance along the course from a point to each of the two neighbours used for its corner
+radius [m]."""
+
+REPEATED_POINT_DISTANCE = 1e-3
+"""Consecutive points closer than this are one point [m]; the later ones are dropped."""
+
+LOWEST_ELEVATION = -500.0
+"""Lowest plausible elevation of a course [m] (the shore of the Dead Sea is about -430 m)."""
+
+HIGHEST_ELEVATION = 9000.0
+"""Highest plausible elevation of a course [m] (Everest is 8849 m)."""
+
+ELEVATION_JUMP_SLACK = 50.0
+"""Elevation change between two track points is absurd beyond this height [m] plus
+ELEVATION_JUMP_GRADE times their horizontal distance."""
+
+ELEVATION_JUMP_GRADE = 1.0
+"""Grade no road or path keeps between two track points (100 %) [-]."""
+
+CLIMB_GRADE = 0.02
+"""Mean grade from which a segment is a climb (and below minus which a descent) [-]; common
+practice."""
+
+WGS84 = Geod(ellps="WGS84")
+"""The WGS84 ellipsoid for geodesic distances and azimuths (pyproj, after Karney 2013)."""
+
+
+# ---------------------------------------------------------------------------- the course itself
+
+@dataclass(frozen=True)
+class ElevationSmoothing:
+    """How a course's elevation is cleaned: smoothing over a distance window, then a grade limit.
+
+    Attributes
+    ----------
+    window : width of the smoothing window along the course [m]. For "gaussian" the kernel's
+        standard deviation is window/4 (truncated at ±3 standard deviations); for
+        "moving-average" it is a flat window of this width. 0 turns smoothing off.
+    max_grade : steepest grade kept after smoothing, up or down [-]; steeper pieces are
+        flattened to this grade.
+    method : a key of SMOOTHING_METHODS ("gaussian", "moving-average", "none").
+
+    Both kernels are positive and the ends are padded with the end values, so smoothing never
+    adds ascent: the ascent of the cleaned course is at most that of the raw track.
+    """
+
+    window: float = 200.0
+    max_grade: float = 0.25
+    method: str = "gaussian"
+
+    def __post_init__(self) -> None:
+        if not (math.isfinite(self.window) and self.window >= 0):
+            raise InputError(f"smoothing window must be a length >= 0 m, got {self.window!r}")
+        if not (math.isfinite(self.max_grade) and 0 < self.max_grade <= 1.0):
+            raise InputError(
+                f"grade limit must be between 0 and 1 (100 %), got {self.max_grade!r}")
+        if self.method not in SMOOTHING_METHODS:
+            raise InputError(f"unknown smoothing method {self.method!r}; choose one of "
+                             f"{', '.join(SMOOTHING_METHODS)}")
 
 
 @dataclass(frozen=True, eq=False)
@@ -34,6 +131,7 @@ class Course:
         STRAIGHT_ROAD_RADIUS, length N.
     name : a label for the course.
     raw_ascent : total ascent of the raw track, before resampling and cleaning [m].
+    smoothing : the elevation cleaning used (None for a course made from numbers).
     """
 
     distance: np.ndarray
@@ -46,6 +144,7 @@ class Course:
     corner_radius: np.ndarray
     name: str = "course"
     raw_ascent: float = float("nan")
+    smoothing: ElevationSmoothing | None = None
 
     @property
     def piece_length(self) -> np.ndarray:
@@ -60,14 +159,28 @@ class Course:
     @property
     def ascent(self) -> float:
         """Total ascent of the cleaned profile [m]."""
-        rise = np.diff(self.elevation)
-        return float(rise[rise > 0].sum())
+        return total_ascent(self.elevation)
 
     @property
     def descent(self) -> float:
         """Total descent of the cleaned profile [m] (a positive number)."""
-        rise = np.diff(self.elevation)
-        return float(-rise[rise < 0].sum())
+        return total_ascent(-np.asarray(self.elevation))
+
+    @property
+    def highest_elevation(self) -> float:
+        """Highest point of the cleaned profile [m]."""
+        return float(np.max(self.elevation))
+
+    @property
+    def lowest_elevation(self) -> float:
+        """Lowest point of the cleaned profile [m]."""
+        return float(np.min(self.elevation))
+
+
+def total_ascent(elevation: np.ndarray) -> float:
+    """Sum of the rises between consecutive points [m] (descents are not subtracted)."""
+    rise = np.diff(np.asarray(elevation, dtype=float))
+    return float(rise[rise > 0].sum())
 
 
 def synthetic_course(
@@ -93,10 +206,10 @@ def synthetic_course(
     distance = np.asarray(distance, dtype=float)
     elevation = np.asarray(elevation, dtype=float)
     if distance.ndim != 1 or distance.size < 2 or elevation.shape != distance.shape:
-        raise ValueError("distance and elevation must be 1-D arrays of equal length >= 2")
+        raise InputError("distance and elevation must be 1-D arrays of equal length >= 2")
     step = np.diff(distance)
     if np.any(step <= 0):
-        raise ValueError("distance must be strictly increasing")
+        raise InputError("distance must be strictly increasing")
     heading = np.broadcast_to(np.asarray(heading, dtype=float), step.shape) % 360.0
     radius = np.broadcast_to(np.asarray(corner_radius, dtype=float), distance.shape)
     north = np.concatenate([[0.0], np.cumsum(step * np.cos(np.radians(heading)))])
@@ -115,3 +228,560 @@ def synthetic_course(
         name=name,
         raw_ascent=float(rise[rise > 0].sum()),
     )
+
+
+# ------------------------------------------------------------------------------ geodesy
+
+def geodesic_pieces(latitude: np.ndarray, longitude: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+    """Length and initial azimuth of the geodesic between consecutive points on WGS84.
+
+    Parameters
+    ----------
+    latitude, longitude : positions [deg], length N >= 1.
+
+    Returns
+    -------
+    length : [m], length N-1.
+    azimuth : direction at the start of each piece [deg clockwise from north, 0..360), length N-1.
+
+    Solved with pyproj.Geod.inv, Karney's (2013) algorithm, accurate to nanometres; a piece that
+    crosses the antimeridian is measured the short way.
+    """
+    latitude = np.asarray(latitude, dtype=float)
+    longitude = np.asarray(longitude, dtype=float)
+    if latitude.size < 2:
+        return np.zeros(0), np.zeros(0)
+    azimuth, _, length = WGS84.inv(longitude[:-1], latitude[:-1], longitude[1:], latitude[1:])
+    return np.asarray(length, dtype=float), np.mod(np.asarray(azimuth, dtype=float), 360.0)
+
+
+def validate_track(latitude, longitude, elevation=None) -> tuple[np.ndarray, ...]:
+    """Check the raw track's arrays and return them as float arrays.
+
+    Raises InputError for unequal lengths, fewer than two points, non-finite or out-of-range
+    positions, elevations outside LOWEST_ELEVATION..HIGHEST_ELEVATION. NaN elevations mean
+    "missing at that point" and are kept (build_course fills them).
+    """
+    try:
+        latitude = np.asarray(latitude, dtype=float).ravel()
+        longitude = np.asarray(longitude, dtype=float).ravel()
+        elevation = (None if elevation is None
+                     else np.asarray(elevation, dtype=float).ravel())
+    except (TypeError, ValueError):
+        raise InputError("positions and elevations must be numbers") from None
+    if latitude.size != longitude.size or (elevation is not None
+                                           and elevation.size != latitude.size):
+        raise InputError("latitude, longitude and elevation must have the same number of points")
+    if latitude.size == 0:
+        raise InputError("the course has no points")
+    if latitude.size == 1:
+        raise InputError("the course has only one point; a course needs at least two")
+    bad = ~np.isfinite(latitude) | (np.abs(latitude) > 90.0)
+    if bad.any():
+        index = int(np.argmax(bad))
+        raise InputError(f"latitude out of range -90..90 deg at point {index + 1}: "
+                         f"{latitude[index]:g}")
+    bad = ~np.isfinite(longitude) | (np.abs(longitude) > 180.0)
+    if bad.any():
+        index = int(np.argmax(bad))
+        raise InputError(f"longitude out of range -180..180 deg at point {index + 1}: "
+                         f"{longitude[index]:g}")
+    if elevation is not None:
+        with np.errstate(invalid="ignore"):
+            bad = np.isinf(elevation) | (elevation < LOWEST_ELEVATION) | (
+                elevation > HIGHEST_ELEVATION)
+        if bad.any():
+            index = int(np.argmax(bad))
+            raise InputError(f"elevation {elevation[index]:g} m at point {index + 1} is outside "
+                             f"the plausible range {LOWEST_ELEVATION:g}..{HIGHEST_ELEVATION:g} m")
+    return latitude, longitude, elevation
+
+
+def check_elevation_jumps(length: np.ndarray, elevation: np.ndarray) -> None:
+    """Raise InputError where the elevation changes absurdly between two track points.
+
+    A change |Δz| > ELEVATION_JUMP_SLACK + ELEVATION_JUMP_GRADE·Δs (Δs the horizontal distance
+    [m]) is taken as a recording fault no cleaning should paper over.
+    """
+    jump = np.abs(np.diff(elevation))
+    bad = jump > ELEVATION_JUMP_SLACK + ELEVATION_JUMP_GRADE * length
+    if bad.any():
+        index = int(np.argmax(bad))
+        raise InputError(f"absurd elevation jump of {jump[index]:.0f} m over "
+                         f"{length[index]:.0f} m between points {index + 1} and {index + 2}")
+
+
+def _fill_missing(distance: np.ndarray, elevation: np.ndarray) -> np.ndarray:
+    known = np.isfinite(elevation)
+    if known.all():
+        return elevation
+    if not known.any():
+        raise InputError("the course has no elevation at any point")
+    return np.interp(distance, distance[known], elevation[known])
+
+
+def resample_distance(total: float, step: float) -> np.ndarray:
+    """Uniform distances 0, step, 2·step, … and the total [m]; the last piece is kept between
+    0.1·step and 1.1·step long so that no sliver piece remains."""
+    grid = np.arange(0.0, total, step)
+    if grid.size > 1 and total - grid[-1] < 0.1 * step:
+        grid = grid[:-1]
+    return np.append(grid, total)
+
+
+def circumradius(latitude: np.ndarray, longitude: np.ndarray, offset: int) -> np.ndarray:
+    """Circumradius [m] of each point i with points i-k and i+k, k = min(offset, i, N-1-i).
+
+    R = a·b·c / (4·area) for the triangle, in an azimuthal equidistant projection centred on
+    point i (coordinates from the geodesic distance and azimuth to each neighbour: exact at the
+    centre, valid across the antimeridian). Infinite for collinear points and at the two ends.
+    """
+    count = latitude.size
+    radius = np.full(count, np.inf)
+    if count < 3:
+        return radius
+    index = np.arange(1, count - 1)
+    reach = np.minimum(offset, np.minimum(index, count - 1 - index))
+    before, after = index - reach, index + reach
+    azimuth_a, _, distance_a = WGS84.inv(longitude[index], latitude[index],
+                                         longitude[before], latitude[before])
+    azimuth_b, _, distance_b = WGS84.inv(longitude[index], latitude[index],
+                                         longitude[after], latitude[after])
+    distance_a, distance_b = np.asarray(distance_a), np.asarray(distance_b)
+    ax = distance_a * np.sin(np.radians(azimuth_a))
+    ay = distance_a * np.cos(np.radians(azimuth_a))
+    bx = distance_b * np.sin(np.radians(azimuth_b))
+    by = distance_b * np.cos(np.radians(azimuth_b))
+    chord = np.hypot(bx - ax, by - ay)
+    twice_area = np.abs(ax * by - ay * bx)
+    with np.errstate(divide="ignore", invalid="ignore"):
+        inner = distance_a * distance_b * chord / (2.0 * twice_area)
+    radius[index] = np.where(np.isfinite(inner), inner, np.inf)
+    return radius
+
+
+def corner_radius(latitude: np.ndarray, longitude: np.ndarray, step: float,
+                  span: float = CORNER_SPAN) -> np.ndarray:
+    """Radius of the road's curve at each point [m], capped at STRAIGHT_ROAD_RADIUS.
+
+    R = max(R(span), R(2·span) / 2), where R(s) is the circumradius of the point and the points
+    s before and after it (see `circumradius`). A real bend curves both triangles alike (for
+    bends of 12 m radius or more, R(2s)/2 stays below R(s)), while GPS jitter of a metre bends
+    a 40 m chord into a false radius of ~200 m but a 80 m chord hardly at all; the second term
+    removes most such false bends. Straight road and the two end points get
+    STRAIGHT_ROAD_RADIUS.
+
+    Parameters
+    ----------
+    latitude, longitude : points at a uniform step [deg], length N.
+    step : distance between the points [m].
+    span : distance to each neighbour [m]; rounded to a whole number of steps (at least one).
+    """
+    latitude = np.asarray(latitude, dtype=float)
+    longitude = np.asarray(longitude, dtype=float)
+    offset = max(1, int(round(span / step)))
+    radius = np.maximum(circumradius(latitude, longitude, offset),
+                        circumradius(latitude, longitude, 2 * offset) / 2.0)
+    return np.minimum(radius, STRAIGHT_ROAD_RADIUS)
+
+
+# ------------------------------------------------------------------------ elevation cleaning
+
+# scipy.signal is imported inside the functions that use it: it takes a second or more to
+# import, and code that only needs Course or synthetic_course should not pay for it.
+
+def _gaussian_kernel(window: float, step: float) -> np.ndarray:
+    from scipy import signal
+
+    deviation = window / 4.0 / step
+    if deviation < 0.5:
+        return np.ones(1)
+    half = int(math.ceil(3.0 * deviation))
+    return signal.windows.gaussian(2 * half + 1, deviation)
+
+
+def _moving_average_kernel(window: float, step: float) -> np.ndarray:
+    from scipy import signal
+
+    half = int(round(window / step / 2.0))
+    return signal.windows.boxcar(2 * half + 1)
+
+
+SMOOTHING_METHODS = {
+    "gaussian": _gaussian_kernel,
+    "moving-average": _moving_average_kernel,
+    "none": None,
+}
+"""Elevation smoothing kernels by name: function (window [m], step [m]) -> positive weights."""
+
+
+def smooth_elevation(elevation: np.ndarray, step: float,
+                     smoothing: ElevationSmoothing = ElevationSmoothing()) -> np.ndarray:
+    """Elevation smoothed over a distance window [m] (no grade limit).
+
+    z_s[i] = Σ_j w_j·z[i+j] / Σ_j w_j with positive weights w from scipy.signal.windows and the
+    ends padded with the end values. A positive kernel with constant padding never increases
+    total ascent (the ascent of a weighted mean of shifted copies is at most the weighted mean
+    of their ascents), so smoothing cannot invent climbing.
+
+    Parameters
+    ----------
+    elevation : elevation at points a uniform `step` apart [m].
+    step : distance between the points [m].
+    smoothing : window and method.
+    """
+    elevation = np.asarray(elevation, dtype=float)
+    make_kernel = SMOOTHING_METHODS[smoothing.method]
+    from scipy import signal
+
+    if make_kernel is None or smoothing.window <= 0 or elevation.size < 3:
+        return elevation.copy()
+    kernel = make_kernel(smoothing.window, step)
+    if kernel.size == 1:
+        return elevation.copy()
+    kernel = kernel / kernel.sum()
+    half = kernel.size // 2
+    padded = np.pad(elevation, half, mode="edge")
+    return signal.convolve(padded, kernel, mode="valid", method="auto")
+
+
+def limit_grade(distance: np.ndarray, elevation: np.ndarray, max_grade: float) -> np.ndarray:
+    """Elevation re-integrated with every piece's grade clipped to ±max_grade [m].
+
+    z'[0] = z[0]; z'[i+1] = z'[i] + clip(z[i+1] − z[i], −g·Δs, +g·Δs). Clipping only shrinks
+    rises, so ascent never grows.
+    """
+    length = np.diff(distance)
+    rise = np.clip(np.diff(elevation), -max_grade * length, max_grade * length)
+    return elevation[0] + np.concatenate([[0.0], np.cumsum(rise)])
+
+
+def clean_elevation(distance: np.ndarray, elevation: np.ndarray,
+                    smoothing: ElevationSmoothing = ElevationSmoothing()) -> np.ndarray:
+    """Smooth the elevation over `smoothing.window`, then limit the grade [m].
+
+    Parameters
+    ----------
+    distance : distance of each point, uniform step except maybe the last piece [m].
+    elevation : resampled raw elevation [m].
+    smoothing : window, grade limit and method.
+    """
+    distance = np.asarray(distance, dtype=float)
+    step = float(distance[1] - distance[0]) if distance.size > 1 else 1.0
+    smoothed = smooth_elevation(elevation, step, smoothing)
+    return limit_grade(distance, smoothed, smoothing.max_grade)
+
+
+# ------------------------------------------------------------------------------ build
+
+def build_course(latitude, longitude, elevation, step: float = DEFAULT_STEP,
+                 smoothing: ElevationSmoothing = ElevationSmoothing(),
+                 name: str = "course") -> Course:
+    """Build a Course from a raw track (positions in order along the course).
+
+    Parameters
+    ----------
+    latitude, longitude : WGS84 positions of the track points [deg], length M >= 2.
+    elevation : elevation of each track point [m], length M; NaN where a point has none (filled
+        by interpolation along the distance).
+    step : resampling step [m], MINIMUM_STEP..MAXIMUM_STEP.
+    smoothing : elevation cleaning.
+    name : label of the course.
+
+    Returns
+    -------
+    Course with `distance` along the track (sum of geodesic piece lengths), elevation cleaned,
+    grade from the cleaned elevation, heading and corner radius from the resampled positions.
+
+    Raises InputError (one-line message) for bad positions, elevations, step, a track whose
+    points are all at one place, absurd elevation jumps, or a course too long for the step.
+    Repeated consecutive points are dropped silently.
+    """
+    try:
+        step = float(step)
+    except (TypeError, ValueError):
+        raise InputError(f"step must be a number of metres, got {step!r}") from None
+    if not (math.isfinite(step) and MINIMUM_STEP <= step <= MAXIMUM_STEP):
+        raise InputError(f"step must be between {MINIMUM_STEP:g} and {MAXIMUM_STEP:g} m, "
+                         f"got {step:g}")
+    if smoothing is None:
+        smoothing = ElevationSmoothing()
+    if elevation is None:
+        raise InputError("the course has no elevation")
+    latitude, longitude, elevation = validate_track(latitude, longitude, elevation)
+
+    length, _ = geodesic_pieces(latitude, longitude)
+    keep = np.concatenate([[True], length > REPEATED_POINT_DISTANCE])
+    latitude, longitude, elevation = latitude[keep], longitude[keep], elevation[keep]
+    if latitude.size < 2:
+        raise InputError("all points of the course are at the same place")
+    length, azimuth = geodesic_pieces(latitude, longitude)
+    track_distance = np.concatenate([[0.0], np.cumsum(length)])
+    elevation = _fill_missing(track_distance, elevation)
+    check_elevation_jumps(length, elevation)
+    total = float(track_distance[-1])
+    if total / step > MAXIMUM_COURSE_POINTS:
+        raise InputError(f"course of {total / 1000:.0f} km is too long for a {step:g} m step "
+                         f"(at most {MAXIMUM_COURSE_POINTS} points)")
+
+    distance = resample_distance(total, step)
+    piece = np.clip(np.searchsorted(track_distance, distance, side="right") - 1,
+                    0, length.size - 1)
+    along = distance - track_distance[piece]
+    new_longitude, new_latitude, _ = WGS84.fwd(longitude[piece], latitude[piece],
+                                               azimuth[piece], along)
+    new_latitude = np.asarray(new_latitude, dtype=float)
+    new_longitude = np.asarray(new_longitude, dtype=float)
+    new_latitude[-1], new_longitude[-1] = latitude[-1], longitude[-1]
+    new_longitude = (new_longitude + 180.0) % 360.0 - 180.0
+
+    raw_elevation = np.interp(distance, track_distance, elevation)
+    cleaned = clean_elevation(distance, raw_elevation, smoothing)
+    piece_length = np.diff(distance)
+    grade = np.clip(np.diff(cleaned) / piece_length, -smoothing.max_grade, smoothing.max_grade)
+    _, heading = geodesic_pieces(new_latitude, new_longitude)
+    return Course(
+        distance=distance,
+        latitude=new_latitude,
+        longitude=new_longitude,
+        elevation=cleaned,
+        raw_elevation=raw_elevation,
+        grade=grade,
+        heading=heading,
+        corner_radius=corner_radius(new_latitude, new_longitude, step),
+        name=str(name),
+        raw_ascent=total_ascent(elevation),
+        smoothing=smoothing,
+    )
+
+
+# ------------------------------------------------------------------------------ segments
+
+@dataclass(frozen=True)
+class Segment:
+    """A stretch of the course between two boundary points.
+
+    Attributes
+    ----------
+    index : number of the segment, from 0.
+    start, end : distance of its first and last point from the start [m].
+    length : end - start [m].
+    mean_grade : net rise over length [-].
+    max_grade : grade of its steepest piece, with its sign (a descent's is negative) [-].
+    ascent, descent : total rise and fall of the cleaned profile within it [m] (both >= 0).
+    mean_heading : length-weighted circular mean of its pieces' headings [deg from north].
+    kind : "climb" (mean grade >= CLIMB_GRADE), "descent" (<= -CLIMB_GRADE) or "flat".
+    start_index, end_index : its boundary point indices in the course.
+    """
+
+    index: int
+    start: float
+    end: float
+    length: float
+    mean_grade: float
+    max_grade: float
+    ascent: float
+    descent: float
+    mean_heading: float
+    kind: str
+    start_index: int = 0
+    end_index: int = 0
+
+
+def grade_kind(grade: float, climb_grade: float = CLIMB_GRADE) -> str:
+    """"climb", "descent" or "flat" for a mean grade [-]."""
+    if grade >= climb_grade:
+        return "climb"
+    if grade <= -climb_grade:
+        return "descent"
+    return "flat"
+
+
+def _check_bounds(course: Course, bounds: np.ndarray) -> np.ndarray:
+    bounds = np.asarray(bounds)
+    count = course.distance.size
+    if bounds.dtype.kind == "f" and np.all(np.isfinite(bounds)) and np.all(bounds % 1 == 0):
+        bounds = bounds.astype(int)  # whole numbers given as floats
+    if (bounds.ndim != 1 or bounds.size < 2 or not np.issubdtype(bounds.dtype, np.integer)
+            or bounds[0] != 0 or bounds[-1] != count - 1 or np.any(np.diff(bounds) <= 0)):
+        raise InputError("segment bounds must be increasing point indices from 0 to N-1")
+    return bounds.astype(int)
+
+
+def split_by_grade(course: Course, climb_grade: float = CLIMB_GRADE,
+                   min_length: float = 300.0) -> np.ndarray:
+    """Split the course into climbs, flats and descents by grade.
+
+    Each piece is classed by its cleaned grade (climb >= climb_grade, descent <= -climb_grade,
+    else flat); runs of one class form segments. Then, while a segment is shorter than
+    min_length, the shortest is merged into the neighbour whose mean grade is nearer its own,
+    the merged segment is reclassed by its mean grade, and neighbours of one class are joined.
+
+    Parameters
+    ----------
+    course : the course.
+    climb_grade : grade threshold [-], > 0.
+    min_length : shortest segment kept [m] (a course shorter than this is one segment).
+
+    Returns
+    -------
+    bounds : boundary point indices, increasing, first 0, last N-1.
+    """
+    if not (math.isfinite(climb_grade) and climb_grade > 0):
+        raise InputError(f"climb grade must be > 0, got {climb_grade!r}")
+    if not (math.isfinite(min_length) and min_length >= 0):
+        raise InputError(f"minimum segment length must be >= 0 m, got {min_length!r}")
+    distance, elevation = course.distance, course.elevation
+    grade = np.asarray(course.grade, dtype=float)
+    kind = np.where(grade >= climb_grade, 1, np.where(grade <= -climb_grade, -1, 0))
+    change = np.flatnonzero(np.diff(kind)) + 1
+    starts = [0, *change.tolist()]
+    ends = [*change.tolist(), distance.size - 1]
+
+    def mean_grade(first: int, last: int) -> float:
+        return float((elevation[last] - elevation[first]) / (distance[last] - distance[first]))
+
+    def klass(first: int, last: int) -> int:
+        value = mean_grade(first, last)
+        return 1 if value >= climb_grade else (-1 if value <= -climb_grade else 0)
+
+    # Segments as a doubly linked list; a heap gives the shortest (stale entries skipped).
+    count = len(starts)
+    previous = list(range(-1, count - 1))
+    following = [*range(1, count), -1]
+    alive = [True] * count
+    version = [0] * count
+    heap = [(float(distance[ends[k]] - distance[starts[k]]), 0, k) for k in range(count)]
+    heapq.heapify(heap)
+
+    def absorb(keep: int, gone: int) -> None:
+        """Join segment `gone` into its neighbour `keep`."""
+        starts[keep] = min(starts[keep], starts[gone])
+        ends[keep] = max(ends[keep], ends[gone])
+        alive[gone] = False
+        if following[keep] == gone:
+            following[keep] = following[gone]
+            if following[gone] != -1:
+                previous[following[gone]] = keep
+        else:
+            previous[keep] = previous[gone]
+            if previous[gone] != -1:
+                following[previous[gone]] = keep
+
+    while heap:
+        length, seen, node = heapq.heappop(heap)
+        if not alive[node] or seen != version[node]:
+            continue
+        if length >= min_length or (previous[node] == -1 and following[node] == -1):
+            break
+        own = mean_grade(starts[node], ends[node])
+        neighbours = [k for k in (previous[node], following[node]) if k != -1]
+        target = min(neighbours, key=lambda k: abs(mean_grade(starts[k], ends[k]) - own))
+        absorb(target, node)
+        merged_class = klass(starts[target], ends[target])
+        for side in (previous[target], following[target]):
+            if side != -1 and klass(starts[side], ends[side]) == merged_class:
+                absorb(target, side)
+        version[target] += 1
+        heapq.heappush(heap, (float(distance[ends[target]] - distance[starts[target]]),
+                              version[target], target))
+
+    node = next(k for k in range(count) if alive[k] and previous[k] == -1)
+    bounds = [0]
+    while node != -1:
+        bounds.append(ends[node])
+        node = following[node]
+    return np.asarray(bounds, dtype=int)
+
+
+def split_every(course: Course, length: float) -> np.ndarray:
+    """Split the course every `length` metres (the last segment takes the rest).
+
+    Parameters
+    ----------
+    length : segment length [m], > 0.
+
+    Returns bounds (point indices nearest to each multiple of length; a last segment shorter than
+    half a step is merged into the one before).
+    """
+    try:
+        length = float(length)
+    except (TypeError, ValueError):
+        raise InputError(f"segment length must be a number of metres, got {length!r}") from None
+    if not (math.isfinite(length) and length > 0):
+        raise InputError(f"segment length must be > 0 m, got {length:g}")
+    total = course.total_distance
+    if total / length > course.distance.size:
+        raise InputError(f"segment length {length:g} m is shorter than the course's step")
+    marks = np.arange(length, total, length) + course.distance[0]
+    return _bounds_at(course, marks)
+
+
+def split_at(course: Course, distances) -> np.ndarray:
+    """Split the course at the given distances from the start [m].
+
+    Distances are sorted; each is moved to the nearest point; ones at the start, the finish or
+    repeated are ignored. Raises InputError for values that are not finite numbers or lie
+    outside 0..course length.
+    """
+    try:
+        marks = np.asarray(distances, dtype=float).ravel()
+    except (TypeError, ValueError):
+        raise InputError("split distances must be numbers of metres") from None
+    total = course.total_distance
+    bad = ~np.isfinite(marks) | (marks < 0) | (marks > total)
+    if bad.any():
+        raise InputError(f"split distance {marks[bad][0]:g} m is outside the course "
+                         f"(0..{total:.0f} m)")
+    return _bounds_at(course, np.sort(marks) + course.distance[0])
+
+
+def _bounds_at(course: Course, marks: np.ndarray) -> np.ndarray:
+    distance = course.distance
+    last = distance.size - 1
+    index = np.clip(np.searchsorted(distance, marks), 1, last)
+    nearer_before = np.abs(distance[index - 1] - marks) <= np.abs(distance[index] - marks)
+    index = np.where(nearer_before, index - 1, index)
+    inner = np.unique(index[(index > 0) & (index < last)])
+    return np.concatenate([[0], inner, [last]]).astype(int)
+
+
+def piece_segment_index(bounds: np.ndarray) -> np.ndarray:
+    """Segment number of each piece (length N-1) from the boundary point indices."""
+    bounds = np.asarray(bounds, dtype=int)
+    return np.repeat(np.arange(bounds.size - 1), np.diff(bounds))
+
+
+def describe_segments(course: Course, bounds: np.ndarray,
+                      climb_grade: float = CLIMB_GRADE) -> list[Segment]:
+    """One Segment per stretch between consecutive bounds (see Segment for the fields)."""
+    bounds = _check_bounds(course, bounds)
+    distance, elevation = course.distance, course.elevation
+    grade, heading = np.asarray(course.grade), np.asarray(course.heading)
+    piece_length = np.diff(distance)
+    segments = []
+    for number, (first, last) in enumerate(zip(bounds[:-1], bounds[1:], strict=True)):
+        rise = np.diff(elevation[first:last + 1])
+        length = float(distance[last] - distance[first])
+        pieces = slice(first, last)
+        steepest = int(np.argmax(np.abs(grade[pieces])))
+        weight = piece_length[pieces]
+        angle = np.radians(heading[pieces])
+        mean_heading = math.degrees(math.atan2(float(np.sum(weight * np.sin(angle))),
+                                               float(np.sum(weight * np.cos(angle))))) % 360.0
+        mean_grade = float((elevation[last] - elevation[first]) / length)
+        segments.append(Segment(
+            index=number,
+            start=float(distance[first]),
+            end=float(distance[last]),
+            length=length,
+            mean_grade=mean_grade,
+            max_grade=float(grade[pieces][steepest]),
+            ascent=float(np.maximum(rise, 0.0).sum()),
+            descent=float(np.maximum(-rise, 0.0).sum()),
+            mean_heading=mean_heading,
+            kind=grade_kind(mean_grade, climb_grade),
+            start_index=int(first),
+            end_index=int(last),
+        ))
+    return segments

@@ -254,12 +254,20 @@ def speed_for_power(
     rolling = np.broadcast_to(rolling_force(grade, rider), grade.shape)
     constant = rolling + gravity_force(grade, rider) + rider.bearing_force_constant
 
+    plain_area = rider.drag_area * (1.0 - rider.drafting_reduction) + rider.wheel_drag_area
+    plain_k = 0.5 * rho * plain_area
+
     def g_and_slope(v: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
-        along, apparent, yaw = air_speed_components(v, head, cross)
-        area = rider.drag_area * yaw_multiplier(yaw, rider.yaw_drag_table) * (
-            1.0 - rider.drafting_reduction
-        ) + rider.wheel_drag_area
-        k = 0.5 * rho * area
+        along = v + head
+        apparent = np.hypot(along, cross)
+        if rider.yaw_drag_table is None:
+            k = plain_k  # no yaw table: skip the yaw angle (a third of the cost)
+        else:
+            yaw = np.degrees(np.arctan2(cross, along))
+            area = rider.drag_area * yaw_multiplier(yaw, rider.yaw_drag_table) * (
+                1.0 - rider.drafting_reduction
+            ) + rider.wheel_drag_area
+            k = 0.5 * rho * area
         value = k * apparent * along + constant + rider.bearing_force_per_speed * v - drive / v
         safe = np.where(apparent > 0, apparent, 1.0)
         slope = (
@@ -286,7 +294,9 @@ def speed_for_power(
         low = np.where(value < 0, speed, low)
         high = np.where(value > 0, speed, high)
         newton = speed - value / slope
-        inside = (newton > low) & (newton < high)
+        # Non-strict bounds: once converged, a Newton step smaller than one ulp lands exactly on
+        # the bracket end it came from and must not be mistaken for a step outside the bracket.
+        inside = (newton >= low) & (newton <= high)
         new_speed = np.where(inside, newton, 0.5 * (low + high))
         converged = np.abs(new_speed - speed) <= tolerance * new_speed
         speed = new_speed

@@ -1,0 +1,71 @@
+"""Benchmark: the fastest plan on a 40 km course (200 m segments) and a 180 km course (1 km
+segments), each including the verifying inertial simulation. Target: under 2 s each on the
+development machine. Prints times and iteration counts; never asserts.
+
+Run: .venv/bin/python bench/bench_strategy.py
+"""
+
+from __future__ import annotations
+
+import time
+
+import numpy as np
+
+from pacing.conditions import CourseAir
+from pacing.course import split_every, synthetic_course
+from pacing.cycling import Rider
+from pacing.simulate import SimulationOptions
+from pacing.strategy import PlanRequest, make_plan
+
+STEP = 10.0
+
+
+def rolling_course(length: float, seed: int):
+    """An invented rolling course with a steady wind from one side (10 m steps)."""
+    rng = np.random.default_rng(seed)
+    distance = np.arange(0.0, length + 0.5 * STEP, STEP)
+    elevation = np.zeros_like(distance)
+    for wavelength, height in ((9000.0, 60.0), (2300.0, 18.0), (700.0, 5.0)):
+        elevation += height * np.sin(2 * np.pi * distance / wavelength + rng.uniform(0, 6.3))
+    heading = (np.degrees(distance[:-1] / 6000.0) * 3.0) % 360.0
+    course = synthetic_course(distance, elevation, heading=heading)
+    wind_from = np.radians(240.0)
+    relative = np.radians(course.heading) - wind_from
+    pieces = distance.size - 1
+    air = CourseAir(np.full(pieces, 1.18), 4.0 * np.cos(relative), 4.0 * np.sin(relative))
+    return course, air
+
+
+def run(name: str, length: float, segment: float, request: PlanRequest) -> None:
+    course, air = rolling_course(length, seed=1)
+    bounds = split_every(course, segment)
+    rider = Rider(mass=78.0, drag_area=0.24)
+    options = SimulationOptions(start_speed=0.0)
+    started = time.perf_counter()
+    plan = make_plan(course, bounds, rider, air, request, options)
+    elapsed = time.perf_counter() - started
+    print(f"{name}: {bounds.size - 1} segments, {course.distance.size - 1} pieces, "
+          f"{elapsed:.2f} s (target < 2 s)")
+    print(f"  constant {plan.reference.finish_time:.1f} s at {plan.reference_power:.1f} W, "
+          f"fastest {plan.finish_time:.1f} s at {plan.mean_power:.2f} W mean, "
+          f"saved {plan.time_saved:.1f} s")
+    print(f"  solver {plan.solver.method}: {plan.solver.iterations} iterations, "
+          f"{plan.solver.evaluations} course evaluations, "
+          f"{plan.solver.correction_rounds} correction rounds; binding: "
+          f"{', '.join(plan.binding)}")
+
+
+def main() -> None:
+    run("40 km, 200 m segments", 40_000.0, 200.0,
+        PlanRequest(strategy="fastest", mean_power=300.0, critical_power=310.0,
+                    max_power_ratio=1.3, min_power_ratio=0.5))
+    run("180 km, 1 km segments", 180_000.0, 1000.0,
+        PlanRequest(strategy="fastest", mean_power=230.0, critical_power=290.0,
+                    max_power_ratio=1.2, min_power_ratio=0.4))
+    run("40 km, 200 m segments, W′ reserve", 40_000.0, 200.0,
+        PlanRequest(strategy="fastest", mean_power=300.0, critical_power=310.0,
+                    w_prime=20000.0, w_prime_reserve=3000.0, max_power_ratio=1.5))
+
+
+if __name__ == "__main__":
+    main()

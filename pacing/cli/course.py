@@ -1,0 +1,111 @@
+"""``pacing course ROUTE.gpx``: summary of a course (distance, ascent, high and low points,
+segments), as a readable table or as JSON (--json)."""
+
+from __future__ import annotations
+
+import argparse
+import json
+import sys
+import warnings
+
+import numpy as np
+
+from pacing.course import Course, describe_segments, split_by_grade, split_every
+
+
+def add_parser(subparsers: argparse._SubParsersAction) -> None:
+    parser = subparsers.add_parser(
+        "course",
+        help="summarise a GPX course: distance, ascent, high and low points, segments",
+        description="Summarise a GPX course: distance, ascent (cleaned and raw), descent, "
+                    "highest and lowest point, and its segments.",
+    )
+    parser.add_argument("route", help="GPX file of the course")
+    parser.add_argument("--step", type=float, default=None,
+                        help="resampling step of the course [m] (default 10)")
+    parser.add_argument("--segment-length", type=float, default=None,
+                        help="split into segments of this length [m] instead of by grade")
+    parser.add_argument("--flat", action="store_true",
+                        help="treat a course without elevation as flat (with a warning)")
+    parser.add_argument("--json", action="store_true", help="print JSON instead of a table")
+    parser.set_defaults(run=run)
+
+
+def course_summary(course: Course, bounds) -> dict:
+    """The course and its segments as plain numbers (SI units; keys name their unit)."""
+    smoothing = course.smoothing
+    return {
+        "name": course.name,
+        "distance_m": round(course.total_distance, 1),
+        "ascent_m": round(course.ascent, 1),
+        "raw_ascent_m": round(course.raw_ascent, 1),
+        "descent_m": round(course.descent, 1),
+        "highest_m": round(course.highest_elevation, 1),
+        "highest_at_m": round(float(course.distance[int(np.argmax(course.elevation))]), 1),
+        "lowest_m": round(course.lowest_elevation, 1),
+        "lowest_at_m": round(float(course.distance[int(np.argmin(course.elevation))]), 1),
+        "step_m": round(float(course.distance[1] - course.distance[0]), 3),
+        "points": int(course.distance.size),
+        "smoothing": None if smoothing is None else {
+            "method": smoothing.method, "window_m": smoothing.window,
+            "max_grade": smoothing.max_grade},
+        "segments": [
+            {"index": s.index, "start_m": round(s.start, 1), "end_m": round(s.end, 1),
+             "length_m": round(s.length, 1), "grade": round(s.mean_grade, 5),
+             "max_grade": round(s.max_grade, 5), "ascent_m": round(s.ascent, 1),
+             "descent_m": round(s.descent, 1), "heading_deg": round(s.mean_heading, 1),
+             "kind": s.kind}
+            for s in describe_segments(course, bounds)
+        ],
+    }
+
+
+def format_summary(summary: dict, by_grade: bool) -> str:
+    """A readable summary in km, m and % (one table of segments)."""
+    smoothing = summary["smoothing"]
+    lines = [
+        f"Course: {summary['name']}",
+        f"  distance        {summary['distance_m'] / 1000:8.2f} km",
+        f"  ascent          {summary['ascent_m']:8.0f} m   (raw track: "
+        f"{summary['raw_ascent_m']:.0f} m before cleaning)",
+        f"  descent         {summary['descent_m']:8.0f} m",
+        f"  highest point   {summary['highest_m']:8.0f} m   at km "
+        f"{summary['highest_at_m'] / 1000:.2f}",
+        f"  lowest point    {summary['lowest_m']:8.0f} m   at km "
+        f"{summary['lowest_at_m'] / 1000:.2f}",
+        f"  points          {summary['points']:8d}     every {summary['step_m']:g} m",
+    ]
+    if smoothing:
+        lines.append(f"  elevation       {smoothing['method']} smoothing over "
+                     f"{smoothing['window_m']:g} m, grade limit {smoothing['max_grade']:.0%}")
+    lines.append("")
+    lines.append(f"Segments ({'by grade' if by_grade else 'fixed length'}):")
+    lines.append("    #  from km    to km  length km  grade %  steepest %  ascent m  "
+                 "descent m  heading deg  kind")
+    for s in summary["segments"]:
+        lines.append(
+            f"  {s['index'] + 1:3d}  {s['start_m'] / 1000:7.2f}  {s['end_m'] / 1000:7.2f}  "
+            f"{s['length_m'] / 1000:9.2f}  {s['grade'] * 100:7.1f}  {s['max_grade'] * 100:10.1f}"
+            f"  {s['ascent_m']:8.0f}  {s['descent_m']:9.0f}  {s['heading_deg']:11.0f}  "
+            f"{s['kind']}")
+    return "\n".join(lines)
+
+
+def run(args: argparse.Namespace) -> int:
+    from pacing.io.gpx import load_course
+
+    with warnings.catch_warnings(record=True) as caught:
+        warnings.simplefilter("always")
+        course = load_course(args.route, step=args.step, allow_missing_elevation=args.flat)
+    for warning in caught:
+        print(f"pacing course: warning: {warning.message}", file=sys.stderr)
+    if args.segment_length is None:
+        bounds = split_by_grade(course)
+    else:
+        bounds = split_every(course, args.segment_length)
+    summary = course_summary(course, bounds)
+    if args.json:
+        print(json.dumps(summary, indent=2))
+    else:
+        print(format_summary(summary, by_grade=args.segment_length is None))
+    return 0

@@ -1,0 +1,178 @@
+"""``pacing fieldtest RIDE.csv --mass KG …``: CdA and Crr from test rides.
+
+    pacing fieldtest RIDE [RIDE ...] --mass KG [--position LABEL ...]
+        [--temperature C --humidity PCT --sea-level-pressure PA --wind-speed M/S --wind-from DEG]
+        [--method loop|profile|regression] [--crr FIXED] [--laps T0,T1,...] [--json]
+
+Several ride files are several riding positions (one CdA each, one shared Crr); the output
+then says whether each position differs from the first beyond the 95 % interval. Lap
+boundaries come from the positions in the file (passes near the start point) unless --laps
+gives them as times [s]. Units are SI except --humidity [%] and --temperature [°C].
+"""
+
+from __future__ import annotations
+
+import argparse
+import json
+import sys
+
+import numpy as np
+
+from pacing.cli.common import add_air_flags, require
+from pacing.errors import InputError
+
+
+def add_parser(subparsers: argparse._SubParsersAction) -> None:
+    parser = subparsers.add_parser(
+        "fieldtest",
+        help="measure CdA and Crr from test rides with a power meter",
+        description="Estimate drag area (CdA) and rolling resistance (Crr) from test rides "
+                    "(CSV or GPX with power and speed).",
+    )
+    parser.add_argument("rides", nargs="+", metavar="RIDE",
+                        help="test ride file(s), CSV or GPX; one per riding position")
+    parser.add_argument("--mass", type=float, required=True,
+                        help="rider + bike + kit [kg]")
+    parser.add_argument("--position", action="append", default=None, metavar="LABEL",
+                        help="label of each ride's position, in order (default: file names)")
+    parser.add_argument("--method", choices=("loop", "profile", "regression"), default="loop",
+                        help="loop: laps return to the same height (default); profile: fit "
+                             "the recorded elevation; regression: lap means (Lim et al. 2011)")
+    parser.add_argument("--crr", type=float, default=None,
+                        help="hold Crr at this value instead of fitting it")
+    parser.add_argument("--laps", action="append", default=None, metavar="T0,T1,...",
+                        help="lap boundaries as times [s] from the ride start, one flag per "
+                             "ride (default: detected from the positions)")
+    parser.add_argument("--lap-radius", type=float, default=20.0,
+                        help="a lap closes within this distance of the start [m] (default 20)")
+    parser.add_argument("--efficiency", type=float, default=0.976,
+                        help="drivetrain efficiency (default 0.976)")
+    parser.add_argument("--bootstrap", type=int, default=1000,
+                        help="bootstrap draws for the intervals (default 1000, 0 for none)")
+    parser.add_argument("--json", action="store_true", help="print JSON instead of a table")
+    add_air_flags(parser)
+    parser.set_defaults(run=run)
+
+
+def _pair(values) -> list[float] | None:
+    return None if values is None else [round(float(v), 6) for v in values]
+
+
+def run(args: argparse.Namespace) -> int:
+    from pacing.conditions import Conditions
+    from pacing.cycling import Rider
+    from pacing.fieldtest import (
+        PositionTest,
+        estimate_drag,
+        indices_at_times,
+        laps_from_bounds,
+        ride_air,
+    )
+    from pacing.io.rides import read_ride
+
+    require(np.isfinite(args.mass) and 20.0 <= args.mass <= 300.0,
+            f"--mass must be 20-300 kg (rider + bike), got {args.mass:g}")
+    require(0.5 <= args.efficiency <= 1.0, f"--efficiency must be 0.5-1, got {args.efficiency:g}")
+    require(0.0 <= args.humidity <= 100.0, f"--humidity must be 0-100 %, got {args.humidity:g}")
+    require(args.bootstrap >= 0, "--bootstrap must not be negative")
+    labels = args.position or []
+    require(len(labels) in (0, len(args.rides)),
+            f"give one --position per ride ({len(args.rides)}), or none")
+    laps_flags = args.laps or []
+    require(len(laps_flags) in (0, len(args.rides)),
+            f"give one --laps per ride ({len(args.rides)}), or none")
+    conditions = Conditions(
+        temperature=args.temperature, relative_humidity=args.humidity / 100.0,
+        sea_level_pressure=args.sea_level_pressure, wind_speed=args.wind_speed,
+        wind_from=args.wind_from, wind_height=args.wind_height,
+        roughness_length=args.roughness)
+    rider = Rider(mass=args.mass, drivetrain_efficiency=args.efficiency)
+
+    tests = []
+    notes = []
+    for index, path in enumerate(args.rides):
+        ride = read_ride(path)
+        label = labels[index] if labels else ride.name
+        if label in (t.label for t in tests):
+            label = f"{label} ({index + 1})"
+        laps = None
+        if laps_flags:
+            try:
+                times = [float(t) for t in laps_flags[index].split(",")]
+            except ValueError:
+                raise InputError(f"--laps must be times in seconds separated by commas, got "
+                                 f"{laps_flags[index]!r}") from None
+            laps = tuple(laps_from_bounds(indices_at_times(ride, times), ride.time.size))
+        density, headwind, crosswind = ride_air(ride, conditions)
+        tests.append(PositionTest(label, ride, density, laps, headwind, crosswind))
+        notes.extend(f"{label}: {note}" for note in ride.notes)
+
+    result = estimate_drag(tests, rider, method=args.method, rolling_coefficient=args.crr,
+                           lap_radius=args.lap_radius, bootstrap=args.bootstrap)
+    if args.json:
+        print(json.dumps(_as_json(result, tests, notes), indent=2))
+    else:
+        print(_as_text(result, tests, notes))
+    return 0
+
+
+def _as_json(result, tests, notes) -> dict:
+    return {
+        "method": result.method,
+        "cda_m2": round(result.drag_area, 5),
+        "crr": round(result.rolling_coefficient, 6),
+        "cda_ci95": _pair(result.drag_area_ci95),
+        "crr_ci95": _pair(result.rolling_coefficient_ci95),
+        "crr_fixed": result.rolling_fixed,
+        "laps": result.laps,
+        "estimate_correlation": round(result.estimate_correlation, 4),
+        "air_density_kg_m3": round(float(np.mean(tests[0].air_density)), 4),
+        "positions": [
+            {"label": p.label, "cda_m2": round(p.drag_area, 5),
+             "cda_ci95": _pair(p.drag_area_ci95), "laps": p.laps,
+             "lap_cda_m2": [round(float(v), 5) for v in p.lap_drag_area]}
+            for p in result.positions
+        ],
+        "differences": [
+            {"position": d.label, "baseline": d.baseline, "cda_difference_m2":
+             round(d.difference, 5), "ci95": _pair(d.ci95), "significant": d.significant}
+            for d in result.differences
+        ],
+        "warnings": list(result.warnings),
+        "notes": notes,
+    }
+
+
+def _laps(count: int) -> str:
+    return f"{count} lap" if count == 1 else f"{count} laps"
+
+
+def _interval(values, digits: int) -> str:
+    if values is None:
+        return "(no interval)"
+    return f"(95 % interval {values[0]:.{digits}f}-{values[1]:.{digits}f})"
+
+
+def _as_text(result, tests, notes) -> str:
+    lines = [f"method: {result.method}, {_laps(result.laps)}, air density "
+             f"{float(np.mean(tests[0].air_density)):.3f} kg/m³"]
+    for p in result.positions:
+        lines.append(f"{p.label}: CdA {p.drag_area:.4f} m² {_interval(p.drag_area_ci95, 4)}, "
+                     f"{_laps(p.laps)}")
+    crr = f"Crr {result.rolling_coefficient:.5f} "
+    crr += "(held fixed)" if result.rolling_fixed else _interval(
+        result.rolling_coefficient_ci95, 5)
+    lines.append(crr)
+    for d in result.differences:
+        verdict = "significant" if d.significant else "not significant"
+        lines.append(f"{d.label} - {d.baseline}: {d.difference:+.4f} m² "
+                     f"{_interval(d.ci95, 4)}, {verdict}")
+    lines.extend(f"warning: {w}" for w in result.warnings)
+    lines.extend(f"note: {n}" for n in notes)
+    return "\n".join(lines)
+
+
+if __name__ == "__main__":  # pragma: no cover
+    from pacing.cli import main
+
+    sys.exit(main(["fieldtest", *sys.argv[1:]]))

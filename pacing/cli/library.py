@@ -1,0 +1,249 @@
+"""``pacing library …``: look into the coach's library, back it up, move it between machines.
+
+    pacing library [--database URL_OR_PATH] list
+    pacing library [--database URL_OR_PATH] show athlete|setup|course|plan ID [--gpx FILE]
+    pacing library [--database URL_OR_PATH] export [--athlete ID] [-o FILE]
+    pacing library [--database URL_OR_PATH] import FILE
+
+The library is the SQLite file in the user's data directory unless --database or the
+environment variable PACING_DATABASE_URL names another (a file path or an SQLAlchemy URL).
+Values are shown in SI units, times as H:MM:SS.
+"""
+
+from __future__ import annotations
+
+import argparse
+import json
+import sys
+from pathlib import Path
+from typing import Any
+
+from pacing.errors import ConflictError, InputError
+
+KINDS = ("athlete", "setup", "course", "plan")
+
+
+def add_parser(subparsers: argparse._SubParsersAction) -> None:
+    parser = subparsers.add_parser(
+        "library",
+        help="list, show, export or import the stored athletes, setups, courses and plans",
+        description="The coach's library of athletes, setups, courses and saved plans.",
+    )
+    parser.add_argument("--database", metavar="URL_OR_PATH", default=None,
+                        help="SQLite file or SQLAlchemy URL of the library (default: "
+                             "$PACING_DATABASE_URL, else library.sqlite3 in the user's data "
+                             "folder)")
+    actions = parser.add_subparsers(dest="action", required=True, metavar="ACTION")
+    actions.add_parser("list", help="list athletes, setups, courses and saved plans")
+    show = actions.add_parser("show", help="show one entry")
+    show.add_argument("kind", choices=KINDS)
+    show.add_argument("id", type=int)
+    show.add_argument("--gpx", metavar="FILE", default=None,
+                      help="course: also write its original GPX file here")
+    export = actions.add_parser("export", help="write the library (or one athlete) as JSON")
+    export.add_argument("--athlete", type=int, default=None, metavar="ID",
+                        help="only this athlete with their setups, plans and the plans' courses")
+    export.add_argument("-o", "--output", default=None, metavar="FILE",
+                        help="write to FILE instead of standard output")
+    import_ = actions.add_parser("import", help="add the entries of a library file")
+    import_.add_argument("file", help="library file (JSON); '-' reads standard input")
+    parser.set_defaults(run=run)
+
+
+def run(args: argparse.Namespace) -> int:
+    from pacing.store import open_library
+
+    try:
+        with open_library(args.database) as library:
+            return ACTIONS[args.action](library, args)
+    except ConflictError as error:
+        raise InputError(str(error)) from None
+
+
+# ---------------------------------------------------------------------------------------------
+
+def clock(seconds: float | None) -> str:
+    """Seconds as H:MM:SS ("-" for None); negative values keep their sign."""
+    if seconds is None:
+        return "-"
+    sign = "-" if seconds < 0 else ""
+    total = round(abs(seconds))
+    return f"{sign}{total // 3600}:{total % 3600 // 60:02d}:{total % 60:02d}"
+
+
+def number(value: float | None, digits: int = 1) -> str:
+    return "-" if value is None else f"{value:.{digits}f}"
+
+
+def table(headers: list[str], rows: list[list[str]]) -> str:
+    """Plain text columns, left-aligned, two spaces apart."""
+    cells = [headers] + rows
+    widths = [max(len(row[i]) for row in cells) for i in range(len(headers))]
+    lines = ["  ".join(cell.ljust(width) for cell, width in zip(row, widths, strict=True))
+                       .rstrip()
+             for row in cells]
+    return "\n".join(lines)
+
+
+def _list(library, _args) -> int:
+    athletes = library.athletes()
+    names = {record.id: record.athlete.name for record in athletes}
+    courses = library.courses()
+    course_names = {course.id: course.name for course in courses}
+    print(f"library: {library.location}")
+    print(f"\nathletes ({len(athletes)})")
+    if athletes:
+        print(table(["id", "name", "body mass [kg]", "critical power [W]", "W' [J]"],
+                    [[str(r.id), r.athlete.name, number(r.athlete.body_mass),
+                      number(r.athlete.critical_power, 0), number(r.athlete.w_prime, 0)]
+                     for r in athletes]))
+    setups = library.setups()
+    print(f"\nsetups ({len(setups)})")
+    if setups:
+        print(table(["id", "athlete", "name", "bike mass [kg]", "CdA [m²]", "Crr"],
+                    [[str(r.id), names.get(r.athlete_id, str(r.athlete_id)), r.setup.name,
+                      number(r.setup.bike_mass), number(r.setup.drag_area, 3),
+                      number(r.setup.rolling_coefficient, 4)] for r in setups]))
+    print(f"\ncourses ({len(courses)})")
+    if courses:
+        print(table(["id", "name", "distance [m]", "ascent [m]", "GPX [bytes]"],
+                    [[str(c.id), c.name, number(c.distance_m, 0), number(c.ascent_m, 0),
+                      str(c.gpx_size)] for c in courses]))
+    plans = library.plans()
+    print(f"\nsaved plans ({len(plans)})")
+    if plans:
+        print(table(["id", "name", "athlete", "course", "finish", "saved [s]", "updated (UTC)"],
+                    [[str(p.id), p.name, names.get(p.athlete_id, "-"),
+                      course_names.get(p.course_id, "-"), clock(p.finish_time),
+                      number(p.time_saved), p.updated_at.strftime("%Y-%m-%d %H:%M")]
+                     for p in plans]))
+    return 0
+
+
+def _fields(pairs: list[tuple[str, Any]]) -> str:
+    width = max(len(label) for label, _ in pairs)
+    return "\n".join(f"{label.ljust(width)}  {value}" for label, value in pairs)
+
+
+def _stamps(record) -> list[tuple[str, Any]]:
+    return [("revision", record.revision),
+            ("created (UTC)", record.created_at.strftime("%Y-%m-%d %H:%M:%S")),
+            ("updated (UTC)", record.updated_at.strftime("%Y-%m-%d %H:%M:%S"))]
+
+
+def _show(library, args) -> int:
+    if args.gpx is not None and args.kind != "course":
+        raise InputError("--gpx only goes with 'show course'")
+    if args.kind == "athlete":
+        record = library.athlete(args.id)
+        athlete = record.athlete
+        print(_fields([
+            ("athlete", f"{record.id}  {athlete.name}"),
+            ("body mass [kg]", number(athlete.body_mass)),
+            ("critical power [W]", number(athlete.critical_power, 0)),
+            ("W' [J]", number(athlete.w_prime, 0)),
+            ("height [m]", number(athlete.height, 2)),
+            ("flat pace [s/km]", number(athlete.flat_pace)),
+            ("critical speed [m/s]", number(athlete.critical_speed, 2)),
+            ("D' [m]", number(athlete.d_prime, 0)),
+            *_stamps(record),
+            ("setups", ", ".join(f"{s.id} {s.setup.name}" for s in library.setups(record.id))
+             or "-"),
+            ("saved plans", ", ".join(f"{p.id} {p.name}" for p in
+                                      library.plans(athlete_id=record.id)) or "-"),
+        ]))
+    elif args.kind == "setup":
+        record = library.setup(args.id)
+        setup = record.setup
+        print(_fields([
+            ("setup", f"{record.id}  {setup.name}"),
+            ("athlete", f"{record.athlete_id}  {library.athlete(record.athlete_id).athlete.name}"),
+            ("bike mass [kg]", number(setup.bike_mass, 2)),
+            ("CdA [m²]", number(setup.drag_area, 4)),
+            ("power share", number(setup.power_share, 3)),
+            ("Crr", number(setup.rolling_coefficient, 5)),
+            ("drivetrain efficiency", number(setup.drivetrain_efficiency, 3)),
+            ("yaw drag table [deg, x]", setup.yaw_drag_table or "-"),
+            *_stamps(record),
+        ]))
+    elif args.kind == "course":
+        record = library.course(args.id)
+        summary = record.summary
+        print(_fields([
+            ("course", f"{record.id}  {record.name}"),
+            ("distance [m]", number(summary.distance_m, 1)),
+            ("ascent [m]", number(summary.ascent_m, 1)),
+            ("GPX [bytes]", summary.gpx_size),
+            ("GPX SHA-256", summary.gpx_sha256),
+            *_stamps(summary),
+        ]))
+        if args.gpx is not None:
+            Path(args.gpx).write_bytes(record.gpx)
+            print(f"wrote the original GPX file to {args.gpx}")
+    else:
+        _show_plan(library.plan(args.id))
+    return 0
+
+
+def _show_plan(plan) -> None:
+    summary = plan.summary
+    print(_fields([
+        ("saved plan", f"{plan.id}  {plan.name}"),
+        ("athlete id", summary.athlete_id if summary.athlete_id is not None else "-"),
+        ("setup id", summary.setup_id if summary.setup_id is not None else "-"),
+        ("course id", summary.course_id if summary.course_id is not None else "-"),
+        ("finish time", clock(summary.finish_time)),
+        ("time saved [s]", number(summary.time_saved)),
+        ("made by pacing", summary.library_version),
+        ("notes", summary.notes or "-"),
+        *_stamps(summary),
+    ]))
+    print("\ninputs\n" + json.dumps(plan.inputs, indent=2, ensure_ascii=False))
+    print("\nstrategy\n" + json.dumps(plan.strategy, indent=2, ensure_ascii=False))
+    print("\nweather\n" + json.dumps(plan.weather, indent=2, ensure_ascii=False))
+    print(f"\ntargets ({len(plan.targets)} segments)")
+    if plan.targets:
+        headers: list[str] = []
+        for record in plan.targets:
+            headers += [key for key in record if key not in headers]
+        print(table(headers, [[_cell(record.get(key)) for key in headers]
+                              for record in plan.targets]))
+
+
+def _cell(value: Any) -> str:
+    if value is None:
+        return "-"
+    if isinstance(value, float):
+        return f"{value:.6g}"
+    if isinstance(value, (dict, list)):
+        return json.dumps(value, ensure_ascii=False)
+    return str(value)
+
+
+def _export(library, args) -> int:
+    from pacing.store import dump_library_file
+
+    text = dump_library_file(library, args.athlete)
+    if args.output is None or args.output == "-":
+        sys.stdout.write(text)
+    else:
+        Path(args.output).write_text(text, encoding="utf-8")
+        print(f"wrote {args.output}")
+    return 0
+
+
+def _import(library, args) -> int:
+    from pacing.store import import_library
+
+    if args.file == "-":
+        data = sys.stdin.buffer.read()
+    else:
+        path = Path(args.file)
+        if not path.is_file():
+            raise InputError(f"no such file: {args.file}")
+        data = path.read_bytes()
+    print(import_library(library, data).message())
+    return 0
+
+
+ACTIONS = {"list": _list, "show": _show, "export": _export, "import": _import}

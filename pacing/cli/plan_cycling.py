@@ -1,0 +1,204 @@
+"""``pacing plan ROUTE.gpx --power W …``: predict a cycling race on a GPX course.
+
+Steps (each one function, so a strategy can replace the power step):
+validate the flags → load the course and its segments → rider and air → per-piece power
+(`_plan_powers`) → inertial simulation (pacing.simulate) → segment summaries → table or JSON.
+
+Units on the command line are SI except --humidity [%] and --drafting [%]; the table shows km,
+km/h, % and H:MM:SS, the JSON SI numbers with the unit in each key.
+"""
+
+from __future__ import annotations
+
+import argparse
+import json
+import math
+import sys
+
+import numpy as np
+
+from pacing import units
+from pacing.cycling import Rider
+from pacing.errors import InputError
+from pacing.simulate import Prediction, SegmentResult, SimulationOptions, segment_results
+
+MASS_RANGE = (20.0, 300.0)
+"""Accepted rider + bike mass [kg]."""
+
+POWER_RANGE = (0.0, 3000.0)
+"""Accepted crank power [W]."""
+
+
+def _number(value: float | None, flag: str) -> float | None:
+    if value is None:
+        return None
+    if not math.isfinite(value):
+        raise InputError(f"{flag} must be a finite number, got {value!r}")
+    return float(value)
+
+
+def _check(condition: bool, message: str) -> None:
+    if not condition:
+        raise InputError(message)
+
+
+def validate_args(args: argparse.Namespace) -> None:
+    """One-line InputError for any flag out of range (before any file is read)."""
+    for flag in ("mass", "cda", "crr", "efficiency", "drafting", "power", "start_speed",
+                 "temperature", "humidity", "sea_level_pressure", "wind_speed", "wind_from",
+                 "wind_height", "roughness", "step", "segment_length"):
+        _number(getattr(args, flag, None), "--" + flag.replace("_", "-"))
+    low, high = MASS_RANGE
+    _check(low <= args.mass <= high,
+           f"--mass (rider + bike) must be {low:g}-{high:g} kg, got {args.mass:g}")
+    cda = 0.30 if args.cda is None else args.cda
+    _check(0.0 < cda <= 2.0, f"--cda must be above 0 and at most 2 m², got {cda:g}")
+    _check(0.0 <= args.crr <= 0.1, f"--crr must be 0-0.1, got {args.crr:g}")
+    _check(0.0 < args.efficiency <= 1.0,
+           f"--efficiency must be above 0 and at most 1, got {args.efficiency:g}")
+    _check(0.0 <= args.drafting < 100.0, f"--drafting must be 0-99 %, got {args.drafting:g}")
+    _check(0.0 <= args.humidity <= 100.0,
+           f"--humidity must be 0-100 %, got {args.humidity:g}")
+    _check(args.start_speed >= 0.0, f"--start-speed must be >= 0 m/s, got {args.start_speed:g}")
+    _check(args.wind_speed >= 0.0, f"--wind-speed must be >= 0 m/s, got {args.wind_speed:g}")
+    _check(args.wind_height > 0.0, f"--wind-height must be > 0 m, got {args.wind_height:g}")
+    _check(args.roughness > 0.0, f"--roughness must be > 0 m, got {args.roughness:g}")
+    if args.power is not None:
+        low, high = POWER_RANGE
+        _check(low <= args.power <= high, f"--power must be {low:g}-{high:g} W, "
+                                          f"got {args.power:g}")
+
+
+def rider_from_args(args: argparse.Namespace) -> Rider:
+    """The Rider of the flags (--mass is rider + bike; --drafting in percent)."""
+    return Rider(
+        mass=args.mass,
+        drag_area=0.30 if args.cda is None else args.cda,
+        rolling_coefficient=args.crr,
+        drivetrain_efficiency=args.efficiency,
+        drafting_reduction=args.drafting / 100.0,
+    )
+
+
+def conditions_from_args(args: argparse.Namespace):
+    """The race-day air of the air and wind flags (humidity given in percent)."""
+    from pacing.conditions import Conditions
+
+    return Conditions(
+        temperature=args.temperature,
+        relative_humidity=args.humidity / 100.0,
+        sea_level_pressure=args.sea_level_pressure,
+        wind_speed=args.wind_speed,
+        wind_from=args.wind_from,
+        wind_height=args.wind_height,
+        roughness_length=args.roughness,
+    )
+
+
+def load_course_and_bounds(args: argparse.Namespace):
+    """The course of the GPX file and its segment bounds (by grade, or every N metres)."""
+    from pacing.course import split_by_grade, split_every
+    from pacing.io.gpx import load_course
+
+    course = load_course(args.route, step=args.step, allow_missing_elevation=args.flat)
+    bounds = (split_every(course, args.segment_length) if args.segment_length is not None
+              else split_by_grade(course))
+    return course, bounds
+
+
+def _plan_powers(args: argparse.Namespace, course, bounds, rider: Rider, air) -> np.ndarray:
+    """Crank power per piece [W] for the plan the flags ask for (length N-1).
+
+    Only the constant plan is handled here; other strategies plug in at this one call.
+    """
+    strategy = args.strategy or "constant"
+    if strategy != "constant":
+        raise InputError(f"--strategy {strategy} is not available for cycling yet; "
+                         "use --strategy constant")
+    if args.power is None:
+        raise InputError("a constant plan needs --power W (crank power)")
+    return np.full(np.asarray(course.distance).size - 1, float(args.power))
+
+
+def predict(args: argparse.Namespace) -> tuple[Prediction, list[SegmentResult]]:
+    """Validate, load, plan and simulate: the prediction and its segment summaries."""
+    from pacing.conditions import air_along_course
+
+    validate_args(args)
+    if (args.strategy or "constant") == "constant" and args.power is None:
+        raise InputError("a constant plan needs --power W (crank power)")
+    rider = rider_from_args(args)
+    conditions = conditions_from_args(args)
+    course, bounds = load_course_and_bounds(args)
+    air = air_along_course(course, conditions)
+    powers = _plan_powers(args, course, bounds, rider, air)
+    prediction = _simulate(course, powers, rider, air, args)
+    return prediction, segment_results(course, prediction, bounds)
+
+
+def _simulate(course, powers, rider: Rider, air, args: argparse.Namespace) -> Prediction:
+    from pacing.simulate import simulate
+
+    return simulate(course, powers, rider, air, SimulationOptions(start_speed=args.start_speed))
+
+
+def prediction_as_dict(prediction: Prediction, segments: list[SegmentResult]) -> dict:
+    """JSON-ready numbers, SI units named in each key."""
+    return {
+        "finish_time_s": prediction.finish_time,
+        "distance_m": float(prediction.distance[-1] - prediction.distance[0]),
+        "average_speed_mps": prediction.average_speed,
+        "average_power_w": prediction.average_power,
+        "max_speed_mps": prediction.max_speed,
+        "work_kj": prediction.work / 1000.0,
+        "segments": [
+            {
+                "start_m": s.start,
+                "end_m": s.end,
+                "grade": s.grade,
+                "power_w": s.power,
+                "speed_mps": s.speed,
+                "time_s": s.time,
+                "max_speed_mps": s.max_speed,
+            }
+            for s in segments
+        ],
+    }
+
+
+def prediction_as_table(prediction: Prediction, segments: list[SegmentResult]) -> str:
+    """A readable table: km, %, W, km/h, H:MM:SS."""
+    kmh = 3.6
+    lines = [
+        f"{'#':>3} {'from km':>8} {'to km':>7} {'grade %':>8} {'power W':>8} "
+        f"{'speed km/h':>11} {'time':>9} {'elapsed':>9} {'max km/h':>9}",
+    ]
+    elapsed = 0.0
+    for s in segments:
+        elapsed += s.time
+        lines.append(
+            f"{s.index + 1:>3} {s.start / 1000:8.2f} {s.end / 1000:7.2f} {100 * s.grade:8.1f} "
+            f"{s.power:8.0f} {s.speed * kmh:11.1f} {units.format_duration(s.time):>9} "
+            f"{units.format_duration(elapsed):>9} {s.max_speed * kmh:9.1f}"
+        )
+    distance = float(prediction.distance[-1] - prediction.distance[0])
+    lines.append(
+        f"finish {units.format_duration(prediction.finish_time)} (H:MM:SS) over "
+        f"{distance / 1000:.2f} km; mean {prediction.average_speed * kmh:.1f} km/h, "
+        f"mean power {prediction.average_power:.0f} W, max {prediction.max_speed * kmh:.1f} km/h, "
+        f"work {prediction.work / 1000:.0f} kJ"
+    )
+    if np.any(prediction.walking):
+        lines.append("note: the predicted speed drops below walking pace on part of the course")
+    return "\n".join(lines)
+
+
+def run(args: argparse.Namespace) -> int:
+    """Run ``pacing plan`` for cycling; returns the exit code."""
+    prediction, segments = predict(args)
+    if args.json:
+        json.dump(prediction_as_dict(prediction, segments), sys.stdout, indent=2)
+        sys.stdout.write("\n")
+    else:
+        print(prediction_as_table(prediction, segments))
+    return 0

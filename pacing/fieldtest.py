@@ -1,0 +1,1122 @@
+"""Drag area (CdA) and rolling resistance (Crr) measured on the road from test rides.
+
+Two published methods, both built on the power balance of pacing.cycling (Martin et al. 1998):
+
+*Virtual elevation* (Chung). Between two samples the energy the rider puts in, minus what air,
+tyres, bearings and the change of speed take, must have gone into height::
+
+    m·g·Δh = η·P̄·Δt − ½·(m + I/r²)·(v₁² − v₀²) − (a + b·v̄ + ½ρ·F_w·V·v_a)·Δs
+             − CdA·½ρ·k(β)·V·v_a·Δs − Crr·m·g·cos θ·Δs,         Δs = v̄·Δt
+
+Summed along the ride this gives a *virtual elevation* trace that is linear in CdA and Crr, so
+both follow from linear least squares, either against a known elevation profile (method
+"profile": each lap's trace, shifted by its own offset, should follow the profile) or from loop
+closure (method "loop": each lap ends where it started, so its trace must return to its
+starting height; no elevation data are needed, so altimeter or GNSS altitude noise cannot
+enter). cos θ is taken as 1: for grades under 6 % this changes Crr by less than 0.2 %.
+
+*Regression* (Lim et al. 2011). On steady runs (laps or marked stretches) the mean driving
+force balances the resistance: η·P̄/v̄ = Crr·m·g + CdA·½ρ·V̄·v̄_a + (bearing, wheel, slope and
+speed-change terms), with P̄ and v̄ the run's mean power and speed; a straight line through
+the runs gives CdA (slope) and Crr (intercept / m·g). Runs whose speed varies much bias it
+(the mean of v² is not v̄²): the fit warns then.
+
+CdA and Crr can only be told apart when the laps are ridden at clearly different speeds; the
+fit reports the correlation between the two estimates and warns when it is too high. A steady
+wind that is not given shows up mostly in Crr on a loop (it adds a nearly constant drag);
+changing wind, braking or a changing position make the per-lap CdA scatter, which is
+reported. Uncertainty comes from a bootstrap over laps (Efron & Tibshirani 1993).
+
+Conventions: point arrays (one value per sample) have length N, piece arrays (between samples
+i and i+1) length N-1. Laps are (start, end) pairs of sample indices.
+
+References
+----------
+Chung, R. Estimating CdA with a power meter (self-published notes presenting the virtual
+elevation method; no journal version).
+Lim, A.C., Homestead, E.P., Edwards, A.G., Carver, T.C., Kram, R. & Byrnes, W.C. (2011).
+Measuring changes in aerodynamic/rolling resistances by cycle-mounted power meters. Med Sci
+Sports Exerc 43(5):853-860.
+Martin, J.C. et al. (1998). J Appl Biomech 14(3):276-291.
+Efron, B. & Tibshirani, R.J. (1993). An Introduction to the Bootstrap. Chapman & Hall.
+"""
+
+from __future__ import annotations
+
+import dataclasses
+from collections.abc import Sequence
+from dataclasses import dataclass
+
+import numpy as np
+
+from pacing.air import AIR_DENSITY_MODELS, standard_pressure, temperature_at_elevation
+from pacing.athlete import Setup
+from pacing.conditions import Conditions
+from pacing.constants import STANDARD_GRAVITY
+from pacing.cycling import Rider, aerodynamic_force, bearing_force, rolling_force
+from pacing.errors import InputError
+from pacing.wind import wind_components
+
+METHODS = {
+    "loop": "virtual elevation, every lap returns to the same height (no elevation data needed)",
+    "profile": "virtual elevation fitted to a known elevation profile",
+    "regression": "mean force against mean air speed over laps (Lim et al. 2011)",
+}
+"""The estimation methods, by name, with a one-line description."""
+
+STOP_SPEED = 1.0
+"""Samples slower than this are a stop and are dropped [m/s]."""
+
+MAX_GAP = 5.0
+"""Largest time step accepted while moving [s]."""
+
+MAX_POWER_FILL = 3.0
+"""Missing power readings up to this long are filled by interpolation [s]."""
+
+ZERO_POWER_DROPOUT = 10.0
+"""Shortest stretch of 0 W with the speed holding that is noted as a possible dropout [s]."""
+
+LAP_RADIUS = 20.0
+"""A lap ends when the rider passes within this distance of the start point [m]."""
+
+SEPARATION_LIMIT = 0.99
+"""|correlation| of the CdA and Crr estimates above which they are reported as inseparable."""
+
+LAP_SPREAD_LIMIT = 0.05
+"""Coefficient of variation of per-lap CdA above which the laps are reported as inconsistent."""
+
+CALM_WIND = 1.0
+"""Wind at rider height above which a warning says the test was not in calm air [m/s]
+(Lim et al. 2011 tested in wind under 1.0 m/s)."""
+
+STEADY_SPEED_LIMIT = 0.10
+"""Median coefficient of variation of speed within laps above which the regression method
+warns that the runs are not steady [-]."""
+
+BRAKING_DECELERATION = 1.0
+"""Deceleration while hardly pedalling that marks a sample as braking [m/s²] (common practice:
+coasting on a road rarely slows a rider by more than ~0.5 m/s²)."""
+
+GRID_POINTS = 200
+"""Points per lap on the common grid of lap-distance fraction."""
+
+EARTH_RADIUS = 6371008.8
+"""Mean Earth radius (IUGG) for local positions [m]."""
+
+
+@dataclass(frozen=True, eq=False)
+class Ride:
+    """A test ride as arrays, cleaned (see `make_ride`).
+
+    Attributes
+    ----------
+    time : time of each sample from the start [s], strictly increasing, length N.
+    speed : ground speed [m/s], length N.
+    power : crank power [W], length N.
+    distance : distance ridden [m], length N.
+    elevation : measured elevation [m] or None.
+    latitude, longitude : position [deg] or None.
+    heading : direction of travel [deg clockwise from north] or None, length N.
+    pause : True for a piece that bridges a dropped stop, length N-1.
+    notes : what cleaning did (one line each).
+    name : label.
+    """
+
+    time: np.ndarray
+    speed: np.ndarray
+    power: np.ndarray
+    distance: np.ndarray
+    elevation: np.ndarray | None = None
+    latitude: np.ndarray | None = None
+    longitude: np.ndarray | None = None
+    heading: np.ndarray | None = None
+    pause: np.ndarray | None = None
+    notes: tuple[str, ...] = ()
+    name: str = "ride"
+
+    @property
+    def has_position(self) -> bool:
+        return self.latitude is not None and self.longitude is not None
+
+
+def _array(values, name: str, length: int | None = None) -> np.ndarray:
+    try:
+        array = np.asarray(values, dtype=float)
+    except (TypeError, ValueError):
+        raise InputError(f"{name} must be numbers") from None
+    if array.ndim != 1:
+        raise InputError(f"{name} must be a 1-D series of numbers")
+    if length is not None and array.size != length:
+        raise InputError(f"{name} has {array.size} values, time has {length}")
+    return array
+
+
+def _fill_short(values: np.ndarray, time: np.ndarray, longest: float) -> tuple[np.ndarray, float]:
+    """Interpolate missing (NaN) runs no longer than `longest` seconds; return the filled array
+    and the duration of the longest missing run [s] (inf if a run is longer than `longest`)."""
+    missing = np.isnan(values)
+    if not missing.any():
+        return values, 0.0
+    if missing.all():
+        return values, np.inf
+    worst = 0.0
+    edges = np.flatnonzero(np.diff(np.concatenate(([0], missing.astype(int), [0]))))
+    for start, stop in zip(edges[::2], edges[1::2], strict=True):
+        before = time[start - 1] if start > 0 else time[start]
+        after = time[stop] if stop < time.size else time[stop - 1]
+        worst = max(worst, after - before)
+    if worst > longest:
+        return values, worst
+    good = ~missing
+    return np.interp(time, time[good], values[good]), worst
+
+
+def _first_missing_run(values: np.ndarray, time: np.ndarray) -> tuple[float, float]:
+    missing = np.isnan(values)
+    start = int(np.argmax(missing))
+    stop = start
+    while stop < values.size and missing[stop]:
+        stop += 1
+    return float(time[start]), float(time[min(stop, time.size - 1)] - time[start])
+
+
+def _zero_power_holding_speed(time: np.ndarray, speed: np.ndarray, power: np.ndarray,
+                              shortest: float = ZERO_POWER_DROPOUT) -> tuple[float, float] | None:
+    """(start [s], duration [s]) of the first stretch of exactly 0 W lasting at least
+    `shortest` seconds over which the speed does not fall, else None. Coasting slows a rider
+    on level road; holding speed at 0 W for that long suggests a lost power signal (or a
+    descent)."""
+    zero = (power == 0).astype(int)
+    edges = np.flatnonzero(np.diff(np.concatenate(([0], zero, [0]))))
+    for start, stop in zip(edges[::2], edges[1::2], strict=True):
+        last = stop - 1
+        if time[last] - time[start] >= shortest and speed[last] >= speed[start] > 0:
+            return float(time[start]), float(time[last] - time[start])
+    return None
+
+
+def make_ride(
+    time,
+    speed,
+    power,
+    elevation=None,
+    latitude=None,
+    longitude=None,
+    heading=None,
+    distance=None,
+    name: str = "ride",
+    notes: Sequence[str] = (),
+    stop_speed: float = STOP_SPEED,
+    max_gap: float = MAX_GAP,
+    max_power_fill: float = MAX_POWER_FILL,
+) -> Ride:
+    """Check and clean the arrays of a test ride.
+
+    Missing power readings (NaN) up to `max_power_fill` seconds are interpolated; longer ones
+    are a power-meter dropout and an error. Samples slower than `stop_speed` are dropped with a
+    note (the pieces that bridge them become pauses). A time step longer than `max_gap` while
+    moving is an error (a recording gap breaks the energy balance).
+
+    Parameters
+    ----------
+    time [s], speed [m/s], power [W] : length N; elevation [m], latitude, longitude [deg],
+        heading [deg], distance [m] : optional, length N.
+
+    Raises
+    ------
+    InputError : with a one-line message naming the problem and where it is.
+    """
+    time = _array(time, "time")
+    n = time.size
+    if n < 10:
+        raise InputError(f"a test ride needs at least 10 samples, got {n}")
+    if not np.all(np.isfinite(time)):
+        raise InputError("time has missing or non-numeric values")
+    steps = np.diff(time)
+    if np.any(steps <= 0):
+        i = int(np.argmax(steps <= 0)) + 1
+        raise InputError(
+            f"time does not increase at sample {i + 1} (t = {time[i]:g} s): sort the file or "
+            "remove repeated rows"
+        )
+    speed = _array(speed, "speed", n)
+    power = _array(power, "power", n)
+    notes = list(notes)
+    if np.isnan(speed).any():
+        speed, worst = _fill_short(speed, time, max_power_fill)
+        if np.isnan(speed).any():
+            at, _ = _first_missing_run(speed, time)
+            raise InputError(f"speed is missing for {worst:g} s from t = {at:g} s")
+        notes.append("filled short gaps in speed by interpolation")
+    if np.any(speed < 0) or not np.all(np.isfinite(speed)):
+        raise InputError("speed must be finite and not negative")
+    if np.isnan(power).any():
+        filled, worst = _fill_short(power, time, max_power_fill)
+        if np.isnan(filled).any():
+            at, _ = _first_missing_run(power, time)
+            raise InputError(
+                f"power is missing for {worst:g} s from t = {at:g} s (power-meter dropout): "
+                "cut that part out or mark laps around it"
+            )
+        notes.append(f"filled power dropouts up to {worst:g} s by interpolation")
+        power = filled
+    if not np.all(np.isfinite(power)) or np.any(power < 0):
+        raise InputError("power must be finite and not negative")
+    suspect = _zero_power_holding_speed(time, speed, power)
+    if suspect is not None:
+        notes.append(
+            f"power reads 0 W for {suspect[1]:g} s from t = {suspect[0]:g} s while the speed "
+            "holds: a power-meter dropout? Leave that stretch out of the laps"
+        )
+    optional = {}
+    for label, values in (("elevation", elevation), ("latitude", latitude),
+                          ("longitude", longitude), ("heading", heading),
+                          ("distance", distance)):
+        if values is None:
+            optional[label] = None
+            continue
+        array = _array(values, label, n)
+        if np.isnan(array).all():
+            optional[label] = None
+            notes.append(f"{label} column is empty: ignored")
+            continue
+        if np.isnan(array).any():
+            good = ~np.isnan(array)
+            array = np.interp(time, time[good], array[good])
+            notes.append(f"filled {int((~good).sum())} missing {label} values by interpolation")
+        optional[label] = array
+    if (optional["latitude"] is None) != (optional["longitude"] is None):
+        raise InputError("give both latitude and longitude, or neither")
+    if optional["latitude"] is not None and (
+        np.any(np.abs(optional["latitude"]) > 90) or np.any(np.abs(optional["longitude"]) > 180)
+    ):
+        raise InputError("latitude must be within ±90° and longitude within ±180°")
+
+    moving = speed >= stop_speed
+    if moving.sum() < 10:
+        raise InputError(f"fewer than 10 samples faster than {stop_speed:g} m/s: nothing to fit")
+    if not moving.all():
+        dropped = int((~moving).sum())
+        notes.append(
+            f"dropped {dropped} samples slower than {stop_speed:g} m/s (stops); the energy "
+            "balance restarts after each"
+        )
+    index = np.flatnonzero(moving)
+    pause = np.diff(index) > 1
+    kept_steps = np.diff(time[index])
+    gap = (kept_steps > max_gap) & ~pause
+    if gap.any():
+        i = int(np.argmax(gap))
+        raise InputError(
+            f"recording gap of {kept_steps[i]:g} s at t = {time[index[i]]:g} s while moving: "
+            "split the file there or mark laps around it"
+        )
+    time, speed, power = time[index], speed[index], power[index]
+    for label in optional:
+        if optional[label] is not None:
+            optional[label] = optional[label][index]
+    if optional["distance"] is None:
+        step = 0.5 * (speed[1:] + speed[:-1]) * np.diff(time)
+        optional["distance"] = np.concatenate(([0.0], np.cumsum(np.where(pause, 0.0, step))))
+    return Ride(time=time, speed=speed, power=power, pause=pause, notes=tuple(notes), name=name,
+                **optional)
+
+
+# ---------------------------------------------------------------------------------------------
+# Geometry: headings, laps
+# ---------------------------------------------------------------------------------------------
+
+
+def _local_position(latitude: np.ndarray, longitude: np.ndarray, origin: tuple[float, float]):
+    """East and north offsets from an origin on a local flat map [m] (equirectangular)."""
+    lat0 = np.radians(origin[0])
+    east = EARTH_RADIUS * np.cos(lat0) * np.radians(
+        (np.asarray(longitude) - origin[1] + 180.0) % 360.0 - 180.0
+    )
+    north = EARTH_RADIUS * np.radians(np.asarray(latitude) - origin[0])
+    return east, north
+
+
+def piece_heading(ride: Ride) -> np.ndarray:
+    """Direction of travel of each piece [deg clockwise from north], length N-1.
+
+    From the heading column when present (circular mean of the two ends), else from the
+    positions (local flat map; the heading of a piece without movement repeats the previous).
+    """
+    if ride.heading is not None:
+        radians = np.radians(ride.heading)
+        east = np.sin(radians[1:]) + np.sin(radians[:-1])
+        north = np.cos(radians[1:]) + np.cos(radians[:-1])
+        return np.degrees(np.arctan2(east, north)) % 360.0
+    if not ride.has_position:
+        raise InputError("wind needs the direction of travel: the ride has no heading or "
+                         "latitude/longitude columns")
+    east, north = _local_position(ride.latitude, ride.longitude,
+                                  (float(ride.latitude[0]), float(ride.longitude[0])))
+    de, dn = np.diff(east), np.diff(north)
+    heading = np.degrees(np.arctan2(de, dn)) % 360.0
+    still = np.hypot(de, dn) < 1e-6
+    if still.all():
+        raise InputError("the positions never change: cannot tell the direction of travel")
+    index = np.where(still, 0, np.arange(heading.size))
+    np.maximum.accumulate(index, out=index)
+    first = int(np.argmax(~still))
+    heading = heading[index]
+    heading[:first] = heading[first]
+    return heading
+
+
+def ride_wind(ride: Ride, wind_speed: float, wind_from: float) -> tuple[np.ndarray, np.ndarray]:
+    """Headwind and crosswind on each piece of a ride for a steady wind [m/s], length N-1.
+
+    Parameters
+    ----------
+    wind_speed : wind at rider height [m/s] (reduce a 10 m report with pacing.wind).
+    wind_from : direction the wind blows from [deg clockwise from north].
+    """
+    if wind_speed == 0:
+        zeros = np.zeros(ride.time.size - 1)
+        return zeros, zeros.copy()
+    return wind_components(piece_heading(ride), wind_from, wind_speed)
+
+
+def ride_air(ride: Ride, conditions: Conditions,
+             density_model: str = "cipm_2007") -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+    """Air density, headwind and crosswind on each piece of a ride, length N-1.
+
+    Pressure from the sea-level pressure and the ride's elevation (ICAO standard atmosphere;
+    sea level when the ride has no elevation), temperature given at the start elevation with
+    the standard lapse rate, humid-air density by CIPM-2007 (pacing.air); wind reduced to
+    rider height by the log profile and split by the direction of travel (pacing.wind).
+
+    Returns
+    -------
+    (density [kg/m³], headwind [m/s], crosswind [m/s])
+    """
+    if density_model not in AIR_DENSITY_MODELS:
+        raise InputError(f"unknown air density model {density_model!r}")
+    if ride.elevation is None:
+        elevation = np.zeros(ride.time.size - 1)
+    else:
+        elevation = 0.5 * (ride.elevation[1:] + ride.elevation[:-1])
+    pressure = standard_pressure(elevation, conditions.sea_level_pressure)
+    temperature = temperature_at_elevation(elevation, conditions.temperature,
+                                           float(elevation[0]))
+    density = np.asarray(AIR_DENSITY_MODELS[density_model](
+        temperature, pressure, conditions.relative_humidity), dtype=float)
+    headwind, crosswind = ride_wind(ride, conditions.wind_at_rider, conditions.wind_from)
+    return density, np.asarray(headwind, dtype=float), np.asarray(crosswind, dtype=float)
+
+
+def detect_laps(
+    latitude,
+    longitude,
+    radius: float = LAP_RADIUS,
+    start: tuple[float, float] | None = None,
+) -> list[tuple[int, int]]:
+    """Laps of a ride from its positions: each pass near the start point closes a lap.
+
+    A pass is a stretch closer than `radius` to the start point, entered after the rider has
+    been farther than 2·radius; its sample nearest the start marks the lap boundary. The part
+    before the first and after the last boundary is left out.
+
+    Parameters
+    ----------
+    latitude, longitude : positions [deg], length N.
+    radius : capture radius around the start point [m] (common practice: larger than the
+        GNSS horizontal error, ~5 m for a watch, Gløersen et al. 2018).
+    start : (latitude, longitude) of the start/finish point [deg]; default the first sample.
+
+    Returns
+    -------
+    list of (start, end) sample indices, one pair per lap.
+    """
+    latitude = np.asarray(latitude, dtype=float)
+    longitude = np.asarray(longitude, dtype=float)
+    if radius <= 0:
+        raise InputError(f"lap radius must be positive, got {radius}")
+    origin = start if start is not None else (float(latitude[0]), float(longitude[0]))
+    east, north = _local_position(latitude, longitude, origin)
+    gap = np.hypot(east, north)
+    near = gap < radius
+    far = gap > 2.0 * radius
+    boundaries = []
+    armed = True
+    i, n = 0, gap.size
+    while i < n:
+        if near[i] and armed:
+            j = i
+            while j < n and not far[j]:
+                j += 1
+            boundaries.append(i + int(np.argmin(np.where(near[i:j], gap[i:j], np.inf))))
+            armed = False
+            i = j
+            continue
+        if far[i]:
+            armed = True
+        i += 1
+    if len(boundaries) < 2:
+        raise InputError(
+            f"no lap found: the ride never comes back within {radius:g} m of its start; "
+            "give lap boundaries instead"
+        )
+    return list(zip(boundaries[:-1], boundaries[1:], strict=True))
+
+
+def laps_from_bounds(bounds: Sequence[int], size: int) -> list[tuple[int, int]]:
+    """Consecutive laps (start, end) from increasing boundary sample indices."""
+    bounds = [int(b) for b in bounds]
+    if len(bounds) < 2:
+        raise InputError("give at least two lap boundaries")
+    if any(b < 0 or b >= size for b in bounds) or any(
+        b1 <= b0 for b0, b1 in zip(bounds[:-1], bounds[1:], strict=True)
+    ):
+        raise InputError(f"lap boundaries must increase and lie within the ride (0..{size - 1})")
+    return list(zip(bounds[:-1], bounds[1:], strict=True))
+
+
+def indices_at_times(ride: Ride, times: Sequence[float]) -> list[int]:
+    """Sample index nearest to each time [s] (for lap boundaries given as times)."""
+    times = np.asarray(times, dtype=float)
+    if np.any(times < ride.time[0] - MAX_GAP) or np.any(times > ride.time[-1] + MAX_GAP):
+        raise InputError(
+            f"lap times must lie within the ride ({ride.time[0]:g}-{ride.time[-1]:g} s)"
+        )
+    return [int(np.argmin(np.abs(ride.time - t))) for t in times]
+
+
+# ---------------------------------------------------------------------------------------------
+# Virtual elevation
+# ---------------------------------------------------------------------------------------------
+
+
+@dataclass(frozen=True, eq=False)
+class ElevationTerms:
+    """The three parts of the virtual elevation rise of each piece [m], length N-1.
+
+    rise = known − drag_area·per_drag_area − rolling_coefficient·per_rolling_coefficient
+    """
+
+    known: np.ndarray
+    per_drag_area: np.ndarray
+    per_rolling_coefficient: np.ndarray
+
+
+def _unit_rider(rider: Rider) -> Rider:
+    return dataclasses.replace(rider, drag_area=1.0, wheel_drag_area=0.0, drafting_reduction=0.0,
+                               rolling_coefficient=1.0)
+
+
+def elevation_terms(
+    time,
+    speed,
+    power,
+    air_density,
+    rider: Rider,
+    headwind=0.0,
+    crosswind=0.0,
+    pause=None,
+) -> ElevationTerms:
+    """Rise of each piece implied by the power balance, split into parts linear in CdA, Crr.
+
+        m·g·Δh = η·P̄·Δt − ½·(m + I/r²)·(v₁² − v₀²) − (a + b·v̄ + F_w·q)·Δs
+                 − CdA·k(β)·q·Δs − Crr·m·g·Δs,      q = ½ρ·V·v_a,  Δs = v̄·Δt
+
+    P̄ and v̄ are the means of the two end samples. Pieces marked as pauses rise by 0.
+
+    Parameters
+    ----------
+    time [s], speed [m/s], power [W] : length N.
+    air_density [kg/m³], headwind, crosswind [m/s] : scalars or length N-1.
+    rider : mass, drivetrain efficiency, wheel and bearing parameters (its drag_area and
+        rolling_coefficient are not used; its yaw_drag_table is).
+    pause : bool, length N-1, or None.
+
+    References
+    ----------
+    Chung, "Estimating CdA with a power meter"; Martin et al. (1998).
+    """
+    time = np.asarray(time, dtype=float)
+    speed = np.asarray(speed, dtype=float)
+    power = np.asarray(power, dtype=float)
+    duration = np.diff(time)
+    mean_speed = 0.5 * (speed[1:] + speed[:-1])
+    mean_power = 0.5 * (power[1:] + power[:-1])
+    length = mean_speed * duration
+    weight = rider.mass * STANDARD_GRAVITY
+    unit = _unit_rider(rider)
+    per_area = aerodynamic_force(mean_speed, air_density, unit, headwind, crosswind)
+    wheel = rider.wheel_drag_area * aerodynamic_force(
+        mean_speed, air_density, dataclasses.replace(unit, yaw_drag_table=None), headwind,
+        crosswind)
+    kinetic = 0.5 * rider.effective_mass * (speed[1:] ** 2 - speed[:-1] ** 2)
+    known = (rider.drivetrain_efficiency * mean_power * duration - kinetic
+             - (bearing_force(mean_speed, rider) + wheel) * length) / weight
+    per_drag = per_area * length / weight
+    per_rolling = rolling_force(0.0, unit) * length / weight
+    if pause is not None:
+        keep = ~np.asarray(pause, dtype=bool)
+        known, per_drag, per_rolling = known * keep, per_drag * keep, per_rolling * keep
+    return ElevationTerms(known, per_drag, np.broadcast_to(per_rolling, known.shape).copy())
+
+
+def virtual_elevation(
+    time,
+    speed,
+    power,
+    air_density,
+    rider: Rider,
+    headwind=0.0,
+    crosswind=0.0,
+    start_elevation: float = 0.0,
+    pause=None,
+) -> np.ndarray:
+    """Elevation trace implied by the power balance with the rider's CdA and Crr [m], length N.
+
+    z_k = z_0 + Σ_{i<k} Δh_i, Δh_i from `elevation_terms` with CdA = rider.drag_area and
+    Crr = rider.rolling_coefficient. With the right CdA and Crr it follows the road's profile.
+
+    References
+    ----------
+    Chung, "Estimating CdA with a power meter".
+    """
+    terms = elevation_terms(time, speed, power, air_density, rider, headwind, crosswind, pause)
+    rise = (terms.known - rider.drag_area * terms.per_drag_area
+            - rider.rolling_coefficient * terms.per_rolling_coefficient)
+    return start_elevation + np.concatenate(([0.0], np.cumsum(rise)))
+
+
+# ---------------------------------------------------------------------------------------------
+# Fitting
+# ---------------------------------------------------------------------------------------------
+
+
+@dataclass(frozen=True)
+class PositionTest:
+    """One riding position's test data: a ride (or marked laps of it) and its conditions.
+
+    Attributes
+    ----------
+    label : name of the position ("hoods", "aero bars").
+    ride : the cleaned ride.
+    air_density : [kg/m³], scalar or per piece (length N-1).
+    laps : (start, end) sample index pairs; None = detect from positions, or the whole ride
+        as one lap when it has none.
+    headwind, crosswind : wind components per piece [m/s] (see `ride_wind`), or scalars.
+    """
+
+    label: str
+    ride: Ride
+    air_density: float | np.ndarray = 1.2
+    laps: tuple[tuple[int, int], ...] | None = None
+    headwind: float | np.ndarray = 0.0
+    crosswind: float | np.ndarray = 0.0
+
+
+@dataclass(frozen=True, eq=False)
+class LapTrace:
+    """Plot data of one lap (point arrays over the lap's samples).
+
+    time, distance : from the lap start [s], [m].
+    virtual_elevation : trace with the fitted CdA and Crr [m], starting at the measured
+        elevation of the lap start when known, else at 0.
+    reference_elevation : what the trace should follow [m]: the measured/known profile (method
+        "profile"), else the mean virtual trace of the position's laps at the same place.
+    residual : virtual − reference [m].
+    measured_elevation : the ride's elevation column over the lap [m], or None.
+    """
+
+    time: np.ndarray
+    distance: np.ndarray
+    virtual_elevation: np.ndarray
+    reference_elevation: np.ndarray
+    residual: np.ndarray
+    measured_elevation: np.ndarray | None
+
+
+@dataclass(frozen=True, eq=False)
+class PositionEstimate:
+    """CdA of one position.
+
+    drag_area : [m²]; drag_area_ci95 : bootstrap 95 % interval [m²] or None (too few laps);
+    lap_drag_area : CdA of each lap alone with Crr held at the fitted value [m²];
+    traces : plot data per lap.
+    """
+
+    label: str
+    drag_area: float
+    drag_area_ci95: tuple[float, float] | None
+    laps: int
+    lap_drag_area: np.ndarray
+    traces: tuple[LapTrace, ...]
+
+
+@dataclass(frozen=True)
+class PositionDifference:
+    """CdA of `label` minus CdA of `baseline` [m²] with its bootstrap 95 % interval; the
+    difference is significant when the interval excludes 0."""
+
+    label: str
+    baseline: str
+    difference: float
+    ci95: tuple[float, float] | None
+    significant: bool
+
+
+@dataclass(frozen=True, eq=False)
+class FieldTestResult:
+    """Estimated CdA per position and a common Crr, with intervals and warnings.
+
+    rolling_coefficient : Crr [-]; rolling_coefficient_ci95 : interval or None;
+    rolling_fixed : True when Crr was given, not fitted;
+    estimate_correlation : largest |correlation| between a CdA and the Crr estimate [-]
+        (0 when Crr is fixed);
+    bootstrap_drag_area : bootstrap draws, shape (draws, positions) [m²] (empty if none).
+    """
+
+    method: str
+    positions: tuple[PositionEstimate, ...]
+    rolling_coefficient: float
+    rolling_coefficient_ci95: tuple[float, float] | None
+    rolling_fixed: bool
+    estimate_correlation: float
+    differences: tuple[PositionDifference, ...]
+    warnings: tuple[str, ...]
+    bootstrap_drag_area: np.ndarray
+
+    @property
+    def drag_area(self) -> float:
+        """CdA of the first position [m²]."""
+        return self.positions[0].drag_area
+
+    @property
+    def drag_area_ci95(self) -> tuple[float, float] | None:
+        return self.positions[0].drag_area_ci95
+
+    @property
+    def laps(self) -> int:
+        """Number of laps used, over all positions."""
+        return sum(p.laps for p in self.positions)
+
+    def setup(self, position: str | int = 0, name: str | None = None, **fields) -> Setup:
+        """The measured position as a pacing.athlete.Setup (drag_area and rolling_coefficient
+        filled in; other Setup fields such as bike_mass from `fields`)."""
+        if isinstance(position, str):
+            matches = [p for p in self.positions if p.label == position]
+            if not matches:
+                raise InputError(f"no position named {position!r}")
+            estimate = matches[0]
+        else:
+            estimate = self.positions[position]
+        return Setup(name=name or estimate.label, drag_area=round(estimate.drag_area, 4),
+                     rolling_coefficient=round(self.rolling_coefficient, 5), **fields)
+
+
+@dataclass(frozen=True, eq=False)
+class _Lap:
+    group: int
+    start: int
+    end: int
+    time: np.ndarray  # from lap start, points
+    distance: np.ndarray  # from lap start, points
+    known: np.ndarray  # cumulative, points
+    drag: np.ndarray
+    rolling: np.ndarray
+    measured: np.ndarray | None  # measured elevation relative to the lap start, points
+    reference: np.ndarray | None  # profile method: known elevation relative to the lap start
+    start_elevation: float
+    run: np.ndarray  # regression row: (y, x_drag, x_rolling)
+    fraction: np.ndarray  # distance / lap length, points
+
+
+def _resolve_laps(test: PositionTest, radius: float) -> list[tuple[int, int]]:
+    ride = test.ride
+    n = ride.time.size
+    if test.laps is not None:
+        laps = [(int(a), int(b)) for a, b in test.laps]
+        for a, b in laps:
+            if not 0 <= a < b < n:
+                raise InputError(
+                    f"lap ({a}, {b}) of {test.label!r} is not inside the ride (0..{n - 1})"
+                )
+        if not laps:
+            raise InputError(f"position {test.label!r} has no laps")
+        return laps
+    if ride.has_position:
+        return detect_laps(ride.latitude, ride.longitude, radius)
+    return [(0, n - 1)]
+
+
+def _is_closed(ride: Ride, start: int, end: int, radius: float) -> bool:
+    """True when the lap ends within `radius` of where it started (needs positions)."""
+    if not ride.has_position:
+        return False
+    east, north = _local_position(ride.latitude[[end]], ride.longitude[[end]],
+                                  (float(ride.latitude[start]), float(ride.longitude[start])))
+    return bool(np.hypot(east, north)[0] < radius)
+
+
+def _build_laps(test: PositionTest, group: int, rider: Rider, radius: float,
+                profile: tuple[np.ndarray, np.ndarray] | None, method: str) -> list[_Lap]:
+    ride = test.ride
+    n = ride.time.size
+    density = np.broadcast_to(np.asarray(test.air_density, dtype=float), (n - 1,))
+    if np.any(~np.isfinite(density)) or np.any(density <= 0) or np.any(density > 2.0):
+        raise InputError("air density must be between 0 and 2 kg/m³")
+    head = np.broadcast_to(np.asarray(test.headwind, dtype=float), (n - 1,))
+    cross = np.broadcast_to(np.asarray(test.crosswind, dtype=float), (n - 1,))
+    terms = elevation_terms(ride.time, ride.speed, ride.power, density, rider, head, cross,
+                            ride.pause)
+    laps = []
+    for start, end in _resolve_laps(test, radius):
+        pieces = slice(start, end)
+        cumulative = [np.concatenate(([0.0], np.cumsum(part[pieces])))
+                      for part in (terms.known, terms.per_drag_area,
+                                   terms.per_rolling_coefficient)]
+        step = 0.5 * (ride.speed[start + 1:end + 1] + ride.speed[start:end]) * np.diff(
+            ride.time[start:end + 1])
+        if ride.pause is not None:
+            step = np.where(ride.pause[pieces], 0.0, step)
+        distance = np.concatenate(([0.0], np.cumsum(step)))
+        if distance[-1] <= 0:
+            raise InputError(f"lap ({start}, {end}) of {test.label!r} covers no distance")
+        measured = None
+        start_elevation = 0.0
+        if ride.elevation is not None:
+            start_elevation = float(ride.elevation[start])
+            measured = ride.elevation[start:end + 1] - start_elevation
+        reference = None
+        if method == "profile":
+            if profile is not None:
+                along, height = profile
+                lap_height = np.interp(distance, along, height)
+                reference = lap_height - lap_height[0]
+            elif measured is not None:
+                reference = measured
+            else:
+                raise InputError("method 'profile' needs elevation data or a known profile; "
+                                 "use method 'loop' instead")
+        # regression row (Lim et al. 2011): lap means of power and speed; a lap that returns
+        # to its start rises by 0, others by their measured rise
+        rise = 0.0
+        if measured is not None and not _is_closed(ride, start, end, radius):
+            rise = float(measured[-1])
+        run = _run_row(ride, start, end, distance[-1], rise, density, head, cross, rider)
+        laps.append(_Lap(group, start, end, ride.time[start:end + 1] - ride.time[start],
+                         distance, *cumulative, measured, reference, start_elevation,
+                         run, distance / distance[-1]))
+    return laps
+
+
+def _run_row(ride: Ride, start: int, end: int, length: float, rise: float, density, head,
+             cross, rider: Rider) -> np.ndarray:
+    """One run of the regression: (y, x_drag, x_rolling) with y = CdA·x_drag + Crr·x_rolling.
+
+        y = η·P̄/v̄ − (a + b·v̄) − F_w·q̄ − m·g·rise/length − (m + I/r²)·(v_end − v_start)/T
+        x_drag = q̄ = ½·ρ̄·V̄·v̄_a (mean speed and mean wind),  x_rolling = m·g
+
+    P̄, v̄ are time means over the run (Lim et al. 2011 use the means of constant-speed runs).
+    """
+    pieces = slice(start, end)
+    duration = np.diff(ride.time[start:end + 1])
+    if ride.pause is not None:
+        duration = np.where(ride.pause[pieces], 0.0, duration)
+    total = float(duration.sum())
+    mean_power = float(np.sum(0.5 * (ride.power[start + 1:end + 1] + ride.power[start:end])
+                              * duration) / total)
+    mean_speed = length / total
+
+    def mean(values):
+        return float(np.sum(values[pieces] * duration) / total)
+
+    unit = _unit_rider(rider)
+    q = float(aerodynamic_force(mean_speed, mean(density), unit, mean(head), mean(cross)))
+    q_wheel = float(aerodynamic_force(mean_speed, mean(density),
+                                      dataclasses.replace(unit, yaw_drag_table=None),
+                                      mean(head), mean(cross)))
+    weight = rider.mass * STANDARD_GRAVITY
+    y = (rider.drivetrain_efficiency * mean_power / mean_speed
+         - float(bearing_force(mean_speed, rider)) - rider.wheel_drag_area * q_wheel
+         - weight * rise / length
+         - rider.effective_mass * (ride.speed[end] - ride.speed[start]) / total)
+    return np.array([y, q, float(rolling_force(0.0, unit))])
+
+
+def _lap_matrices(laps: list[_Lap], method: str) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+    """Per lap: target y, drag column, rolling column, shape (L, G) (G = 1 for regression)."""
+    if method == "regression":
+        rows = np.array([lap.run for lap in laps])
+        return rows[:, :1], rows[:, 1:2], rows[:, 2:3]
+    if method == "loop":
+        # loop closure: each lap's virtual elevation returns to its starting height
+        rows = np.array([(lap.known[-1], lap.drag[-1], lap.rolling[-1]) for lap in laps])
+        return rows[:, :1], rows[:, 1:2], rows[:, 2:3]
+    grid = np.linspace(0.0, 1.0, GRID_POINTS)
+    ys, a_s, b_s = [], [], []
+    for lap in laps:
+        y = lap.known if lap.reference is None else lap.known - lap.reference
+        ys.append(np.interp(grid, lap.fraction, y))
+        a_s.append(np.interp(grid, lap.fraction, lap.drag))
+        b_s.append(np.interp(grid, lap.fraction, lap.rolling))
+    return np.array(ys), np.array(a_s), np.array(b_s)
+
+
+def _normal_equations(groups: list[tuple[np.ndarray, np.ndarray, np.ndarray]], method: str,
+                      fixed_rolling: float | None) -> tuple[np.ndarray, np.ndarray] | None:
+    """Normal matrix and right side of the least-squares problem; None when a group cannot
+    be fitted (e.g. a loop group with a single distinct lap)."""
+    count = len(groups)
+    size = count + (fixed_rolling is None)
+    matrix = np.zeros((size, size))
+    right = np.zeros(size)
+    for p, (y, a, b) in enumerate(groups):
+        if method == "profile":
+            y, a, b = (v - v.mean(axis=1, keepdims=True) for v in (y, a, b))
+        if fixed_rolling is not None:
+            y = y - fixed_rolling * b
+        aa = float(np.sum(a * a))
+        if aa <= 1e-12 * max(1.0, float(np.sum(y * y))):
+            return None
+        matrix[p, p] += aa
+        right[p] += float(np.sum(a * y))
+        if fixed_rolling is None:
+            ab = float(np.sum(a * b))
+            matrix[p, -1] += ab
+            matrix[-1, p] += ab
+            matrix[-1, -1] += float(np.sum(b * b))
+            right[-1] += float(np.sum(b * y))
+    return matrix, right
+
+
+def _solve(matrix: np.ndarray, right: np.ndarray) -> np.ndarray | None:
+    scale = np.sqrt(np.diag(matrix))
+    if np.any(scale <= 0):
+        return None
+    scaled = matrix / np.outer(scale, scale)
+    if np.linalg.cond(scaled) > 1e12:
+        return None
+    return np.linalg.solve(scaled, right / scale) / scale
+
+
+def _estimate_correlation(matrix: np.ndarray, fixed: bool) -> float:
+    if fixed:
+        return 0.0
+    scale = np.sqrt(np.diag(matrix))
+    try:
+        covariance = np.linalg.inv(matrix / np.outer(scale, scale))
+    except np.linalg.LinAlgError:
+        return 1.0
+    diagonal = np.sqrt(np.abs(np.diag(covariance)))
+    corr = covariance[:-1, -1] / (diagonal[:-1] * diagonal[-1])
+    return float(np.clip(np.max(np.abs(corr)), 0.0, 1.0))
+
+
+def estimate_drag(
+    tests: PositionTest | Sequence[PositionTest],
+    rider: Rider,
+    method: str = "loop",
+    rolling_coefficient: float | None = None,
+    lap_radius: float = LAP_RADIUS,
+    profile: tuple[np.ndarray, np.ndarray] | None = None,
+    bootstrap: int = 1000,
+    seed: int = 0,
+) -> FieldTestResult:
+    """CdA of each position and a common Crr from test rides.
+
+    All positions share one Crr (same tyres and road); each has its own CdA. The fit is linear
+    least squares on the virtual elevation (methods "loop", "profile") or on lap means
+    ("regression"), see the module docstring. Intervals: percentile bootstrap over laps,
+    resampled within each position (Efron & Tibshirani 1993); a position with fewer than 3 laps
+    gets no interval.
+
+    Parameters
+    ----------
+    tests : one PositionTest per position (or marked part of a ride).
+    rider : mass [kg] of rider + bike, drivetrain efficiency and wheel parameters.
+    method : "loop", "profile" or "regression" (see METHODS).
+    rolling_coefficient : Crr to hold fixed [-]; None fits it.
+    lap_radius : capture radius of automatic lap detection [m].
+    profile : known elevation (distance along the lap [m], elevation [m]) for method
+        "profile"; default the ride's elevation column.
+    bootstrap : number of bootstrap draws (0 for none).
+    seed : random seed of the bootstrap.
+
+    Raises
+    ------
+    InputError : unknown method, too few laps, or CdA and Crr cannot be separated.
+    """
+    if isinstance(tests, PositionTest):
+        tests = [tests]
+    tests = list(tests)
+    if method not in METHODS:
+        raise InputError(f"unknown method {method!r}: choose one of {', '.join(METHODS)}")
+    if not tests:
+        raise InputError("give at least one test ride")
+    labels = [t.label for t in tests]
+    if len(set(labels)) != len(labels):
+        raise InputError("position labels must differ")
+    if rolling_coefficient is not None and not 0 <= rolling_coefficient <= 0.1:
+        raise InputError(f"Crr must be 0-0.1, got {rolling_coefficient}")
+    fixed = rolling_coefficient is not None
+    warnings: list[str] = []
+    lap_sets = [_build_laps(t, g, rider, lap_radius, profile, method) for g, t in
+                enumerate(tests)]
+    for test, laps in zip(tests, lap_sets, strict=True):
+        need = 2 if method in ("loop", "regression") and not fixed else 1
+        if len(laps) < need:
+            hint = "" if test.ride.has_position or test.laps else \
+                " (no positions to find laps in: mark the lap boundaries)"
+            raise InputError(f"method {method!r} needs at least {need} laps per position; "
+                             f"{test.label!r} has {len(laps)}{hint}")
+    groups = [_lap_matrices(laps, method) for laps in lap_sets]
+    equations = _normal_equations(groups, method, rolling_coefficient)
+    solution = None if equations is None else _solve(*equations)
+    if solution is None:
+        raise InputError("CdA and Crr cannot be separated from these laps: ride laps at "
+                         "clearly different speeds, or give Crr")
+    matrix, _ = equations
+    correlation = _estimate_correlation(matrix, fixed)
+    crr = float(rolling_coefficient) if fixed else float(solution[-1])
+    areas = solution[:len(tests)]
+    if correlation > SEPARATION_LIMIT:
+        warnings.append(
+            f"laps lack speed variety: CdA and Crr cannot be separated (correlation "
+            f"{correlation:.3f}); ride laps at clearly different speeds or give Crr"
+        )
+
+    draws = _bootstrap(groups, method, rolling_coefficient, bootstrap, seed)
+    few = [t.label for t, laps in zip(tests, lap_sets, strict=True) if len(laps) < 3]
+    if few and bootstrap:
+        warnings.append(f"fewer than 3 laps for {', '.join(few)}: no interval")
+    valid = draws.shape[0] >= max(20, bootstrap // 2) if bootstrap else False
+    if bootstrap and not valid and not few:
+        warnings.append("too many bootstrap draws could not be fitted: no interval")
+
+    def interval(values: np.ndarray) -> tuple[float, float] | None:
+        if not valid or few:
+            return None
+        low, high = np.percentile(values, [2.5, 97.5])
+        return float(low), float(high)
+
+    positions = []
+    for p, (test, laps) in enumerate(zip(tests, lap_sets, strict=True)):
+        lap_areas, traces = _lap_results(laps, method, float(areas[p]), crr)
+        positions.append(PositionEstimate(
+            label=test.label, drag_area=float(areas[p]),
+            drag_area_ci95=interval(draws[:, p]) if draws.size else None, laps=len(laps),
+            lap_drag_area=lap_areas, traces=traces))
+        if len(laps) >= 3:
+            spread = float(np.std(lap_areas, ddof=1) / abs(np.mean(lap_areas)))
+            if spread > LAP_SPREAD_LIMIT:
+                warnings.append(
+                    f"CdA of {test.label!r} varies by {100 * spread:.0f} % between laps: wind "
+                    "gusts, braking, drafting or a changing position spoil the data"
+                )
+        if method == "regression":
+            ride = test.ride
+            variation = np.median([np.std(ride.speed[lap.start:lap.end + 1])
+                                   / np.mean(ride.speed[lap.start:lap.end + 1]) for lap in laps])
+            if variation > STEADY_SPEED_LIMIT:
+                warnings.append(
+                    f"speed varies by {100 * variation:.0f} % within the laps of "
+                    f"{test.label!r}: the regression assumes steady runs (Lim et al. 2011); "
+                    "prefer method 'loop'"
+                )
+        wind = float(np.mean(np.hypot(test.headwind, test.crosswind)))
+        if wind > CALM_WIND:
+            warnings.append(
+                f"wind of {wind:.1f} m/s at rider height on {test.label!r}: test rides want "
+                f"calm air (under {CALM_WIND:g} m/s, Lim et al. 2011); the result is only as "
+                "good as the wind given"
+            )
+        braking = _braking_times(test.ride)
+        if braking.size:
+            shown = ", ".join(f"{t:.0f}" for t in braking[:5])
+            warnings.append(
+                f"braking suspected in {test.label!r} at {braking.size} samples (t = {shown} s"
+                f"{' …' if braking.size > 5 else ''}): brake-free laps give better estimates"
+            )
+        if not 0.1 <= areas[p] <= 0.8:
+            warnings.append(f"CdA of {test.label!r} ({areas[p]:.3f} m²) is outside the usual "
+                            "0.1-0.8 m²: check mass, power and wind")
+    if not fixed and not 0.0005 <= crr <= 0.03:
+        warnings.append(f"Crr ({crr:.4f}) is outside the usual 0.0005-0.03: check the laps")
+    crr_interval = None if fixed or not draws.size else interval(draws[:, -1])
+    differences = []
+    for p in range(1, len(tests)):
+        delta = float(areas[p] - areas[0])
+        ci = interval(draws[:, p] - draws[:, 0]) if draws.size else None
+        differences.append(PositionDifference(
+            label=tests[p].label, baseline=tests[0].label, difference=delta, ci95=ci,
+            significant=bool(ci is not None and (ci[0] > 0 or ci[1] < 0))))
+    return FieldTestResult(
+        method=method, positions=tuple(positions), rolling_coefficient=crr,
+        rolling_coefficient_ci95=crr_interval, rolling_fixed=fixed,
+        estimate_correlation=correlation, differences=tuple(differences),
+        warnings=tuple(warnings),
+        bootstrap_drag_area=draws[:, :len(tests)] if draws.size else np.empty((0, len(tests))),
+    )
+
+
+def _bootstrap(groups, method: str, fixed_rolling: float | None, draws: int,
+               seed: int) -> np.ndarray:
+    """Bootstrap estimates, shape (valid draws, positions [+ Crr])."""
+    columns = len(groups) + (fixed_rolling is None)
+    if draws <= 0:
+        return np.empty((0, columns))
+    rng = np.random.default_rng(seed)
+    results = []
+    for _ in range(draws):
+        sample = []
+        for y, a, b in groups:
+            pick = rng.integers(0, y.shape[0], y.shape[0])
+            sample.append((y[pick], a[pick], b[pick]))
+        equations = _normal_equations(sample, method, fixed_rolling)
+        solution = None if equations is None else _solve(*equations)
+        if solution is not None:
+            results.append(solution)
+    return np.array(results) if results else np.empty((0, columns))
+
+
+def _lap_results(laps: list[_Lap], method: str, area: float,
+                 crr: float) -> tuple[np.ndarray, tuple[LapTrace, ...]]:
+    """Per-lap CdA (Crr held) and plot traces."""
+    lap_areas = []
+    virtual = []
+    for lap in laps:
+        if method == "regression":
+            y, x_drag, x_rolling = lap.run
+            lap_areas.append((y - crr * x_rolling) / x_drag)
+        else:
+            rise = 0.0 if lap.reference is None else lap.reference[-1]
+            lap_areas.append((lap.known[-1] - rise - crr * lap.rolling[-1]) / lap.drag[-1])
+        virtual.append(lap.known - area * lap.drag - crr * lap.rolling)
+    grid = np.linspace(0.0, 1.0, GRID_POINTS)
+    mean_trace = np.mean([np.interp(grid, lap.fraction, z) for lap, z in
+                          zip(laps, virtual, strict=True)], axis=0)
+    traces = []
+    for lap, z in zip(laps, virtual, strict=True):
+        if lap.reference is not None:
+            reference = lap.reference
+        elif method == "regression" and lap.measured is not None:
+            reference = lap.measured
+        else:
+            reference = np.interp(lap.fraction, grid, mean_trace)
+        if method == "profile":
+            # the fit allows each lap its own offset
+            z = z - np.mean(z - reference)
+        base = lap.start_elevation
+        traces.append(LapTrace(
+            time=lap.time, distance=lap.distance, virtual_elevation=base + z,
+            reference_elevation=base + reference, residual=z - reference,
+            measured_elevation=None if lap.measured is None else base + lap.measured))
+    return np.array(lap_areas), tuple(traces)
+
+
+def _braking_times(ride: Ride, low_power: float = 20.0) -> np.ndarray:
+    """Times [s] of samples that slow faster than BRAKING_DECELERATION while hardly pedalling."""
+    rate = np.diff(ride.speed) / np.diff(ride.time)
+    if ride.pause is not None:
+        rate = np.where(ride.pause, 0.0, rate)
+    idle = 0.5 * (ride.power[1:] + ride.power[:-1]) < low_power
+    return ride.time[1:][(rate < -BRAKING_DECELERATION) & idle]

@@ -1,0 +1,294 @@
+"""Segment targets leave the program here: a table with units, CSV, XLSX, GPX with waypoints,
+and a printable card (PNG or PDF) a rider can tape to the stem.
+
+Input rows are segment targets as made by ``pacing.targets.target_table`` (objects with the
+attributes below, or dicts with the same keys), all in SI units:
+
+    index, start, end, length [m], grade [-], target_power, power_low, power_high [W] or None,
+    target_pace [s/km] or None, speed [m/s], time, cumulative_time [s],
+    w_prime_balance [J] or None, headwind [m/s]
+
+`segment_table` turns them into the one table the app shows; CSV and XLSX write that same
+table, so the numbers in a file are the numbers on the screen. Units are converted only here
+(through pacing.units).
+"""
+
+from __future__ import annotations
+
+import csv
+import io
+import math
+from collections.abc import Iterable, Mapping, Sequence
+from typing import Any
+
+import pandas as pd
+
+from pacing.errors import InputError
+from pacing.io.gpx import write_gpx
+from pacing.units import (
+    format_duration,
+    format_pace,
+    pace_per_km_to_display,
+    to_display,
+    unit_label,
+)
+
+CAUTION_LINE = (
+    "Speeds are estimates, not safe limits. Ride within your skills, the road, "
+    "traffic law and race rules."
+)
+"""Printed on every card and shown beside predicted speeds."""
+
+ROWS_PER_CARD_COLUMN = 20
+"""Segments per column of the printed card; more segments add columns side by side."""
+CARD_COLUMN_WIDTH = 3.4
+"""Width of one card column [in]."""
+CARD_ROW_HEIGHT = 0.40
+"""Height of one segment line on the card [in]."""
+CARD_HEADER_HEIGHT = 0.95
+"""Title and column headings [in]."""
+CARD_FOOTER_HEIGHT = 0.60
+"""Caution line [in]."""
+CARD_DPI = 150
+"""Default resolution of the PNG card [dots per inch]."""
+
+
+def _field(row: Any, name: str) -> Any:
+    if isinstance(row, Mapping):
+        return row.get(name)
+    return getattr(row, name, None)
+
+
+def _number(row: Any, name: str) -> float | None:
+    value = _field(row, name)
+    if value is None:
+        return None
+    try:
+        value = float(value)
+    except (TypeError, ValueError):
+        raise InputError(f"segment {name.replace('_', ' ')} is not a number: {value!r}") from None
+    return value if math.isfinite(value) else None
+
+
+def _rows(rows: Iterable[Any]) -> list[Any]:
+    rows = list(rows)
+    if not rows:
+        raise InputError("there are no segments to export")
+    for row in rows:
+        for name in ("start", "end", "time", "cumulative_time"):
+            if _number(row, name) is None:
+                raise InputError(f"a segment has no {name.replace('_', ' ')}; cannot export")
+    return rows
+
+
+def _has(rows: Sequence[Any], name: str) -> bool:
+    return any(_number(row, name) is not None for row in rows)
+
+
+def segment_table(rows: Iterable[Any], system: str = "metric") -> pd.DataFrame:
+    """The segment target table with a unit on every column, in `system` units.
+
+    Columns (metric; imperial swaps km→mi, km/h→mph, min/km→min/mi): "Segment", "From [km]",
+    "To [km]", "Length [km]", "Grade [%]", "Target power [W]", "Power low [W]",
+    "Power high [W]", "Target pace [min/km]", "Speed [km/h]", "Headwind [km/h]",
+    "Split [h:mm:ss]", "Elapsed [h:mm:ss]", "W′ left [kJ]". Power, pace and W′ columns
+    appear only when some segment has them. Rounded for reading (distances 0.01, grade and
+    speeds 0.1, power 1 W, W′ 0.1 kJ); a missing value is an empty cell, never NaN text.
+
+    Parameters
+    ----------
+    rows : segment targets in SI units (see module docstring).
+    system : "metric" or "imperial".
+    """
+    rows = _rows(rows)
+    dist = unit_label("distance", system)
+    speed = unit_label("speed", system)
+    pace = unit_label("pace", system)
+
+    def col(name: str, quantity: str | None = None, factor: float = 1.0, digits: int = 1):
+        values = []
+        for row in rows:
+            value = _number(row, name)
+            if value is not None:
+                value = to_display(value, quantity, system) if quantity else value * factor
+                value = round(value, digits) if digits else int(round(value))
+            values.append(value)
+        return values
+
+    table: dict[str, list] = {"Segment": list(range(1, len(rows) + 1))}
+    table[f"From [{dist}]"] = col("start", "distance", digits=2)
+    table[f"To [{dist}]"] = col("end", "distance", digits=2)
+    table[f"Length [{dist}]"] = [
+        round(to_display(_number(r, "end") - _number(r, "start"), "distance", system), 2)
+        for r in rows
+    ]
+    table["Grade [%]"] = col("grade", factor=100.0, digits=1)
+    if _has(rows, "target_power"):
+        table["Target power [W]"] = col("target_power", digits=0)
+        if _has(rows, "power_low") and _has(rows, "power_high"):
+            table["Power low [W]"] = col("power_low", digits=0)
+            table["Power high [W]"] = col("power_high", digits=0)
+    if _has(rows, "target_pace"):
+        table[f"Target pace [{pace}]"] = [
+            None if _number(r, "target_pace") is None
+            else format_pace(float(pace_per_km_to_display(_number(r, "target_pace"), system)))
+            for r in rows
+        ]
+    table[f"Speed [{speed}]"] = col("speed", "speed", digits=1)
+    if _has(rows, "headwind"):
+        table[f"Headwind [{speed}]"] = col("headwind", "wind_speed", digits=1)
+    table["Split [h:mm:ss]"] = [format_duration(_number(r, "time")) for r in rows]
+    table["Elapsed [h:mm:ss]"] = [format_duration(_number(r, "cumulative_time")) for r in rows]
+    if _has(rows, "w_prime_balance"):
+        table["W′ left [kJ]"] = col("w_prime_balance", factor=1e-3, digits=1)
+    return pd.DataFrame(table)
+
+
+def table_to_csv(table: pd.DataFrame) -> bytes:
+    """The table as UTF-8 CSV (comma separated, header row, no index)."""
+    buffer = io.StringIO()
+    table.to_csv(buffer, index=False, quoting=csv.QUOTE_MINIMAL)
+    return buffer.getvalue().encode("utf-8")
+
+
+def table_to_xlsx(table: pd.DataFrame, sheet_name: str = "segment targets",
+                  title: str | None = None) -> bytes:
+    """The table as an Excel workbook (openpyxl): one sheet, header row frozen, columns sized.
+
+    The header is on row 1 and data from row 2 (a title, if given, goes in the workbook's
+    properties, not in a cell, so the sheet reads straight back into a table).
+    """
+    buffer = io.BytesIO()
+    with pd.ExcelWriter(buffer, engine="openpyxl") as writer:
+        table.to_excel(writer, sheet_name=sheet_name[:31], index=False)
+        sheet = writer.sheets[sheet_name[:31]]
+        sheet.freeze_panes = "A2"
+        for cells in sheet.columns:
+            width = max(len(str(c.value)) if c.value is not None else 0 for c in cells)
+            sheet.column_dimensions[cells[0].column_letter].width = min(max(width + 2, 8), 40)
+        if title:
+            writer.book.properties.title = title
+    return buffer.getvalue()
+
+
+def _target_text(row: Any, system: str) -> str:
+    power = _number(row, "target_power")
+    pace = _number(row, "target_pace")
+    parts = []
+    if power is not None:
+        parts.append(f"{power:.0f} W")
+    if pace is not None:
+        shown = format_pace(float(pace_per_km_to_display(pace, system)))
+        parts.append(f"{shown} {unit_label('pace', system)}")
+    return " · ".join(parts) if parts else "steady"
+
+
+def segment_waypoints(rows: Iterable[Any], system: str = "metric") -> list[tuple[float, str, str]]:
+    """One waypoint per segment start: (distance [m], name, description) with its target.
+
+    Name: "S3 285 W" (or "S3 4:35 min/km"); description: where it starts, the target, the
+    expected speed, split and elapsed time, in `system` units.
+    """
+    rows = _rows(rows)
+    points = []
+    for number, row in enumerate(rows, start=1):
+        start = _number(row, "start")
+        target = _target_text(row, system)
+        speed = _number(row, "speed")
+        speed_text = (f", {to_display(speed, 'speed', system):.1f} {unit_label('speed', system)}"
+                      if speed is not None else "")
+        grade = _number(row, "grade")
+        grade_text = f", grade {100 * grade:.1f} %" if grade is not None else ""
+        description = (
+            f"segment {number} from {to_display(start, 'distance', system):.2f} "
+            f"{unit_label('distance', system)}: {target}{speed_text}{grade_text}, "
+            f"split {format_duration(_number(row, 'time'))}, "
+            f"elapsed {format_duration(_number(row, 'cumulative_time'))}"
+        )
+        points.append((start, f"S{number} {target}", description))
+    return points
+
+
+def course_with_targets_gpx(course: Any, rows: Iterable[Any], system: str = "metric") -> str:
+    """The course as a GPX 1.1 track with a waypoint at each segment start carrying its target.
+
+    Uses pacing.io.gpx.write_gpx(course, waypoints) (the project's GPX writer).
+    """
+    return write_gpx(course, segment_waypoints(rows, system))
+
+
+def card_size(segment_count: int) -> tuple[float, float]:
+    """Size of the printed card for a number of segments (width, height) [in]."""
+    if segment_count < 1:
+        raise InputError("there are no segments to put on the card")
+    columns = math.ceil(segment_count / ROWS_PER_CARD_COLUMN)
+    lines = min(segment_count, ROWS_PER_CARD_COLUMN)
+    return (CARD_COLUMN_WIDTH * columns,
+            CARD_HEADER_HEIGHT + CARD_ROW_HEIGHT * (lines + 1) + CARD_FOOTER_HEIGHT)
+
+
+def _card_figure(rows: Sequence[Any], system: str, title: str):
+    from matplotlib.backends.backend_agg import FigureCanvasAgg
+    from matplotlib.figure import Figure
+
+    width, height = card_size(len(rows))
+    figure = Figure(figsize=(width, height))
+    FigureCanvasAgg(figure)
+    axes = figure.add_axes((0, 0, 1, 1))
+    axes.set_axis_off()
+    axes.set_xlim(0, width)
+    axes.set_ylim(height, 0)  # y grows downward, in inches
+    finish = _number(rows[-1], "cumulative_time")
+    axes.text(0.12, 0.38, title[:40], fontsize=15, fontweight="bold", va="center")
+    axes.text(0.12, 0.72, f"finish {format_duration(finish)}", fontsize=12, va="center")
+    dist = unit_label("distance", system)
+    columns = math.ceil(len(rows) / ROWS_PER_CARD_COLUMN)
+    for column in range(columns):
+        left = column * CARD_COLUMN_WIDTH + 0.12
+        top = CARD_HEADER_HEIGHT + CARD_ROW_HEIGHT * 0.5
+        for x, heading in ((0.0, dist), (0.95, "target"), (2.45, "split")):
+            axes.text(left + x, top, heading, fontsize=9, color="0.35", va="center")
+        part = rows[column * ROWS_PER_CARD_COLUMN:(column + 1) * ROWS_PER_CARD_COLUMN]
+        for line, row in enumerate(part, start=1):
+            y = top + CARD_ROW_HEIGHT * line
+            if line % 2:
+                axes.axhspan(y - CARD_ROW_HEIGHT / 2, y + CARD_ROW_HEIGHT / 2,
+                             xmin=column / columns, xmax=(column + 1) / columns,
+                             color="0.92", lw=0)
+            start = to_display(_number(row, "start"), "distance", system)
+            target = _target_text(row, system).replace(" min/km", "").replace(" min/mi", "")
+            split = format_duration(_number(row, "time"))
+            split = split[2:] if split.startswith("0:") else split
+            axes.text(left, y, f"{start:.1f}", fontsize=15, va="center", family="monospace")
+            axes.text(left + 0.95, y, target, fontsize=17, fontweight="bold", va="center")
+            axes.text(left + 2.45, y, split, fontsize=13, va="center", family="monospace")
+    axes.text(0.12, height - CARD_FOOTER_HEIGHT / 2, _wrap(CAUTION_LINE, width), fontsize=7,
+              va="center", color="0.2")
+    return figure
+
+
+def _wrap(text: str, width_inches: float) -> str:
+    import textwrap
+
+    return "\n".join(textwrap.wrap(text, width=max(20, int(width_inches * 15))))
+
+
+def target_card_png(rows: Iterable[Any], system: str = "metric", title: str = "race plan",
+                    dpi: int = CARD_DPI) -> bytes:
+    """The printable target card as PNG: card_size(len(rows)) inches at `dpi`.
+
+    Large type: segment start (km or mi), target power or pace, expected split; a caution
+    line at the bottom.
+    """
+    rows = _rows(rows)
+    buffer = io.BytesIO()
+    _card_figure(rows, system, title).savefig(buffer, format="png", dpi=dpi)
+    return buffer.getvalue()
+
+
+def target_card_pdf(rows: Iterable[Any], system: str = "metric", title: str = "race plan") -> bytes:
+    """The printable target card as a one-page PDF of card_size(len(rows)) inches."""
+    rows = _rows(rows)
+    buffer = io.BytesIO()
+    _card_figure(rows, system, title).savefig(buffer, format="pdf")
+    return buffer.getvalue()

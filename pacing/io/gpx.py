@@ -1,0 +1,276 @@
+"""Read and write GPX courses (GPX 1.0 and 1.1; tracks and routes).
+
+Reading is hardened: the text is first parsed by defusedxml with DTDs, entities and external
+references forbidden, and only then handed to gpxpy. Files over MAX_GPX_BYTES or with more than
+MAX_GPX_POINTS points are refused. Every problem becomes pacing.errors.InputError with a
+one-line message.
+
+Points are taken from all tracks and their segments, joined in file order; a file without track
+points falls back to its routes. Waypoints are ignored.
+
+The demo courses (invented places) live in demo_routes/ beside the package; DEMO_ROUTES_DIR,
+demo_route_paths() and DEFAULT_DEMO_ROUTE find them.
+"""
+
+from __future__ import annotations
+
+import os
+import re
+import warnings
+import xml.etree.ElementTree as ElementTree
+from dataclasses import dataclass
+from pathlib import Path
+
+import defusedxml
+import defusedxml.ElementTree
+import gpxpy
+import gpxpy.gpx
+import numpy as np
+
+from pacing.course import (
+    DEFAULT_STEP,
+    Course,
+    ElevationSmoothing,
+    build_course,
+    validate_track,
+)
+from pacing.errors import InputError
+
+MAX_GPX_BYTES = 50 * 1024 * 1024
+"""Largest GPX file accepted [bytes] (50 MiB: a day-long 1 s recording is about 10 MiB)."""
+
+MAX_GPX_POINTS = 1_000_000
+"""Most track or route points accepted in one file."""
+
+DEMO_ROUTES_DIR = Path(__file__).resolve().parents[2] / "demo_routes"
+"""Folder of the invented demo courses (in the source tree)."""
+
+DEFAULT_DEMO_ROUTE = DEMO_ROUTES_DIR / "01_corravey_hill_loop_40k.gpx"
+"""The demo course the app opens on: a hilly 40 km time-trial loop."""
+
+
+@dataclass(frozen=True, eq=False)
+class Track:
+    """The raw points of a GPX file, in order along the course.
+
+    Attributes
+    ----------
+    latitude, longitude : WGS84 positions [deg], length M.
+    elevation : elevation of each point [m], NaN where a point has none; None when no point of
+        the file has an elevation.
+    name : the track's (or route's, or file's) name; "" when the file names none.
+    """
+
+    latitude: np.ndarray
+    longitude: np.ndarray
+    elevation: np.ndarray | None
+    name: str = ""
+
+
+def _shown(path: Path) -> str:
+    """A path fit for a one-line message (no line breaks, at most 200 characters)."""
+    text = " ".join(str(path).split())
+    return text if len(text) <= 200 else text[:197] + "..."
+
+
+def _read_bytes(source) -> tuple[bytes, str]:
+    """The file's bytes and a fallback name, from a path, bytes or a file-like object."""
+    if isinstance(source, bytes | bytearray | memoryview):
+        data = bytes(source)
+        fallback = ""
+    elif isinstance(source, str) and source.lstrip().startswith("<"):
+        data = source.encode("utf-8")  # GPX text given as a string
+        fallback = ""
+    elif isinstance(source, str | os.PathLike):
+        path = Path(source)
+        try:
+            size = path.stat().st_size
+        except FileNotFoundError:
+            raise InputError(f"GPX file not found: {_shown(path)}") from None
+        except OSError as error:
+            raise InputError(f"cannot read {_shown(path)}: {error.strerror}") from None
+        if path.is_dir():
+            raise InputError(f"{_shown(path)} is a folder, not a GPX file")
+        if size > MAX_GPX_BYTES:
+            raise InputError(f"GPX file is too large: {size / 2**20:.0f} MiB "
+                             f"(limit {MAX_GPX_BYTES // 2**20} MiB)")
+        try:
+            data = path.read_bytes()
+        except OSError as error:
+            raise InputError(f"cannot read {_shown(path)}: {error.strerror}") from None
+        fallback = path.stem
+    elif hasattr(source, "read"):
+        data = source.read(MAX_GPX_BYTES + 1)
+        if isinstance(data, str):
+            data = data.encode("utf-8")
+        fallback = Path(str(getattr(source, "name", ""))).stem if hasattr(source, "name") else ""
+    else:
+        raise InputError(f"cannot read a GPX course from {type(source).__name__}")
+    if len(data) > MAX_GPX_BYTES:
+        raise InputError(f"GPX file is too large (limit {MAX_GPX_BYTES // 2**20} MiB)")
+    return data, fallback
+
+
+def _decode(data: bytes) -> str:
+    try:
+        return data.decode("utf-8-sig")
+    except UnicodeDecodeError:
+        pass
+    declared = re.match(rb"""\s*<\?xml[^>]*encoding=["']([A-Za-z0-9._-]+)["']""", data)
+    if declared:
+        try:
+            return data.decode(declared.group(1).decode("ascii"))
+        except (LookupError, UnicodeDecodeError):
+            pass
+    raise InputError("GPX file is not valid UTF-8 text (nor in the encoding it declares)")
+
+
+def _check_xml(data: bytes) -> None:
+    """Parse with defusedxml (no DTD, no entities, no external references) before gpxpy."""
+    try:
+        root = defusedxml.ElementTree.fromstring(
+            data, forbid_dtd=True, forbid_entities=True, forbid_external=True)
+    except defusedxml.DefusedXmlException:
+        raise InputError("GPX file declares a DTD or entities; such files are refused "
+                         "for safety") from None
+    except ElementTree.ParseError as error:
+        raise InputError(f"not a GPX file: the XML does not parse ({error})") from None
+    tag = root.tag.rsplit("}", 1)[-1]
+    if tag != "gpx":
+        raise InputError(f"not a GPX file: the root element is <{tag}>, not <gpx>")
+
+
+def read_track(source) -> Track:
+    """Read the points of a GPX file.
+
+    Parameters
+    ----------
+    source : path (str or os.PathLike), the file's bytes, or a binary or text file-like object;
+        a str that starts with "<" is taken as the GPX text itself.
+
+    Returns
+    -------
+    Track with the points of all tracks and track segments in order (or, without any, of all
+    routes), validated for range (latitude -90..90, longitude -180..180 [deg]).
+
+    Raises InputError: empty file, not XML or not GPX, DTD or entities, too large, no points,
+    bad coordinates.
+    """
+    data, fallback = _read_bytes(source)
+    if not data.strip():
+        raise InputError("GPX file is empty")
+    _check_xml(data)
+    text = _decode(data)
+    try:
+        document = gpxpy.parse(text)
+    except (gpxpy.gpx.GPXException, ValueError, TypeError, AttributeError, KeyError) as error:
+        message = str(error).splitlines()[0] if str(error) else type(error).__name__
+        raise InputError(f"not a valid GPX file: {message}") from None
+
+    points = [point for track in document.tracks for segment in track.segments
+              for point in segment.points]
+    name = next((t.name for t in document.tracks if t.name), "")
+    if not points:
+        points = [point for route in document.routes for point in route.points]
+        name = next((r.name for r in document.routes if r.name), "")
+    if not points:
+        raise InputError("GPX file has no track or route points")
+    if len(points) > MAX_GPX_POINTS:
+        raise InputError(f"GPX file has too many points: {len(points)} "
+                         f"(limit {MAX_GPX_POINTS})")
+    latitude = np.array([p.latitude for p in points], dtype=float)
+    longitude = np.array([p.longitude for p in points], dtype=float)
+    heights = [p.elevation for p in points]
+    elevation = (None if all(h is None for h in heights)
+                 else np.array([np.nan if h is None else h for h in heights], dtype=float))
+    if len(points) >= 2:
+        latitude, longitude, elevation = validate_track(latitude, longitude, elevation)
+    name = (name or document.name or fallback or "").strip().splitlines()
+    return Track(latitude=latitude, longitude=longitude, elevation=elevation,
+                 name=name[0] if name else "")
+
+
+def load_course(source, step: float | None = None,
+                smoothing: ElevationSmoothing | None = None,
+                allow_missing_elevation: bool = False, name: str | None = None) -> Course:
+    """Read a GPX file and build its Course (see pacing.course.build_course).
+
+    Parameters
+    ----------
+    source : path, bytes or file-like object of a GPX file.
+    step : resampling step [m]; None for DEFAULT_STEP.
+    smoothing : elevation cleaning; None for ElevationSmoothing() defaults.
+    allow_missing_elevation : a file without any elevation is treated as flat (elevation 0 m)
+        with a UserWarning; otherwise it is refused.
+    name : label of the course; None for the file's own name.
+    """
+    track = read_track(source)
+    elevation = track.elevation
+    if elevation is None:
+        if not allow_missing_elevation:
+            raise InputError("GPX file has no elevation data; allow a flat course to use it "
+                             "anyway")
+        warnings.warn("GPX file has no elevation data: the course is treated as flat",
+                      UserWarning, stacklevel=2)
+        elevation = np.zeros_like(track.latitude)
+    return build_course(track.latitude, track.longitude, elevation,
+                        step=DEFAULT_STEP if step is None else step,
+                        smoothing=ElevationSmoothing() if smoothing is None else smoothing,
+                        name=name or track.name or "course")
+
+
+def position_at(course: Course, distance) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+    """Latitude, longitude [deg] and elevation [m] at distances along the course [m].
+
+    Interpolated linearly between the course's points (longitude unwrapped first, so a course
+    over the antimeridian interpolates the short way).
+    """
+    distance = np.asarray(distance, dtype=float)
+    longitude = np.degrees(np.unwrap(np.radians(course.longitude)))
+    lat = np.interp(distance, course.distance, course.latitude)
+    lon = (np.interp(distance, course.distance, longitude) + 180.0) % 360.0 - 180.0
+    return lat, lon, np.interp(distance, course.distance, course.elevation)
+
+
+def write_gpx(course: Course, waypoints=None) -> str:
+    """The course as GPX 1.1 text: one track of its points (cleaned elevation) and waypoints.
+
+    Parameters
+    ----------
+    course : the course.
+    waypoints : optional list of (distance [m], name, description); each waypoint is placed on
+        the course at that distance from the start.
+    """
+    document = gpxpy.gpx.GPX()
+    document.creator = "pacing"
+    track = gpxpy.gpx.GPXTrack(name=course.name)
+    segment = gpxpy.gpx.GPXTrackSegment()
+    for lat, lon, ele in zip(course.latitude, course.longitude, course.elevation, strict=True):
+        segment.points.append(gpxpy.gpx.GPXTrackPoint(
+            latitude=round(float(lat), 7), longitude=round(float(lon), 7),
+            elevation=round(float(ele), 2)))
+    track.segments.append(segment)
+    document.tracks.append(track)
+    total = course.total_distance
+    for entry in waypoints or []:
+        try:
+            distance, label, description = entry
+            distance = float(distance)
+        except (TypeError, ValueError):
+            raise InputError("each waypoint must be (distance_m, name, description)") from None
+        if not (np.isfinite(distance) and -1e-6 <= distance - course.distance[0] <= total + 1e-6):
+            raise InputError(f"waypoint at {distance:g} m is outside the course "
+                             f"(0..{total:.0f} m)")
+        lat, lon, ele = position_at(course, distance)
+        document.waypoints.append(gpxpy.gpx.GPXWaypoint(
+            latitude=round(float(lat), 7), longitude=round(float(lon), 7),
+            elevation=round(float(ele), 2), name=str(label),
+            description=None if description is None else str(description)))
+    return document.to_xml(version="1.1")
+
+
+def demo_route_paths() -> dict[str, Path]:
+    """The demo courses by name (file stem), sorted, the default first; {} if none is found."""
+    if not DEMO_ROUTES_DIR.is_dir():
+        return {}
+    return {path.stem: path for path in sorted(DEMO_ROUTES_DIR.glob("*.gpx"))}

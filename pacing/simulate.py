@@ -1,0 +1,609 @@
+"""Speed, time and energy along a course for a power plan: steady state and with inertia.
+
+The rider's power balance (pacing.cycling, Martin et al. 1998) with the kinetic-energy term::
+
+    m_eff·v·dv/dx = F_drive(v) − F_resist(v),   m_eff = m + I/r²,   F_drive = min(η·P/v, F_max)
+
+is integrated along the road distance x of each piece (grade, air and power are constant on a
+piece). The state is the speed; each step of length h solves the energy form of the balance
+implicitly (a trapezoidal rule on the forces, second order)::
+
+    ½·m_eff·(v1² − v0²) = W_drive − h·(F_resist(v0) + F_resist(v1))/2 − W_brake
+    W_drive = min(η·P·Δt, F_max·h),   Δt = 2h/(v0 + v1)
+
+Δt is exact for a uniform acceleration and finite from rest, so a standing start has no
+singularity: F_max caps the drive force at low speed (traction of the rear wheel: about 60 % of
+the weight on it times a tyre-road friction of 1.0, VTI rapport 952 via REFERENCES.md; the 60 %
+rear share is common practice). Steps are halved until the speed changes by at most ~2 % (and
+0.02 m/s) per step, so the start and sharp changes of grade are resolved; a steady piece takes one
+step. Because the energy terms are evaluated with the same rule that moves the rider, the energy
+balance closes to the solver's tolerance on every piece. Against scipy's solve_ivp (DOP853,
+rtol 1e-10) on the same model the finish time agrees to about 1e-5 on a hilly course of 10 m
+pieces, and the closed-form coasting solution to 2e-5 (tests/test_simulate.py).
+
+Speed caps (cornering √(a_lat·R), an optional maximum descent speed) are applied at the points
+with look-ahead: a backward pass on v² with the braking deceleration lowers each point's limit
+so the rider can slow down in time. When a piece would end above its limit the rider first
+eases off the pedals (down to coasting) and then brakes; the brakes' work is accounted. Above an
+optional coasting speed the rider stops pedalling (no brakes).
+
+Distances in a Course are horizontal; the road along a piece is longer by √(1 + G²), and
+speeds here are along the road (what a wheel sensor reads).
+
+References
+----------
+Martin, J.C., Milliken, D.L., Cobb, J.E., McFadden, K.L. & Coggan, A.R. (1998). Validation of a
+mathematical model for road cycling power. J Appl Biomech 14(3):276-291.
+doi:10.1123/jab.14.3.276
+Federal Highway Administration report FHWA-HRT-04-103 (riders' accepted lateral acceleration
+in curves; values via REFERENCES.md "Cornering").
+"""
+
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass
+
+import numpy as np
+
+from pacing.constants import STANDARD_GRAVITY
+from pacing.cycling import (
+    WALKING_SPEED,
+    Rider,
+    aerodynamic_force,
+    air_speed_components,
+    bearing_force,
+    gravity_force,
+    power_for_speed,
+    rolling_force,
+    speed_for_power,
+    yaw_multiplier,
+)
+from pacing.errors import InputError
+
+REAR_WHEEL_LOAD_SHARE = 0.6
+"""Share of the weight on the rear wheel of a seated rider [-] (common practice)."""
+
+TYRE_ROAD_FRICTION = 1.0
+"""Peak tyre-asphalt friction coefficient [-] (VTI rapport 952, via REFERENCES.md)."""
+
+_SPEED_CHANGE_RELATIVE = 0.02
+_SPEED_CHANGE_ABSOLUTE = 0.02
+_NEWTON_TOLERANCE = 1e-9
+
+
+@dataclass(frozen=True)
+class SimulationOptions:
+    """Choices of the inertial simulation.
+
+    Attributes
+    ----------
+    start_speed : speed at the start line [m/s]; 0 is a standing start. Lowered to the first
+        point's speed limit if above it.
+    lateral_acceleration : the most sideways acceleration the rider accepts in a curve [m/s²];
+        the corner speed limit is √(a_lat·R). Default 2.5 m/s² (≈ 0.25 g): riders observed by
+        FHWA-HRT-04-103 accepted 0.26 g at R = 15.3 m and 0.18-0.20 g at R = 25-27.5 m (0.61 g
+        only in a 3 m turn), far below tyre grip (≈ 1.0 g).
+    braking_deceleration : deceleration used to slow down ahead of a limit [m/s²]. Default
+        3.0 m/s² (≈ 0.3 g), about half the pitch-over limit of a conventional bicycle on dry
+        level road (0.5-0.6 g, from memory).
+    max_descent_speed : speed the rider never exceeds [m/s] (applied everywhere; it only binds
+        on descents or in strong tailwinds); None for no such limit.
+    coasting_speed : above this speed the rider stops pedalling [m/s]; None to always pedal.
+    minimum_speed : pieces ridden slower than this are flagged as walking pace [m/s]; if the
+        bike would stall, the rider walks it at this speed (that work counts as rider work).
+    max_drive_force : cap of the driving force at the rear wheel [N]; None for rear-wheel
+        traction, REAR_WHEEL_LOAD_SHARE·TYRE_ROAD_FRICTION·m·g (470 N for 80 kg). It acts only
+        at low speed, below η·P/F_max (0.5 m/s at 250 W), where η·P/v would grow without
+        bound; it makes a standing start finite.
+    """
+
+    start_speed: float = 0.0
+    lateral_acceleration: float = 2.5
+    braking_deceleration: float = 3.0
+    max_descent_speed: float | None = None
+    coasting_speed: float | None = None
+    minimum_speed: float = WALKING_SPEED
+    max_drive_force: float | None = None
+
+    def __post_init__(self) -> None:
+        def positive(value: float | None) -> bool:
+            return value is None or (math.isfinite(value) and value > 0)
+
+        checks = {
+            "start speed": math.isfinite(self.start_speed) and self.start_speed >= 0,
+            "lateral acceleration": positive(self.lateral_acceleration)
+            and self.lateral_acceleration is not None,
+            "braking deceleration": positive(self.braking_deceleration)
+            and self.braking_deceleration is not None,
+            "maximum descent speed": positive(self.max_descent_speed),
+            "coasting speed": positive(self.coasting_speed),
+            "minimum speed": positive(self.minimum_speed) and self.minimum_speed is not None,
+            "maximum drive force": positive(self.max_drive_force),
+        }
+        for name, ok in checks.items():
+            if not ok:
+                value = getattr(self, _OPTION_FIELDS[name])
+                raise InputError(f"{name} must be a positive number, got {value!r}")
+
+
+_OPTION_FIELDS = {
+    "start speed": "start_speed",
+    "lateral acceleration": "lateral_acceleration",
+    "braking deceleration": "braking_deceleration",
+    "maximum descent speed": "max_descent_speed",
+    "coasting speed": "coasting_speed",
+    "minimum speed": "minimum_speed",
+    "maximum drive force": "max_drive_force",
+}
+
+
+@dataclass(frozen=True, eq=False)
+class Prediction:
+    """Speed, time, power and energy along a course.
+
+    Point arrays (length N): distance [m] (horizontal, as in the Course), time [s] (cumulative
+    from the start), speed [m/s] (along the road).
+    Piece arrays (length N-1): power [W] (crank power actually applied, after easing off,
+    coasting and braking), air_speed [m/s] (apparent wind at the piece's mean speed), yaw [deg],
+    headwind [m/s]; energy per piece [J]: aero, rolling, bearing, drivetrain_loss, potential
+    (m·g·Δh), kinetic (½·m_eff·Δ(v²)), braking; walking (bool): mean speed below the walking
+    threshold.
+    """
+
+    distance: np.ndarray
+    time: np.ndarray
+    speed: np.ndarray
+    power: np.ndarray
+    air_speed: np.ndarray
+    yaw: np.ndarray
+    headwind: np.ndarray
+    aero: np.ndarray
+    rolling: np.ndarray
+    bearing: np.ndarray
+    drivetrain_loss: np.ndarray
+    potential: np.ndarray
+    kinetic: np.ndarray
+    braking: np.ndarray
+    walking: np.ndarray
+
+    @property
+    def piece_time(self) -> np.ndarray:
+        """Time on each piece [s], length N-1."""
+        return np.diff(self.time)
+
+    @property
+    def finish_time(self) -> float:
+        """Time from start to finish [s]."""
+        return float(self.time[-1] - self.time[0])
+
+    @property
+    def average_speed(self) -> float:
+        """Course distance over finish time [m/s]."""
+        return float(self.distance[-1] - self.distance[0]) / self.finish_time
+
+    @property
+    def average_power(self) -> float:
+        """Time-weighted mean crank power [W]."""
+        return self.work / self.finish_time
+
+    @property
+    def max_speed(self) -> float:
+        """Highest speed [m/s]."""
+        return float(np.max(self.speed))
+
+    @property
+    def work(self) -> float:
+        """Work done by the rider at the cranks [J]."""
+        return float(np.sum(self.power * self.piece_time))
+
+    @property
+    def energy_balance_residual(self) -> float:
+        """|rider work − (aero + rolling + bearing + drivetrain loss + Δpotential + Δkinetic +
+        braking)| relative to the rider work (or to the largest term when the rider did none)
+        [-]."""
+        terms = [self.aero, self.rolling, self.bearing, self.drivetrain_loss, self.potential,
+                 self.kinetic, self.braking]
+        sinks = sum(float(np.sum(term)) for term in terms)
+        scale = max(abs(self.work), max(abs(float(np.sum(term))) for term in terms), 1e-12)
+        return abs(self.work - sinks) / scale
+
+
+@dataclass(frozen=True)
+class SegmentResult:
+    """Summary of one segment of a Prediction.
+
+    index [-]; start, end : course distance [m]; length [m] (horizontal); grade : mean grade,
+    rise/run [-]; power : time-weighted mean crank power [W]; speed : length/time [m/s];
+    time [s]; max_speed [m/s].
+    """
+
+    index: int
+    start: float
+    end: float
+    length: float
+    grade: float
+    power: float
+    speed: float
+    time: float
+    max_speed: float
+
+
+def _piece_inputs(course, power, air) -> tuple[np.ndarray, ...]:
+    """Validate and broadcast power and air to piece arrays."""
+    pieces = len(course.distance) - 1
+    power = np.asarray(power, dtype=float)
+    if power.ndim == 0:
+        power = np.full(pieces, float(power))
+    if power.shape != (pieces,):
+        raise InputError(f"power must be one number or one per piece ({pieces}), "
+                         f"got {power.size} values")
+    if not np.all(np.isfinite(power)) or np.any(power < 0):
+        raise InputError("power must be finite and not negative")
+    arrays = []
+    for name in ("density", "headwind", "crosswind"):
+        value = np.asarray(getattr(air, name), dtype=float)
+        value = np.broadcast_to(value, (pieces,)) if value.ndim == 0 else value
+        if value.shape != (pieces,):
+            raise InputError(f"air {name} must have one value per piece ({pieces})")
+        if not np.all(np.isfinite(value)):
+            raise InputError(f"air {name} must be finite")
+        arrays.append(np.asarray(value, dtype=float))
+    if np.any(arrays[0] <= 0):
+        raise InputError("air density must be positive")
+    return power, arrays[0], arrays[1], arrays[2]
+
+
+def speed_limits(course, road_length: np.ndarray, options: SimulationOptions) -> np.ndarray:
+    """Highest speed at each point, with look-ahead braking [m/s], length N.
+
+    The cap at a point is min(√(a_lat·R), max_descent_speed). Reaching point j at no more than
+    its cap from point i needs v_i² ≤ cap_j² + 2·a_brake·(x_j − x_i), so
+
+        limit_i² = min over j ≥ i of (cap_j² + 2·a_brake·x_j) − 2·a_brake·x_i,
+
+    a reversed running minimum (one vectorized pass).
+
+    Parameters
+    ----------
+    course : Course (corner_radius per point [m]); road_length : per piece [m].
+    """
+    cap = np.sqrt(options.lateral_acceleration * np.asarray(course.corner_radius, dtype=float))
+    if options.max_descent_speed is not None:
+        cap = np.minimum(cap, options.max_descent_speed)
+    position = np.concatenate([[0.0], np.cumsum(road_length)])
+    key = cap**2 + 2.0 * options.braking_deceleration * position
+    running = np.minimum.accumulate(key[::-1])[::-1]
+    return np.sqrt(np.maximum(running - 2.0 * options.braking_deceleration * position, 0.0))
+
+
+class _Piece:
+    """One piece's constants for the scalar step solver (reused from piece to piece)."""
+
+    __slots__ = ("head", "cross", "k", "constant", "b", "a", "rho", "rider", "plain", "length",
+                 "m_eff", "drive_cap", "walking_speed")
+
+    def __init__(self, rider: Rider, m_eff: float, drive_cap: float,
+                 walking_speed: float) -> None:
+        self.rider = rider
+        self.plain = rider.yaw_drag_table is None
+        self.a = rider.bearing_force_constant
+        self.b = rider.bearing_force_per_speed
+        self.m_eff = m_eff
+        self.drive_cap = drive_cap
+        self.walking_speed = walking_speed
+        self.set(0.0, 1.2, 0.0, 0.0, 0.0)
+
+    def set(self, length: float, density: float, headwind: float, crosswind: float,
+            constant: float) -> None:
+        """Move to a piece: road length [m], air, and the speed-independent forces [N]."""
+        rider = self.rider
+        self.length = length
+        self.rho = density
+        self.head = headwind
+        self.cross = crosswind
+        self.k = 0.5 * density * (rider.drag_area * (1.0 - rider.drafting_reduction)
+                                  + rider.wheel_drag_area)
+        self.constant = constant
+
+    def aero(self, v: float) -> tuple[float, float]:
+        """Aerodynamic force [N] and its slope dF/dv [N·s/m] at ground speed v."""
+        along = v + self.head
+        apparent = math.hypot(along, self.cross)
+        k = self.k
+        if not self.plain:
+            yaw = math.degrees(math.atan2(self.cross, along))
+            rider = self.rider
+            k = 0.5 * self.rho * (rider.drag_area * float(yaw_multiplier(
+                yaw, rider.yaw_drag_table)) * (1.0 - rider.drafting_reduction)
+                + rider.wheel_drag_area)
+        slope = k * (apparent + along * along / apparent) if apparent > 0 else 0.0
+        return k * apparent * along, slope
+
+
+def _step(piece: _Piece, v0: float, resist0: float, h: float, drive: float, drive_cap: float,
+          m_eff: float) -> tuple[float, float]:
+    """Speed after a step of length h, and the drive work [J]; v1 < 0 when the bike stalls.
+
+    Solves R(v1) = ½m(v1² − v0²) − W(v1) + h·(F0 + F(v1))/2 = 0, with W(v1) =
+    min(drive·2h/(v0+v1), drive_cap·h): R is strictly increasing in v1, so Newton steps kept in
+    a bracket [0, high] converge to the unique root. The bike stalls when R(0) ≥ 0.
+    """
+    half_h = 0.5 * h
+    base = half_h * (resist0 + piece.constant) - 0.5 * m_eff * v0 * v0
+    b = piece.b
+    cap_work = drive_cap * h
+    drive_work = drive * 2.0 * h
+    plain = piece.plain
+    head, cross, k = piece.head, piece.cross, piece.k
+    low, high = 0.0, math.inf
+    low_checked = False
+    v1 = v0 if v0 > 0 else math.sqrt(2.0 * max(drive_cap, 1.0) * h / m_eff)
+    for _ in range(100):
+        if plain:
+            along = v1 + head
+            apparent = math.hypot(along, cross)
+            aero1 = k * apparent * along
+            aero_slope = k * (apparent + along * along / apparent) if apparent > 0 else 0.0
+        else:
+            aero1, aero_slope = piece.aero(v1)
+        total = v0 + v1
+        if total > 0 and drive_work < cap_work * total:
+            work = drive_work / total
+            work_slope = -work / total
+        else:
+            work = cap_work
+            work_slope = 0.0
+        value = 0.5 * m_eff * v1 * v1 - work + base + half_h * (aero1 + b * v1)
+        slope = m_eff * v1 - work_slope + half_h * (aero_slope + b)
+        if value > 0:
+            high = v1
+        else:
+            low = v1
+        newton = v1 - value / slope if slope > 0 else -1.0
+        if newton <= low or newton >= high:
+            if newton <= 0 and not low_checked:
+                low_checked = True
+                if low == 0.0 and v1 != 0.0:
+                    v1 = 0.0  # is there a root above zero at all?
+                    continue
+            if low == 0.0 and v1 == 0.0 and value >= 0:
+                return -1.0, 0.0
+            newton = 0.5 * (low + high) if high < math.inf else 2.0 * v1 + 1.0
+        if abs(newton - v1) <= _NEWTON_TOLERANCE * newton:
+            v1 = newton
+            break
+        v1 = newton
+    total = v0 + v1
+    work = drive_work / total if total > 0 and drive_work < cap_work * total else cap_work
+    return v1, work
+
+
+def _ride(piece: _Piece, v_start: float, drive: float
+          ) -> tuple[float, float, float, float, float]:
+    """Ride one piece at wheel power `drive` [W] from v_start with adaptive steps.
+
+    Returns (end speed [m/s], time [s], drive work [J], aero work [J], bearing work [J]). A step
+    is halved until the speed changes by at most ~2 % + 0.02 m/s; the next one tries twice the
+    length. If the bike stalls, the rider walks it at the walking speed and the work to do so
+    counts as drive work.
+    """
+    length, constant, a, b = piece.length, piece.constant, piece.a, piece.b
+    m_eff, drive_cap = piece.m_eff, piece.drive_cap
+    v_now = v_start
+    aero_now, _ = piece.aero(v_now)
+    done = 0.0
+    h = length
+    t_sum = work_sum = aero_sum = bearing_sum = 0.0
+    while done < length * (1.0 - 1e-12):
+        h = min(h, length - done)
+        resist_now = aero_now + constant + b * v_now
+        v_next, work = _step(piece, v_now, resist_now, h, drive, drive_cap, m_eff)
+        if v_next < 0:  # stalled: the rider walks the bike
+            v_next = piece.walking_speed
+            aero_next, _ = piece.aero(v_next)
+            resist_next = aero_next + constant + b * v_next
+            work = 0.5 * m_eff * (v_next**2 - v_now**2) + 0.5 * h * (resist_now + resist_next)
+        else:
+            change = abs(v_next - v_now)
+            allowed = _SPEED_CHANGE_RELATIVE * max(v_now, v_next) + _SPEED_CHANGE_ABSOLUTE
+            if change > allowed and h > 1e-9 * length:
+                h *= 0.25 if change > 4 * allowed else 0.5
+                continue
+            aero_next, _ = piece.aero(v_next)
+        t_sum += 2.0 * h / (v_now + v_next)
+        work_sum += work
+        aero_sum += 0.5 * h * (aero_now + aero_next)
+        bearing_sum += h * (a + 0.5 * b * (v_now + v_next))
+        done += h
+        v_now, aero_now = v_next, aero_next
+        h *= 2.0
+    return v_now, t_sum, work_sum, aero_sum, bearing_sum
+
+
+def _held_at(piece: _Piece, v_start: float, v_end: float
+             ) -> tuple[float, float, float, float, float]:
+    """One step over the piece ending exactly at v_end; the drive work it needs closes the
+    energy balance (negative: the brakes must take that much). Same tuple as _ride."""
+    length, a, b = piece.length, piece.a, piece.b
+    aero0, _ = piece.aero(v_start)
+    aero1, _ = piece.aero(v_end)
+    aero_work = 0.5 * length * (aero0 + aero1)
+    bearing_work = length * (a + 0.5 * b * (v_start + v_end))
+    need = (0.5 * piece.m_eff * (v_end**2 - v_start**2) + aero_work + bearing_work
+            + length * (piece.constant - a))
+    return v_end, 2.0 * length / (v_start + v_end), need, aero_work, bearing_work
+
+
+def simulate(course, power, rider: Rider, air, options: SimulationOptions | None = None
+             ) -> Prediction:
+    """Ride a power plan along a course with inertia, speed caps and braking.
+
+    Parameters
+    ----------
+    course : pacing.course.Course (N points).
+    power : planned crank power per piece [W], length N-1, or one number.
+    rider : pacing.cycling.Rider.
+    air : per-piece air (e.g. pacing.conditions.CourseAir): .density [kg/m³], .headwind [m/s]
+        (positive against the direction of travel), .crosswind [m/s]; arrays of length N-1.
+    options : SimulationOptions.
+
+    Returns
+    -------
+    Prediction. See the module docstring for the equations and the step rule.
+    """
+    options = options or SimulationOptions()
+    power, density, headwind, crosswind = _piece_inputs(course, power, air)
+    grade = np.asarray(course.grade, dtype=float)
+    horizontal = np.diff(np.asarray(course.distance, dtype=float))
+    road = horizontal * np.sqrt(1.0 + grade**2)
+    pieces = len(road)
+    limit = np.maximum(speed_limits(course, road, options), 0.1)
+
+    m_eff = rider.effective_mass
+    eta = rider.drivetrain_efficiency
+    rolling_per_piece = np.broadcast_to(rolling_force(grade, rider), grade.shape).astype(float)
+    gravity_per_piece = gravity_force(grade, rider)
+    drive_cap = (options.max_drive_force if options.max_drive_force is not None else
+                 REAR_WHEEL_LOAD_SHARE * TYRE_ROAD_FRICTION * rider.mass * STANDARD_GRAVITY)
+    coasting = options.coasting_speed
+    a_bearing = rider.bearing_force_constant
+
+    speed = np.empty(pieces + 1)
+    time = np.zeros(pieces + 1)
+    applied_work = np.zeros(pieces)
+    aero_energy = np.zeros(pieces)
+    bearing_energy = np.zeros(pieces)
+    braking_energy = np.zeros(pieces)
+    v = min(float(options.start_speed), float(limit[0]))
+    speed[0] = v
+
+    piece = _Piece(rider, m_eff, drive_cap, options.minimum_speed)
+    for i in range(pieces):
+        piece.set(float(road[i]), float(density[i]), float(headwind[i]), float(crosswind[i]),
+                  float(rolling_per_piece[i] + gravity_per_piece[i]) + a_bearing)
+        drive = eta * float(power[i])
+        v_start = v
+        result = _ride(piece, v_start, drive)
+        brake = 0.0
+        if coasting is not None and drive > 0 and result[0] > coasting:
+            coast = _ride(piece, v_start, 0.0)
+            result = coast
+            if coast[0] < coasting:  # ease off to end the piece at the coasting speed
+                eased = _held_at(piece, v_start, coasting)
+                result = eased if eased[2] >= 0 else coast
+        if result[0] > limit[i + 1]:
+            coast = result if result[2] == 0.0 else _ride(piece, v_start, 0.0)
+            result = _held_at(piece, v_start, float(limit[i + 1]))
+            if coast[0] > limit[i + 1] or result[2] < 0:
+                brake = max(-result[2], 0.0)
+                result = (*result[:2], 0.0, *result[3:])
+        v, t_piece, work, aero_work, bearing_work = result
+        speed[i + 1] = v
+        time[i + 1] = time[i] + t_piece
+        applied_work[i] = work / eta
+        aero_energy[i] = aero_work
+        bearing_energy[i] = bearing_work
+        braking_energy[i] = brake
+
+    piece_time = np.diff(time)
+    mean_speed = road / piece_time
+    along, apparent, yaw = air_speed_components(mean_speed, headwind, crosswind)
+    return Prediction(
+        distance=np.asarray(course.distance, dtype=float).copy(),
+        time=time,
+        speed=speed,
+        power=applied_work / piece_time,
+        air_speed=apparent,
+        yaw=yaw,
+        headwind=headwind.copy(),
+        aero=aero_energy,
+        rolling=rolling_per_piece * road,
+        bearing=bearing_energy,
+        drivetrain_loss=applied_work * (1.0 - eta),
+        potential=gravity_per_piece * road,
+        kinetic=0.5 * m_eff * np.diff(speed**2),
+        braking=braking_energy,
+        walking=mean_speed < options.minimum_speed,
+    )
+
+
+def steady_prediction(course, power, rider: Rider, air,
+                      minimum_speed: float = WALKING_SPEED) -> Prediction:
+    """Each piece ridden at its steady speed for the power (no inertia, no caps) [fast].
+
+    Speeds come from pacing.cycling.speed_for_power on every piece at once; time per piece is
+    road length / speed. Where a climb is too steep for the power the speed is floored at 0.05 m/s
+    (speed_for_power) and the work to hold it counts as rider work. Point speeds are the mean
+    of the adjacent pieces'. Kinetic and braking energy are zero.
+
+    Parameters
+    ----------
+    As simulate; minimum_speed : walking-pace flag threshold [m/s].
+    """
+    power, density, headwind, crosswind = _piece_inputs(course, power, air)
+    grade = np.asarray(course.grade, dtype=float)
+    road = np.diff(np.asarray(course.distance, dtype=float)) * np.sqrt(1.0 + grade**2)
+    piece_speed = speed_for_power(power, grade, density, rider, headwind, crosswind)
+    needed = power_for_speed(piece_speed, grade, density, rider, headwind, crosswind)
+    applied = np.maximum(power, needed)  # stalled pieces: the rider pushes at the floor speed
+    piece_time = road / piece_speed
+    time = np.concatenate([[0.0], np.cumsum(piece_time)])
+    point_speed = np.empty(len(road) + 1)
+    point_speed[0], point_speed[-1] = piece_speed[0], piece_speed[-1]
+    point_speed[1:-1] = 0.5 * (piece_speed[:-1] + piece_speed[1:])
+    along, apparent, yaw = air_speed_components(piece_speed, headwind, crosswind)
+    eta = rider.drivetrain_efficiency
+    return Prediction(
+        distance=np.asarray(course.distance, dtype=float).copy(),
+        time=time,
+        speed=point_speed,
+        power=applied,
+        air_speed=apparent,
+        yaw=yaw,
+        headwind=headwind.copy(),
+        aero=aerodynamic_force(piece_speed, density, rider, headwind, crosswind) * road,
+        rolling=np.broadcast_to(rolling_force(grade, rider), grade.shape) * road,
+        bearing=bearing_force(piece_speed, rider) * road,
+        drivetrain_loss=applied * piece_time * (1.0 - eta),
+        potential=gravity_force(grade, rider) * road,
+        kinetic=np.zeros(len(road)),
+        braking=np.zeros(len(road)),
+        walking=piece_speed < minimum_speed,
+    )
+
+
+def segment_results(course, prediction: Prediction, bounds) -> list[SegmentResult]:
+    """Per-segment summaries of a Prediction.
+
+    Parameters
+    ----------
+    course : the Course the prediction was made on.
+    prediction : Prediction.
+    bounds : boundary point indices, increasing, first 0, last N-1.
+    """
+    bounds = np.asarray(bounds, dtype=int)
+    n = len(prediction.distance)
+    if (bounds.ndim != 1 or bounds.size < 2 or bounds[0] != 0 or bounds[-1] != n - 1
+            or np.any(np.diff(bounds) <= 0)):
+        raise InputError("segment bounds must be increasing point indices from 0 to N-1")
+    distance = prediction.distance
+    elevation = np.asarray(course.elevation, dtype=float)
+    piece_work = prediction.power * prediction.piece_time
+    cumulative_work = np.concatenate([[0.0], np.cumsum(piece_work)])
+    results = []
+    for index, (first, last) in enumerate(zip(bounds[:-1], bounds[1:], strict=True)):
+        length = float(distance[last] - distance[first])
+        time = float(prediction.time[last] - prediction.time[first])
+        results.append(SegmentResult(
+            index=index,
+            start=float(distance[first]),
+            end=float(distance[last]),
+            length=length,
+            grade=float(elevation[last] - elevation[first]) / length,
+            power=float(cumulative_work[last] - cumulative_work[first]) / time,
+            speed=length / time,
+            time=time,
+            max_speed=float(np.max(prediction.speed[first:last + 1])),
+        ))
+    return results

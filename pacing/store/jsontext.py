@@ -1,0 +1,59 @@
+"""JSON values as stored text: strict (finite numbers only), deterministic, with clear errors.
+
+Plans keep their inputs and results as JSON text so that SQLite and PostgreSQL return exactly
+what was saved (a float is written by `repr`, which reads back to the same float).
+"""
+
+from __future__ import annotations
+
+import dataclasses
+import json
+import math
+from typing import Any
+
+from pacing.errors import InputError
+
+
+def to_json_value(value: Any, where: str) -> Any:
+    """A plain JSON value (dict with str keys, list, str, int, float, bool, None) from `value`.
+
+    Tuples become lists; dataclasses (Athlete, Setup) become dicts of their fields; numpy
+    scalars and arrays become Python numbers and lists. Raises InputError naming the place
+    (e.g. ``targets[3].power``) of a NaN, an infinity or a value that JSON cannot hold.
+    """
+    if value is None or isinstance(value, (bool, str)):
+        return value
+    if isinstance(value, int):
+        return int(value)
+    if isinstance(value, float):
+        if not math.isfinite(value):
+            raise InputError(f"{where} is not a finite number ({value}); use None for a "
+                             "missing value")
+        return float(value)
+    if isinstance(value, dict):
+        out = {}
+        for key, item in value.items():
+            if not isinstance(key, str):
+                raise InputError(f"{where} has a key that is not text: {key!r}")
+            out[key] = to_json_value(item, f"{where}.{key}")
+        return out
+    if isinstance(value, (list, tuple)):
+        return [to_json_value(item, f"{where}[{i}]") for i, item in enumerate(value)]
+    if dataclasses.is_dataclass(value) and not isinstance(value, type):  # Athlete, Setup, ...
+        return to_json_value(dataclasses.asdict(value), where)
+    tolist = getattr(value, "tolist", None)  # numpy scalars and arrays
+    if callable(tolist):
+        return to_json_value(tolist(), where)
+    raise InputError(f"{where} holds a {type(value).__name__}, which cannot be saved "
+                     "(use numbers, text, lists and dicts)")
+
+
+def dumps(value: Any, where: str) -> str:
+    """Stored text of a JSON value (validated by to_json_value)."""
+    return json.dumps(to_json_value(value, where), ensure_ascii=False, allow_nan=False,
+                      separators=(",", ":"))
+
+
+def loads(text: str) -> Any:
+    """The JSON value stored as `text`."""
+    return json.loads(text)

@@ -1,0 +1,220 @@
+"""Metric and imperial units at the edges (app, exports, command line).
+
+Inside the package every number is SI (m, s, kg, m/s) with temperature in °C (DEVELOPERS.md).
+This module converts those numbers to what a person reads and back, and formats clock times
+and paces. Nothing else in the package converts units.
+
+Exact factors (international yard and pound, 1959; NIST SP 811 (2008), Appendix B.8):
+1 ft = 0.3048 m, 1 mi = 1609.344 m, 1 lb = 0.45359237 kg, 1 mph = 0.44704 m/s;
+°F = °C·9/5 + 32.
+
+A *quantity* names what a number measures (``"speed"``, ``"distance"``, ``"elevation"``,
+``"mass"``, ``"temperature"``, ``"wind_speed"``); a *system* is ``"metric"`` or ``"imperial"``.
+"""
+
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass
+
+import numpy as np
+
+from pacing.errors import InputError
+
+FOOT = 0.3048
+"""[m] (exact)."""
+MILE = 1609.344
+"""[m] (exact)."""
+POUND = 0.45359237
+"""[kg] (exact)."""
+MILE_PER_HOUR = MILE / 3600.0
+"""[m/s] (exact: 0.44704)."""
+KILOMETRE_PER_HOUR = 1000.0 / 3600.0
+"""[m/s]."""
+
+SYSTEMS = ("metric", "imperial")
+"""The unit systems offered at the edges."""
+
+
+@dataclass(frozen=True)
+class DisplayUnit:
+    """How one quantity is shown: label, and the linear map display = si / scale + offset.
+
+    Attributes
+    ----------
+    label : unit symbol shown beside numbers ("km/h").
+    scale : size of one display unit in SI units (1 km/h = 0.2778 m/s) [SI per display unit].
+    offset : added after scaling (only temperatures use it) [display unit].
+    """
+
+    label: str
+    scale: float
+    offset: float = 0.0
+
+
+UNITS: dict[str, dict[str, DisplayUnit]] = {
+    "speed": {
+        "metric": DisplayUnit("km/h", KILOMETRE_PER_HOUR),
+        "imperial": DisplayUnit("mph", MILE_PER_HOUR),
+    },
+    "wind_speed": {
+        "metric": DisplayUnit("km/h", KILOMETRE_PER_HOUR),
+        "imperial": DisplayUnit("mph", MILE_PER_HOUR),
+    },
+    "distance": {
+        "metric": DisplayUnit("km", 1000.0),
+        "imperial": DisplayUnit("mi", MILE),
+    },
+    "elevation": {
+        "metric": DisplayUnit("m", 1.0),
+        "imperial": DisplayUnit("ft", FOOT),
+    },
+    "mass": {
+        "metric": DisplayUnit("kg", 1.0),
+        "imperial": DisplayUnit("lb", POUND),
+    },
+    "temperature": {
+        "metric": DisplayUnit("°C", 1.0),
+        "imperial": DisplayUnit("°F", 5.0 / 9.0, 32.0),
+    },
+}
+"""Display unit of each quantity in each system."""
+
+PACE_LABELS = {"metric": "min/km", "imperial": "min/mi"}
+"""Label of a pace in each system."""
+
+
+def _unit(quantity: str, system: str) -> DisplayUnit:
+    if system not in SYSTEMS:
+        raise InputError(f"unit system must be one of {', '.join(SYSTEMS)}, got {system!r}")
+    try:
+        return UNITS[quantity][system]
+    except KeyError:
+        raise InputError(f"unknown quantity {quantity!r}") from None
+
+
+def unit_label(quantity: str, system: str) -> str:
+    """Unit symbol of a quantity in a system, e.g. ``unit_label("speed", "imperial") == "mph"``.
+
+    ``quantity="pace"`` gives "min/km" or "min/mi".
+    """
+    if quantity == "pace":
+        _unit("speed", system)
+        return PACE_LABELS[system]
+    return _unit(quantity, system).label
+
+
+def to_display(value, quantity: str, system: str):
+    """SI value → the number shown in `system`: display = value / scale + offset.
+
+    Parameters
+    ----------
+    value : float or array in SI units (temperature in °C) [SI].
+    quantity : one of UNITS' keys.
+    system : "metric" or "imperial".
+    """
+    unit = _unit(quantity, system)
+    result = np.asarray(value, dtype=float) / unit.scale + unit.offset
+    return float(result) if result.ndim == 0 else result
+
+
+def from_display(value, quantity: str, system: str):
+    """Number shown in `system` → SI value: value_SI = (display − offset) · scale.
+
+    The inverse of `to_display`.
+    """
+    unit = _unit(quantity, system)
+    result = (np.asarray(value, dtype=float) - unit.offset) * unit.scale
+    return float(result) if result.ndim == 0 else result
+
+
+def pace_from_speed(speed, system: str):
+    """Time to cover one display distance unit (km or mile) at a speed [s per km or s per mi].
+
+    Parameters
+    ----------
+    speed : [m/s], > 0.
+    """
+    speed = np.asarray(speed, dtype=float)
+    if np.any(~np.isfinite(speed)) or np.any(speed <= 0):
+        raise InputError("pace needs a positive, finite speed")
+    result = _unit("distance", system).scale / speed
+    return float(result) if result.ndim == 0 else result
+
+
+def speed_from_pace(pace, system: str):
+    """Speed from a pace in seconds per km or per mile [m/s]; the inverse of pace_from_speed."""
+    pace = np.asarray(pace, dtype=float)
+    if np.any(~np.isfinite(pace)) or np.any(pace <= 0):
+        raise InputError("pace must be a positive time per distance")
+    result = _unit("distance", system).scale / pace
+    return float(result) if result.ndim == 0 else result
+
+
+def pace_per_km_to_display(pace_per_km, system: str):
+    """A pace in s/km (the package's pace unit) → s per display unit (km or mile)."""
+    return np.asarray(pace_per_km, dtype=float) * (_unit("distance", system).scale / 1000.0)
+
+
+def _check_finite(seconds: float, what: str) -> float:
+    try:
+        seconds = float(seconds)
+    except (TypeError, ValueError):
+        raise InputError(f"{what} must be a number, got {seconds!r}") from None
+    if not math.isfinite(seconds):
+        raise InputError(f"{what} is not a finite number")
+    if seconds < 0:
+        raise InputError(f"{what} must not be negative, got {seconds}")
+    return seconds
+
+
+def format_duration(seconds: float) -> str:
+    """Seconds → "H:MM:SS" (whole seconds, rounded half up; hours not wrapped at 24).
+
+    >>> format_duration(3725.4)
+    '1:02:05'
+    """
+    total = int(math.floor(_check_finite(seconds, "a duration") + 0.5))
+    hours, rest = divmod(total, 3600)
+    minutes, secs = divmod(rest, 60)
+    return f"{hours}:{minutes:02d}:{secs:02d}"
+
+
+def format_pace(seconds_per_unit: float) -> str:
+    """Seconds per km or mile → "M:SS" (rounded to whole seconds).
+
+    >>> format_pace(299.6)
+    '5:00'
+    """
+    total = int(math.floor(_check_finite(seconds_per_unit, "a pace") + 0.5))
+    minutes, secs = divmod(total, 60)
+    return f"{minutes}:{secs:02d}"
+
+
+def parse_clock(text: str, what: str = "time") -> float:
+    """"H:MM:SS", "M:SS" or plain seconds → seconds [s] (> 0); InputError otherwise."""
+    raw = str(text).strip()
+    try:
+        parts = [float(part) for part in raw.split(":")]
+    except ValueError:
+        raise InputError(f"{what} must look like H:MM:SS or M:SS, got {text!r}") from None
+    if not 1 <= len(parts) <= 3 or any(not math.isfinite(p) or p < 0 for p in parts):
+        raise InputError(f"{what} must look like H:MM:SS or M:SS, got {text!r}")
+    if len(parts) > 1 and any(p >= 60 for p in parts[1:]):
+        raise InputError(f"{what}: minutes and seconds must be below 60, got {text!r}")
+    seconds = 0.0
+    for part in parts:
+        seconds = seconds * 60.0 + part
+    if seconds <= 0:
+        raise InputError(f"{what} must be positive, got {text!r}")
+    return seconds
+
+
+def format_quantity(value, quantity: str, system: str, digits: int = 1) -> str:
+    """SI value → "12.3 km/h" style text in `system`; "–" for None or a non-finite value."""
+    if value is None:
+        return "–"
+    shown = to_display(float(value), quantity, system)
+    if not math.isfinite(shown):
+        return "–"
+    return f"{shown:.{digits}f} {unit_label(quantity, system)}"

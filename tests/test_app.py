@@ -1,0 +1,288 @@
+"""The web app, headless, through Streamlit's AppTest (streamlit.testing.v1).
+
+What a coach does: open the page (demo course, no setup), upload a GPX, change the power,
+switch to imperial units, make mistakes. Nothing may raise; every refusal is a message.
+"""
+
+from __future__ import annotations
+
+import math
+from pathlib import Path
+
+import gpxpy.gpx
+import pytest
+from streamlit.testing.v1 import AppTest
+
+APP = str(Path(__file__).resolve().parents[1] / "app.py")
+
+
+def small_gpx(length_km: float = 6.0, climb_m: float = 60.0) -> bytes:
+    """A made-up road heading north-east with one hill, points every ~20 m (GPX 1.1)."""
+    gpx = gpxpy.gpx.GPX()
+    track = gpxpy.gpx.GPXTrack(name="test hill road")
+    segment = gpxpy.gpx.GPXTrackSegment()
+    count = int(length_km * 50) + 1
+    for i in range(count):
+        along = i / (count - 1)
+        metres = along * length_km * 1000.0
+        lat = 47.0 + metres * math.cos(math.radians(40)) / 111_195.0
+        lon = 8.0 + metres * math.sin(math.radians(40)) / (111_195.0 * math.cos(math.radians(47)))
+        ele = 400.0 + climb_m * math.sin(math.pi * along) ** 2
+        segment.points.append(gpxpy.gpx.GPXTrackPoint(lat, lon, elevation=ele))
+    track.segments.append(segment)
+    gpx.tracks.append(track)
+    return gpx.to_xml(version="1.1").encode("utf-8")
+
+
+def started() -> AppTest:
+    app = AppTest.from_file(APP, default_timeout=120)
+    app.run()
+    return app
+
+
+def metric(app: AppTest, label: str) -> str:
+    for element in app.metric:
+        if element.label == label:
+            return element.value
+    raise AssertionError(f"no metric {label!r}; have {[m.label for m in app.metric]}")
+
+
+def no_failure(app: AppTest) -> None:
+    assert not app.exception, [e.value for e in app.exception]
+    for element in app.markdown:
+        assert "nan" not in element.value.lower().split(), element.value
+
+
+@pytest.fixture(scope="module")
+def app() -> AppTest:
+    return started()
+
+
+def test_starts_on_the_demo_course_with_a_plan(app):
+    no_failure(app)
+    assert not app.error, [e.value for e in app.error]
+    assert metric(app, "Distance").endswith(" km")
+    finish = metric(app, "Finish time")
+    assert finish.count(":") == 2
+    table = app.dataframe[0].value
+    assert len(table) >= 2
+    assert "Target power [W]" in table.columns
+    assert any("estimates, not safe limits" in w.value for w in app.warning)
+    assert len(app.get("download_button")) == 5
+
+
+def test_changing_power_changes_the_finish_time():
+    app = started()
+    before = metric(app, "Finish time")
+    app.number_input(key="mean_power:metric").set_value(320.0).run()
+    no_failure(app)
+    after = metric(app, "Finish time")
+    assert after != before
+    assert after < before  # more power, sooner home (same H:MM:SS width)
+
+
+def test_uploading_a_gpx_updates_the_table():
+    app = started()
+    before = app.dataframe[0].value
+    app.file_uploader(key="upload_gpx").set_value(
+        ("hill road.gpx", small_gpx(6.0), "application/gpx+xml")).run()
+    no_failure(app)
+    assert not app.error, [e.value for e in app.error]
+    after = app.dataframe[0].value
+    assert after["To [km]"].iloc[-1] == pytest.approx(6.0, abs=0.1)
+    assert after["To [km]"].iloc[-1] != before["To [km]"].iloc[-1]
+    assert metric(app, "Distance").startswith("6.0")
+
+
+@pytest.mark.parametrize("content", [b"", b"this is not a GPX file", b"<gpx><trk></trk></gpx>",
+                                     b'<?xml version="1.0"?><!DOCTYPE x [<!ENTITY a "b">]><gpx/>'])
+def test_a_broken_gpx_shows_a_message_not_an_exception(content):
+    app = started()
+    app.file_uploader(key="upload_gpx").set_value(("broken.gpx", content, "application/gpx+xml"))
+    app.run()
+    no_failure(app)
+    assert app.error, "expected an error message in the page"
+    assert all("Traceback" not in e.value for e in app.error)
+    assert not app.get("download_button")
+
+
+def test_imperial_switch_changes_units():
+    app = started()
+    app.radio(key="units").set_value("imperial").run()
+    no_failure(app)
+    assert metric(app, "Distance").endswith(" mi")
+    assert metric(app, "Average speed").endswith(" mph")
+    columns = app.dataframe[0].value.columns
+    assert "From [mi]" in columns and "Speed [mph]" in columns
+    labels = [n.label for n in app.number_input]
+    assert "Athlete mass [lb]" in labels and "Air temperature [°F]" in labels
+
+
+def test_imperial_switch_keeps_the_physical_values():
+    app = started()
+    finish = metric(app, "Finish time")
+    app.radio(key="units").set_value("imperial").run()
+    assert metric(app, "Finish time") == finish
+    # 72 kg shows as 158.7 lb (1 lb = 0.45359237 kg exactly, NIST SP 811)
+    assert app.number_input(key="body_mass:imperial").value == pytest.approx(158.7, abs=0.05)
+
+
+def test_bad_split_marks_show_a_message():
+    app = started()
+    app.radio(key="split_mode").set_value("my own marks").run()
+    app.text_input(key="split_marks").set_value("5, ten, 20").run()
+    no_failure(app)
+    assert any("split marks" in e.value for e in app.error)
+    app.text_input(key="split_marks").set_value("5, 500").run()
+    no_failure(app)
+    assert any("outside the course" in e.value for e in app.error)
+
+
+def test_unreachable_target_time_is_a_message():
+    app = started()
+    app.radio(key="approach").set_value("Reach a finish time").run()
+    app.text_input(key="target_time").set_value("0:30:00").run()
+    no_failure(app)
+    assert any("not reachable" in e.value for e in app.error)
+    app.text_input(key="target_time").set_value("half past").run()
+    no_failure(app)
+    assert any("H:MM:SS" in e.value for e in app.error)
+
+
+def test_running_shows_pace_targets():
+    app = started()
+    app.radio(key="sport").set_value("running").run()
+    no_failure(app)
+    assert not app.error, [e.value for e in app.error]
+    columns = app.dataframe[0].value.columns
+    assert "Target pace [min/km]" in columns
+    app.text_input(key="flat_pace:metric").set_value("4:00").run()
+    no_failure(app)
+    fast = metric(app, "Finish time")
+    app.text_input(key="flat_pace:metric").set_value("5:00").run()
+    assert metric(app, "Finish time") > fast
+
+
+def test_a_plan_beyond_the_athlete_warns_that_w_prime_runs_out():
+    app = started()
+    app.number_input(key="mean_power:metric").set_value(420.0).run()
+    no_failure(app)
+    assert any("W′ runs out at" in w.value for w in app.warning)
+
+
+def test_quickest_plan_reports_time_gained():
+    app = started()
+    app.radio(key="split_mode").set_value("fixed length").run()
+    app.radio(key="approach").set_value("Quickest within my limits").run()
+    no_failure(app)
+    assert not app.error, [e.value for e in app.error]
+    gained = metric(app, "Gained on even power")
+    assert gained.endswith(" s") and float(gained.split()[0]) >= 0
+
+
+def test_running_in_imperial_shows_minutes_per_mile():
+    app = started()
+    app.radio(key="units").set_value("imperial").run()
+    app.radio(key="sport").set_value("running").run()
+    no_failure(app)
+    assert "Target pace [min/mi]" in app.dataframe[0].value.columns
+    # 5:00 per km (the default) shows as 8:03 per mile (1 mi = 1.609344 km)
+    assert app.text_input(key="flat_pace:imperial").value == "8:03"
+
+
+# ------------------------------------------------------------------ the pieces the page uses
+
+class TestPipeline:
+    """The functions the widgets call, tested directly."""
+
+    def test_upload_path_reads_gpx_bytes(self):
+        from ui.pipeline import load_course_from_bytes
+
+        course = load_course_from_bytes(small_gpx(6.0), "hill road", 100.0, 0.25)
+        assert course.total_distance == pytest.approx(6000.0, rel=0.01)
+        assert course.ascent == pytest.approx(60.0, abs=5.0)
+
+    def test_empty_upload_is_an_input_error(self):
+        from pacing.errors import InputError
+        from ui.pipeline import load_course_from_bytes
+
+        with pytest.raises(InputError):
+            load_course_from_bytes(b"", "x", 100.0, 0.25)
+
+    @pytest.mark.parametrize("text,values", [("5, 12.5; 30", (5.0, 12.5, 30.0)), ("", ()),
+                                             ("7", (7.0,))])
+    def test_split_marks(self, text, values):
+        from ui.pipeline import parse_marks
+
+        assert parse_marks(text) == values
+
+    def test_bad_split_marks(self):
+        from pacing.errors import InputError
+        from ui.pipeline import parse_marks
+
+        with pytest.raises(InputError):
+            parse_marks("5, x")
+
+    def test_demo_routes_start_with_the_default(self):
+        from pacing.io.gpx import DEFAULT_DEMO_ROUTE
+        from ui.pipeline import demo_routes
+
+        routes = demo_routes()
+        assert routes, "no demo courses found"
+        assert Path(next(iter(routes.values()))).name == Path(DEFAULT_DEMO_ROUTE).name
+
+
+class TestFigures:
+    def course(self):
+        import numpy as np
+
+        from pacing.course import synthetic_course
+
+        distance = np.linspace(0.0, 10000.0, 1001)
+        return synthetic_course(distance, 200 + 40 * np.sin(distance / 1500.0),
+                                heading=np.linspace(0.0, 180.0, 1000))
+
+    def test_profile_is_shaded_by_grade_on_a_diverging_map_centred_on_zero(self):
+        from ui.figures import profile_figure
+
+        figure = profile_figure(self.course(), "metric", bounds=[0, 400, 1000])
+        bars = figure.data[0]
+        assert bars.marker.cmid == 0
+        assert bars.marker.cmin == -bars.marker.cmax
+        # plotly expands the name "balance" (cmocean, Thyng et al. 2016) into its colours
+        import plotly.colors
+
+        assert list(bars.marker.colorscale[0]) == [0.0, plotly.colors.cmocean.balance[0]]
+        assert figure.layout.yaxis.title.text == "elevation [m]"
+
+    def test_profile_in_imperial_is_in_feet_and_miles(self):
+        from ui.figures import profile_figure
+
+        figure = profile_figure(self.course(), "imperial")
+        assert figure.layout.yaxis.title.text == "elevation [ft]"
+        assert figure.layout.xaxis.title.text == "distance [mi]"
+        assert max(figure.data[2].x) == pytest.approx(10000 / 1609.344, rel=1e-6)
+
+    def test_map_has_no_tiles_and_a_wind_arrow(self):
+        from ui.figures import route_map_figure
+
+        figure = route_map_figure(self.course(), "metric", wind_speed=5.0, wind_from=270.0)
+        assert all(trace.type == "scatter" for trace in figure.data)
+        arrow = figure.layout.annotations[0]
+        # wind FROM the west blows TO the east: the tail sits left of the head (ax < 0)
+        assert arrow.showarrow and arrow.ax < 0 and abs(arrow.ay) < 1e-9
+        assert "18 km/h from 270°" in figure.layout.annotations[1].text  # 5 m/s = 18 km/h
+
+    def test_along_course_panels(self):
+        import numpy as np
+
+        from ui.figures import along_course_figure
+
+        course = self.course()
+        n = course.distance.size
+        figure = along_course_figure(course.distance, np.full(n, 10.0), np.full(n - 1, 250.0),
+                                     np.zeros(n - 1), np.linspace(2e4, 1e4, n), "metric")
+        assert len(figure.data) == 4
+        assert figure.data[0].y[0] == pytest.approx(36.0)  # 10 m/s = 36 km/h
+        running = along_course_figure(course.distance, np.full(n - 1, 4.0), system="imperial")
+        assert len(running.data) == 1

@@ -1,0 +1,90 @@
+"""Specification of ``pacing course ROUTE.gpx``: readable summary, --json, options, errors."""
+
+from __future__ import annotations
+
+import json
+import subprocess
+import sys
+from pathlib import Path
+
+import pytest
+
+from pacing.cli import main
+from pacing.io.gpx import DEFAULT_DEMO_ROUTE, load_course
+
+DATA = Path(__file__).parent / "data"
+
+
+def run(capsys, *argv):
+    code = main(["course", *map(str, argv)])
+    captured = capsys.readouterr()
+    return code, captured.out, captured.err
+
+
+def test_readable_summary_of_the_demo_loop(capsys):
+    code, out, err = run(capsys, DEFAULT_DEMO_ROUTE)
+    assert code == 0 and err == ""
+    course = load_course(DEFAULT_DEMO_ROUTE)
+    assert "Corravey hill loop" in out
+    assert f"{course.total_distance / 1000:.2f} km" in out
+    assert f"{course.ascent:.0f} m" in out and f"{course.raw_ascent:.0f} m" in out
+    for word in ("descent", "highest point", "lowest point", "Segments (by grade)", "climb"):
+        assert word in out
+
+
+def test_json_has_the_documented_keys_and_matches_the_library(capsys):
+    code, out, _ = run(capsys, DEFAULT_DEMO_ROUTE, "--json")
+    assert code == 0
+    summary = json.loads(out)
+    course = load_course(DEFAULT_DEMO_ROUTE)
+    assert summary["distance_m"] == pytest.approx(course.total_distance, abs=0.1)
+    assert summary["ascent_m"] == pytest.approx(course.ascent, abs=0.1)
+    assert summary["descent_m"] == pytest.approx(course.descent, abs=0.1)
+    assert summary["raw_ascent_m"] == pytest.approx(course.raw_ascent, abs=0.1)
+    segments = summary["segments"]
+    assert segments[0]["start_m"] == 0.0
+    assert segments[-1]["end_m"] == pytest.approx(summary["distance_m"], abs=0.1)
+    for first, second in zip(segments[:-1], segments[1:], strict=True):
+        assert first["end_m"] == second["start_m"]
+    for segment in segments:
+        assert {"start_m", "end_m", "grade", "ascent_m"} <= set(segment)
+    assert sum(s["ascent_m"] for s in segments) == pytest.approx(summary["ascent_m"], abs=1.0)
+
+
+def test_fixed_length_segments_and_step(capsys):
+    code, out, _ = run(capsys, DEFAULT_DEMO_ROUTE, "--json", "--segment-length", "5000",
+                       "--step", "20")
+    assert code == 0
+    summary = json.loads(out)
+    assert summary["step_m"] == 20.0
+    assert [s["start_m"] for s in summary["segments"]][:3] == [0.0, 5000.0, 10000.0]
+    assert len(summary["segments"]) == 9  # 8 x 5 km and the last 0.1 km
+
+
+def test_flat_option_reads_a_route_without_elevation(capsys):
+    code, _, err = run(capsys, DATA / "route_gpx11.gpx")
+    assert code == 2 and "no elevation" in err
+    code, out, err = run(capsys, DATA / "route_gpx11.gpx", "--flat", "--json")
+    assert code == 0 and json.loads(out)["ascent_m"] == 0.0
+    assert err == "pacing course: warning: GPX file has no elevation data: the course is " \
+        "treated as flat\n"
+
+
+@pytest.mark.parametrize(("argv", "message"), [
+    (["missing.gpx"], "not found"),
+    ([DATA / "two_tracks_gpx10.gpx", "--step", "0"], "step"),
+    ([DATA / "two_tracks_gpx10.gpx", "--segment-length", "-1"], "segment length"),
+])
+def test_bad_input_gives_one_line_and_exit_code_2(capsys, argv, message):
+    code, out, err = run(capsys, *argv)
+    assert code == 2 and out == ""
+    assert err.count("\n") == 1 and message in err and err.startswith("pacing course: error:")
+
+
+def test_a_broken_file_through_the_real_command_line(tmp_path):
+    broken = tmp_path / "broken.gpx"
+    broken.write_text("<gpx><trk>")
+    result = subprocess.run([sys.executable, "-m", "pacing", "course", str(broken)],
+                            capture_output=True, text=True, timeout=60)
+    assert result.returncode == 2
+    assert "Traceback" not in result.stderr and result.stderr.count("\n") == 1

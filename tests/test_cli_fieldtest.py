@@ -1,0 +1,142 @@
+"""``pacing fieldtest`` on synthetic test rides (see tests/test_fieldtest.py for the forward
+simulation and the published noise levels it uses)."""
+
+from __future__ import annotations
+
+import json
+
+import numpy as np
+import pytest
+from test_fieldtest import POWER_CV, TRUE_AREA, TRUE_ROLLING, simulate_loop_ride
+
+from pacing.cli import main
+
+# CIPM-2007 density at the CLI's default air (20 °C, 50 % RH, 101325 Pa): 1.19931 kg/m³
+# (REFERENCES.md [calc]); the rides are simulated in that air.
+DEFAULT_DENSITY = 1.19931
+
+
+def write_ride(path, drag_area=TRUE_AREA, seed=1, lap_powers=None, positions=True):
+    options = {} if lap_powers is None else {"lap_powers": lap_powers}
+    data = simulate_loop_ride(drag_area=drag_area, air_density=DEFAULT_DENSITY, **options)
+    rng = np.random.default_rng(seed)
+    power = data["power"] * (1 + POWER_CV * rng.standard_normal(data["time"].size))
+    columns = {"time_s": data["time"], "speed_mps": data["speed"], "power_w": power,
+               "elevation_m": data["elevation"]}
+    if positions:
+        columns.update(latitude=data["latitude"], longitude=data["longitude"])
+    lines = [",".join(columns)]
+    lines += [",".join(repr(float(v)) for v in row) for row in zip(*columns.values(),
+                                                                    strict=True)]
+    path.write_text("\n".join(lines) + "\n")
+    return path, data
+
+
+@pytest.fixture(scope="module")
+def ride_file(tmp_path_factory):
+    return write_ride(tmp_path_factory.mktemp("rides") / "hoods.csv")[0]
+
+
+def run_json(capsys, *args):
+    code = main(["fieldtest", *map(str, args), "--json", "--bootstrap", "300"])
+    captured = capsys.readouterr()
+    assert code == 0, captured.err
+    return json.loads(captured.out)
+
+
+def test_json_has_the_documented_keys_and_recovers_cda(capsys, ride_file):
+    result = run_json(capsys, ride_file, "--mass", 80)
+    for key in ("cda_m2", "crr", "cda_ci95", "crr_ci95", "laps", "method", "warnings"):
+        assert key in result
+    assert result["method"] == "loop"
+    assert result["laps"] == 6
+    assert result["cda_m2"] == pytest.approx(TRUE_AREA, rel=0.02)
+    assert result["crr"] == pytest.approx(TRUE_ROLLING, rel=0.10)
+    low, high = result["cda_ci95"]
+    assert low < result["cda_m2"] < high
+    assert len(result["crr_ci95"]) == 2
+    assert result["air_density_kg_m3"] == pytest.approx(DEFAULT_DENSITY, rel=2e-3)
+
+
+@pytest.mark.parametrize("method", ["profile", "regression"])
+def test_other_methods(capsys, ride_file, method):
+    result = run_json(capsys, ride_file, "--mass", 80, "--method", method)
+    assert result["method"] == method
+    assert result["cda_m2"] == pytest.approx(TRUE_AREA, rel=0.08)
+
+
+def test_fixed_crr_and_text_output(capsys, ride_file):
+    assert main(["fieldtest", str(ride_file), "--mass", "80", "--crr", "0.005",
+                 "--bootstrap", "100"]) == 0
+    out = capsys.readouterr().out
+    assert "CdA 0.29" in out or "CdA 0.30" in out
+    assert "Crr 0.00500 (held fixed)" in out
+
+
+def test_two_positions(capsys, tmp_path, ride_file):
+    aero, _ = write_ride(tmp_path / "aero.csv", drag_area=0.27, seed=2)
+    result = run_json(capsys, ride_file, aero, "--mass", 80, "--position", "hoods",
+                      "--position", "aero")
+    labels = [p["label"] for p in result["positions"]]
+    assert labels == ["hoods", "aero"]
+    (difference,) = result["differences"]
+    assert difference["cda_difference_m2"] == pytest.approx(-0.03, abs=0.006)
+    assert difference["significant"] is True
+
+
+def test_lap_times_without_positions(capsys, tmp_path):
+    path, data = write_ride(tmp_path / "nogps.csv", positions=False)
+    starts = [float(data["time"][np.argmin(np.abs(data["distance"] - 2000.0 * i))])
+              for i in range(7)]
+    result = run_json(capsys, path, "--mass", 80, "--laps", ",".join(f"{t:g}" for t in starts))
+    assert result["laps"] == 6
+    assert result["cda_m2"] == pytest.approx(TRUE_AREA, rel=0.02)
+
+
+def test_constant_power_laps_warn(capsys, tmp_path):
+    path, _ = write_ride(tmp_path / "steady.csv", lap_powers=(250.0,) * 6)
+    result = run_json(capsys, path, "--mass", 80)
+    assert any("speed variety" in w for w in result["warnings"])
+
+
+@pytest.mark.parametrize("args, message", [
+    (["missing.csv", "--mass", "80"], "ride file not found"),
+    (["{ride}", "--mass", "5"], "--mass must be 20-300 kg"),
+    (["{ride}", "--mass", "80", "--humidity", "150"], "--humidity must be 0-100 %"),
+    (["{ride}", "--mass", "80", "--laps", "a,b"], "--laps must be times"),
+    (["{ride}", "--mass", "80", "--position", "a", "--position", "b"], "one --position per"),
+    (["{bad}", "--mass", "80"], "missing column(s) power"),
+])
+def test_errors_are_one_line_with_exit_code_2(capsys, tmp_path, ride_file, args, message):
+    bad = tmp_path / "bad.csv"
+    bad.write_text("time_s,speed_mps\n0,9\n1,9\n")
+    args = [a.format(ride=ride_file, bad=bad) for a in args]
+    code = main(["fieldtest", *args])
+    err = capsys.readouterr().err
+    assert code == 2
+    assert message in err
+    assert err.count("\n") == 1 and "Traceback" not in err
+
+
+def test_gpx_ride_with_power_and_speed_extensions(capsys, tmp_path):
+    data = simulate_loop_ride(air_density=DEFAULT_DENSITY)
+    points = []
+    for i in range(data["time"].size):
+        second = int(data["time"][i])
+        stamp = f"2026-05-01T{10 + second // 3600:02d}:{second // 60 % 60:02d}:{second % 60:02d}Z"
+        points.append(
+            f'<trkpt lat="{data["latitude"][i]:.9f}" lon="{data["longitude"][i]:.9f}">'
+            f'<ele>{data["elevation"][i]:.2f}</ele><time>{stamp}</time><extensions>'
+            f'<power>{data["power"][i]:.0f}</power><tpx:TrackPointExtension>'
+            f'<tpx:speed>{data["speed"][i]:.3f}</tpx:speed></tpx:TrackPointExtension>'
+            "</extensions></trkpt>")
+    path = tmp_path / "loop.gpx"
+    path.write_text('<?xml version="1.0"?><gpx version="1.1" creator="test" '
+                    'xmlns="http://www.topografix.com/GPX/1/1" '
+                    'xmlns:tpx="http://example.org/TrackPointExtension/v2"><trk><trkseg>'
+                    + "".join(points) + "</trkseg></trk></gpx>")
+    result = run_json(capsys, path, "--mass", 80)
+    assert result["laps"] == 6
+    # speed rounded to 1 mm/s, power to 1 W in the file
+    assert result["cda_m2"] == pytest.approx(TRUE_AREA, rel=0.02)
+    assert result["crr"] == pytest.approx(TRUE_ROLLING, rel=0.10)

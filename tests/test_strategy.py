@@ -1,0 +1,353 @@
+"""Pacing plans: constant, target time and fastest under the athlete's limits (pacing.strategy).
+
+Courses are synthetic (pacing.course.synthetic_course), 10 m steps. The rider is the one of
+Atkinson, Peacock & Passfield 2007: 70 kg + 10 kg bike, Martin et al. 1998 constants, ρ 1.2,
+and the CdA 0.269 m² of the REFERENCES.md worked values (the paper's CdA is not in its abstract;
+from the worked values of REFERENCES.md, [calc]).
+"""
+
+from functools import lru_cache
+
+import numpy as np
+import pytest
+from hypothesis import given, settings
+from hypothesis import strategies as st
+from scipy import optimize
+
+from pacing.conditions import CourseAir, still_air
+from pacing.course import synthetic_course
+from pacing.cycling import Rider, speed_for_power
+from pacing.errors import InputError
+from pacing.physiology import effort_weighted_power, w_prime_balance
+from pacing.simulate import SimulationOptions, segment_results, simulate
+from pacing.strategy import (
+    PlanRequest,
+    fastest_steady_plan,
+    make_plan,
+    power_limits,
+    segment_model,
+    steady_segment_times,
+)
+
+RIDER = Rider(mass=80.0, drag_area=0.269)
+MEAN = 289.0
+FLYING = SimulationOptions(start_speed=10.0)
+
+
+@lru_cache
+def hilly():
+    """Atkinson et al. 2007 course (i): 10 km of alternating 1 km at +10 % and −10 %
+    (grades as in the abstract [read])."""
+    distance = np.arange(0.0, 10000.0 + 5.0, 10.0)
+    section = np.minimum(distance // 1000, 9)
+    into = distance - 1000.0 * section
+    elevation = np.where(section % 2 == 0, 0.1 * into, 100.0 - 0.1 * into)
+    course = synthetic_course(distance, elevation)
+    return course, np.arange(0, distance.size, 100), still_air(course, 1.2)
+
+
+@lru_cache
+def windy():
+    """Atkinson et al. 2007 course (ii): 40 km flat, alternating 5 km into a 4.4 m/s headwind
+    and with a 4.4 m/s tailwind (abstract [read])."""
+    distance = np.arange(0.0, 40000.0 + 5.0, 10.0)
+    course = synthetic_course(distance, np.zeros_like(distance))
+    middle = 0.5 * (distance[:-1] + distance[1:])
+    headwind = np.where((middle // 5000) % 2 == 0, 4.4, -4.4)
+    pieces = distance.size - 1
+    air = CourseAir(np.full(pieces, 1.2), headwind, np.zeros(pieces))
+    return course, np.arange(0, distance.size, 500), air
+
+
+def steady_total(model, power):
+    return float(steady_segment_times(model, power)[0].sum())
+
+
+def time_weighted_mean(model, power):
+    time = steady_segment_times(model, power)[0]
+    return float(np.sum(power * time) / time.sum())
+
+
+def rule_powers(model, air):
+    """The ±10 % rule of Atkinson et al.: +10 % up or into the wind, −10 % down or with it."""
+    headwind = (np.bincount(model.segment, air.headwind * model.length)
+                / np.bincount(model.segment, model.length))
+    harder = (model.mean_grade > 0) | (headwind > 0)
+    return np.where(harder, 1.1 * MEAN, 0.9 * MEAN)
+
+
+# ------------------------------------------------------------- Atkinson, Peacock & Passfield 2007
+
+
+@pytest.mark.parametrize("course, saved", [(hilly, 126.0), (windy, 51.0)])
+def test_the_papers_rule_saves_what_the_paper_reports(course, saved):
+    # Atkinson, Peacock & Passfield 2007, J Sports Sci 25:1001, abstract [read]: varying 289 W
+    # by ±10 % saves 126 s (hilly) and 51 s (windy). Steady state, as REFERENCES.md's [calc]
+    # reproduction (125.5 s, 51.2 s); the paper prints whole seconds.
+    course, bounds, air = course()
+    model = segment_model(course, bounds, RIDER, air)
+    constant = steady_total(model, np.full(model.count, MEAN))
+    rule = steady_total(model, rule_powers(model, air))
+    assert constant - rule == pytest.approx(saved, abs=1.0)
+
+
+@pytest.mark.parametrize("course, saved", [(hilly, 126.0), (windy, 51.0)])
+def test_fastest_plan_saves_at_least_the_rules_time_at_the_rules_mean_power(course, saved):
+    # The rule's plan is averaged over distance: its time-weighted mean power is above 289 W
+    # (more time is spent climbing or into the wind). At that same time-weighted mean power our
+    # plan is at least as fast as the rule, so it saves at least the paper's 126 s / 51 s
+    # against constant 289 W.
+    course, bounds, air = course()
+    model = segment_model(course, bounds, RIDER, air)
+    rule = rule_powers(model, air)
+    request = PlanRequest(strategy="fastest", mean_power=time_weighted_mean(model, rule))
+    power, report = fastest_steady_plan(model, request)
+    constant = steady_total(model, np.full(model.count, MEAN))
+    assert steady_total(model, power) <= steady_total(model, rule) + 1e-6
+    assert constant - steady_total(model, power) >= saved
+    assert report.method == "lagrange"
+
+
+@pytest.mark.parametrize("course, rule_saving", [(hilly, 31.5), (windy, 23.2)])
+def test_at_equal_time_weighted_mean_power_fastest_beats_the_rule(course, rule_saving):
+    # Holding the time-weighted mean at 289 W, the rule scaled to that mean saves 31.5 s on the
+    # hilly course and 23.2 s on the windy one (computed here; REFERENCES.md's 117.7 s for the
+    # hilly course [calc] could not be reproduced this way). The optimizer saves more on both.
+    course, bounds, air = course()
+    model = segment_model(course, bounds, RIDER, air)
+    rule = rule_powers(model, air)
+    scaled = rule * optimize.brentq(
+        lambda s: time_weighted_mean(model, rule * s) - MEAN, 0.5, 1.5, xtol=1e-12)
+    constant = steady_total(model, np.full(model.count, MEAN))
+    assert constant - steady_total(model, scaled) == pytest.approx(rule_saving, abs=0.1)
+    power, _ = fastest_steady_plan(model, PlanRequest(strategy="fastest", mean_power=MEAN))
+    assert time_weighted_mean(model, power) == pytest.approx(MEAN, rel=1e-9)
+    assert constant - steady_total(model, power) > rule_saving
+
+
+def test_verified_fastest_plan_on_the_hilly_course_saves_more_than_the_rule():
+    # Inertial simulation, verified mean power equal to the constant plan's (289 W).
+    course, bounds, air = hilly()
+    plan = make_plan(course, bounds, RIDER, air,
+                     PlanRequest(strategy="fastest", mean_power=MEAN), FLYING)
+    assert plan.mean_power == pytest.approx(MEAN, abs=0.02)
+    assert plan.reference.average_power == pytest.approx(MEAN, abs=0.02)
+    assert plan.time_saved >= 126.0
+    assert plan.residuals["mean_power_w"] == pytest.approx(0.0, abs=0.02)
+    assert "mean-power" in plan.binding
+
+
+# ------------------------------------------------------------- Bos, Slawinski et al. 2024
+
+
+@lru_cache
+def uneven_climb():
+    grades = np.array([0.04, 0.08, 0.06, 0.10, 0.03, 0.07])
+    distance = np.arange(0.0, 3000.0 + 5.0, 10.0)
+    grade = grades[np.minimum((distance[:-1] // 500).astype(int), 5)]
+    course = synthetic_course(distance, np.r_[0.0, np.cumsum(grade * 10.0)])
+    return course, np.arange(0, distance.size, 50), still_air(course, 1.2)
+
+
+def test_fastest_climb_of_an_uneven_slope_is_at_constant_ground_speed():
+    # Bos, Slawinski, Slawinski & Stanoev 2024 (arXiv:2403.03363, abstract [read]): under an
+    # average-power constraint the fastest ascent keeps a constant ground speed; constant power
+    # is slower unless the slope is constant.
+    course, bounds, air = uneven_climb()
+    model = segment_model(course, bounds, RIDER, air)
+    power, _ = fastest_steady_plan(model, PlanRequest(strategy="fastest", mean_power=300.0))
+    speed = speed_for_power(power[model.segment], model.grade, model.density, RIDER)
+    assert np.ptp(speed) / speed.mean() < 1e-9
+    assert np.ptp(power) > 200.0  # while the power varies a lot
+    plan = make_plan(course, bounds, RIDER, air,
+                     PlanRequest(strategy="fastest", mean_power=300.0),
+                     SimulationOptions(start_speed=float(speed[0])))
+    verified = np.array([r.speed for r in segment_results(course, plan.prediction, bounds)])
+    constant = np.array([r.speed for r in segment_results(course, plan.reference, bounds)])
+    assert np.ptp(verified) / verified.mean() < 0.01  # inertia smooths the steps slightly
+    assert np.ptp(constant) / constant.mean() > 0.5
+    assert plan.time_saved > 0
+
+
+# ------------------------------------------------------------- optimality evidence
+
+
+def test_lagrange_solution_matches_scipy_slsqp_on_the_full_problem():
+    # Reference: scipy.optimize.minimize (SLSQP) on the same steady model without the
+    # separable trick.
+    course, bounds, air = hilly()
+    model = segment_model(course, bounds, RIDER, air)
+    request = PlanRequest(strategy="fastest", mean_power=MEAN, max_power_ratio=1.3,
+                          min_power_ratio=0.6)
+    lower, upper = power_limits(model, request)
+    power, report = fastest_steady_plan(model, request)
+
+    def total(p):
+        return steady_total(model, p) / 1000.0
+
+    def mean_gap(p):
+        return time_weighted_mean(model, p) - MEAN
+
+    reference = optimize.minimize(total, np.full(model.count, MEAN), method="SLSQP",
+                                  bounds=list(zip(lower, upper, strict=True)),
+                                  constraints=[{"type": "eq", "fun": mean_gap}],
+                                  options={"ftol": 1e-12, "maxiter": 200})
+    assert reference.success
+    assert steady_total(model, power) <= 1000.0 * reference.fun + 1e-3
+    assert report.stationarity < 1e-6
+
+
+def test_flat_windless_course_gives_constant_power():
+    distance = np.arange(0.0, 20000.0 + 5.0, 10.0)
+    course = synthetic_course(distance, np.zeros_like(distance))
+    air = still_air(course, 1.2)
+    bounds = np.arange(0, distance.size, 100)
+    plan = make_plan(course, bounds, RIDER, air,
+                     PlanRequest(strategy="fastest", mean_power=250.0), FLYING)
+    np.testing.assert_allclose(plan.segment_power, 250.0, rtol=1e-6)
+    assert abs(plan.time_saved) < 0.01
+
+
+@lru_cache
+def random_course(seed: int):
+    rng = np.random.default_rng(seed)
+    distance = np.arange(0.0, 6000.0 + 5.0, 20.0)
+    section = np.minimum((distance[:-1] // 500).astype(int), 11)
+    grade = rng.uniform(-0.08, 0.10, 12)[section]
+    course = synthetic_course(distance, np.r_[0.0, np.cumsum(grade * 20.0)])
+    pieces = distance.size - 1
+    air = CourseAir(np.full(pieces, 1.15), rng.uniform(-5.0, 5.0, 12)[section],
+                    rng.uniform(-3.0, 3.0, 12)[section])
+    return course, np.arange(0, distance.size, 25), air
+
+
+@settings(max_examples=15, deadline=None)
+@given(st.integers(0, 10_000), st.floats(150.0, 400.0), st.sampled_from(["mean-power", "work"]))
+def test_fastest_is_never_slower_than_constant_at_the_same_mean(seed, mean, constraint):
+    course, bounds, air = random_course(seed)
+    model = segment_model(course, bounds, RIDER, air)
+    request = PlanRequest(strategy="fastest", mean_power=mean, constraint=constraint)
+    power, _ = fastest_steady_plan(model, request)
+    constant = np.full(model.count, mean)
+    assert steady_total(model, power) <= steady_total(model, constant) * (1 + 1e-12)
+    time = steady_segment_times(model, power)[0]
+    if constraint == "mean-power":
+        assert time_weighted_mean(model, power) == pytest.approx(mean, rel=1e-8)
+    else:
+        work = float(np.sum(power * time))
+        assert work == pytest.approx(mean * steady_total(model, constant), rel=1e-8)
+
+
+# ------------------------------------------------------------- limits on the verified ride
+
+
+def test_w_prime_reserve_holds_on_the_verified_ride():
+    course, bounds, air = hilly()
+    request = PlanRequest(strategy="fastest", mean_power=MEAN, critical_power=300.0,
+                          w_prime=20000.0, w_prime_reserve=2000.0)
+    plan = make_plan(course, bounds, RIDER, air, request, FLYING)
+    balance = np.r_[20000.0, w_prime_balance(plan.prediction.power,
+                                             plan.prediction.piece_time, 300.0, 20000.0)]
+    np.testing.assert_allclose(plan.w_prime_balance, balance)
+    assert balance.min() >= 2000.0 - 1e-6
+    assert plan.min_w_prime_balance == pytest.approx(balance.min())
+    assert plan.residuals["w_prime_reserve_j"] >= -1e-6
+    assert plan.mean_power == pytest.approx(MEAN, abs=0.02)
+    assert "w-prime-reserve" in plan.binding
+    assert plan.time_saved > 0
+    assert plan.segment_w_prime_balance.shape == (bounds.size - 1,)
+    assert plan.solver.method.startswith("lagrange+")
+
+
+def test_integral_w_prime_model_also_holds():
+    course, bounds, air = hilly()
+    request = PlanRequest(strategy="fastest", mean_power=MEAN, critical_power=300.0,
+                          w_prime=15000.0, w_prime_model="integral")
+    plan = make_plan(course, bounds, RIDER, air, request, FLYING)
+    assert plan.min_w_prime_balance >= -1e-6
+
+
+def test_effort_cap_and_power_bounds_hold_on_the_verified_ride():
+    course, bounds, air = hilly()
+    request = PlanRequest(strategy="fastest", mean_power=MEAN, critical_power=280.0,
+                          max_power_ratio=1.25, min_power_ratio=0.5,
+                          effort_weighted_cap=300.0)
+    plan = make_plan(course, bounds, RIDER, air, request, FLYING)
+    assert plan.segment_power.max() <= 1.25 * 280.0 + 1e-9
+    assert plan.segment_power.min() >= 0.5 * 280.0 - 1e-9
+    effort = effort_weighted_power(plan.prediction.power, plan.prediction.piece_time)
+    assert effort == pytest.approx(plan.effort_weighted_power)
+    assert effort <= 300.0 + 1e-6
+    assert plan.mean_power == pytest.approx(MEAN, abs=0.02)
+    assert plan.time_saved > 0
+
+
+def test_equal_work_constraint_on_the_verified_ride():
+    course, bounds, air = windy()
+    plan = make_plan(course, bounds, RIDER, air,
+                     PlanRequest(strategy="fastest", mean_power=MEAN, constraint="work"),
+                     FLYING)
+    assert plan.work == pytest.approx(plan.reference.work, rel=1e-5)
+    assert plan.time_saved > 0
+
+
+def test_a_mean_power_that_drains_w_prime_on_every_plan_is_refused():
+    course, bounds, air = hilly()
+    request = PlanRequest(strategy="fastest", mean_power=MEAN, critical_power=250.0,
+                          w_prime=20000.0)
+    with pytest.raises(InputError, match="W′"):
+        make_plan(course, bounds, RIDER, air, request, FLYING)
+
+
+# ------------------------------------------------------------- constant and target time
+
+
+def test_constant_plan_is_its_own_reference():
+    course, bounds, air = hilly()
+    plan = make_plan(course, bounds, RIDER, air,
+                     PlanRequest(strategy="constant", mean_power=MEAN), FLYING)
+    direct = simulate(course, np.full(course.distance.size - 1, MEAN), RIDER, air, FLYING)
+    assert plan.finish_time == pytest.approx(direct.finish_time)
+    assert plan.time_saved == 0.0
+    np.testing.assert_allclose(plan.segment_power, MEAN)
+
+
+def test_target_time_finds_the_constant_power_that_reaches_it():
+    course, bounds, air = hilly()
+    constant = simulate(course, np.full(course.distance.size - 1, 250.0), RIDER, air, FLYING)
+    plan = make_plan(course, bounds, RIDER, air,
+                     PlanRequest(strategy="target-time", target_time=constant.finish_time),
+                     FLYING)
+    assert plan.finish_time == pytest.approx(constant.finish_time, abs=0.05)
+    assert plan.reference_power == pytest.approx(250.0, abs=0.1)
+
+
+def test_target_time_beyond_what_cp_and_w_prime_allow_is_not_reachable():
+    course, bounds, air = hilly()
+    request = PlanRequest(strategy="target-time", target_time=1300.0, critical_power=300.0,
+                          w_prime=20000.0)
+    with pytest.raises(InputError, match="not reachable"):
+        make_plan(course, bounds, RIDER, air, request, FLYING)
+
+
+@pytest.mark.parametrize("fields", [
+    {"strategy": "quickest", "mean_power": 250.0},
+    {"strategy": "fastest"},
+    {"strategy": "target-time"},
+    {"strategy": "fastest", "mean_power": -5.0},
+    {"strategy": "fastest", "mean_power": 250.0, "constraint": "speed"},
+    {"strategy": "fastest", "mean_power": 250.0, "w_prime": 1000.0, "w_prime_reserve": 2000.0},
+    {"strategy": "fastest", "mean_power": 250.0, "band": 2.0},
+    {"strategy": "fastest", "mean_power": 250.0, "max_power_ratio": 0.5,
+     "min_power_ratio": 0.8},
+    {"strategy": "fastest", "mean_power": 250.0, "w_prime_model": "guess"},
+])
+def test_bad_requests_raise_input_error(fields):
+    with pytest.raises(InputError):
+        PlanRequest(**fields)
+
+
+def test_bad_bounds_raise_input_error():
+    course, _, air = hilly()
+    with pytest.raises(InputError):
+        segment_model(course, np.array([0, 50, 40, course.distance.size - 1]), RIDER, air)

@@ -1,0 +1,279 @@
+"""The app's calls into the library, as plain functions of plain inputs (no Streamlit here).
+
+app.py wraps these in st.cache_data / st.cache_resource keyed on file bytes and parameters;
+tests call them directly. No physics here: every number comes from `pacing`.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass, field, fields, replace
+from pathlib import Path
+
+import numpy as np
+
+from pacing.errors import InputError
+
+# ------------------------------------------------------------------------------------ course
+
+def demo_routes() -> dict[str, Path]:
+    """Demo courses by name, the default first."""
+    from pacing.io.gpx import DEFAULT_DEMO_ROUTE, demo_route_paths
+
+    paths = dict(demo_route_paths())
+    default = _default_demo_name(paths, DEFAULT_DEMO_ROUTE)
+    ordered = {default: paths[default]} if default else {}
+    ordered.update({name: path for name, path in sorted(paths.items()) if name != default})
+    return ordered
+
+
+def _default_demo_name(paths: dict[str, Path], default) -> str | None:
+    if default in paths:
+        return default
+    for name, path in paths.items():
+        if Path(path) == Path(str(default)) or Path(path).name == Path(str(default)).name:
+            return name
+    return next(iter(paths), None)
+
+
+def load_course_from_bytes(data: bytes, name: str, smoothing_window: float,
+                           max_grade: float):
+    """Parse a GPX file's bytes into a Course with the given elevation cleaning.
+
+    Parameters
+    ----------
+    data : the file's content.
+    name : label of the course.
+    smoothing_window : width of the elevation smoothing window [m].
+    max_grade : steepest grade kept after smoothing [-].
+    """
+    from pacing.course import ElevationSmoothing
+    from pacing.io.gpx import load_course
+
+    if not data:
+        raise InputError("the file is empty")
+    smoothing = ElevationSmoothing(window=float(smoothing_window), max_grade=float(max_grade))
+    return load_course(data, smoothing=smoothing, name=name)
+
+
+SPLIT_MODES = ("by terrain", "fixed length", "my own marks")
+"""How the course is cut into segments (our names): by grade, every N metres, at given marks."""
+
+
+def segment_bounds(course, mode: str, length: float | None = None,
+                   marks: tuple[float, ...] = ()) -> np.ndarray:
+    """Boundary point indices of the segments.
+
+    Parameters
+    ----------
+    mode : one of SPLIT_MODES.
+    length : segment length for "fixed length" [m].
+    marks : split distances from the start for "my own marks" [m].
+    """
+    from pacing.course import split_at, split_by_grade, split_every
+
+    if mode == "by terrain":
+        return split_by_grade(course)
+    if mode == "fixed length":
+        return split_every(course, length)
+    if mode == "my own marks":
+        if not marks:
+            raise InputError("enter at least one split mark, e.g. 5, 12.5, 30")
+        return split_at(course, list(marks))
+    raise InputError(f"unknown way to split the course: {mode!r}")
+
+
+def parse_marks(text: str) -> tuple[float, ...]:
+    """"5, 12.5; 30" → (5.0, 12.5, 30.0) in the units the user typed (converted by the caller)."""
+    parts = [p for p in text.replace(";", ",").replace(" ", ",").split(",") if p.strip()]
+    try:
+        values = tuple(float(p) for p in parts)
+    except ValueError:
+        raise InputError(f"split marks must be numbers separated by commas, got {text!r}") from None
+    if any(not np.isfinite(v) for v in values):
+        raise InputError("split marks must be finite numbers")
+    return values
+
+
+# ------------------------------------------------------------------------------- the outcome
+
+@dataclass(frozen=True, eq=False)
+class Outcome:
+    """What the results section shows, all SI.
+
+    Attributes
+    ----------
+    sport : "cycling" or "running".
+    finish_time [s], average_speed [m/s], max_speed [m/s], average_power [W] or None.
+    time_saved : against constant power at the same mean [s], or None.
+    distance, speed : per point [m], [m/s] (N).
+    power, headwind : per piece [W], [m/s] (N-1) or None.
+    w_prime_balance : per point or piece [J] or None.
+    rows : segment targets (pacing.targets.SegmentTarget or objects with the same fields).
+    notes : short remarks from the library (binding limits, solver messages).
+    exhausted_at : where the W′ (or D′) balance first falls below zero [m], or None.
+    """
+
+    sport: str
+    finish_time: float
+    average_speed: float
+    max_speed: float
+    average_power: float | None
+    time_saved: float | None
+    distance: np.ndarray
+    speed: np.ndarray
+    power: np.ndarray | None
+    headwind: np.ndarray | None
+    w_prime_balance: np.ndarray | None
+    rows: list
+    notes: list[str] = field(default_factory=list)
+    exhausted_at: float | None = None
+
+
+def _build(cls, values: dict):
+    """cls(**values) keeping only the fields cls has (the library may add or drop options)."""
+    names = {f.name for f in fields(cls)}
+    return cls(**{k: v for k, v in values.items() if k in names and v is not None})
+
+
+def conditions_from(values: dict):
+    """pacing.conditions.Conditions from a dict of SI values."""
+    from pacing.conditions import Conditions
+
+    return _build(Conditions, values)
+
+
+def check_finite(outcome: Outcome) -> Outcome:
+    """Refuse an outcome with NaN or infinite headline numbers (never shown to a user)."""
+    for name in ("finish_time", "average_speed", "max_speed"):
+        if not np.isfinite(getattr(outcome, name)):
+            raise InputError(f"the prediction gave no finite {name.replace('_', ' ')}; "
+                             "check the inputs")
+    return outcome
+
+
+def with_replaced(obj, **changes):
+    """dataclasses.replace for the fields obj has."""
+    names = {f.name for f in fields(obj)}
+    return replace(obj, **{k: v for k, v in changes.items() if k in names})
+
+
+# ---------------------------------------------------------------------------------- running
+
+RUNNING_PLANNERS = {
+    "equal-effort": "plan_equal_effort",
+    "even-pace": "plan_even_pace",
+    "fastest": "plan_fastest",
+}
+"""Running strategy name → pacing.running function."""
+
+
+def running_outcome(course, bounds, athlete: dict, weather: dict, approach: dict) -> Outcome:
+    """Plan a run with pacing.running and gather what the page shows.
+
+    Parameters
+    ----------
+    athlete : body_mass [kg], height [m], flat_pace [s/km], critical_speed [m/s], d_prime [m].
+    weather : pacing.conditions.Conditions fields (SI).
+    approach : {"strategy": one of RUNNING_PLANNERS}.
+    """
+    from pacing import running
+    from pacing.conditions import air_along_course
+
+    runner = running.Runner.from_body(athlete["body_mass"], height=athlete.get("height"))
+    air = air_along_course(course, conditions_from(weather))
+    strategy = approach.get("strategy", "equal-effort")
+    if strategy not in RUNNING_PLANNERS:
+        raise InputError(f"unknown running plan {strategy!r}")
+    common = dict(air_density=air.density, headwind=air.headwind, crosswind=air.crosswind,
+                  bounds=np.asarray(bounds))
+    if strategy == "fastest":
+        plan = running.plan_fastest(course, runner, athlete["critical_speed"],
+                                    athlete["d_prime"], **common)
+    else:
+        flat_speed = 1000.0 / athlete["flat_pace"]
+        plan = getattr(running, RUNNING_PLANNERS[strategy])(course, runner, flat_speed,
+                                                              **common)
+    rows = running_rows(plan)
+    return check_finite(Outcome(
+        sport="running", finish_time=plan.finish_time, average_speed=plan.average_speed,
+        max_speed=float(np.max(plan.speed)), average_power=None, time_saved=None,
+        distance=np.asarray(course.distance), speed=np.asarray(plan.speed), power=None,
+        headwind=np.asarray(air.headwind), w_prime_balance=None, rows=rows,
+        notes=list(plan.notes),
+    ))
+
+
+def cycling_plan(course, bounds, athlete: dict, weather: dict, approach: dict):
+    """The RacePlan (pacing.strategy.make_plan) for the page's inputs.
+
+    Parameters
+    ----------
+    athlete : body_mass, bike_mass [kg], drag_area [m²], rolling_coefficient [-],
+        drivetrain_efficiency [-], critical_power [W], w_prime [J].
+    weather : pacing.conditions.Conditions fields (SI).
+    approach : strategy ("constant" | "fastest" | "target-time"), mean_power [W],
+        target_time [s], max_power_ratio [-], w_prime_reserve [J].
+    """
+    from pacing.athlete import Athlete, Setup, rider_for
+    from pacing.conditions import air_along_course
+    from pacing.simulate import SimulationOptions
+    from pacing.strategy import PlanRequest, make_plan
+
+    person = _build(Athlete, athlete)
+    setup = _build(Setup, athlete)
+    rider = rider_for(person, setup)
+    air = air_along_course(course, conditions_from(weather))
+    request = _build(PlanRequest, {
+        **approach,
+        "critical_power": person.critical_power,
+        "w_prime": person.w_prime,
+    })
+    return make_plan(course, np.asarray(bounds), rider, air, request, SimulationOptions())
+
+
+def cycling_outcome(course, bounds, athlete: dict, weather: dict, approach: dict) -> Outcome:
+    """Plan a ride and gather what the page shows (see cycling_plan for the inputs)."""
+    plan = cycling_plan(course, bounds, athlete, weather, approach)
+    prediction = plan.prediction
+    rows = cycling_rows(course, plan)
+    notes = []
+    if plan.binding:
+        notes.append("limits reached: " + ", ".join(str(b) for b in plan.binding))
+    if np.any(np.asarray(prediction.walking)):
+        notes.append("the predicted speed drops to walking pace on part of the course")
+    strategy = approach.get("strategy", "constant")
+    exhausted_at = None
+    if plan.w_prime_balance is not None and np.min(plan.w_prime_balance) < 0:
+        first = int(np.argmax(np.asarray(plan.w_prime_balance) < 0))
+        exhausted_at = float(np.asarray(prediction.distance)[first])
+    return check_finite(Outcome(
+        sport="cycling", finish_time=float(prediction.finish_time),
+        average_speed=float(prediction.average_speed), max_speed=float(prediction.max_speed),
+        average_power=float(prediction.average_power),
+        time_saved=None if strategy == "constant" else float(plan.time_saved),
+        distance=np.asarray(prediction.distance), speed=np.asarray(prediction.speed),
+        power=np.asarray(prediction.power), headwind=np.asarray(prediction.headwind),
+        w_prime_balance=plan.w_prime_balance, rows=rows, notes=notes,
+        exhausted_at=exhausted_at,
+    ))
+
+
+def cycling_rows(course, plan) -> list:
+    """Segment target rows of a RacePlan (pacing.targets.target_table)."""
+    from pacing.targets import target_table
+
+    return list(target_table(course, plan.bounds, plan))
+
+
+def running_rows(plan) -> list:
+    """Segment target rows (pacing.targets.SegmentTarget) of a running plan: target pace,
+    expected speed, split and elapsed time, no power."""
+    from pacing.targets import SegmentTarget
+
+    return [
+        SegmentTarget(index=i, start=s.start, end=s.end, length=s.end - s.start, grade=s.grade,
+                      target_power=None, power_low=None, power_high=None, target_pace=s.pace,
+                      speed=s.speed, time=s.time, cumulative_time=s.cumulative_time,
+                      w_prime_balance=None, headwind=s.headwind)
+        for i, s in enumerate(plan.segments)
+    ]

@@ -1,0 +1,302 @@
+"""Page sections of the web app. Each draws its inputs and returns plain SI values (dicts),
+or draws results handed to it. No physics: numbers come from ui.pipeline (the library)."""
+
+from __future__ import annotations
+
+import functools
+
+import streamlit as st
+
+from pacing.errors import InputError
+from pacing.units import (
+    format_duration,
+    format_pace,
+    from_display,
+    parse_clock,
+    to_display,
+    unit_label,
+)
+from ui import text
+from ui.widgets import unit_number
+
+# ------------------------------------------------------------------------------------ route
+
+def route_facts(course, system: str) -> None:
+    """Distance, climbing (as recorded and cleaned), descent, highest and lowest point."""
+    cols = st.columns(4)
+    cols[0].metric("Distance", f"{to_display(course.total_distance, 'distance', system):.2f} "
+                   f"{unit_label('distance', system)}")
+    elev = unit_label("elevation", system)
+    cols[1].metric("Climbing, cleaned", f"{to_display(course.ascent, 'elevation', system):.0f} "
+                   f"{elev}")
+    raw = course.raw_ascent
+    cols[2].metric("Climbing, as recorded",
+                   f"{to_display(raw, 'elevation', system):.0f} {elev}" if raw == raw else "–")
+    cols[3].metric("Lowest / highest",
+                   f"{to_display(float(course.elevation.min()), 'elevation', system):.0f} / "
+                   f"{to_display(float(course.elevation.max()), 'elevation', system):.0f} {elev}")
+
+
+def segment_overview(course, bounds, system: str) -> None:
+    """The segments as a small table (kind, where, how long, how steep), folded away."""
+    import pandas as pd
+
+    from pacing.course import describe_segments
+
+    segments = describe_segments(course, bounds)
+    dist, elev = unit_label("distance", system), unit_label("elevation", system)
+    with st.expander(f"The {len(segments)} segments", expanded=False):
+        st.dataframe(pd.DataFrame({
+            "Segment": [s.index + 1 for s in segments],
+            "Terrain": [s.kind for s in segments],
+            f"From [{dist}]": [round(to_display(s.start, "distance", system), 2)
+                               for s in segments],
+            f"Length [{dist}]": [round(to_display(s.length, "distance", system), 2)
+                                 for s in segments],
+            "Mean grade [%]": [round(100 * s.mean_grade, 1) for s in segments],
+            "Steepest [%]": [round(100 * s.max_grade, 1) for s in segments],
+            f"Climbing [{elev}]": [round(to_display(s.ascent, "elevation", system))
+                                   for s in segments],
+        }), hide_index=True, key="segment_overview")
+
+
+def split_inputs(system: str) -> dict:
+    """How to cut the course into segments; returns {"mode", "length" [m], "marks" [m]}."""
+    from ui.pipeline import SPLIT_MODES, parse_marks
+
+    cols = st.columns([2, 2, 3])
+    mode = cols[0].radio("Segments", SPLIT_MODES, key="split_mode", horizontal=False,
+                         help="by terrain: climbs, flats and descents; fixed length: every "
+                              "so many km or miles; my own marks: where you say")
+    result = {"mode": mode, "length": None, "marks": ()}
+    dist = unit_label("distance", system)
+    if mode == "fixed length":
+        with cols[1]:
+            result["length"] = unit_number("Segment length", "distance", system, "split_length",
+                                           5000.0, 200.0, 100000.0, 0.5)
+    elif mode == "my own marks":
+        typed = cols[2].text_input(f"Split at [{dist} from the start, comma separated]",
+                                   value="5, 10, 20", key="split_marks")
+        shown = parse_marks(typed)
+        result["marks"] = tuple(float(from_display(v, "distance", system)) for v in shown)
+    return result
+
+
+def smoothing_inputs(system: str) -> dict:
+    """Elevation cleaning controls; returns {"window" [m], "max_grade" [-]}."""
+    with st.expander("Elevation cleaning (GPS heights are noisy)", expanded=False):
+        cols = st.columns(2)
+        with cols[0]:
+            window = unit_number("Smoothing window", "elevation", system, "smooth_window",
+                                 100.0, 0.0, 1000.0, 10.0,
+                                 help="heights are averaged over this stretch of road; 0 = off")
+        with cols[1]:
+            grade = unit_number("Steepest grade kept [%]", None, system, "max_grade_pct",
+                                25.0, 1.0, 100.0, 1.0,
+                                help="steeper stretches after smoothing are flattened to this")
+    return {"window": window, "max_grade": grade / 100.0}
+
+
+# --------------------------------------------------------------------------- athlete, setup
+
+def athlete_inputs(system: str) -> dict:
+    """Sport, athlete and equipment; returns a dict of SI values (keys by pacing.athlete)."""
+    sport = st.radio("Sport", ("cycling", "running"), key="sport", horizontal=True)
+    values: dict = {"sport": sport}
+    cols = st.columns(3)
+    with cols[0]:
+        values["body_mass"] = unit_number("Athlete mass", "mass", system, "body_mass", 72.0,
+                                          30.0, 200.0, 0.5)
+    if sport == "cycling":
+        with cols[1]:
+            values["bike_mass"] = unit_number("Bike and kit", "mass", system, "bike_mass", 8.0,
+                                              3.0, 40.0, 0.1,
+                                              help="bike, bottles, shoes, helmet")
+        with cols[2]:
+            values["critical_power"] = unit_number(
+                "Critical power [W]", None, system, "critical_power", 280.0, 50.0, 600.0, 5.0,
+                help="the power you can hold for about half an hour to an hour")
+            values["w_prime"] = 1000.0 * unit_number(
+                "W′ [kJ]", None, system, "w_prime_kj", 20.0, 1.0, 60.0, 0.5,
+                help="work you can do above critical power before you must ease off")
+        cols = st.columns(3)
+        with cols[0]:
+            preset = st.selectbox("Riding position", list(text.DRAG_AREA_PRESETS),
+                                  key="cda_preset", help=text.DRAG_AREA_GUIDE)
+            chosen = text.DRAG_AREA_PRESETS[preset]
+            if chosen is None:
+                values["drag_area"] = unit_number("CdA [m²]", None, system, "cda", 0.30, 0.10,
+                                                  0.80, 0.005, help=text.DRAG_AREA_GUIDE)
+            else:
+                values["drag_area"] = chosen
+        with cols[1]:
+            preset = st.selectbox("Road surface", list(text.ROLLING_PRESETS), key="crr_preset",
+                                  help=text.ROLLING_GUIDE)
+            chosen = text.ROLLING_PRESETS[preset]
+            if chosen is None:
+                values["rolling_coefficient"] = unit_number(
+                    "Crr [-]", None, system, "crr", 0.0032, 0.001, 0.05, 0.0005,
+                    help=text.ROLLING_GUIDE)
+            else:
+                values["rolling_coefficient"] = chosen
+        with cols[2]:
+            values["drivetrain_efficiency"] = unit_number(
+                "Drivetrain efficiency [%]", None, system, "efficiency_pct", 97.6, 85.0,
+                100.0, 0.1, help="share of crank power reaching the wheel; Martin et al. "
+                                 "(1998) measured 97.6 %") / 100.0
+        with st.expander("What the CdA and Crr values mean"):
+            st.markdown(text.DRAG_AREA_GUIDE)
+            st.markdown(text.ROLLING_GUIDE)
+    else:
+        with cols[1]:
+            values["height"] = unit_number("Height", "elevation", system, "height", 1.78,
+                                           1.2, 2.2, 0.01)
+        with cols[2]:
+            pace_label = unit_label("pace", system)
+            default = st.session_state.get("si:flat_pace", 300.0)
+            shown = default * (1609.344 / 1000.0 if system == "imperial" else 1.0)
+            typed = st.text_input(f"Flat pace, still air [{pace_label}, M:SS]",
+                                  value=format_pace(shown), key=f"flat_pace:{system}",
+                                  help="the pace you would hold for this race on flat ground")
+            seconds = parse_clock(typed, "flat pace")
+            per_km = seconds / (1609.344 / 1000.0) if system == "imperial" else seconds
+            if not 120.0 <= per_km <= 900.0:
+                raise InputError("flat pace must be between 2:00 and 15:00 per km")
+            st.session_state["si:flat_pace"] = per_km
+            values["flat_pace"] = per_km
+        cols = st.columns(3)
+        with cols[0]:
+            values["critical_speed"] = unit_number(
+                "Critical speed", "speed", system, "critical_speed", 4.5, 1.5, 7.0, 0.1,
+                help="the speed you can hold for about half an hour")
+        with cols[1]:
+            values["d_prime"] = unit_number("D′ [m]", None, system, "d_prime", 150.0, 10.0,
+                                            600.0, 5.0,
+                                            help="distance you can run beyond critical speed")
+    return values
+
+
+# -------------------------------------------------------------------------------- weather
+
+def weather_inputs(system: str, roughness_classes: dict[str, float] | None) -> dict:
+    """Conditions on the day; returns pacing.conditions.Conditions fields in SI."""
+    values: dict = {}
+    cols = st.columns(3)
+    with cols[0]:
+        values["temperature"] = unit_number("Air temperature", "temperature", system,
+                                            "temperature", 20.0, -30.0, 50.0, 0.5)
+        values["relative_humidity"] = unit_number("Relative humidity [%]", None, system,
+                                                  "humidity_pct", 50.0, 0.0, 100.0, 1.0) / 100
+        values["sea_level_pressure"] = 100.0 * unit_number(
+            "Sea-level pressure [hPa]", None, system, "pressure_hpa", 1013.25, 870.0, 1085.0,
+            0.25, help="the pressure weather reports give (reduced to sea level)")
+    with cols[1]:
+        values["wind_speed"] = unit_number("Wind speed", "wind_speed", system, "wind_speed",
+                                           0.0, 0.0, 40.0, 1.0,
+                                           help="as the forecast gives it, at its height")
+        values["wind_from"] = unit_number("Wind comes from [° from north]", None, system,
+                                          "wind_from", 270.0, 0.0, 360.0, 5.0,
+                                          help="0 = from the north, 90 = from the east")
+        values["wind_height"] = unit_number("Wind measured at", "elevation", system,
+                                            "wind_height", 10.0, 1.0, 100.0, 1.0,
+                                            help="weather stations measure at 10 m")
+    with cols[2]:
+        if roughness_classes:
+            names = list(roughness_classes)
+            default = names.index("open grassland") if "open grassland" in names else 0
+            terrain = st.selectbox("Terrain around the road", names, index=default,
+                                   key="terrain",
+                                   help="how rough the land is slows the wind near the ground "
+                                        "(Davenport-Wieringa classes)")
+            values["roughness_length"] = roughness_classes[terrain]
+            st.caption(f"roughness length z0 = {values['roughness_length']:g} m")
+    return values
+
+
+# ------------------------------------------------------------------------------ approach
+
+def approach_inputs(sport: str, athlete: dict) -> dict:
+    """The pacing plan and its limits; returns SI values."""
+    values: dict = {}
+    if sport == "cycling":
+        label = st.radio("Plan", list(text.APPROACHES), key="approach", horizontal=True)
+        values["strategy"] = text.APPROACHES[label]
+        cols = st.columns(3)
+        if values["strategy"] in ("constant", "fastest"):
+            with cols[0]:
+                default = round(0.85 * athlete.get("critical_power", 280.0) / 5) * 5
+                values["mean_power"] = unit_number(
+                    "Average power [W]", None, "metric", "mean_power", default, 30.0, 800.0,
+                    5.0, help="time-weighted mean of the crank power over the race")
+        else:
+            with cols[0]:
+                typed = st.text_input("Finish time to reach [H:MM:SS]", value="1:05:00",
+                                      key="target_time")
+                values["target_time"] = parse_clock(typed, "finish time")
+        if values["strategy"] != "constant":
+            with cols[1]:
+                values["max_power_ratio"] = unit_number(
+                    "Highest segment power [× critical power]", None, "metric",
+                    "max_power_ratio", 1.15, 0.5, 2.0, 0.05)
+            with cols[2]:
+                values["w_prime_reserve"] = 1000.0 * unit_number(
+                    "W′ to keep in hand [kJ]", None, "metric", "w_prime_reserve", 2.0, 0.0,
+                    50.0, 0.5)
+            values["allow_zero_on_descents"] = st.checkbox(
+                "Freewheeling allowed on descents", value=False, key="coast_descents",
+                help="descending segments may go down to 0 W")
+    else:
+        label = st.radio("Plan", list(text.RUNNING_APPROACHES), key="running_approach",
+                         horizontal=True)
+        values["strategy"] = text.RUNNING_APPROACHES[label]
+    return values
+
+
+# ------------------------------------------------------------------------------ results
+
+def outcome_headline(outcome, system: str) -> None:
+    """Finish time and average speed front and centre, then power and time saved."""
+    cols = st.columns(4)
+    cols[0].metric("Finish time", format_duration(outcome.finish_time))
+    cols[1].metric("Average speed",
+                   f"{to_display(outcome.average_speed, 'speed', system):.1f} "
+                   f"{unit_label('speed', system)}")
+    if outcome.average_power is not None:
+        cols[2].metric("Average power", f"{outcome.average_power:.0f} W")
+    else:
+        cols[2].metric("Top speed", f"{to_display(outcome.max_speed, 'speed', system):.1f} "
+                       f"{unit_label('speed', system)}")
+    if outcome.time_saved is not None:
+        cols[3].metric("Gained on even power", f"{outcome.time_saved:.0f} s",
+                       help="finish time of even power at the same average, minus this plan's")
+
+
+def downloads(outcome, course, table, system: str, title: str) -> None:
+    """CSV, XLSX, GPX with waypoints, and the printable card, as download buttons.
+
+    CSV is made now (cheap); the others only when their button is pressed.
+    """
+    from pacing.io import exports
+
+    base = "".join(c if c.isalnum() else "-" for c in title.lower()).strip("-") or "race"
+    cols = st.columns(5)
+    cols[0].download_button("Table · CSV", exports.table_to_csv(table),
+                            file_name=f"{base}-targets.csv", mime="text/csv", key="dl_csv",
+                            on_click="ignore")
+    cols[1].download_button(
+        "Table · Excel", functools.partial(exports.table_to_xlsx, table, title=title),
+        file_name=f"{base}-targets.xlsx", key="dl_xlsx", on_click="ignore",
+        mime="application/vnd.openxmlformats-officedocument.spreadsheetml.sheet")
+    cols[2].download_button(
+        "Route with targets · GPX",
+        functools.partial(exports.course_with_targets_gpx, course, outcome.rows, system),
+        file_name=f"{base}-targets.gpx", mime="application/gpx+xml", key="dl_gpx",
+        on_click="ignore")
+    cols[3].download_button(
+        "Stem card · PNG",
+        functools.partial(exports.target_card_png, outcome.rows, system, title),
+        file_name=f"{base}-card.png", mime="image/png", key="dl_png", on_click="ignore")
+    cols[4].download_button(
+        "Stem card · PDF",
+        functools.partial(exports.target_card_pdf, outcome.rows, system, title),
+        file_name=f"{base}-card.pdf", mime="application/pdf", key="dl_pdf", on_click="ignore")

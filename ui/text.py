@@ -1,0 +1,65 @@
+"""Words shown on the page: section titles, guidance and cautions (one place, our own names)."""
+
+SECTION_ROUTE = "1 · Route"
+SECTION_RIDER = "2 · Athlete and equipment"
+SECTION_WEATHER = "3 · Weather on the day"
+SECTION_APPROACH = "4 · Pacing approach"
+SECTION_OUTCOME = "5 · Predicted race"
+SECTION_TAKEAWAY = "6 · Take it with you"
+
+SPEED_CAUTION = (
+    "Predicted speeds, above all on descents, are model estimates, not safe limits. "
+    "Ride within your skills, the road and its traffic, traffic law and the race rules."
+)
+EXERTION_CAUTION = (
+    "Hard efforts strain the heart and body: consult a physician before racing or training "
+    "hard. Local rules and licensed medical and coaching practice come first."
+)
+
+DRAG_AREA_GUIDE = (
+    "Typical CdA (m²) by riding position, wind-tunnel studies:\n\n"
+    "| position | Defraeye et al. 2010 | Grappe et al. 1997 |\n"
+    "|---|---|---|\n"
+    "| upright, hands on the tops | ≈ 0.270 | ≈ 0.30 |\n"
+    "| hands in the drops | ≈ 0.243 | ≈ 0.28 |\n"
+    "| time-trial, on aero bars | ≈ 0.216 | ≈ 0.26 |\n\n"
+    "Static mannequin or rider; pedalling raises CdA by roughly 30 % in the tunnel "
+    "(García-López et al. 2008). Values quoted from memory of Defraeye et al., J Biomech "
+    "43:1262 (2010) and Grappe et al., Ergonomics 40:1299 (1997)."
+)
+ROLLING_GUIDE = (
+    "Typical Crr by surface (common practice, from memory): race tyre on smooth asphalt "
+    "0.0025-0.004 · ordinary asphalt 0.004-0.006 · rough chip-seal 0.006-0.010 · hard gravel "
+    "0.008-0.015 · loose gravel or grass 0.02-0.05."
+)
+
+DRAG_AREA_PRESETS = {
+    "upright (≈ 0.30)": 0.30,
+    "hands in the drops (≈ 0.27)": 0.27,
+    "aero bars (≈ 0.24)": 0.24,
+    "my own value": None,
+}
+"""Starting points for CdA, between the two studies above (rounded)."""
+
+ROLLING_PRESETS = {
+    "smooth asphalt, race tyres (0.0032)": 0.0032,
+    "ordinary asphalt (0.005)": 0.005,
+    "rough chip-seal (0.008)": 0.008,
+    "hard gravel (0.012)": 0.012,
+    "my own value": None,
+}
+"""Starting points for Crr from the ranges above (0.0032 is Martin et al. 1998's value)."""
+
+APPROACHES = {
+    "Even power": "constant",
+    "Quickest within my limits": "fastest",
+    "Reach a finish time": "target-time",
+}
+"""Cycling plan choices (label → pacing.strategy name)."""
+
+RUNNING_APPROACHES = {
+    "Equal effort on every grade": "equal-effort",
+    "Even pace (for comparison)": "even-pace",
+    "Quickest within my limits": "fastest",
+}
+"""Running plan choices (label → pacing.running name)."""
