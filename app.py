@@ -30,8 +30,8 @@ def read_demo(path: str) -> bytes:
 
 
 @st.cache_resource(max_entries=12, show_spinner="Reading the course…")
-def cached_course(data: bytes, name: str, window: float, max_grade: float):
-    return pipeline.load_course_from_bytes(data, name, window, max_grade)
+def cached_course(data: bytes, name: str, window: float, max_grade: float, allow_flat: bool):
+    return pipeline.load_course_from_bytes(data, name, window, max_grade, allow_flat)
 
 
 @st.cache_data(max_entries=64, show_spinner=False)
@@ -51,6 +51,9 @@ def cached_outcome(course_key: str, _course, bounds: tuple, athlete: tuple, weat
         return pipeline.cycling_outcome(*arguments), None
     except InputError as error:
         return None, str(error).splitlines()[0] if str(error) else "bad input"
+    except (ValueError, ArithmeticError, RuntimeError) as error:  # a model could not solve
+        first = str(error).splitlines()[0] if str(error) else type(error).__name__
+        return None, f"the model could not work out this race ({first}); check the inputs"
 
 
 @st.cache_resource(max_entries=32, show_spinner=False)
@@ -67,13 +70,14 @@ def cached_map(course_key: str, _course, system: str, wind_speed: float, wind_fr
 @st.cache_resource(max_entries=32, show_spinner=False)
 def cached_along(outcome_key: str, _outcome, system: str):
     return figures.along_course_figure(_outcome.distance, _outcome.speed, _outcome.power,
-                                       _outcome.headwind, _outcome.w_prime_balance, system)
+                                       _outcome.headwind, _outcome.w_prime_balance, system,
+                                       reserve="D′" if _outcome.sport == "running" else "W′")
 
 
-def show_error(error: Exception) -> None:
+def show_error(error: Exception, where: str = "") -> None:
     """One clear line in the page for a bad input."""
     message = str(error).splitlines()[0] if str(error) else type(error).__name__
-    st.error(f"⚠ {message}")
+    st.error(f"{where}: {message}" if where else message, icon="⚠️")
 
 
 # ------------------------------------------------------------------------------------- page
@@ -102,6 +106,8 @@ choice = cols[0].selectbox("Demo course", list(demos) or ["(none available yet)"
                            key="demo_route", disabled=not demos,
                            help="invented courses shipped with the program")
 upload = cols[1].file_uploader("…or your own course (GPX)", type=["gpx"], key="upload_gpx")
+allow_flat = cols[1].checkbox("A file without heights is a flat course", key="allow_flat",
+                              help="otherwise such a file is refused")
 smoothing = sections.smoothing_inputs(system)
 source_bytes, source_name = None, None
 if upload is not None:
@@ -113,20 +119,20 @@ if source_bytes is None:
 else:
     try:
         course = cached_course(source_bytes, source_name, smoothing["window"],
-                               smoothing["max_grade"])
+                               smoothing["max_grade"], allow_flat)
         course_key = (hashlib.sha1(source_bytes).hexdigest()
-                      + f":{smoothing['window']}:{smoothing['max_grade']}")
-    except InputError as error:
-        show_error(error)
+                      + f":{smoothing['window']}:{smoothing['max_grade']}:{allow_flat}")
+    except (InputError, ValueError, OSError) as error:
+        show_error(error, "Course file")
 if course is not None:
     sections.route_facts(course, system)
     try:
-        split = sections.split_inputs(system)
+        split = sections.split_inputs(system, course.total_distance)
         bounds = cached_bounds(course_key, course, split["mode"], split["length"],
                                split["marks"])
         sections.segment_overview(course, bounds, system)
     except InputError as error:
-        show_error(error)
+        show_error(error, "Segments")
     cols = st.columns([3, 2])
     with cols[0]:
         st.plotly_chart(cached_profile(course_key, course, system,
@@ -140,7 +146,7 @@ athlete = None
 try:
     athlete = sections.athlete_inputs(system)
 except InputError as error:
-    show_error(error)
+    show_error(error, "Athlete")
 
 # 3 · weather -----------------------------------------------------------------------------
 st.header(text.SECTION_WEATHER)
@@ -157,7 +163,7 @@ if athlete is not None:
     try:
         approach = sections.approach_inputs(athlete["sport"], athlete)
     except InputError as error:
-        show_error(error)
+        show_error(error, "Plan")
 
 # 5 · outcome -----------------------------------------------------------------------------
 st.header(text.SECTION_OUTCOME)
@@ -172,9 +178,9 @@ else:
     try:
         outcome, refusal = cached_outcome(course_key, course, *inputs)
         if refusal:
-            show_error(InputError(refusal))
+            show_error(InputError(refusal), "Prediction")
     except InputError as error:
-        show_error(error)
+        show_error(error, "Prediction")
 if outcome is not None:
     sections.outcome_headline(outcome, system)
     st.warning(text.SPEED_CAUTION)
@@ -192,7 +198,7 @@ if outcome is not None:
         table = segment_table(outcome.rows, system)
         st.dataframe(table, hide_index=True, key="targets")
     except InputError as error:
-        show_error(error)
+        show_error(error, "Target table")
     st.caption(text.EXERTION_CAUTION)
 
 # 6 · take it with you --------------------------------------------------------------------

@@ -25,14 +25,14 @@ def rolling_course(length: float, seed: int):
     rng = np.random.default_rng(seed)
     distance = np.arange(0.0, length + 0.5 * STEP, STEP)
     elevation = np.zeros_like(distance)
-    for wavelength, height in ((9000.0, 60.0), (2300.0, 18.0), (700.0, 5.0)):
+    for wavelength, height in ((9000.0, 30.0), (2300.0, 8.0), (700.0, 2.0)):
         elevation += height * np.sin(2 * np.pi * distance / wavelength + rng.uniform(0, 6.3))
     heading = (np.degrees(distance[:-1] / 6000.0) * 3.0) % 360.0
     course = synthetic_course(distance, elevation, heading=heading)
     wind_from = np.radians(240.0)
     relative = np.radians(course.heading) - wind_from
     pieces = distance.size - 1
-    air = CourseAir(np.full(pieces, 1.18), 4.0 * np.cos(relative), 4.0 * np.sin(relative))
+    air = CourseAir(np.full(pieces, 1.18), 3.0 * np.cos(relative), 3.0 * np.sin(relative))
     return course, air
 
 

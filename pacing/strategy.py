@@ -14,16 +14,25 @@ constant plan for an equal total work, and lo_k ≤ P_k ≤ hi_k. The problem se
 multiplier λ each segment minimises its own Lagrangian t_k(P)·(1 + λ·(P − c)) on [lo_k, hi_k]
 (its stationarity condition is t_k′·(1 + λ(P − c)) + λ·t_k = 0: every free segment buys the
 same time per joule), and λ is the root of the monotone E(P(λ)) = 0. Those two nested 1-D
-problems (a vectorised safeguarded Newton over all segments inside a bracketing root finder on
-λ) solve the pure mean-power case exactly. When the athlete's W′ balance or an
-effort-weighted power cap would be broken, scipy's SLSQP solves the full problem, starting from
-that solution, with analytic gradients of time and mean power and a forward-difference Jacobian
-of the W′ balance at segment ends.
+problems (a vectorised safeguarded Newton over all segments inside a safeguarded Newton on
+λ, dE/dλ = −Σ b_k²/a_k by implicit differentiation) solve the pure mean-power case exactly.
+
+When the athlete's W′ balance (reserve) or the effort cap would be broken:
+1. the broken limit gets a price in every segment's Lagrangian, μ·(P − CP)⁺·t_k for W′ spent
+   above CP or ν·P⁴·t_k for the effort measure, and the lowest price whose plan keeps the limit
+   is found by false position (the problem stays separable, so it is as fast as above);
+   when both limits break, the highest common power ceiling that keeps them is used instead;
+2. on up to _SLSQP_MAX_SEGMENTS segments, scipy's SLSQP then polishes that feasible plan on the
+   full problem (W′ balance at every segment end, recovery included), with analytic gradients
+   of time, mean power and W′ balance; its answer is kept only when feasible and faster.
+The solver's effort measure is the time-weighted 4th-power mean of the segment powers, an upper
+bound of the effort-weighted power (a 30 s rolling mean can only lower it).
 
 The plan is then verified by the inertial simulation (pacing.simulate) and corrected so the
-verified ride meets the constraints: powers are scaled to hit the mean power (or work) on the
-simulation, and the W′ reserve and the effort cap are re-checked; if the simulation breaks
-them, the solver is re-run with a margin.
+verified ride meets the constraints: the free segments' powers are scaled until the simulated
+mean power (or work) hits its target; the W′ reserve and the effort cap are re-checked on the
+simulated ride and, when broken (or held with needless slack), the solver runs again with the
+solver-side limit moved by secant steps.
 
 References
 ----------
@@ -68,7 +77,7 @@ STRATEGIES = ("constant", "fastest", "target-time")
 CONSTRAINTS = ("mean-power", "work")
 """What the fastest plan keeps equal to the constant plan: time-weighted mean power or work."""
 
-DEFAULT_MAX_POWER_RATIO = 2.5
+DEFAULT_MAX_POWER_RATIO = 1.5
 """Upper power bound relative to the mean power when the request sets none [-]: a safety cap
 so an unbounded optimum never asks for a sprint-level effort on a long climb."""
 
@@ -142,10 +151,6 @@ class PlanRequest:
             if not positive(getattr(self, name)):
                 raise InputError(f"{name.replace('_', ' ')} must be positive, "
                                  f"got {getattr(self, name)}")
-        if self.strategy in ("constant", "fastest") and self.mean_power is None:
-            raise InputError(f"the {self.strategy} plan needs a mean power (--power)")
-        if self.strategy == "target-time" and self.target_time is None:
-            raise InputError("the target-time plan needs a target time (--target-time)")
         if self.mean_power is not None and self.mean_power > MAXIMUM_PLAN_POWER:
             raise InputError(f"mean power {self.mean_power:g} W is beyond "
                              f"{MAXIMUM_PLAN_POWER:g} W")
@@ -355,7 +360,9 @@ class SolverReport:
 
     Attributes
     ----------
-    method : "constant", "lagrange" or "lagrange+slsqp".
+    method : "constant"; "lagrange" (coupling constraint and bounds only); "lagrange+price"
+        or "lagrange+ceiling" (a limit priced, or a common power ceiling), with "+slsqp" when
+        SLSQP improved that plan.
     multiplier : λ, time saved per joule-equivalent of the coupling constraint [s/J]
         (Lagrange stage); None when not used.
     iterations : solver iterations (outer root finding + SLSQP iterations).
@@ -480,7 +487,7 @@ def _segment_argmin(model, multiplier, centre, lower, upper, start, counter, pri
     low, high = lower.copy(), upper.copy()
     power = np.clip(start, lower, upper)
     kink = prices.critical_power
-    for _ in range(80):
+    for _ in range(60):
         time, dtime, d2time = steady_segment_times(model, power)
         counter[0] += 1
         weight = 1.0 + multiplier * (power - centre)
@@ -541,8 +548,14 @@ def _lagrange_plan(model, request, lower, upper, counter, prices=None, start=Non
     power = np.full(model.count, mean)
     if start is not None:  # a nearby problem's (λ, powers)
         multiplier, power = start[0], np.clip(start[1], lower, upper)
-    low, high = 0.0, math.inf
-    for iteration in range(1, 101):
+    guess = abs(multiplier)
+    # λ < 0 only happens when a priced effort limit pushes every power down
+    low = -math.inf if prices is not None and prices.effort > 0 else 0.0
+    high = math.inf
+    previous = math.inf
+    iterations = 0
+    for _ in range(60):
+        iterations += 1
         power, time, slope, curvature, free = _segment_argmin(
             model, multiplier, centre, lower, upper, power, counter, prices)
         excess = float(np.sum((power - centre) * time) - target)
@@ -555,19 +568,23 @@ def _lagrange_plan(model, request, lower, upper, counter, prices=None, start=Non
         usable = free & (curvature > 0)
         derivative = -float(np.sum(slope[usable] ** 2 / curvature[usable]))
         step = multiplier - excess / derivative if derivative < 0 else math.nan
-        if low < step < high:
+        slow = abs(excess) > 0.5 * previous  # Newton is not converging: bisect instead
+        previous = abs(excess)
+        if low < step < high and not (slow and math.isfinite(high - low)):
             multiplier = step
-        elif math.isfinite(high):
+        elif math.isfinite(high) and math.isfinite(low):
             multiplier = 0.5 * (low + high)
+        elif math.isfinite(high):
+            multiplier = high - 2.0 * max(abs(high), guess)
         else:
-            multiplier = 2.0 * multiplier
-        if math.isfinite(high) and high - low <= 1e-15 * high:
+            multiplier = low + 2.0 * max(abs(low), guess)
+        if math.isfinite(high - low) and high - low <= 1e-15 * max(abs(high), guess):
             break
     else:
         raise InputError("no plan within the power limits matches the mean power")
     if abs(excess) > 1e-6 * mean * float(time.sum()):
         raise InputError("no plan within the power limits matches the mean power")
-    return power, multiplier, iteration
+    return power, multiplier, iterations
 
 
 def _stationarity(model, power, multiplier, centre, lower, upper) -> float:
@@ -579,9 +596,10 @@ def _stationarity(model, power, multiplier, centre, lower, upper) -> float:
     return float(np.max(np.abs(gradient[free]) / np.abs(multiplier * time[free])))
 
 
-def _segment_w_prime(power, time, request, reserve_model=None) -> np.ndarray:
-    model = reserve_model or request.w_prime_model
-    return w_prime_balance(power, time, request.critical_power, request.w_prime, model)
+def _segment_w_prime(power, time, request) -> np.ndarray:
+    """W′ balance at the end of each segment of steady power [J]."""
+    return w_prime_balance(power, time, request.critical_power, request.w_prime,
+                           request.w_prime_model)
 
 
 def _w_prime_jacobian(power, time, dtime, request: PlanRequest) -> np.ndarray:
@@ -740,13 +758,13 @@ def _priced_plan(model, request, lower, upper, multiplier, reserve, cap, counter
     high = multiplier
     power, g_high = margin(high)
     steps = 1
-    while g_high < 0 and steps < 30:
+    while g_high < 0 and power is not None and steps < 30:
         low, g_low = high, g_high
         high *= 4.0
         power, g_high = margin(high)
         steps += 1
-    if g_high < 0:
-        return None, steps
+    if g_high < 0 or power is None:
+        return None, steps  # no price keeps the limit, or the priced problem has no plan
     if g_low is None:
         _, g_low = margin(0.0)
         steps += 1
@@ -795,7 +813,9 @@ def fastest_steady_plan(
 
     Returns
     -------
-    (segment power [W], SolverReport).
+    (segment power [W], SolverReport). Raises InputError when no plan meets the mean power
+    within the bounds, or keeps the W′ reserve / effort cap (e.g. a mean power above CP for
+    longer than W′ allows).
     """
     if lower is None or upper is None:
         lower, upper = power_limits(model, request)
@@ -1008,6 +1028,10 @@ def make_plan(course, bounds, rider: Rider, air, request: PlanRequest,
     """
     if not isinstance(request, PlanRequest):
         raise InputError("request must be a PlanRequest")
+    if request.strategy in ("constant", "fastest") and request.mean_power is None:
+        raise InputError(f"the {request.strategy} plan needs a mean power (--power)")
+    if request.strategy == "target-time" and request.target_time is None:
+        raise InputError("the target-time plan needs a target time (--target-time)")
     model = segment_model(course, bounds, rider, air)
     bounds = np.asarray(bounds, dtype=int)
     if request.strategy == "target-time":

@@ -7,13 +7,17 @@ switch to imperial units, make mistakes. Nothing may raise; every refusal is a m
 from __future__ import annotations
 
 import math
+import sys
 from pathlib import Path
 
 import gpxpy.gpx
 import pytest
 from streamlit.testing.v1 import AppTest
 
-APP = str(Path(__file__).resolve().parents[1] / "app.py")
+ROOT = Path(__file__).resolve().parents[1]
+APP = str(ROOT / "app.py")
+if str(ROOT) not in sys.path:  # the app's ui/ package sits beside app.py, not in pacing/
+    sys.path.insert(0, str(ROOT))
 
 
 def small_gpx(length_km: float = 6.0, climb_m: float = 60.0) -> bytes:
@@ -47,10 +51,22 @@ def metric(app: AppTest, label: str) -> str:
     raise AssertionError(f"no metric {label!r}; have {[m.label for m in app.metric]}")
 
 
+def targets(app: AppTest):
+    """The segment target table shown in the page (a pandas DataFrame)."""
+    for frame in app.dataframe:
+        if "Split [h:mm:ss]" in frame.value.columns:
+            return frame.value
+    raise AssertionError("no segment target table in the page")
+
+
 def no_failure(app: AppTest) -> None:
     assert not app.exception, [e.value for e in app.exception]
     for element in app.markdown:
         assert "nan" not in element.value.lower().split(), element.value
+    for element in app.metric:
+        assert "nan" not in element.value.lower(), element.value
+    for frame in app.dataframe:
+        assert not frame.value.isna().any().any(), frame.value
 
 
 @pytest.fixture(scope="module")
@@ -64,7 +80,7 @@ def test_starts_on_the_demo_course_with_a_plan(app):
     assert metric(app, "Distance").endswith(" km")
     finish = metric(app, "Finish time")
     assert finish.count(":") == 2
-    table = app.dataframe[0].value
+    table = targets(app)
     assert len(table) >= 2
     assert "Target power [W]" in table.columns
     assert any("estimates, not safe limits" in w.value for w in app.warning)
@@ -83,12 +99,12 @@ def test_changing_power_changes_the_finish_time():
 
 def test_uploading_a_gpx_updates_the_table():
     app = started()
-    before = app.dataframe[0].value
+    before = targets(app)
     app.file_uploader(key="upload_gpx").set_value(
         ("hill road.gpx", small_gpx(6.0), "application/gpx+xml")).run()
     no_failure(app)
     assert not app.error, [e.value for e in app.error]
-    after = app.dataframe[0].value
+    after = targets(app)
     assert after["To [km]"].iloc[-1] == pytest.approx(6.0, abs=0.1)
     assert after["To [km]"].iloc[-1] != before["To [km]"].iloc[-1]
     assert metric(app, "Distance").startswith("6.0")
@@ -112,7 +128,7 @@ def test_imperial_switch_changes_units():
     no_failure(app)
     assert metric(app, "Distance").endswith(" mi")
     assert metric(app, "Average speed").endswith(" mph")
-    columns = app.dataframe[0].value.columns
+    columns = targets(app).columns
     assert "From [mi]" in columns and "Speed [mph]" in columns
     labels = [n.label for n in app.number_input]
     assert "Athlete mass [lb]" in labels and "Air temperature [°F]" in labels
@@ -154,7 +170,7 @@ def test_running_shows_pace_targets():
     app.radio(key="sport").set_value("running").run()
     no_failure(app)
     assert not app.error, [e.value for e in app.error]
-    columns = app.dataframe[0].value.columns
+    columns = targets(app).columns
     assert "Target pace [min/km]" in columns
     app.text_input(key="flat_pace:metric").set_value("4:00").run()
     no_failure(app)
@@ -185,7 +201,7 @@ def test_running_in_imperial_shows_minutes_per_mile():
     app.radio(key="units").set_value("imperial").run()
     app.radio(key="sport").set_value("running").run()
     no_failure(app)
-    assert "Target pace [min/mi]" in app.dataframe[0].value.columns
+    assert "Target pace [min/mi]" in targets(app).columns
     # 5:00 per km (the default) shows as 8:03 per mile (1 mi = 1.609344 km)
     assert app.text_input(key="flat_pace:imperial").value == "8:03"
 
@@ -286,3 +302,36 @@ class TestFigures:
         assert figure.data[0].y[0] == pytest.approx(36.0)  # 10 m/s = 36 km/h
         running = along_course_figure(course.distance, np.full(n - 1, 4.0), system="imperial")
         assert len(running.data) == 1
+
+
+def test_a_gpx_without_heights_is_refused_or_flat_on_request():
+    app = started()
+    flat = small_gpx(5.0).replace(b"<ele>", b"<!--").replace(b"</ele>", b"-->")
+    app.file_uploader(key="upload_gpx").set_value(("flat.gpx", flat, "application/gpx+xml"))
+    app.run()
+    no_failure(app)
+    assert any("elevation" in e.value for e in app.error)
+    app.checkbox(key="allow_flat").check().run()
+    no_failure(app)
+    assert not app.error, [e.value for e in app.error]
+    assert metric(app, "Climbing, cleaned") == "0 m"
+
+
+def test_running_quickest_plan_within_critical_speed():
+    app = started()
+    app.radio(key="sport").set_value("running").run()
+    app.radio(key="running_approach").set_value("Quickest within my limits").run()
+    no_failure(app)
+    assert not app.error, [e.value for e in app.error]
+    assert "Target pace [min/km]" in targets(app).columns
+
+
+def test_runner_reserve_panel_is_in_metres():
+    import numpy as np
+
+    from ui.figures import along_course_figure
+
+    distance = np.linspace(0.0, 1000.0, 11)
+    figure = along_course_figure(distance, np.full(10, 4.0), w_prime_balance=np.full(10, 90.0),
+                                 reserve="D′")
+    assert figure.layout.yaxis2.title.text == "D′ left [m]"

@@ -53,11 +53,11 @@ def _free_port() -> int:
 
 
 @pytest.fixture(scope="module")
-def server():
+def server(tmp_path_factory):
     _require_browser()
     port = _free_port()
-    log = open(ROOT / ".pytest_cache" / f"streamlit-{port}.log", "w") if (
-        ROOT / ".pytest_cache").is_dir() else subprocess.DEVNULL
+    log_path = tmp_path_factory.mktemp("streamlit") / "server.log"
+    log = open(log_path, "w")  # noqa: SIM115 (closed in the finally below)
     process = subprocess.Popen(
         [sys.executable, "-m", "streamlit", "run", str(ROOT / "app.py"),
          "--server.port", str(port), "--server.address", "127.0.0.1",
@@ -70,7 +70,7 @@ def server():
         deadline = time.monotonic() + START_TIMEOUT
         while True:
             if process.poll() is not None:
-                pytest.fail(f"streamlit exited with code {process.returncode}")
+                pytest.fail(f"streamlit exited with code {process.returncode}; see {log_path}")
             try:
                 with urllib.request.urlopen(f"{url}/_stcore/health", timeout=2) as reply:
                     if reply.status == 200:
@@ -88,8 +88,7 @@ def server():
         except (ProcessLookupError, subprocess.TimeoutExpired):
             os.killpg(process.pid, signal.SIGKILL)
             process.wait(timeout=10)
-        if log is not subprocess.DEVNULL:
-            log.close()
+        log.close()
 
 
 @pytest.fixture

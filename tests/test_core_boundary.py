@@ -11,7 +11,8 @@ import sys
 CORE_MODULES = ["pacing.cycling", "pacing.course", "pacing.air", "pacing.wind",
                 "pacing.simulate", "pacing.physiology", "pacing.strategy", "pacing.running",
                 "pacing.compare", "pacing.fieldtest", "pacing.conditions", "pacing.targets",
-                "pacing.athlete", "pacing.constants", "pacing.errors"]
+                "pacing.athlete", "pacing.constants", "pacing.errors", "pacing.segments",
+                "pacing.running_plans", "pacing.ride", "pacing.virtual_elevation"]
 """Modules of the numeric core (DEVELOPERS.md: all of pacing/ but io/, store, cli/); those not
 written yet are left out."""
 EDGE_LIBRARIES = ["gpxpy", "pandas", "streamlit", "plotly", "sqlalchemy"]

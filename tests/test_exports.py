@@ -30,6 +30,7 @@ from pacing.io.exports import (
     target_card_pdf,
     target_card_png,
 )
+from pacing.units import format_duration
 
 
 def make_rows(count=6, running=False, wprime=True):
@@ -200,3 +201,51 @@ class TestCard:
     def test_no_segments_is_an_input_error(self):
         with pytest.raises(InputError):
             target_card_png([])
+
+
+@pytest.fixture(scope="module")
+def planned():
+    from pacing.conditions import Conditions, air_along_course
+    from pacing.cycling import Rider
+    from pacing.segments import split_every
+    from pacing.strategy import PlanRequest, make_plan
+    from pacing.targets import target_table
+
+    distance = np.linspace(0.0, 12000.0, 1201)
+    course = synthetic_course(distance, 150 + 40 * np.sin(distance / 2000.0),
+                              heading=np.linspace(0.0, 270.0, 1200), name="rolling road")
+    bounds = split_every(course, 2000.0)
+    air = air_along_course(course, Conditions(wind_speed=4.0, wind_from=200.0))
+    plan = make_plan(course, bounds, Rider(mass=80.0, drag_area=0.28), air,
+                     PlanRequest(strategy="constant", mean_power=250.0,
+                                 critical_power=280.0, w_prime=20000.0))
+    return course, target_table(course, bounds, plan)
+
+
+class TestWithTheLibrary:
+    """The table and its files from a real plan (pacing.strategy → pacing.targets)."""
+
+    def test_table_numbers_are_the_targets(self, planned):
+        _, rows = planned
+        table = segment_table(rows)
+        assert len(table) == len(rows) == 6
+        for (_, line), row in zip(table.iterrows(), rows, strict=True):
+            assert line["Target power [W]"] == round(row.target_power)
+            assert line["Speed [km/h]"] == pytest.approx(row.speed * 3.6, abs=0.051)
+            assert line["W′ left [kJ]"] == pytest.approx(row.w_prime_balance / 1000, abs=0.051)
+        assert table["Elapsed [h:mm:ss]"].iloc[-1] == format_duration(rows[-1].cumulative_time)
+
+    def test_csv_and_xlsx_hold_the_same_numbers(self, planned):
+        _, rows = planned
+        table = segment_table(rows, "imperial")
+        from_csv = pd.read_csv(io.BytesIO(table_to_csv(table)))
+        from_xlsx = pd.read_excel(io.BytesIO(table_to_xlsx(table)))
+        pd.testing.assert_frame_equal(from_csv, table, check_dtype=False)
+        pd.testing.assert_frame_equal(from_xlsx, table, check_dtype=False)
+
+    def test_gpx_has_a_waypoint_per_segment(self, planned):
+        course, rows = planned
+        parsed = gpxpy.parse(course_with_targets_gpx(course, rows))
+        assert len(parsed.waypoints) == len(rows)
+        assert all(" W" in w.name for w in parsed.waypoints)
+

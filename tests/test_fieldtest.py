@@ -1,4 +1,5 @@
-"""CdA and Crr from test rides (pacing.fieldtest).
+"""CdA and Crr from test rides (pacing.fieldtest; the rides themselves: tests/test_ride.py,
+virtual elevation: tests/test_virtual_elevation.py).
 
 The test rides are made by our own forward simulation: a rider with known CdA and Crr rides
 laps of a closed loop with a known profile, integrated with the Martin et al. (1998) forces of
@@ -18,26 +19,17 @@ import functools
 
 import numpy as np
 import pytest
-from hypothesis import given, settings
-from hypothesis import strategies as st
 
 from pacing.athlete import Setup
-from pacing.conditions import Conditions
 from pacing.cycling import Rider, resistive_force
 from pacing.errors import InputError
 from pacing.fieldtest import (
     EARTH_RADIUS,
     METHODS,
     PositionTest,
-    detect_laps,
-    elevation_terms,
     estimate_drag,
-    indices_at_times,
-    laps_from_bounds,
     make_ride,
-    ride_air,
     ride_wind,
-    virtual_elevation,
 )
 from pacing.wind import wind_components
 
@@ -133,64 +125,6 @@ def fit(ride, method="loop", density=1.2, **options):
     options.setdefault("bootstrap", 300)
     return estimate_drag(PositionTest("test", ride, density), Rider(mass=MASS), method=method,
                          **options)
-
-
-# ---------------------------------------------------------------------------------------------
-# Virtual elevation against the Martin model's worked values
-# ---------------------------------------------------------------------------------------------
-
-
-class TestVirtualElevationWorkedValues:
-    """Steady rides at the powers of REFERENCES.md (Martin et al. 1998 model, m = 80 kg,
-    ρ = 1.2, CdA 0.269, Crr 0.0032; values [calc] from the published equation)."""
-
-    rider = Rider(mass=80.0, drag_area=0.269)
-
-    def test_flat_ride_at_the_model_power_stays_level(self):
-        time = np.arange(60.0)
-        trace = virtual_elevation(time, np.full(60, 10.0), np.full(60, 195.6), 1.2, self.rider)
-        # 195.6 W at 10 m/s on the flat (REFERENCES.md [calc]); 0.05 W of rounding → < 5 mm
-        assert abs(trace[-1]) < 0.005
-
-    def test_climb_at_the_model_power_rises_at_six_percent(self):
-        time = np.arange(61.0)
-        trace = virtual_elevation(time, np.full(61, 5.0), np.full(61, 275.3), 1.2, self.rider)
-        # 275.3 W at 5 m/s on 6 % (REFERENCES.md [calc]): rise = v·t·sin(atan 0.06)
-        expected = 5.0 * 60.0 * 0.06 / np.sqrt(1 + 0.06**2)
-        # cos θ taken as 1 in the rolling term: Crr·(1 − cos θ)·s ≈ 0.0006 m here
-        assert trace[-1] == pytest.approx(expected, abs=0.02)
-
-    def test_trace_follows_the_simulated_profile(self):
-        data = simulate_loop_ride()
-        rider = Rider(mass=MASS, drag_area=TRUE_AREA, rolling_coefficient=TRUE_ROLLING)
-        trace = virtual_elevation(data["time"], data["speed"], data["power"], 1.2, rider,
-                                  start_elevation=data["elevation"][0])
-        # own forward simulation, exact data: the trace drifts only by discretisation
-        assert np.max(np.abs(trace - data["elevation"])) < 1.0
-
-
-@settings(max_examples=30, deadline=None)
-@given(area=st.floats(0.15, 0.5), rolling=st.floats(0.0, 0.02))
-def test_virtual_elevation_is_linear_in_drag_area_and_rolling_coefficient(area, rolling):
-    data = simulate_loop_ride()
-    args = (data["time"][:300], data["speed"][:300], data["power"][:300], 1.2)
-    terms = elevation_terms(*args, Rider(mass=MASS))
-    trace = virtual_elevation(*args, Rider(mass=MASS, drag_area=area,
-                                           rolling_coefficient=rolling))
-    expected = np.cumsum(terms.known - area * terms.per_drag_area
-                         - rolling * terms.per_rolling_coefficient)
-    np.testing.assert_allclose(trace[1:], expected, rtol=1e-9, atol=1e-9)
-
-
-@settings(max_examples=30, deadline=None)
-@given(extra=st.floats(1.0, 100.0))
-def test_more_power_at_the_same_speeds_means_a_higher_trace(extra):
-    data = simulate_loop_ride()
-    rider = Rider(mass=MASS, drag_area=TRUE_AREA)
-    args = (data["time"][:200], data["speed"][:200])
-    low = virtual_elevation(*args, data["power"][:200], 1.2, rider)
-    high = virtual_elevation(*args, data["power"][:200] + extra, 1.2, rider)
-    assert np.all(np.diff(high - low) > 0)
 
 
 # ---------------------------------------------------------------------------------------------
@@ -352,40 +286,6 @@ class TestUncertaintyAndWarnings:
         assert any("fewer than 3 laps" in w for w in result.warnings)
 
 
-class TestLaps:
-    def test_detects_the_laps_despite_gnss_position_noise(self):
-        data = simulate_loop_ride()
-        ride = noisy_ride(data, seed=10, horizontal_sigma=HORIZONTAL_SIGMA)
-        laps = detect_laps(ride.latitude, ride.longitude)
-        assert len(laps) == 6
-        true_starts = [int(np.argmin(np.abs(data["distance"] - 2000.0 * i))) for i in range(6)]
-        for (start, _), expected in zip(laps, true_starts, strict=True):
-            assert abs(start - expected) <= 2
-
-    def test_user_given_laps(self):
-        data = simulate_loop_ride()
-        ride = noisy_ride(data, seed=11, with_position=False)
-        bounds = [int(np.argmin(np.abs(data["distance"] - 2000.0 * i))) for i in range(7)]
-        laps = laps_from_bounds(bounds, ride.time.size)
-        result = estimate_drag(PositionTest("marked", ride, 1.2, tuple(laps)), Rider(mass=MASS))
-        assert result.drag_area == pytest.approx(TRUE_AREA, rel=0.02)
-
-    def test_lap_times_to_indices(self):
-        ride = noisy_ride(simulate_loop_ride(), seed=1)
-        assert indices_at_times(ride, [0.0, 10.2, 99.6]) == [0, 10, 100]
-        with pytest.raises(InputError, match="within the ride"):
-            indices_at_times(ride, [1e6])
-
-    def test_a_ride_that_never_returns_has_no_laps(self):
-        latitude = 46.0 + np.linspace(0, 0.05, 100)
-        with pytest.raises(InputError, match="no lap found"):
-            detect_laps(latitude, np.full(100, 7.0))
-
-    def test_bad_bounds(self):
-        with pytest.raises(InputError, match="increase"):
-            laps_from_bounds([5, 3, 9], 20)
-
-
 class TestPositions:
     def test_two_positions_differ_significantly_and_become_setups(self):
         hoods = noisy_ride(simulate_loop_ride(), seed=12)
@@ -421,90 +321,6 @@ class TestPositions:
                                        trace.virtual_elevation - trace.reference_elevation)
             assert np.all(np.isfinite(trace.residual))
             assert np.sqrt(np.mean(trace.residual**2)) < 1.0
-
-
-class TestAir:
-    def test_ride_air_matches_the_conditions_density(self):
-        ride = noisy_ride(simulate_loop_ride(), seed=1)
-        density, headwind, crosswind = ride_air(ride, Conditions(temperature=20.0,
-                                                                 relative_humidity=0.5))
-        # CIPM-2007 at 20 °C, 50 % RH, 101325 Pa: 1.19931 kg/m³ (REFERENCES.md [calc]); the
-        # ride lies within ±8 m of sea level (±0.1 % pressure)
-        assert np.all(np.abs(density / 1.19931 - 1) < 0.0015)
-        assert np.all(headwind == 0) and np.all(crosswind == 0)
-
-    def test_wind_needs_a_direction_of_travel(self):
-        ride = noisy_ride(simulate_loop_ride(), seed=1, with_position=False)
-        with pytest.raises(InputError, match="direction of travel"):
-            ride_wind(ride, 3.0, 90.0)
-
-
-class TestCleaning:
-    def base(self, n=60):
-        time = np.arange(float(n))
-        return time, np.full(n, 9.0), np.full(n, 200.0)
-
-    def test_time_must_increase(self):
-        time, speed, power = self.base()
-        time[10] = time[9]
-        with pytest.raises(InputError, match="time does not increase at sample 11"):
-            make_ride(time, speed, power)
-
-    def test_recording_gap_while_moving(self):
-        time, speed, power = self.base()
-        time[30:] += 20.0
-        with pytest.raises(InputError, match="recording gap of 21 s"):
-            make_ride(time, speed, power)
-
-    def test_long_power_dropout(self):
-        time, speed, power = self.base()
-        power[20:30] = np.nan
-        with pytest.raises(InputError, match="power is missing for 11 s from t = 20 s"):
-            make_ride(time, speed, power)
-
-    def test_short_power_dropout_is_filled_with_a_note(self):
-        time, speed, power = self.base()
-        power[20:22] = np.nan
-        ride = make_ride(time, speed, power)
-        assert np.all(ride.power == 200.0)
-        assert any("power dropouts" in note for note in ride.notes)
-
-    def test_zero_power_while_the_speed_holds_is_noted(self):
-        time, speed, power = self.base()
-        power[20:35] = 0.0
-        ride = make_ride(time, speed, power)
-        assert any("power reads 0 W for 14 s from t = 20 s" in note for note in ride.notes)
-        speed[20:35] = np.linspace(9.0, 7.0, 15)  # coasting and slowing: no note
-        assert not any("0 W" in note for note in make_ride(time, speed, power).notes)
-
-    def test_stops_are_dropped_with_a_note(self):
-        time, speed, power = self.base()
-        speed[20:40] = 0.0
-        ride = make_ride(time, speed, power)
-        assert ride.time.size == 40
-        assert ride.pause.sum() == 1
-        assert any("dropped 20 samples" in note for note in ride.notes)
-        # a pause adds nothing to the trace
-        terms = elevation_terms(ride.time, ride.speed, ride.power, 1.2, Rider(), pause=ride.pause)
-        assert terms.known[ride.pause][0] == 0.0
-
-    def test_negative_power(self):
-        time, speed, power = self.base()
-        power[5] = -10
-        with pytest.raises(InputError, match="power must be finite and not negative"):
-            make_ride(time, speed, power)
-
-    def test_length_mismatch_and_too_short(self):
-        time, speed, power = self.base()
-        with pytest.raises(InputError, match="speed has 59 values"):
-            make_ride(time, speed[:-1], power)
-        with pytest.raises(InputError, match="at least 10 samples"):
-            make_ride(time[:5], speed[:5], power[:5])
-
-    def test_latitude_without_longitude(self):
-        time, speed, power = self.base()
-        with pytest.raises(InputError, match="both latitude and longitude"):
-            make_ride(time, speed, power, latitude=np.full(60, 46.0))
 
 
 class TestBadRequests:

@@ -763,3 +763,49 @@ def test_read_library_file_checks_without_a_database():
     assert empty.athletes == () and empty.plans == ()
     with pytest.raises(InputError, match="UTF-8"):
         read_library_file(b"\xff\xfe{")
+
+
+# A library file exactly as format version 1 defines it (pacing/store/library_file.py). Later
+# versions of pacing must keep importing it.
+VERSION_1_FILE = """{
+ "format": "pacing library", "format_version": 1,
+ "exported_at": "2026-12-01T22:30:00+00:00", "exported_by": "pacing 0.1.0",
+ "athletes": [{"id": 3, "name": "Ann", "body_mass": 61.0, "critical_power": 250.0,
+   "w_prime": 18000.0, "height": 1.68, "flat_pace": null, "critical_speed": null,
+   "d_prime": null, "created_at": "2026-11-30T08:00:00+00:00",
+   "updated_at": "2026-11-30T09:00:00+01:00",
+   "setups": [{"id": 8, "name": "TT bike", "bike_mass": 8.9, "drag_area": 0.23,
+     "power_share": 0.95, "rolling_coefficient": 0.003, "drivetrain_efficiency": 0.976,
+     "yaw_drag_table": [[0.0, 1.0], [10.0, 0.93]],
+     "created_at": "2026-11-30T08:00:00+00:00", "updated_at": "2026-11-30T08:00:00+00:00"}]}],
+ "courses": [{"id": 5, "name": "Tiny", "distance_m": 1000.0, "ascent_m": 12.5,
+   "gpx_sha256": "b53b9a7e7640220fe6efaa08ad97e8d5db0deef003a7335b8b44666137b08906",
+   "gpx_base64": "PGdweC8+",
+   "created_at": "2026-11-30T08:00:00+00:00", "updated_at": "2026-11-30T08:00:00+00:00"}],
+ "plans": [{"id": 9, "name": "Race day",
+   "inputs": {"athlete_id": 3, "setup_id": 8, "course_id": 5, "power": 230.0},
+   "strategy": "constant", "weather": null,
+   "targets": [{"segment": 1, "power": 230.0, "time": 95.5}],
+   "time_saved": null, "finish_time": 95.5, "library_version": "0.1.0", "notes": "",
+   "created_at": "2026-11-30T08:00:00+00:00", "updated_at": "2026-11-30T08:00:00+00:00"}]
+}"""
+
+
+def test_a_version_1_file_imports(library):
+    # the checksum in the file is the SHA-256 of b"<gpx/>" (hashlib, FIPS 180-4)
+    assert hashlib.sha256(b"<gpx/>").hexdigest() in VERSION_1_FILE
+    summary = import_library(library, VERSION_1_FILE)
+    assert summary.message() == "imported 1 athlete, 1 setup, 1 course and 1 saved plan"
+    (athlete,) = library.athletes()
+    assert athlete.athlete == Athlete(name="Ann", body_mass=61.0, critical_power=250.0,
+                                      w_prime=18000.0, height=1.68)
+    assert athlete.updated_at == datetime.datetime(2026, 11, 30, 8, 0, tzinfo=datetime.UTC)
+    (setup,) = library.setups(athlete.id)
+    assert setup.setup.yaw_drag_table == ((0.0, 1.0), (10.0, 0.93))
+    (course,) = library.courses()
+    assert library.course(course.id).gpx == b"<gpx/>"  # base64 "PGdweC8+" (RFC 4648)
+    (plan_summary,) = library.plans()
+    plan = library.plan(plan_summary.id)
+    assert plan.inputs == {"athlete_id": athlete.id, "setup_id": setup.id,
+                           "course_id": course.id, "power": 230.0}
+    assert plan.strategy == "constant" and plan.summary.time_saved is None

@@ -155,12 +155,12 @@ def test_fastest_climb_of_an_uneven_slope_is_at_constant_ground_speed():
     # is slower unless the slope is constant.
     course, bounds, air = uneven_climb()
     model = segment_model(course, bounds, RIDER, air)
-    power, _ = fastest_steady_plan(model, PlanRequest(strategy="fastest", mean_power=300.0))
+    request = PlanRequest(strategy="fastest", mean_power=300.0, max_power_ratio=2.0)
+    power, _ = fastest_steady_plan(model, request)
     speed = speed_for_power(power[model.segment], model.grade, model.density, RIDER)
     assert np.ptp(speed) / speed.mean() < 1e-9
     assert np.ptp(power) > 200.0  # while the power varies a lot
-    plan = make_plan(course, bounds, RIDER, air,
-                     PlanRequest(strategy="fastest", mean_power=300.0),
+    plan = make_plan(course, bounds, RIDER, air, request,
                      SimulationOptions(start_speed=float(speed[0])))
     verified = np.array([r.speed for r in segment_results(course, plan.prediction, bounds)])
     constant = np.array([r.speed for r in segment_results(course, plan.reference, bounds)])
@@ -239,6 +239,27 @@ def test_fastest_is_never_slower_than_constant_at_the_same_mean(seed, mean, cons
 
 
 # ------------------------------------------------------------- limits on the verified ride
+
+
+@settings(max_examples=6, deadline=None)
+@given(st.integers(0, 10_000), st.floats(200.0, 320.0), st.floats(1.1, 1.5),
+       st.sampled_from(["differential", "integral"]))
+def test_every_limit_holds_on_the_verified_ride(seed, mean, ratio, model):
+    course, bounds, air = random_course(seed)
+    request = PlanRequest(strategy="fastest", mean_power=mean, critical_power=mean + 20.0,
+                          w_prime=15000.0, w_prime_reserve=1500.0, max_power_ratio=ratio,
+                          min_power_ratio=0.3, w_prime_model=model)
+    try:
+        plan = make_plan(course, bounds, RIDER, air, request, SimulationOptions(start_speed=8.0))
+    except InputError:
+        return  # a request no plan can meet is refused, never answered with a broken plan
+    assert plan.mean_power == pytest.approx(mean, rel=1e-4)
+    assert plan.min_w_prime_balance >= 1500.0 - 1e-6
+    assert np.all(plan.segment_power <= ratio * (mean + 20.0) * (1 + 1e-9))
+    assert np.all(plan.segment_power >= plan.power_low - 1e-9)
+    assert plan.time_saved > -0.5  # verified: never meaningfully slower than constant power
+
+
 
 
 def test_w_prime_reserve_holds_on_the_verified_ride():
@@ -332,8 +353,6 @@ def test_target_time_beyond_what_cp_and_w_prime_allow_is_not_reachable():
 
 @pytest.mark.parametrize("fields", [
     {"strategy": "quickest", "mean_power": 250.0},
-    {"strategy": "fastest"},
-    {"strategy": "target-time"},
     {"strategy": "fastest", "mean_power": -5.0},
     {"strategy": "fastest", "mean_power": 250.0, "constraint": "speed"},
     {"strategy": "fastest", "mean_power": 250.0, "w_prime": 1000.0, "w_prime_reserve": 2000.0},
@@ -347,7 +366,69 @@ def test_bad_requests_raise_input_error(fields):
         PlanRequest(**fields)
 
 
+@pytest.mark.parametrize("fields", [{"strategy": "fastest"}, {"strategy": "constant"},
+                                    {"strategy": "target-time"}])
+def test_a_plan_without_its_mean_power_or_target_time_is_refused(fields):
+    course, bounds, air = hilly()
+    request = PlanRequest(**fields)  # a request can be built bare and completed later
+    with pytest.raises(InputError, match="needs"):
+        make_plan(course, bounds, RIDER, air, request, FLYING)
+
+
 def test_bad_bounds_raise_input_error():
     course, _, air = hilly()
     with pytest.raises(InputError):
         segment_model(course, np.array([0, 50, 40, course.distance.size - 1]), RIDER, air)
+
+
+# ------------------------------------------------------------- command line
+
+
+@pytest.fixture(scope="module")
+def hill_route(tmp_path_factory):
+    """A 6 km GPX course heading north: flat, a 5 % climb, a descent."""
+    pytest.importorskip("pacing.io.gpx")
+    metres_per_degree = 111_195.0
+    distance = np.arange(0.0, 6001.0, 25.0)
+    elevation = np.interp(distance, [0, 2000, 4000, 6000], [100, 100, 200, 120])
+    points = "\n".join(
+        f'<trkpt lat="{45.0 + d / metres_per_degree:.7f}" lon="6.0000000">'
+        f"<ele>{e:.2f}</ele></trkpt>"
+        for d, e in zip(distance, elevation, strict=True))
+    text = ('<?xml version="1.0" encoding="UTF-8"?>\n'
+            '<gpx version="1.1" creator="tests" xmlns="http://www.topografix.com/GPX/1/1">'
+            f"<trk><name>hill</name><trkseg>\n{points}\n</trkseg></trk></gpx>\n")
+    path = tmp_path_factory.mktemp("routes") / "hill.gpx"
+    path.write_text(text, encoding="utf-8")
+    return str(path)
+
+
+def test_command_line_fastest_plan_json(capsys, hill_route):
+    import json
+
+    from pacing.cli import main
+
+    code = main(["plan", hill_route, "--strategy", "fastest", "--power", "250", "--cp", "270",
+                 "--w-prime", "15000", "--w-prime-reserve", "1000", "--max-power-ratio", "1.3",
+                 "--json"])
+    captured = capsys.readouterr()
+    assert code == 0, captured.err
+    result = json.loads(captured.out)
+    assert result["strategy"] == "fastest"
+    assert result["time_saved_s"] > 0
+    assert result["min_w_prime_balance_j"] >= 1000.0 - 1e-6
+    assert result["average_power_w"] == pytest.approx(250.0, abs=0.02)
+    for segment in result["segments"]:
+        assert {"power_w", "w_prime_balance_j", "ridden_power_w"} <= set(segment)
+        assert segment["power_w"] <= 1.3 * 270.0 + 1e-6
+
+
+def test_command_line_unreachable_target_time_is_one_line(capsys, hill_route):
+    from pacing.cli import main
+
+    code = main(["plan", hill_route, "--strategy", "target-time", "--target-time", "0:06:00",
+                 "--cp", "270", "--w-prime", "15000"])
+    captured = capsys.readouterr()
+    assert code == 2 and captured.out == ""
+    lines = captured.err.strip().splitlines()
+    assert len(lines) == 1 and "not reachable" in lines[0]

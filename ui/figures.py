@@ -147,14 +147,17 @@ def route_map_figure(course, system: str, wind_speed: float = 0.0, wind_from: fl
 
 
 def along_course_figure(distance, speed, power=None, headwind=None, w_prime_balance=None,
-                        system: str = "metric", height_per_panel: int = 170) -> go.Figure:
+                        system: str = "metric", height_per_panel: int = 170,
+                        reserve: str = "W′") -> go.Figure:
     """Speed, power, headwind component and W′ balance along the course, sharing one x axis.
 
     Parameters
     ----------
     distance : point distances [m] (N); speed : per point (N) or per piece (N-1) [m/s];
     power : crank power per piece [W] (N-1) or None; headwind : per piece [m/s] (N-1) or None;
-    w_prime_balance : W′ balance per point [J] (N) or None.
+    w_prime_balance : W′ balance per point [J] (N) or None; with reserve="D′" the D′ balance
+        of a runner per piece end [m] (N-1).
+    reserve : "W′" (cycling, shown in kJ) or "D′" (running, shown in m).
     """
     distance = np.asarray(distance, dtype=float)
     middle = 0.5 * (distance[1:] + distance[:-1])
@@ -171,7 +174,11 @@ def along_course_figure(distance, speed, power=None, headwind=None, w_prime_bala
     if w_prime_balance is not None:
         w_prime_balance = np.asarray(w_prime_balance, dtype=float)
         x = distance if w_prime_balance.size == distance.size else middle
-        panels.append(("reserve", "W′ left [kJ]", x, w_prime_balance / 1000.0, RESERVE_COLOR))
+        if reserve == "D′":
+            panels.append(("reserve", "D′ left [m]", x, w_prime_balance, RESERVE_COLOR))
+        else:
+            panels.append(("reserve", "W′ left [kJ]", x, w_prime_balance / 1000.0,
+                           RESERVE_COLOR))
     figure = make_subplots(rows=len(panels), cols=1, shared_xaxes=True, vertical_spacing=0.04)
     for row, (_, title, x, y, color) in enumerate(panels, start=1):
         shown = _thin(len(x))

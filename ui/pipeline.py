@@ -6,6 +6,7 @@ tests call them directly. No physics here: every number comes from `pacing`.
 
 from __future__ import annotations
 
+import warnings
 from dataclasses import dataclass, field, fields, replace
 from pathlib import Path
 
@@ -36,7 +37,7 @@ def _default_demo_name(paths: dict[str, Path], default) -> str | None:
 
 
 def load_course_from_bytes(data: bytes, name: str, smoothing_window: float,
-                           max_grade: float):
+                           max_grade: float, allow_flat: bool = False):
     """Parse a GPX file's bytes into a Course with the given elevation cleaning.
 
     Parameters
@@ -45,6 +46,7 @@ def load_course_from_bytes(data: bytes, name: str, smoothing_window: float,
     name : label of the course.
     smoothing_window : width of the elevation smoothing window [m].
     max_grade : steepest grade kept after smoothing [-].
+    allow_flat : a file without heights becomes a flat course instead of an error.
     """
     from pacing.course import ElevationSmoothing
     from pacing.io.gpx import load_course
@@ -52,7 +54,10 @@ def load_course_from_bytes(data: bytes, name: str, smoothing_window: float,
     if not data:
         raise InputError("the file is empty")
     smoothing = ElevationSmoothing(window=float(smoothing_window), max_grade=float(max_grade))
-    return load_course(data, smoothing=smoothing, name=name)
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore", UserWarning)  # the page says it itself
+        return load_course(data, smoothing=smoothing, name=name,
+                           allow_missing_elevation=allow_flat)
 
 
 SPLIT_MODES = ("by terrain", "fixed length", "my own marks")
@@ -69,7 +74,7 @@ def segment_bounds(course, mode: str, length: float | None = None,
     length : segment length for "fixed length" [m].
     marks : split distances from the start for "my own marks" [m].
     """
-    from pacing.course import split_at, split_by_grade, split_every
+    from pacing.segments import split_at, split_by_grade, split_every
 
     if mode == "by terrain":
         return split_by_grade(course)
@@ -107,7 +112,7 @@ class Outcome:
     time_saved : against constant power at the same mean [s], or None.
     distance, speed : per point [m], [m/s] (N).
     power, headwind : per piece [W], [m/s] (N-1) or None.
-    w_prime_balance : per point or piece [J] or None.
+    w_prime_balance : per point [J] (cycling W′), or per piece end [m] (running D′), or None.
     rows : segment targets (pacing.targets.SegmentTarget or objects with the same fields).
     notes : short remarks from the library (binding limits, solver messages).
     exhausted_at : where the W′ (or D′) balance first falls below zero [m], or None.
@@ -164,11 +169,11 @@ RUNNING_PLANNERS = {
     "even-pace": "plan_even_pace",
     "fastest": "plan_fastest",
 }
-"""Running strategy name → pacing.running function."""
+"""Running strategy name → pacing.running_plans function."""
 
 
 def running_outcome(course, bounds, athlete: dict, weather: dict, approach: dict) -> Outcome:
-    """Plan a run with pacing.running and gather what the page shows.
+    """Plan a run with pacing.running_plans and gather what the page shows.
 
     Parameters
     ----------
@@ -176,10 +181,11 @@ def running_outcome(course, bounds, athlete: dict, weather: dict, approach: dict
     weather : pacing.conditions.Conditions fields (SI).
     approach : {"strategy": one of RUNNING_PLANNERS}.
     """
-    from pacing import running
+    from pacing import running_plans
     from pacing.conditions import air_along_course
+    from pacing.running import Runner
 
-    runner = running.Runner.from_body(athlete["body_mass"], height=athlete.get("height"))
+    runner = Runner.from_body(athlete["body_mass"], height=athlete.get("height"))
     air = air_along_course(course, conditions_from(weather))
     strategy = approach.get("strategy", "equal-effort")
     if strategy not in RUNNING_PLANNERS:
@@ -187,18 +193,18 @@ def running_outcome(course, bounds, athlete: dict, weather: dict, approach: dict
     common = dict(air_density=air.density, headwind=air.headwind, crosswind=air.crosswind,
                   bounds=np.asarray(bounds))
     if strategy == "fastest":
-        plan = running.plan_fastest(course, runner, athlete["critical_speed"],
+        plan = running_plans.plan_fastest(course, runner, athlete["critical_speed"],
                                     athlete["d_prime"], **common)
     else:
         flat_speed = 1000.0 / athlete["flat_pace"]
-        plan = getattr(running, RUNNING_PLANNERS[strategy])(course, runner, flat_speed,
-                                                              **common)
+        plan = getattr(running_plans, RUNNING_PLANNERS[strategy])(course, runner, flat_speed,
+                                                                    **common)
     rows = running_rows(plan)
     return check_finite(Outcome(
         sport="running", finish_time=plan.finish_time, average_speed=plan.average_speed,
         max_speed=float(np.max(plan.speed)), average_power=None, time_saved=None,
         distance=np.asarray(course.distance), speed=np.asarray(plan.speed), power=None,
-        headwind=np.asarray(air.headwind), w_prime_balance=None, rows=rows,
+        headwind=np.asarray(air.headwind), w_prime_balance=plan.d_prime_balance, rows=rows,
         notes=list(plan.notes),
     ))
 

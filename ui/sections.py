@@ -41,7 +41,7 @@ def segment_overview(course, bounds, system: str) -> None:
     """The segments as a small table (kind, where, how long, how steep), folded away."""
     import pandas as pd
 
-    from pacing.course import describe_segments
+    from pacing.segments import describe_segments
 
     segments = describe_segments(course, bounds)
     dist, elev = unit_label("distance", system), unit_label("elevation", system)
@@ -60,7 +60,7 @@ def segment_overview(course, bounds, system: str) -> None:
         }), hide_index=True, key="segment_overview")
 
 
-def split_inputs(system: str) -> dict:
+def split_inputs(system: str, total_distance: float | None = None) -> dict:
     """How to cut the course into segments; returns {"mode", "length" [m], "marks" [m]}."""
     from ui.pipeline import SPLIT_MODES, parse_marks
 
@@ -78,6 +78,12 @@ def split_inputs(system: str) -> dict:
         typed = cols[2].text_input(f"Split at [{dist} from the start, comma separated]",
                                    value="5, 10, 20", key="split_marks")
         shown = parse_marks(typed)
+        if total_distance is not None:
+            longest = to_display(total_distance, "distance", system)
+            outside = [v for v in shown if not 0 <= v <= longest]
+            if outside:
+                raise InputError(f"split mark {outside[0]:g} {dist} is outside the course "
+                                 f"(0 to {longest:.2f} {dist})")
         result["marks"] = tuple(float(from_display(v, "distance", system)) for v in shown)
     return result
 
@@ -255,19 +261,18 @@ def approach_inputs(sport: str, athlete: dict) -> dict:
 # ------------------------------------------------------------------------------ results
 
 def outcome_headline(outcome, system: str) -> None:
-    """Finish time and average speed front and centre, then power and time saved."""
-    cols = st.columns(4)
+    """Finish time and average speed front and centre, then power, top speed, time gained."""
+    speed_unit = unit_label("speed", system)
+    cols = st.columns(5)
     cols[0].metric("Finish time", format_duration(outcome.finish_time))
     cols[1].metric("Average speed",
-                   f"{to_display(outcome.average_speed, 'speed', system):.1f} "
-                   f"{unit_label('speed', system)}")
+                   f"{to_display(outcome.average_speed, 'speed', system):.1f} {speed_unit}")
     if outcome.average_power is not None:
         cols[2].metric("Average power", f"{outcome.average_power:.0f} W")
-    else:
-        cols[2].metric("Top speed", f"{to_display(outcome.max_speed, 'speed', system):.1f} "
-                       f"{unit_label('speed', system)}")
+    cols[3].metric("Top speed", f"{to_display(outcome.max_speed, 'speed', system):.1f} "
+                   f"{speed_unit}", help=text.SPEED_CAUTION)
     if outcome.time_saved is not None:
-        cols[3].metric("Gained on even power", f"{outcome.time_saved:.0f} s",
+        cols[4].metric("Gained on even power", f"{outcome.time_saved:.0f} s",
                        help="finish time of even power at the same average, minus this plan's")
 
 

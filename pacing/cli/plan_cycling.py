@@ -195,10 +195,121 @@ def prediction_as_table(prediction: Prediction, segments: list[SegmentResult]) -
 
 def run(args: argparse.Namespace) -> int:
     """Run ``pacing plan`` for cycling; returns the exit code."""
+    if args.strategy is not None:
+        return run_strategy(args)
     prediction, segments = predict(args)
     if args.json:
         json.dump(prediction_as_dict(prediction, segments), sys.stdout, indent=2)
         sys.stdout.write("\n")
     else:
         print(prediction_as_table(prediction, segments))
+    return 0
+
+
+# ------------------------------------------------------------------ --strategy (issue 4)
+
+def request_from_args(args: argparse.Namespace):
+    """The pacing.strategy.PlanRequest of --strategy, --power, --target-time, --cp, --w-prime,
+    --w-prime-reserve and --max-power-ratio."""
+    from pacing.cli.common import parse_clock
+    from pacing.cli.plan import CYCLING_STRATEGIES
+    from pacing.strategy import PlanRequest
+
+    strategy = args.strategy
+    _check(strategy in CYCLING_STRATEGIES,
+           f"--strategy must be one of {', '.join(CYCLING_STRATEGIES)} for cycling, "
+           f"got {strategy!r}")
+    for flag in ("cp", "w_prime", "w_prime_reserve", "max_power_ratio"):
+        _number(getattr(args, flag, None), "--" + flag.replace("_", "-"))
+    if strategy in ("constant", "fastest"):
+        _check(args.power is not None,
+               f"--strategy {strategy} needs --power W (the mean power to match)")
+    if strategy == "target-time":
+        _check(args.target_time is not None, "--strategy target-time needs --target-time H:MM:SS")
+    _check(args.w_prime is None or args.cp is not None, "--w-prime needs --cp")
+    for flag, value in (("--cp", args.cp), ("--w-prime", args.w_prime),
+                        ("--max-power-ratio", args.max_power_ratio)):
+        if value is not None:
+            _check(value > 0, f"{flag} must be positive, got {value:g}")
+    _check(args.w_prime_reserve >= 0,
+           f"--w-prime-reserve must be >= 0 J, got {args.w_prime_reserve:g}")
+    return PlanRequest(
+        strategy=strategy,
+        mean_power=args.power if strategy != "target-time" else None,
+        target_time=(parse_clock(args.target_time, "--target-time")
+                     if strategy == "target-time" else None),
+        critical_power=args.cp,
+        w_prime=args.w_prime,
+        w_prime_reserve=args.w_prime_reserve,
+        max_power_ratio=args.max_power_ratio,
+    )
+
+
+def plan_with_strategy(args: argparse.Namespace):
+    """Validate, load, make the plan (pacing.strategy.make_plan, verified by the inertial
+    simulation) and summarise its segments: (RacePlan, segment summaries)."""
+    from pacing.conditions import air_along_course
+    from pacing.strategy import make_plan
+
+    validate_args(args)
+    request = request_from_args(args)
+    rider = rider_from_args(args)
+    course, bounds = load_course_and_bounds(args)
+    air = air_along_course(course, conditions_from_args(args))
+    plan = make_plan(course, bounds, rider, air, request,
+                     SimulationOptions(start_speed=args.start_speed))
+    return plan, segment_results(course, plan.prediction, bounds)
+
+
+def plan_as_dict(plan, segments: list[SegmentResult]) -> dict:
+    """The JSON of the plain prediction plus the plan: strategy, time_saved_s,
+    min_w_prime_balance_j, and per segment power_w (the target) and w_prime_balance_j."""
+    result = prediction_as_dict(plan.prediction, segments)
+    result["strategy"] = plan.strategy
+    result["time_saved_s"] = plan.time_saved
+    result["reference_power_w"] = plan.reference_power
+    result["effort_weighted_power_w"] = plan.effort_weighted_power
+    result["min_w_prime_balance_j"] = plan.min_w_prime_balance
+    result["min_w_prime_distance_m"] = plan.min_w_prime_distance
+    result["binding"] = list(plan.binding)
+    balance = plan.segment_w_prime_balance
+    for index, segment in enumerate(result["segments"]):
+        segment["ridden_power_w"] = segment["power_w"]
+        segment["power_w"] = float(plan.segment_power[index])
+        segment["w_prime_balance_j"] = None if balance is None else float(balance[index])
+    return result
+
+
+def plan_as_table(plan, segments: list[SegmentResult]) -> str:
+    """The prediction table with the target power per segment and a summary of the plan."""
+    lines = prediction_as_table(plan.prediction, segments).splitlines()
+    header, rows, footer = lines[0], lines[1:1 + len(segments)], lines[1 + len(segments):]
+    header += f" {'target W':>9}"
+    if plan.segment_w_prime_balance is not None:
+        header += f" {'W′ kJ':>6}"
+    out = [header]
+    for index, row in enumerate(rows):
+        row += f" {plan.segment_power[index]:9.0f}"
+        if plan.segment_w_prime_balance is not None:
+            row += f" {plan.segment_w_prime_balance[index] / 1000:6.1f}"
+        out.append(row)
+    out.extend(footer)
+    summary = (f"strategy {plan.strategy}: {plan.time_saved:.1f} s faster than constant "
+               f"{plan.reference_power:.0f} W; effort-weighted power "
+               f"{plan.effort_weighted_power:.0f} W")
+    if plan.min_w_prime_balance is not None:
+        summary += (f"; lowest W′ balance {plan.min_w_prime_balance / 1000:.1f} kJ at km "
+                    f"{plan.min_w_prime_distance / 1000:.2f}")
+    out.append(summary)
+    return "\n".join(out)
+
+
+def run_strategy(args: argparse.Namespace) -> int:
+    """``pacing plan … --strategy constant|fastest|target-time``; returns the exit code."""
+    plan, segments = plan_with_strategy(args)
+    if args.json:
+        json.dump(plan_as_dict(plan, segments), sys.stdout, indent=2)
+        sys.stdout.write("\n")
+    else:
+        print(plan_as_table(plan, segments))
     return 0

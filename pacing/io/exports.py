@@ -111,7 +111,7 @@ def segment_table(rows: Iterable[Any], system: str = "metric") -> pd.DataFrame:
             value = _number(row, name)
             if value is not None:
                 value = to_display(value, quantity, system) if quantity else value * factor
-                value = round(value, digits) if digits else int(round(value))
+                value = round(value, digits) + 0.0 if digits else int(round(value))
             values.append(value)
         return values
 
@@ -243,10 +243,12 @@ def _card_figure(rows: Sequence[Any], system: str, title: str):
     axes.text(0.12, 0.72, f"finish {format_duration(finish)}", fontsize=12, va="center")
     dist = unit_label("distance", system)
     columns = math.ceil(len(rows) / ROWS_PER_CARD_COLUMN)
+    pace_only = not _has(rows, "target_power") and _has(rows, "target_pace")
+    target_heading = f"pace [{unit_label('pace', system)}]" if pace_only else "target"
     for column in range(columns):
         left = column * CARD_COLUMN_WIDTH + 0.12
         top = CARD_HEADER_HEIGHT + CARD_ROW_HEIGHT * 0.5
-        for x, heading in ((0.0, dist), (0.95, "target"), (2.45, "split")):
+        for x, heading in ((0.0, dist), (0.95, target_heading), (2.45, "split")):
             axes.text(left + x, top, heading, fontsize=9, color="0.35", va="center")
         part = rows[column * ROWS_PER_CARD_COLUMN:(column + 1) * ROWS_PER_CARD_COLUMN]
         for line, row in enumerate(part, start=1):

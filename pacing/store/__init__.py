@@ -3,10 +3,17 @@ plans, through SQLAlchemy, in an SQLite file by default or any database URL.
 
 Public API
 ----------
-open_library(location=None) -> Library       create/migrate on open; see Library's methods
+open_library(location=None) -> Library     location: path or URL, else $PACING_DATABASE_URL,
+                                           else library.sqlite3 in the user's data folder;
+                                           created and migrated (Alembic) on open
+Library: add_/update_/delete_athlete, add_/update_/delete_setup, add_course, rename_course,
+    find_courses, delete_course, save_plan, update_plan, delete_plan; athlete(id),
+    athletes(), setup(id), setups(athlete_id=None), course(id), courses(), plan(id),
+    plans(athlete_id=None, course_id=None). Changes take ``revision=`` (ConflictError when
+    stale); deletes take ``confirm=True``.
 reproduce_plan(saved, compute) -> ReproductionReport
 export_library(library, athlete_id=None) -> dict; dump_library_file(...) -> str
-read_library_file(text) -> LibraryFile (validated); import_library(library, text) -> ImportSummary
+read_library_file(text) -> LibraryFile (checked); import_library(library, text) -> ImportSummary
 Records: AthleteRecord, SetupRecord, CourseSummary, CourseRecord, PlanSummary, PlanRecord.
 Errors: pacing.errors.InputError (bad input, one line), pacing.errors.ConflictError (stale
 revision: someone else changed the entry).

@@ -1,0 +1,68 @@
+"""Cost of a comparison on the 40 km demo course, in units of one inertial simulation: setups
+side by side, sensitivities, break-even search, the mixed plan, and the linearized against the
+sampled spread. Prints; never asserts.
+
+Run: .venv/bin/python bench/bench_compare.py
+"""
+
+from __future__ import annotations
+
+import time
+
+import numpy as np
+
+from pacing.compare import RiderSetup, break_even, compare_setups, mixed_plan
+from pacing.conditions import Conditions, air_along_course
+from pacing.course import split_by_grade
+from pacing.cycling import Rider
+from pacing.io.gpx import demo_route_paths, load_course
+from pacing.sensitivity import Uncertainty, finish_time_spread, sampled_finish_time, sensitivity
+from pacing.simulate import simulate
+from pacing.strategy import PlanRequest
+
+
+def timed(action):
+    start = time.perf_counter()
+    value = action()
+    return value, time.perf_counter() - start
+
+
+def main() -> None:
+    course = load_course(next(iter(demo_route_paths().values())))
+    bounds = split_by_grade(course)
+    conditions = Conditions(wind_speed=4.0, wind_from=270.0)
+    air = air_along_course(course, conditions)
+    rider = Rider(mass=80.0, drag_area=0.32)
+    _, one = timed(lambda: simulate(course, 250.0, rider, air))
+    print(f"one simulation ({course.distance.size - 1} pieces): {one * 1000:.0f} ms")
+    setups = [RiderSetup("hoods", rider),
+              RiderSetup("aero", Rider(mass=80.0, drag_area=0.25), 0.95),
+              RiderSetup("light", Rider(mass=78.0, drag_area=0.33))]
+    for strategy in ("constant", "fastest"):
+        request = PlanRequest(strategy=strategy, mean_power=250.0)
+        comparison, took = timed(lambda r=request: compare_setups(course, bounds, setups, air, r))
+        print(f"{strategy:>8}: 3 setups {took:5.2f} s = {took / one:5.0f} simulations; "
+              + ", ".join(f"{r.name} {r.delta:+.1f} s" for r in comparison.results))
+        base = comparison.baseline_result
+        for result in comparison.results[1:]:
+            figures, took = timed(lambda r=result, b=base: break_even(course, r, b, air))
+            print(f"          break-even {result.name}: {took:5.2f} s = {took / one:4.0f} "
+                  f"simulations; margin {figures.power_margin:+.1f} W, "
+                  f"{figures.drag_area_margin:+.4f} m², {figures.mass_margin:+.2f} kg")
+        mixed, took = timed(lambda c=comparison: mixed_plan(course, c, air))
+        if mixed is not None:
+            print(f"          mixed plan: {took:5.2f} s; gain {mixed.gain:+.1f} s over "
+                  f"{mixed.best_single}")
+    sens, took = timed(lambda: sensitivity(course, np.full(bounds[-1], 250.0), rider,
+                                           conditions))
+    print(f"sensitivity: {took:5.2f} s = {took / one:4.0f} simulations; {sens.per_step()}")
+    uncertainty = Uncertainty(drag_area=0.005, rolling_coefficient=0.0003, mass=0.5, wind=1.0)
+    linear = finish_time_spread(sens, uncertainty).standard_deviation
+    samples, took = timed(lambda: sampled_finish_time(course, np.full(bounds[-1], 250.0), rider,
+                                                      conditions, uncertainty, samples=100))
+    print(f"spread: linearized {linear:.1f} s, 100 draws {np.std(samples, ddof=1):.1f} s "
+          f"({took:.1f} s)")
+
+
+if __name__ == "__main__":
+    main()

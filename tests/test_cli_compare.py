@@ -1,0 +1,153 @@
+"""Specification of ``pacing compare ROUTE.gpx --setup NAME:cda=…,power=… …`` (issue 7).
+
+JSON: per setup finish_time_s and delta_s (setup − baseline, positive = slower), a
+`sensitivity` object in seconds per step (positive = slower), `break_even` and `uncertainty`
+objects. Bad input: one line on stderr, exit code 2.
+"""
+
+from __future__ import annotations
+
+import json
+import math
+
+import numpy as np
+import pytest
+
+from pacing.cli import main
+
+pytest.importorskip("pacing.io.gpx")
+
+SENSITIVITY_KEYS = {"s_per_0_01_cda", "s_per_kg", "s_per_10_w", "s_per_0_001_crr",
+                    "s_per_1_mps_wind", "wind_from_deg"}
+SETUP_KEYS = {"name", "cda_m2", "power_share", "mass_kg", "crr", "mean_power_w",
+              "finish_time_s", "delta_s", "finish_time_sd_s", "delta_sd_s", "segment_delta_s",
+              "sensitivity"}
+TOP_KEYS = {"strategy", "baseline", "distance_m", "setups", "segments", "sensitivity",
+            "break_even", "uncertainty", "mixed"}
+
+
+@pytest.fixture(scope="module")
+def route(tmp_path_factory):
+    """A 6 km course heading north: flat, a 5 % climb, a descent (GPX 1.1)."""
+    metres_per_degree = 111_195.0
+    distance = np.arange(0.0, 6001.0, 25.0)
+    elevation = np.interp(distance, [0, 2000, 4000, 6000], [100, 100, 200, 120])
+    points = "\n".join(
+        f'<trkpt lat="{45.0 + d / metres_per_degree:.7f}" lon="6.0000000">'
+        f"<ele>{e:.2f}</ele></trkpt>"
+        for d, e in zip(distance, elevation, strict=True))
+    text = ('<?xml version="1.0" encoding="UTF-8"?>\n'
+            '<gpx version="1.1" creator="tests" xmlns="http://www.topografix.com/GPX/1/1">'
+            f"<trk><name>test hill</name><trkseg>\n{points}\n</trkseg></trk></gpx>\n")
+    path = tmp_path_factory.mktemp("routes") / "hill.gpx"
+    path.write_text(text, encoding="utf-8")
+    return str(path)
+
+
+FAST = ["--step", "50", "--start-speed", "8"]  # coarse course, rolling start: quick runs
+TWO = ["--setup", "hoods:cda=0.32,power=1.0", "--setup", "aero:cda=0.25,power=0.95"]
+
+
+def run_json(capsys, *argv):
+    code = main(["compare", *argv, "--json"])
+    captured = capsys.readouterr()
+    assert code == 0, captured.err
+    return json.loads(captured.out)
+
+
+@pytest.fixture(scope="module")
+def two_setups(route):
+    import contextlib
+    import io
+
+    out = io.StringIO()
+    with contextlib.redirect_stdout(out):
+        code = main(["compare", route, *TWO, "--power", "250", "--wind-speed", "3",
+                     "--wind-from", "0", *FAST, "--json"])
+    assert code == 0
+    return json.loads(out.getvalue())
+
+
+def test_json_has_the_contract_keys(two_setups):
+    assert set(two_setups) == TOP_KEYS
+    assert [s["name"] for s in two_setups["setups"]] == ["hoods", "aero"]
+    for setup in two_setups["setups"]:
+        assert set(setup) == SETUP_KEYS
+        assert set(setup["sensitivity"]) == SENSITIVITY_KEYS
+    assert set(two_setups["sensitivity"]) == SENSITIVITY_KEYS
+    assert set(two_setups["break_even"]) == {"aero"}
+    assert {"finish_time_sd_s", "delta_sd_s", "sd_cda_m2"} <= set(two_setups["uncertainty"])
+
+
+def test_json_numbers_follow_the_sign_convention(two_setups):
+    hoods, aero = two_setups["setups"]
+    assert two_setups["baseline"] == "hoods" and hoods["delta_s"] == 0.0
+    assert aero["delta_s"] == pytest.approx(aero["finish_time_s"] - hoods["finish_time_s"])
+    assert aero["delta_s"] < 0  # lower CdA at 95 % of the power: faster on this course
+    assert sum(aero["segment_delta_s"]) == pytest.approx(aero["delta_s"], abs=1e-6)
+    sens = two_setups["sensitivity"]
+    assert sens["s_per_0_01_cda"] > 0 and sens["s_per_kg"] > 0 and sens["s_per_0_001_crr"] > 0
+    assert sens["s_per_10_w"] < 0
+    assert sens["s_per_1_mps_wind"] > 0  # heading north, wind from the north
+    assert two_setups["break_even"]["aero"]["power_margin_w"] > 0
+    assert aero["power_share"] == 0.95 and aero["mean_power_w"] == pytest.approx(237.5, rel=1e-3)
+
+
+def test_json_is_finite_numbers_everywhere(two_setups):
+    def walk(value):
+        if isinstance(value, dict):
+            for item in value.values():
+                walk(item)
+        elif isinstance(value, list):
+            for item in value:
+                walk(item)
+        elif isinstance(value, float):
+            assert math.isfinite(value)
+
+    walk(two_setups)
+
+
+def test_baseline_by_name_samples_and_no_break_even(capsys, route):
+    result = run_json(capsys, route, *TWO, "--setup", "heavy:mass=84,crr=0.004",
+                      "--setup", "deep:cda=0.25,power=0.95,yaw=0/1+15/0.9", "--power",
+                      "250", "--baseline", "aero", "--samples", "4", "--seed", "2",
+                      "--no-break-even", "--wind-speed", "4", "--wind-from", "90", *FAST)
+    deltas = {s["name"]: s["delta_s"] for s in result["setups"]}
+    assert result["baseline"] == "aero" and deltas["aero"] == 0.0 and deltas["hoods"] > 0
+    assert deltas["heavy"] > 0
+    assert deltas["deep"] < 0  # aero plus less drag at yaw: the crosswind gives it yaw
+    assert result["break_even"] == {}
+    assert result["uncertainty"]["samples"] == 4
+    assert set(result["uncertainty"]["sampled_delta_sd_s"]) == {"hoods", "heavy", "deep"}
+
+
+def test_table_is_readable(capsys, route):
+    code = main(["compare", route, *TWO, "--power", "250", "--no-break-even", *FAST])
+    out = capsys.readouterr().out
+    assert code == 0
+    assert "hoods *" in out and "aero" in out
+    assert "what each change is worth" in out and "+0.01 m² CdA" in out
+
+
+@pytest.mark.parametrize("setup", [
+    "nocolon", ":cda=0.3", "a:cda=abc", "a:foo=1", "a:cda", "a:cda=0.3,cda=0.2",
+    "a:cda=nan", "a:yaw=5", "a:cda=5", "a:power=3", "a:mass=5",
+])
+def test_malformed_setup_gives_one_line_and_exit_2(capsys, route, setup):
+    code = main(["compare", route, "--setup", setup, "--power", "250", *FAST])
+    err = capsys.readouterr().err
+    assert code == 2
+    assert err.count("\n") == 1 and err.startswith("pacing compare: error:")
+
+
+@pytest.mark.parametrize("argv, message", [
+    (["--power", "250"], "at least one --setup"),
+    (TWO, "--power"),
+    ([*TWO, "--power", "250", "--baseline", "tt"], "not one of"),
+    (["--setup", "a:cda=0.3", "--setup", "a:cda=0.2", "--power", "250"], "repeated"),
+    ([*TWO, "--power", "250", "--sd-cda", "-1"], "uncertainty"),
+])
+def test_other_bad_input_gives_one_line_and_exit_2(capsys, route, argv, message):
+    code = main(["compare", route, *argv, *FAST])
+    err = capsys.readouterr().err
+    assert code == 2 and message in err and err.count("\n") == 1

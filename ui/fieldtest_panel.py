@@ -1,0 +1,408 @@
+"""Measure CdA on the road, in the web app: upload test rides (one per riding position), give
+the mass and the air, pick a method, and read CdA and Crr per position with 95 % intervals,
+whether the positions really differ, the warnings, and plots of the virtual against the
+measured elevation of every lap with the residuals. A measured position becomes a setup (and
+goes into the library when one is open).
+
+The estimation is pacing.fieldtest.estimate_drag (virtual elevation after Chung, or the
+regression of Lim et al. 2011); rides are read by pacing.io.rides.read_ride. Pure helpers
+build the rides, tables and plotly figures; `render_fieldtest` draws the panel.
+"""
+
+from __future__ import annotations
+
+import hashlib
+from dataclasses import dataclass
+from pathlib import Path
+
+import numpy as np
+import pandas as pd
+import plotly.graph_objects as go
+import streamlit as st
+from plotly.subplots import make_subplots
+
+from pacing.errors import ConflictError, InputError
+from pacing.units import to_display, unit_label
+
+METHOD_LABELS = {
+    "Laps close on themselves (no heights needed)": "loop",
+    "Follow the recorded heights": "profile",
+    "Steady laps, mean force against speed": "regression",
+}
+"""Method choices (our words → pacing.fieldtest.METHODS key)."""
+
+LAP_COLORS = ("#0f6e8c", "#b5542c", "#6a3d9a", "#5a6b2f", "#c28f1a", "#1b7f79", "#8c2d5a",
+              "#3d5a80")
+"""Line colours of the laps (our own palette)."""
+INK = "#1d2b3a"
+REFERENCE_COLOR = "rgba(29,43,58,0.55)"
+
+BOOTSTRAP_DRAWS = 1000
+"""Bootstrap draws for the 95 % intervals (pacing.fieldtest.estimate_drag's default)."""
+
+
+@dataclass(frozen=True, eq=False)
+class FieldTestRun:
+    """A finished field test: the library result, the position tests it used, the mean air
+    density [kg/m³] and the notes of reading and cleaning the rides."""
+
+    result: object
+    tests: tuple
+    air_density: float
+    notes: tuple[str, ...]
+
+
+def read_tests(files, conditions) -> tuple[list, list[str]]:
+    """PositionTests (pacing.fieldtest) from uploaded files with their air.
+
+    Parameters
+    ----------
+    files : (file name, bytes, position label) per ride, optionally with a fourth item: lap
+        boundaries as times from the ride start [s] (empty: laps found from the positions);
+        an empty label takes the file name.
+    conditions : pacing.conditions.Conditions of the test day.
+
+    Returns
+    -------
+    (tests, notes): one PositionTest per file; notes of reading and cleaning, one line each.
+    """
+    from pacing.fieldtest import PositionTest, indices_at_times, laps_from_bounds, ride_air
+    from pacing.io.rides import read_ride
+
+    tests, notes = [], []
+    if not files:
+        raise InputError("upload at least one test ride (CSV or GPX)")
+    for index, (file_name, data, label, *rest) in enumerate(files):
+        lap_times = tuple(rest[0]) if rest and rest[0] else ()
+        suffix = Path(file_name).suffix.lower().lstrip(".")
+        try:
+            ride = read_ride(bytes(data), name=Path(file_name).stem,
+                             kind=suffix if suffix in ("csv", "gpx") else None)
+        except InputError as error:
+            raise InputError(f"{file_name}: {_first_line(error)}") from None
+        label = (label or "").strip() or ride.name
+        if label in (t.label for t in tests):
+            label = f"{label} ({index + 1})"
+        laps = None
+        if lap_times:
+            try:
+                laps = tuple(laps_from_bounds(indices_at_times(ride, lap_times),
+                                              ride.time.size))
+            except InputError as error:
+                raise InputError(f"{file_name}: {_first_line(error)}") from None
+        density, headwind, crosswind = ride_air(ride, conditions)
+        tests.append(PositionTest(label, ride, density, laps, headwind, crosswind))
+        notes.extend(f"{label}: {note}" for note in ride.notes)
+    return tests, notes
+
+
+def run_fieldtest(files, total_mass: float, conditions, method: str = "loop",
+                  rolling_coefficient: float | None = None,
+                  drivetrain_efficiency: float = 0.976,
+                  bootstrap: int = BOOTSTRAP_DRAWS) -> FieldTestRun:
+    """Read the rides and estimate CdA per position and a shared Crr.
+
+    Parameters
+    ----------
+    files : (file name, bytes, position label) per ride (see read_tests).
+    total_mass : rider + bike + kit [kg], 20-300.
+    conditions : pacing.conditions.Conditions; method : key of pacing.fieldtest.METHODS;
+    rolling_coefficient : Crr to hold [-], or None to fit it; drivetrain_efficiency : [-];
+    bootstrap : draws for the intervals.
+    """
+    from pacing.cycling import Rider
+    from pacing.fieldtest import estimate_drag
+
+    if not (np.isfinite(total_mass) and 20.0 <= total_mass <= 300.0):
+        raise InputError(f"rider + bike mass must be 20-300 kg, got {total_mass:g}")
+    if not 0.5 <= drivetrain_efficiency <= 1.0:
+        raise InputError(f"drivetrain efficiency must be 0.5-1, got {drivetrain_efficiency:g}")
+    tests, notes = read_tests(files, conditions)
+    rider = Rider(mass=float(total_mass), drivetrain_efficiency=float(drivetrain_efficiency))
+    result = estimate_drag(tests, rider, method=method, rolling_coefficient=rolling_coefficient,
+                           bootstrap=bootstrap)
+    for position in result.positions:
+        if not np.isfinite(position.drag_area):
+            raise InputError(f"no finite CdA for {position.label!r}: check the laps")
+    if not np.isfinite(result.rolling_coefficient):
+        raise InputError("no finite Crr: check the laps")
+    density = float(np.mean([np.mean(t.air_density) for t in tests]))
+    return FieldTestRun(result=result, tests=tuple(tests), air_density=density,
+                        notes=tuple(notes))
+
+
+# ------------------------------------------------------------------------------ tables
+
+def _interval(values, digits: int, unit: str = "") -> str:
+    if values is None:
+        return "no interval (fewer than 3 laps)"
+    return f"{values[0]:.{digits}f} to {values[1]:.{digits}f}{unit}"
+
+
+def position_table(result) -> pd.DataFrame:
+    """CdA per position with its 95 % interval, lap count and lap-to-lap spread."""
+    rows = []
+    for p in result.positions:
+        laps = np.asarray(p.lap_drag_area, dtype=float)
+        spread = (float(np.std(laps, ddof=1) / abs(np.mean(laps)) * 100.0)
+                  if laps.size >= 2 and np.all(np.isfinite(laps)) else None)
+        rows.append({
+            "Position": p.label,
+            "CdA [m²]": round(p.drag_area, 4),
+            "95 % interval [m²]": _interval(p.drag_area_ci95, 4),
+            "Laps": p.laps,
+            "Lap-to-lap spread [%]": "–" if spread is None else f"{spread:.1f}",
+        })
+    return pd.DataFrame(rows)
+
+
+def rolling_line(result) -> str:
+    """Crr in words, with its interval or "held"."""
+    if result.rolling_fixed:
+        return f"Crr {result.rolling_coefficient:.5f} (held at the value given)"
+    return (f"Crr {result.rolling_coefficient:.5f} (95 % interval "
+            f"{_interval(result.rolling_coefficient_ci95, 5)}), shared by all positions")
+
+
+def difference_lines(result) -> list[str]:
+    """Each position against the first: the CdA difference, its interval, and whether it is
+    significant (the 95 % bootstrap interval excludes 0)."""
+    lines = []
+    for d in result.differences:
+        word = ("a real difference (the 95 % interval excludes 0)" if d.significant
+                else "not a clear difference (the 95 % interval includes 0)"
+                if d.ci95 is not None else "no interval: ride at least 3 laps per position")
+        interval = "" if d.ci95 is None else f" (95 %: {_interval(d.ci95, 4, ' m²')})"
+        lines.append(f"{d.label} − {d.baseline}: {d.difference:+.4f} m²{interval}: {word}")
+    return lines
+
+
+# ------------------------------------------------------------------------------ figures
+
+def lap_figure(estimate, system: str) -> go.Figure:
+    """Virtual elevation of every lap of one position against what it should follow (the
+    measured heights, or the laps' mean trace for loop closure), and the residuals below."""
+    figure = make_subplots(rows=2, cols=1, shared_xaxes=True, row_heights=[0.68, 0.32],
+                           vertical_spacing=0.06)
+    for index, trace in enumerate(estimate.traces):
+        color = LAP_COLORS[index % len(LAP_COLORS)]
+        x = to_display(np.asarray(trace.distance, dtype=float), "distance", system)
+        name = f"lap {index + 1}"
+        figure.add_trace(go.Scatter(
+            x=x, y=to_display(np.asarray(trace.virtual_elevation), "elevation", system),
+            mode="lines", line=dict(color=color, width=1.6), name=f"{name}, virtual",
+            legendgroup=name, hovertemplate="%{x:.2f}: %{y:.1f}<extra>" + name + "</extra>"),
+            row=1, col=1)
+        reference = (trace.measured_elevation if trace.measured_elevation is not None
+                     else trace.reference_elevation)
+        figure.add_trace(go.Scatter(
+            x=x, y=to_display(np.asarray(reference), "elevation", system), mode="lines",
+            line=dict(color=REFERENCE_COLOR, width=1, dash="dot"),
+            name=f"{name}, {'measured' if trace.measured_elevation is not None else 'mean'}",
+            legendgroup=name, showlegend=index == 0, hoverinfo="skip"), row=1, col=1)
+        figure.add_trace(go.Scatter(
+            x=x, y=to_display(np.asarray(trace.residual), "elevation", system), mode="lines",
+            line=dict(color=color, width=1.2), legendgroup=name, showlegend=False,
+            hovertemplate="%{x:.2f}: %{y:+.2f}<extra>" + name + "</extra>"), row=2, col=1)
+    elev = unit_label("elevation", system)
+    figure.update_yaxes(title_text=f"elevation [{elev}]", row=1, col=1)
+    figure.update_yaxes(title_text=f"virtual − reference [{elev}]", row=2, col=1,
+                        zeroline=True, zerolinecolor=INK)
+    figure.update_xaxes(title_text=f"distance from the lap start "
+                                   f"[{unit_label('distance', system)}]", row=2, col=1)
+    figure.update_layout(height=460, margin=dict(l=10, r=10, t=40, b=10),
+                         plot_bgcolor="white", paper_bgcolor="white", font=dict(color=INK),
+                         title=dict(text=f"{estimate.label}: CdA {estimate.drag_area:.4f} m²",
+                                    x=0, font=dict(size=14)),
+                         legend=dict(orientation="h", yanchor="bottom", y=1.02, x=0.4))
+    figure.update_xaxes(showgrid=True, gridcolor="#e7ebef")
+    figure.update_yaxes(showgrid=True, gridcolor="#e7ebef")
+    return figure
+
+
+# ------------------------------------------------------------------------------ Streamlit
+
+def _first_line(error: Exception) -> str:
+    text = str(error).strip()
+    return text.splitlines()[0] if text else type(error).__name__
+
+
+@st.cache_resource(max_entries=8, show_spinner="Fitting CdA and Crr…")
+def _cached_run(key: str, _files, total_mass, _conditions, method, rolling, efficiency):
+    """(FieldTestRun, None) or (None, one-line refusal), keyed on the files' digests and
+    the inputs."""
+    try:
+        return run_fieldtest(_files, total_mass, _conditions, method, rolling, efficiency), None
+    except InputError as error:
+        return None, _first_line(error)
+    except (ValueError, ArithmeticError, np.linalg.LinAlgError) as error:
+        return None, f"the rides could not be fitted: {_first_line(error)}"
+
+
+def _conditions_inputs(system: str):
+    from pacing.conditions import Conditions
+    from ui.widgets import unit_number
+
+    cols = st.columns(3)
+    with cols[0]:
+        temperature = unit_number("Air temperature", "temperature", system, "ft_temperature",
+                                  20.0, -30.0, 50.0, 0.5)
+        humidity = unit_number("Relative humidity [%]", None, system, "ft_humidity", 50.0, 0.0,
+                               100.0, 1.0) / 100.0
+    with cols[1]:
+        pressure = 100.0 * unit_number("Sea-level pressure [hPa]", None, system, "ft_pressure",
+                                       1013.25, 870.0, 1085.0, 0.25)
+        height = unit_number("Wind measured at", "elevation", system, "ft_wind_height", 10.0,
+                             1.0, 100.0, 1.0, help="weather stations measure at 10 m")
+    with cols[2]:
+        wind = unit_number("Wind speed", "wind_speed", system, "ft_wind_speed", 0.0, 0.0, 20.0,
+                           0.5, help="test in calm air if you can")
+        wind_from = unit_number("Wind comes from [° from north]", None, system, "ft_wind_from",
+                                0.0, 0.0, 360.0, 5.0)
+    return Conditions(temperature=temperature, relative_humidity=humidity,
+                      sea_level_pressure=pressure, wind_speed=wind, wind_from=wind_from,
+                      wind_height=height)
+
+
+def render_fieldtest(system: str, location=None, athlete_id: int | None = None):
+    """Draw the field-test panel; returns the Setup made from a measured position in the run
+    where the user asks for one, else None.
+
+    Parameters
+    ----------
+    system : "metric" or "imperial".
+    location : library path or URL to save setups into; None takes the library the library
+        panel opened in this session (if any).
+    athlete_id : library athlete the setup belongs to; None takes the athlete chosen in the
+        library panel.
+    """
+    from ui.widgets import unit_number
+
+    st.subheader("Measure CdA on the road")
+    st.caption("Ride laps of a quiet loop with a power meter, one file per riding position "
+               "(CSV with time_s, speed_mps, power_w and optional elevation_m, latitude, "
+               "longitude; or GPX with power in the track-point extensions). Laps at clearly "
+               "different speeds let CdA and Crr be told apart.")
+    uploads = st.file_uploader("Test rides", type=["csv", "gpx"], accept_multiple_files=True,
+                               key="ft_files") or []
+    files = []
+    for index, upload in enumerate(uploads):
+        cols = st.columns([2, 3])
+        label = cols[0].text_input(f"Position ridden in {upload.name}",
+                                   value=Path(upload.name).stem,
+                                   key=f"ft_label:{index}:{upload.name}")
+        marks = cols[1].text_input(
+            "Lap starts [s from the ride start, comma separated]", value="",
+            key=f"ft_laps:{index}:{upload.name}",
+            help="leave empty to find the laps from the positions (each pass near the start "
+                 "point); give at least two times to mark them yourself")
+        try:
+            from ui.pipeline import parse_marks
+
+            lap_times = parse_marks(marks) if marks.strip() else ()
+        except InputError as error:
+            st.error(f"{upload.name}: lap starts: {_first_line(error)}", icon="⚠️")
+            return None
+        files.append((upload.name, upload.getvalue(), label, lap_times))
+    cols = st.columns(3)
+    with cols[0]:
+        mass = unit_number("Rider, bike and kit", "mass", system, "ft_mass", 80.0, 30.0, 250.0,
+                           0.5, help="everything that moves, weighed on the test day")
+    with cols[1]:
+        label = st.radio("Method", list(METHOD_LABELS), key="ft_method",
+                         help="laps close: every lap returns to its start height, so noisy "
+                              "GPS heights do not matter; recorded heights: follow a trusted "
+                              "elevation trace; steady laps: the regression of Lim et al. "
+                              "(2011), for laps at constant speed")
+    with cols[2]:
+        hold = st.checkbox("Hold Crr at a known value", key="ft_hold_crr")
+        rolling = None
+        if hold:
+            rolling = unit_number("Crr [-]", None, system, "ft_crr", 0.004, 0.0005, 0.03,
+                                  0.0005)
+        efficiency = unit_number("Drivetrain efficiency [%]", None, system, "ft_efficiency",
+                                 97.6, 85.0, 100.0, 0.1) / 100.0
+    with st.expander("Air on the test day", expanded=False):
+        try:
+            conditions = _conditions_inputs(system)
+        except InputError as error:
+            st.error(_first_line(error), icon="⚠️")
+            return None
+    if not files:
+        st.info("Upload one or more test rides to measure CdA.")
+        return None
+    digest = hashlib.sha256()
+    for name, data, position, lap_times in files:
+        digest.update(name.encode() + b"\0" + position.encode() + b"\0" + repr(lap_times).encode()
+                      + hashlib.sha256(data).digest())
+    key = f"{digest.hexdigest()}|{mass!r}|{conditions!r}|{METHOD_LABELS[label]}|{rolling!r}|" \
+          f"{efficiency!r}"
+    run, refusal = _cached_run(key, tuple(files), float(mass), conditions,
+                               METHOD_LABELS[label], rolling, float(efficiency))
+    if refusal:
+        st.error(refusal, icon="⚠️")
+        return None
+    result = run.result
+    cols = st.columns(len(result.positions) + 1)
+    for column, position in zip(cols, result.positions, strict=False):
+        column.metric(f"CdA · {position.label}", f"{position.drag_area:.3f} m²",
+                      help="95 % interval " + _interval(position.drag_area_ci95, 4, " m²"))
+    cols[-1].metric("Crr", f"{result.rolling_coefficient:.4f}",
+                    help="held" if result.rolling_fixed else
+                    "95 % interval " + _interval(result.rolling_coefficient_ci95, 5))
+    st.dataframe(position_table(result), hide_index=True, key="ft_positions")
+    st.caption(rolling_line(result) + f" · air density {run.air_density:.3f} kg/m³ · "
+               f"{result.laps} laps")
+    for line in difference_lines(result):
+        st.markdown(f"- {line}")
+    for warning in result.warnings:
+        st.warning(warning)
+    for note in run.notes:
+        st.caption(f"Note: {note}")
+    for index, position in enumerate(result.positions):
+        st.plotly_chart(lap_figure(position, system), key=f"ft_laps:{index}")
+    return _setup_maker(result, system, location, athlete_id)
+
+
+def _setup_maker(result, system: str, location, athlete_id):
+    from ui.widgets import unit_number
+
+    st.markdown("**Turn a measured position into a setup**")
+    cols = st.columns(4)
+    labels = [p.label for p in result.positions]
+    position = cols[0].selectbox("Position", labels, key="ft_setup_position")
+    name = cols[1].text_input("Setup name", value=position, key="ft_setup_name")
+    with cols[2]:
+        bike = unit_number("Bike and kit", "mass", system, "ft_setup_bike", 8.0, 0.0, 60.0, 0.1)
+    with cols[3]:
+        share = unit_number("Power share [%]", None, system, "ft_setup_share", 100.0, 30.0,
+                            120.0, 1.0, help="share of the athlete's power this position allows")
+    try:
+        setup = result.setup(position, name=name.strip() or position, bike_mass=bike,
+                             power_share=share / 100.0)
+    except InputError as error:
+        st.error(_first_line(error), icon="⚠️")
+        return None
+    made = None
+    cols = st.columns(2)
+    if cols[0].button("Make the setup", key="ft_make_setup"):
+        made = setup
+        st.success(f"Setup {setup.name!r}: CdA {setup.drag_area:.4f} m², Crr "
+                   f"{setup.rolling_coefficient:.5f}.")
+    if location is None:
+        location = st.session_state.get("library:location")
+    owner = athlete_id if athlete_id is not None else st.session_state.get("library:athlete_id")
+    if owner is not None and (location is not None or "library:location" in st.session_state):
+        if cols[1].button("Save it to the library", key="ft_save_setup"):
+            try:
+                from ui.library_panel import _library
+
+                stored = _library(location).add_setup(int(owner), setup)
+            except (InputError, ConflictError) as error:
+                st.error(_first_line(error), icon="⚠️")
+            else:
+                made = setup
+                st.success(f"Stored setup {stored.setup.name!r} (#{stored.id}) in the library.")
+    else:
+        cols[1].caption("Open the library and choose an athlete to save it there.")
+    return made
