@@ -17,7 +17,7 @@ from pacing.errors import InputError
 from pacing.io.exports import segment_table
 from pacing.units import format_quantity
 from pacing.wind import ROUGHNESS_LENGTHS
-from ui import figures, pipeline, sections, text
+from ui import comparison, fieldtest_panel, figures, library_panel, pipeline, sections, text
 
 st.set_page_config(page_title="pacing · race plan", layout="wide")
 
@@ -207,3 +207,21 @@ if outcome is not None and table is not None:
     sections.downloads(outcome, course, table, system, course.name)
 else:
     st.caption("Downloads appear once there is a predicted race.")
+
+# 7 · setups side by side -----------------------------------------------------------------
+st.header(text.SECTION_SETUPS)
+if st.toggle("Compare positions and equipment on this course", key="show_setups",
+             help="finish time, time won or lost along the course, break-even figures and "
+                  "what each change is worth; takes a few seconds"):
+    comparison.render_comparison_for_page(course, bounds, athlete, weather, approach, system)
+
+# 8 · coach's library ---------------------------------------------------------------------
+st.header(text.SECTION_LIBRARY)
+library_panel.render_library_for_page(source_bytes, source_name, course, bounds, athlete,
+                                      weather, approach, smoothing, allow_flat, outcome, system)
+
+# 9 · measure drag area on the road -------------------------------------------------------
+st.header(text.SECTION_ROAD_TEST)
+if st.toggle("Estimate CdA and Crr from test rides", key="show_road_test",
+             help="upload rides with power and speed (CSV or GPX) from a quiet loop"):
+    fieldtest_panel.render_fieldtest(system)

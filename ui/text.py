@@ -6,6 +6,9 @@ SECTION_WEATHER = "3 · Weather on the day"
 SECTION_APPROACH = "4 · Pacing approach"
 SECTION_OUTCOME = "5 · Predicted race"
 SECTION_TAKEAWAY = "6 · Take it with you"
+SECTION_SETUPS = "7 · Setups side by side"
+SECTION_LIBRARY = "8 · Coach's library"
+SECTION_ROAD_TEST = "9 · Measure drag area on the road"
 
 SPEED_CAUTION = (
     "Predicted speeds, above all on descents, are model estimates, not safe limits. "
