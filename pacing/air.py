@@ -109,6 +109,8 @@ DEFAULT_CO2_MOLE_FRACTION = 0.0004
 
 
 def _as_array(value, name: str) -> np.ndarray:
+    """`value` as a float array, or InputError naming `name` when it is not a finite number
+    (the one input check of pacing.air and pacing.wind)."""
     try:
         array = np.asarray(value, dtype=float)
     except (TypeError, ValueError):

@@ -16,10 +16,10 @@ and find by root finding on the simulation (scipy.optimize.brentq) the power, dr
 mass at which the setup's finish time equals the baseline's.
 
 The mixed plan picks, for every segment, the position (among setups of the same bike: equal
-mass and rolling coefficient) with the shortest steady-state segment time at its planned power
-(pacing.strategy.steady_segment_times), then rides the whole course with the inertial
-simulation, changing rider parameters at segment ends (`simulate_by_segments`), and reports
-whether the mix is faster than every single position.
+in every rider parameter but the drag area) with the shortest steady-state segment time at its
+planned power (pacing.strategy.steady_segment_times), then rides the whole course once with
+the inertial simulation, the drag area and power given per piece, and reports whether the mix
+is faster than every single position.
 
 References
 ----------
@@ -32,14 +32,14 @@ Brent, R.P. (1973). Algorithms for Minimization without Derivatives, ch. 4 (scip
 from __future__ import annotations
 
 import math
-from dataclasses import dataclass, replace
+from dataclasses import dataclass, fields, replace
 
 import numpy as np
 from scipy import optimize
 
 from pacing.cycling import Rider
 from pacing.errors import InputError
-from pacing.simulate import Prediction, SimulationOptions, simulate, speed_limits
+from pacing.simulate import Prediction, SimulationOptions, simulate
 from pacing.strategy import PlanRequest, RacePlan, make_plan, segment_model, steady_segment_times
 
 MAX_SETUPS = 12
@@ -351,90 +351,6 @@ def break_even(course, result: SetupResult, baseline: SetupResult, air,
 
 # ------------------------------------------------------------------------ mixed positions
 
-def _sub_course(course, first: int, last: int, end_radius: float | None):
-    """Points first..last of a course (a Course with the same fields), the last point's
-    corner radius lowered to end_radius when given."""
-    radius = np.array(course.corner_radius[first:last + 1], dtype=float)
-    if end_radius is not None:
-        radius[-1] = min(radius[-1], end_radius)
-    return replace(
-        course,
-        distance=np.asarray(course.distance[first:last + 1], dtype=float),
-        latitude=np.asarray(course.latitude[first:last + 1]),
-        longitude=np.asarray(course.longitude[first:last + 1]),
-        elevation=np.asarray(course.elevation[first:last + 1], dtype=float),
-        raw_elevation=np.asarray(course.raw_elevation[first:last + 1], dtype=float),
-        grade=np.asarray(course.grade[first:last], dtype=float),
-        heading=np.asarray(course.heading[first:last], dtype=float),
-        corner_radius=radius,
-    )
-
-
-def _sub_air(air, first: int, last: int):
-    return replace(air, density=np.asarray(air.density)[first:last],
-                   headwind=np.asarray(air.headwind)[first:last],
-                   crosswind=np.asarray(air.crosswind)[first:last])
-
-
-def simulate_by_segments(course, bounds, riders, piece_power, air,
-                         options: SimulationOptions | None = None) -> Prediction:
-    """Inertial simulation with a different Rider on each segment.
-
-    Each segment is simulated on its own (pacing.simulate.simulate) starting at the speed the
-    previous one ended with. Look-ahead braking across segment ends is kept: the speed limit
-    of the whole course at each segment end (pacing.simulate.speed_limits, which looks ahead
-    to every later corner) is imposed at that point through its corner radius,
-    R = limit²/a_lat. The pieces are concatenated into one Prediction.
-
-    Parameters
-    ----------
-    course : Course (N points); bounds : segment boundary point indices (K+1);
-    riders : one pacing.cycling.Rider per segment (K); piece_power : crank power per piece
-    [W], length N-1; air : CourseAir; options : SimulationOptions.
-    """
-    options = options or SimulationOptions()
-    bounds = np.asarray(bounds, dtype=int)
-    riders = list(riders)
-    if len(riders) != bounds.size - 1:
-        raise InputError(f"need one rider per segment ({bounds.size - 1}), got {len(riders)}")
-    piece_power = np.broadcast_to(np.asarray(piece_power, dtype=float),
-                                  (np.asarray(course.distance).size - 1,))
-    grade = np.asarray(course.grade, dtype=float)
-    road = np.diff(np.asarray(course.distance, dtype=float)) * np.sqrt(1.0 + grade**2)
-    limit = speed_limits(course, road, options)
-    parts = []
-    speed = float(options.start_speed)
-    for k, (first, last) in enumerate(zip(bounds[:-1], bounds[1:], strict=True)):
-        end_radius = None
-        if last < bounds[-1]:
-            end_radius = float(limit[last]) ** 2 / options.lateral_acceleration
-        part = simulate(_sub_course(course, first, last, end_radius), piece_power[first:last],
-                        riders[k], _sub_air(air, first, last),
-                        replace(options, start_speed=speed))
-        parts.append(part)
-        speed = float(part.speed[-1])
-    return _join(parts)
-
-
-def _join(parts: list[Prediction]) -> Prediction:
-    """One Prediction from consecutive ones (shared end points kept once, times chained)."""
-    time = [parts[0].time]
-    offset = float(parts[0].time[-1])
-    for part in parts[1:]:
-        time.append(part.time[1:] + offset)
-        offset += float(part.time[-1])
-    pieces = {name: np.concatenate([getattr(p, name) for p in parts])
-              for name in ("power", "air_speed", "yaw", "headwind", "aero", "rolling",
-                           "bearing", "drivetrain_loss", "potential", "kinetic", "braking",
-                           "walking")}
-    return Prediction(
-        distance=np.concatenate([parts[0].distance] + [p.distance[1:] for p in parts[1:]]),
-        time=np.concatenate(time),
-        speed=np.concatenate([parts[0].speed] + [p.speed[1:] for p in parts[1:]]),
-        **pieces,
-    )
-
-
 @dataclass(frozen=True, eq=False)
 class MixedPlan:
     """A position chosen for every segment, verified by the inertial simulation.
@@ -445,7 +361,8 @@ class MixedPlan:
     choice : index into `candidates` per segment, length K.
     candidates : names of the setups the choice was made among.
     piece_power : crank power per piece [W], length N-1 (each segment at its setup's plan).
-    prediction : the verified ride (simulate_by_segments).
+    prediction : the verified ride (pacing.simulate.simulate with the chosen drag area per
+        piece).
     finish_time : [s].
     best_single : name of the fastest single candidate, and `best_single_time` its time [s].
     gain : best_single_time − finish_time [s] (positive: the mix is faster).
@@ -467,19 +384,32 @@ class MixedPlan:
         return self.gain > 0
 
 
+SWAPPABLE_FIELDS = tuple(field.name for field in fields(Rider) if field.name != "drag_area")
+"""Rider parameters two setups must share to be swapped during a ride: everything but the
+drag area (the same bike, tyres, wheels and yaw response; only the position changes)."""
+
+
+def _same_bike(rider: Rider, other: Rider) -> bool:
+    """Whether two riders differ at most in drag area (per-piece values compared whole)."""
+    for name in SWAPPABLE_FIELDS:
+        mine, theirs = getattr(rider, name), getattr(other, name)
+        if name == "yaw_drag_table":
+            same = (mine is None and theirs is None) or (
+                mine is not None and theirs is not None
+                and np.array_equal(np.asarray(sorted(mine), dtype=float),
+                                   np.asarray(sorted(theirs), dtype=float)))
+        else:
+            same = np.array_equal(np.asarray(mine, dtype=float), np.asarray(theirs, dtype=float))
+        if not same:
+            return False
+    return True
+
+
 def mix_candidates(comparison: Comparison) -> list[SetupResult]:
-    """Setups that can be swapped during a ride: those with the fastest setup's mass, rolling
-    coefficient and drivetrain (positions on one bike)."""
+    """Setups that can be swapped during a ride: those equal to the fastest setup in every
+    rider parameter but the drag area (SWAPPABLE_FIELDS: positions on one bike)."""
     best = comparison.fastest.setup.rider
-
-    def same_bike(result: SetupResult) -> bool:
-        rider = result.setup.rider
-        return (rider.mass == best.mass
-                and np.array_equal(np.asarray(rider.rolling_coefficient),
-                                   np.asarray(best.rolling_coefficient))
-                and rider.drivetrain_efficiency == best.drivetrain_efficiency)
-
-    return [result for result in comparison.results if same_bike(result)]
+    return [result for result in comparison.results if _same_bike(result.setup.rider, best)]
 
 
 def mixed_plan(course, comparison: Comparison, air, options: SimulationOptions | None = None,
@@ -488,12 +418,16 @@ def mixed_plan(course, comparison: Comparison, air, options: SimulationOptions |
 
     For each segment k and candidate j the steady-state segment time t_kj at the candidate's
     planned segment power (pacing.strategy.steady_segment_times) is computed; segment k is
-    ridden with argmin_j t_kj. The result is then ridden by `simulate_by_segments`.
+    ridden with argmin_j t_kj. The whole course is then ridden once by the inertial simulation
+    with that setup's drag area and planned power on each piece (the candidates share every
+    other rider parameter), so speed carries over segment ends and look-ahead braking sees the
+    whole course.
 
     Parameters
     ----------
     course : Course; comparison : Comparison; air : CourseAir; options : SimulationOptions;
-    candidates : names of the setups to mix; None for `mix_candidates(comparison)`.
+    candidates : names of the setups to mix; None for `mix_candidates(comparison)`. Named
+        setups must differ only in drag area (InputError otherwise).
 
     Returns
     -------
@@ -503,6 +437,10 @@ def mixed_plan(course, comparison: Comparison, air, options: SimulationOptions |
         chosen = mix_candidates(comparison)
     else:
         chosen = [comparison.result(name) for name in candidates]
+        for result in chosen[1:]:
+            if not _same_bike(result.setup.rider, chosen[0].setup.rider):
+                raise InputError(f"setups {chosen[0].name!r} and {result.name!r} differ in more "
+                                 f"than CdA; only positions on one bike can be mixed")
     if len(chosen) < 2:
         return None
     bounds = comparison.bounds
@@ -513,10 +451,13 @@ def mixed_plan(course, comparison: Comparison, air, options: SimulationOptions |
     ])
     choice = np.argmin(times, axis=0)
     segment_of_piece = np.repeat(np.arange(bounds.size - 1), np.diff(bounds))
+    pieces = np.arange(segment_of_piece.size)
     powers = np.vstack([result.plan.piece_power for result in chosen])
-    piece_power = powers[choice[segment_of_piece], np.arange(segment_of_piece.size)]
-    riders = [chosen[j].setup.rider for j in choice]
-    prediction = simulate_by_segments(course, bounds, riders, piece_power, air, options)
+    piece_power = powers[choice[segment_of_piece], pieces]
+    areas = np.vstack([np.broadcast_to(np.asarray(result.setup.rider.drag_area, dtype=float),
+                                       pieces.shape) for result in chosen])
+    rider = replace(chosen[0].setup.rider, drag_area=areas[choice[segment_of_piece], pieces])
+    prediction = simulate(course, piece_power, rider, air, options)
     best = min(chosen, key=lambda result: result.finish_time)
     return MixedPlan(
         names=tuple(chosen[j].name for j in choice),

@@ -32,6 +32,7 @@ from dataclasses import dataclass
 import numpy as np
 
 from pacing.constants import STANDARD_GRAVITY
+from pacing.errors import InputError
 
 MARTIN_1998 = {
     "drivetrain_efficiency": 0.976,
@@ -48,6 +49,9 @@ wheels), r [m], Crr [-], bearing loss P = v·(91 + 8.7·v)·1e-3 W → a [N], b 
 WALKING_SPEED = 1.0
 """Ground speed below which a point is flagged as 'walking pace' [m/s]."""
 
+PER_PIECE_FIELDS = ("drag_area", "rolling_coefficient")
+"""Rider parameters that may be given per piece of a course (one value per piece)."""
+
 
 @dataclass(frozen=True, eq=False)
 class Rider:
@@ -56,8 +60,10 @@ class Rider:
     Attributes
     ----------
     mass : rider + bike + kit [kg].
-    drag_area : CdA of rider and bike in still air, pedalling [m²].
-    rolling_coefficient : Crr [-]; scalar, or one value per piece of the course.
+    drag_area : CdA of rider and bike in still air, pedalling [m²]; a number, or one value
+        per piece of the course (a position chosen piece by piece, e.g. low on the flats and
+        upright on the climbs).
+    rolling_coefficient : Crr [-]; a number, or one value per piece of the course.
     drivetrain_efficiency : η, crank power reaching the wheel [-].
     wheel_drag_area : F_w, the rotating-wheel drag term [m²].
     wheel_inertia : moment of inertia of both wheels [kg·m²].
@@ -66,10 +72,14 @@ class Rider:
     drafting_reduction : fraction of the rider's own drag removed by drafting, 0..1 [-].
     yaw_drag_table : optional ((yaw [deg], CdA multiplier [-]), ...), symmetric in yaw,
         interpolated linearly in |yaw|; None means the multiplier is 1 at every yaw.
+
+    Per-piece values are stored as read-only float arrays (a copy); every force and speed
+    function broadcasts them against its piece arrays, and pacing.simulate checks that there
+    is one value per piece. Invalid values raise pacing.errors.InputError (one line).
     """
 
     mass: float = 80.0
-    drag_area: float = 0.30
+    drag_area: float | np.ndarray = 0.30
     rolling_coefficient: float | np.ndarray = MARTIN_1998["rolling_coefficient"]
     drivetrain_efficiency: float = MARTIN_1998["drivetrain_efficiency"]
     wheel_drag_area: float = MARTIN_1998["wheel_drag_area"]
@@ -81,10 +91,25 @@ class Rider:
     yaw_drag_table: tuple[tuple[float, float], ...] | None = None
 
     def __post_init__(self) -> None:
+        for name in PER_PIECE_FIELDS:
+            value = getattr(self, name)
+            if np.ndim(value) > 1:
+                raise InputError(f"{name.replace('_', ' ')} must be a number or one value "
+                                 f"per piece, got an array of shape {np.shape(value)}")
+            if np.ndim(value) == 1:
+                array = np.array(value, dtype=float)  # a copy: later edits cannot reach it
+                array.flags.writeable = False
+                object.__setattr__(self, name, array)
+        drag_area = np.asarray(self.drag_area, dtype=float)
+        rolling = np.asarray(self.rolling_coefficient, dtype=float)
+        valid_per_piece = {
+            "drag_area": np.isfinite(drag_area) & (drag_area > 0),
+            "rolling_coefficient": np.isfinite(rolling) & (rolling >= 0),
+        }
         checks = {
             "mass": self.mass > 0,
-            "drag_area": self.drag_area > 0,
-            "rolling_coefficient": np.all(np.asarray(self.rolling_coefficient) >= 0),
+            "drag_area": bool(np.all(valid_per_piece["drag_area"])),
+            "rolling_coefficient": bool(np.all(valid_per_piece["rolling_coefficient"])),
             "drivetrain_efficiency": 0 < self.drivetrain_efficiency <= 1,
             "wheel_drag_area": self.wheel_drag_area >= 0,
             "wheel_inertia": self.wheel_inertia >= 0,
@@ -93,7 +118,12 @@ class Rider:
         }
         for name, ok in checks.items():
             if not ok:
-                raise ValueError(f"invalid {name}: {getattr(self, name)!r}")
+                value = getattr(self, name)
+                shown = repr(value)
+                if np.ndim(value) == 1:  # one line, not the whole array
+                    first = int(np.argmin(valid_per_piece[name]))
+                    shown = f"{value[first]:g} on piece {first} of {value.size}"
+                raise InputError(f"invalid {name}: {shown}")
 
     @property
     def effective_mass(self) -> float:
@@ -240,22 +270,25 @@ def speed_for_power(
     ----------
     power : crank power [W], ≥ 0 (negative values are treated as 0).
     grade : rise/run [-]; air_density [kg/m³]; headwind, crosswind [m/s].
+    rider : Rider; per-piece drag_area and rolling_coefficient broadcast with the arrays above.
     minimum_speed : floor of the result [m/s].
     tolerance : relative tolerance on speed [-].
     """
-    power, grade, rho, head, cross = np.broadcast_arrays(
+    power, grade, rho, head, cross, _, _ = np.broadcast_arrays(
         np.maximum(np.asarray(power, dtype=float), 0.0),
         np.asarray(grade, dtype=float),
         np.asarray(air_density, dtype=float),
         np.asarray(headwind, dtype=float),
         np.asarray(crosswind, dtype=float),
+        np.asarray(rider.drag_area, dtype=float),  # per-piece rider values set the shape too
+        np.asarray(rider.rolling_coefficient, dtype=float),
     )
     drive = rider.drivetrain_efficiency * power
     rolling = np.broadcast_to(rolling_force(grade, rider), grade.shape)
     constant = rolling + gravity_force(grade, rider) + rider.bearing_force_constant
 
     plain_area = rider.drag_area * (1.0 - rider.drafting_reduction) + rider.wheel_drag_area
-    plain_k = 0.5 * rho * plain_area
+    plain_k = 0.5 * rho * plain_area  # per piece when drag_area is
 
     def g_and_slope(v: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
         along = v + head

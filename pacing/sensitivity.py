@@ -245,7 +245,7 @@ def _draws(uncertainty: Uncertainty, samples: int, generator, extra: int = 0) ->
 def _perturbed_time(course, power, rider, conditions, options, density_model,
                     d_cda, d_crr, d_mass, d_wind) -> float:
     changed = replace(rider,
-                      drag_area=max(rider.drag_area + d_cda, 0.01),
+                      drag_area=np.maximum(rider.drag_area + d_cda, 0.01),
                       rolling_coefficient=np.maximum(
                           np.asarray(rider.rolling_coefficient, dtype=float) + d_crr, 0.0),
                       mass=max(rider.mass + d_mass, 20.0))

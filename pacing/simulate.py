@@ -254,6 +254,19 @@ def _piece_inputs(course, power, air) -> tuple[np.ndarray, ...]:
     return power, arrays[0], arrays[1], arrays[2]
 
 
+def _per_piece_rider(rider: Rider, pieces: int) -> tuple[np.ndarray, np.ndarray]:
+    """The rider's drag area [m²] and rolling coefficient [-] as piece arrays (length N-1);
+    InputError when a per-piece array has the wrong length."""
+    arrays = []
+    for name, label in (("drag_area", "drag area (CdA)"), ("rolling_coefficient", "Crr")):
+        value = np.asarray(getattr(rider, name), dtype=float)
+        if value.ndim == 1 and value.shape != (pieces,):
+            raise InputError(f"{label} must be one number or one per piece ({pieces}), "
+                             f"got {value.size} values")
+        arrays.append(np.broadcast_to(value, (pieces,)))
+    return arrays[0], arrays[1]
+
+
 def speed_limits(course, road_length: np.ndarray, options: SimulationOptions) -> np.ndarray:
     """Highest speed at each point, with look-ahead braking [m/s], length N.
 
@@ -281,7 +294,7 @@ class _Piece:
     """One piece's constants for the scalar step solver (reused from piece to piece)."""
 
     __slots__ = ("head", "cross", "k", "constant", "b", "a", "rho", "rider", "plain", "length",
-                 "m_eff", "drive_cap", "walking_speed")
+                 "m_eff", "drive_cap", "walking_speed", "drag_area", "own_share", "wheel")
 
     def __init__(self, rider: Rider, m_eff: float, drive_cap: float,
                  walking_speed: float) -> None:
@@ -289,21 +302,23 @@ class _Piece:
         self.plain = rider.yaw_drag_table is None
         self.a = rider.bearing_force_constant
         self.b = rider.bearing_force_per_speed
+        self.own_share = 1.0 - rider.drafting_reduction
+        self.wheel = rider.wheel_drag_area
         self.m_eff = m_eff
         self.drive_cap = drive_cap
         self.walking_speed = walking_speed
-        self.set(0.0, 1.2, 0.0, 0.0, 0.0)
+        self.set(0.0, 1.2, 0.0, 0.0, 0.0, 0.0)
 
     def set(self, length: float, density: float, headwind: float, crosswind: float,
-            constant: float) -> None:
-        """Move to a piece: road length [m], air, and the speed-independent forces [N]."""
-        rider = self.rider
+            constant: float, drag_area: float) -> None:
+        """Move to a piece: road length [m], air, the speed-independent forces [N] and the
+        rider's drag area on this piece [m²]."""
         self.length = length
         self.rho = density
         self.head = headwind
         self.cross = crosswind
-        self.k = 0.5 * density * (rider.drag_area * (1.0 - rider.drafting_reduction)
-                                  + rider.wheel_drag_area)
+        self.drag_area = drag_area
+        self.k = 0.5 * density * (drag_area * self.own_share + self.wheel)
         self.constant = constant
 
     def aero(self, v: float) -> tuple[float, float]:
@@ -313,10 +328,8 @@ class _Piece:
         k = self.k
         if not self.plain:
             yaw = math.degrees(math.atan2(self.cross, along))
-            rider = self.rider
-            k = 0.5 * self.rho * (rider.drag_area * float(yaw_multiplier(
-                yaw, rider.yaw_drag_table)) * (1.0 - rider.drafting_reduction)
-                + rider.wheel_drag_area)
+            k = 0.5 * self.rho * (self.drag_area * float(yaw_multiplier(
+                yaw, self.rider.yaw_drag_table)) * self.own_share + self.wheel)
         slope = k * (apparent + along * along / apparent) if apparent > 0 else 0.0
         return k * apparent * along, slope
 
@@ -443,7 +456,8 @@ def simulate(course, power, rider: Rider, air, options: SimulationOptions | None
     ----------
     course : pacing.course.Course (N points).
     power : planned crank power per piece [W], length N-1, or one number.
-    rider : pacing.cycling.Rider.
+    rider : pacing.cycling.Rider; its drag_area [m²] and rolling_coefficient [-] may be one
+        value per piece (length N-1), e.g. a riding position chosen segment by segment.
     air : per-piece air (e.g. pacing.conditions.CourseAir): .density [kg/m³], .headwind [m/s]
         (positive against the direction of travel), .crosswind [m/s]; arrays of length N-1.
     options : SimulationOptions.
@@ -460,6 +474,7 @@ def simulate(course, power, rider: Rider, air, options: SimulationOptions | None
     pieces = len(road)
     limit = np.maximum(speed_limits(course, road, options), 0.1)
 
+    drag_area, _ = _per_piece_rider(rider, pieces)
     m_eff = rider.effective_mass
     eta = rider.drivetrain_efficiency
     rolling_per_piece = np.broadcast_to(rolling_force(grade, rider), grade.shape).astype(float)
@@ -479,10 +494,16 @@ def simulate(course, power, rider: Rider, air, options: SimulationOptions | None
     speed[0] = v
 
     piece = _Piece(rider, m_eff, drive_cap, options.minimum_speed)
+    # plain Python floats for the scalar loop (indexing lists is faster than numpy scalars)
+    road_list, density_list = road.tolist(), density.tolist()
+    head_list, cross_list = headwind.tolist(), crosswind.tolist()
+    constant_list = ((rolling_per_piece + gravity_per_piece) + a_bearing).tolist()
+    area_list, power_list = drag_area.tolist(), power.tolist()
+    limit_list = limit.tolist()
     for i in range(pieces):
-        piece.set(float(road[i]), float(density[i]), float(headwind[i]), float(crosswind[i]),
-                  float(rolling_per_piece[i] + gravity_per_piece[i]) + a_bearing)
-        drive = eta * float(power[i])
+        piece.set(road_list[i], density_list[i], head_list[i], cross_list[i],
+                  constant_list[i], area_list[i])
+        drive = eta * power_list[i]
         v_start = v
         result = _ride(piece, v_start, drive)
         brake = 0.0
@@ -492,10 +513,10 @@ def simulate(course, power, rider: Rider, air, options: SimulationOptions | None
             if coast[0] < coasting:  # ease off to end the piece at the coasting speed
                 eased = _held_at(piece, v_start, coasting)
                 result = eased if eased[2] >= 0 else coast
-        if result[0] > limit[i + 1]:
+        if result[0] > limit_list[i + 1]:
             coast = result if result[2] == 0.0 else _ride(piece, v_start, 0.0)
-            result = _held_at(piece, v_start, float(limit[i + 1]))
-            if coast[0] > limit[i + 1] or result[2] < 0:
+            result = _held_at(piece, v_start, limit_list[i + 1])
+            if coast[0] > limit_list[i + 1] or result[2] < 0:
                 brake = max(-result[2], 0.0)
                 result = (*result[:2], 0.0, *result[3:])
         v, t_piece, work, aero_work, bearing_work = result
@@ -539,9 +560,11 @@ def steady_prediction(course, power, rider: Rider, air,
 
     Parameters
     ----------
-    As simulate; minimum_speed : walking-pace flag threshold [m/s].
+    As simulate (per-piece drag area and Crr included); minimum_speed : walking-pace flag
+    threshold [m/s].
     """
     power, density, headwind, crosswind = _piece_inputs(course, power, air)
+    _per_piece_rider(rider, power.size)
     grade = np.asarray(course.grade, dtype=float)
     road = np.diff(np.asarray(course.distance, dtype=float)) * np.sqrt(1.0 + grade**2)
     piece_speed = speed_for_power(power, grade, density, rider, headwind, crosswind)

@@ -19,6 +19,7 @@ from __future__ import annotations
 
 import numpy as np
 
+from pacing.air import _as_array
 from pacing.errors import InputError
 
 ROUGHNESS_LENGTHS: dict[str, float] = {
@@ -53,16 +54,6 @@ DEFAULT_ROUGHNESS_CLASS = "open grassland"
 PROFILE_LOWEST_HEIGHT_RATIO = 2.0
 """The log profile is used no closer to the ground than this many roughness lengths [-]; see
 `log_profile_factor`."""
-
-
-def _as_array(value, name: str) -> np.ndarray:
-    try:
-        array = np.asarray(value, dtype=float)
-    except (TypeError, ValueError):
-        raise InputError(f"{name} must be a number, got {value!r}") from None
-    if not np.all(np.isfinite(array)):
-        raise InputError(f"{name} must be a finite number")
-    return array
 
 
 def _positive(value, name: str, unit: str) -> np.ndarray:

@@ -132,7 +132,7 @@ def test_coach_workflow_in_chromium(server, page, tmp_path):
     # upload a GPX
     gpx = tmp_path / "hill road.gpx"
     gpx.write_bytes(small_gpx(6.0))
-    page.locator('input[type="file"]').set_input_files(str(gpx))
+    page.locator('input[type="file"][accept*=".gpx"]').set_input_files(str(gpx))
     page.wait_for_function(
         "() => [...document.querySelectorAll('[data-testid=\"stMetricValue\"]')]"
         ".some(e => e.innerText.trim().startsWith('6.0'))", timeout=CONTENT_TIMEOUT_MS)

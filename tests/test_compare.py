@@ -17,8 +17,8 @@ from pacing.compare import (
     break_even,
     compare_setups,
     from_athlete,
+    mix_candidates,
     mixed_plan,
-    simulate_by_segments,
 )
 from pacing.conditions import Conditions, air_along_course, still_air
 from pacing.constants import STANDARD_GRAVITY
@@ -34,7 +34,7 @@ from pacing.sensitivity import (
     sampled_finish_time,
     sensitivity,
 )
-from pacing.simulate import SimulationOptions, simulate
+from pacing.simulate import SimulationOptions, simulate, speed_limits
 from pacing.strategy import PlanRequest
 
 CONSTANT_250 = PlanRequest(strategy="constant", mean_power=250.0)
@@ -322,6 +322,39 @@ def corner_course():
     return synthetic_course(distance, elevation, heading=0.0, corner_radius=radius)
 
 
+def ride_by_segments(course, bounds, riders, piece_power, air, options=None):
+    """Reference for a position changed by segment: each segment simulated on its own with
+    its own scalar Rider (pacing.simulate.simulate on a sub-course), starting at the speed the
+    previous one ended with. Look-ahead braking across a segment end is kept by imposing the
+    whole course's speed limit there (pacing.simulate.speed_limits) through the corner
+    radius R = limit²/a_lat. Returns (time [s] and speed [m/s] at every point, braking [J])."""
+    options = options or SimulationOptions()
+    grade = np.asarray(course.grade, dtype=float)
+    road = np.diff(course.distance) * np.sqrt(1.0 + grade**2)
+    limit = speed_limits(course, road, options)
+    piece_power = np.broadcast_to(np.asarray(piece_power, dtype=float), road.shape)
+    times, speeds, braking = [0.0], [float(options.start_speed)], 0.0
+    for rider, first, last in zip(riders, bounds[:-1], bounds[1:], strict=True):
+        radius = np.array(course.corner_radius[first:last + 1], dtype=float)
+        if last < bounds[-1]:
+            radius[-1] = min(radius[-1], float(limit[last]) ** 2 / options.lateral_acceleration)
+        part_course = dataclasses.replace(
+            course, distance=course.distance[first:last + 1],
+            latitude=course.latitude[first:last + 1], longitude=course.longitude[first:last + 1],
+            elevation=course.elevation[first:last + 1],
+            raw_elevation=course.raw_elevation[first:last + 1], grade=course.grade[first:last],
+            heading=course.heading[first:last], corner_radius=radius)
+        part_air = dataclasses.replace(air, density=air.density[first:last],
+                                       headwind=air.headwind[first:last],
+                                       crosswind=air.crosswind[first:last])
+        part = simulate(part_course, piece_power[first:last], rider, part_air,
+                        dataclasses.replace(options, start_speed=speeds[-1]))
+        times.extend(part.time[1:] + times[-1])
+        speeds.extend(part.speed[1:])
+        braking += float(part.braking.sum())
+    return np.array(times), np.array(speeds), braking
+
+
 def test_simulating_by_segments_with_one_rider_equals_one_simulation():
     """Chaining segments keeps look-ahead braking for corners beyond a segment end."""
     course = corner_course()
@@ -329,10 +362,10 @@ def test_simulating_by_segments_with_one_rider_equals_one_simulation():
     rider = Rider(mass=80.0, drag_area=0.30)
     bounds = np.array([0, 100, 200, 300])
     whole = simulate(course, 300.0, rider, air)
-    parts = simulate_by_segments(course, bounds, [rider] * 3, 300.0, air)
-    assert parts.finish_time == pytest.approx(whole.finish_time, rel=1e-9)
-    assert parts.speed == pytest.approx(whole.speed, rel=1e-9)
-    assert parts.braking.sum() == pytest.approx(whole.braking.sum(), rel=1e-6)
+    time, speed, braking = ride_by_segments(course, bounds, [rider] * 3, 300.0, air)
+    assert time[-1] == pytest.approx(whole.finish_time, rel=1e-9)
+    assert speed == pytest.approx(whole.speed, rel=1e-9)
+    assert braking == pytest.approx(whole.braking.sum(), rel=1e-6)
     assert whole.braking.sum() > 0  # the corners do bind
 
 
@@ -362,7 +395,6 @@ def test_no_mixed_plan_without_two_positions_of_one_bike():
     assert mixed_plan(course, comparison, air) is None
 
 
-@pytest.mark.skip(reason="waiting for per-piece drag area in simulate")
 def test_per_piece_drag_area_in_simulate_matches_riding_by_segments():
     course = hill_course()
     air = still_air(course, 1.2)
@@ -370,8 +402,53 @@ def test_per_piece_drag_area_in_simulate_matches_riding_by_segments():
     areas = np.repeat([0.25, 0.32, 0.25], np.diff(HILL_BOUNDS))
     whole = simulate(course, 250.0, dataclasses.replace(rider, drag_area=areas), air)
     riders = [dataclasses.replace(rider, drag_area=a) for a in (0.25, 0.32, 0.25)]
-    parts = simulate_by_segments(course, HILL_BOUNDS, riders, 250.0, air)
-    assert whole.finish_time == pytest.approx(parts.finish_time, rel=1e-9)
+    time, speed, _ = ride_by_segments(course, HILL_BOUNDS, riders, 250.0, air)
+    assert whole.finish_time == pytest.approx(time[-1], rel=1e-9)
+    assert whole.speed == pytest.approx(speed, rel=1e-9)
+
+
+def test_the_mixed_ride_equals_each_segment_ridden_by_its_own_setup():
+    """The mixed plan's single simulation (drag area and power per piece) reproduces riding
+    each segment with the chosen setup's own Rider, speed carried over, corners included."""
+    course = corner_course()
+    air = air_along_course(course, Conditions(wind_speed=3.0, wind_from=200.0))
+    bounds = np.array([0, 100, 200, 300])
+    table = ((0.0, 1.0), (15.0, 0.9))
+    setups = [RiderSetup("upright", Rider(mass=78, drag_area=0.33, yaw_drag_table=table)),
+              RiderSetup("aero", Rider(mass=78, drag_area=0.24, yaw_drag_table=table),
+                         power_share=0.88)]
+    comparison = compare_setups(course, bounds, setups, air, CONSTANT_250)
+    mixed = mixed_plan(course, comparison, air)
+    assert set(mixed.names) == {"upright", "aero"}  # both positions are used
+    riders = [comparison.result(name).setup.rider for name in mixed.names]
+    time, speed, braking = ride_by_segments(course, bounds, riders, mixed.piece_power, air)
+    assert mixed.finish_time == pytest.approx(time[-1], rel=1e-9)
+    assert mixed.prediction.speed == pytest.approx(speed, rel=1e-9)
+    assert mixed.prediction.braking.sum() == pytest.approx(braking, rel=1e-6)
+    assert mixed.prediction.energy_balance_residual < 1e-6
+
+
+def test_only_setups_that_differ_in_drag_area_alone_are_mixed():
+    """A position swap mid-ride keeps the bike: a setup with another yaw response, mass or
+    Crr is no candidate, and naming one explicitly is refused in one line."""
+    course = hill_course()
+    air = still_air(course, 1.2)
+    setups = [RiderSetup("hoods", Rider(mass=80, drag_area=0.32)),
+              RiderSetup("aero", Rider(mass=80, drag_area=0.25), power_share=0.95),
+              RiderSetup("deep", Rider(mass=80, drag_area=0.25,
+                                       yaw_drag_table=((0.0, 1.0), (15.0, 0.9))),
+                         power_share=0.95),
+              RiderSetup("slick", Rider(mass=80, drag_area=0.25, rolling_coefficient=0.0025),
+                         power_share=0.95)]
+    comparison = compare_setups(course, HILL_BOUNDS, setups, air, CONSTANT_250)
+    assert comparison.fastest.name == "slick"  # same CdA as aero, less rolling resistance
+    assert [r.name for r in mix_candidates(comparison)] == ["slick"]
+    assert mixed_plan(course, comparison, air) is None
+    mixed = mixed_plan(course, comparison, air, candidates=["hoods", "aero"])
+    assert mixed.candidates == ("hoods", "aero")
+    with pytest.raises(InputError, match="differ in more than CdA") as error:
+        mixed_plan(course, comparison, air, candidates=["aero", "deep"])
+    assert "\n" not in str(error.value)
 
 
 # ------------------------------------------------------------------------ uncertainty

@@ -25,6 +25,7 @@ from pacing.cycling import (
     speed_for_power,
     yaw_multiplier,
 )
+from pacing.errors import InputError
 
 MARTIN_RIDER = Rider(mass=80.0, drag_area=0.269)
 """REFERENCES.md worked-value rider: m = 80 kg, CdA = 0.269 m², Martin et al. constants."""
@@ -194,6 +195,56 @@ def test_invalid_rider_is_refused():
         Rider(mass=-1.0)
     with pytest.raises(ValueError):
         Rider(drag_area=0.0)
+
+
+# ---------------------------------------------------------------- per-piece drag area and Crr
+
+def test_per_piece_drag_area_and_crr_give_each_piece_its_own_steady_speed():
+    # reference: scipy brentq on the Martin et al. balance, one scalar rider per piece
+    areas = np.array([0.22, 0.30, 0.36, 0.25])
+    rolling = np.array([0.003, 0.004, 0.0025, 0.006])
+    grade = np.array([0.0, 0.06, -0.03, 0.01])
+    head, cross = np.array([2.0, -1.0, 0.0, 4.0]), np.array([1.0, 0.0, 3.0, -2.0])
+    table = ((0.0, 1.0), (15.0, 0.92))
+    for yaw_table in (None, table):
+        rider = Rider(drag_area=areas, rolling_coefficient=rolling, yaw_drag_table=yaw_table)
+        speed = speed_for_power(250.0, grade, 1.2, rider, head, cross)
+        for i in range(areas.size):
+            own = Rider(drag_area=float(areas[i]), rolling_coefficient=float(rolling[i]),
+                        yaw_drag_table=yaw_table)
+            assert speed[i] == pytest.approx(
+                _brentq_speed(250.0, grade[i], 1.2, own, head[i], cross[i]), rel=1e-9)
+        # and back: the power for those speeds is the power asked for, piece by piece
+        assert power_for_speed(speed, grade, 1.2, rider, head, cross) == pytest.approx(250.0)
+
+
+def test_per_piece_drag_area_broadcasts_against_a_single_grade():
+    rider = Rider(drag_area=[0.25, 0.30])
+    speed = speed_for_power(250.0, 0.0, 1.2, rider)
+    assert speed.shape == (2,) and speed[0] > speed[1]
+
+
+def test_per_piece_values_are_kept_as_a_read_only_copy():
+    areas = np.array([0.25, 0.30])
+    rider = Rider(drag_area=areas)
+    areas[0] = 5.0  # the caller's array changes later; the rider does not
+    assert rider.drag_area.tolist() == [0.25, 0.30]
+    with pytest.raises(ValueError):
+        rider.drag_area[0] = 0.1
+    assert isinstance(Rider(drag_area=0.3).drag_area, float)  # a number stays a number
+
+
+@pytest.mark.parametrize(("changes", "message"), [
+    ({"drag_area": [0.3, 0.0, 0.25]}, "invalid drag_area: 0 on piece 1 of 3"),
+    ({"drag_area": [0.3, math.nan]}, "invalid drag_area: nan on piece 1 of 2"),
+    ({"drag_area": math.inf}, "invalid drag_area: inf"),
+    ({"rolling_coefficient": [0.004, -0.001]}, "invalid rolling_coefficient: -0.001 on piece 1"),
+    ({"drag_area": [[0.3, 0.3]]}, "one value per piece"),
+])
+def test_invalid_per_piece_values_are_refused_in_one_line(changes, message):
+    with pytest.raises(InputError) as error:
+        Rider(**changes)
+    assert message in str(error.value) and "\n" not in str(error.value)
 
 
 # ---------------------------------------------------------------- properties

@@ -402,3 +402,86 @@ def test_a_single_piece_course_and_a_course_air_object():
     prediction = simulate(course, 200.0, Rider(), air)
     assert prediction.time.shape == (2,) and prediction.finish_time > 0
     assert prediction.energy_balance_residual < 1e-6
+
+
+# ---------------------------------------------------------------- per-piece drag area and Crr
+
+def test_one_drag_area_per_piece_of_equal_values_is_the_scalar_ride_exactly():
+    course = hilly_course(2000.0)
+    air = windy_air(course)
+    pieces = course.grade.size
+    scalar = simulate(course, 250.0, Rider(drag_area=0.28), air)
+    per_piece = simulate(course, 250.0, Rider(drag_area=np.full(pieces, 0.28)), air)
+    assert per_piece.finish_time == scalar.finish_time
+    assert np.array_equal(per_piece.speed, scalar.speed)
+    assert np.array_equal(per_piece.aero, scalar.aero)
+
+
+def test_steady_prediction_with_per_piece_drag_area_and_crr_matches_brentq():
+    """Flat, windless: each piece at its steady speed, the root of the Martin et al. (1998)
+    balance η·P = v·(½ρ(CdA_i + F_w)v² + Crr_i·m·g + a + b·v) by scipy brentq."""
+    from scipy.optimize import brentq
+
+    x = np.arange(0.0, 4001.0, 10.0)
+    course = synthetic_course(x, np.zeros(x.size))
+    pieces = course.grade.size
+    areas = np.where(np.arange(pieces) < 200, 0.24, 0.33)
+    rolling = np.where(np.arange(pieces) % 2 == 0, 0.003, 0.005)
+    rider = Rider(mass=78.0, drag_area=areas, rolling_coefficient=rolling)
+    steady = steady_prediction(course, 250.0, rider, still(course))
+
+    def steady_speed(area, crr):
+        def balance(v):
+            return v * (0.5 * 1.2 * (area + rider.wheel_drag_area) * v**2 + crr * 78.0 * G
+                        + rider.bearing_force_constant + rider.bearing_force_per_speed * v
+                        ) - rider.drivetrain_efficiency * 250.0
+        return brentq(balance, 0.5, 40.0, xtol=1e-14)
+
+    expected = sum(10.0 / steady_speed(area, crr)
+                   for area, crr in zip(areas, rolling, strict=True))
+    assert steady.finish_time == pytest.approx(expected, rel=1e-10)
+    assert steady.energy_balance_residual < 1e-9
+
+
+def test_per_piece_drag_area_changes_speed_where_it_changes():
+    # 2 km flat at 250 W from a steady start: the lower position on the second kilometre only
+    x = np.arange(0.0, 2001.0, 10.0)
+    course = synthetic_course(x, np.zeros(x.size))
+    air = still(course)
+    upright = Rider(drag_area=0.32)
+    start = float(speed_for_power(250.0, 0.0, 1.2, upright))
+    areas = np.where(np.arange(course.grade.size) < 100, 0.32, 0.24)
+    mixed = simulate(course, 250.0, Rider(drag_area=areas), air,
+                     SimulationOptions(start_speed=start))
+    assert mixed.speed[100] == pytest.approx(start, rel=1e-6)  # unchanged up to the switch
+    # then speeds up without overshoot towards the lower position's steady speed: 1 km later
+    # it is within 0.1 % of it (measured 0.03 % short; the approach is exponential)
+    low = float(speed_for_power(250.0, 0.0, 1.2, Rider(drag_area=0.24)))
+    assert np.all(np.diff(mixed.speed[100:]) >= 0) and np.all(mixed.speed < low)
+    assert mixed.speed[-1] == pytest.approx(low, rel=1e-3)
+    assert mixed.energy_balance_residual < 1e-6
+
+
+@pytest.mark.parametrize("changes", [{"drag_area": np.full(3, 0.3)},
+                                     {"rolling_coefficient": np.full(3, 0.004)}])
+def test_per_piece_values_of_the_wrong_length_are_refused(changes):
+    course = hilly_course(1000.0)
+    for ride in (simulate, steady_prediction):
+        with pytest.raises(InputError, match="one per piece") as error:
+            ride(course, 250.0, Rider(**changes), still(course))
+        assert "\n" not in str(error.value)
+
+
+@settings(max_examples=20, deadline=None)
+@given(st.lists(st.integers(0, SMALL.grade.size - 1), min_size=1, max_size=40, unique=True),
+       st.floats(0.005, 0.1), st.floats(100.0, 400.0), st.floats(0.0, 6.0))
+def test_less_drag_area_on_any_pieces_is_never_slower(lowered, saving, power, headwind):
+    """Property: in still air or a headwind less CdA on some pieces lowers the resisting force
+    there at every speed, so the ride is never slower. (Not so in a tailwind faster than the
+    rider, e.g. from a standing start: there the wind pushes, and less area is slower.)"""
+    air = still(SMALL, headwind=headwind)
+    areas = np.full(SMALL.grade.size, 0.32)
+    base = simulate(SMALL, power, Rider(drag_area=areas), air).finish_time
+    areas[lowered] -= saving
+    faster = simulate(SMALL, power, Rider(drag_area=areas), air).finish_time
+    assert faster <= base * (1 + 1e-9)

@@ -5,9 +5,10 @@ to measure against, and reads at a glance which is fastest, by how much, how sur
 where on the course the time is won or lost, what each setup may give away before it stops
 paying, what each parameter is worth, and whether changing position by segment pays.
 
-Every number comes from the library (pacing.compare, pacing.sensitivity); this module turns
-them into plotly figures, tables and sentences (pure helpers, testable without Streamlit) and
-draws them (`render_comparison`, `render_comparison_for_page`).
+Every number comes from the library (pacing.compare, pacing.sensitivity); ui.comparison_tables
+and ui.comparison_figures turn them into tables, sentences and plotly figures (pure helpers,
+testable without Streamlit; their names stay importable from here), and this module draws them
+(`render_comparison`, `render_comparison_for_page`).
 
 Sign convention (as in pacing.compare): a time difference is setup − baseline [s]; positive =
 slower.
@@ -21,22 +22,47 @@ from dataclasses import dataclass, replace
 
 import numpy as np
 import pandas as pd
-import plotly.graph_objects as go
 import streamlit as st
 
 from pacing.errors import InputError
-from pacing.units import MILE_PER_HOUR, POUND, format_duration, to_display, unit_label
+from pacing.units import format_duration, to_display, unit_label
+from ui.comparison_figures import (
+    BASELINE_COLOR,
+    FASTER_COLOR,
+    INK,
+    SETUP_COLORS,
+    SLOWER_COLOR,
+    TERRAIN_FILL,
+    difference_figure,
+    gap_along_figure,
+    mixed_figure,
+)
+from ui.comparison_tables import (
+    SENSITIVITY_ROWS,
+    break_even_sentences,
+    mixed_summary,
+    results_table,
+    segment_table,
+    sensitivity_table,
+    signed_time,
+    verdict,
+)
+
+__all__ = [
+    # the setups, the analysis and the Streamlit view (this module)
+    "MAX_SHOWN_SETUPS", "DEFAULT_SPREAD", "COLUMNS", "mass_column", "default_setup_rows",
+    "setups_from_rows", "SetupsReport", "analyse_setups", "render_comparison",
+    "render_comparison_for_page",
+    # words and tables (ui.comparison_tables)
+    "SENSITIVITY_ROWS", "signed_time", "verdict", "results_table", "sensitivity_table",
+    "break_even_sentences", "segment_table", "mixed_summary",
+    # figures (ui.comparison_figures)
+    "FASTER_COLOR", "SLOWER_COLOR", "BASELINE_COLOR", "INK", "TERRAIN_FILL", "SETUP_COLORS",
+    "difference_figure", "gap_along_figure", "mixed_figure",
+]
 
 MAX_SHOWN_SETUPS = 6
 """Most setups the view compares at once (the library allows more; six stay readable)."""
-
-FASTER_COLOR = "#1b7f79"
-SLOWER_COLOR = "#b5542c"
-BASELINE_COLOR = "#7a8794"
-INK = "#1d2b3a"
-TERRAIN_FILL = "rgba(29,43,58,0.08)"
-SETUP_COLORS = ("#1d2b3a", "#0f6e8c", "#b5542c", "#6a3d9a", "#5a6b2f", "#c28f1a")
-"""Line colours of the setups, in table order (our own palette; dark, distinct hues)."""
 
 DEFAULT_SPREAD = {"drag_area": 0.005, "rolling_coefficient": 0.0003, "mass": 0.5, "wind": 1.0}
 """Default 1 σ of the inputs, the command line's (pacing.cli.compare.DEFAULT_SD): CdA 0.005 m²
@@ -214,260 +240,6 @@ def analyse_setups(course, bounds, air, setups, request, conditions, uncertainty
     return SetupsReport(comparison=comparison, sensitivities=sensitivities, spreads=spreads,
                         break_evens=breaks, mixed=mixed_plan(course, comparison, air, options))
 
-
-# ------------------------------------------------------------------------------ words, tables
-
-def signed_time(seconds: float) -> str:
-    """+12.3 s / −1:05.2 style text of a time difference (− = faster)."""
-    if not math.isfinite(seconds):
-        return "–"
-    sign = "+" if seconds > 0.05 else "−" if seconds < -0.05 else "±"
-    size = abs(seconds)
-    if size < 60:
-        return f"{sign}{size:.1f} s"
-    minutes, rest = divmod(size, 60.0)
-    return f"{sign}{int(minutes)}:{rest:04.1f} min"
-
-
-def verdict(delta: float, spread: float) -> str:
-    """Whether a difference stands out from its 1 σ spread: beyond 2σ "clear", else "within
-    the uncertainty" (a two-sided ≈95 % rule, common practice)."""
-    if spread <= 0:
-        return "no uncertainty given"
-    return "clear" if abs(delta) > 2.0 * spread else "within the uncertainty"
-
-
-def results_table(report: SetupsReport, system: str) -> pd.DataFrame:
-    """One row per setup, fastest first: finish time, difference, ± 1σ, mean power, speed."""
-    comparison = report.comparison
-    base = comparison.baseline_result
-    rows = []
-    for r in sorted(comparison.results, key=lambda result: result.finish_time):
-        spread = report.spreads[r.name].standard_deviation
-        distance = float(comparison.distance[-1] - comparison.distance[0])
-        rows.append({
-            "Setup": r.name + (" (baseline)" if r is base else ""),
-            "Finish [h:mm:ss]": format_duration(r.finish_time),
-            f"vs {base.name}": "—" if r is base else signed_time(r.delta),
-            "± 1σ [s]": round(spread, 1),
-            "Difference": "baseline" if r is base else verdict(r.delta, spread),
-            "Mean power [W]": round(r.mean_power),
-            f"Average speed [{unit_label('speed', system)}]": round(
-                float(to_display(distance / r.finish_time, "speed", system)), 1),
-        })
-    return pd.DataFrame(rows)
-
-
-SENSITIVITY_ROWS = ("drag_area", "mass", "power", "rolling_coefficient", "wind")
-
-
-def sensitivity_table(report: SetupsReport, system: str) -> pd.DataFrame:
-    """Seconds of finish time per step of each parameter, one column per setup (+ = slower).
-
-    Steps: +0.01 m² CdA, +1 kg (imperial: +1 lb), +10 W, +0.001 Crr, +1 m/s wind from the
-    forecast direction (imperial: +1 mph). The per-lb and per-mph figures are the per-kg and
-    per-m/s ones times 0.45359237 and 0.44704 (the sensitivity is linear at this scale).
-    """
-    first = next(iter(report.sensitivities.values()))
-    labels = {
-        "drag_area": "CdA +0.01 m²",
-        "mass": "mass +1 lb" if system == "imperial" else "mass +1 kg",
-        "power": "mean power +10 W",
-        "rolling_coefficient": "Crr +0.001",
-        "wind": (f"wind +1 mph from {first.wind_direction:.0f}°" if system == "imperial"
-                 else f"wind +1 m/s (3.6 km/h) from {first.wind_direction:.0f}°"),
-    }
-    scale = {"mass": POUND if system == "imperial" else 1.0,
-             "wind": MILE_PER_HOUR if system == "imperial" else 1.0}
-    frame = {"Change": [labels[name] for name in SENSITIVITY_ROWS]}
-    for name, sens in report.sensitivities.items():
-        frame[f"{name} [s]"] = [round(float(getattr(sens, key)) * scale.get(key, 1.0), 1)
-                                for key in SENSITIVITY_ROWS]
-    return pd.DataFrame(frame)
-
-
-def break_even_sentences(report: SetupsReport, system: str) -> list[str]:
-    """Break-even figures in words, one sentence per setup (each figure alone, the rest of
-    the setup held)."""
-    comparison = report.comparison
-    base = comparison.baseline_result.name
-    lines = []
-    for name, be in report.break_evens.items():
-        result = comparison.result(name)
-        faster = result.delta < 0
-        parts = []
-        if be.power_margin is not None:
-            if be.power_margin >= 0:
-                parts.append(f"may lose up to {be.power_margin:.1f} W of mean power "
-                             f"(down to {be.power:.0f} W)")
-            else:
-                parts.append(f"needs {-be.power_margin:.1f} W more mean power "
-                             f"({be.power:.0f} W)")
-        if be.drag_area_margin is not None:
-            if be.drag_area_margin >= 0:
-                parts.append(f"may add up to {be.drag_area_margin:.4f} m² of CdA")
-            else:
-                parts.append(f"must save {-be.drag_area_margin:.4f} m² of CdA")
-        if be.mass_margin is not None:
-            shown = abs(float(to_display(be.mass_margin, "mass", system)))
-            mass_unit = unit_label("mass", system)
-            if be.mass_margin >= 0:
-                parts.append(f"may carry up to {shown:.1f} {mass_unit} more")
-            else:
-                parts.append(f"must shed {shown:.1f} {mass_unit}")
-        if not parts:
-            lines.append(f"**{name}**: no power, CdA or mass in the searched range ties it "
-                         f"with {base}.")
-            continue
-        ending = f"and still be faster than {base}" if faster else f"to catch {base}"
-        lines.append(f"**{name}** ({signed_time(result.delta)}) " + "; or ".join(parts)
-                     + f" {ending}.")
-    return lines
-
-
-def segment_table(report: SetupsReport, course, system: str) -> pd.DataFrame:
-    """Time won (−) or lost (+) on each segment against the baseline [s], one column per
-    other setup."""
-    comparison = report.comparison
-    bounds = comparison.bounds
-    distance = np.asarray(course.distance, dtype=float)
-    elevation = np.asarray(course.elevation, dtype=float)
-    start, end = distance[bounds[:-1]], distance[bounds[1:]]
-    grade = (elevation[bounds[1:]] - elevation[bounds[:-1]]) / np.where(end > start,
-                                                                        end - start, 1.0)
-    dist = unit_label("distance", system)
-    frame = {
-        "Segment": np.arange(1, bounds.size),
-        f"From [{dist}]": np.round(to_display(start, "distance", system), 2),
-        f"To [{dist}]": np.round(to_display(end, "distance", system), 2),
-        "Grade [%]": np.round(100 * grade, 1),
-    }
-    for r in comparison.results:
-        if r is not comparison.baseline_result:
-            frame[f"{r.name} [s]"] = np.round(r.segment_delta, 1)
-    return pd.DataFrame(frame)
-
-
-def mixed_summary(report: SetupsReport) -> str:
-    """The position-by-segment plan in one sentence."""
-    mixed = report.mixed
-    if mixed is None:
-        return ("Changing position by segment needs at least two setups of the same bike "
-                "(same bike and kit mass and Crr as the fastest setup).")
-    used = sorted(set(mixed.names), key=mixed.names.index)
-    if len(used) == 1:
-        return (f"{used[0]} is the quicker position on every segment: changing position "
-                "does not pay on this course.")
-    counts = ", ".join(f"{name} on {mixed.names.count(name)} segments" for name in used)
-    if mixed.faster:
-        return (f"Changing position by segment ({counts}) finishes in "
-                f"{format_duration(mixed.finish_time)}, {mixed.gain:.1f} s quicker than "
-                f"{mixed.best_single} throughout.")
-    return (f"Changing position by segment ({counts}) is not quicker than "
-            f"{mixed.best_single} throughout ({signed_time(-mixed.gain)}).")
-
-
-# ------------------------------------------------------------------------------ figures
-
-def _layout(figure: go.Figure, height: int, legend: bool = False) -> go.Figure:
-    figure.update_layout(height=height, margin=dict(l=10, r=10, t=36, b=10),
-                         plot_bgcolor="white", paper_bgcolor="white", font=dict(color=INK),
-                         showlegend=legend,
-                         legend=dict(orientation="h", yanchor="bottom", y=1.02, x=0))
-    figure.update_xaxes(showgrid=True, gridcolor="#e7ebef", zeroline=False)
-    figure.update_yaxes(showgrid=True, gridcolor="#e7ebef", zeroline=False)
-    return figure
-
-
-def difference_figure(report: SetupsReport) -> go.Figure:
-    """Ranked horizontal bars of each setup's finish-time difference to the baseline [s],
-    fastest on top, with ± 1σ whiskers (difference_spread); teal = faster, rust = slower."""
-    comparison = report.comparison
-    base = comparison.baseline_result
-    ranked = sorted(comparison.results, key=lambda r: r.finish_time)
-    names = [f"{r.name} · baseline" if r is base else f"{r.name} · {signed_time(r.delta)}"
-             for r in ranked]
-    deltas = np.array([r.delta for r in ranked])
-    errors = np.array([0.0 if r is base else report.spreads[r.name].standard_deviation
-                       for r in ranked])
-    colors = [BASELINE_COLOR if r is base else FASTER_COLOR if r.delta < 0 else SLOWER_COLOR
-              for r in ranked]
-    figure = go.Figure(go.Bar(
-        x=deltas, y=names, orientation="h", marker=dict(color=colors),
-        error_x=dict(type="data", array=errors, color=INK, thickness=1.2, width=5),
-        hovertemplate="%{y}: %{x:+.1f} s<extra></extra>"))
-    figure.add_vline(x=0, line=dict(color=INK, width=1))
-    figure.update_yaxes(autorange="reversed")
-    figure.update_xaxes(title_text=f"finish time vs {base.name} [s]  (− quicker, + slower; "
-                                   "whiskers ± 1σ)")
-    return _layout(figure, 90 + 46 * len(ranked))
-
-
-def gap_along_figure(report: SetupsReport, course, system: str) -> go.Figure:
-    """Cumulative time won (−) or lost (+) against the baseline along the course [s], one
-    line per setup, over the elevation profile (shaded, right axis)."""
-    from plotly.subplots import make_subplots
-
-    comparison = report.comparison
-    distance = to_display(np.asarray(comparison.distance, dtype=float), "distance", system)
-    figure = make_subplots(specs=[[{"secondary_y": True}]])
-    elevation = to_display(np.asarray(course.elevation, dtype=float), "elevation", system)
-    keep = _thin(distance.size)
-    figure.add_trace(go.Scatter(x=distance[keep], y=elevation[keep], mode="lines",
-                                line=dict(color="rgba(29,43,58,0.25)", width=1),
-                                fill="tozeroy", fillcolor=TERRAIN_FILL, name="terrain",
-                                hoverinfo="skip", showlegend=False), secondary_y=True)
-    for index, r in enumerate(comparison.results):
-        is_base = r is comparison.baseline_result
-        figure.add_trace(go.Scatter(
-            x=distance[keep], y=np.asarray(r.delta_along)[keep], mode="lines", name=r.name,
-            line=dict(color=SETUP_COLORS[index % len(SETUP_COLORS)], width=1 if is_base else 2,
-                      dash="dot" if is_base else "solid"),
-            hovertemplate=f"{r.name}: " + "%{y:+.1f} s at %{x:.2f}<extra></extra>"),
-            secondary_y=False)
-    low, high = float(np.min(elevation)), float(np.max(elevation))
-    span = max(high - low, 1.0)
-    figure.update_yaxes(title_text="time vs baseline [s]  (− ahead)", secondary_y=False)
-    figure.update_yaxes(title_text=f"elevation [{unit_label('elevation', system)}]",
-                        range=[low - 0.1 * span, high + 1.5 * span], showgrid=False,
-                        secondary_y=True)
-    figure.update_xaxes(title_text=f"distance [{unit_label('distance', system)}]")
-    return _layout(figure, 340, legend=True)
-
-
-def mixed_figure(report: SetupsReport, course, system: str) -> go.Figure | None:
-    """The position chosen on each segment as coloured bands over the elevation profile."""
-    mixed = report.mixed
-    if mixed is None:
-        return None
-    bounds = report.comparison.bounds
-    distance = to_display(np.asarray(course.distance, dtype=float), "distance", system)
-    elevation = to_display(np.asarray(course.elevation, dtype=float), "elevation", system)
-    names = list(report.comparison.results)
-    color_of = {r.name: SETUP_COLORS[i % len(SETUP_COLORS)] for i, r in enumerate(names)}
-    figure = go.Figure()
-    shown = set()
-    for k, name in enumerate(mixed.names):
-        a, b = int(bounds[k]), int(bounds[k + 1])
-        part = slice(a, b + 1)
-        figure.add_trace(go.Scatter(
-            x=distance[part], y=elevation[part], mode="lines", fill="tozeroy",
-            line=dict(color=color_of[name], width=2), name=name,
-            legendgroup=name, showlegend=name not in shown,
-            hovertemplate=f"segment {k + 1}: {name}<extra></extra>"))
-        shown.add(name)
-    low, high = float(np.min(elevation)), float(np.max(elevation))
-    span = max(high - low, 1.0)
-    figure.update_yaxes(title_text=f"elevation [{unit_label('elevation', system)}]",
-                        range=[low - 0.15 * span, high + 0.15 * span])
-    figure.update_xaxes(title_text=f"distance [{unit_label('distance', system)}]")
-    return _layout(figure, 240, legend=True)
-
-
-def _thin(count: int, limit: int = 2500) -> np.ndarray:
-    if count <= limit:
-        return np.arange(count)
-    return np.unique(np.linspace(0, count - 1, limit).round().astype(int))
 
 
 # ------------------------------------------------------------------------------ Streamlit

@@ -10,6 +10,13 @@ import argparse
 
 from pacing.errors import InputError
 
+CAUTION = (
+    "Caution: predicted speeds, above all on descents, are model estimates, not safe limits. "
+    "Ride within your skills and the road; obey traffic law and race rules. Consult a physician "
+    "before hard efforts."
+)
+"""Printed under every human-readable prediction (not in JSON output)."""
+
 
 def add_air_flags(parser: argparse.ArgumentParser) -> None:
     """Air and wind flags (issue: cycling physics), shared by plan, compare and fieldtest."""

@@ -21,7 +21,7 @@ import sys
 import numpy as np
 
 from pacing import units
-from pacing.cli.common import add_air_flags, add_rider_flags
+from pacing.cli.common import CAUTION, add_air_flags, add_rider_flags
 from pacing.errors import InputError
 
 SETUP_KEYS = ("cda", "power", "mass", "crr", "yaw")
@@ -437,4 +437,5 @@ def run(args: argparse.Namespace) -> int:
         sys.stdout.write("\n")
     else:
         print(as_table(result))
+        print(CAUTION)
     return 0

@@ -18,6 +18,7 @@ import sys
 import numpy as np
 
 from pacing import units
+from pacing.cli.common import CAUTION
 from pacing.cycling import Rider
 from pacing.errors import InputError
 from pacing.simulate import Prediction, SegmentResult, SimulationOptions, segment_results
@@ -203,6 +204,7 @@ def run(args: argparse.Namespace) -> int:
         sys.stdout.write("\n")
     else:
         print(prediction_as_table(prediction, segments))
+        print(CAUTION)
     return 0
 
 
@@ -312,4 +314,5 @@ def run_strategy(args: argparse.Namespace) -> int:
         sys.stdout.write("\n")
     else:
         print(plan_as_table(plan, segments))
+        print(CAUTION)
     return 0

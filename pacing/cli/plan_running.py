@@ -14,6 +14,7 @@ import sys
 
 from pacing import units
 from pacing.athlete import Athlete
+from pacing.cli.common import CAUTION
 from pacing.conditions import Conditions, air_along_course
 from pacing.course import split_by_grade, split_every
 from pacing.errors import InputError
@@ -171,4 +172,5 @@ def run(args: argparse.Namespace) -> int:
         sys.stdout.write("\n")
     else:
         print(plan_as_table(plan, runner))
+        print(CAUTION)
     return 0

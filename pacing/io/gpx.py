@@ -17,12 +17,9 @@ from __future__ import annotations
 import os
 import re
 import warnings
-import xml.etree.ElementTree as ElementTree
 from dataclasses import dataclass
 from pathlib import Path
 
-import defusedxml
-import defusedxml.ElementTree
 import gpxpy
 import gpxpy.gpx
 import numpy as np
@@ -35,6 +32,7 @@ from pacing.course import (
     validate_track,
 )
 from pacing.errors import InputError
+from pacing.io.safe_xml import local_name, parse_xml
 
 MAX_GPX_BYTES = 50 * 1024 * 1024
 """Largest GPX file accepted [bytes] (50 MiB: a day-long 1 s recording is about 10 MiB)."""
@@ -127,15 +125,7 @@ def _decode(data: bytes) -> str:
 
 def _check_xml(data: bytes) -> None:
     """Parse with defusedxml (no DTD, no entities, no external references) before gpxpy."""
-    try:
-        root = defusedxml.ElementTree.fromstring(
-            data, forbid_dtd=True, forbid_entities=True, forbid_external=True)
-    except defusedxml.DefusedXmlException:
-        raise InputError("GPX file declares a DTD or entities; such files are refused "
-                         "for safety") from None
-    except ElementTree.ParseError as error:
-        raise InputError(f"not a GPX file: the XML does not parse ({error})") from None
-    tag = root.tag.rsplit("}", 1)[-1]
+    tag = local_name(parse_xml(data, "GPX file").tag)
     if tag != "gpx":
         raise InputError(f"not a GPX file: the root element is <{tag}>, not <gpx>")
 

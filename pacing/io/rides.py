@@ -46,13 +46,13 @@ import os
 import re
 from pathlib import Path
 
-import defusedxml
-import defusedxml.ElementTree
 import numpy as np
 import pandas as pd
 
 from pacing.errors import InputError
-from pacing.fieldtest import EARTH_RADIUS, Ride, make_ride
+from pacing.fieldtest import Ride, make_ride
+from pacing.io.safe_xml import local_name, parse_xml
+from pacing.ride import local_position
 
 __all__ = ["Ride", "read_ride", "read_ride_csv", "read_ride_gpx", "CSV_COLUMNS"]
 
@@ -192,7 +192,7 @@ def read_ride_csv(source, name: str = "ride", **options) -> Ride:
 
 
 def _local(tag: str) -> str:
-    return tag.rsplit("}", 1)[-1].lower()
+    return local_name(tag).lower()
 
 
 def _number(text: str | None) -> float:
@@ -205,14 +205,7 @@ def _number(text: str | None) -> float:
 def read_ride_gpx(source, name: str = "ride", **options) -> Ride:
     """Read a test ride from GPX track points carrying power and speed (module docstring)."""
     data = source if isinstance(source, bytes) else _read_bytes(source)[0]
-    try:
-        root = defusedxml.ElementTree.fromstring(
-            data, forbid_dtd=True, forbid_entities=True, forbid_external=True)
-    except defusedxml.DefusedXmlException:
-        raise InputError("GPX file declares a DTD or entities; such files are refused "
-                         "for safety") from None
-    except Exception as error:  # xml.etree.ElementTree.ParseError and decoding errors
-        raise InputError(f"not a GPX file: the XML does not parse ({error})") from None
+    root = parse_xml(data, "GPX file")
     if _local(root.tag) != "gpx":
         raise InputError(f"not a GPX file: the root element is <{_local(root.tag)}>")
     rows = []
@@ -252,9 +245,7 @@ def read_ride_gpx(source, name: str = "ride", **options) -> Ride:
     if np.isnan(speed).all():
         if np.any(np.diff(time) <= 0):
             raise InputError("time does not increase along the GPX track")
-        lat0 = np.radians(latitude[0])
-        east = EARTH_RADIUS * np.cos(lat0) * np.radians(longitude - longitude[0])
-        north = EARTH_RADIUS * np.radians(latitude - latitude[0])
+        east, north = local_position(latitude, longitude, (latitude[0], longitude[0]))
         along = np.concatenate(([0.0], np.cumsum(np.hypot(np.diff(east), np.diff(north)))))
         speed = np.gradient(along, time)
         notes.append("speed taken from GNSS positions (noisier than a wheel sensor)")

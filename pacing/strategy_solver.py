@@ -1,0 +1,545 @@
+"""The fastest cycling plan in the steady-state segment model (pacing.segment_model).
+
+Minimise T = Σ t_k(P_k) subject to one coupling constraint
+    E(P) = Σ (P_k − c)·t_k(P_k) − E₀ = 0,
+with c = P̄, E₀ = 0 for an equal time-weighted mean power, and c = 0, E₀ = work of the
+constant plan for an equal total work, and lo_k ≤ P_k ≤ hi_k. The problem separates: for a
+multiplier λ each segment minimises its own Lagrangian t_k(P)·(1 + λ·(P − c)) on [lo_k, hi_k]
+(its stationarity condition is t_k′·(1 + λ(P − c)) + λ·t_k = 0: every free segment buys the
+same time per joule), and λ is the root of the monotone E(P(λ)) = 0. Those two nested 1-D
+problems (a vectorised safeguarded Newton over all segments inside a safeguarded Newton on
+λ, dE/dλ = −Σ b_k²/a_k by implicit differentiation) solve the pure mean-power case exactly.
+
+When the athlete's W′ balance (reserve) or the effort cap would be broken:
+1. the broken limit gets a price in every segment's Lagrangian, μ·(P − CP)⁺·t_k for W′ spent
+   above CP or ν·P⁴·t_k for the effort measure, and the lowest price whose plan keeps the limit
+   is found by false position (the problem stays separable, so it is as fast as above);
+   when both limits break, the highest common power ceiling that keeps them is used instead;
+2. on up to _SLSQP_MAX_SEGMENTS segments, scipy's SLSQP then polishes that feasible plan on the
+   full problem (W′ balance at every segment end, recovery included), with analytic gradients
+   of time, mean power and W′ balance; its answer is kept only when feasible and faster.
+The solver's effort measure is the time-weighted 4th-power mean of the segment powers, an upper
+bound of the effort-weighted power (a 30 s rolling mean can only lower it).
+
+Split from pacing.strategy, where the public names stay importable.
+
+References
+----------
+Martin, J.C. et al. (1998). J Appl Biomech 14(3):276-291. doi:10.1123/jab.14.3.276
+Atkinson, G., Peacock, O. & Passfield, L. (2007). Variable versus constant power strategies
+during cycling time-trials: prediction of time savings using an up-to-date mathematical model.
+J Sports Sci 25(9):1001-1009. doi:10.1080/02640410600944709
+Bos, L., Slawinski, M.A., Slawinski, R.A. & Stanoev, T. (2024). On minimizing cyclists' ascent
+times. arXiv:2403.03363.
+Kraft, D. (1988). A software package for sequential quadratic programming. DFVLR-FB 88-28
+(scipy.optimize SLSQP).
+"""
+
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass
+
+import numpy as np
+from scipy import optimize
+
+from pacing.errors import InputError
+from pacing.physiology import recovery_time_constant, w_prime_balance
+from pacing.plan_request import PlanRequest, power_limits
+from pacing.segment_model import SegmentModel, steady_segment_times
+
+_POWER_TOLERANCE = 1e-11  # relative, on segment powers
+_PRICE_TOLERANCE = 1e-3  # slack left by the priced plan, relative to W′ or the cap
+_SLSQP_MAX_SEGMENTS = 120  # above this the dense SLSQP polish costs more than it gains
+
+
+@dataclass(frozen=True)
+class SolverReport:
+    """How the fastest plan was found, and evidence that it is optimal.
+
+    Attributes
+    ----------
+    method : "constant"; "lagrange" (coupling constraint and bounds only); "lagrange+price"
+        or "lagrange+ceiling" (a limit priced, or a common power ceiling), with "+slsqp" when
+        SLSQP improved that plan.
+    multiplier : λ, time saved per joule-equivalent of the coupling constraint [s/J]
+        (Lagrange stage); None when not used.
+    iterations : solver iterations (outer root finding + SLSQP iterations).
+    evaluations : steady-state evaluations of the whole course.
+    stationarity : largest relative KKT stationarity residual over free segments [-]
+        (≈ 0 at the optimum; every free segment has the same marginal time per joule).
+    message : the solver's own message.
+    correction_rounds : times the plan was re-solved because the verified ride broke a limit
+        the solver held (or kept it with slack).
+    active : limits held by the solver at its solution ("w-prime-reserve", "effort-cap").
+    """
+
+    method: str
+    multiplier: float | None = None
+    iterations: int = 0
+    evaluations: int = 0
+    stationarity: float = 0.0
+    message: str = ""
+    correction_rounds: int = 0
+    active: tuple = ()
+
+
+# ------------------------------------------------------------------ fastest plan, steady state
+
+def _coupling(request: PlanRequest, model: SegmentModel) -> tuple[float, float]:
+    """(c, E₀) of the coupling constraint Σ (P_k − c)·t_k = E₀."""
+    mean = float(request.mean_power)
+    if request.constraint == "mean-power":
+        return mean, 0.0
+    time, _, _ = steady_segment_times(model, np.full(model.count, mean))
+    return 0.0, mean * float(time.sum())
+
+
+@dataclass(frozen=True)
+class _Prices:
+    """Prices of the limits in the segment Lagrangian: μ·(P − CP)⁺·t (W′ spent above CP) and
+    ν·P⁴·t (the solver's effort measure)."""
+
+    w_prime: float = 0.0
+    critical_power: float = math.inf
+    effort: float = 0.0
+
+
+def _segment_argmin(model, multiplier, centre, lower, upper, start, counter, prices=None):
+    """Minimise t_k(P)·(1 + λ(P − c)) (+ priced limits) over [lo_k, hi_k] for every segment
+    (safeguarded Newton, vectorized over segments).
+
+    Returns (power, time, slope of the coupling constraint b_k = t_k + (P_k − c)·t_k′,
+    curvature of the Lagrangian a_k, free-segment mask).
+    """
+    prices = prices or _Prices()
+    low, high = lower.copy(), upper.copy()
+    power = np.clip(start, lower, upper)
+    kink = prices.critical_power
+    for _ in range(60):
+        time, dtime, d2time = steady_segment_times(model, power)
+        counter[0] += 1
+        weight = 1.0 + multiplier * (power - centre)
+        gradient = dtime * weight + multiplier * time
+        hessian = d2time * weight + 2.0 * multiplier * dtime
+        at_kink = np.zeros(power.shape, dtype=bool)
+        if prices.w_prime > 0:
+            excess = power - kink
+            above = excess > 0
+            gradient = gradient + prices.w_prime * np.where(above, time + excess * dtime, 0.0)
+            hessian = hessian + prices.w_prime * np.where(above, 2 * dtime + excess * d2time,
+                                                          0.0)
+            # at CP the right-hand slope is larger by μ·t: a minimum can sit on the kink
+            at_kink = (power == kink) & (gradient < 0) & (gradient + prices.w_prime * time > 0)
+        if prices.effort > 0:
+            gradient = gradient + prices.effort * (4 * power**3 * time + power**4 * dtime)
+            hessian = hessian + prices.effort * (12 * power**2 * time + 8 * power**3 * dtime
+                                                 + power**4 * d2time)
+        low = np.where(gradient < 0, power, low)
+        high = np.where((gradient > 0) | at_kink, power, high)
+        at_lower = (power <= lower) & (gradient >= 0)
+        at_upper = (power >= upper) & (gradient <= 0)
+        convex = hessian > 0
+        newton = power - gradient / np.where(convex, hessian, np.inf)
+        inside = convex & (newton > low) & (newton < high)
+        new = np.where(inside, newton, 0.5 * (low + high))
+        # a step across the kink at CP: try CP itself
+        crossing = (low < kink) & (kink < high) & ((newton - kink) * (power - kink) < 0)
+        new = np.where(crossing, kink, new)
+        new = np.where(at_kink, kink, new)
+        # a step past a bound not yet excluded by the bracket: try the bound itself
+        new = np.where((~convex | (newton <= low)) & (gradient > 0) & (low <= lower), lower, new)
+        new = np.where((~convex | (newton >= high)) & (gradient < 0) & (high >= upper), upper,
+                       new)
+        new = np.where(at_lower, lower, np.where(at_upper, upper, new))
+        done = np.abs(new - power) <= _POWER_TOLERANCE * np.maximum(power, 1.0)
+        if np.all(done):
+            break
+        power = new
+    free = ~(at_lower | at_upper | at_kink)
+    slope = time + (power - centre) * dtime
+    return power, time, slope, hessian, free
+
+
+def _lagrange_plan(model, request, lower, upper, counter, prices=None, start=None):
+    """Fastest powers under the coupling constraint and bounds only; (power, λ, iterations).
+
+    λ is found by Newton steps on E(λ) = Σ (P_k(λ) − c)·t_k − E₀, with
+    dE/dλ = −Σ_free b_k² / a_k (implicit differentiation of the segments' stationarity),
+    kept inside a bisection bracket; E is decreasing in λ.
+    """
+    centre, target = _coupling(request, model)
+    mean = float(request.mean_power)
+    time, dtime, _ = steady_segment_times(model, np.full(model.count, mean))
+    counter[0] += 1
+    multiplier = float(-dtime.sum() / time.sum())  # λ of a uniform course
+    tolerance = 1e-9 * mean * float(time.sum())
+    power = np.full(model.count, mean)
+    if start is not None:  # a nearby problem's (λ, powers)
+        multiplier, power = start[0], np.clip(start[1], lower, upper)
+    guess = abs(multiplier)
+    # λ < 0 only happens when a priced effort limit pushes every power down
+    low = -math.inf if prices is not None and prices.effort > 0 else 0.0
+    high = math.inf
+    previous = math.inf
+    iterations = 0
+    for _ in range(60):
+        iterations += 1
+        power, time, slope, curvature, free = _segment_argmin(
+            model, multiplier, centre, lower, upper, power, counter, prices)
+        excess = float(np.sum((power - centre) * time) - target)
+        if abs(excess) <= tolerance:
+            break
+        if excess > 0:
+            low = multiplier
+        else:
+            high = multiplier
+        usable = free & (curvature > 0)
+        derivative = -float(np.sum(slope[usable] ** 2 / curvature[usable]))
+        step = multiplier - excess / derivative if derivative < 0 else math.nan
+        slow = abs(excess) > 0.5 * previous  # Newton is not converging: bisect instead
+        previous = abs(excess)
+        if low < step < high and not (slow and math.isfinite(high - low)):
+            multiplier = step
+        elif math.isfinite(high) and math.isfinite(low):
+            multiplier = 0.5 * (low + high)
+        elif math.isfinite(high):
+            multiplier = high - 2.0 * max(abs(high), guess)
+        else:
+            multiplier = low + 2.0 * max(abs(low), guess)
+        if math.isfinite(high - low) and high - low <= 1e-15 * max(abs(high), guess):
+            break
+    else:
+        raise InputError("no plan within the power limits matches the mean power")
+    if abs(excess) > 1e-6 * mean * float(time.sum()):
+        raise InputError("no plan within the power limits matches the mean power")
+    return power, multiplier, iterations
+
+
+def _stationarity(model, power, multiplier, centre, lower, upper) -> float:
+    time, dtime, _ = steady_segment_times(model, power)
+    gradient = dtime * (1.0 + multiplier * (power - centre)) + multiplier * time
+    free = (power > lower * (1 + 1e-6) + 1e-9) & (power < upper * (1 - 1e-6))
+    if not free.any():
+        return 0.0
+    return float(np.max(np.abs(gradient[free]) / np.abs(multiplier * time[free])))
+
+
+def _segment_w_prime(power, time, request) -> np.ndarray:
+    """W′ balance at the end of each segment of steady power [J]."""
+    return w_prime_balance(power, time, request.critical_power, request.w_prime,
+                           request.w_prime_model)
+
+
+def _w_prime_jacobian(power, time, dtime, request: PlanRequest) -> np.ndarray:
+    """d(W′ balance at the end of segment j)/d(power of segment k) [J/W], shape (K, K).
+
+    Both W′ models are affine steps on the deficit D = W′ − W′bal over a segment of constant
+    power, D_{k+1} = a_k·D_k + b_k (differential: a = 1, b = (P − CP)·t above CP and
+    a = e^{(P − CP)·t/W′}, b = 0 below; integral: a = e^{−t/τ}, b = (P − CP)⁺·τ·(1 − a)), and t_k
+    depends on P_k through t_k′. Then dD_j/dP_k = (Π_{k<m<j} a_m)·(D_k·da_k/dP_k + db_k/dP_k)
+    for j > k. The integral form's τ is held fixed (its dependence on the mean recovery power is
+    neglected in the gradient only).
+    """
+    critical, w_prime = float(request.critical_power), float(request.w_prime)
+    excess = power - critical
+    above = excess > 0
+    if request.w_prime_model == "differential":
+        exponent = np.where(above, 0.0, excess * time / w_prime)
+        decay = np.exp(exponent)
+        d_decay = np.where(above, 0.0, decay * (time + excess * dtime) / w_prime)
+        d_increment = np.where(above, time + excess * dtime, 0.0)
+    else:
+        below = ~above & (power < critical)
+        below_time = float(time[below].sum())
+        gap = (critical - float(np.sum(power[below] * time[below])) / below_time
+               if below_time > 0 else 0.0)
+        tau = recovery_time_constant(gap)
+        decay = np.exp(-time / tau)
+        d_decay = -decay * dtime / tau
+        d_increment = np.where(above, tau * (1.0 - decay), 0.0) + np.maximum(excess, 0.0) * \
+            decay * dtime
+    deficit = w_prime - np.concatenate([[w_prime], _segment_w_prime(power, time, request)])
+    local = deficit[:-1] * d_decay + d_increment  # dD_{k+1}/dP_k
+    log_decay = np.concatenate([[0.0], np.cumsum(np.log(np.maximum(decay, 1e-300)))])
+    rows = np.arange(power.size)[:, None]
+    cols = np.arange(power.size)[None, :]
+    # the deficit after segment r (row r) depends on P_k, k ≤ r, through Π_{k<m≤r} a_m
+    span = np.where(cols <= rows, log_decay[rows + 1] - log_decay[cols + 1], -np.inf)
+    jacobian = -np.exp(span) * local[None, :]
+    if request.w_prime_model == "integral" and below_time > 0:
+        # τ depends on every below-CP segment through D_CP = CP − Σ_b P·t / Σ_b t
+        d_gap = np.where(below, -(time + power * dtime) / below_time
+                         + float(np.sum(power[below] * time[below])) * dtime / below_time**2,
+                         0.0)
+        d_tau = -5.46 * np.exp(-0.01 * gap) * d_gap
+        by_tau = np.empty(power.size)  # dD_{r+1}/dτ
+        slope = 0.0
+        for r in range(power.size):
+            da = decay[r] * time[r] / tau**2
+            db = max(excess[r], 0.0) * ((1.0 - decay[r]) - decay[r] * time[r] / tau)
+            slope = decay[r] * slope + deficit[r] * da + db
+            by_tau[r] = slope
+        jacobian -= np.outer(by_tau, d_tau)
+    return jacobian
+
+
+def _raw_effort(power: np.ndarray, time: np.ndarray) -> float:
+    """Time-weighted 4th-power mean of segment powers: an upper bound of the effort-weighted
+    power (averaging over 30 s can only lower it), used as the solver's effort constraint."""
+    return float((np.sum(power**4 * time) / np.sum(time)) ** 0.25)
+
+
+def _slsqp_plan(model, request, lower, upper, start, reserve, cap, counter):
+    """Fastest powers with W′ reserve and/or effort cap (SLSQP); returns (power, result)."""
+    centre, target = _coupling(request, model)
+    mean = float(request.mean_power)
+    time0, _, _ = steady_segment_times(model, np.full(model.count, mean))
+    total0 = float(time0.sum())
+    cache: dict = {}
+
+    def evaluate(x):
+        key = x.tobytes()
+        if key not in cache:
+            cache.clear()
+            counter[0] += 1
+            cache[key] = steady_segment_times(model, x * mean)
+        return cache[key]
+
+    def objective(x):
+        return float(evaluate(x)[0].sum() / total0)
+
+    def objective_gradient(x):
+        return evaluate(x)[1] * mean / total0
+
+    def coupling(x):
+        time = evaluate(x)[0]
+        return np.array([(np.sum((x * mean - centre) * time) - target) / (mean * total0)])
+
+    def coupling_gradient(x):
+        time, dtime, _ = evaluate(x)
+        return ((time + (x * mean - centre) * dtime) * mean / (mean * total0))[None, :]
+
+    constraints = [{"type": "eq", "fun": coupling, "jac": coupling_gradient}]
+    if reserve is not None:
+        w_prime = float(request.w_prime)
+
+        def balance(x):
+            return (_segment_w_prime(x * mean, evaluate(x)[0], request) - reserve) / w_prime
+
+        def balance_jacobian(x):
+            time, dtime, _ = evaluate(x)
+            return _w_prime_jacobian(x * mean, time, dtime, request) * mean / w_prime
+
+        constraints.append({"type": "ineq", "fun": balance, "jac": balance_jacobian})
+    if cap is not None:
+        def effort(x):
+            time = evaluate(x)[0]
+            return np.array([1.0 - (_raw_effort(x * mean, time) / cap) ** 4])
+
+        def effort_gradient(x):
+            time, dtime, _ = evaluate(x)
+            power = x * mean
+            total = time.sum()
+            fourth = np.sum(power**4 * time) / total
+            grad = (4 * power**3 * time + power**4 * dtime) / total - fourth * dtime / total
+            return (-grad * mean / cap**4)[None, :]
+
+        constraints.append({"type": "ineq", "fun": effort, "jac": effort_gradient})
+    result = optimize.minimize(
+        objective, np.clip(start, lower, upper) / mean, jac=objective_gradient,
+        bounds=list(zip(lower / mean, upper / mean, strict=True)), constraints=constraints,
+        method="SLSQP", options={"maxiter": 100, "ftol": 1e-10},
+    )
+    power = np.clip(result.x * mean, lower, upper)
+    return power, result
+
+
+def _priced_plan(model, request, lower, upper, multiplier, reserve, cap, counter):
+    """Lowest price of one limit (W′ reserve or effort cap) whose priced plan keeps it.
+
+    Returns (power or None when no price up to a large one works, iterations).
+    """
+    mean = float(request.mean_power)
+    w_prime = float(request.w_prime) if request.w_prime is not None else 1.0
+
+    def prices(price: float) -> _Prices:
+        if reserve is not None:
+            return _Prices(w_prime=price, critical_power=float(request.critical_power))
+        return _Prices(effort=price / mean**3)
+
+    warm: list = []
+
+    def margin(price: float):
+        try:
+            power, found, _ = _lagrange_plan(model, request, lower, upper, counter,
+                                             prices(price), warm[-1] if warm else None)
+        except InputError:
+            return None, -math.inf
+        warm.append((found, power))
+        time, _, _ = steady_segment_times(model, power)
+        counter[0] += 1
+        if reserve is not None:
+            return power, (_segment_w_prime(power, time, request).min() - reserve) / w_prime
+        return power, (cap - _raw_effort(power, time)) / cap
+
+    low, g_low = 0.0, None
+    high = multiplier
+    power, g_high = margin(high)
+    steps = 1
+    while g_high < 0 and power is not None and steps < 30:
+        low, g_low = high, g_high
+        high *= 4.0
+        power, g_high = margin(high)
+        steps += 1
+    if g_high < 0 or power is None:
+        return None, steps  # no price keeps the limit, or the priced problem has no plan
+    if g_low is None:
+        _, g_low = margin(0.0)
+        steps += 1
+    best, side = power, 0
+    while steps < 40 and g_high > _PRICE_TOLERANCE:
+        if math.isfinite(g_low):
+            trial = high - g_high * (high - low) / (g_high - g_low)
+        else:
+            trial = 0.5 * (low + high)
+        if not low < trial < high:
+            trial = 0.5 * (low + high)
+        power, g_trial = margin(trial)
+        steps += 1
+        if g_trial >= 0:
+            high, g_high, best = trial, g_trial, power
+            if side == 1:
+                g_low *= 0.5
+            side = 1
+        else:
+            low, g_low = trial, g_trial
+            if side == -1:
+                g_high *= 0.5
+            side = -1
+        if high - low <= 1e-9 * high:
+            break
+    return best, steps
+
+
+def fastest_steady_plan(
+    model: SegmentModel,
+    request: PlanRequest,
+    lower: np.ndarray | None = None,
+    upper: np.ndarray | None = None,
+    reserve: float | None = None,
+    cap: float | None = None,
+) -> tuple[np.ndarray, SolverReport]:
+    """Fastest segment powers in the steady-state segment model.
+
+    Parameters
+    ----------
+    model : SegmentModel; request : PlanRequest (mean power, constraint, limits).
+    lower, upper : power bounds per segment [W] (default `power_limits`).
+    reserve : W′ balance floor used by the solver [J] (default the request's reserve when CP
+        and W′ are known, else none).
+    cap : effort cap used by the solver [W] (default the request's cap).
+
+    Returns
+    -------
+    (segment power [W], SolverReport). Raises InputError when no plan meets the mean power
+    within the bounds, or keeps the W′ reserve / effort cap (e.g. a mean power above CP for
+    longer than W′ allows).
+    """
+    if lower is None or upper is None:
+        lower, upper = power_limits(model, request)
+    if reserve is None and request.uses_w_prime:
+        reserve = request.w_prime_reserve
+    if cap is None:
+        cap = request.effort_weighted_cap
+    counter = [0]
+    power, multiplier, iterations = _lagrange_plan(model, request, lower, upper, counter)
+    centre, _ = _coupling(request, model)
+    stationarity = _stationarity(model, power, multiplier, centre, lower, upper)
+    time, _, _ = steady_segment_times(model, power)
+    breaks_w_prime = (reserve is not None
+                      and _segment_w_prime(power, time, request).min() < reserve)
+    breaks_cap = cap is not None and _raw_effort(power, time) > cap
+    if not (breaks_w_prime or breaks_cap):
+        return power, SolverReport("lagrange", multiplier, iterations, counter[0], stationarity,
+                                   "equal marginal time per joule on every free segment")
+    if (breaks_w_prime and request.constraint == "mean-power"
+            and request.w_prime_model == "differential"):
+        # dW′/dt ≤ CP − P at every power, so W′(T) ≤ W′ − (P̄ − CP)·T for any plan of mean P̄,
+        # and no plan is faster than this one (T ≥ its time)
+        best_case = float(request.w_prime) - (float(request.mean_power)
+                                              - float(request.critical_power)) * time.sum()
+        if best_case < reserve:
+            raise InputError(f"no plan at mean power {request.mean_power:g} W keeps the W′ "
+                             f"reserve: {request.mean_power:g} W is above CP "
+                             f"{request.critical_power:g} W for too long")
+    reserve_used = reserve if breaks_w_prime else None
+    cap_used = cap if breaks_cap else None
+
+    def meets(power: np.ndarray, slack: float = 0.0) -> bool:
+        time, _, _ = steady_segment_times(model, power)
+        counter[0] += 1
+        return ((reserve_used is None or _segment_w_prime(power, time, request).min()
+                 >= reserve_used - slack * float(request.w_prime))
+                and (cap_used is None or _raw_effort(power, time) <= cap_used * (1 + slack)))
+
+    mean = float(request.mean_power)
+    # 1. price the broken limit in every segment's Lagrangian (W′ spent above CP, or the
+    #    effort measure) and find the lowest price that keeps it (Illinois false position)
+    priced = None
+    if breaks_w_prime != breaks_cap:
+        priced, steps = _priced_plan(model, request, lower, upper, multiplier, reserve_used,
+                                     cap_used, counter)
+        iterations += steps
+    # 2. otherwise a feasible plan: the fastest plan under a common power ceiling U, with U the
+    #    highest ceiling that keeps the limits (bisection; U = mean power: constant power)
+
+    low_ceiling, high_ceiling = mean, float(upper.max())
+    constant = np.full(model.count, mean)
+    if not meets(constant):
+        what = "W′ reserve" if breaks_w_prime else "effort cap"
+        raise InputError(f"no plan at mean power {mean:g} W keeps the {what}: even constant "
+                         "power breaks it")
+    capped, ceiling_steps = constant, 0
+    if priced is not None:
+        capped, high_ceiling = priced, low_ceiling
+    while high_ceiling - low_ceiling > 1e-3 * mean:
+        ceiling_steps += 1
+        ceiling = 0.5 * (low_ceiling + high_ceiling)
+        try:
+            trial, _, used = _lagrange_plan(model, request, np.minimum(lower, ceiling),
+                                            np.minimum(upper, ceiling), counter)
+            iterations += used
+        except InputError:
+            trial = None
+        if trial is not None and meets(trial):
+            low_ceiling, capped = ceiling, trial
+        else:
+            high_ceiling = ceiling
+    # 2. polish with SLSQP on the full problem from that feasible start; keep its answer only
+    #    if it is feasible, meets the coupling constraint and is faster
+    if priced is not None:
+        power, method, message, nit = capped, "lagrange+price", (
+            "lowest price of the limit that keeps it"), 0
+    else:
+        power, method, message, nit = capped, "lagrange+ceiling", (
+            f"highest common power ceiling {low_ceiling:.1f} W that keeps the limits"), 0
+    if model.count <= _SLSQP_MAX_SEGMENTS:
+        polished, result = _slsqp_plan(model, request, lower, upper, capped, reserve_used,
+                                       cap_used, counter)
+        nit = int(result.nit)
+        centre, target = _coupling(request, model)
+        time, _, _ = steady_segment_times(model, polished)
+        coupling_gap = abs(float(np.sum((polished - centre) * time)) - target)
+        if (meets(polished, 1e-6) and coupling_gap <= 1e-7 * mean * float(time.sum())
+                and time.sum() < steady_segment_times(model, capped)[0].sum()):
+            power, method, message = polished, method + "+slsqp", str(result.message)
+    time, _, _ = steady_segment_times(model, power)
+    active = []
+    if breaks_w_prime and _segment_w_prime(power, time, request).min() <= reserve + (
+            2 * _PRICE_TOLERANCE * float(request.w_prime)):
+        active.append("w-prime-reserve")
+    if breaks_cap and _raw_effort(power, time) >= cap * (1 - 2 * _PRICE_TOLERANCE):
+        active.append("effort-cap")
+    return power, SolverReport(method, multiplier, iterations + ceiling_steps + nit,
+                               counter[0], float("nan"), message, active=tuple(active))
