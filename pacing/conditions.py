@@ -39,6 +39,15 @@ WIND_SPEED_LIMIT = 60.0
 """Largest wind speed accepted [m/s]: no race is held in more."""
 
 
+WIND_HEIGHT_RANGE = (0.5, 200.0)
+"""Heights at which a wind speed is accepted [m]: from a hand-held anemometer to a tall mast
+(the logarithmic profile is not meant for the layer just above the ground)."""
+
+ROUGHNESS_LENGTH_RANGE = (0.0001, 2.0)
+"""Roughness lengths accepted [m]: from calm open water to the roughest Davenport-Wieringa class
+("chaotic", z0 ≥ 2 m; Wieringa 1992)."""
+
+
 @dataclass(frozen=True)
 class Conditions:
     """The air on race day.
@@ -98,12 +107,21 @@ class Conditions:
         _require(0.0 <= self.wind_speed <= WIND_SPEED_LIMIT,
                  f"wind speed must be between 0 and {WIND_SPEED_LIMIT:g} m/s, "
                  f"got {self.wind_speed:g}")
-        _require(self.wind_height > 0,
-                 f"wind height must be positive [m], got {self.wind_height:g}")
-        _require(self.roughness_length > 0,
-                 f"roughness length must be positive [m], got {self.roughness_length:g}")
-        _require(self.rider_height > 0,
-                 f"rider height must be positive [m], got {self.rider_height:g}")
+        _require(0.0 <= self.wind_from <= 360.0,
+                 f"wind direction must be 0-360 degrees from north, got {self.wind_from:g}")
+        low, high = WIND_HEIGHT_RANGE
+        _require(low <= self.wind_height <= high,
+                 f"wind measurement height must be {low:g}-{high:g} m (weather reports use "
+                 f"10 m), got {self.wind_height:g}")
+        low, high = ROUGHNESS_LENGTH_RANGE
+        _require(low <= self.roughness_length <= high,
+                 f"roughness length must be {low:g}-{high:g} m (open terrain 0.03 m), "
+                 f"got {self.roughness_length:g}")
+        _require(self.roughness_length < self.wind_height,
+                 f"the wind must be measured above the roughness length "
+                 f"({self.roughness_length:g} m), got {self.wind_height:g} m")
+        _require(0.3 <= self.rider_height <= 3.0,
+                 f"rider height must be 0.3-3 m, got {self.rider_height:g}")
 
     @property
     def wind_at_rider(self) -> float:

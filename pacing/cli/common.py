@@ -29,12 +29,34 @@ def add_air_flags(parser: argparse.ArgumentParser) -> None:
                        help="pressure reduced to sea level [Pa] (default 101325)")
     group.add_argument("--wind-speed", type=float, default=0.0,
                        help="wind speed at the measurement height [m/s] (default 0)")
-    group.add_argument("--wind-from", type=float, default=0.0,
-                       help="direction the wind blows FROM [deg clockwise from north]")
+    group.add_argument("--wind-from", type=float, default=None,
+                       help="direction the wind blows FROM [deg clockwise from north, 0-360]; "
+                            "required with --wind-speed")
     group.add_argument("--wind-height", type=float, default=10.0,
                        help="height of the wind measurement [m] (default 10, weather reports)")
     group.add_argument("--roughness", type=float, default=0.03,
                        help="terrain roughness length z0 [m] (default 0.03, open terrain)")
+
+
+def check_shared_flags(args: argparse.Namespace) -> None:
+    """Checks of the shared air and wind flags, for every command that has them.
+
+    A wind speed without its direction is refused (silently taking "from the north" would
+    mislead); a humidity of 1 % or less is taken as typed, with a warning that the flag is in
+    percent.
+    """
+    import warnings
+
+    if hasattr(args, "wind_from"):
+        if args.wind_from is None:
+            require(not (args.wind_speed or 0.0) > 0.0,
+                    "give --wind-from (the direction the wind blows FROM, degrees from north) "
+                    "with --wind-speed")
+            args.wind_from = 0.0
+    humidity = getattr(args, "humidity", None)
+    if humidity is not None and 0.0 < humidity <= 1.0:
+        warnings.warn(f"--humidity is in percent: taking {humidity:g} %, not {100 * humidity:g} %",
+                      stacklevel=2)
 
 
 def add_rider_flags(parser: argparse.ArgumentParser) -> None:
