@@ -29,6 +29,7 @@ Karney, C.F.F. (2013). Algorithms for geodesics. J Geodesy 87:43-55. doi:10.1007
 from __future__ import annotations
 
 import math
+import warnings
 from dataclasses import dataclass
 
 import numpy as np
@@ -102,8 +103,10 @@ class ElevationSmoothing:
         flattened to this grade.
     method : a key of SMOOTHING_METHODS ("gaussian", "moving-average", "none").
 
-    Both kernels are positive and the ends are padded with the end values, so smoothing never
-    adds ascent: the ascent of the cleaned course is at most that of the raw track.
+    Both kernels are positive and symmetric; the ends are padded by odd reflection about the end
+    points, so a straight or linear profile passes unchanged and the start and finish heights
+    are kept, and the ascent of the cleaned course never exceeds that of the raw track (see
+    smooth_elevation; padding with the end values is the fallback that guarantees it).
     """
 
     window: float = 200.0
@@ -318,12 +321,25 @@ def check_elevation_jumps(length: np.ndarray, elevation: np.ndarray) -> None:
                          f"{length[index]:.0f} m between points {index + 1} and {index + 2}")
 
 
-def _fill_missing(distance: np.ndarray, elevation: np.ndarray) -> np.ndarray:
+def fill_missing_elevation(distance: np.ndarray, elevation: np.ndarray) -> np.ndarray:
+    """Elevation with NaN points filled by linear interpolation along the distance [m].
+
+    Points before the first (after the last) known height take that height. Warns
+    (UserWarning, one line) how many points had no elevation; raises InputError when none has.
+
+    Parameters
+    ----------
+    distance : distance of each track point from the start [m], increasing.
+    elevation : elevation of each point [m], NaN where the point has none.
+    """
     known = np.isfinite(elevation)
     if known.all():
         return elevation
     if not known.any():
         raise InputError("the course has no elevation at any point")
+    missing = int(np.count_nonzero(~known))
+    warnings.warn(f"{missing} of {known.size} track points had no elevation; their heights "
+                  "were interpolated from the neighbouring points", UserWarning, stacklevel=3)
     return np.interp(distance, distance[known], elevation[known])
 
 
@@ -426,21 +442,33 @@ def smooth_elevation(elevation: np.ndarray, step: float,
                      smoothing: ElevationSmoothing = ElevationSmoothing()) -> np.ndarray:
     """Elevation smoothed over a distance window [m] (no grade limit).
 
-    z_s[i] = Σ_j w_j·z[i+j] / Σ_j w_j with positive weights w from scipy.signal.windows and the
-    ends padded with the end values. A positive kernel with constant padding never increases
-    total ascent (the ascent of a weighted mean of shifted copies is at most the weighted mean
-    of their ascents), so smoothing cannot invent climbing.
+    z_s[i] = Σ_j w_j·z[i+j] / Σ_j w_j with positive, symmetric weights w from
+    scipy.signal.windows. Beyond the ends the profile is continued by odd reflection about the
+    end point, z[-k] = 2·z[0] − z[k] (and likewise at the finish), so that
+
+    - a linear profile a + b·s is returned unchanged (a symmetric kernel averages a straight
+      line to itself), and so is every profile at its two end points: start and finish heights,
+      hence the net rise and potential energy of the course, are kept exactly;
+    - a monotonic climb or descent stays monotonic, with the same ascent or descent.
+
+    Smoothing cannot invent climbing: the ascent of a weighted mean of shifted copies is at most
+    the weighted mean of their ascents (positive weights). With odd reflection the rises of the
+    padded profile are the raw rises mirrored at each end, and for a symmetric kernel the copies
+    shifted by +j and −j points together hold every raw rise exactly twice, so their mean
+    ascent is the raw ascent. Should rounding (or a kernel that is not symmetric) still give a
+    larger ascent, the ends are padded with the end values instead, for which the same bound
+    holds with any positive kernel.
 
     Parameters
     ----------
     elevation : elevation at points a uniform `step` apart [m].
     step : distance between the points [m].
     smoothing : window and method.
+
+    The odd reflection is numpy.pad(mode="reflect", reflect_type="odd").
     """
     elevation = np.asarray(elevation, dtype=float)
     make_kernel = SMOOTHING_METHODS[smoothing.method]
-    from scipy import signal
-
     if make_kernel is None or smoothing.window <= 0 or elevation.size < 3:
         return elevation.copy()
     kernel = make_kernel(smoothing.window, step)
@@ -448,7 +476,26 @@ def smooth_elevation(elevation: np.ndarray, step: float,
         return elevation.copy()
     kernel = kernel / kernel.sum()
     half = kernel.size // 2
-    padded = np.pad(elevation, half, mode="edge")
+    reflected = _convolve_padded(elevation, kernel, half, "odd")
+    raw_ascent = total_ascent(elevation)
+    if total_ascent(reflected) <= raw_ascent + ASCENT_TOLERANCE * max(1.0, raw_ascent):
+        return reflected
+    return _convolve_padded(elevation, kernel, half, "edge")
+
+
+ASCENT_TOLERANCE = 1e-9
+"""Relative rounding slack when checking that smoothing added no ascent [-]."""
+
+
+def _convolve_padded(elevation: np.ndarray, kernel: np.ndarray, half: int,
+                     padding: str) -> np.ndarray:
+    """Convolve with `kernel` after padding `half` points each side ("odd" or "edge")."""
+    from scipy import signal
+
+    if padding == "odd":
+        padded = np.pad(elevation, half, mode="reflect", reflect_type="odd")
+    else:
+        padded = np.pad(elevation, half, mode="edge")
     return signal.convolve(padded, kernel, mode="valid", method="auto")
 
 
@@ -490,7 +537,7 @@ def build_course(latitude, longitude, elevation, step: float = DEFAULT_STEP,
     ----------
     latitude, longitude : WGS84 positions of the track points [deg], length M >= 2.
     elevation : elevation of each track point [m], length M; NaN where a point has none (filled
-        by interpolation along the distance).
+        by interpolation along the distance, with a UserWarning saying how many).
     step : resampling step [m], MINIMUM_STEP..MAXIMUM_STEP.
     smoothing : elevation cleaning.
     name : label of the course.
@@ -524,7 +571,7 @@ def build_course(latitude, longitude, elevation, step: float = DEFAULT_STEP,
         raise InputError("all points of the course are at the same place")
     length, azimuth = geodesic_pieces(latitude, longitude)
     track_distance = np.concatenate([[0.0], np.cumsum(length)])
-    elevation = _fill_missing(track_distance, elevation)
+    elevation = fill_missing_elevation(track_distance, elevation)
     check_elevation_jumps(length, elevation)
     total = float(track_distance[-1])
     if total / step > MAXIMUM_COURSE_POINTS:

@@ -16,8 +16,11 @@ speed-change terms), with P̄ and v̄ the run's mean power and speed; a straight
 the runs gives CdA (slope) and Crr (intercept / m·g). Runs whose speed varies much bias it
 (the mean of v² is not v̄²): the fit warns then.
 
-CdA and Crr can only be told apart when the laps are ridden at clearly different speeds; the
-fit reports the correlation between the two estimates and warns when it is too high. A steady
+CdA and Crr can only be told apart when the speed varies (laps at clearly different speeds, or
+hills within a lap for method "profile"); the fit reports the correlation between the two
+estimates, and when the laps cannot separate them it holds Crr at a typical value, fits CdA
+alone and says so (`FieldTestResult.rolling_held`), rather than trading one against the other
+into a negative Crr. A steady
 wind that is not given shows up mostly in Crr on a loop (it adds a nearly constant drag);
 changing wind, braking or a changing position make the per-lap CdA scatter, which is
 reported. Uncertainty comes from a bootstrap over laps (Efron & Tibshirani 1993).
@@ -47,7 +50,7 @@ import numpy as np
 
 from pacing.athlete import Setup
 from pacing.constants import STANDARD_GRAVITY
-from pacing.cycling import Rider, aerodynamic_force, bearing_force, rolling_force
+from pacing.cycling import MARTIN_1998, Rider, aerodynamic_force, bearing_force, rolling_force
 from pacing.errors import InputError
 from pacing.ride import (
     EARTH_RADIUS,
@@ -75,9 +78,10 @@ from pacing.virtual_elevation import (
 
 __all__ = [
     # estimation (this module)
-    "METHODS", "SEPARATION_LIMIT", "LAP_SPREAD_LIMIT", "CALM_WIND", "STEADY_SPEED_LIMIT",
-    "BRAKING_DECELERATION", "GRID_POINTS", "PositionTest", "LapTrace", "PositionEstimate",
-    "PositionDifference", "FieldTestResult", "estimate_drag",
+    "METHODS", "SEPARATION_LIMIT", "TYPICAL_ROLLING_COEFFICIENT", "PLAUSIBLE_ROLLING",
+    "LAP_SPREAD_LIMIT", "CALM_WIND", "STEADY_SPEED_LIMIT", "BRAKING_DECELERATION", "GRID_POINTS",
+    "PositionTest", "LapTrace", "PositionEstimate", "PositionDifference", "FieldTestResult",
+    "estimate_drag",
     # rides and laps (pacing.ride), importable from here as before
     "EARTH_RADIUS", "LAP_RADIUS", "MAX_GAP", "MAX_POWER_FILL", "STOP_SPEED",
     "ZERO_POWER_DROPOUT", "Ride", "make_ride", "piece_heading", "ride_wind", "ride_air",
@@ -94,7 +98,19 @@ METHODS = {
 """The estimation methods, by name, with a one-line description."""
 
 SEPARATION_LIMIT = 0.99
-"""|correlation| of the CdA and Crr estimates above which they are reported as inseparable."""
+"""|correlation| of the CdA and Crr estimates above which they are reported as inseparable
+when there is no bootstrap interval of Crr to judge by (see `estimate_drag`)."""
+
+TYPICAL_ROLLING_COEFFICIENT = MARTIN_1998["rolling_coefficient"]
+"""Crr held when the laps cannot separate CdA from Crr and none is given [-]: 0.0032, the
+value in Martin et al. (1998) (pacing.cycling.MARTIN_1998; from memory, REFERENCES.md). Each
+0.001 it is off moves the fitted CdA by about m·g·0.001 / (½ρ·v²) (≈ 0.016 m² for 80 kg at
+9 m/s in air of 1.2 kg/m³); the warning gives CdA over PLAUSIBLE_ROLLING."""
+
+PLAUSIBLE_ROLLING = (0.0025, 0.006)
+"""Crr of road tyres from race tyres on smooth asphalt to ordinary asphalt [-] (from memory,
+tabulated in many cycling-physics texts; see REFERENCES.md "Typical CdA, Crr"): the span shown
+for CdA when Crr is held."""
 
 LAP_SPREAD_LIMIT = 0.05
 """Coefficient of variation of per-lap CdA above which the laps are reported as inconsistent."""
@@ -194,8 +210,13 @@ class FieldTestResult:
     rolling_coefficient : Crr [-]; rolling_coefficient_ci95 : interval or None;
     rolling_fixed : True when Crr was given, not fitted;
     estimate_correlation : largest |correlation| between a CdA and the Crr estimate [-]
-        (0 when Crr is fixed);
-    bootstrap_drag_area : bootstrap draws, shape (draws, positions) [m²] (empty if none).
+        (0 when Crr was given; when Crr is held, the correlation that made it so);
+    bootstrap_drag_area : bootstrap draws, shape (draws, positions) [m²] (empty if none);
+    rolling_held : True when the laps could not separate CdA from Crr, so Crr was held at a
+        typical value (`fallback_rolling_coefficient` of `estimate_drag`) and only CdA fitted;
+        the CdA intervals then hold for that Crr only;
+    drag_area_per_rolling : change of each position's fitted CdA per unit change of the Crr
+        it is fitted with [m²], d CdA / d Crr (negative: a higher Crr leaves less drag to air).
     """
 
     method: str
@@ -207,6 +228,8 @@ class FieldTestResult:
     differences: tuple[PositionDifference, ...]
     warnings: tuple[str, ...]
     bootstrap_drag_area: np.ndarray
+    rolling_held: bool = False
+    drag_area_per_rolling: tuple[float, ...] = ()
 
     @property
     def drag_area(self) -> float:
@@ -422,6 +445,44 @@ def _solve(matrix: np.ndarray, right: np.ndarray) -> np.ndarray | None:
     return np.linalg.solve(scaled, right / scale) / scale
 
 
+def _drag_area_per_rolling(groups: list[tuple[np.ndarray, np.ndarray, np.ndarray]],
+                           method: str) -> tuple[float, ...]:
+    """d CdA / d Crr of each position when CdA is fitted with Crr held [m²].
+
+    With Crr held, CdA = Σa·(y − Crr·b) / Σa², so d CdA / d Crr = −Σa·b / Σa² (a: drag column,
+    b: rolling column, centred per lap for method "profile" as in the fit).
+    """
+    slopes = []
+    for _, a, b in groups:
+        if method == "profile":
+            a, b = (v - v.mean(axis=1, keepdims=True) for v in (a, b))
+        aa = float(np.sum(a * a))
+        slopes.append(-float(np.sum(a * b)) / aa if aa > 0 else 0.0)
+    return tuple(slopes)
+
+
+def _separation_problem(solution: np.ndarray | None, correlation: float,
+                        rolling_draws: np.ndarray | None) -> str | None:
+    """Why the laps cannot separate CdA from Crr (a few words), or None when they can.
+
+    With bootstrap draws of Crr: when their 95 % interval is wider than the spread of road
+    tyres (PLAUSIBLE_ROLLING), the laps say less about Crr than a typical value does. Without
+    them: when |correlation| of the two estimates exceeds SEPARATION_LIMIT.
+    """
+    if solution is None:
+        return "the fit is singular"
+    if rolling_draws is not None:
+        low, high = np.percentile(rolling_draws, [2.5, 97.5])
+        span = PLAUSIBLE_ROLLING[1] - PLAUSIBLE_ROLLING[0]
+        if high - low > span:
+            return (f"correlation {correlation:.3f}; the 95 % interval of Crr, {low:.4f} to "
+                    f"{high:.4f}, is wider than the {span:g} spread of road tyres")
+        return None
+    if correlation > SEPARATION_LIMIT:
+        return f"correlation {correlation:.3f}"
+    return None
+
+
 def _estimate_correlation(matrix: np.ndarray, fixed: bool) -> float:
     if fixed:
         return 0.0
@@ -444,6 +505,7 @@ def estimate_drag(
     profile: tuple[np.ndarray, np.ndarray] | None = None,
     bootstrap: int = 1000,
     seed: int = 0,
+    fallback_rolling_coefficient: float | None = TYPICAL_ROLLING_COEFFICIENT,
 ) -> FieldTestResult:
     """CdA of each position and a common Crr from test rides.
 
@@ -453,12 +515,26 @@ def estimate_drag(
     resampled within each position (Efron & Tibshirani 1993); a position with fewer than 3 laps
     gets no interval.
 
+    CdA and Crr are told apart only by speed variety (air drag grows with v², rolling
+    resistance does not), between laps or within them on a hilly profile. When the laps cannot
+    separate them and no Crr is given, Crr is held at `fallback_rolling_coefficient` and CdA
+    alone is fitted (`rolling_held`); a warning says so and gives CdA over the usual range of
+    Crr (PLAUSIBLE_ROLLING). "Cannot separate": the fit is singular, or the bootstrap 95 %
+    interval of Crr is wider than PLAUSIBLE_ROLLING (the laps tell less about Crr than a
+    typical value does), or, without a bootstrap interval (bootstrap 0 or fewer than 3 laps),
+    the |correlation| of the two estimates exceeds SEPARATION_LIMIT. A joint fit there trades
+    one against the other freely and can return a negative Crr and a CdA interval reaching
+    below 0.
+
     Parameters
     ----------
     tests : one PositionTest per position (or marked part of a ride).
     rider : mass [kg] of rider + bike, drivetrain efficiency and wheel parameters.
     method : "loop", "profile" or "regression" (see METHODS).
     rolling_coefficient : Crr to hold fixed [-]; None fits it.
+    fallback_rolling_coefficient : Crr to hold when the laps cannot separate CdA from Crr [-]
+        (default TYPICAL_ROLLING_COEFFICIENT, Martin et al. 1998); None fits both anyway and
+        only warns.
     lap_radius : capture radius of automatic lap detection [m].
     profile : known elevation (distance along the lap [m], elevation [m]) for method
         "profile"; default the ride's elevation column.
@@ -467,7 +543,8 @@ def estimate_drag(
 
     Raises
     ------
-    InputError : unknown method, too few laps, or CdA and Crr cannot be separated.
+    InputError : unknown method, too few laps, or no CdA can be fitted (with
+        `fallback_rolling_coefficient` None: CdA and Crr cannot be separated).
     """
     if isinstance(tests, PositionTest):
         tests = [tests]
@@ -479,8 +556,10 @@ def estimate_drag(
     labels = [t.label for t in tests]
     if len(set(labels)) != len(labels):
         raise InputError("position labels must differ")
-    if rolling_coefficient is not None and not 0 <= rolling_coefficient <= 0.1:
-        raise InputError(f"Crr must be 0-0.1, got {rolling_coefficient}")
+    for value, what in ((rolling_coefficient, "Crr"),
+                        (fallback_rolling_coefficient, "the fallback Crr")):
+        if value is not None and not (np.isfinite(value) and 0 <= value <= 0.1):
+            raise InputError(f"{what} must be 0-0.1, got {value}")
     fixed = rolling_coefficient is not None
     warnings: list[str] = []
     lap_sets = [_build_laps(t, g, rider, lap_radius, profile, method) for g, t in
@@ -495,24 +574,50 @@ def estimate_drag(
     groups = [_lap_matrices(laps, method) for laps in lap_sets]
     equations = _normal_equations(groups, method, rolling_coefficient)
     solution = None if equations is None else _solve(*equations)
+    correlation = 1.0
+    if equations is not None and solution is not None:
+        correlation = _estimate_correlation(equations[0], fixed)
+    few = [t.label for t, laps in zip(tests, lap_sets, strict=True) if len(laps) < 3]
+    draws = _bootstrap(groups, method, rolling_coefficient, bootstrap if solution is not None
+                       else 0, seed)
+    valid = draws.shape[0] >= max(20, bootstrap // 2) if bootstrap else False
+    problem = None if fixed else _separation_problem(
+        solution, correlation, draws[:, -1] if valid and not few else None)
+    held_value = rolling_coefficient
+    held = problem is not None and fallback_rolling_coefficient is not None
+    if held:
+        # CdA and Crr trade off freely: hold Crr at the typical value, fit CdA alone
+        held_value = float(fallback_rolling_coefficient)
+        equations = _normal_equations(groups, method, held_value)
+        solution = None if equations is None else _solve(*equations)
+        draws = _bootstrap(groups, method, held_value, bootstrap, seed)
+        valid = draws.shape[0] >= max(20, bootstrap // 2) if bootstrap else False
     if solution is None:
         raise InputError("CdA and Crr cannot be separated from these laps: ride laps at "
                          "clearly different speeds, or give Crr")
-    matrix, _ = equations
-    correlation = _estimate_correlation(matrix, fixed)
-    crr = float(rolling_coefficient) if fixed else float(solution[-1])
+    slopes = _drag_area_per_rolling(groups, method)
+    crr = float(held_value) if held_value is not None else float(solution[-1])
     areas = solution[:len(tests)]
-    if correlation > SEPARATION_LIMIT:
+    if held:
+        low, high = PLAUSIBLE_ROLLING
+        spans = ", ".join(
+            f"{test.label!r} {areas[p] + slopes[p] * (high - held_value):.3f}-"
+            f"{areas[p] + slopes[p] * (low - held_value):.3f} m²"
+            for p, test in enumerate(tests))
         warnings.append(
-            f"laps lack speed variety: CdA and Crr cannot be separated (correlation "
-            f"{correlation:.3f}); ride laps at clearly different speeds or give Crr"
+            f"laps lack speed variety: CdA and Crr cannot be separated ({problem}), so Crr is "
+            f"held at {held_value:g} (a typical road value, Martin et al. 1998) and only CdA "
+            f"is fitted; its interval counts no Crr error: for Crr {low:g}-{high:g} CdA would "
+            f"be {spans}; ride laps at clearly different speeds or give the Crr of your tyres"
+        )
+    elif problem is not None:
+        warnings.append(
+            f"laps lack speed variety: CdA and Crr cannot be separated ({problem}); ride laps "
+            "at clearly different speeds or give Crr"
         )
 
-    draws = _bootstrap(groups, method, rolling_coefficient, bootstrap, seed)
-    few = [t.label for t, laps in zip(tests, lap_sets, strict=True) if len(laps) < 3]
     if few and bootstrap:
         warnings.append(f"fewer than 3 laps for {', '.join(few)}: no interval")
-    valid = draws.shape[0] >= max(20, bootstrap // 2) if bootstrap else False
     if bootstrap and not valid and not few:
         warnings.append("too many bootstrap draws could not be fitted: no interval")
 
@@ -560,12 +665,29 @@ def estimate_drag(
                 f"braking suspected in {test.label!r} at {braking.size} samples (t = {shown} s"
                 f"{' …' if braking.size > 5 else ''}): brake-free laps give better estimates"
             )
-        if not 0.1 <= areas[p] <= 0.8:
+        if areas[p] <= 0:
+            warnings.append(f"CdA of {test.label!r} came out {areas[p]:.3f} m², which is not "
+                            "physical: check mass, power, speed and wind")
+        elif not 0.1 <= areas[p] <= 0.8:
             warnings.append(f"CdA of {test.label!r} ({areas[p]:.3f} m²) is outside the usual "
                             "0.1-0.8 m²: check mass, power and wind")
-    if not fixed and not 0.0005 <= crr <= 0.03:
+        area_interval = positions[-1].drag_area_ci95
+        if area_interval is not None and area_interval[0] <= 0 < areas[p]:
+            warnings.append(f"the 95 % interval of CdA of {test.label!r} reaches "
+                            f"{area_interval[0]:.3f} m² (below 0): these laps do not pin CdA "
+                            "down")
+    crr_interval = (None if held_value is not None or not draws.size
+                    else interval(draws[:, -1]))
+    if held_value is None and crr < 0:
+        warnings.append(f"Crr came out {crr:.4f}, below 0, which no tyre has: something the "
+                        "model lacks went into it (a power-meter offset, wind, braking, a wrong "
+                        "mass); zero the power meter before the test, or give the Crr of your "
+                        "tyres")
+    elif held_value is None and not 0.0005 <= crr <= 0.03:
         warnings.append(f"Crr ({crr:.4f}) is outside the usual 0.0005-0.03: check the laps")
-    crr_interval = None if fixed or not draws.size else interval(draws[:, -1])
+    if crr_interval is not None and crr_interval[0] < 0 <= crr:
+        warnings.append(f"the 95 % interval of Crr reaches {crr_interval[0]:.4f} (below 0): "
+                        "the laps determine Crr poorly")
     differences = []
     for p in range(1, len(tests)):
         delta = float(areas[p] - areas[0])
@@ -576,9 +698,10 @@ def estimate_drag(
     return FieldTestResult(
         method=method, positions=tuple(positions), rolling_coefficient=crr,
         rolling_coefficient_ci95=crr_interval, rolling_fixed=fixed,
-        estimate_correlation=correlation, differences=tuple(differences),
+        estimate_correlation=0.0 if fixed else correlation, differences=tuple(differences),
         warnings=tuple(warnings),
         bootstrap_drag_area=draws[:, :len(tests)] if draws.size else np.empty((0, len(tests))),
+        rolling_held=held, drag_area_per_rolling=slopes,
     )
 
 

@@ -107,6 +107,21 @@ def _fill_short(values: np.ndarray, time: np.ndarray, longest: float) -> tuple[n
     return np.interp(time, time[good], values[good]), worst
 
 
+def _first_bad_sample(values: np.ndarray, time: np.ndarray, name: str, unit: str) -> str | None:
+    """One line naming the first sample of `values` that is not finite or is negative (its
+    1-based number, which is the data row of a CSV file, its time and value), or None."""
+    bad = ~np.isfinite(values) | (values < 0)
+    if not bad.any():
+        return None
+    i = int(np.argmax(bad))
+    value = values[i]
+    what = f"is negative ({value:g} {unit})" if np.isfinite(value) else f"is not finite ({value})"
+    more = int(bad.sum()) - 1
+    tail = f"; {more} more sample{'s' if more != 1 else ''} like it" if more else ""
+    return (f"{name} {what} at sample {i + 1} (t = {time[i]:g} s){tail}: {name} must be finite "
+            "and not negative")
+
+
 def _first_missing_run(values: np.ndarray, time: np.ndarray) -> tuple[float, float]:
     missing = np.isnan(values)
     start = int(np.argmax(missing))
@@ -184,8 +199,9 @@ def make_ride(
             at, _ = _first_missing_run(speed, time)
             raise InputError(f"speed is missing for {worst:g} s from t = {at:g} s")
         notes.append("filled short gaps in speed by interpolation")
-    if np.any(speed < 0) or not np.all(np.isfinite(speed)):
-        raise InputError("speed must be finite and not negative")
+    problem = _first_bad_sample(speed, time, "speed", "m/s")
+    if problem:
+        raise InputError(problem)
     if np.isnan(power).any():
         filled, worst = _fill_short(power, time, max_power_fill)
         if np.isnan(filled).any():
@@ -196,8 +212,9 @@ def make_ride(
             )
         notes.append(f"filled power dropouts up to {worst:g} s by interpolation")
         power = filled
-    if not np.all(np.isfinite(power)) or np.any(power < 0):
-        raise InputError("power must be finite and not negative")
+    problem = _first_bad_sample(power, time, "power", "W")
+    if problem:
+        raise InputError(problem)
     suspect = _zero_power_holding_speed(time, speed, power)
     if suspect is not None:
         notes.append(

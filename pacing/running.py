@@ -406,8 +406,12 @@ def flat_effort(flat_speed: float, air_density: float, runner: Runner) -> float:
     flat_speed : [m/s]; air_density : at the start [kg/m³]; runner : Runner.
     """
     if not np.isfinite(flat_speed) or not 0.5 <= flat_speed <= 12.0:
+        typed = ""
+        if np.isfinite(flat_speed) and flat_speed > 0:
+            minutes, seconds = divmod(round(1000.0 / flat_speed), 60)
+            typed = f"{minutes}:{seconds:02d} per km, "
         raise InputError(
-            f"flat pace must be 1:24-33:20 per km (0.5-12 m/s), got {flat_speed:.3g} m/s"
+            f"flat pace must be 1:24-33:20 per km (0.5-12 m/s), got {typed}{flat_speed:.3g} m/s"
         )
     return float(metabolic_power(flat_speed, 0.0, air_density, runner))
 

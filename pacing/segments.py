@@ -1,5 +1,6 @@
-"""Segments of a course: split it by grade, every so many metres or at given distances, and
-describe each stretch (length, grades, ascent, heading, kind).
+"""Segments of a course: split it by grade (also at turnarounds, with a longest segment),
+every so many metres or at given distances, and describe each stretch (length, grades, ascent,
+heading, kind).
 
 Segments are given by boundary point indices (`bounds`: increasing, first 0, last N-1) of a
 pacing.course.Course; a *piece* joins point i to i+1 (DEVELOPERS.md, Conventions). These names
@@ -23,6 +24,18 @@ if TYPE_CHECKING:
 CLIMB_GRADE = 0.02
 """Mean grade from which a segment is a climb (and below minus which a descent) [-]; common
 practice."""
+
+MAX_SEGMENT_LENGTH = 2000.0
+"""Longest segment of the automatic split [m]: a 10 km climb or a 20 km flat still gets a
+target every 2 km or less, where power or pace can follow the road and the wind."""
+
+TURN_ANGLE = 120.0
+"""Change of the road's direction that starts a new segment in the automatic split [deg]: a
+turnaround (180) or a hairpin between long straights, not an ordinary corner (90)."""
+
+TURN_SPAN = 500.0
+"""Length of road on each side of a point over which its direction is averaged when looking
+for turns [m]."""
 
 
 @dataclass(frozen=True)
@@ -77,19 +90,31 @@ def _check_bounds(course: Course, bounds: np.ndarray) -> np.ndarray:
 
 
 def split_by_grade(course: Course, climb_grade: float = CLIMB_GRADE,
-                   min_length: float = 300.0) -> np.ndarray:
-    """Split the course into climbs, flats and descents by grade.
+                   min_length: float = 300.0, max_length: float = MAX_SEGMENT_LENGTH,
+                   turn_angle: float | None = TURN_ANGLE) -> np.ndarray:
+    """Split the course into climbs, flats and descents by grade, at turnarounds, and so that
+    no segment is longer than max_length.
 
-    Each piece is classed by its cleaned grade (climb >= climb_grade, descent <= -climb_grade,
-    else flat); runs of one class form segments. Then, while a segment is shorter than
-    min_length, the shortest is merged into the neighbour whose mean grade is nearer its own,
-    the merged segment is reclassed by its mean grade, and neighbours of one class are joined.
+    1. Turns: the course is first cut where its direction turns by turn_angle or more (see
+       `turn_points`), e.g. at the turnaround of an out-and-back, so that the way out and the
+       way back (opposite winds) are separate segments.
+    2. Grade, within each stretch between turns: each piece is classed by its cleaned grade
+       (climb >= climb_grade, descent <= -climb_grade, else flat); runs of one class form
+       segments. Then, while a segment is shorter than min_length, the shortest is merged into
+       the neighbour whose mean grade is nearer its own, the merged segment is reclassed by its
+       mean grade, and neighbours of one class are joined.
+    3. Length: a segment longer than max_length is split evenly into ceil(length/max_length)
+       parts (fewer if parts would be shorter than min_length), so that a long climb or a long
+       flat still gets targets every few kilometres.
 
     Parameters
     ----------
     course : the course.
     climb_grade : grade threshold [-], > 0.
     min_length : shortest segment kept [m] (a course shorter than this is one segment).
+    max_length : longest segment [m], >= min_length; math.inf for no limit.
+    turn_angle : change of direction that cuts the course [deg], 0 < angle <= 180; None for no
+        cut at turns.
 
     Returns
     -------
@@ -99,8 +124,108 @@ def split_by_grade(course: Course, climb_grade: float = CLIMB_GRADE,
         raise InputError(f"climb grade must be > 0, got {climb_grade!r}")
     if not (math.isfinite(min_length) and min_length >= 0):
         raise InputError(f"minimum segment length must be >= 0 m, got {min_length!r}")
-    distance, elevation = course.distance, course.elevation
-    grade = np.asarray(course.grade, dtype=float)
+    if not (max_length >= min_length and max_length > 0):  # also refuses NaN
+        raise InputError(f"maximum segment length must be > 0 m and at least the minimum "
+                         f"({min_length:g} m), got {max_length!r}")
+    distance = np.asarray(course.distance, dtype=float)
+    cuts = [0] if turn_angle is None else [0, *turn_points(course, turn_angle,
+                                                           min_distance=min_length)]
+    cuts.append(distance.size - 1)
+    bounds = [0]
+    for first, last in zip(cuts[:-1], cuts[1:], strict=True):
+        within = _split_stretch_by_grade(distance[first:last + 1],
+                                         np.asarray(course.elevation[first:last + 1], float),
+                                         np.asarray(course.grade[first:last], float),
+                                         climb_grade, min_length)
+        bounds.extend((first + within[1:]).tolist())
+    return _cap_length(distance, np.asarray(bounds, dtype=int), min_length, max_length)
+
+
+def turn_points(course: Course, turn_angle: float = TURN_ANGLE, span: float = TURN_SPAN,
+                min_distance: float = 300.0) -> np.ndarray:
+    """Points where the course turns by turn_angle or more, e.g. the turnaround of an
+    out-and-back.
+
+    At each point i, B is the sum of the unit direction vectors of the pieces within `span`
+    before it, weighted by their lengths, and A the same after it (the mean direction of the
+    road before and after). The point is a candidate when the angle between A and B is at least
+    turn_angle and the road keeps a direction on both sides (|A| and |B| at least half the
+    length they sum, which rules out zigzags and GPS wander). Among candidates, the point with
+    the largest |A − B| (the sharpest, most central change) is taken first; candidates within
+    min_distance of a taken point or of either end are dropped.
+
+    Parameters
+    ----------
+    course : the course.
+    turn_angle : change of direction [deg], 0 < angle <= 180.
+    span : length of road on each side over which the direction is averaged [m], > 0.
+    min_distance : smallest distance between two turn points, and from either end [m].
+
+    Returns
+    -------
+    Point indices, increasing (empty when the course never turns that much).
+    """
+    if turn_angle is None or not (0 < turn_angle <= 180):
+        raise InputError(f"turn angle must be between 0 and 180 deg, got {turn_angle!r}")
+    if not (math.isfinite(span) and span > 0):
+        raise InputError(f"turn span must be > 0 m, got {span!r}")
+    distance = np.asarray(course.distance, dtype=float)
+    count = distance.size
+    if count < 3:
+        return np.zeros(0, dtype=int)
+    length = np.diff(distance)
+    angle = np.radians(np.asarray(course.heading, dtype=float))
+    east = np.concatenate([[0.0], np.cumsum(length * np.sin(angle))])
+    north = np.concatenate([[0.0], np.cumsum(length * np.cos(angle))])
+    point = np.arange(1, count - 1)
+    before = np.searchsorted(distance, distance[point] - span, side="left")
+    after = np.searchsorted(distance, distance[point] + span, side="right") - 1
+    b_east, b_north = east[point] - east[before], north[point] - north[before]
+    a_east, a_north = east[after] - east[point], north[after] - north[point]
+    b_size, a_size = np.hypot(b_east, b_north), np.hypot(a_east, a_north)
+    b_road = distance[point] - distance[before]
+    a_road = distance[after] - distance[point]
+    with np.errstate(invalid="ignore", divide="ignore"):
+        cosine = (a_east * b_east + a_north * b_north) / (a_size * b_size)
+    straight = (b_size >= 0.5 * b_road) & (a_size >= 0.5 * a_road) & (b_road > 0) & (a_road > 0)
+    inside = ((distance[point] - distance[0] >= min_distance)
+              & (distance[-1] - distance[point] >= min_distance))
+    turning = straight & inside & (cosine <= math.cos(math.radians(turn_angle)) + 1e-12)
+    candidates = point[turning]
+    if candidates.size == 0:
+        return np.zeros(0, dtype=int)
+    change = np.hypot(a_east - b_east, a_north - b_north)[turning]
+    taken: list[int] = []
+    for index in candidates[np.argsort(-change, kind="stable")]:
+        if all(abs(distance[index] - distance[t]) >= min_distance for t in taken):
+            taken.append(int(index))
+    return np.asarray(sorted(taken), dtype=int)
+
+
+def _cap_length(distance: np.ndarray, bounds: np.ndarray, min_length: float,
+                max_length: float) -> np.ndarray:
+    """Bounds with every segment longer than max_length split evenly (parts >= min_length)."""
+    if not math.isfinite(max_length):
+        return bounds
+    result = [int(bounds[0])]
+    for first, last in zip(bounds[:-1], bounds[1:], strict=True):
+        length = float(distance[last] - distance[first])
+        parts = math.ceil(length / max_length - 1e-9)
+        if min_length > 0:
+            parts = min(parts, max(1, math.floor(length / min_length)))
+        if parts > 1:
+            marks = distance[first] + length * np.arange(1, parts) / parts
+            inner = np.clip(np.rint(np.interp(marks, distance[first:last + 1],
+                                              np.arange(first, last + 1))).astype(int),
+                            first + 1, last - 1)
+            result.extend(np.unique(inner).tolist())
+        result.append(int(last))
+    return np.asarray(result, dtype=int)
+
+
+def _split_stretch_by_grade(distance: np.ndarray, elevation: np.ndarray, grade: np.ndarray,
+                            climb_grade: float, min_length: float) -> np.ndarray:
+    """Grade split (step 2 of split_by_grade) of one stretch; bounds local to the stretch."""
     kind = np.where(grade >= climb_grade, 1, np.where(grade <= -climb_grade, -1, 0))
     change = np.flatnonzero(np.diff(kind)) + 1
     starts = [0, *change.tolist()]

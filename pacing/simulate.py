@@ -25,7 +25,10 @@ Speed caps (cornering √(a_lat·R), an optional maximum descent speed) are appl
 with look-ahead: a backward pass on v² with the braking deceleration lowers each point's limit
 so the rider can slow down in time. When a piece would end above its limit the rider first
 eases off the pedals (down to coasting) and then brakes; the brakes' work is accounted. Above an
-optional coasting speed the rider stops pedalling (no brakes).
+optional coasting speed the rider stops pedalling (no brakes). Where the planned power cannot
+hold the walking speed (SimulationOptions.minimum_speed) and the bike would stall or fall below
+it, also from a standing start, the rider walks the bike at the walking speed; the work to push
+it counts as rider work, so no power, however small, leaves the rider standing still.
 
 Distances in a Course are horizontal; the road along a piece is longer by √(1 + G²), and
 speeds here are along the road (what a wheel sensor reads).
@@ -90,8 +93,10 @@ class SimulationOptions:
     max_descent_speed : speed the rider never exceeds [m/s] (applied everywhere; it only binds
         on descents or in strong tailwinds); None for no such limit.
     coasting_speed : above this speed the rider stops pedalling [m/s]; None to always pedal.
-    minimum_speed : pieces ridden slower than this are flagged as walking pace [m/s]; if the
-        bike would stall, the rider walks it at this speed (that work counts as rider work).
+    minimum_speed : walking speed [m/s]: pieces ridden slower than this are flagged as
+        walking pace; where the bike would stall, or drop below it on a piece whose power
+        cannot hold it (also from a standing start), the rider walks the bike at this speed
+        (that work counts as rider work, and the piece is flagged).
     max_drive_force : cap of the driving force at the rear wheel [N]; None for rear-wheel
         traction, REAR_WHEEL_LOAD_SHARE·TYRE_ROAD_FRICTION·m·g (470 N for 80 kg). It acts only
         at low speed, below η·P/F_max (0.5 m/s at 250 W), where η·P/v would grow without
@@ -147,8 +152,8 @@ class Prediction:
     Piece arrays (length N-1): power [W] (crank power actually applied, after easing off,
     coasting and braking), air_speed [m/s] (apparent wind at the piece's mean speed), yaw [deg],
     headwind [m/s]; energy per piece [J]: aero, rolling, bearing, drivetrain_loss, potential
-    (m·g·Δh), kinetic (½·m_eff·Δ(v²)), braking; walking (bool): mean speed below the walking
-    threshold.
+    (m·g·Δh), kinetic (½·m_eff·Δ(v²)), braking; walking (bool): the rider walked the bike on
+    part of the piece, or its mean speed is below the walking speed.
     """
 
     distance: np.ndarray
@@ -339,8 +344,9 @@ def _step(piece: _Piece, v0: float, resist0: float, h: float, drive: float, driv
     """Speed after a step of length h, and the drive work [J]; v1 < 0 when the bike stalls.
 
     Solves R(v1) = ½m(v1² − v0²) − W(v1) + h·(F0 + F(v1))/2 = 0, with W(v1) =
-    min(drive·2h/(v0+v1), drive_cap·h): R is strictly increasing in v1, so Newton steps kept in
-    a bracket [0, high] converge to the unique root. The bike stalls when R(0) ≥ 0.
+    min(drive·2h/(v0+v1), drive_cap·h) (0 without drive, also from rest): R is strictly
+    increasing in v1, so Newton steps kept in a bracket [0, high] converge to the unique root.
+    The bike stalls when R(0) ≥ 0.
     """
     half_h = 0.5 * h
     base = half_h * (resist0 + piece.constant) - 0.5 * m_eff * v0 * v0
@@ -364,8 +370,8 @@ def _step(piece: _Piece, v0: float, resist0: float, h: float, drive: float, driv
         if total > 0 and drive_work < cap_work * total:
             work = drive_work / total
             work_slope = -work / total
-        else:
-            work = cap_work
+        else:  # from rest: the traction cap, or nothing when there is no drive at all
+            work = cap_work if drive_work > 0 else 0.0
             work_slope = 0.0
         value = 0.5 * m_eff * v1 * v1 - work + base + half_h * (aero1 + b * v1)
         slope = m_eff * v1 - work_slope + half_h * (aero_slope + b)
@@ -388,21 +394,36 @@ def _step(piece: _Piece, v0: float, resist0: float, h: float, drive: float, driv
             break
         v1 = newton
     total = v0 + v1
-    work = drive_work / total if total > 0 and drive_work < cap_work * total else cap_work
+    if total > 0 and drive_work < cap_work * total:
+        work = drive_work / total
+    else:
+        work = cap_work if drive_work > 0 else 0.0
     return v1, work
 
 
+def _holds_walking_pace(piece: _Piece, drive: float) -> bool:
+    """Whether wheel power `drive` [W] can keep the bike at the walking speed on this piece:
+    min(drive/v_w, F_max) ≥ F_resist(v_w)."""
+    walk = piece.walking_speed
+    aero, _ = piece.aero(walk)
+    return min(drive / walk, piece.drive_cap) >= aero + piece.constant + piece.b * walk
+
+
 def _ride(piece: _Piece, v_start: float, drive: float
-          ) -> tuple[float, float, float, float, float]:
+          ) -> tuple[float, float, float, float, float, bool]:
     """Ride one piece at wheel power `drive` [W] from v_start with adaptive steps.
 
-    Returns (end speed [m/s], time [s], drive work [J], aero work [J], bearing work [J]). A step
-    is halved until the speed changes by at most ~2 % + 0.02 m/s; the next one tries twice the
-    length. If the bike stalls, the rider walks it at the walking speed and the work to do so
-    counts as drive work.
+    Returns (end speed [m/s], time [s], drive work [J], aero work [J], bearing work [J],
+    walked). A step is halved until the speed changes by at most ~2 % + 0.02 m/s; the next one
+    tries twice the length. The rider walks the bike at the walking speed, and the work to push
+    it counts as drive work, where the bike stalls, or where it would drop below the walking
+    speed on a piece whose power cannot hold the walking speed (so a standing start with no or
+    tiny power walks off instead of creeping, and more power is never slower).
     """
     length, constant, a, b = piece.length, piece.constant, piece.a, piece.b
-    m_eff, drive_cap = piece.m_eff, piece.drive_cap
+    m_eff, drive_cap, walking_speed = piece.m_eff, piece.drive_cap, piece.walking_speed
+    holds = _holds_walking_pace(piece, drive)
+    walked = False
     v_now = v_start
     aero_now, _ = piece.aero(v_now)
     done = 0.0
@@ -412,17 +433,20 @@ def _ride(piece: _Piece, v_start: float, drive: float
         h = min(h, length - done)
         resist_now = aero_now + constant + b * v_now
         v_next, work = _step(piece, v_now, resist_now, h, drive, drive_cap, m_eff)
-        if v_next < 0:  # stalled: the rider walks the bike
-            v_next = piece.walking_speed
-            aero_next, _ = piece.aero(v_next)
-            resist_next = aero_next + constant + b * v_next
-            work = 0.5 * m_eff * (v_next**2 - v_now**2) + 0.5 * h * (resist_now + resist_next)
-        else:
+        walk = v_next < 0 or (v_next < walking_speed and not holds)
+        if not walk or (v_now > walking_speed and v_next >= 0):  # resolve a fast change
             change = abs(v_next - v_now)
             allowed = _SPEED_CHANGE_RELATIVE * max(v_now, v_next) + _SPEED_CHANGE_ABSOLUTE
             if change > allowed and h > 1e-9 * length:
                 h *= 0.25 if change > 4 * allowed else 0.5
                 continue
+        if walk:  # the rider walks the bike at the walking speed
+            walked = True
+            v_next = walking_speed
+            aero_next, _ = piece.aero(v_next)
+            resist_next = aero_next + constant + b * v_next
+            work = 0.5 * m_eff * (v_next**2 - v_now**2) + 0.5 * h * (resist_now + resist_next)
+        else:
             aero_next, _ = piece.aero(v_next)
         t_sum += 2.0 * h / (v_now + v_next)
         work_sum += work
@@ -431,13 +455,14 @@ def _ride(piece: _Piece, v_start: float, drive: float
         done += h
         v_now, aero_now = v_next, aero_next
         h *= 2.0
-    return v_now, t_sum, work_sum, aero_sum, bearing_sum
+    return v_now, t_sum, work_sum, aero_sum, bearing_sum, walked
 
 
 def _held_at(piece: _Piece, v_start: float, v_end: float
-             ) -> tuple[float, float, float, float, float]:
+             ) -> tuple[float, float, float, float, float, bool]:
     """One step over the piece ending exactly at v_end; the drive work it needs closes the
-    energy balance (negative: the brakes must take that much). Same tuple as _ride."""
+    energy balance (negative: the brakes must take that much). Same tuple as _ride (never
+    walked)."""
     length, a, b = piece.length, piece.a, piece.b
     aero0, _ = piece.aero(v_start)
     aero1, _ = piece.aero(v_end)
@@ -445,7 +470,7 @@ def _held_at(piece: _Piece, v_start: float, v_end: float
     bearing_work = length * (a + 0.5 * b * (v_start + v_end))
     need = (0.5 * piece.m_eff * (v_end**2 - v_start**2) + aero_work + bearing_work
             + length * (piece.constant - a))
-    return v_end, 2.0 * length / (v_start + v_end), need, aero_work, bearing_work
+    return v_end, 2.0 * length / (v_start + v_end), need, aero_work, bearing_work, False
 
 
 def simulate(course, power, rider: Rider, air, options: SimulationOptions | None = None
@@ -490,6 +515,7 @@ def simulate(course, power, rider: Rider, air, options: SimulationOptions | None
     aero_energy = np.zeros(pieces)
     bearing_energy = np.zeros(pieces)
     braking_energy = np.zeros(pieces)
+    walked = np.zeros(pieces, dtype=bool)
     v = min(float(options.start_speed), float(limit[0]))
     speed[0] = v
 
@@ -519,7 +545,8 @@ def simulate(course, power, rider: Rider, air, options: SimulationOptions | None
             if coast[0] > limit_list[i + 1] or result[2] < 0:
                 brake = max(-result[2], 0.0)
                 result = (*result[:2], 0.0, *result[3:])
-        v, t_piece, work, aero_work, bearing_work = result
+        v, t_piece, work, aero_work, bearing_work, walked_piece = result
+        walked[i] = walked_piece
         speed[i + 1] = v
         time[i + 1] = time[i] + t_piece
         applied_work[i] = work / eta
@@ -545,7 +572,7 @@ def simulate(course, power, rider: Rider, air, options: SimulationOptions | None
         potential=gravity_per_piece * road,
         kinetic=0.5 * m_eff * np.diff(speed**2),
         braking=braking_energy,
-        walking=mean_speed < options.minimum_speed,
+        walking=walked | (mean_speed < options.minimum_speed),
     )
 
 

@@ -358,17 +358,23 @@ def _finish_plan(course, bounds, rider, air, request, options, model, segment_po
                                                              request)
         target = mean if request.constraint == "mean-power" else float(reference.work)
 
-        # only the segments not held at a bound are scaled, so bounds stay where they bind
-        free = (segment_power > lower * (1 + 1e-6) + 1e-9) & (segment_power < upper * (1 - 1e-6))
-        if not free.any():
-            free = np.ones_like(free)
+        # only the segments not held at a bound are scaled, so bounds stay where they bind;
+        # when that cannot reach the target (the free ones hit a bound first), the segments
+        # held at the lower bound scale up with them, or else those at the upper bound down
+        at_low = segment_power <= lower * (1 + 1e-6) + 1e-9
+        at_high = segment_power >= upper * (1 - 1e-6)
+        choices = [c for c in (~at_low & ~at_high, ~at_high, ~at_low) if c.any()]
+        choices = choices or [np.ones_like(at_low)]
+        for free in choices:
+            def corrected(scale: float, free=free) -> np.ndarray:
+                return np.clip(np.where(free, segment_power * scale, segment_power), lower,
+                               upper)
 
-        def corrected(scale: float) -> np.ndarray:
-            return np.clip(np.where(free, segment_power * scale, segment_power), lower, upper)
-
-        prediction, scale = _matched(lambda scale: corrected(scale)[pieces_segment], course,
-                                     rider, air, options, request, target,
-                                     free[pieces_segment])
+            prediction, scale = _matched(lambda scale: corrected(scale)[pieces_segment], course,
+                                         rider, air, options, request, target,
+                                         free[pieces_segment])
+            if abs(_measure(prediction, request) - target) <= _MATCH_TOLERANCE * target:
+                break
         segment_power = corrected(scale)
         piece_power = segment_power[pieces_segment]
         measured = _measure(prediction, request)

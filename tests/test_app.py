@@ -340,3 +340,16 @@ def test_runner_reserve_panel_is_in_metres():
     figure = along_course_figure(distance, np.full(10, 4.0), w_prime_balance=np.full(10, 90.0),
                                  reserve="D′")
     assert figure.layout.yaxis2.title.text == "D′ left [m]"
+
+
+def test_the_app_cleans_elevation_like_the_command_line(app):
+    # Review finding 13: the app's smoothing window (100 m) differed from the library default
+    # that `pacing course` uses (ElevationSmoothing(), 200 m), so the two showed different
+    # cleaned ascents for the same file.
+    from pacing.course import ElevationSmoothing
+    from pacing.io.gpx import DEFAULT_DEMO_ROUTE, load_course
+
+    defaults = ElevationSmoothing()
+    assert app.number_input(key="smooth_window:metric").value == defaults.window
+    assert app.number_input(key="max_grade_pct:metric").value == defaults.max_grade * 100.0
+    assert metric(app, "Climbing, cleaned") == f"{load_course(DEFAULT_DEMO_ROUTE).ascent:.0f} m"

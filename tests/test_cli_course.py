@@ -28,7 +28,7 @@ def test_readable_summary_of_the_demo_loop(capsys):
     assert "Corravey hill loop" in out
     assert f"{course.total_distance / 1000:.2f} km" in out
     assert f"{course.ascent:.0f} m" in out and f"{course.raw_ascent:.0f} m" in out
-    for word in ("descent", "highest point", "lowest point", "Segments (by grade)", "climb"):
+    for word in ("descent", "highest point", "lowest point", "Segments (by terrain and turns)", "climb"):
         assert word in out
 
 
@@ -63,7 +63,7 @@ def test_fixed_length_segments_and_step(capsys):
 
 def test_flat_option_reads_a_route_without_elevation(capsys):
     code, _, err = run(capsys, DATA / "route_gpx11.gpx")
-    assert code == 2 and "no elevation" in err
+    assert code == 2 and "no elevation" in err and "use --flat (command line)" in err
     code, out, err = run(capsys, DATA / "route_gpx11.gpx", "--flat", "--json")
     assert code == 0 and json.loads(out)["ascent_m"] == 0.0
     assert err == "pacing course: warning: GPX file has no elevation data: the course is " \
@@ -88,3 +88,46 @@ def test_a_broken_file_through_the_real_command_line(tmp_path):
                             capture_output=True, text=True, timeout=60)
     assert result.returncode == 2
     assert "Traceback" not in result.stderr and result.stderr.count("\n") == 1
+
+
+def test_the_out_and_back_demo_is_split_at_its_turnaround(capsys):
+    # Review finding: the windy out-and-back used to be one "flat" segment with a meaningless
+    # mean heading; now the way out and the way back are separate segments of at most 2 km.
+    route = DEFAULT_DEMO_ROUTE.parent / "02_skelmarsh_dyke_out_and_back_20k.gpx"
+    code, out, _ = run(capsys, route, "--json")
+    assert code == 0
+    segments = json.loads(out)["segments"]
+    assert len(segments) >= 10
+    assert max(s["end_m"] - s["start_m"] for s in segments) <= 2000.0 + 10.0
+
+
+def gpx_points(rows: str) -> str:
+    return ('<?xml version="1.0"?><gpx version="1.1" xmlns="http://www.topografix.com/GPX/1/1">'
+            f"<trk><trkseg>{rows}</trkseg></trk></gpx>")
+
+
+@pytest.mark.parametrize(("rows", "message"), [
+    ('<trkpt lat="45" lon="7"><ele>1</ele></trkpt><trkpt lat="abc" lon="7"><ele>1</ele></trkpt>',
+     "not a valid GPX file: track point 2 has latitude 'abc', not a number"),
+    ('<trkpt lat="45" lon="7"><ele>1</ele></trkpt>'
+     '<trkpt lat="45.000007" lon="7"><ele>1</ele></trkpt>',
+     "the course is only 0.8 m long; a course must be at least 100 m"),
+])
+def test_bad_points_and_tiny_courses_give_one_line(capsys, tmp_path, rows, message):
+    path = tmp_path / "bad.gpx"
+    path.write_text(gpx_points(rows))
+    code, out, err = run(capsys, path)
+    assert code == 2 and out == ""
+    assert err == f"pacing course: error: {message}\n"
+
+
+def test_points_without_elevation_are_interpolated_with_a_one_line_warning(capsys, tmp_path):
+    path = tmp_path / "gap.gpx"
+    path.write_text(gpx_points('<trkpt lat="45" lon="7"><ele>100</ele></trkpt>'
+                               '<trkpt lat="45.001" lon="7"><ele>nan</ele></trkpt>'
+                               '<trkpt lat="45.002" lon="7"></trkpt>'
+                               '<trkpt lat="45.003" lon="7"><ele>103</ele></trkpt>'))
+    code, out, err = run(capsys, path, "--json")
+    assert code == 0 and json.loads(out)["raw_ascent_m"] == pytest.approx(3.0)
+    assert err == ("pacing course: warning: 2 of 4 track points had no elevation; their "
+                   "heights were interpolated from the neighbouring points\n")

@@ -99,6 +99,94 @@ def test_constant_power_laps_warn(capsys, tmp_path):
     assert any("speed variety" in w for w in result["warnings"])
 
 
+@pytest.fixture(scope="module")
+def steady_file(tmp_path_factory):
+    """Six laps at one power: CdA and Crr cannot be separated (review finding #12)."""
+    return write_ride(tmp_path_factory.mktemp("steady") / "steady.csv",
+                      lap_powers=(250.0,) * 6)[0]
+
+
+def test_inseparable_laps_hold_crr_and_say_so_in_json(capsys, steady_file):
+    result = run_json(capsys, steady_file, "--mass", 80)
+    assert result["crr_held"] is True and result["crr_fixed"] is False
+    assert result["crr_source"] == "typical"
+    assert result["crr"] == 0.0032  # Martin et al. (1998), from memory (REFERENCES.md [mem])
+    assert result["crr_ci95"] is None
+    low, high = result["cda_ci95"]
+    assert 0 < low < result["cda_m2"] < high
+    assert result["cda_change_per_0_001_crr_m2"] < 0
+    assert any("held at 0.0032" in w for w in result["warnings"])
+
+
+def test_inseparable_laps_in_text_show_no_negative_number(capsys, steady_file):
+    assert main(["fieldtest", str(steady_file), "--mass", "80", "--bootstrap", "200"]) == 0
+    out = capsys.readouterr().out
+    assert "Crr 0.00320 (held at a typical value" in out
+    results = [line for line in out.splitlines() if not line.startswith("warning:")]
+    assert not any(" -0." in line for line in results), results
+
+
+def test_fallback_crr_is_the_users_typical_value(capsys, steady_file):
+    # holding the Crr the ride was simulated with gives back its CdA
+    result = run_json(capsys, steady_file, "--mass", 80, "--fallback-crr", TRUE_ROLLING)
+    assert result["crr_held"] is True and result["crr"] == TRUE_ROLLING
+    assert result["cda_m2"] == pytest.approx(TRUE_AREA, rel=0.02)
+
+
+def test_varied_laps_fit_crr(capsys, ride_file):
+    result = run_json(capsys, ride_file, "--mass", 80)
+    assert result["crr_held"] is False and result["crr_source"] == "fitted"
+
+
+def test_negative_crr_and_undetermined_cda_are_flagged_in_text():
+    from pacing.cli.fieldtest import _as_text
+    from pacing.cycling import Rider
+    from pacing.fieldtest import PositionTest, estimate_drag, make_ride
+
+    # a power meter reading 40 W low on varied laps: Crr comes out below 0
+    data = simulate_loop_ride()
+    ride = make_ride(data["time"], data["speed"], data["power"] - 40.0,
+                     latitude=data["latitude"], longitude=data["longitude"])
+    test = PositionTest("offset", ride, 1.2)
+    result = estimate_drag(test, Rider(mass=80.0), bootstrap=200)
+    text = _as_text(result, [test], [])
+    assert result.rolling_coefficient < 0
+    assert "(not physical: below 0; see the warnings)" in text
+    # one-power laps fitted jointly (no fallback): the CdA interval reaches below 0
+    steady = simulate_loop_ride(lap_powers=(250.0,) * 6)
+    rng = np.random.default_rng(1)
+    noisy = make_ride(steady["time"], steady["speed"],
+                      steady["power"] * (1 + POWER_CV * rng.standard_normal(steady["time"].size)),
+                      latitude=steady["latitude"], longitude=steady["longitude"])
+    test = PositionTest("steady", noisy, 1.2)
+    result = estimate_drag(test, Rider(mass=80.0), bootstrap=200,
+                           fallback_rolling_coefficient=None)
+    assert result.drag_area_ci95[0] < 0
+    assert "(undetermined: the interval reaches below 0" in _as_text(result, [test], [])
+
+
+def test_negative_power_error_names_the_sample(capsys, tmp_path, ride_file):
+    lines = ride_file.read_text().splitlines()
+    cells = lines[6].split(",")
+    cells[2] = "-30"
+    lines[6] = ",".join(cells)
+    bad = tmp_path / "negative.csv"
+    bad.write_text("\n".join(lines) + "\n")
+    assert main(["fieldtest", str(bad), "--mass", "80"]) == 2
+    err = capsys.readouterr().err
+    assert "power is negative (-30 W) at sample 6 (t = 5 s)" in err
+    assert err.count("\n") == 1
+
+
+def test_help_explains_the_flags_and_json_keys(capsys):
+    with pytest.raises(SystemExit) as done:
+        main(["fieldtest", "--help"])
+    assert done.value.code == 0
+    out = capsys.readouterr().out
+    for words in ("--fallback-crr", "crr_held", "crr_source", "--mass KG", "different speeds"):
+        assert words in out
+
+
 @pytest.mark.parametrize("args, message", [
     (["missing.csv", "--mass", "80"], "ride file not found"),
     (["{ride}", "--mass", "5"], "--mass must be 20-300 kg"),
@@ -106,6 +194,8 @@ def test_constant_power_laps_warn(capsys, tmp_path):
     (["{ride}", "--mass", "80", "--laps", "a,b"], "--laps must be times"),
     (["{ride}", "--mass", "80", "--position", "a", "--position", "b"], "one --position per"),
     (["{bad}", "--mass", "80"], "missing column(s) power"),
+    (["{ride}", "--mass", "80", "--fallback-crr", "-0.01"], "--fallback-crr must be 0-0.1"),
+    (["{ride}", "--mass", "80", "--crr", "nan"], "--crr must be 0-0.1"),
 ])
 def test_errors_are_one_line_with_exit_code_2(capsys, tmp_path, ride_file, args, message):
     bad = tmp_path / "bad.csv"

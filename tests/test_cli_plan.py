@@ -17,8 +17,9 @@ from pacing.cli import main
 pytest.importorskip("pacing.io.gpx")
 
 JSON_KEYS = {"finish_time_s", "distance_m", "average_speed_mps", "average_power_w",
-             "max_speed_mps", "work_kj", "segments"}
-SEGMENT_KEYS = {"start_m", "end_m", "grade", "power_w", "speed_mps", "time_s", "max_speed_mps"}
+             "max_speed_mps", "work_kj", "walking_distance_m", "segments"}
+SEGMENT_KEYS = {"start_m", "end_m", "grade", "power_w", "power_low_w", "power_high_w",
+                "speed_mps", "time_s", "max_speed_mps"}
 
 
 @pytest.fixture(scope="module")
@@ -39,11 +40,15 @@ def route(tmp_path_factory):
     return str(path)
 
 
+def _refuse_constant(name):
+    raise AssertionError(f"{name} is not valid JSON (RFC 8259 has no NaN or Infinity)")
+
+
 def run_json(capsys, *argv):
     code = main(["plan", *argv, "--json"])
     captured = capsys.readouterr()
     assert code == 0, captured.err
-    return json.loads(captured.out)
+    return json.loads(captured.out, parse_constant=_refuse_constant)
 
 
 def test_json_has_exactly_the_contract_keys(capsys, route):
@@ -113,6 +118,12 @@ def test_table_has_units_on_every_column(capsys, route):
         (["--power", "250", "--crr", "-0.01"], "--crr"),
         (["--power", "250", "--efficiency", "1.5"], "--efficiency"),
         (["--power", "-10"], "--power"),
+        (["--power", "0"], "--power"),
+        (["--power", "250", "--max-descent-speed", "0"], "--max-descent-speed"),
+        (["--power", "250", "--max-descent-speed", "-5"], "--max-descent-speed"),
+        (["--power", "250", "--max-descent-speed", "inf"], "--max-descent-speed"),
+        (["--power", "250", "--coasting-speed", "0"], "--coasting-speed"),
+        (["--power", "250", "--coasting-speed", "nan"], "--coasting-speed"),
         (["--power", "nan"], "--power"),
         (["--power", "250", "--start-speed", "-1"], "--start-speed"),
         (["--power", "250", "--wind-speed", "-3"], "--wind-speed"),
@@ -131,3 +142,94 @@ def test_bad_input_gives_one_line_and_exit_code_2(capsys, route, flags, words):
 def test_missing_file_gives_one_line(capsys, tmp_path):
     assert main(["plan", str(tmp_path / "nowhere.gpx"), "--power", "250"]) == 2
     assert len(capsys.readouterr().err.strip().splitlines()) == 1
+
+
+# ------------------------------------------------------------------ review findings 1, 5, 11, 14
+
+def test_tiny_power_walks_the_bike_and_is_flagged_never_nan(capsys, route):
+    """Review finding 1: --power 0 printed NaN and a finish of 10^27 hours. 0 is refused (above);
+    a power too small to hold walking pace walks the bike: finite numbers, flagged."""
+    result = run_json(capsys, route, "--power", "0.5")
+    assert math.isfinite(result["finish_time_s"]) and result["finish_time_s"] > 0
+    # walked: the flat 2 km and the 5 % climb; the −4 % descent rolls on gravity alone
+    assert 4000.0 - 30.0 <= result["walking_distance_m"] < result["distance_m"] - 1500.0
+    # walking pace (1 m/s, pacing.cycling.WALKING_SPEED) is the slowest the rider goes
+    assert result["average_speed_mps"] >= 0.99
+    assert main(["plan", route, "--power", "0.5"]) == 0
+    out = capsys.readouterr().out
+    assert "nan" not in out.lower() and "walk" in out
+
+
+def test_a_normal_power_walks_nowhere(capsys, route):
+    assert run_json(capsys, route, "--power", "250")["walking_distance_m"] == 0.0
+
+
+BAND = 0.03  # issue 4: "power targets per segment come with a band (e.g. ±3 %)"
+
+
+@pytest.mark.parametrize(
+    "flags",
+    [
+        ["--power", "250"],
+        ["--strategy", "constant", "--power", "250"],
+        ["--strategy", "fastest", "--power", "250", "--segment-length", "1000"],
+        ["--strategy", "target-time", "--target-time", "0:12:00", "--cp", "300",
+         "--w-prime", "20000"],
+    ],
+    ids=["plain", "constant", "fastest", "target-time"],
+)
+def test_every_cycling_plan_shows_the_power_band(capsys, route, flags):
+    """Review finding 5: the ±3 % band around each segment's target power, in JSON and table."""
+    result = run_json(capsys, route, *flags)
+    for segment in result["segments"]:
+        target = 250.0 if flags[0] == "--power" else segment["power_w"]
+        assert segment["power_low_w"] == pytest.approx((1 - BAND) * target, rel=1e-12)
+        assert segment["power_high_w"] == pytest.approx((1 + BAND) * target, rel=1e-12)
+    assert main(["plan", route, *flags]) == 0
+    lines = capsys.readouterr().out.splitlines()
+    assert "band W" in lines[0]
+    first = result["segments"][0]
+    assert f"{first['power_low_w']:.0f}-{first['power_high_w']:.0f}" in lines[1]
+    assert any(line.startswith("band: ±3 %") for line in lines)
+
+
+def test_max_descent_speed_caps_the_speed_and_brakes(capsys, route):
+    """Review finding 14: --max-descent-speed [m/s] reaches SimulationOptions."""
+    free = run_json(capsys, route, "--power", "250")
+    capped = run_json(capsys, route, "--power", "250", "--max-descent-speed", "10")
+    assert free["max_speed_mps"] > 10.5
+    assert capped["max_speed_mps"] <= 10.0 + 1e-9
+    assert capped["finish_time_s"] > free["finish_time_s"]
+
+
+def test_coasting_speed_stops_pedalling_above_it(capsys, route):
+    """Review finding 14: --coasting-speed [m/s]: above it the rider stops pedalling, so the
+    mean power falls below the planned power and the ride is slower."""
+    free = run_json(capsys, route, "--power", "250")
+    coasting = run_json(capsys, route, "--power", "250", "--coasting-speed", "9")
+    assert coasting["average_power_w"] < free["average_power_w"] - 5.0
+    assert coasting["finish_time_s"] > free["finish_time_s"]
+    for segment in coasting["segments"]:
+        if segment["speed_mps"] < 8.0:  # the climb, ridden below the coasting speed
+            assert segment["power_w"] == pytest.approx(250.0, rel=1e-3)
+
+
+def test_target_time_without_cp_warns_on_one_line(capsys, route):
+    """Review finding 11: without CP and W′ the power is not checked against the athlete."""
+    assert main(["plan", route, "--strategy", "target-time", "--target-time", "0:12:00"]) == 0
+    err = capsys.readouterr().err.strip().splitlines()
+    assert len(err) == 1 and "warning" in err[0] and "--cp" in err[0]
+    assert main(["plan", route, "--strategy", "target-time", "--target-time", "0:12:00",
+                 "--cp", "300", "--w-prime", "20000"]) == 0
+    assert capsys.readouterr().err == ""
+
+
+def test_target_time_beyond_any_rider_is_refused(capsys, route):
+    """Review finding 11: 4:30 on these 6 km needs about 2350 W; world-class track sprinters'
+    peak power is 1600 ± 116 W for a few seconds (Dorel et al. 2005, Int J Sports Med
+    26:739-746), so any plan above 2000 W is refused with one line."""
+    code = main(["plan", route, "--strategy", "target-time", "--target-time", "0:04:30"])
+    captured = capsys.readouterr()
+    assert code == 2 and captured.out == ""
+    lines = captured.err.strip().splitlines()
+    assert len(lines) == 1 and "2000 W" in lines[0] and "--target-time" in lines[0]

@@ -125,3 +125,104 @@ def test_missing_file_is_a_one_line_error(capsys, tmp_path):
     assert main(["plan", str(tmp_path / "nowhere.gpx"), "--sport", "running",
                  "--flat-pace", "5:00"]) == 2
     assert capsys.readouterr().err.count("\n") == 1
+
+
+@pytest.fixture
+def descent_route(tmp_path):
+    distance = np.arange(0.0, 3000.1, 10.0)
+    course = synthetic_course(distance, 400.0 - 0.08 * distance, heading=90.0)
+    path = tmp_path / "descent.gpx"
+    path.write_text(write_gpx(course))
+    return path
+
+
+def test_json_has_the_cycling_keys_and_the_d_prime_balance(capsys, hilly_route):
+    # issue 5: "JSON keys as in cycling plus per segment pace_s_per_km"; the cycling plan
+    # has max_speed_mps, time_saved_s, a lowest balance, and per segment max_speed_mps and
+    # the balance (pacing.cli.plan_cycling.plan_as_dict)
+    fastest = run_json(capsys, hilly_route, "--strategy", "fastest", "--critical-speed", "4.94",
+                       "--d-prime", "123")
+    for key in ("max_speed_mps", "time_saved_s", "time_saved_against", "min_d_prime_balance_m",
+                "min_d_prime_distance_m", "peak_effort_ratio", "even_pace_time_s",
+                "limited_even_pace_time_s"):
+        assert fastest[key] is not None, key
+    assert "same time-weighted mean" in fastest["time_saved_against"]
+    assert fastest["time_saved_s"] == pytest.approx(
+        fastest["even_pace_time_s"] - fastest["finish_time_s"])
+    assert fastest["max_speed_mps"] == max(s["max_speed_mps"] for s in fastest["segments"])
+    assert fastest["min_d_prime_balance_m"] == pytest.approx(0.0, abs=0.05)
+    assert fastest["limited_even_pace_time_s"] > fastest["finish_time_s"]
+    balances = [s["d_prime_balance_m"] for s in fastest["segments"]]
+    assert min(balances) == pytest.approx(fastest["min_d_prime_balance_m"], abs=1.0)
+    equal = run_json(capsys, hilly_route, "--flat-pace", "5:00")
+    assert equal["min_d_prime_balance_m"] is None
+    assert all(s["d_prime_balance_m"] is None for s in equal["segments"])
+    assert all(s["max_speed_mps"] >= s["speed_mps"] for s in equal["segments"])
+    with_limits = run_json(capsys, hilly_route, "--flat-pace", "5:00", "--strategy", "even-pace",
+                           "--critical-speed", "4.94", "--d-prime", "123")
+    assert with_limits["min_d_prime_balance_m"] is not None
+    assert with_limits["time_saved_s"] == 0.0
+    assert with_limits["peak_effort_ratio"] > 1.0
+
+
+def test_equal_effort_is_at_least_as_fast_as_even_pace_on_a_flat_out_and_back_in_wind(
+        capsys, tmp_path):
+    # issue 5's property, through the command line (the hilly case is the model's physics:
+    # see pacing.running_plans' docstring)
+    distance = np.arange(0.0, 6000.1, 10.0)
+    heading = np.where(distance[:-1] < 3000.0, 0.0, 180.0)
+    path = tmp_path / "outback.gpx"
+    path.write_text(write_gpx(synthetic_course(distance, np.zeros_like(distance),
+                                               heading=heading)))
+    wind = ("--wind-speed", "6", "--wind-from", "0", "--segment-length", "1000")
+    equal = run_json(capsys, path, "--flat-pace", "4:30", *wind)
+    even = run_json(capsys, path, "--flat-pace", "4:30", "--strategy", "even-pace", *wind)
+    assert equal["finish_time_s"] <= even["finish_time_s"]
+    assert equal["time_saved_s"] == pytest.approx(even["finish_time_s"] - equal["finish_time_s"],
+                                                  abs=1e-6)
+
+
+def test_downhill_cap_flag(capsys, descent_route):
+    # issue 5: a settable cap on downhill speed (ratio to the flat speed)
+    flat_speed = 1000.0 / 300.0
+    default = run_json(capsys, descent_route, "--flat-pace", "5:00")
+    assert default["max_speed_mps"] == pytest.approx(1.2 * flat_speed)
+    looser = run_json(capsys, descent_route, "--flat-pace", "5:00", "--downhill-cap", "1.4")
+    assert looser["max_speed_mps"] == pytest.approx(1.4 * flat_speed)
+    free = run_json(capsys, descent_route, "--flat-pace", "5:00", "--downhill-cap", "none")
+    assert free["max_speed_mps"] > 1.4 * flat_speed
+    for bad in ("0.9", "fast", "nan"):
+        assert main(["plan", str(descent_route), "--sport", "running", "--flat-pace", "5:00",
+                     "--downhill-cap", bad]) == 2
+        err = capsys.readouterr().err
+        assert err.count("\n") == 1 and "--downhill-cap" in err
+
+
+def test_cycling_flags_are_ignored_with_a_one_line_warning(capsys, flat_route):
+    assert main(["plan", str(flat_route), "--sport", "running", "--flat-pace", "4:30",
+                 "--mass", "90", "--power", "250", "--json"]) == 0
+    captured = capsys.readouterr()
+    assert json.loads(captured.out)["body_mass_kg"] == 72.0
+    warning = [line for line in captured.err.splitlines() if "warning" in line]
+    assert len(warning) == 1
+    assert "--mass" in warning[0] and "--power" in warning[0] and "--body-mass" in warning[0]
+    # --cda and --drafting belong to running too: no warning
+    assert main(["plan", str(flat_route), "--sport", "running", "--flat-pace", "4:30",
+                 "--cda", "0.4", "--drafting", "50", "--json"]) == 0
+    assert "warning" not in capsys.readouterr().err
+
+
+def test_running_flags_are_named_for_cycling():
+    import argparse
+
+    from pacing.cli.plan_running import flags_of_other_sport
+
+    args = argparse.Namespace(flat_pace="4:30", body_mass=None, height=None, mass=80.0,
+                              critical_speed=None, d_prime=None, downhill_cap=None)
+    assert flags_of_other_sport(args, "cycling") == ["--flat-pace"]
+
+
+def test_out_of_range_flat_pace_is_reported_as_typed(capsys, flat_route):
+    assert main(["plan", str(flat_route), "--sport", "running", "--flat-pace", "0:30"]) == 2
+    err = capsys.readouterr().err
+    assert "got 0:30" in err and "m/s" not in err.split("got")[-1]

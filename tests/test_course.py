@@ -4,6 +4,7 @@ and the checks on bad tracks (segments: tests/test_segments.py)."""
 from __future__ import annotations
 
 import math
+import warnings
 
 import numpy as np
 import pytest
@@ -13,12 +14,14 @@ from hypothesis import strategies as st
 
 from pacing.course import (
     DEFAULT_STEP,
+    SMOOTHING_METHODS,
     STRAIGHT_ROAD_RADIUS,
     ElevationSmoothing,
     build_course,
     clean_elevation,
     corner_radius,
     geodesic_pieces,
+    smooth_elevation,
     split_by_grade,
     synthetic_course,
     total_ascent,
@@ -142,9 +145,17 @@ def test_repeated_consecutive_points_are_dropped_silently():
 
 def test_missing_elevations_at_some_points_are_interpolated_along_the_distance():
     latitude, longitude = meridian_track([0.0, 100.0, 300.0])
-    course = build_course(latitude, longitude, [10.0, np.nan, 40.0],
-                          smoothing=ElevationSmoothing(method="none"))
+    with pytest.warns(UserWarning, match="1 of 3 track points had no elevation"):
+        course = build_course(latitude, longitude, [10.0, np.nan, 40.0],
+                              smoothing=ElevationSmoothing(method="none"))
     assert course.raw_elevation[10] == pytest.approx(20.0)  # 100 m of 300 m → 10 + 30/3
+
+
+def test_a_track_with_every_elevation_gives_no_warning():
+    latitude, longitude = meridian_track([0.0, 100.0, 300.0])
+    with warnings.catch_warnings():
+        warnings.simplefilter("error")
+        build_course(latitude, longitude, [10.0, 20.0, 40.0])
 
 
 # ------------------------------------------------------------------- a known profile
@@ -173,6 +184,55 @@ def test_a_smooth_profile_passes_cleaning_unchanged():
     distance = np.arange(0.0, 10_000.0 + 1, 10.0)
     cleaned = clean_elevation(distance, hill(distance))
     assert np.max(np.abs(cleaned - hill(distance))) < 0.1  # 40 m hill, 0.25 % tolerance
+
+
+@pytest.mark.parametrize(("start", "finish"), [(200.0, 800.0), (1000.0, 200.0)])
+def test_a_straight_climb_or_descent_keeps_its_end_heights_and_ascent(start, finish):
+    # Issue 2: "a known smooth profile passes through unchanged". 10 km at a constant +6 % or
+    # -8 %, track points every 20 m: a symmetric smoothing kernel maps a straight line to itself
+    # (common practice), and odd reflection at the ends continues the line beyond them.
+    distance = np.arange(0.0, 10_000.0 + 1, 20.0)
+    elevation = start + (finish - start) * distance / 10_000.0
+    course = build_course(*meridian_track(distance), elevation)
+    assert course.elevation[0] == pytest.approx(start, abs=0.1)
+    assert course.elevation[-1] == pytest.approx(finish, abs=0.1)
+    assert course.ascent == pytest.approx(max(finish - start, 0.0), abs=0.1)
+    assert course.descent == pytest.approx(max(start - finish, 0.0), abs=0.1)
+    assert np.max(np.abs(course.elevation - course.raw_elevation)) < 0.1
+    np.testing.assert_allclose(course.grade, (finish - start) / 10_000.0, atol=1e-6)
+
+
+@pytest.mark.parametrize("method", ["gaussian", "moving-average"])
+@pytest.mark.parametrize("window", [50.0, 200.0, 1000.0, 5000.0])
+def test_both_kernels_return_a_linear_profile_unchanged(method, window):
+    # The 5 km window is wider than the 3 km profile: the reflection repeats beyond the ends.
+    distance = np.arange(0.0, 3000.0 + 1, 10.0)
+    elevation = 150.0 + 0.045 * distance
+    cleaned = smooth_elevation(elevation, 10.0, ElevationSmoothing(window=window, method=method))
+    np.testing.assert_allclose(cleaned, elevation, atol=1e-9)
+
+
+@settings(max_examples=80, deadline=None)
+@given(rises=st.lists(st.floats(-5.0, 5.0), min_size=2, max_size=120),
+       window=st.sampled_from([20.0, 100.0, 200.0, 800.0]),
+       method=st.sampled_from(["gaussian", "moving-average"]))
+def test_smoothing_keeps_the_end_heights_and_never_adds_ascent(rises, window, method):
+    elevation = 500.0 + np.concatenate([[0.0], np.cumsum(rises)])
+    smoothed = smooth_elevation(elevation, 10.0, ElevationSmoothing(window=window, method=method))
+    assert smoothed[0] == pytest.approx(elevation[0], abs=1e-9)
+    assert smoothed[-1] == pytest.approx(elevation[-1], abs=1e-9)
+    assert total_ascent(smoothed) <= total_ascent(elevation) + 1e-9
+
+
+def test_padding_falls_back_to_end_values_when_reflection_would_add_ascent(monkeypatch):
+    # A lopsided kernel (each point takes the next point's height; scipy's convolution flips
+    # the kernel) is not symmetric: with odd reflection it would turn the profile 0, 0, 1 into
+    # 0, 1, 2 (ascent 2 > 1). Padding with the end values gives 0, 1, 1 (ascent 1).
+    monkeypatch.setitem(SMOOTHING_METHODS, "lopsided",
+                        lambda window, step: np.array([1.0, 0.0, 0.0]))
+    smoothed = smooth_elevation(np.array([0.0, 0.0, 1.0]), 10.0,
+                                ElevationSmoothing(window=30.0, method="lopsided"))
+    np.testing.assert_allclose(smoothed, [0.0, 1.0, 1.0])
 
 
 def noisy_hill_track(seed, noise):

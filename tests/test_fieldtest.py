@@ -26,6 +26,7 @@ from pacing.errors import InputError
 from pacing.fieldtest import (
     EARTH_RADIUS,
     METHODS,
+    TYPICAL_ROLLING_COEFFICIENT,
     PositionTest,
     estimate_drag,
     make_ride,
@@ -284,6 +285,92 @@ class TestUncertaintyAndWarnings:
         result = fit(noisy_ride(data, seed=3))
         assert result.drag_area_ci95 is None
         assert any("fewer than 3 laps" in w for w in result.warnings)
+
+
+class TestLapsWithoutSpeedVariety:
+    """Laps all at one power on a loop cannot tell CdA from Crr: air drag and rolling
+    resistance then both scale with the distance ridden (the common-practice reason field tests
+    ask for laps at different speeds; REFERENCES.md, "CdA from field tests"). Crr is then held
+    at a typical value and CdA alone is fitted, never a negative Crr or a CdA interval
+    reaching below 0 (review finding #12)."""
+
+    @pytest.mark.parametrize("method", ["loop", "regression"])
+    def test_crr_is_held_at_the_typical_value_and_cda_alone_fitted(self, method):
+        ride = noisy_ride(simulate_loop_ride(lap_powers=(250.0,) * 6), seed=2)
+        result = fit(ride, method=method)
+        assert result.rolling_held and not result.rolling_fixed
+        # Martin et al. (1998) Crr, from memory (REFERENCES.md marks it [mem])
+        assert result.rolling_coefficient == TYPICAL_ROLLING_COEFFICIENT == 0.0032
+        assert result.rolling_coefficient_ci95 is None
+        low, high = result.drag_area_ci95
+        assert 0 < low < result.drag_area < high
+        (warning,) = [w for w in result.warnings if "speed variety" in w]
+        assert "held at 0.0032" in warning and "only CdA is fitted" in warning
+
+    def test_holding_the_true_crr_recovers_the_true_cda(self):
+        ride = noisy_ride(simulate_loop_ride(lap_powers=(250.0,) * 6), seed=2)
+        result = fit(ride, fallback_rolling_coefficient=TRUE_ROLLING)
+        assert result.rolling_held
+        assert result.drag_area == pytest.approx(TRUE_AREA, rel=0.02)
+
+    def test_cda_moves_with_the_held_crr_as_the_energy_balance_says(self):
+        # Loop closure over whole laps: Σ(CdA·½ρ·v²·Δs) + Crr·m·g·Σ Δs = the energy left for
+        # air and tyres, so with Crr held, d CdA / d Crr = −m·g·Σ Δs / (½ρ·Σ v²·Δs)
+        # = −m·g / (½ρ·⟨v³⟩/⟨v⟩) (time means), from the power balance of Martin et al. (1998).
+        data = simulate_loop_ride(lap_powers=(250.0,) * 6)
+        ride = noisy_ride(data, seed=2)
+        speed = ride.speed
+        expected = -MASS * 9.80665 / (0.5 * 1.2 * np.mean(speed**3) / np.mean(speed))
+        low = fit(ride, fallback_rolling_coefficient=0.003, bootstrap=0)
+        high = fit(ride, fallback_rolling_coefficient=0.006, bootstrap=0)
+        assert low.drag_area_per_rolling[0] == pytest.approx(expected, rel=0.01)
+        assert (high.drag_area - low.drag_area) / 0.003 == pytest.approx(
+            low.drag_area_per_rolling[0], rel=1e-6)
+        # the warning states CdA over the usual Crr of road tyres, 0.0025-0.006 (from memory)
+        warning = next(w for w in low.warnings if "speed variety" in w)
+        assert f"{high.drag_area:.3f}-" in warning
+
+    def test_without_a_bootstrap_the_correlation_decides(self):
+        ride = noisy_ride(simulate_loop_ride(lap_powers=(250.0,) * 6), seed=2)
+        result = fit(ride, bootstrap=0)
+        assert result.rolling_held and result.estimate_correlation > 0.99
+
+    def test_speed_variety_within_hilly_laps_separates_them_in_the_profile_fit(self):
+        # constant power on a ±8 m loop still varies the speed within each lap; the profile
+        # fit uses that, so Crr is fitted, not held
+        result = fit(noisy_ride(simulate_loop_ride(lap_powers=(250.0,) * 6), seed=2),
+                     method="profile")
+        assert not result.rolling_held
+        assert result.drag_area == pytest.approx(TRUE_AREA, rel=0.02)
+        assert result.rolling_coefficient == pytest.approx(TRUE_ROLLING, rel=0.10)
+
+    def test_varied_laps_fit_crr(self):
+        result = fit(noisy_ride(simulate_loop_ride(), seed=1))
+        assert not result.rolling_held
+
+    def test_without_a_fallback_the_joint_fit_is_flagged(self):
+        ride = noisy_ride(simulate_loop_ride(lap_powers=(250.0,) * 6), seed=1)
+        result = fit(ride, fallback_rolling_coefficient=None)
+        assert not result.rolling_held
+        assert any("speed variety" in w for w in result.warnings)
+        assert result.drag_area_ci95[0] < 0
+        assert any("interval of CdA" in w and "below 0" in w for w in result.warnings)
+
+    def test_a_negative_crr_is_flagged(self):
+        # a power meter reading 40 W low (an offset not zeroed) leaves too little energy for
+        # the tyres on varied laps: the fitted Crr goes below 0, which no tyre has
+        data = simulate_loop_ride()
+        ride = make_ride(data["time"], data["speed"], data["power"] - 40.0,
+                         latitude=data["latitude"], longitude=data["longitude"])
+        result = fit(ride)
+        assert result.rolling_coefficient < 0 and not result.rolling_held
+        assert any("below 0, which no tyre has" in w for w in result.warnings)
+
+    def test_fallback_must_be_a_crr(self):
+        ride = noisy_ride(simulate_loop_ride(), seed=1)
+        for bad in (-0.001, 0.5, float("nan")):
+            with pytest.raises(InputError, match="fallback Crr must be 0-0.1"):
+                fit(ride, fallback_rolling_coefficient=bad)
 
 
 class TestPositions:

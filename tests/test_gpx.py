@@ -76,19 +76,34 @@ def test_a_route_is_read_when_there_is_no_track():
 
 
 def test_missing_elevation_is_refused_unless_a_flat_course_is_allowed():
-    with pytest.raises(InputError, match="no elevation"):
+    with pytest.raises(InputError, match="no elevation.*use --flat \\(command line\\) or "
+                       "'A file without heights is a flat course' \\(app\\)"):
         load_course(DATA / "route_gpx11.gpx")
     with pytest.warns(UserWarning, match="flat"):
         course = load_course(DATA / "route_gpx11.gpx", allow_missing_elevation=True)
     assert course.ascent == 0.0 and np.all(course.grade == 0.0)
 
 
-def test_points_missing_some_elevations_are_filled_in():
-    text = gpx_text(NORTHWARD).replace("<ele>102.0</ele>", "")
+@pytest.mark.parametrize("missing", ["", "<ele>nan</ele>", "<ele></ele>"])
+def test_points_missing_some_elevations_are_filled_in_with_a_warning(missing):
+    text = gpx_text(NORTHWARD).replace("<ele>102.0</ele>", missing)
     track = read_track(text.encode())
     assert np.isnan(track.elevation[2])
-    course = load_course(text.encode())
+    with pytest.warns(UserWarning, match="1 of 6 track points had no elevation") as caught:
+        course = load_course(text.encode())
+    assert "\n" not in str(caught[0].message)
     assert np.all(np.isfinite(course.elevation))
+
+
+def test_a_course_shorter_than_the_minimum_length_is_refused():
+    assert gpx_module.MINIMUM_COURSE_LENGTH == 100.0
+    tiny = gpx_text([(45.0, 7.0, 10.0), (45.000007, 7.0, 10.0)])  # 0.78 m apart
+    with pytest.raises(InputError, match=r"only 0\.8 m long; a course must be at least 100 m"):
+        load_course(tiny.encode())
+    # 150 m of road (geographiclib: 0.00135 deg of latitude at 45 deg is 150.0 m) is a course.
+    assert GEODESIC.Inverse(45.0, 7.0, 45.00135, 7.0)["s12"] == pytest.approx(150.0, abs=0.1)
+    course = load_course(gpx_text([(45.0, 7.0, 10.0), (45.00135, 7.0, 11.0)]).encode())
+    assert course.total_distance == pytest.approx(150.0, abs=0.1)
 
 
 def test_latin_1_file_with_its_declaration_is_read():
@@ -141,6 +156,16 @@ EXTERNAL_ENTITY = ('<?xml version="1.0"?><!DOCTYPE gpx [<!ENTITY secret SYSTEM '
     (gpx_text([(45.0, 7.0, 1.0), (95.0, 7.0, 1.0)]).encode(), "latitude out of range"),
     (gpx_text([(45.0, 7.0, 1.0), (45.0, 187.0, 1.0)]).encode(), "longitude out of range"),
     (gpx_text([(45.0, 7.0, 1.0), (45.0, "east", 1.0)]).encode(), "not a valid GPX"),
+    (gpx_text([(45.0, 7.0, 1.0), ("abc", 7.0, 1.0)]).encode(),
+     "track point 2 has latitude 'abc', not a number"),
+    (gpx_text([(45.0, 7.0, 1.0), (45.1, 7.0, 2.0), (45.2, "7,5", 1.0)]).encode(),
+     "track point 3 has longitude '7,5', not a number"),
+    (gpx_text([(45.0, 7.0, 1.0), (45.1, 7.0, "high")]).encode(),
+     "track point 2 has elevation 'high', not a number"),
+    (gpx_text(NORTHWARD, extra="").replace(
+        "<trk>", '<wpt lat="45" lon="x"/><trk>').encode(), "waypoint 1 has longitude 'x'"),
+    (gpx_text(NORTHWARD).replace(' lat="45.002"', "").encode(),
+     "track point 3 has no latitude"),
     (gpx_text([(45.0, 7.0, 1.0), (45.0005, 7.0, 900.0)]).encode(), "absurd elevation jump"),
     (gpx_text([(45.0, 7.0, 1.0), (45.1, 7.0, 99999.0)]).encode(), "plausible range"),
     (b"\xff\xfe\x00garbage", "does not parse"),

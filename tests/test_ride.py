@@ -139,6 +139,28 @@ class TestCleaning:
         with pytest.raises(InputError, match="power must be finite and not negative"):
             make_ride(time, speed, power)
 
+    def test_bad_power_names_the_first_sample_and_its_time(self):
+        # the message points at the row to fix: sample numbers count from 1 like the data rows
+        # of a CSV file; later bad samples are counted, not listed
+        time, speed, power = self.base()
+        power[[7, 20, 30]] = -25.0
+        with pytest.raises(InputError) as caught:
+            make_ride(time + 100.0, speed, power)
+        message = str(caught.value)
+        assert "power is negative (-25 W) at sample 8 (t = 107 s)" in message
+        assert "2 more samples" in message
+        assert "\n" not in message
+
+    def test_non_finite_speed_names_its_sample(self):
+        time, speed, power = self.base()
+        speed[12] = np.inf
+        with pytest.raises(InputError, match=r"speed is not finite \(inf\) at sample 13 "
+                                             r"\(t = 12 s\)"):
+            make_ride(time, speed, power)
+        speed[12] = -1.0
+        with pytest.raises(InputError, match=r"speed is negative \(-1 m/s\) at sample 13"):
+            make_ride(time, speed, power)
+
     def test_length_mismatch_and_too_short(self):
         time, speed, power = self.base()
         with pytest.raises(InputError, match="speed has 59 values"):

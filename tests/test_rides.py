@@ -97,6 +97,13 @@ class TestCsv:
         with pytest.raises(InputError, match="'power_w' has a non-number 'abc' in data row 6"):
             read_ride_csv(csv_text(base))
 
+    def test_negative_power_names_its_data_row_and_time(self):
+        base = canonical()
+        base["power_w"][5] = -40.0
+        with pytest.raises(InputError, match=r"power is negative \(-40 W\) at sample 6 "
+                                             r"\(t = 5 s\)"):
+            read_ride_csv(csv_text(base))
+
     def test_blank_power_cells(self):
         base = canonical()
         base["power_w"][10] = None

@@ -277,3 +277,11 @@ def test_air_term_is_the_cycling_drag_law():
     for head, cross in [(0.0, 0.0), (3.0, 2.0), (-8.0, 1.0)]:
         assert air_resistance_power(speed, 1.15, 0.44, head, cross) == pytest.approx(
             aerodynamic_force(speed, 1.15, rider, head, cross) * speed, rel=1e-12)
+
+
+def test_flat_pace_out_of_range_is_reported_as_a_pace():
+    # 0:30 per km is 33.3 m/s: the message shows the pace the user typed, then the speed
+    with pytest.raises(InputError, match=r"got 0:30 per km, 33\.3 m/s"):
+        flat_effort(1000.0 / 30.0, 1.2, average_runner())
+    with pytest.raises(InputError, match="got nan m/s"):
+        flat_effort(float("nan"), 1.2, average_runner())

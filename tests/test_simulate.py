@@ -221,6 +221,39 @@ def test_walking_is_flagged_when_the_bike_stalls():
     assert np.all(prediction.speed > 0)
 
 
+@pytest.mark.parametrize("power", [0.0, 1e-6, 0.5, 2.0])
+def test_no_or_tiny_power_from_a_standing_start_walks_the_bike(power):
+    """Review finding 1: zero power from rest on flat ground gave a speed of 8e-30 m/s, a
+    finish of 2.4e30 s and NaN power. A power that cannot hold the walking speed on the bike
+    walks it at the walking speed from the start: finite, flagged, energy still closes."""
+    x = np.arange(0.0, 2001.0, 10.0)
+    course = synthetic_course(x, 0.0 * x)
+    options = SimulationOptions()
+    prediction = simulate(course, power, Rider(), still(course), options)
+    assert prediction.walking.all()
+    assert np.all(prediction.speed[1:] == pytest.approx(options.minimum_speed))
+    # 2000 m at 1 m/s plus the first piece, from rest to walking speed at a mean of 0.5 m/s
+    assert prediction.finish_time == pytest.approx(2000.0 + 10.0, rel=1e-9)
+    for field in ("time", "speed", "power", "air_speed", "yaw", "aero"):
+        assert np.all(np.isfinite(getattr(prediction, field))), field
+    assert np.isfinite(prediction.average_power) and prediction.average_power > 0
+    assert prediction.energy_balance_residual < 1e-9
+    results = segment_results(course, prediction, [0, 100, x.size - 1])
+    assert all(math.isfinite(r.power) and r.time > 0 for r in results)
+
+
+def test_zero_power_on_a_descent_rolls_from_rest_without_walking():
+    """From rest on a -8 % descent gravity alone accelerates the bike (terminal speed about
+    19 m/s for 80 kg, REFERENCES.md Martin check values): no walking, and the start is not
+    mistaken for a stall."""
+    x = np.arange(0.0, 3001.0, 10.0)
+    course = synthetic_course(x, -0.08 * x)
+    prediction = simulate(course, 0.0, Rider(), still(course))
+    assert not prediction.walking.any()
+    assert prediction.speed[-1] > 15.0
+    assert prediction.energy_balance_residual < 1e-9
+
+
 def test_steady_prediction_is_length_over_speed_for_power():
     course = hilly_course()
     air = windy_air(course)
@@ -350,6 +383,19 @@ def test_more_power_is_never_slower_along_the_course(power, extra, headwind):
     slow = simulate(SMALL, power, Rider(), air).finish_time
     fast = simulate(SMALL, power + extra, Rider(), air).finish_time
     assert fast <= slow * (1 + 1e-9)
+
+
+@settings(max_examples=25, deadline=None)
+@given(st.floats(0.0, 60.0), st.floats(0.01, 30.0), st.floats(-3.0, 6.0))
+def test_more_power_is_never_slower_even_at_walking_powers(power, extra, headwind):
+    """Property (issue 3): more power is never slower, also where the power is too small to
+    hold the walking speed on the bike (rolling hills up to ±10 %, from a standing start)."""
+    air = still(SMALL, headwind=headwind)
+    slow = simulate(SMALL, power, Rider(), air)
+    fast = simulate(SMALL, power + extra, Rider(), air)
+    assert math.isfinite(slow.finish_time) and math.isfinite(fast.finish_time)
+    assert fast.finish_time <= slow.finish_time * (1 + 1e-9)
+    assert slow.energy_balance_residual < 1e-8
 
 
 @settings(max_examples=25, deadline=None)

@@ -432,3 +432,58 @@ def test_command_line_unreachable_target_time_is_one_line(capsys, hill_route):
     assert code == 2 and captured.out == ""
     lines = captured.err.strip().splitlines()
     assert len(lines) == 1 and "not reachable" in lines[0]
+
+
+# ------------------------------------------------------------- finer segments are never slower
+
+
+@lru_cache
+def hill_loop():
+    """A demo-like 40 km hilly loop: six Gaussian hills of 35-150 m (centre, height,
+    half-width as in demo_routes/make_demo_routes.py), straight, still air, 10 m steps."""
+    distance = np.arange(0.0, 40000.0 + 5.0, 10.0)
+    hills = [(4_500, 55, 800), (11_000, 120, 1_400), (17_500, 40, 500), (24_000, 150, 1_900),
+             (31_000, 70, 800), (36_500, 35, 450)]
+    elevation = np.full_like(distance, 85.0)
+    for centre, height, width in hills:
+        elevation += height * np.exp(-0.5 * ((distance - centre) / width) ** 2)
+    course = synthetic_course(distance, elevation)
+    return course, still_air(course, 1.2)
+
+
+HILL_LOOP_REQUEST = PlanRequest(strategy="fastest", mean_power=250.0, critical_power=270.0,
+                                w_prime=20000.0)
+
+
+def test_with_w_prime_a_200_m_split_is_not_slower_than_the_split_by_grade():
+    # Any plan on a coarser split is also a plan on a finer one (each fine segment at its
+    # coarse segment's power: same pieces, same powers), so the fastest plan can only get
+    # faster as the segments get finer (mathematical fact). 0.2 % allows for the grade split's
+    # ends not falling on 200 m marks and for the verifying simulation.
+    from pacing.course import split_by_grade, split_every
+
+    course, air = hill_loop()
+    by_grade = make_plan(course, split_by_grade(course), RIDER, air, HILL_LOOP_REQUEST, FLYING)
+    fine = make_plan(course, split_every(course, 200.0), RIDER, air, HILL_LOOP_REQUEST, FLYING)
+    assert "w-prime-reserve" in by_grade.binding  # the limit binds: the case that went wrong
+    assert fine.min_w_prime_balance >= -1e-6
+    assert fine.mean_power == pytest.approx(250.0, abs=0.02)
+    assert fine.finish_time <= by_grade.finish_time * 1.002
+    assert fine.steady_time <= by_grade.steady_time * 1.002
+
+
+def test_steady_fastest_plan_on_a_split_is_not_slower_than_on_a_coarser_split_inside_it():
+    # Same fact in the steady model alone, for splits whose ends nest (every 1 km, 500 m, 100 m).
+    from pacing.course import split_every
+
+    course, air = hill_loop()
+    times = []
+    for length in (1000.0, 500.0, 100.0):
+        model = segment_model(course, split_every(course, length), RIDER, air)
+        power, _ = fastest_steady_plan(model, HILL_LOOP_REQUEST)
+        balance = w_prime_balance(power, steady_segment_times(model, power)[0], 270.0, 20000.0)
+        assert balance.min() >= -1e-6 * 20000.0 * 5  # the solver's slack
+        assert time_weighted_mean(model, power) == pytest.approx(250.0, rel=1e-6)
+        times.append(steady_total(model, power))
+    assert times[1] <= times[0] * 1.0005
+    assert times[2] <= times[1] * 1.0005

@@ -12,7 +12,14 @@ from pacing.cycling import Rider
 from pacing.errors import InputError
 from pacing.simulate import SimulationOptions, simulate
 from pacing.strategy import PlanRequest, make_plan
-from pacing.targets import RECORD_KEYS, SegmentTarget, target_table, targets_as_records
+from pacing.targets import (
+    DEFAULT_BAND,
+    RECORD_KEYS,
+    SegmentTarget,
+    power_band,
+    target_table,
+    targets_as_records,
+)
 
 RIDER = Rider(mass=80.0, drag_area=0.27)
 
@@ -95,3 +102,30 @@ def test_bad_inputs_raise_input_error():
         target_table(course, bounds, plan, segment_power=[200.0, 210.0])
     with pytest.raises(InputError):
         target_table(course, np.array([0, 5, 3, course.distance.size - 1]), plan)
+
+
+def test_power_band_is_three_percent_either_side_by_default():
+    """Issue 4: "power targets per segment come with a band (e.g. ±3 %)"."""
+    assert DEFAULT_BAND == 0.03
+    low, high = power_band(np.array([250.0, 0.0, 400.0]))
+    np.testing.assert_allclose(low, [242.5, 0.0, 388.0])
+    np.testing.assert_allclose(high, [257.5, 0.0, 412.0])
+    low, high = power_band(300.0, 0.05)
+    assert (float(low), float(high)) == pytest.approx((285.0, 315.0))
+
+
+def test_the_target_table_band_is_power_band():
+    course, bounds, air = rolling()
+    plan = fastest_plan()
+    rows = target_table(course, bounds, plan, air=air)
+    low, high = power_band(plan.segment_power, plan.request.band)
+    np.testing.assert_allclose([row.power_low for row in rows], low)
+    np.testing.assert_allclose([row.power_high for row in rows], high)
+
+
+@pytest.mark.parametrize(("power", "band"), [(250.0, 1.0), (250.0, -0.01), (250.0, float("nan")),
+                                             (250.0, "wide"), (-1.0, 0.03),
+                                             (float("nan"), 0.03)])
+def test_power_band_refuses_bad_input(power, band):
+    with pytest.raises(InputError):
+        power_band(power, band)

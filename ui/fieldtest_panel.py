@@ -160,6 +160,9 @@ def rolling_line(result) -> str:
     """Crr in words, with its interval or "held"."""
     if result.rolling_fixed:
         return f"Crr {result.rolling_coefficient:.5f} (held at the value given)"
+    if result.rolling_held:
+        return (f"Crr {result.rolling_coefficient:.5f} (held at a typical value: the laps "
+                "cannot separate CdA from Crr, see the warning)")
     return (f"Crr {result.rolling_coefficient:.5f} (95 % interval "
             f"{_interval(result.rolling_coefficient_ci95, 5)}), shared by all positions")
 
@@ -348,7 +351,9 @@ def render_fieldtest(system: str, location=None, athlete_id: int | None = None):
         column.metric(f"CdA · {position.label}", f"{position.drag_area:.3f} m²",
                       help="95 % interval " + _interval(position.drag_area_ci95, 4, " m²"))
     cols[-1].metric("Crr", f"{result.rolling_coefficient:.4f}",
-                    help="held" if result.rolling_fixed else
+                    help="held at the value given" if result.rolling_fixed else
+                    "held at a typical value (laps lack speed variety)"
+                    if result.rolling_held else
                     "95 % interval " + _interval(result.rolling_coefficient_ci95, 5))
     st.dataframe(position_table(result), hide_index=True, key="ft_positions")
     st.caption(rolling_line(result) + f" · air density {run.air_density:.3f} kg/m³ · "

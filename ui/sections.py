@@ -7,6 +7,7 @@ import functools
 
 import streamlit as st
 
+from pacing.course import ElevationSmoothing
 from pacing.errors import InputError
 from pacing.units import (
     format_duration,
@@ -89,16 +90,21 @@ def split_inputs(system: str, total_distance: float | None = None) -> dict:
 
 
 def smoothing_inputs(system: str) -> dict:
-    """Elevation cleaning controls; returns {"window" [m], "max_grade" [-]}."""
+    """Elevation cleaning controls; returns {"window" [m], "max_grade" [-]}.
+
+    The defaults are the library's (pacing.course.ElevationSmoothing()), the same the command
+    line uses, so the app and `pacing course` show the same cleaned ascent.
+    """
+    defaults = ElevationSmoothing()
     with st.expander("Elevation cleaning (GPS heights are noisy)", expanded=False):
         cols = st.columns(2)
         with cols[0]:
             window = unit_number("Smoothing window", "elevation", system, "smooth_window",
-                                 100.0, 0.0, 1000.0, 10.0,
+                                 defaults.window, 0.0, 1000.0, 10.0,
                                  help="heights are averaged over this stretch of road; 0 = off")
         with cols[1]:
             grade = unit_number("Steepest grade kept [%]", None, system, "max_grade_pct",
-                                25.0, 1.0, 100.0, 1.0,
+                                defaults.max_grade * 100.0, 1.0, 100.0, 1.0,
                                 help="steeper stretches after smoothing are flattened to this")
     return {"window": window, "max_grade": grade / 100.0}
 

@@ -24,7 +24,7 @@ def add_parser(subparsers: argparse._SubParsersAction) -> None:
     parser.add_argument("--step", type=float, default=None,
                         help="resampling step of the course [m] (default 10)")
     parser.add_argument("--segment-length", type=float, default=None,
-                        help="split into segments of this length [m] instead of by grade")
+                        help="split into segments of this length [m] instead of by terrain (grade, turnarounds, at most 2 km)")
     parser.add_argument("--flat", action="store_true",
                         help="treat a course without elevation as flat (with a warning)")
     parser.add_argument("--json", action="store_true", help="print JSON instead of a table")
@@ -79,7 +79,7 @@ def format_summary(summary: dict, by_grade: bool) -> str:
         lines.append(f"  elevation       {smoothing['method']} smoothing over "
                      f"{smoothing['window_m']:g} m, grade limit {smoothing['max_grade']:.0%}")
     lines.append("")
-    lines.append(f"Segments ({'by grade' if by_grade else 'fixed length'}):")
+    lines.append(f"Segments ({'by terrain and turns' if by_grade else 'fixed length'}):")
     lines.append("    #  from km    to km  length km  grade %  steepest %  ascent m  "
                  "descent m  heading deg  kind")
     for s in summary["segments"]:

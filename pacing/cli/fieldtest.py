@@ -2,12 +2,15 @@
 
     pacing fieldtest RIDE [RIDE ...] --mass KG [--position LABEL ...]
         [--temperature C --humidity PCT --sea-level-pressure PA --wind-speed M/S --wind-from DEG]
-        [--method loop|profile|regression] [--crr FIXED] [--laps T0,T1,...] [--json]
+        [--method loop|profile|regression] [--crr FIXED] [--fallback-crr TYPICAL]
+        [--laps T0,T1,...] [--json]
 
 Several ride files are several riding positions (one CdA each, one shared Crr); the output
 then says whether each position differs from the first beyond the 95 % interval. Lap
 boundaries come from the positions in the file (passes near the start point) unless --laps
 gives them as times [s]. Units are SI except --humidity [%] and --temperature [°C].
+When the laps cannot separate CdA from Crr (all at about one speed), Crr is held at
+--fallback-crr and only CdA is fitted; the output says so ("crr_held" in JSON).
 """
 
 from __future__ import annotations
@@ -21,33 +24,58 @@ import numpy as np
 from pacing.cli.common import add_air_flags, require
 from pacing.errors import InputError
 
+EPILOG = """\
+Ride laps of one loop at clearly different speeds (e.g. 25, 32 and 40 km/h): only speed
+variety separates CdA (air drag grows with speed squared) from Crr. Calm air (under 1 m/s),
+no braking, one position per file.
+
+JSON keys: method; cda_m2 and cda_ci95 (first position, m²); crr and crr_ci95; crr_source
+("fitted", "given" with --crr, or "typical" when held at --fallback-crr); crr_fixed (given)
+and crr_held (held because the laps lack speed variety); laps; estimate_correlation (of the
+CdA and Crr estimates, near 1 = inseparable); cda_change_per_0_001_crr_m2; air_density_kg_m3;
+positions (label, cda_m2, cda_ci95, laps, lap_cda_m2); differences (position - baseline,
+ci95, significant); warnings; notes. Intervals are 95 % bootstrap intervals over laps, null
+with fewer than 3 laps.
+
+example: python -m pacing fieldtest hoods.csv aero.csv --mass 82 --position hoods
+         --position aero --temperature 14 --humidity 70
+"""
+
 
 def add_parser(subparsers: argparse._SubParsersAction) -> None:
     parser = subparsers.add_parser(
         "fieldtest",
         help="measure CdA and Crr from test rides with a power meter",
-        description="Estimate drag area (CdA) and rolling resistance (Crr) from test rides "
-                    "(CSV or GPX with power and speed).",
+        description="Estimate drag area (CdA) and rolling resistance (Crr) from test rides\n"
+                    "(CSV or GPX with time, speed and power). Several files are several\n"
+                    "riding positions: one CdA each, one shared Crr.",
+        epilog=EPILOG,
+        formatter_class=argparse.RawDescriptionHelpFormatter,
     )
     parser.add_argument("rides", nargs="+", metavar="RIDE",
                         help="test ride file(s), CSV or GPX; one per riding position")
-    parser.add_argument("--mass", type=float, required=True,
+    parser.add_argument("--mass", type=float, required=True, metavar="KG",
                         help="rider + bike + kit [kg]")
     parser.add_argument("--position", action="append", default=None, metavar="LABEL",
                         help="label of each ride's position, in order (default: file names)")
     parser.add_argument("--method", choices=("loop", "profile", "regression"), default="loop",
                         help="loop: laps return to the same height (default); profile: fit "
                              "the recorded elevation; regression: lap means (Lim et al. 2011)")
-    parser.add_argument("--crr", type=float, default=None,
-                        help="hold Crr at this value instead of fitting it")
+    parser.add_argument("--crr", type=float, default=None, metavar="CRR",
+                        help="hold Crr at this value (your tyres on this road, 0-0.1) instead "
+                             "of fitting it")
+    parser.add_argument("--fallback-crr", type=float, default=None, metavar="CRR",
+                        help="Crr to hold when the laps cannot separate CdA from Crr (default "
+                             "0.0032, Martin et al. 1998)")
     parser.add_argument("--laps", action="append", default=None, metavar="T0,T1,...",
-                        help="lap boundaries as times [s] from the ride start, one flag per "
-                             "ride (default: detected from the positions)")
-    parser.add_argument("--lap-radius", type=float, default=20.0,
+                        help="lap boundaries as times [s] from the ride start (start of the "
+                             "first lap, then the end of each lap), one flag per ride "
+                             "(default: detected from the positions)")
+    parser.add_argument("--lap-radius", type=float, default=20.0, metavar="M",
                         help="a lap closes within this distance of the start [m] (default 20)")
-    parser.add_argument("--efficiency", type=float, default=0.976,
-                        help="drivetrain efficiency (default 0.976)")
-    parser.add_argument("--bootstrap", type=int, default=1000,
+    parser.add_argument("--efficiency", type=float, default=0.976, metavar="FRACTION",
+                        help="drivetrain efficiency, 0.5-1 (default 0.976, Martin et al. 1998)")
+    parser.add_argument("--bootstrap", type=int, default=1000, metavar="DRAWS",
                         help="bootstrap draws for the intervals (default 1000, 0 for none)")
     parser.add_argument("--json", action="store_true", help="print JSON instead of a table")
     add_air_flags(parser)
@@ -62,6 +90,7 @@ def run(args: argparse.Namespace) -> int:
     from pacing.conditions import Conditions
     from pacing.cycling import Rider
     from pacing.fieldtest import (
+        TYPICAL_ROLLING_COEFFICIENT,
         PositionTest,
         estimate_drag,
         indices_at_times,
@@ -75,6 +104,9 @@ def run(args: argparse.Namespace) -> int:
     require(0.5 <= args.efficiency <= 1.0, f"--efficiency must be 0.5-1, got {args.efficiency:g}")
     require(0.0 <= args.humidity <= 100.0, f"--humidity must be 0-100 %, got {args.humidity:g}")
     require(args.bootstrap >= 0, "--bootstrap must not be negative")
+    for flag, value in (("--crr", args.crr), ("--fallback-crr", args.fallback_crr)):
+        require(value is None or (np.isfinite(value) and 0.0 <= value <= 0.1),
+                f"{flag} must be 0-0.1 (road tyres are about 0.002-0.01), got {value}")
     labels = args.position or []
     require(len(labels) in (0, len(args.rides)),
             f"give one --position per ride ({len(args.rides)}), or none")
@@ -107,8 +139,10 @@ def run(args: argparse.Namespace) -> int:
         tests.append(PositionTest(label, ride, density, laps, headwind, crosswind))
         notes.extend(f"{label}: {note}" for note in ride.notes)
 
+    fallback = TYPICAL_ROLLING_COEFFICIENT if args.fallback_crr is None else args.fallback_crr
     result = estimate_drag(tests, rider, method=args.method, rolling_coefficient=args.crr,
-                           lap_radius=args.lap_radius, bootstrap=args.bootstrap)
+                           lap_radius=args.lap_radius, bootstrap=args.bootstrap,
+                           fallback_rolling_coefficient=fallback)
     if args.json:
         print(json.dumps(_as_json(result, tests, notes), indent=2))
     else:
@@ -123,9 +157,12 @@ def _as_json(result, tests, notes) -> dict:
         "crr": round(result.rolling_coefficient, 6),
         "cda_ci95": _pair(result.drag_area_ci95),
         "crr_ci95": _pair(result.rolling_coefficient_ci95),
+        "crr_source": _crr_source(result),
         "crr_fixed": result.rolling_fixed,
+        "crr_held": result.rolling_held,
         "laps": result.laps,
         "estimate_correlation": round(result.estimate_correlation, 4),
+        "cda_change_per_0_001_crr_m2": round(0.001 * result.drag_area_per_rolling[0], 5),
         "air_density_kg_m3": round(float(np.mean(tests[0].air_density)), 4),
         "positions": [
             {"label": p.label, "cda_m2": round(p.drag_area, 5),
@@ -143,6 +180,12 @@ def _as_json(result, tests, notes) -> dict:
     }
 
 
+def _crr_source(result) -> str:
+    if result.rolling_fixed:
+        return "given"
+    return "typical" if result.rolling_held else "fitted"
+
+
 def _laps(count: int) -> str:
     return f"{count} lap" if count == 1 else f"{count} laps"
 
@@ -150,18 +193,30 @@ def _laps(count: int) -> str:
 def _interval(values, digits: int) -> str:
     if values is None:
         return "(no interval)"
-    return f"(95 % interval {values[0]:.{digits}f}-{values[1]:.{digits}f})"
+    return f"(95 % interval {values[0]:.{digits}f} to {values[1]:.{digits}f})"
 
 
 def _as_text(result, tests, notes) -> str:
     lines = [f"method: {result.method}, {_laps(result.laps)}, air density "
              f"{float(np.mean(tests[0].air_density)):.3f} kg/m³"]
     for p in result.positions:
+        flag = ""
+        if p.drag_area <= 0:
+            flag = " (not physical: not above 0; see the warnings)"
+        elif p.drag_area_ci95 is not None and p.drag_area_ci95[0] <= 0:
+            flag = " (undetermined: the interval reaches below 0; see the warnings)"
         lines.append(f"{p.label}: CdA {p.drag_area:.4f} m² {_interval(p.drag_area_ci95, 4)}, "
-                     f"{_laps(p.laps)}")
+                     f"{_laps(p.laps)}{flag}")
     crr = f"Crr {result.rolling_coefficient:.5f} "
-    crr += "(held fixed)" if result.rolling_fixed else _interval(
-        result.rolling_coefficient_ci95, 5)
+    if result.rolling_fixed:
+        crr += "(held fixed)"
+    elif result.rolling_held:
+        crr += ("(held at a typical value: the laps cannot separate CdA from Crr, see the "
+                "warning)")
+    else:
+        crr += _interval(result.rolling_coefficient_ci95, 5)
+        if result.rolling_coefficient < 0:
+            crr += " (not physical: below 0; see the warnings)"
     lines.append(crr)
     for d in result.differences:
         verdict = "significant" if d.significant else "not significant"

@@ -53,6 +53,12 @@ def add_plan_flags(parser: argparse.ArgumentParser) -> None:
                           "mean power when --cp is not given)")
     cyc.add_argument("--start-speed", type=float, default=0.0,
                      help="speed at the start line [m/s] (default 0, standing start)")
+    cyc.add_argument("--max-descent-speed", type=float, default=None,
+                     help="speed the rider never exceeds, braking on descents [m/s] "
+                          "(default: no limit)")
+    cyc.add_argument("--coasting-speed", type=float, default=None,
+                     help="above this speed the rider stops pedalling [m/s] "
+                          "(default: always pedal)")
     run = parser.add_argument_group("running plan")
     run.add_argument("--flat-pace", default=None,
                      help="pace held on flat ground in still air, M:SS per km")
@@ -60,6 +66,9 @@ def add_plan_flags(parser: argparse.ArgumentParser) -> None:
     run.add_argument("--height", type=float, default=None, help="runner's height [m]")
     run.add_argument("--critical-speed", type=float, default=None, help="critical speed [m/s]")
     run.add_argument("--d-prime", type=float, default=None, help="D′ [m]")
+    run.add_argument("--downhill-cap", default=None,
+                     help="highest speed on descents as a multiple of the flat speed "
+                          "(default 1.2; 'none' for no cap)")
 
 
 def run(args: argparse.Namespace) -> int:

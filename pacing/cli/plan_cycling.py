@@ -5,7 +5,12 @@ validate the flags → load the course and its segments → rider and air → pe
 (`_plan_powers`) → inertial simulation (pacing.simulate) → segment summaries → table or JSON.
 
 Units on the command line are SI except --humidity [%] and --drafting [%]; the table shows km,
-km/h, % and H:MM:SS, the JSON SI numbers with the unit in each key.
+km/h, % and H:MM:SS, the JSON SI numbers with the unit in each key. Every segment row carries
+the band around its target power (±3 % unless the request says otherwise; JSON power_low_w and
+power_high_w). --max-descent-speed and --coasting-speed [m/s] go to SimulationOptions. Where
+the power cannot hold walking pace the rider walks the bike (pacing.simulate): the output says
+how far (JSON walking_distance_m). A target-time plan above HUMAN_POWER_CEILING is refused, and
+without CP and W′ one warning line says its power is not checked against the athlete.
 """
 
 from __future__ import annotations
@@ -14,20 +19,27 @@ import argparse
 import json
 import math
 import sys
+import warnings
 
 import numpy as np
 
 from pacing import units
 from pacing.cli.common import CAUTION
-from pacing.cycling import Rider
+from pacing.cycling import WALKING_SPEED, Rider
 from pacing.errors import InputError
 from pacing.simulate import Prediction, SegmentResult, SimulationOptions, segment_results
+from pacing.targets import DEFAULT_BAND, power_band
 
 MASS_RANGE = (20.0, 300.0)
 """Accepted rider + bike mass [kg]."""
 
 POWER_RANGE = (0.0, 3000.0)
-"""Accepted crank power [W]."""
+"""Accepted crank power [W]: above the first, at most the second."""
+
+HUMAN_POWER_CEILING = 2000.0
+"""No rider holds more crank power than this over a race [W]. World-class track sprinters'
+fatigue-free peak power, held for a few seconds, is 1600 ± 116 W (Dorel et al. 2005, Int J
+Sports Med 26(9):739-746, doi:10.1055/s-2004-830493); 2000 W is above all of them."""
 
 
 def _number(value: float | None, flag: str) -> float | None:
@@ -47,7 +59,8 @@ def validate_args(args: argparse.Namespace) -> None:
     """One-line InputError for any flag out of range (before any file is read)."""
     for flag in ("mass", "cda", "crr", "efficiency", "drafting", "power", "start_speed",
                  "temperature", "humidity", "sea_level_pressure", "wind_speed", "wind_from",
-                 "wind_height", "roughness", "step", "segment_length"):
+                 "wind_height", "roughness", "step", "segment_length", "max_descent_speed",
+                 "coasting_speed"):
         _number(getattr(args, flag, None), "--" + flag.replace("_", "-"))
     low, high = MASS_RANGE
     _check(low <= args.mass <= high,
@@ -64,10 +77,14 @@ def validate_args(args: argparse.Namespace) -> None:
     _check(args.wind_speed >= 0.0, f"--wind-speed must be >= 0 m/s, got {args.wind_speed:g}")
     _check(args.wind_height > 0.0, f"--wind-height must be > 0 m, got {args.wind_height:g}")
     _check(args.roughness > 0.0, f"--roughness must be > 0 m, got {args.roughness:g}")
+    for flag in ("max_descent_speed", "coasting_speed"):
+        value = getattr(args, flag, None)
+        if value is not None:
+            _check(value > 0.0, f"--{flag.replace('_', '-')} must be above 0 m/s, got {value:g}")
     if args.power is not None:
         low, high = POWER_RANGE
-        _check(low <= args.power <= high, f"--power must be {low:g}-{high:g} W, "
-                                          f"got {args.power:g}")
+        _check(low < args.power <= high, f"--power must be above {low:g} and at most "
+                                         f"{high:g} W, got {args.power:g}")
 
 
 def rider_from_args(args: argparse.Namespace) -> Rider:
@@ -137,14 +154,38 @@ def predict(args: argparse.Namespace) -> tuple[Prediction, list[SegmentResult]]:
     return prediction, segment_results(course, prediction, bounds)
 
 
+def simulation_options_from_args(args: argparse.Namespace) -> SimulationOptions:
+    """The SimulationOptions of --start-speed, --max-descent-speed and --coasting-speed
+    (the last two optional on the namespace, for commands without them)."""
+    return SimulationOptions(start_speed=args.start_speed,
+                             max_descent_speed=getattr(args, "max_descent_speed", None),
+                             coasting_speed=getattr(args, "coasting_speed", None))
+
+
 def _simulate(course, powers, rider: Rider, air, args: argparse.Namespace) -> Prediction:
     from pacing.simulate import simulate
 
-    return simulate(course, powers, rider, air, SimulationOptions(start_speed=args.start_speed))
+    return simulate(course, powers, rider, air, simulation_options_from_args(args))
 
 
-def prediction_as_dict(prediction: Prediction, segments: list[SegmentResult]) -> dict:
-    """JSON-ready numbers, SI units named in each key."""
+def walking_distance(prediction: Prediction) -> float:
+    """Course distance of the pieces walked or ridden below walking pace [m]."""
+    pieces = np.diff(np.asarray(prediction.distance, dtype=float))
+    return float(np.sum(pieces[np.asarray(prediction.walking, dtype=bool)]))
+
+
+def prediction_as_dict(prediction: Prediction, segments: list[SegmentResult], *,
+                       target_power=None, band: float = DEFAULT_BAND) -> dict:
+    """JSON-ready numbers, SI units named in each key.
+
+    Per segment, power_low_w and power_high_w are the band (±`band`, a fraction) around the
+    target power: `target_power` per segment [W] (one number or one per segment), by default
+    the power ridden on the segment. walking_distance_m is the distance walked or ridden below
+    walking pace [m].
+    """
+    target = ([s.power for s in segments] if target_power is None
+              else np.broadcast_to(np.asarray(target_power, dtype=float), (len(segments),)))
+    low, high = power_band(target, band)
     return {
         "finish_time_s": prediction.finish_time,
         "distance_m": float(prediction.distance[-1] - prediction.distance[0]),
@@ -152,36 +193,54 @@ def prediction_as_dict(prediction: Prediction, segments: list[SegmentResult]) ->
         "average_power_w": prediction.average_power,
         "max_speed_mps": prediction.max_speed,
         "work_kj": prediction.work / 1000.0,
+        "walking_distance_m": walking_distance(prediction),
         "segments": [
             {
                 "start_m": s.start,
                 "end_m": s.end,
                 "grade": s.grade,
                 "power_w": s.power,
+                "power_low_w": float(low[k]),
+                "power_high_w": float(high[k]),
                 "speed_mps": s.speed,
                 "time_s": s.time,
                 "max_speed_mps": s.max_speed,
             }
-            for s in segments
+            for k, s in enumerate(segments)
         ],
     }
 
 
-def prediction_as_table(prediction: Prediction, segments: list[SegmentResult]) -> str:
-    """A readable table: km, %, W, km/h, H:MM:SS."""
+def _band_text(low: float, high: float) -> str:
+    return f"{low:.0f}-{high:.0f}"
+
+
+BAND_HEADER = f" {'band W':>11}"
+
+
+def prediction_as_table(prediction: Prediction, segments: list[SegmentResult], *,
+                        target_power=None, band: float = DEFAULT_BAND) -> str:
+    """A readable table: km, %, W, km/h, H:MM:SS; with `target_power` (per segment or one
+    number) [W], a last column with its band ±`band` (a fraction)."""
     kmh = 3.6
-    lines = [
-        f"{'#':>3} {'from km':>8} {'to km':>7} {'grade %':>8} {'power W':>8} "
-        f"{'speed km/h':>11} {'time':>9} {'elapsed':>9} {'max km/h':>9}",
-    ]
+    header = (f"{'#':>3} {'from km':>8} {'to km':>7} {'grade %':>8} {'power W':>8} "
+              f"{'speed km/h':>11} {'time':>9} {'elapsed':>9} {'max km/h':>9}")
+    low = high = None
+    if target_power is not None:
+        low, high = power_band(np.broadcast_to(np.asarray(target_power, dtype=float),
+                                               (len(segments),)), band)
+        header += BAND_HEADER
+    lines = [header]
     elapsed = 0.0
-    for s in segments:
+    for k, s in enumerate(segments):
         elapsed += s.time
-        lines.append(
-            f"{s.index + 1:>3} {s.start / 1000:8.2f} {s.end / 1000:7.2f} {100 * s.grade:8.1f} "
-            f"{s.power:8.0f} {s.speed * kmh:11.1f} {units.format_duration(s.time):>9} "
-            f"{units.format_duration(elapsed):>9} {s.max_speed * kmh:9.1f}"
-        )
+        row = (f"{s.index + 1:>3} {s.start / 1000:8.2f} {s.end / 1000:7.2f} "
+               f"{100 * s.grade:8.1f} {s.power:8.0f} {s.speed * kmh:11.1f} "
+               f"{units.format_duration(s.time):>9} {units.format_duration(elapsed):>9} "
+               f"{s.max_speed * kmh:9.1f}")
+        if low is not None:
+            row += f" {_band_text(low[k], high[k]):>11}"
+        lines.append(row)
     distance = float(prediction.distance[-1] - prediction.distance[0])
     lines.append(
         f"finish {units.format_duration(prediction.finish_time)} (H:MM:SS) over "
@@ -189,21 +248,39 @@ def prediction_as_table(prediction: Prediction, segments: list[SegmentResult]) -
         f"mean power {prediction.average_power:.0f} W, max {prediction.max_speed * kmh:.1f} km/h, "
         f"work {prediction.work / 1000:.0f} kJ"
     )
-    if np.any(prediction.walking):
-        lines.append("note: the predicted speed drops below walking pace on part of the course")
+    if target_power is not None:
+        lines.append(f"band: ±{100 * band:g} % around the target power")
+    walked = walking_distance(prediction)
+    if walked > 0:
+        lines.append(_walking_note(walked, distance))
     return "\n".join(lines)
+
+
+def _walking_note(walked: float, distance: float) -> str:
+    """One line on the distance at walking pace [m] out of the course distance [m]."""
+    pace = f"walking pace ({WALKING_SPEED * 3.6:.1f} km/h)"
+    if walked >= 0.999 * distance:
+        return (f"warning: the power cannot keep the bike at {pace} on this course: the rider "
+                "walks it all the way (pushing the bike counts as rider work)")
+    return (f"note: below {pace} on {walked / 1000:.2f} of {distance / 1000:.2f} km; where the "
+            "power cannot hold that pace the rider walks the bike (pushing counts as rider "
+            "work)")
 
 
 def run(args: argparse.Namespace) -> int:
     """Run ``pacing plan`` for cycling; returns the exit code."""
+    from pacing.cli.plan_running import warn_flags_of_other_sport
+
+    warn_flags_of_other_sport(args, "cycling")
     if args.strategy is not None:
         return run_strategy(args)
     prediction, segments = predict(args)
     if args.json:
-        json.dump(prediction_as_dict(prediction, segments), sys.stdout, indent=2)
+        json.dump(prediction_as_dict(prediction, segments, target_power=args.power), sys.stdout,
+                  indent=2)
         sys.stdout.write("\n")
     else:
-        print(prediction_as_table(prediction, segments))
+        print(prediction_as_table(prediction, segments, target_power=args.power))
         print(CAUTION)
     return 0
 
@@ -258,15 +335,31 @@ def plan_with_strategy(args: argparse.Namespace):
     rider = rider_from_args(args)
     course, bounds = load_course_and_bounds(args)
     air = air_along_course(course, conditions_from_args(args))
-    plan = make_plan(course, bounds, rider, air, request,
-                     SimulationOptions(start_speed=args.start_speed))
+    plan = make_plan(course, bounds, rider, air, request, simulation_options_from_args(args))
+    if request.strategy == "target-time":
+        check_target_time_plan(plan, request, args.target_time)
     return plan, segment_results(course, plan.prediction, bounds)
+
+
+def check_target_time_plan(plan, request, clock: str) -> None:
+    """Refuse a target-time plan beyond what any rider holds (HUMAN_POWER_CEILING); warn (one
+    line) when CP and W′ are not given, so the power is not checked against the athlete."""
+    power = float(np.max(plan.segment_power))
+    if power > HUMAN_POWER_CEILING:
+        raise InputError(f"--target-time {clock} is not reachable: it needs {power:.0f} W, "
+                         f"beyond the {HUMAN_POWER_CEILING:g} W no rider holds over a race; "
+                         "give a longer time")
+    if not request.uses_w_prime:
+        warnings.warn(f"--target-time without --cp and --w-prime: the {power:.0f} W it needs "
+                      "is not checked against the athlete's limits", UserWarning, stacklevel=2)
 
 
 def plan_as_dict(plan, segments: list[SegmentResult]) -> dict:
     """The JSON of the plain prediction plus the plan: strategy, time_saved_s,
-    min_w_prime_balance_j, and per segment power_w (the target) and w_prime_balance_j."""
-    result = prediction_as_dict(plan.prediction, segments)
+    min_w_prime_balance_j, and per segment power_w (the target), its band power_low_w and
+    power_high_w (± the request's band) and w_prime_balance_j."""
+    result = prediction_as_dict(plan.prediction, segments, target_power=plan.segment_power,
+                                band=plan.request.band)
     result["strategy"] = plan.strategy
     result["time_saved_s"] = plan.time_saved
     result["reference_power_w"] = plan.reference_power
@@ -286,16 +379,19 @@ def plan_as_table(plan, segments: list[SegmentResult]) -> str:
     """The prediction table with the target power per segment and a summary of the plan."""
     lines = prediction_as_table(plan.prediction, segments).splitlines()
     header, rows, footer = lines[0], lines[1:1 + len(segments)], lines[1 + len(segments):]
-    header += f" {'target W':>9}"
+    header += f" {'target W':>9}" + BAND_HEADER
     if plan.segment_w_prime_balance is not None:
         header += f" {'W′ kJ':>6}"
     out = [header]
+    low, high = power_band(plan.segment_power, plan.request.band)
     for index, row in enumerate(rows):
-        row += f" {plan.segment_power[index]:9.0f}"
+        row += f" {plan.segment_power[index]:9.0f} {_band_text(low[index], high[index]):>11}"
         if plan.segment_w_prime_balance is not None:
             row += f" {plan.segment_w_prime_balance[index] / 1000:6.1f}"
         out.append(row)
-    out.extend(footer)
+    out.extend(footer[:1])
+    out.append(f"band: ±{100 * plan.request.band:g} % around the target power")
+    out.extend(footer[1:])
     summary = (f"strategy {plan.strategy}: {plan.time_saved:.1f} s faster than constant "
                f"{plan.reference_power:.0f} W; effort-weighted power "
                f"{plan.effort_weighted_power:.0f} W")

@@ -11,6 +11,7 @@ import argparse
 import json
 import math
 import sys
+import warnings
 
 from pacing import units
 from pacing.athlete import Athlete
@@ -19,15 +20,86 @@ from pacing.conditions import Conditions, air_along_course
 from pacing.course import split_by_grade, split_every
 from pacing.errors import InputError
 from pacing.io.gpx import load_course
-from pacing.running import (
+from pacing.running import Runner, critical_speed_flat_race_time
+from pacing.running_plans import (
+    DOWNHILL_SPEED_RATIO_CAP,
     RUNNING_STRATEGIES,
-    Runner,
     RunningPlan,
-    critical_speed_flat_race_time,
     plan_equal_effort,
     plan_even_pace,
     plan_fastest,
 )
+
+SHARED_FLAGS = frozenset({"strategy", "cda", "drafting"})
+"""Destinations of the cycling and rider groups' flags that running uses too."""
+
+_GROUPS_OF_SPORT = {"cycling": ("cycling plan", "rider and bike"), "running": ("running plan",)}
+"""Titles of the plan command's argument groups that belong to each sport."""
+
+FLAT_PACE_RANGE = (1000.0 / 12.0, 1000.0 / 0.5)
+"""Flat paces accepted, 1:24-33:20 per km [s/km] (as pacing.running.flat_effort)."""
+
+
+def flags_of_other_sport(args: argparse.Namespace, sport: str) -> list[str]:
+    """The flags given (not at their default) that only the other sport uses.
+
+    Read from the plan command's own parser (pacing.cli.plan.add_plan_flags), so a flag added
+    to a sport's group is covered without a list here. `sport` is the sport being planned.
+    """
+    from pacing.cli.plan import add_plan_flags
+
+    parser = argparse.ArgumentParser(add_help=False)
+    add_plan_flags(parser)
+    other = "cycling" if sport == "running" else "running"
+    given = []
+    for group in parser._action_groups:  # argparse keeps its groups here (no public API)
+        if group.title not in _GROUPS_OF_SPORT[other]:
+            continue
+        for action in group._group_actions:
+            if action.dest in SHARED_FLAGS or not hasattr(args, action.dest):
+                continue
+            if getattr(args, action.dest) != parser.get_default(action.dest):
+                given.append(action.option_strings[0])
+    return given
+
+
+def warn_flags_of_other_sport(args: argparse.Namespace, sport: str) -> None:
+    """A one-line warning naming the given flags that the planned sport ignores."""
+    given = flags_of_other_sport(args, sport)
+    if not given:
+        return
+    hint = " (the runner's mass is --body-mass)" if sport == "running" and "--mass" in given \
+        else ""
+    other = "cycling" if sport == "running" else "running"
+    warnings.warn(f"{', '.join(given)} {'is a' if len(given) == 1 else 'are'} {other} "
+                  f"flag{'' if len(given) == 1 else 's'}, ignored for {sport}{hint}",
+                  stacklevel=2)
+
+
+def downhill_cap_from_args(args: argparse.Namespace) -> float | None:
+    """--downhill-cap: a ratio to the flat speed (≥ 1), 'none' for no cap; default 1.2."""
+    text = getattr(args, "downhill_cap", None)
+    if text is None:
+        return DOWNHILL_SPEED_RATIO_CAP
+    if str(text).strip().lower() in ("none", "off"):
+        return None
+    try:
+        ratio = float(text)
+    except ValueError:
+        raise InputError(f"--downhill-cap must be a ratio to the flat speed (e.g. 1.2) or "
+                         f"'none', got {text!r}") from None
+    if not math.isfinite(ratio) or not 1.0 <= ratio <= 3.0:
+        raise InputError(f"--downhill-cap must be 1-3 × the flat speed, or 'none', got {text}")
+    return ratio
+
+
+def flat_speed_from_pace(text: str) -> float:
+    """--flat-pace M:SS per km → speed [m/s]; out of range is refused as typed."""
+    pace = units.parse_clock(text, "--flat-pace")
+    low, high = FLAT_PACE_RANGE
+    if not low <= pace <= high:
+        raise InputError(f"--flat-pace: flat pace must be 1:24-33:20 per km, got {text}")
+    return 1000.0 / pace
 
 
 def runner_from_args(args: argparse.Namespace) -> Runner:
@@ -78,6 +150,11 @@ def make_plan(args: argparse.Namespace) -> RunningPlan:
             f"--strategy for running must be one of {', '.join(RUNNING_STRATEGIES)}, "
             f"got {strategy!r}"
         )
+    warn_flags_of_other_sport(args, "running")
+    downhill_cap = downhill_cap_from_args(args)
+    if strategy == "even-pace" and getattr(args, "downhill_cap", None) is not None:
+        warnings.warn("--downhill-cap does not apply to even pace (one speed everywhere)",
+                      stacklevel=2)
     runner = runner_from_args(args)
     conditions = conditions_from_args(args)
     course = load_course(args.route, step=args.step, allow_missing_elevation=args.flat)
@@ -87,12 +164,20 @@ def make_plan(args: argparse.Namespace) -> RunningPlan:
     air_args = dict(air_density=air.density, headwind=air.headwind, crosswind=air.crosswind,
                     bounds=bounds)
     has_critical = args.critical_speed is not None and args.d_prime is not None
+    if (args.critical_speed is None) != (args.d_prime is None):
+        raise InputError("give --critical-speed and --d-prime together")
     if strategy == "fastest":
         if not has_critical:
             raise InputError("--strategy fastest needs --critical-speed and --d-prime")
-        return plan_fastest(course, runner, args.critical_speed, args.d_prime, **air_args)
+        if args.flat_pace is not None:
+            warnings.warn("--flat-pace is not used by the fastest plan: its effort comes from "
+                          "--critical-speed and --d-prime", stacklevel=2)
+        return plan_fastest(course, runner, args.critical_speed, args.d_prime,
+                            downhill_speed_ratio_cap=downhill_cap, **air_args)
+    if has_critical:
+        air_args.update(critical_speed=args.critical_speed, d_prime=args.d_prime)
     if args.flat_pace is not None:
-        flat_speed = 1000.0 / units.parse_clock(args.flat_pace, "--flat-pace")
+        flat_speed = flat_speed_from_pace(args.flat_pace)
     elif has_critical:
         # the pace that spends D′ exactly over this distance on flat ground (CS model)
         flat_speed = course.total_distance / critical_speed_flat_race_time(
@@ -100,14 +185,36 @@ def make_plan(args: argparse.Namespace) -> RunningPlan:
     else:
         raise InputError("running needs --flat-pace M:SS (per km), or --critical-speed and "
                          "--d-prime")
-    plan = plan_equal_effort if strategy == "equal-effort" else plan_even_pace
-    return plan(course, runner, flat_speed, **air_args)
+    if strategy == "equal-effort":
+        return plan_equal_effort(course, runner, flat_speed, downhill_speed_ratio_cap=downhill_cap,
+                                 **air_args)
+    return plan_even_pace(course, runner, flat_speed, **air_args)
+
+
+TIME_SAVED_MEANING = ("seconds before the even pace with the same time-weighted mean "
+                      "metabolic power (negative: that even pace finishes sooner, running "
+                      "the climbs above the target effort)")
+"""What time_saved_s is measured against (also printed in the JSON)."""
+
+
+def _optional(value: float | None) -> float | None:
+    return None if value is None else float(value)
 
 
 def plan_as_dict(plan: RunningPlan, runner: Runner | None = None) -> dict:
-    """JSON-ready numbers (SI units; paces in seconds per km)."""
+    """JSON-ready numbers (SI units; paces in seconds per km).
+
+    Besides the cycling keys (finish_time_s, distance_m, average_speed_mps, max_speed_mps,
+    time_saved_s, strategy, segments): effort_w_per_kg and the effort ratios;
+    time_saved_s is against the even pace at the same time-weighted mean metabolic power
+    (time_saved_against says so), with that pace, its finish time and its peak effort ratio;
+    min_d_prime_balance_m and where (fastest, or with --critical-speed and --d-prime; else
+    null); limited_even_pace_time_s, the fastest even pace within the same CS and D′ (fastest).
+    Per segment: pace_s_per_km, max_speed_mps, d_prime_balance_m (null without CS and D′).
+    """
     about_runner = {} if runner is None else {
         "body_mass_kg": runner.body_mass, "drag_area_m2": runner.drag_area}
+    even_pace = None if plan.even_pace_speed is None else 1000.0 / plan.even_pace_speed
     return {
         "sport": "running",
         "strategy": plan.strategy,
@@ -115,9 +222,19 @@ def plan_as_dict(plan: RunningPlan, runner: Runner | None = None) -> dict:
         "finish_time_s": plan.finish_time,
         "distance_m": plan.distance,
         "average_speed_mps": plan.average_speed,
+        "max_speed_mps": plan.max_speed,
         "flat_pace_s_per_km": 1000.0 / plan.flat_speed,
         "effort_w_per_kg": plan.effort,
         "mean_effort_ratio": plan.mean_effort_ratio,
+        "peak_effort_ratio": plan.peak_effort_ratio,
+        "time_saved_s": _optional(plan.time_saved),
+        "time_saved_against": TIME_SAVED_MEANING,
+        "even_pace_s_per_km": even_pace,
+        "even_pace_time_s": _optional(plan.even_pace_time),
+        "even_pace_peak_effort_ratio": _optional(plan.even_pace_peak_effort_ratio),
+        "limited_even_pace_time_s": _optional(plan.limited_even_pace_time),
+        "min_d_prime_balance_m": plan.min_d_prime_balance,
+        "min_d_prime_distance_m": plan.min_d_prime_distance,
         "notes": list(plan.notes),
         "segments": [
             {
@@ -126,39 +243,63 @@ def plan_as_dict(plan: RunningPlan, runner: Runner | None = None) -> dict:
                 "grade": row.grade,
                 "headwind_mps": row.headwind,
                 "speed_mps": row.speed,
+                "max_speed_mps": row.max_speed,
                 "pace_s_per_km": row.pace,
                 "time_s": row.time,
                 "cumulative_time_s": row.cumulative_time,
                 "effort_ratio": row.effort_ratio,
+                "d_prime_balance_m": row.d_prime_balance,
             }
             for row in plan.segments
         ],
     }
 
 
+def _what_the_plan_holds(plan: RunningPlan) -> str:
+    if plan.strategy == "even-pace":
+        return ("even pace: one speed whose time-weighted mean effort equals the target; "
+                f"it runs up to {plan.peak_effort_ratio:.0%} of the target on the hardest piece")
+    if plan.strategy == "equal-effort":
+        return ("equal effort: every piece at the target effort, never above it "
+                "(capped descents below it)")
+    return ("fastest: the highest equal effort that critical speed and D′ allow "
+            "(every piece at that effort, capped descents below it)")
+
+
 def plan_as_table(plan: RunningPlan, runner: Runner | None = None) -> str:
-    """A readable target table: paces in min/km and min/mile."""
+    """A readable target table: paces in min/km and min/mile, effort per segment as a share
+    of the target, D′ balance at each segment's end when known."""
     about_runner = "" if runner is None else (
         f"   runner {runner.body_mass:g} kg, CdA {runner.drag_area:.2f} m²")
+    has_balance = plan.d_prime_balance is not None
     lines = [
         f"running plan: {plan.strategy}   flat pace {units.format_pace(1000.0 / plan.flat_speed)}"
         f" /km   effort {plan.effort:.2f} W/kg{about_runner}",
+        _what_the_plan_holds(plan),
         f"{'from km':>8} {'to km':>7} {'grade':>7} {'wind':>6} {'min/km':>7} {'min/mi':>7} "
-        f"{'time':>8} {'elapsed':>8} {'effort':>7}",
+        f"{'time':>8} {'elapsed':>8} {'effort':>7}" + (f" {'D′ m':>6}" if has_balance else ""),
     ]
     for row in plan.segments:
         per_mile = float(units.pace_per_km_to_display(row.pace, "imperial"))
-        lines.append(
+        line = (
             f"{row.start / 1000:8.2f} {row.end / 1000:7.2f} {row.grade:7.1%} "
             f"{row.headwind:+6.1f} {units.format_pace(row.pace):>7} "
             f"{units.format_pace(per_mile):>7} {units.format_duration(row.time):>8} "
             f"{units.format_duration(row.cumulative_time):>8} {row.effort_ratio:7.0%}"
         )
+        if has_balance:
+            line += f" {row.d_prime_balance:6.0f}"
+        lines.append(line)
     lines.append(
         f"finish {units.format_duration(plan.finish_time)} over {plan.distance / 1000:.2f} km "
-        f"(mean {units.format_pace(1000.0 / plan.average_speed)} /km, mean effort "
-        f"{plan.mean_effort_ratio:.0%}); wind: headwind m/s, + against"
+        f"(mean {units.format_pace(1000.0 / plan.average_speed)} /km, max "
+        f"{units.format_pace(1000.0 / plan.max_speed)} /km, mean effort "
+        f"{plan.mean_effort_ratio:.0%}, peak {plan.peak_effort_ratio:.0%}); "
+        "wind: headwind m/s, + against"
     )
+    if plan.min_d_prime_balance is not None:
+        lines.append(f"lowest D′ balance {plan.min_d_prime_balance:.0f} m at km "
+                     f"{plan.min_d_prime_distance / 1000:.2f}")
     lines.extend(f"note: {note}" for note in plan.notes)
     return "\n".join(lines)
 

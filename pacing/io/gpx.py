@@ -40,6 +40,10 @@ MAX_GPX_BYTES = 50 * 1024 * 1024
 MAX_GPX_POINTS = 1_000_000
 """Most track or route points accepted in one file."""
 
+MINIMUM_COURSE_LENGTH = 100.0
+"""Shortest course accepted from a file [m]: anything shorter is a recording fault or a
+wrong file, not a course to plan (one 10 m resampling step is 100 times shorter)."""
+
 DEMO_ROUTES_DIR = Path(__file__).resolve().parents[2] / "demo_routes"
 """Folder of the invented demo courses (in the source tree)."""
 
@@ -123,11 +127,53 @@ def _decode(data: bytes) -> str:
     raise InputError("GPX file is not valid UTF-8 text (nor in the encoding it declares)")
 
 
+_POINT_KINDS = {"trkpt": "track point", "rtept": "route point", "wpt": "waypoint"}
+_COORDINATES = {"lat": "latitude", "lon": "longitude"}
+
+
+def _shown_value(text: str) -> str:
+    """A value from the file fit for a one-line message (quoted, at most 40 characters)."""
+    text = " ".join(text.split())
+    return repr(text if len(text) <= 40 else text[:37] + "...")
+
+
 def _check_xml(data: bytes) -> None:
-    """Parse with defusedxml (no DTD, no entities, no external references) before gpxpy."""
-    tag = local_name(parse_xml(data, "GPX file").tag)
+    """Parse with defusedxml (no DTD, no entities, no external references) before gpxpy, and
+    check that every point's latitude, longitude and elevation are numbers.
+
+    gpxpy's own messages for such values ("Invalid value for <None>...") name neither the
+    point nor the coordinate; these name both. Points are numbered from 1 in file order, each
+    kind (track points, route points, waypoints) separately.
+    """
+    root = parse_xml(data, "GPX file")
+    tag = local_name(root.tag)
     if tag != "gpx":
         raise InputError(f"not a GPX file: the root element is <{tag}>, not <gpx>")
+    counts = dict.fromkeys(_POINT_KINDS, 0)
+    for element in root.iter():
+        kind = local_name(element.tag) if isinstance(element.tag, str) else ""
+        if kind not in _POINT_KINDS:
+            continue
+        counts[kind] += 1
+        where = f"{_POINT_KINDS[kind]} {counts[kind]}"
+        for attribute, meaning in _COORDINATES.items():
+            value = element.get(attribute)
+            if value is None:
+                raise InputError(f"not a valid GPX file: {where} has no {meaning}")
+            _check_number(value, f"{where} has {meaning}")
+        for child in element:
+            if isinstance(child.tag, str) and local_name(child.tag) == "ele" and child.text:
+                if child.text.strip():
+                    _check_number(child.text, f"{where} has elevation")
+
+
+def _check_number(value: str, what: str) -> None:
+    """Raise InputError "not a valid GPX file: <what> 'value', not a number" unless it is one."""
+    try:
+        float(value.strip())
+    except ValueError:
+        raise InputError(f"not a valid GPX file: {what} {_shown_value(value)}, "
+                         "not a number") from None
 
 
 def read_track(source) -> Track:
@@ -144,7 +190,8 @@ def read_track(source) -> Track:
     routes), validated for range (latitude -90..90, longitude -180..180 [deg]).
 
     Raises InputError: empty file, not XML or not GPX, DTD or entities, too large, no points,
-    bad coordinates.
+    bad coordinates, a latitude, longitude or elevation that is not a number (the message
+    names the point and the value).
     """
     data, fallback = _read_bytes(source)
     if not data.strip():
@@ -190,23 +237,33 @@ def load_course(source, step: float | None = None,
     source : path, bytes or file-like object of a GPX file.
     step : resampling step [m]; None for DEFAULT_STEP.
     smoothing : elevation cleaning; None for ElevationSmoothing() defaults.
-    allow_missing_elevation : a file without any elevation is treated as flat (elevation 0 m)
-        with a UserWarning; otherwise it is refused.
+    allow_missing_elevation : a file without any elevation is treated as flat (elevation 0 m,
+        so sea-level air unless conditions say otherwise) with a UserWarning; otherwise it is
+        refused. Points missing some elevations are interpolated with a UserWarning (see
+        pacing.course.build_course).
+
+    Raises InputError for everything read_track and build_course refuse, and for a course
+    shorter than MINIMUM_COURSE_LENGTH.
     name : label of the course; None for the file's own name.
     """
     track = read_track(source)
     elevation = track.elevation
     if elevation is None:
         if not allow_missing_elevation:
-            raise InputError("GPX file has no elevation data; allow a flat course to use it "
-                             "anyway")
+            raise InputError("GPX file has no elevation data; use --flat (command line) or "
+                             "'A file without heights is a flat course' (app) to treat it "
+                             "as flat")
         warnings.warn("GPX file has no elevation data: the course is treated as flat",
                       UserWarning, stacklevel=2)
         elevation = np.zeros_like(track.latitude)
-    return build_course(track.latitude, track.longitude, elevation,
-                        step=DEFAULT_STEP if step is None else step,
-                        smoothing=ElevationSmoothing() if smoothing is None else smoothing,
-                        name=name or track.name or "course")
+    course = build_course(track.latitude, track.longitude, elevation,
+                          step=DEFAULT_STEP if step is None else step,
+                          smoothing=ElevationSmoothing() if smoothing is None else smoothing,
+                          name=name or track.name or "course")
+    if course.total_distance < MINIMUM_COURSE_LENGTH:
+        raise InputError(f"the course is only {course.total_distance:.1f} m long; a course "
+                         f"must be at least {MINIMUM_COURSE_LENGTH:g} m")
+    return course
 
 
 def position_at(course: Course, distance) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
