@@ -1,6 +1,9 @@
 """Benchmark: the fastest plan on a 40 km course (200 m segments) and a 180 km course (1 km
-segments), each including the verifying inertial simulation. Target: under 2 s each on the
-development machine. Prints times and iteration counts; never asserts.
+segments), each including the verifying inertial simulation, and on the hilly demo course
+with CP and W′ (as `pacing plan demo_routes/01_corravey_hill_loop_40k.gpx --strategy fastest
+--power 250 --cp 270 --w-prime 20000`) split by grade and every 100, 200 and 500 m. Target: under
+2 s each on the development machine (library time: the plan, not reading the GPX). Prints times,
+finish times and iteration counts; never asserts.
 
 Run: .venv/bin/python bench/bench_strategy.py
 """
@@ -8,11 +11,12 @@ Run: .venv/bin/python bench/bench_strategy.py
 from __future__ import annotations
 
 import time
+from pathlib import Path
 
 import numpy as np
 
-from pacing.conditions import CourseAir
-from pacing.course import split_every, synthetic_course
+from pacing.conditions import Conditions, CourseAir, air_along_course
+from pacing.course import split_by_grade, split_every, synthetic_course
 from pacing.cycling import Rider
 from pacing.simulate import SimulationOptions
 from pacing.strategy import PlanRequest, make_plan
@@ -55,6 +59,30 @@ def run(name: str, length: float, segment: float, request: PlanRequest) -> None:
           f"{', '.join(plan.binding)}")
 
 
+DEMO = Path(__file__).resolve().parent.parent / "demo_routes" / "01_corravey_hill_loop_40k.gpx"
+
+
+def run_demo() -> None:
+    """The hilly demo course with the command line's defaults (80 kg, CdA 0.30 m², Crr 0.0032,
+    still air at 15 °C) and CP 270 W, W′ 20 kJ, 250 W mean: finer splits must not be slower."""
+    from pacing.io.gpx import load_course
+
+    course = load_course(DEMO)
+    air = air_along_course(course, Conditions())
+    rider = Rider(mass=80.0, drag_area=0.30, rolling_coefficient=0.0032)
+    request = PlanRequest(strategy="fastest", mean_power=250.0, critical_power=270.0,
+                          w_prime=20000.0)
+    splits = [("by grade", split_by_grade(course))] + [
+        (f"every {length:.0f} m", split_every(course, length)) for length in (100, 200, 500)]
+    for name, bounds in splits:
+        started = time.perf_counter()
+        plan = make_plan(course, bounds, rider, air, request, SimulationOptions())
+        elapsed = time.perf_counter() - started
+        print(f"demo hill loop, CP/W′, {name}: {bounds.size - 1} segments, {elapsed:.2f} s "
+              f"(target < 2 s); finish {plan.finish_time:.1f} s, saved {plan.time_saved:.1f} s, "
+              f"solver {plan.solver.method}, {plan.solver.evaluations} course evaluations")
+
+
 def main() -> None:
     run("40 km, 200 m segments", 40_000.0, 200.0,
         PlanRequest(strategy="fastest", mean_power=300.0, critical_power=310.0,
@@ -65,6 +93,7 @@ def main() -> None:
     run("40 km, 200 m segments, W′ reserve", 40_000.0, 200.0,
         PlanRequest(strategy="fastest", mean_power=300.0, critical_power=310.0,
                     w_prime=20000.0, w_prime_reserve=3000.0, max_power_ratio=1.5))
+    run_demo()
 
 
 if __name__ == "__main__":

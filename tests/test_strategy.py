@@ -10,7 +10,7 @@ from functools import lru_cache
 
 import numpy as np
 import pytest
-from hypothesis import given, settings
+from hypothesis import example, given, settings
 from hypothesis import strategies as st
 from scipy import optimize
 
@@ -244,6 +244,7 @@ def test_fastest_is_never_slower_than_constant_at_the_same_mean(seed, mean, cons
 @settings(max_examples=6, deadline=None)
 @given(st.integers(0, 10_000), st.floats(200.0, 320.0), st.floats(1.1, 1.5),
        st.sampled_from(["differential", "integral"]))
+@example(285, 229.0, 1.125, "differential")  # free segments hit the cap before the mean is met
 def test_every_limit_holds_on_the_verified_ride(seed, mean, ratio, model):
     course, bounds, air = random_course(seed)
     request = PlanRequest(strategy="fastest", mean_power=mean, critical_power=mean + 20.0,
@@ -451,6 +452,8 @@ def hill_loop():
     return course, still_air(course, 1.2)
 
 
+HILL_LOOP_RIDER = Rider(mass=80.0, drag_area=0.30, rolling_coefficient=0.0032)
+"""The command line's default rider (pacing/cli/common.py: 80 kg, CdA 0.30 m², Crr 0.0032)."""
 HILL_LOOP_REQUEST = PlanRequest(strategy="fastest", mean_power=250.0, critical_power=270.0,
                                 w_prime=20000.0)
 
@@ -463,8 +466,10 @@ def test_with_w_prime_a_200_m_split_is_not_slower_than_the_split_by_grade():
     from pacing.course import split_by_grade, split_every
 
     course, air = hill_loop()
-    by_grade = make_plan(course, split_by_grade(course), RIDER, air, HILL_LOOP_REQUEST, FLYING)
-    fine = make_plan(course, split_every(course, 200.0), RIDER, air, HILL_LOOP_REQUEST, FLYING)
+    by_grade = make_plan(course, split_by_grade(course), HILL_LOOP_RIDER, air,
+                         HILL_LOOP_REQUEST, FLYING)
+    fine = make_plan(course, split_every(course, 200.0), HILL_LOOP_RIDER, air,
+                     HILL_LOOP_REQUEST, FLYING)
     assert "w-prime-reserve" in by_grade.binding  # the limit binds: the case that went wrong
     assert fine.min_w_prime_balance >= -1e-6
     assert fine.mean_power == pytest.approx(250.0, abs=0.02)
@@ -479,7 +484,7 @@ def test_steady_fastest_plan_on_a_split_is_not_slower_than_on_a_coarser_split_in
     course, air = hill_loop()
     times = []
     for length in (1000.0, 500.0, 100.0):
-        model = segment_model(course, split_every(course, length), RIDER, air)
+        model = segment_model(course, split_every(course, length), HILL_LOOP_RIDER, air)
         power, _ = fastest_steady_plan(model, HILL_LOOP_REQUEST)
         balance = w_prime_balance(power, steady_segment_times(model, power)[0], 270.0, 20000.0)
         assert balance.min() >= -1e-6 * 20000.0 * 5  # the solver's slack
