@@ -25,9 +25,10 @@ wind that is not given shows up mostly in Crr on a loop (it adds a nearly consta
 changing wind, braking or a changing position make the per-lap CdA scatter, which is
 reported. Uncertainty comes from a bootstrap over laps (Efron & Tibshirani 1993).
 
-Rides, their cleaning, air and laps are in pacing.ride; the names listed in `__all__` stay
-importable from here. Conventions: point arrays (one value per sample) have length N, piece
-arrays (between samples i and i+1) length N-1. Laps are (start, end) pairs of sample indices.
+Rides, their cleaning, air and laps are in pacing.ride, the least squares over laps and its
+bootstrap in pacing.drag_fit; the names listed in `__all__` stay importable from here.
+Conventions: point arrays (one value per sample) have length N, piece arrays (between samples i
+and i+1) length N-1. Laps are (start, end) pairs of sample indices.
 
 References
 ----------
@@ -42,15 +43,24 @@ Efron, B. & Tibshirani, R.J. (1993). An Introduction to the Bootstrap. Chapman &
 
 from __future__ import annotations
 
-import dataclasses
 from collections.abc import Sequence
 from dataclasses import dataclass
 
 import numpy as np
 
 from pacing.athlete import Setup
-from pacing.constants import STANDARD_GRAVITY
-from pacing.cycling import MARTIN_1998, Rider, aerodynamic_force, bearing_force, rolling_force
+from pacing.cycling import MARTIN_1998, Rider
+from pacing.drag_fit import (
+    GRID_POINTS,
+    LapTerms,
+    bootstrap_fits,
+    build_laps,
+    drag_area_per_rolling,
+    estimate_correlation,
+    lap_matrices,
+    normal_equations,
+    solve_normal_equations,
+)
 from pacing.errors import InputError
 from pacing.ride import (
     EARTH_RADIUS,
@@ -63,25 +73,21 @@ from pacing.ride import (
     detect_laps,
     indices_at_times,
     laps_from_bounds,
-    local_position,
     make_ride,
     piece_heading,
     ride_air,
     ride_wind,
 )
-from pacing.virtual_elevation import (
-    ElevationTerms,
-    elevation_terms,
-    unit_rider,
-    virtual_elevation,
-)
+from pacing.virtual_elevation import ElevationTerms, elevation_terms, virtual_elevation
 
 __all__ = [
     # estimation (this module)
     "METHODS", "SEPARATION_LIMIT", "TYPICAL_ROLLING_COEFFICIENT", "PLAUSIBLE_ROLLING",
-    "LAP_SPREAD_LIMIT", "CALM_WIND", "STEADY_SPEED_LIMIT", "BRAKING_DECELERATION", "GRID_POINTS",
+    "LAP_SPREAD_LIMIT", "CALM_WIND", "STEADY_SPEED_LIMIT", "BRAKING_DECELERATION",
     "PositionTest", "LapTrace", "PositionEstimate", "PositionDifference", "FieldTestResult",
     "estimate_drag",
+    # least squares (pacing.drag_fit), importable from here as before
+    "GRID_POINTS",
     # rides and laps (pacing.ride), importable from here as before
     "EARTH_RADIUS", "LAP_RADIUS", "MAX_GAP", "MAX_POWER_FILL", "STOP_SPEED",
     "ZERO_POWER_DROPOUT", "Ride", "make_ride", "piece_heading", "ride_wind", "ride_air",
@@ -126,10 +132,6 @@ warns that the runs are not steady [-]."""
 BRAKING_DECELERATION = 1.0
 """Deceleration while hardly pedalling that marks a sample as braking [m/s²] (common practice:
 coasting on a road rarely slows a rider by more than ~0.5 m/s²)."""
-
-GRID_POINTS = 200
-"""Points per lap on the common grid of lap-distance fraction."""
-
 
 @dataclass(frozen=True)
 class PositionTest:
@@ -259,208 +261,6 @@ class FieldTestResult:
                      rolling_coefficient=round(self.rolling_coefficient, 5), **fields)
 
 
-@dataclass(frozen=True, eq=False)
-class _Lap:
-    group: int
-    start: int
-    end: int
-    time: np.ndarray  # from lap start, points
-    distance: np.ndarray  # from lap start, points
-    known: np.ndarray  # cumulative, points
-    drag: np.ndarray
-    rolling: np.ndarray
-    measured: np.ndarray | None  # measured elevation relative to the lap start, points
-    reference: np.ndarray | None  # profile method: known elevation relative to the lap start
-    start_elevation: float
-    run: np.ndarray  # regression row: (y, x_drag, x_rolling)
-    fraction: np.ndarray  # distance / lap length, points
-
-
-def _resolve_laps(test: PositionTest, radius: float) -> list[tuple[int, int]]:
-    ride = test.ride
-    n = ride.time.size
-    if test.laps is not None:
-        laps = [(int(a), int(b)) for a, b in test.laps]
-        for a, b in laps:
-            if not 0 <= a < b < n:
-                raise InputError(
-                    f"lap ({a}, {b}) of {test.label!r} is not inside the ride (0..{n - 1})"
-                )
-        if not laps:
-            raise InputError(f"position {test.label!r} has no laps")
-        return laps
-    if ride.has_position:
-        return detect_laps(ride.latitude, ride.longitude, radius)
-    return [(0, n - 1)]
-
-
-def _is_closed(ride: Ride, start: int, end: int, radius: float) -> bool:
-    """True when the lap ends within `radius` of where it started (needs positions)."""
-    if not ride.has_position:
-        return False
-    east, north = local_position(ride.latitude[[end]], ride.longitude[[end]],
-                                  (float(ride.latitude[start]), float(ride.longitude[start])))
-    return bool(np.hypot(east, north)[0] < radius)
-
-
-def _build_laps(test: PositionTest, group: int, rider: Rider, radius: float,
-                profile: tuple[np.ndarray, np.ndarray] | None, method: str) -> list[_Lap]:
-    ride = test.ride
-    n = ride.time.size
-    density = np.broadcast_to(np.asarray(test.air_density, dtype=float), (n - 1,))
-    if np.any(~np.isfinite(density)) or np.any(density <= 0) or np.any(density > 2.0):
-        raise InputError("air density must be between 0 and 2 kg/m³")
-    head = np.broadcast_to(np.asarray(test.headwind, dtype=float), (n - 1,))
-    cross = np.broadcast_to(np.asarray(test.crosswind, dtype=float), (n - 1,))
-    terms = elevation_terms(ride.time, ride.speed, ride.power, density, rider, head, cross,
-                            ride.pause)
-    laps = []
-    for start, end in _resolve_laps(test, radius):
-        pieces = slice(start, end)
-        cumulative = [np.concatenate(([0.0], np.cumsum(part[pieces])))
-                      for part in (terms.known, terms.per_drag_area,
-                                   terms.per_rolling_coefficient)]
-        step = 0.5 * (ride.speed[start + 1:end + 1] + ride.speed[start:end]) * np.diff(
-            ride.time[start:end + 1])
-        if ride.pause is not None:
-            step = np.where(ride.pause[pieces], 0.0, step)
-        distance = np.concatenate(([0.0], np.cumsum(step)))
-        if distance[-1] <= 0:
-            raise InputError(f"lap ({start}, {end}) of {test.label!r} covers no distance")
-        measured = None
-        start_elevation = 0.0
-        if ride.elevation is not None:
-            start_elevation = float(ride.elevation[start])
-            measured = ride.elevation[start:end + 1] - start_elevation
-        reference = None
-        if method == "profile":
-            if profile is not None:
-                along, height = profile
-                lap_height = np.interp(distance, along, height)
-                reference = lap_height - lap_height[0]
-            elif measured is not None:
-                reference = measured
-            else:
-                raise InputError("method 'profile' needs elevation data or a known profile; "
-                                 "use method 'loop' instead")
-        # regression row (Lim et al. 2011): lap means of power and speed; a lap that returns
-        # to its start rises by 0, others by their measured rise
-        rise = 0.0
-        if measured is not None and not _is_closed(ride, start, end, radius):
-            rise = float(measured[-1])
-        run = _run_row(ride, start, end, distance[-1], rise, density, head, cross, rider)
-        laps.append(_Lap(group, start, end, ride.time[start:end + 1] - ride.time[start],
-                         distance, *cumulative, measured, reference, start_elevation,
-                         run, distance / distance[-1]))
-    return laps
-
-
-def _run_row(ride: Ride, start: int, end: int, length: float, rise: float, density, head,
-             cross, rider: Rider) -> np.ndarray:
-    """One run of the regression: (y, x_drag, x_rolling) with y = CdA·x_drag + Crr·x_rolling.
-
-        y = η·P̄/v̄ − (a + b·v̄) − F_w·q̄ − m·g·rise/length − (m + I/r²)·(v_end − v_start)/T
-        x_drag = q̄ = ½·ρ̄·V̄·v̄_a (mean speed and mean wind),  x_rolling = m·g
-
-    P̄, v̄ are time means over the run (Lim et al. 2011 use the means of constant-speed runs).
-    """
-    pieces = slice(start, end)
-    duration = np.diff(ride.time[start:end + 1])
-    if ride.pause is not None:
-        duration = np.where(ride.pause[pieces], 0.0, duration)
-    total = float(duration.sum())
-    mean_power = float(np.sum(0.5 * (ride.power[start + 1:end + 1] + ride.power[start:end])
-                              * duration) / total)
-    mean_speed = length / total
-
-    def mean(values):
-        return float(np.sum(values[pieces] * duration) / total)
-
-    unit = unit_rider(rider)
-    q = float(aerodynamic_force(mean_speed, mean(density), unit, mean(head), mean(cross)))
-    q_wheel = float(aerodynamic_force(mean_speed, mean(density),
-                                      dataclasses.replace(unit, yaw_drag_table=None),
-                                      mean(head), mean(cross)))
-    weight = rider.mass * STANDARD_GRAVITY
-    y = (rider.drivetrain_efficiency * mean_power / mean_speed
-         - float(bearing_force(mean_speed, rider)) - rider.wheel_drag_area * q_wheel
-         - weight * rise / length
-         - rider.effective_mass * (ride.speed[end] - ride.speed[start]) / total)
-    return np.array([y, q, float(rolling_force(0.0, unit))])
-
-
-def _lap_matrices(laps: list[_Lap], method: str) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
-    """Per lap: target y, drag column, rolling column, shape (L, G) (G = 1 for regression)."""
-    if method == "regression":
-        rows = np.array([lap.run for lap in laps])
-        return rows[:, :1], rows[:, 1:2], rows[:, 2:3]
-    if method == "loop":
-        # loop closure: each lap's virtual elevation returns to its starting height
-        rows = np.array([(lap.known[-1], lap.drag[-1], lap.rolling[-1]) for lap in laps])
-        return rows[:, :1], rows[:, 1:2], rows[:, 2:3]
-    grid = np.linspace(0.0, 1.0, GRID_POINTS)
-    ys, a_s, b_s = [], [], []
-    for lap in laps:
-        y = lap.known if lap.reference is None else lap.known - lap.reference
-        ys.append(np.interp(grid, lap.fraction, y))
-        a_s.append(np.interp(grid, lap.fraction, lap.drag))
-        b_s.append(np.interp(grid, lap.fraction, lap.rolling))
-    return np.array(ys), np.array(a_s), np.array(b_s)
-
-
-def _normal_equations(groups: list[tuple[np.ndarray, np.ndarray, np.ndarray]], method: str,
-                      fixed_rolling: float | None) -> tuple[np.ndarray, np.ndarray] | None:
-    """Normal matrix and right side of the least-squares problem; None when a group cannot
-    be fitted (e.g. a loop group with a single distinct lap)."""
-    count = len(groups)
-    size = count + (fixed_rolling is None)
-    matrix = np.zeros((size, size))
-    right = np.zeros(size)
-    for p, (y, a, b) in enumerate(groups):
-        if method == "profile":
-            y, a, b = (v - v.mean(axis=1, keepdims=True) for v in (y, a, b))
-        if fixed_rolling is not None:
-            y = y - fixed_rolling * b
-        aa = float(np.sum(a * a))
-        if aa <= 1e-12 * max(1.0, float(np.sum(y * y))):
-            return None
-        matrix[p, p] += aa
-        right[p] += float(np.sum(a * y))
-        if fixed_rolling is None:
-            ab = float(np.sum(a * b))
-            matrix[p, -1] += ab
-            matrix[-1, p] += ab
-            matrix[-1, -1] += float(np.sum(b * b))
-            right[-1] += float(np.sum(b * y))
-    return matrix, right
-
-
-def _solve(matrix: np.ndarray, right: np.ndarray) -> np.ndarray | None:
-    scale = np.sqrt(np.diag(matrix))
-    if np.any(scale <= 0):
-        return None
-    scaled = matrix / np.outer(scale, scale)
-    if np.linalg.cond(scaled) > 1e12:
-        return None
-    return np.linalg.solve(scaled, right / scale) / scale
-
-
-def _drag_area_per_rolling(groups: list[tuple[np.ndarray, np.ndarray, np.ndarray]],
-                           method: str) -> tuple[float, ...]:
-    """d CdA / d Crr of each position when CdA is fitted with Crr held [m²].
-
-    With Crr held, CdA = Σa·(y − Crr·b) / Σa², so d CdA / d Crr = −Σa·b / Σa² (a: drag column,
-    b: rolling column, centred per lap for method "profile" as in the fit).
-    """
-    slopes = []
-    for _, a, b in groups:
-        if method == "profile":
-            a, b = (v - v.mean(axis=1, keepdims=True) for v in (a, b))
-        aa = float(np.sum(a * a))
-        slopes.append(-float(np.sum(a * b)) / aa if aa > 0 else 0.0)
-    return tuple(slopes)
-
-
 def _separation_problem(solution: np.ndarray | None, correlation: float,
                         rolling_draws: np.ndarray | None) -> str | None:
     """Why the laps cannot separate CdA from Crr (a few words), or None when they can.
@@ -481,19 +281,6 @@ def _separation_problem(solution: np.ndarray | None, correlation: float,
     if correlation > SEPARATION_LIMIT:
         return f"correlation {correlation:.3f}"
     return None
-
-
-def _estimate_correlation(matrix: np.ndarray, fixed: bool) -> float:
-    if fixed:
-        return 0.0
-    scale = np.sqrt(np.diag(matrix))
-    try:
-        covariance = np.linalg.inv(matrix / np.outer(scale, scale))
-    except np.linalg.LinAlgError:
-        return 1.0
-    diagonal = np.sqrt(np.abs(np.diag(covariance)))
-    corr = covariance[:-1, -1] / (diagonal[:-1] * diagonal[-1])
-    return float(np.clip(np.max(np.abs(corr)), 0.0, 1.0))
 
 
 def estimate_drag(
@@ -562,7 +349,7 @@ def estimate_drag(
             raise InputError(f"{what} must be 0-0.1, got {value}")
     fixed = rolling_coefficient is not None
     warnings: list[str] = []
-    lap_sets = [_build_laps(t, g, rider, lap_radius, profile, method) for g, t in
+    lap_sets = [build_laps(t, g, rider, lap_radius, profile, method) for g, t in
                 enumerate(tests)]
     for test, laps in zip(tests, lap_sets, strict=True):
         need = 2 if method in ("loop", "regression") and not fixed else 1
@@ -571,14 +358,14 @@ def estimate_drag(
                 " (no positions to find laps in: mark the lap boundaries)"
             raise InputError(f"method {method!r} needs at least {need} laps per position; "
                              f"{test.label!r} has {len(laps)}{hint}")
-    groups = [_lap_matrices(laps, method) for laps in lap_sets]
-    equations = _normal_equations(groups, method, rolling_coefficient)
-    solution = None if equations is None else _solve(*equations)
+    groups = [lap_matrices(laps, method) for laps in lap_sets]
+    equations = normal_equations(groups, method, rolling_coefficient)
+    solution = None if equations is None else solve_normal_equations(*equations)
     correlation = 1.0
     if equations is not None and solution is not None:
-        correlation = _estimate_correlation(equations[0], fixed)
+        correlation = estimate_correlation(equations[0], fixed)
     few = [t.label for t, laps in zip(tests, lap_sets, strict=True) if len(laps) < 3]
-    draws = _bootstrap(groups, method, rolling_coefficient, bootstrap if solution is not None
+    draws = bootstrap_fits(groups, method, rolling_coefficient, bootstrap if solution is not None
                        else 0, seed)
     valid = draws.shape[0] >= max(20, bootstrap // 2) if bootstrap else False
     problem = None if fixed else _separation_problem(
@@ -588,14 +375,14 @@ def estimate_drag(
     if held:
         # CdA and Crr trade off freely: hold Crr at the typical value, fit CdA alone
         held_value = float(fallback_rolling_coefficient)
-        equations = _normal_equations(groups, method, held_value)
-        solution = None if equations is None else _solve(*equations)
-        draws = _bootstrap(groups, method, held_value, bootstrap, seed)
+        equations = normal_equations(groups, method, held_value)
+        solution = None if equations is None else solve_normal_equations(*equations)
+        draws = bootstrap_fits(groups, method, held_value, bootstrap, seed)
         valid = draws.shape[0] >= max(20, bootstrap // 2) if bootstrap else False
     if solution is None:
         raise InputError("CdA and Crr cannot be separated from these laps: ride laps at "
                          "clearly different speeds, or give Crr")
-    slopes = _drag_area_per_rolling(groups, method)
+    slopes = drag_area_per_rolling(groups, method)
     crr = float(held_value) if held_value is not None else float(solution[-1])
     areas = solution[:len(tests)]
     if held:
@@ -705,27 +492,7 @@ def estimate_drag(
     )
 
 
-def _bootstrap(groups, method: str, fixed_rolling: float | None, draws: int,
-               seed: int) -> np.ndarray:
-    """Bootstrap estimates, shape (valid draws, positions [+ Crr])."""
-    columns = len(groups) + (fixed_rolling is None)
-    if draws <= 0:
-        return np.empty((0, columns))
-    rng = np.random.default_rng(seed)
-    results = []
-    for _ in range(draws):
-        sample = []
-        for y, a, b in groups:
-            pick = rng.integers(0, y.shape[0], y.shape[0])
-            sample.append((y[pick], a[pick], b[pick]))
-        equations = _normal_equations(sample, method, fixed_rolling)
-        solution = None if equations is None else _solve(*equations)
-        if solution is not None:
-            results.append(solution)
-    return np.array(results) if results else np.empty((0, columns))
-
-
-def _lap_results(laps: list[_Lap], method: str, area: float,
+def _lap_results(laps: list[LapTerms], method: str, area: float,
                  crr: float) -> tuple[np.ndarray, tuple[LapTrace, ...]]:
     """Per-lap CdA (Crr held) and plot traces."""
     lap_areas = []

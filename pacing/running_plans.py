@@ -6,7 +6,9 @@ start's air density (pacing.running: Minetti et al. 2002 cost of running on grad
 resistance). An *equal-effort* plan runs every piece at the speed with that metabolic power; an
 *even-pace* plan runs one speed everywhere; the *fastest* plan is the highest equal effort that
 the runner's critical speed and D′ allow (D′ balance by Skiba's differential form, see
-`pacing.running.distance_capacity_balance`). These names stay importable from pacing.running.
+`pacing.running.distance_capacity_balance`). These names stay importable from pacing.running;
+the even-pace references and the D′ balance of a plan are in pacing.even_pace, importable from
+here.
 
 What each plan holds to, and which is faster
 --------------------------------------------
@@ -45,26 +47,48 @@ Skiba, P.F. et al. (2015). Intramuscular determinants of the ability to recover 
 above critical power. Eur J Appl Physiol 115(4):703-713.
 """
 
+
 from __future__ import annotations
 
 from dataclasses import dataclass
 
 import numpy as np
-from scipy.optimize import brentq
 
 from pacing.course import Course
 from pacing.errors import InputError
+from pacing.even_pace import (
+    PieceAir,
+    check_limits,
+    even_pace_for_mean_power,
+    even_pace_reference,
+    even_pace_speed,
+    even_pace_within_limits,
+    highest_feasible_speed,
+    lowest_even_pace_balance,
+    pace_clock,
+    piece_air,
+    piece_metabolic_power,
+    plan_d_prime_balance,
+)
 from pacing.running import (
     RUNNING_COST_MODELS,
     Runner,
     check_critical_speed,
     distance_capacity_balance,
     flat_effort,
-    metabolic_power,
     speed_for_metabolic_power,
 )
 from pacing.segments import split_every
 from pacing.targets import SegmentTarget
+
+__all__ = [
+    "DOWNHILL_SPEED_RATIO_CAP", "DEFAULT_SPLIT", "RunningSegment", "RunningPlan",
+    "plan_equal_effort", "plan_even_pace", "plan_fastest", "RUNNING_STRATEGIES",
+    "running_targets",
+    # the even-pace references and D′ balance (pacing.even_pace), importable from here as before
+    "even_pace_for_mean_power", "even_pace_within_limits", "plan_d_prime_balance",
+]
+
 
 DOWNHILL_SPEED_RATIO_CAP = 1.2
 """Default cap on speed on descents, as a multiple of the flat speed [-]. Our choice: the
@@ -198,30 +222,6 @@ class RunningPlan:
         return float(np.cumsum(self.speed * self.time)[int(np.argmin(self.d_prime_balance))])
 
 
-@dataclass(frozen=True)
-class _Air:
-    density: np.ndarray
-    headwind: np.ndarray
-    crosswind: np.ndarray
-
-
-def _air(course: Course, air_density, headwind, crosswind) -> _Air:
-    shape = course.grade.shape
-    arrays = []
-    for name, value in (("air density", air_density), ("headwind", headwind),
-                        ("crosswind", crosswind)):
-        array = np.asarray(value, dtype=float)
-        if array.ndim > 1 or (array.ndim == 1 and array.shape != shape):
-            raise InputError(f"{name} must be a number or one value per piece of the course")
-        array = np.broadcast_to(array, shape)
-        if not np.all(np.isfinite(array)):
-            raise InputError(f"{name} must be finite")
-        arrays.append(array)
-    if np.any(arrays[0] <= 0.3) or np.any(arrays[0] > 1.6):
-        raise InputError("air density must be 0.3-1.6 kg/m³")
-    return _Air(*arrays)
-
-
 def _check_bounds(course: Course, bounds) -> np.ndarray:
     if bounds is None:
         return split_every(course, DEFAULT_SPLIT)
@@ -269,7 +269,9 @@ def _grade_notes(course: Course, runner: Runner) -> list[str]:
     return []
 
 
-def _equal_effort_speeds(course, runner, effort, flat_speed, air, downhill_speed_ratio_cap):
+def _equal_effort_speeds(course: Course, runner: Runner, effort: float, flat_speed: float,
+                         air: PieceAir, downhill_speed_ratio_cap: float | None):
+    """Equal-effort speed per piece [m/s] and where the descent cap holds it back."""
     speed = speed_for_metabolic_power(effort, course.grade, air.density, runner, air.headwind,
                                       air.crosswind)
     capped = np.zeros(speed.shape, dtype=bool)
@@ -285,98 +287,38 @@ def _equal_effort_speeds(course, runner, effort, flat_speed, air, downhill_speed
     return speed, capped
 
 
-def _mean_power_of_even_pace(speed: float, course: Course, runner: Runner, air: _Air) -> float:
-    power = metabolic_power(speed, course.grade, air.density, runner, air.headwind,
-                            air.crosswind)
-    length = course.piece_length
-    return float(np.sum(power * length) / length.sum())
+def _flat_speed_inputs(course: Course, runner: Runner, flat_speed: float, air_density,
+                       headwind, crosswind, bounds, critical_speed: float | None,
+                       d_prime: float | None) -> tuple[PieceAir, np.ndarray, float]:
+    """Checked inputs of a plan set by its flat speed: air per piece, segment bounds and the
+    effort target, the metabolic power of flat_speed at the start's air density [W/kg]."""
+    check_limits(critical_speed, d_prime)
+    air = piece_air(course, air_density, headwind, crosswind)
+    bounds = _check_bounds(course, bounds)
+    return air, bounds, flat_effort(flat_speed, float(air.density[0]), runner)
 
 
-def _even_pace_speed(course: Course, runner: Runner, air: _Air, mean_power: float) -> float:
-    high = 2.0
-    while _mean_power_of_even_pace(high, course, runner, air) < mean_power:
-        high *= 2.0
-        if high > 1e3:
-            raise InputError("no even pace reaches that mean effort")
-    return float(brentq(lambda v: _mean_power_of_even_pace(v, course, runner, air) - mean_power,
-                        1e-3, high, xtol=1e-12, rtol=1e-14))
+def _balance_if_given(power: np.ndarray, time: np.ndarray, runner: Runner, air: PieceAir,
+                      critical_speed: float | None, d_prime: float | None) -> np.ndarray | None:
+    """`plan_d_prime_balance` at the start's air density, or None without critical speed."""
+    if critical_speed is None:
+        return None
+    return plan_d_prime_balance(power, time, runner, float(air.density[0]), critical_speed,
+                                d_prime)
 
 
-def even_pace_for_mean_power(
-    course: Course,
-    runner: Runner,
-    mean_power: float,
-    air_density: float | np.ndarray = 1.2,
-    headwind: float | np.ndarray = 0.0,
-    crosswind: float | np.ndarray = 0.0,
-) -> float:
-    """The one speed whose time-weighted mean metabolic power over the course is `mean_power`.
-
-    At a constant speed v the time on piece j is L_j/v, so the time-weighted mean metabolic
-    power is P̄(v) = Σ P_met,j(v)·L_j / Σ L_j; P̄(v) = mean_power is solved for v (scipy
-    brentq). This is how the even-pace plan meets an effort: on average, not on every piece.
-
-    Parameters
-    ----------
-    course : Course; runner : Runner; mean_power : [W/kg], > 0; air_density : per piece or
-    scalar [kg/m³]; headwind, crosswind : per piece or scalar [m/s].
-
-    Returns
-    -------
-    speed [m/s].
-    """
-    if not np.isfinite(mean_power) or mean_power <= 0:
-        raise InputError(f"mean metabolic power must be positive, got {mean_power}")
-    return _even_pace_speed(course, runner, _air(course, air_density, headwind, crosswind),
-                            float(mean_power))
-
-
-def plan_d_prime_balance(
-    metabolic_power: np.ndarray,
-    time: np.ndarray,
-    runner: Runner,
-    air_density: float,
-    critical_speed: float,
-    d_prime: float,
-) -> np.ndarray:
-    """D′ balance along any plan: each piece's effort as its flat, still-air speed [m].
-
-    u_j = speed_for_metabolic_power(P_met,j, grade 0, still air, ρ) is the flat-equivalent
-    speed of the piece's effort; `distance_capacity_balance(u, time, CS, D′)` (Skiba's
-    differential form, speed for power) gives the balance at the end of each piece.
-
-    Parameters
-    ----------
-    metabolic_power : per piece [W/kg]; time : per piece [s]; runner : Runner;
-    air_density : at the start, as in the effort target [kg/m³]; critical_speed : [m/s];
-    d_prime : [m].
-    """
-    check_critical_speed(critical_speed, d_prime)
-    # a piece whose metabolic power is not positive (steep descent in a strong tailwind)
-    # counts as standing still: full recovery below critical speed
-    power = np.maximum(np.asarray(metabolic_power, dtype=float), 1e-9)
-    equivalent = speed_for_metabolic_power(power, 0.0, air_density, runner)
-    return distance_capacity_balance(equivalent, np.asarray(time, dtype=float), critical_speed,
-                                     d_prime)
-
-
-def _limits(critical_speed, d_prime):
-    if (critical_speed is None) != (d_prime is None):
-        raise InputError("give critical speed and D′ together")
-    if critical_speed is not None:
-        check_critical_speed(critical_speed, d_prime)
-    return critical_speed is not None
-
-
-def _reference(course, runner, air, power, time, effort) -> dict:
-    """The even pace at the plan's time-weighted mean metabolic power, and what it costs."""
-    mean = float(np.sum(power * time) / time.sum())
-    speed = _even_pace_speed(course, runner, air, mean)
-    even_power = metabolic_power(speed, course.grade, air.density, runner, air.headwind,
-                                 air.crosswind)
-    return dict(even_pace_speed=speed,
-                even_pace_time=float(np.sum(course.piece_length) / speed),
-                even_pace_peak_effort_ratio=float(even_power.max() / effort))
+def _running_plan(strategy: str, course: Course, bounds: np.ndarray, air: PieceAir,
+                  speed: np.ndarray, time: np.ndarray, power: np.ndarray, effort: float,
+                  flat_speed: float, balance: np.ndarray | None, notes: list[str],
+                  **fields) -> RunningPlan:
+    """The RunningPlan of per-piece speed, time and metabolic power, with its target rows;
+    `fields`: the even-pace references."""
+    return RunningPlan(
+        strategy=strategy, speed=speed, time=time, metabolic_power=power, effort=effort,
+        flat_speed=float(flat_speed),
+        segments=_segments(course, bounds, speed, time, power, effort, air.headwind, balance),
+        d_prime_balance=balance, notes=tuple(notes), **fields,
+    )
 
 
 def _comparison_note(finish_time: float, reference: dict, overdraw: str = "") -> list[str]:
@@ -385,7 +327,7 @@ def _comparison_note(finish_time: float, reference: dict, overdraw: str = "") ->
         return []
     order = "later" if saved > 0 else "sooner"
     return [
-        f"even pace at the same mean effort ({_clock(1000.0 / reference['even_pace_speed'])} "
+        f"even pace at the same mean effort ({pace_clock(1000.0 / reference['even_pace_speed'])} "
         f"/km) would finish {abs(saved):.0f} s {order} in this model, running up to "
         f"{reference['even_pace_peak_effort_ratio']:.0%} of the flat effort on the hardest "
         f"piece{overdraw}; this plan never goes above its target effort"
@@ -423,18 +365,14 @@ def plan_equal_effort(
     downhill_speed_ratio_cap : highest speed on descents as a multiple of flat_speed [-], None
     for no cap; critical_speed [m/s], d_prime [m] : optional, to show the D′ balance.
     """
-    has_limits = _limits(critical_speed, d_prime)
-    air = _air(course, air_density, headwind, crosswind)
-    bounds = _check_bounds(course, bounds)
-    effort = flat_effort(flat_speed, float(air.density[0]), runner)
+    air, bounds, effort = _flat_speed_inputs(course, runner, flat_speed, air_density, headwind,
+                                             crosswind, bounds, critical_speed, d_prime)
     speed, capped = _equal_effort_speeds(course, runner, effort, flat_speed, air,
                                          downhill_speed_ratio_cap)
     time = course.piece_length / speed
-    power = metabolic_power(speed, course.grade, air.density, runner, air.headwind,
-                            air.crosswind)
-    balance = (plan_d_prime_balance(power, time, runner, float(air.density[0]), critical_speed,
-                                    d_prime) if has_limits else None)
-    reference = _reference(course, runner, air, power, time, effort)
+    power = piece_metabolic_power(course, runner, air, speed)
+    balance = _balance_if_given(power, time, runner, air, critical_speed, d_prime)
+    reference = even_pace_reference(course, runner, air, power, time, effort)
     notes = _grade_notes(course, runner)
     if capped.any():
         notes.append(
@@ -443,12 +381,8 @@ def plan_equal_effort(
             "unrealistic"
         )
     notes.extend(_comparison_note(float(time.sum()), reference))
-    return RunningPlan(
-        strategy="equal-effort", speed=speed, time=time, metabolic_power=power, effort=effort,
-        flat_speed=float(flat_speed),
-        segments=_segments(course, bounds, speed, time, power, effort, air.headwind, balance),
-        d_prime_balance=balance, notes=tuple(notes), **reference,
-    )
+    return _running_plan("equal-effort", course, bounds, air, speed, time, power, effort,
+                         flat_speed, balance, notes, **reference)
 
 
 def plan_even_pace(
@@ -477,25 +411,21 @@ def plan_even_pace(
     ----------
     as plan_equal_effort; speed : hold this speed instead [m/s].
     """
-    has_limits = _limits(critical_speed, d_prime)
-    air = _air(course, air_density, headwind, crosswind)
-    bounds = _check_bounds(course, bounds)
-    effort = flat_effort(flat_speed, float(air.density[0]), runner)
+    air, bounds, effort = _flat_speed_inputs(course, runner, flat_speed, air_density, headwind,
+                                             crosswind, bounds, critical_speed, d_prime)
     length = course.piece_length
     if speed is None:
-        speed = _even_pace_speed(course, runner, air, effort)
+        speed = even_pace_speed(course, runner, air, effort)
     elif not np.isfinite(speed) or not 0.5 <= speed <= 12.0:
         raise InputError(
-            f"even pace must be 1:24-33:20 per km (0.5-12 m/s), got {_clock(1000.0 / speed)} "
-            f"per km ({speed:.3g} m/s)" if np.isfinite(speed) and speed > 0 else
-            f"even pace must be 0.5-12 m/s, got {speed}"
+            f"even pace must be 1:24-33:20 per km (0.5-12 m/s), got "
+            f"{pace_clock(1000.0 / speed)} per km ({speed:.3g} m/s)"
+            if np.isfinite(speed) and speed > 0 else f"even pace must be 0.5-12 m/s, got {speed}"
         )
     speeds = np.full(length.shape, float(speed))
     time = length / speeds
-    power = metabolic_power(speeds, course.grade, air.density, runner, air.headwind,
-                            air.crosswind)
-    balance = (plan_d_prime_balance(power, time, runner, float(air.density[0]), critical_speed,
-                                    d_prime) if has_limits else None)
+    power = piece_metabolic_power(course, runner, air, speeds)
+    balance = _balance_if_given(power, time, runner, air, critical_speed, d_prime)
     notes = _grade_notes(course, runner)
     peak = float(power.max() / effort)
     mean = float(np.sum(power * time) / time.sum() / effort)
@@ -503,68 +433,9 @@ def plan_even_pace(
         f"even pace meets the target effort on average ({mean:.0%} time-weighted), not on "
         f"every piece: it costs up to {peak:.0%} of the flat effort on the hardest piece"
     )
-    return RunningPlan(
-        strategy="even-pace", speed=speeds, time=time, metabolic_power=power, effort=effort,
-        flat_speed=float(flat_speed),
-        segments=_segments(course, bounds, speeds, time, power, effort, air.headwind, balance),
-        d_prime_balance=balance, notes=tuple(notes),
-        even_pace_speed=float(speed), even_pace_time=float(time.sum()),
-        even_pace_peak_effort_ratio=peak,
-    )
-
-
-def _clock(seconds: float) -> str:
-    """M:SS of a pace in seconds, for messages (as the user typed it)."""
-    minutes, rest = divmod(round(seconds), 60)
-    return f"{minutes}:{rest:02d}"
-
-
-def even_pace_within_limits(
-    course: Course,
-    runner: Runner,
-    critical_speed: float,
-    d_prime: float,
-    air_density: float | np.ndarray = 1.2,
-    headwind: float | np.ndarray = 0.0,
-    crosswind: float | np.ndarray = 0.0,
-    d_prime_reserve: float = 0.0,
-    tolerance: float = 1e-6,
-) -> float:
-    """The fastest single speed whose D′ balance never falls below the reserve [m/s].
-
-    The even pace's climbs cost more than its mean effort, so they spend D′ that an
-    equal-effort plan spreads evenly; `plan_fastest` reports the time it gains over this pace.
-    Bisection on the speed, balance by `plan_d_prime_balance` (start density).
-
-    Parameters
-    ----------
-    as plan_fastest.
-    """
-    check_critical_speed(critical_speed, d_prime)
-    air = _air(course, air_density, headwind, crosswind)
-    length = course.piece_length
-    start_density = float(air.density[0])
-
-    def lowest(speed: float) -> float:
-        power = metabolic_power(speed, course.grade, air.density, runner, air.headwind,
-                                air.crosswind)
-        return float(plan_d_prime_balance(power, length / speed, runner, start_density,
-                                          critical_speed, d_prime).min())
-
-    low, high = 0.5, critical_speed * 1.05 + 0.1
-    if lowest(low) < d_prime_reserve:
-        raise InputError("even at 0.5 m/s this course spends more than the usable D′")
-    while lowest(high) >= d_prime_reserve:
-        low, high = high, high * 1.5
-        if high > 12.0:
-            raise InputError("critical speed and D′ allow an unrealistically fast pace")
-    while high - low > tolerance:
-        middle = 0.5 * (low + high)
-        if lowest(middle) >= d_prime_reserve:
-            low = middle
-        else:
-            high = middle
-    return low
+    return _running_plan("even-pace", course, bounds, air, speeds, time, power, effort,
+                         flat_speed, balance, notes, even_pace_speed=float(speed),
+                         even_pace_time=float(time.sum()), even_pace_peak_effort_ratio=peak)
 
 
 def plan_fastest(
@@ -605,7 +476,7 @@ def plan_fastest(
     check_critical_speed(critical_speed, d_prime)
     if not 0.0 <= d_prime_reserve < d_prime:
         raise InputError(f"D′ reserve must be 0 to D′ ({d_prime:g} m), got {d_prime_reserve}")
-    air = _air(course, air_density, headwind, crosswind)
+    air = piece_air(course, air_density, headwind, crosswind)
     bounds = _check_bounds(course, bounds)
     start_density = float(air.density[0])
     length = course.piece_length
@@ -620,8 +491,7 @@ def plan_fastest(
         speed, capped = _equal_effort_speeds(course, runner, effort, level, air,
                                              downhill_speed_ratio_cap)
         time = length / speed
-        power = metabolic_power(speed, course.grade, air.density, runner, air.headwind,
-                                air.crosswind)
+        power = piece_metabolic_power(course, runner, air, speed)
         equivalent = np.full(speed.shape, level)
         if capped.any():
             equivalent[capped] = speed_for_metabolic_power(power[capped], 0.0, start_density,
@@ -629,20 +499,10 @@ def plan_fastest(
         balance = distance_capacity_balance(equivalent, time, critical_speed, d_prime)
         return effort, speed, time, power, capped, balance
 
-    low = critical_speed
-    high = critical_speed * 1.05 + 0.1
-    while attempt(high)[-1].min() >= d_prime_reserve:
-        low, high = high, high * 1.5
-        if high > 12.0:
-            raise InputError("critical speed and D′ allow an unrealistically fast pace")
-    while high - low > tolerance:
-        middle = 0.5 * (low + high)
-        if attempt(middle)[-1].min() >= d_prime_reserve:
-            low = middle
-        else:
-            high = middle
+    low = highest_feasible_speed(lambda level: attempt(level)[-1].min() >= d_prime_reserve,
+                                 critical_speed, critical_speed * 1.05 + 0.1, tolerance)
     effort, speed, time, power, capped, balance = attempt(low)
-    reference = _reference(course, runner, air, power, time, effort)
+    reference = even_pace_reference(course, runner, air, power, time, effort)
     limited_speed = even_pace_within_limits(course, runner, critical_speed, d_prime,
                                             air.density, air.headwind, air.crosswind,
                                             d_prime_reserve, tolerance)
@@ -654,26 +514,18 @@ def plan_fastest(
             f"descent speed capped at {downhill_speed_ratio_cap:g} × flat-equivalent speed on "
             f"{capped.mean():.0%} of the course"
         )
-    even_power = metabolic_power(reference["even_pace_speed"], course.grade, air.density, runner,
-                                 air.headwind, air.crosswind)
-    even_lowest = float(plan_d_prime_balance(even_power, length / reference["even_pace_speed"],
-                                             runner, start_density, critical_speed,
-                                             d_prime).min())
+    even_lowest = lowest_even_pace_balance(course, runner, air, reference["even_pace_speed"],
+                                           critical_speed, d_prime)
     overdraw = (f" and overdrawing D′ (lowest balance {even_lowest:.0f} m)"
                 if even_lowest < d_prime_reserve else "")
     notes.extend(_comparison_note(float(time.sum()), reference, overdraw))
     notes.append(
         f"the fastest even pace within the same critical speed and D′ "
-        f"({_clock(1000.0 / limited_speed)} /km) would finish "
+        f"({pace_clock(1000.0 / limited_speed)} /km) would finish "
         f"{limited_time - float(time.sum()):.0f} s later: its climbs spend D′ faster"
     )
-    return RunningPlan(
-        strategy="fastest", speed=speed, time=time, metabolic_power=power, effort=effort,
-        flat_speed=float(low),
-        segments=_segments(course, bounds, speed, time, power, effort, air.headwind, balance),
-        d_prime_balance=balance, notes=tuple(notes), limited_even_pace_time=limited_time,
-        **reference,
-    )
+    return _running_plan("fastest", course, bounds, air, speed, time, power, effort, low,
+                         balance, notes, limited_even_pace_time=limited_time, **reference)
 
 
 RUNNING_STRATEGIES = ("equal-effort", "even-pace", "fastest")

@@ -28,7 +28,8 @@ def test_readable_summary_of_the_demo_loop(capsys):
     assert "Corravey hill loop" in out
     assert f"{course.total_distance / 1000:.2f} km" in out
     assert f"{course.ascent:.0f} m" in out and f"{course.raw_ascent:.0f} m" in out
-    for word in ("descent", "highest point", "lowest point", "Segments (by terrain and turns)", "climb"):
+    for word in ("descent", "highest point", "lowest point", "Segments (by terrain and turns)",
+                 "climb"):
         assert word in out
 
 

@@ -20,16 +20,19 @@ from test_running import (
     straight_course,
 )
 
+import pacing.even_pace
 import pacing.running
 import pacing.running_plans
 from pacing.course import synthetic_course
 from pacing.errors import InputError
-from pacing.running import critical_speed_flat_race_time, metabolic_power, running_cost_minetti
-from pacing.running_plans import (
-    DOWNHILL_SPEED_RATIO_CAP,
+from pacing.even_pace import (
     even_pace_for_mean_power,
     even_pace_within_limits,
     plan_d_prime_balance,
+)
+from pacing.running import critical_speed_flat_race_time, metabolic_power, running_cost_minetti
+from pacing.running_plans import (
+    DOWNHILL_SPEED_RATIO_CAP,
     plan_equal_effort,
     plan_even_pace,
     plan_fastest,
@@ -190,6 +193,11 @@ def test_the_plan_names_stay_importable_from_pacing_running():
         assert getattr(pacing.running, name) is getattr(pacing.running_plans, name)
     with pytest.raises(AttributeError):
         pacing.running.no_such_plan  # noqa: B018
+
+
+def test_the_even_pace_names_stay_importable_from_pacing_running_plans():
+    for name in ("even_pace_for_mean_power", "even_pace_within_limits", "plan_d_prime_balance"):
+        assert getattr(pacing.running_plans, name) is getattr(pacing.even_pace, name)
 
 
 # --------------------------------------------------------------------------- which plan is faster

@@ -24,7 +24,8 @@ def add_parser(subparsers: argparse._SubParsersAction) -> None:
     parser.add_argument("--step", type=float, default=None,
                         help="resampling step of the course [m] (default 10)")
     parser.add_argument("--segment-length", type=float, default=None,
-                        help="split into segments of this length [m] instead of by terrain (grade, turnarounds, at most 2 km)")
+                        help="split into segments of this length [m] instead of by terrain "
+                             "(grade, turnarounds, at most 2 km)")
     parser.add_argument("--flat", action="store_true",
                         help="treat a course without elevation as flat (with a warning)")
     parser.add_argument("--json", action="store_true", help="print JSON instead of a table")
