@@ -115,28 +115,67 @@ def steady_segment_times(
     -------
     (time [s], dtime/dpower [s/W], d²time/dpower² [s/W²]), each of length K.
     """
-    rider = model.rider
     power = np.asarray(segment_power, dtype=float)[model.segment]
     speed = _steady_speed(model, power)
-    along = speed + model.headwind
-    apparent = np.hypot(along, model.crosswind)
-    area = rider.drag_area * (1.0 - rider.drafting_reduction) + rider.wheel_drag_area
-    k = 0.5 * model.density * area
-    safe = np.where(apparent > 0, apparent, 1.0)
-    slope = k * (apparent + along**2 / safe) + rider.bearing_force_per_speed
-    curvature = k * (3.0 * along / safe - along**3 / safe**3)
-    efficiency = rider.drivetrain_efficiency
-    force = efficiency * np.maximum(power, 0.0) / speed
+    piece = _piece_constants(model)
+    drag = piece["drag"]
+    along = speed + model.headwind if piece["headwind"] else speed
+    if piece["calm_cross"]:
+        # no crosswind: apparent = |along|, so the slope is 2k·|along| and the curvature
+        # 2k·sign(along) (the general expressions below with w_c = 0)
+        pull = drag * np.abs(along)
+        slope = 2.0 * pull + piece["bearing"]
+        curvature = 2.0 * drag * np.sign(along)
+    else:
+        apparent = np.hypot(along, model.crosswind)
+        safe = np.where(apparent > 0, apparent, 1.0)
+        slope = drag * (apparent + along**2 / safe) + piece["bearing"]
+        curvature = drag * (3.0 * along / safe - along**3 / safe**3)
+    efficiency = model.rider.drivetrain_efficiency
+    inverse = 1.0 / speed
+    force = efficiency * np.maximum(power, 0.0) * inverse
     first = efficiency / (force + speed * slope)
     second = -(2.0 * slope + speed * curvature) * first**3 / efficiency
-    length = model.length
-    count = model.count
-    time = np.bincount(model.segment, length / speed, count)
-    dtime = np.bincount(model.segment, -length * first / speed**2, count)
-    d2time = np.bincount(
-        model.segment, length * (2.0 * first**2 / speed**3 - second / speed**2), count
-    )
-    return time, dtime, d2time
+    length_time = model.length * inverse  # L/v
+    first_time = length_time * first * inverse  # L·v′/v²
+    terms = np.empty((3, speed.size))
+    terms[0] = length_time
+    terms[1] = -first_time
+    terms[2] = first_time * (2.0 * first * inverse) - length_time * inverse * second
+    starts = piece["starts"]
+    if starts is None:
+        count = model.count
+        return tuple(np.bincount(model.segment, row, count) for row in terms)
+    sums = np.add.reduceat(terms, starts, axis=1)
+    return sums[0], sums[1], sums[2]
+
+
+def _piece_constants(model: SegmentModel) -> dict:
+    """Per-piece quantities of the power balance that do not depend on power, computed once
+    per model and kept in its cache: drag factor k = ½ρ·(CdA·(1 − drafting) + wheel CdA)
+    [kg/m], the speed-independent resistance (rolling, gravity, bearings) [N], the bearing
+    force per speed [N·s/m], the first piece of each segment, and whether the wind has a
+    headwind or crosswind component at all."""
+    cache = model.speed_guess
+    found = cache.get("piece")
+    if found is None:
+        rider = model.rider
+        pieces = model.segment.size
+        area = rider.drag_area * (1.0 - rider.drafting_reduction) + rider.wheel_drag_area
+        found = {
+            "drag": np.broadcast_to(0.5 * model.density * area, (pieces,)).copy(),
+            "constant": np.broadcast_to(
+                rolling_force(model.grade, rider) + gravity_force(model.grade, rider)
+                + rider.bearing_force_constant, (pieces,)).copy(),
+            "bearing": rider.bearing_force_per_speed,
+            "starts": np.flatnonzero(np.diff(model.segment, prepend=-1)),
+            "headwind": bool(np.any(model.headwind)),
+            "calm_cross": not np.any(model.crosswind),
+        }
+        if found["starts"].size != model.count or np.any(np.diff(model.segment) < 0):
+            found["starts"] = None  # not consecutive runs 0..K-1: sum with bincount
+        cache["piece"] = found
+    return found
 
 
 def _steady_speed(model: SegmentModel, power: np.ndarray) -> np.ndarray:
@@ -150,29 +189,31 @@ def _steady_speed(model: SegmentModel, power: np.ndarray) -> np.ndarray:
                                 model.crosswind)
         model.speed_guess["speed"] = speed
         return speed
-    constant = model.speed_guess.get("constant")
-    if constant is None:
-        constant = (rolling_force(model.grade, rider) + gravity_force(model.grade, rider)
-                    + rider.bearing_force_constant)
-        model.speed_guess["constant"] = constant
-    drag = 0.5 * model.density * (rider.drag_area * (1.0 - rider.drafting_reduction)
-                                  + rider.wheel_drag_area)
+    piece = _piece_constants(model)
+    drag, constant, bearing = piece["drag"], piece["constant"], piece["bearing"]
+    calm_cross = piece["calm_cross"]
     drive = rider.drivetrain_efficiency * np.maximum(power, 0.0)
     speed = guess.copy()
-    converged = np.zeros(speed.shape, dtype=bool)
+    step = np.full(speed.shape, np.inf)
     with np.errstate(all="ignore"):
         for _ in range(8):
-            along = speed + model.headwind
-            apparent = np.hypot(along, model.crosswind)
-            value = (drag * apparent * along + constant + rider.bearing_force_per_speed * speed
-                     - drive / speed)
-            slope = (drag * (apparent + along**2 / np.where(apparent > 0, apparent, 1.0))
-                     + rider.bearing_force_per_speed + drive / speed**2)
+            along = speed + model.headwind if piece["headwind"] else speed
+            pushed = drive / speed  # η·P/v
+            if calm_cross:
+                pull = drag * np.abs(along)  # k·|v_a|: drag k·|v_a|·v_a, slope 2k·|v_a|
+                value = pull * along + constant + bearing * speed - pushed
+                slope = 2.0 * pull + bearing + pushed / speed
+            else:
+                apparent = np.hypot(along, model.crosswind)
+                value = drag * apparent * along + constant + bearing * speed - pushed
+                slope = (drag * (apparent + along**2 / np.where(apparent > 0, apparent, 1.0))
+                         + bearing + pushed / speed)
             step = value / slope
             speed = speed - step
-            converged = np.abs(step) <= 1e-12 * np.abs(speed)
-            if converged.all():
+            # every piece within 1e-12 of its speed (a max against a min: one pass each)
+            if np.abs(step).max() <= 1e-12 * np.abs(speed).min():
                 break
+    converged = np.abs(step) <= 1e-12 * np.abs(speed)
     bad = ~(converged & np.isfinite(speed) & (speed > _MINIMUM_SPEED))
     if bad.any():
         speed[bad] = speed_for_power(power[bad], model.grade[bad], model.density[bad], rider,

@@ -264,13 +264,22 @@ def make_plan(course, bounds, rider: Rider, air, request: PlanRequest,
     lower, upper = power_limits(model, request)
     target_reserve = request.w_prime_reserve if request.uses_w_prime else None
     target_cap = request.effort_weighted_cap
-    reserve, cap = target_reserve, target_cap
+    # the solver aims at the middle of the band a verified limit is accepted in (kept, with
+    # less than _SLACK of slack), so a small steady-vs-inertial difference needs no new round
+    reserve = None if target_reserve is None else min(
+        target_reserve + 0.5 * _SLACK * float(request.w_prime), 0.999 * float(request.w_prime))
+    cap = None if target_cap is None else target_cap * (1.0 - 0.5 * _SLACK)
     reference = _reference(course, rider, air, options, request)
     best = None
     tried_reserve: list[tuple[float, float]] = []
     tried_cap: list[tuple[float, float]] = []
+    previous = None
     for rounds in range(_CORRECTION_ROUNDS + 1):
-        power, report = fastest_steady_plan(model, request, lower, upper, reserve, cap)
+        # a correction round only moves the solver's reserve or cap a little: it starts from
+        # the previous round's plan (the full search runs again only if that start fails)
+        power, report = fastest_steady_plan(model, request, lower, upper, reserve, cap,
+                                            start=previous)
+        previous = (power, report)
         report = replace(report, correction_rounds=rounds)
         plan = _finish_plan(course, bounds, rider, air, request, options, model, power,
                             (lower, upper), report, reference)

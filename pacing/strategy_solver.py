@@ -61,6 +61,10 @@ _POWER_TOLERANCE = 1e-11  # relative, on segment powers
 _PRICE_TOLERANCE = 1e-3  # slack left by the priced plan, relative to W′ or the cap
 _SLSQP_MAX_SEGMENTS = 120  # above this the dense SLSQP polish costs more than it gains
 _SLSQP_MARGIN = 5e-4  # limits given to SLSQP, inside the real ones, relative to W′ or the cap
+# SLSQP's stop on the objective (finish time over the constant plan's, ≈ 1): 1e-9 is about
+# 4 µs of a one-hour ride; at 1e-10 its steps zigzag along the W′ kink at CP until the
+# iteration limit (100 iterations against 65 on the demo course, same finish time to 1 ms)
+_SLSQP_FTOL = 1e-9
 _GROUP_MIN_LENGTH = 300.0  # shortest stretch of the grouped (coarse) problem [m]
 _GROUP_MAX_COUNT = 60  # most stretches in the grouped problem (its SLSQP stays cheap)
 _CHUNK_COUNT = 80  # about this many runs of segments stand for a split too fine for SLSQP
@@ -366,10 +370,28 @@ def _slsqp_plan(model, request, lower, upper, start, reserve, cap, counter):
         result = optimize.minimize(
             objective, np.clip(start, lower, upper) / mean, jac=objective_gradient,
             bounds=list(zip(lower / mean, upper / mean, strict=True)), constraints=constraints,
-            method="SLSQP", options={"maxiter": 100, "ftol": 1e-10},
+            method="SLSQP", options={"maxiter": 100, "ftol": _SLSQP_FTOL},
         )
     power = np.clip(result.x * mean, lower, upper)
     return power, result
+
+
+def _warm_plan(model, request, lower, upper, start, reserve, cap, reserve_used, cap_used,
+               meets, counter):
+    """SLSQP from a nearby problem's plan (`start`), with the limits that bind; (power, result)
+    when its answer keeps them and the coupling constraint, else None."""
+    polished, result = _slsqp_plan(
+        model, request, lower, upper, np.asarray(start[0], dtype=float),
+        None if reserve_used is None else reserve_used + _SLSQP_MARGIN * float(request.w_prime),
+        None if cap_used is None else cap_used * (1 - _SLSQP_MARGIN), counter)
+    polished = _on_coupling(model, request, polished, lower, upper, counter)
+    centre, target = _coupling(request, model)
+    time, _, _ = steady_segment_times(model, polished)
+    coupling_gap = abs(float(np.sum((polished - centre) * time)) - target)
+    if meets(polished, 1e-6) and coupling_gap <= 1e-7 * float(request.mean_power) * float(
+            time.sum()):
+        return polished, result
+    return None
 
 
 def _on_coupling(model, request, power, lower, upper, counter) -> np.ndarray:
@@ -574,6 +596,7 @@ def fastest_steady_plan(
     cap: float | None = None,
     *,
     coarse_start: bool = True,
+    start: tuple[np.ndarray, SolverReport] | None = None,
 ) -> tuple[np.ndarray, SolverReport]:
     """Fastest segment powers in the steady-state segment model.
 
@@ -587,6 +610,10 @@ def fastest_steady_plan(
     coarse_start : when a limit binds, also solve the problem with one power per run of
         climb, flat or descent segments and start from that plan when it is faster, so a finer
         split is never slower than that coarser one (method then starts with "grouped+").
+    start : (segment power [W], SolverReport) of the same request solved with a nearby reserve
+        or cap (the verifying round's previous solve): when a limit binds, SLSQP polishes from
+        that plan instead of searching for a feasible start again; when its answer breaks a
+        limit or the coupling constraint, the full solve runs as without it.
 
     Returns
     -------
@@ -638,6 +665,23 @@ def fastest_steady_plan(
                  >= reserve - slack * float(request.w_prime))
                 and (cap is None or _raw_effort(power, time) <= cap * (1 + slack)))
 
+    if start is not None and model.count <= _SLSQP_MAX_SEGMENTS:
+        warm = _warm_plan(model, request, lower, upper, start, reserve, cap, reserve_used,
+                          cap_used, meets, counter)
+        if warm is not None:
+            power, result = warm
+            time, _, _ = steady_segment_times(model, power)
+            active = []
+            if breaks_w_prime and _segment_w_prime(power, time, request).min() <= reserve + (
+                    2 * _PRICE_TOLERANCE * float(request.w_prime)):
+                active.append("w-prime-reserve")
+            if breaks_cap and _raw_effort(power, time) >= cap * (1 - 2 * _PRICE_TOLERANCE):
+                active.append("effort-cap")
+            method = start[1].method if start[1].method.endswith("+slsqp") else (
+                start[1].method + "+slsqp")
+            return power, SolverReport(method, multiplier, iterations + int(result.nit),
+                                       counter[0], float("nan"), str(result.message),
+                                       active=tuple(active))
     mean = float(request.mean_power)
     constant = np.full(model.count, mean)
     if not meets(constant):

@@ -15,7 +15,14 @@ CAUTION = (
     "Ride within your skills and the road; obey traffic law and race rules. Consult a physician "
     "before hard efforts."
 )
-"""Printed under every human-readable prediction (not in JSON output)."""
+"""Printed under every human-readable cycling prediction (not in JSON output)."""
+
+RUNNING_CAUTION = (
+    "Caution: predicted paces, above all on descents, are model estimates, not safe limits. "
+    "Run within your skills and the footing; obey traffic law and race rules. Consult a "
+    "physician before hard efforts, and take heat seriously."
+)
+"""Printed under every human-readable running prediction (not in JSON output)."""
 
 
 def add_air_flags(parser: argparse.ArgumentParser) -> None:

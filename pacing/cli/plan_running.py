@@ -15,7 +15,7 @@ import warnings
 
 from pacing import units
 from pacing.athlete import Athlete
-from pacing.cli.common import CAUTION
+from pacing.cli.common import RUNNING_CAUTION
 from pacing.conditions import Conditions, air_along_course
 from pacing.course import split_by_grade, split_every
 from pacing.errors import InputError
@@ -313,5 +313,5 @@ def run(args: argparse.Namespace) -> int:
         sys.stdout.write("\n")
     else:
         print(plan_as_table(plan, runner))
-        print(CAUTION)
+        print(RUNNING_CAUTION)
     return 0
