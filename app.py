@@ -84,13 +84,14 @@ def show_error(error: Exception, where: str = "") -> None:
 
 system = st.sidebar.radio("Units", ("metric", "imperial"), key="units",
                           help="applies to every input, chart, table and download")
-st.sidebar.caption(text.SPEED_CAUTION)
+st.sidebar.caption(text.speed_caution(st.session_state.get("sport", "cycling")))
 st.sidebar.caption(text.EXERTION_CAUTION)
 
 st.title("Race plan")
 st.caption("Load a course, describe the athlete and the day, and take away segment targets.")
 
 course = None
+split = None
 course_key = ""
 bounds = None
 map_slot = None
@@ -101,16 +102,31 @@ try:
     demos = pipeline.demo_routes()
 except OSError:
     demos = {}
+
+
+def leave_library_course() -> None:
+    """Choosing a demo course or a file puts the page back on it (off a reopened plan's)."""
+    st.session_state.pop(library_panel.LIBRARY_COURSE, None)
+
+
 cols = st.columns([2, 3])
 choice = cols[0].selectbox("Demo course", list(demos) or ["(none available yet)"],
-                           key="demo_route", disabled=not demos,
+                           key="demo_route", disabled=not demos, on_change=leave_library_course,
                            help="invented courses shipped with the program")
-upload = cols[1].file_uploader("…or your own course (GPX)", type=["gpx"], key="upload_gpx")
+upload = cols[1].file_uploader("…or your own course (GPX)", type=["gpx"], key="upload_gpx",
+                               on_change=leave_library_course)
 allow_flat = cols[1].checkbox("A file without heights is a flat course", key="allow_flat",
                               help="otherwise such a file is refused")
 smoothing = sections.smoothing_inputs(system)
 source_bytes, source_name = None, None
-if upload is not None:
+library_course = st.session_state.get(library_panel.LIBRARY_COURSE)
+if library_course:
+    source_bytes, source_name = library_course["gpx"], library_course["name"]
+    cols = st.columns([4, 1])
+    cols[0].info(f"Course of the saved plan {library_course['plan']!r} from the library: "
+                 f"{source_name}. Choose a demo course or a file to leave it.")
+    cols[1].button("Leave it", key="leave_library_course", on_click=leave_library_course)
+elif upload is not None:
     source_bytes, source_name = upload.getvalue(), Path(upload.name).stem
 elif demos:
     source_bytes, source_name = read_demo(str(demos[choice])), choice
@@ -183,14 +199,14 @@ else:
         show_error(error, "Prediction")
 if outcome is not None:
     sections.outcome_headline(outcome, system)
-    st.warning(text.SPEED_CAUTION)
+    st.warning(text.speed_caution(outcome.sport))
     if outcome.exhausted_at is not None:
         st.warning(
             "⚠ W′ runs out at "
             f"{format_quantity(outcome.exhausted_at, 'distance', system, 1)}: this plan asks "
             "more than the athlete's critical power and W′ allow. Lower the power or choose "
             "the quickest plan within limits.")
-    for note in outcome.notes:
+    for note in pipeline.notes_in(outcome, system):
         st.caption(f"Note: {note}")
     st.plotly_chart(cached_along(outcome_key, outcome, system), key="along")
     st.subheader("Segment targets")
@@ -218,7 +234,8 @@ if st.toggle("Compare positions and equipment on this course", key="show_setups"
 # 8 · coach's library ---------------------------------------------------------------------
 st.header(text.SECTION_LIBRARY)
 library_panel.render_library_for_page(source_bytes, source_name, course, bounds, athlete,
-                                      weather, approach, smoothing, allow_flat, outcome, system)
+                                      weather, approach, smoothing, allow_flat, outcome, system,
+                                      split=split)
 
 # 9 · measure drag area on the road -------------------------------------------------------
 st.header(text.SECTION_ROAD_TEST)

@@ -353,3 +353,120 @@ def test_the_app_cleans_elevation_like_the_command_line(app):
     assert app.number_input(key="smooth_window:metric").value == defaults.window
     assert app.number_input(key="max_grade_pct:metric").value == defaults.max_grade * 100.0
     assert metric(app, "Climbing, cleaned") == f"{load_course(DEFAULT_DEMO_ROUTE).ascent:.0f} m"
+
+
+# ------------------------------------------------------------------ reopening a saved plan
+
+def test_a_saved_plan_reopens_in_the_page_with_its_course_split_and_approach(tmp_path,
+                                                                              monkeypatch):
+    # Review 2, finding 1: "Show in the page" filled only the numbers and left the page on
+    # the demo course with even power. The whole plan must come back: its stored course (an
+    # uploaded file, not a demo), smoothing, segments, sport, numbers and pacing approach.
+    monkeypatch.setenv("PACING_DATABASE_URL", str(tmp_path / "library.sqlite3"))
+    app = started()
+    app.file_uploader(key="upload_gpx").set_value(
+        ("hill road.gpx", small_gpx(8.0, 80.0), "application/gpx+xml")).run()
+    app.number_input(key="smooth_window:metric").set_value(150.0).run()
+    app.radio(key="split_mode").set_value("fixed length").run()
+    app.number_input(key="split_length:metric").set_value(2.0).run()
+    app.radio(key="approach").set_value("Quickest within my limits").run()
+    app.number_input(key="wind_speed:metric").set_value(18.0).run()
+    app.number_input(key="wind_from:metric").set_value(90.0).run()
+    app.number_input(key="body_mass:metric").set_value(65.0).run()
+    no_failure(app)
+    assert not app.error, [e.value for e in app.error]
+    saved = {label: metric(app, label)
+             for label in ("Finish time", "Distance", "Gained on even power")}
+    saved_table = targets(app)
+    app.text_input(key="library_plan_name").input("hill fastest windy")
+    app.button(key="library_save").click().run()
+    assert any("Saved 'hill fastest windy'" in s.value for s in app.success)
+
+    page = started()  # a new visit: demo course, even power, no wind
+    assert metric(page, "Finish time") != saved["Finish time"]
+    page.button(key="library_open").click().run()
+    no_failure(page)
+    assert not page.error, [e.value for e in page.error]
+    assert {label: metric(page, label) for label in saved} == saved
+    assert page.radio(key="approach").value == "Quickest within my limits"
+    assert page.radio(key="split_mode").value == "fixed length"
+    assert len(targets(page)) == len(saved_table) >= 4  # 8 km, every 2 km
+    assert targets(page)["Split [h:mm:ss]"].tolist() == saved_table["Split [h:mm:ss]"].tolist()
+
+    # choosing a demo course leaves the saved plan's course
+    demos = page.selectbox(key="demo_route").options
+    if len(demos) > 1:
+        page.selectbox(key="demo_route").set_value(demos[1]).run()
+        no_failure(page)
+        assert metric(page, "Distance") != saved["Distance"]
+
+
+def test_a_saved_running_plan_reopens_in_imperial(tmp_path, monkeypatch):
+    monkeypatch.setenv("PACING_DATABASE_URL", str(tmp_path / "library.sqlite3"))
+    app = started()
+    app.radio(key="units").set_value("imperial").run()
+    app.radio(key="sport").set_value("running").run()
+    app.radio(key="running_approach").set_value("Even pace (for comparison)").run()
+    app.radio(key="split_mode").set_value("my own marks").run()
+    app.text_input(key="split_marks").set_value("3, 7.5, 12").run()  # miles
+    app.text_input(key="flat_pace:imperial").set_value("8:30").run()
+    no_failure(app)
+    assert not app.error, [e.value for e in app.error]
+    finish, table = metric(app, "Finish time"), targets(app)
+    app.text_input(key="library_plan_name").input("long run")
+    app.button(key="library_save").click().run()
+
+    page = started()
+    page.radio(key="units").set_value("imperial").run()
+    page.button(key="library_open").click().run()
+    no_failure(page)
+    assert not page.error, [e.value for e in page.error]
+    assert metric(page, "Finish time") == finish
+    assert page.radio(key="sport").value == "running"
+    assert page.radio(key="running_approach").value == "Even pace (for comparison)"
+    assert targets(page)["To [mi]"].tolist() == table["To [mi]"].tolist()
+
+
+# ------------------------------------------------------------------ words that fit the page
+
+def test_running_notes_and_pace_errors_follow_imperial_units():
+    # Review 2, finding 3: a running note said "(5:07 /km)" and the pace-range error said
+    # "per km" with imperial units chosen.
+    app = started()
+    app.radio(key="units").set_value("imperial").run()
+    app.radio(key="sport").set_value("running").run()
+    no_failure(app)
+    notes = [c.value for c in app.caption if c.value.startswith("Note:")]
+    assert any("even pace at the same mean effort" in n and " /mi)" in n for n in notes), notes
+    assert not any("/km" in n for n in notes), notes
+    app.text_input(key="flat_pace:imperial").set_value("0:30").run()
+    no_failure(app)
+    errors = [e.value for e in app.error]
+    # 2:00 and 15:00 per km are 3:13 and 24:08 per mile (1 mi = 1.609344 km, NIST SP 811)
+    assert any("between 3:13 and 24:08 per mile" in e for e in errors), errors
+    assert not any("per km" in e for e in errors), errors
+
+
+def test_runners_are_told_to_run_and_riders_to_ride():
+    # Review 2, finding 4: the caution for runners said "Ride within your skills".
+    app = started()
+    cautions = [w.value for w in app.warning] + [c.value for c in app.sidebar.caption]
+    assert any("Ride within" in c for c in cautions)
+    app.radio(key="sport").set_value("running").run()
+    no_failure(app)
+    cautions = [w.value for w in app.warning] + [c.value for c in app.sidebar.caption]
+    assert any("Run within" in c for c in cautions)
+    assert not any("Ride within" in c for c in cautions), cautions
+
+
+@pytest.mark.parametrize("typed", [1.0, 2000.0])
+def test_a_number_outside_its_range_is_said_not_dropped(typed):
+    # Review 2, finding 10: an out-of-range power left the page unchanged without a word.
+    app = started()
+    finish = metric(app, "Finish time")
+    app.number_input(key="mean_power:metric").set_value(typed).run()
+    no_failure(app)
+    errors = [e.value for e in app.error]
+    assert any(e.startswith("Average power [W]:") and "is outside 30 to 800" in e
+               and "the page keeps 240" in e for e in errors), errors
+    assert metric(app, "Finish time") == finish

@@ -492,3 +492,68 @@ def test_steady_fastest_plan_on_a_split_is_not_slower_than_on_a_coarser_split_in
         times.append(steady_total(model, power))
     assert times[1] <= times[0] * 1.0005
     assert times[2] <= times[1] * 1.0005
+
+
+# ------------------------------------------------------------- speed of the segment model
+
+
+@settings(max_examples=10, deadline=None)
+@given(st.integers(0, 10_000), st.floats(50.0, 500.0), st.booleans())
+def test_segment_times_match_the_speed_solver_and_finite_differences(seed, mean, calm):
+    # t_k = Σ L_i / v_i with v_i from pacing.cycling.speed_for_power (its own bracketed
+    # Newton solver on the Martin et al. 1998 balance), and t_k′, t_k″ against central
+    # differences (mathematical fact). A second call with other powers takes the warm Newton
+    # path from the first call's speeds; calm air takes the no-crosswind shortcut.
+    course, bounds, air = random_course(seed)
+    if calm:
+        air = CourseAir(air.density, np.zeros_like(air.headwind), np.zeros_like(air.crosswind))
+    model = segment_model(course, bounds, RIDER, air)
+    rng = np.random.default_rng(seed)
+    steady_segment_times(model, np.full(model.count, mean))  # the cold start
+    power = mean * rng.uniform(0.5, 1.5, model.count)
+    time, dtime, d2time = steady_segment_times(model, power)
+    speed = speed_for_power(power[model.segment], model.grade, model.density, RIDER,
+                            model.headwind, model.crosswind)
+    expected = np.bincount(model.segment, model.length / speed, model.count)
+    np.testing.assert_allclose(time, expected, rtol=1e-10)
+    step = 1e-3 * power
+    up = steady_segment_times(model, power + step)
+    down = steady_segment_times(model, power - step)
+    np.testing.assert_allclose(dtime, (up[0] - down[0]) / (2 * step), rtol=1e-5)
+    np.testing.assert_allclose(d2time, (up[1] - down[1]) / (2 * step), rtol=1e-4)
+
+
+def test_segment_times_of_segments_not_in_course_order_are_still_summed_by_segment():
+    # A model whose segment numbers do not run in course order (a grouping of pieces made by
+    # hand) sums each segment's pieces all the same (mathematical fact: a sum does not depend
+    # on the order of its terms).
+    from dataclasses import replace
+
+    course, bounds, air = random_course(7)
+    model = segment_model(course, bounds, RIDER, air)
+    order = np.arange(model.count)[::-1]
+    shuffled = replace(model, segment=order[model.segment], speed_guess={})
+    power = np.linspace(180.0, 320.0, model.count)
+    for plain, mixed in zip(steady_segment_times(model, power),
+                            steady_segment_times(shuffled, power[order]), strict=True):
+        np.testing.assert_allclose(mixed[order], plain, rtol=1e-12)
+
+
+def test_a_correction_round_started_from_the_previous_plan_is_as_good_as_a_fresh_solve():
+    # The verifying rounds move the solver's W′ reserve a little and start from the previous
+    # round's plan; the answer keeps the new reserve and is as fast as a full solve (within
+    # 0.01 %, SLSQP's own stop) (property of the method).
+    course, bounds, air = hilly()
+    model = segment_model(course, bounds, RIDER, air)
+    request = PlanRequest(strategy="fastest", mean_power=MEAN, critical_power=300.0,
+                          w_prime=20000.0, w_prime_reserve=2000.0)
+    lower, upper = power_limits(model, request)
+    first = fastest_steady_plan(model, request, lower, upper, 2000.0, None)
+    fresh, _ = fastest_steady_plan(model, request, lower, upper, 2400.0, None)
+    warm, report = fastest_steady_plan(model, request, lower, upper, 2400.0, None, start=first)
+    time = steady_segment_times(model, warm)[0]
+    assert w_prime_balance(warm, time, 300.0, 20000.0).min() >= 2400.0 - 1e-6 * 20000.0
+    assert time_weighted_mean(model, warm) == pytest.approx(MEAN, rel=1e-6)
+    assert steady_total(model, warm) <= steady_total(model, fresh) * (1 + 1e-4)
+    assert report.method.startswith("lagrange+")
+    assert "w-prime-reserve" in report.active

@@ -717,3 +717,82 @@ def test_library_mount_without_a_course_still_offers_the_library(tmp_path):
     no_failure(app)
     assert not app.error
     assert any("no plan to save" in c.value for c in app.caption)
+
+
+# ------------------------------------------------------------ a saved plan back in the page
+
+def test_a_plan_saved_without_its_segment_choice_reopens_on_the_same_bounds():
+    # Plans saved before the segment choice was kept carry only their bounds: the page gets
+    # them back as "my own marks" at those points' distances, in the page's units.
+    import numpy as np
+
+    from pacing.course import synthetic_course
+    from ui.pipeline import segment_bounds
+
+    distance = np.linspace(0.0, 12340.0, 1235)
+    course = synthetic_course(distance, 100 + 30 * np.sin(distance / 900.0))
+    bounds = [0, 137, 640, 1001, 1234]
+    for system in ("metric", "imperial"):
+        state = library_panel.plan_page_state({"bounds": bounds}, system, course)
+        assert state["split_mode"] == "my own marks"
+        from pacing.units import from_display
+        from ui.pipeline import parse_marks
+
+        marks = tuple(from_display(v, "distance", system)
+                      for v in parse_marks(state["split_marks"]))
+        assert segment_bounds(course, "my own marks", None, marks).tolist() == bounds
+
+
+def test_plan_page_state_sets_the_approach_terrain_and_smoothing():
+    inputs = {"athlete": {"sport": "cycling", "body_mass": 65.0, "drag_area": 0.25},
+              "weather": {"wind_speed": 5.0, "roughness_length": 0.03},
+              "approach": {"strategy": "target-time", "target_time": 3725.0,
+                           "allow_zero_on_descents": True},
+              "smoothing": {"window": 150.0, "max_grade": 0.2, "allow_flat": True},
+              "split": {"mode": "fixed length", "length": 2000.0, "marks": []}}
+    state = library_panel.plan_page_state(inputs, "metric")
+    assert state["approach"] == "Reach a finish time"
+    assert state["target_time"] == "1:02:05"
+    assert state["coast_descents"] is True
+    assert state["si:body_mass"] == 65.0 and state["si:wind_speed"] == 5.0
+    assert state["si:smooth_window"] == 150.0 and state["si:max_grade_pct"] == pytest.approx(20)
+    assert state["allow_flat"] is True
+    assert state["split_mode"] == "fixed length" and state["si:split_length"] == 2000.0
+    assert state["cda_preset"] == "my own value"
+    from pacing.wind import ROUGHNESS_LENGTHS
+
+    assert ROUGHNESS_LENGTHS[state["terrain"]] == 0.03
+
+
+def test_running_notes_show_paces_per_mile_in_imperial():
+    import numpy as np
+
+    from ui.pipeline import Outcome, notes_in
+
+    speed = 1000.0 / 307.0  # 5:07 per km
+    outcome = Outcome(sport="running", finish_time=1.0, average_speed=1.0, max_speed=1.0,
+                      average_power=None, time_saved=None, distance=np.zeros(2),
+                      speed=np.zeros(2), power=None, headwind=None, w_prime_balance=None,
+                      rows=[], notes=["even pace at the same mean effort (5:07 /km) would",
+                                      "the fastest even pace (4:00 /km) would"],
+                      note_paces=(("(5:07 /km)", speed),))
+    assert notes_in(outcome, "metric") == outcome.notes
+    # 307 s/km × 1.609344 = 494.07 s/mi = 8:14 (1 mi = 1.609344 km, NIST SP 811);
+    # 240 s/km × 1.609344 = 386.24 s/mi = 6:26
+    assert notes_in(outcome, "imperial") == ["even pace at the same mean effort (8:14 /mi) would",
+                                             "the fastest even pace (6:26 /mi) would"]
+
+
+def test_the_road_test_says_its_cda_leaves_out_the_wheel_and_bearing_terms():
+    # Review 2, finding 9. F_w = 0.0044 m² is Martin et al. (1998)'s rotating-wheel term
+    # (REFERENCES.md, cycling power balance).
+    note = fieldtest_panel.road_test_cda_note()
+    assert "F_w = 0.0044 m²" in note and "bearing" in note and "Martin et al." in note
+    assert "wind-tunnel" in note
+
+
+def test_an_out_of_range_number_names_its_range_and_what_is_kept():
+    from ui.widgets import out_of_range_message
+
+    assert out_of_range_message("Average power [W]", 2000.0, 30.0, 800.0, 240.0, 0) == (
+        "Average power [W]: 2000 is outside 30 to 800; the page keeps 240")

@@ -225,6 +225,15 @@ def lap_figure(estimate, system: str) -> go.Figure:
 
 # ------------------------------------------------------------------------------ Streamlit
 
+def road_test_cda_note() -> str:
+    """What the measured CdA leaves out: the rotating-wheel area F_w and the bearing friction
+    of Martin et al. (1998), which the fit takes off and the race model adds back."""
+    from pacing.cycling import MARTIN_1998
+    from ui.text import ROAD_TEST_CDA_NOTE
+
+    return ROAD_TEST_CDA_NOTE.format(wheel=MARTIN_1998["wheel_drag_area"])
+
+
 def _first_line(error: Exception) -> str:
     text = str(error).strip()
     return text.splitlines()[0] if text else type(error).__name__
@@ -358,6 +367,7 @@ def render_fieldtest(system: str, location=None, athlete_id: int | None = None):
     st.dataframe(position_table(result), hide_index=True, key="ft_positions")
     st.caption(rolling_line(result) + f" · air density {run.air_density:.3f} kg/m³ · "
                f"{result.laps} laps")
+    st.caption(road_test_cda_note())
     for line in difference_lines(result):
         st.markdown(f"- {line}")
     for warning in result.warnings:

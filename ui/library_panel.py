@@ -11,7 +11,8 @@ Plan inputs saved by this panel (`page_plan_inputs`, all SI)::
     {"course_id": int, "course_name": str, "course_distance": m, "course_ascent": m,
      "smoothing": {"window": m, "max_grade": -, "allow_flat": bool}, "bounds": [int, ...],
      "athlete": {...ui.sections.athlete_inputs...}, "weather": {...Conditions fields...},
-     "approach": {...ui.sections.approach_inputs...}, "athlete_id"?: int, "setup_id"?: int}
+     "approach": {...ui.sections.approach_inputs...}, "athlete_id"?: int, "setup_id"?: int,
+     "split"?: {"mode": str, "length": m or None, "marks": [m, ...]}}
 
 The course's GPX file is stored once in the library (a file already stored is reused) and
 the plan names it by ``course_id``; `recompute_plan` reads it back to work the plan out again.
@@ -83,7 +84,7 @@ def error_message(error: Exception) -> str:
 
 def page_plan_inputs(course_gpx: bytes, course_name: str, course, bounds, athlete: dict,
                      weather: dict, approach: dict, smoothing: dict,
-                     allow_flat: bool = False) -> dict:
+                     allow_flat: bool = False, split: dict | None = None) -> dict:
     """The `current_inputs` of render_library from the page's values.
 
     Parameters
@@ -91,7 +92,9 @@ def page_plan_inputs(course_gpx: bytes, course_name: str, course, bounds, athlet
     course_gpx : the course file's bytes; course_name : its label; course : the Course made
     from it (for its distance [m] and ascent [m]); bounds : segment boundary point indices;
     athlete, weather, approach : ui.sections dicts (SI); smoothing : {"window" [m],
-    "max_grade" [-]}; allow_flat : a file without heights was read as flat.
+    "max_grade" [-]}; allow_flat : a file without heights was read as flat; split : how
+    the page cut the course (ui.sections.split_inputs: "mode", "length" [m], "marks" [m]),
+    kept so "Show in the page" can set the same choice again.
     """
     return {
         "course_gpx": bytes(course_gpx),
@@ -105,6 +108,10 @@ def page_plan_inputs(course_gpx: bytes, course_name: str, course, bounds, athlet
         "athlete": dict(athlete),
         "weather": dict(weather),
         "approach": dict(approach),
+        **({} if split is None else {"split": {
+            "mode": str(split["mode"]),
+            "length": None if split.get("length") is None else float(split["length"]),
+            "marks": [float(m) for m in split.get("marks") or ()]}}),
     }
 
 
@@ -231,6 +238,128 @@ def fill_page_inputs(values: Mapping[str, Any]) -> None:
         st.session_state["crr_preset"] = own
 
 
+LIBRARY_COURSE = "library:course"
+"""Session key of the course file the page shows instead of its demo or upload after "Show
+in the page": {"gpx": bytes, "name": str, "plan": the saved plan's name}."""
+
+
+def _split_marks_text(marks, system: str) -> str:
+    """Split marks [m] as the page's text input shows them (km or mi, 4 decimals: 0.1 m)."""
+    shown = (to_display(float(m), "distance", system) for m in marks)
+    return ", ".join(f"{v:.4f}".rstrip("0").rstrip(".") for v in shown)
+
+
+def plan_page_state(inputs: Mapping[str, Any], system: str, course=None) -> dict:
+    """The page's widget states that show a saved plan (pure; `open_plan_in_page` applies
+    them): sport, plan radio and its limits, smoothing, "file without heights", terrain and
+    the segment choice. Numbers under ui.widgets stores are returned as "si:<key>" entries
+    (SI or the stored factor, see PAGE_WIDGETS).
+
+    Parameters
+    ----------
+    inputs : the saved plan inputs (page_plan_inputs).
+    system : "metric" or "imperial": the page's units, for the split marks' text.
+    course : the Course of the saved file; only needed for plans saved without their segment
+        choice, whose saved bounds then become "my own marks" at those points' distances.
+    """
+    from pacing.units import format_duration
+    from pacing.wind import ROUGHNESS_LENGTHS
+    from ui import text
+
+    state: dict = {}
+    athlete = inputs.get("athlete") or {}
+    weather = inputs.get("weather") or {}
+    approach = inputs.get("approach") or {}
+    smoothing = inputs.get("smoothing") or {}
+    values = {**athlete, **weather, **approach}
+    for key, value in values.items():
+        if key in PAGE_WIDGETS and value is not None:
+            store, factor = PAGE_WIDGETS[key]
+            state[f"si:{store}"] = float(value) * factor
+    if "window" in smoothing:
+        state["si:smooth_window"] = float(smoothing["window"])
+    if "max_grade" in smoothing:
+        state["si:max_grade_pct"] = float(smoothing["max_grade"]) * 100.0
+    if "allow_flat" in smoothing:
+        state["allow_flat"] = bool(smoothing["allow_flat"])
+    sport = athlete.get("sport")
+    if sport in ("cycling", "running"):
+        state["sport"] = sport
+    strategy = approach.get("strategy")
+    choices = text.RUNNING_APPROACHES if sport == "running" else text.APPROACHES
+    label = next((k for k, v in choices.items() if v == strategy), None)
+    if label is not None:
+        state["running_approach" if sport == "running" else "approach"] = label
+    if approach.get("target_time") is not None:
+        state["target_time"] = format_duration(float(approach["target_time"]))
+    if "allow_zero_on_descents" in approach:
+        state["coast_descents"] = bool(approach["allow_zero_on_descents"])
+    if athlete.get("drag_area") is not None:
+        own = next((k for k, v in text.DRAG_AREA_PRESETS.items() if v is None), None)
+        if own is not None:
+            state["cda_preset"] = own
+    if athlete.get("rolling_coefficient") is not None:
+        own = next((k for k, v in text.ROLLING_PRESETS.items() if v is None), None)
+        if own is not None:
+            state["crr_preset"] = own
+    roughness = weather.get("roughness_length")
+    terrain = next((k for k, v in ROUGHNESS_LENGTHS.items() if roughness is not None
+                    and abs(v - float(roughness)) <= 1e-12), None)
+    if terrain is not None:
+        state["terrain"] = terrain
+    split = inputs.get("split")
+    if split:
+        state["split_mode"] = split["mode"]
+        if split.get("length") is not None:
+            state["si:split_length"] = float(split["length"])
+        if split.get("marks"):
+            state["split_marks"] = _split_marks_text(split["marks"], system)
+    elif course is not None and inputs.get("bounds"):
+        inner = [int(b) for b in inputs["bounds"][1:-1]]
+        distance = course.distance
+        state["split_mode"] = "my own marks"
+        state["split_marks"] = _split_marks_text(
+            [float(distance[b] - distance[0]) for b in inner], system)
+    return state
+
+
+def open_plan_in_page(library, inputs: Mapping[str, Any], plan_name: str = "") -> None:
+    """Show a saved plan in the page (a button's on_click, run before the page is drawn
+    again): its stored course file (LIBRARY_COURSE), then every input plan_page_state gives.
+    A plan that cannot be shown leaves the page as it was and says why."""
+    try:
+        course = None
+        gpx = None
+        course_id = inputs.get("course_id")
+        if course_id is not None:
+            gpx = library.course(int(course_id)).gpx
+            if not inputs.get("split") and inputs.get("bounds"):
+                from ui import pipeline
+
+                smoothing = inputs.get("smoothing") or {}
+                course = pipeline.load_course_from_bytes(
+                    gpx, inputs.get("course_name") or "course",
+                    smoothing.get("window", 200.0), smoothing.get("max_grade", 0.25),
+                    smoothing.get("allow_flat", False))
+        state = plan_page_state(inputs, st.session_state.get("units", "metric"), course)
+    except (InputError, ConflictError, KeyError, TypeError, ValueError) as error:
+        st.session_state["library:open_error"] = (
+            f"The saved plan cannot be shown in the page: {error_message(error)}")
+        return
+    if gpx is not None:
+        st.session_state[LIBRARY_COURSE] = {"gpx": bytes(gpx),
+                                            "name": inputs.get("course_name") or "course",
+                                            "plan": plan_name}
+    for key, value in state.items():
+        st.session_state[key] = value
+        if key.startswith("si:"):
+            for system in ("metric", "imperial"):
+                st.session_state.pop(f"{key[3:]}:{system}", None)
+    st.session_state["library:message"] = (
+        f"The page now shows the saved plan {plan_name!r}." if plan_name else
+        "The page now shows the saved plan.")
+
+
 # ------------------------------------------------------------------------ tables
 
 def _stamp(value) -> str:
@@ -304,7 +433,9 @@ def _open(location_key: str, _location):
 
 
 def _library(location):
-    key = "" if location is None else str(location)
+    import os
+
+    key = (os.environ.get("PACING_DATABASE_URL", "") if location is None else str(location))
     return _open(key, location)
 
 
@@ -353,6 +484,9 @@ def render_library(current_inputs: dict | None, current_result: dict | None, sys
     message = st.session_state.pop("library:message", None)
     if message:
         st.success(message)
+    failure = st.session_state.pop("library:open_error", None)
+    if failure:
+        st.error(failure, icon="⚠️")
     chosen: dict | None = None
     tabs = st.tabs(["Athletes and setups", "Save this plan", "Saved plans", "Backup"])
     with tabs[0]:
@@ -504,11 +638,10 @@ def _plans_tab(library, system: str, compute) -> dict | None:
                     "Saved": [str(d.saved) for d in report.differences],
                     "Now": [str(d.recomputed) for d in report.differences],
                 }), hide_index=True, key="library_differences")
-    page = {**(record.inputs.get("athlete") or {}), **(record.inputs.get("weather") or {}),
-            **(record.inputs.get("approach") or {})}
-    if cols[1].button("Show in the page", key="library_open", on_click=fill_page_inputs,
-                      args=(page,), help="fills the athlete, equipment, weather and power "
-                                         "inputs with the plan's"):
+    if cols[1].button("Show in the page", key="library_open", on_click=open_plan_in_page,
+                      args=(library, record.inputs, record.name),
+                      help="the page takes the plan's stored course, segments, athlete, "
+                           "equipment, weather and pacing approach"):
         result = {"action": "open", "plan_id": record.id, "plan": record,
                   "inputs": record.inputs}
     with st.expander("Delete this plan…", expanded=False):
@@ -557,7 +690,7 @@ def _backup_tab(library) -> None:
 def render_library_for_page(course_gpx: bytes | None, course_name: str | None, course, bounds,
                             athlete: dict | None, weather: dict | None, approach: dict | None,
                             smoothing: dict, allow_flat: bool, outcome, system: str,
-                            location=None) -> dict | None:
+                            location=None, split: dict | None = None) -> dict | None:
     """`render_library` from app.py's own variables: the plan inputs and result are built
     here (page_plan_inputs, plan_result) when the page has a course, inputs and a predicted
     race; otherwise the panel still offers the athletes, saved plans and backup."""
@@ -565,7 +698,8 @@ def render_library_for_page(course_gpx: bytes | None, course_name: str | None, c
     if (course_gpx and course is not None and bounds is not None and athlete
             and approach is not None):
         inputs = page_plan_inputs(course_gpx, course_name or "course", course, bounds,
-                                  athlete, weather or {}, approach, smoothing, allow_flat)
+                                  athlete, weather or {}, approach, smoothing, allow_flat,
+                                  split)
     result = None if outcome is None or inputs is None else plan_result(outcome, weather,
                                                                          approach)
     return render_library(inputs, result, system, location=location)

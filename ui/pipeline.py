@@ -6,6 +6,7 @@ tests call them directly. No physics here: every number comes from `pacing`.
 
 from __future__ import annotations
 
+import re
 import warnings
 from dataclasses import dataclass, field, fields, replace
 from pathlib import Path
@@ -116,6 +117,9 @@ class Outcome:
     rows : segment targets (pacing.targets.SegmentTarget or objects with the same fields).
     notes : short remarks from the library (binding limits, solver messages).
     exhausted_at : where the W′ (or D′) balance first falls below zero [m], or None.
+    note_paces : (text, speed [m/s]) pairs: the metric paces written into `notes` by the
+        library ("5:07 /km") and the exact speeds they stand for, so `notes_in` can show them
+        in the page's unit system.
     """
 
     sport: str
@@ -132,6 +136,7 @@ class Outcome:
     rows: list
     notes: list[str] = field(default_factory=list)
     exhausted_at: float | None = None
+    note_paces: tuple = ()
 
 
 def _build(cls, values: dict):
@@ -205,8 +210,49 @@ def running_outcome(course, bounds, athlete: dict, weather: dict, approach: dict
         max_speed=float(np.max(plan.speed)), average_power=None, time_saved=None,
         distance=np.asarray(course.distance), speed=np.asarray(plan.speed), power=None,
         headwind=np.asarray(air.headwind), w_prime_balance=plan.d_prime_balance, rows=rows,
-        notes=list(plan.notes),
+        notes=list(plan.notes), note_paces=running_note_paces(plan, course.total_distance),
     ))
+
+
+def running_note_paces(plan, total_distance: float) -> tuple:
+    """The paces pacing.running_plans writes into its notes, as (text, speed [m/s]) pairs:
+    the even pace at the same mean effort (`even_pace_speed`) and, for the fastest plan, the
+    fastest even pace within critical speed and D′ (total distance / its finish time)."""
+    from pacing.even_pace import pace_clock
+
+    speeds = []
+    if plan.even_pace_speed:
+        speeds.append(float(plan.even_pace_speed))
+    if plan.limited_even_pace_time:
+        speeds.append(float(total_distance) / float(plan.limited_even_pace_time))
+    return tuple((f"({pace_clock(1000.0 / v)} /km)", v) for v in speeds
+                 if np.isfinite(v) and v > 0)
+
+
+_METRIC_PACE = re.compile(r"\b(\d+):(\d{2}) /km\b")
+
+
+def notes_in(outcome: Outcome, system: str) -> list[str]:
+    """The outcome's notes with every pace in the unit system's own words: "(5:07 /km)"
+    becomes "(8:14 /mi)" in imperial, from the exact speed when the plan gave it, else
+    converted from the written M:SS (1 mi = 1.609344 km, NIST SP 811)."""
+    from pacing.units import format_pace, pace_from_speed, pace_per_km_to_display, unit_label
+
+    if system == "metric":
+        return list(outcome.notes)
+    label = "/" + unit_label("pace", system).split("/")[-1]
+    notes = []
+    for note in outcome.notes:
+        for text, speed in outcome.note_paces:
+            note = note.replace(
+                text, f"({format_pace(float(pace_from_speed(speed, system)))} {label})")
+        def converted(match, label=label):
+            per_km = 60 * int(match.group(1)) + int(match.group(2))
+            return f"{format_pace(float(pace_per_km_to_display(per_km, system)))} {label}"
+
+        note = _METRIC_PACE.sub(converted, note)
+        notes.append(note)
+    return notes
 
 
 def cycling_plan(course, bounds, athlete: dict, weather: dict, approach: dict):

@@ -111,6 +111,20 @@ def smoothing_inputs(system: str) -> dict:
 
 # --------------------------------------------------------------------------- athlete, setup
 
+FLAT_PACE_RANGE = (120.0, 900.0)
+"""Flat pace the page accepts [s/km]: 2:00 to 15:00 per km."""
+
+
+def flat_pace_range_message(system: str) -> str:
+    """The flat-pace refusal in the unit system's own words: "… between 2:00 and 15:00 per
+    km" in metric, "… between 3:13 and 24:08 per mile" in imperial (1 mi = 1.609344 km)."""
+    from pacing.units import pace_per_km_to_display
+
+    low, high = (format_pace(float(pace_per_km_to_display(v, system))) for v in FLAT_PACE_RANGE)
+    per = "per mile" if system == "imperial" else "per km"
+    return f"flat pace must be between {low} and {high} {per}"
+
+
 def athlete_inputs(system: str) -> dict:
     """Sport, athlete and equipment; returns a dict of SI values (keys by pacing.athlete)."""
     sport = st.radio("Sport", ("cycling", "running"), key="sport", horizontal=True)
@@ -172,8 +186,8 @@ def athlete_inputs(system: str) -> dict:
                                   help="the pace you would hold for this race on flat ground")
             seconds = parse_clock(typed, "flat pace")
             per_km = seconds / (1609.344 / 1000.0) if system == "imperial" else seconds
-            if not 120.0 <= per_km <= 900.0:
-                raise InputError("flat pace must be between 2:00 and 15:00 per km")
+            if not FLAT_PACE_RANGE[0] <= per_km <= FLAT_PACE_RANGE[1]:
+                raise InputError(flat_pace_range_message(system))
             st.session_state["si:flat_pace"] = per_km
             values["flat_pace"] = per_km
         cols = st.columns(3)
@@ -276,7 +290,7 @@ def outcome_headline(outcome, system: str) -> None:
     if outcome.average_power is not None:
         cols[2].metric("Average power", f"{outcome.average_power:.0f} W")
     cols[3].metric("Top speed", f"{to_display(outcome.max_speed, 'speed', system):.1f} "
-                   f"{speed_unit}", help=text.SPEED_CAUTION)
+                   f"{speed_unit}", help=text.speed_caution(outcome.sport))
     if outcome.time_saved is not None:
         cols[4].metric("Gained on even power", f"{outcome.time_saved:.0f} s",
                        help="finish time of even power at the same average, minus this plan's")

@@ -14,6 +14,19 @@ SPEED_CAUTION = (
     "Predicted speeds, above all on descents, are model estimates, not safe limits. "
     "Ride within your skills, the road and its traffic, traffic law and the race rules."
 )
+RUNNING_SPEED_CAUTION = (
+    "Predicted paces, above all on descents, are model estimates, not safe limits. "
+    "Run within your fitness, the footing, the road and its traffic, traffic law and the "
+    "race rules."
+)
+
+
+def speed_caution(sport: str) -> str:
+    """The speed caution worded for the sport: "Ride within …" for cycling, "Run within …"
+    for running."""
+    return RUNNING_SPEED_CAUTION if sport == "running" else SPEED_CAUTION
+
+
 EXERTION_CAUTION = (
     "Hard efforts strain the heart and body: consult a physician before racing or training "
     "hard. Local rules and licensed medical and coaching practice come first."
@@ -66,3 +79,11 @@ RUNNING_APPROACHES = {
     "Quickest within my limits": "fastest",
 }
 """Running plan choices (label → pacing.running name)."""
+
+ROAD_TEST_CDA_NOTE = (
+    "The CdA shown is the rider and bike without the rotating-wheel term (F_w = {wheel:g} m²) "
+    "and the wheel-bearing friction of Martin et al. (1998): the model takes those off "
+    "before the fit and adds them back on its own when it predicts a race. A wind-tunnel CdA "
+    "that includes the spinning wheels therefore reads a little higher than this one."
+)
+"""Road-test caption; {wheel} is pacing.cycling.MARTIN_1998["wheel_drag_area"] [m²]."""

@@ -42,14 +42,31 @@ def unit_number(label: str, quantity: str | None, system: str, key: str, default
     digits = _decimals(step)
     lo, hi = round(lo, digits), round(hi, digits)
     shown = min(max(round(shown, digits), lo), hi)
+    # No min_value/max_value on the widget: Streamlit would silently put an out-of-range
+    # number back to the default; the range is checked here and said in the page instead.
     value = container.number_input(
-        text, min_value=float(lo), max_value=float(hi), value=float(shown), step=float(step),
-        format=f"%.{digits}f", key=f"{key}:{system}", help=help,
+        text, value=float(shown), step=float(step),
+        format=f"%.{digits}f", key=f"{key}:{system}", help=f"{help + '; ' if help else ''}"
+        f"allowed {lo:.{digits}f} to {hi:.{digits}f}",
     )
     if value is None:
+        return si_value
+    if not (math.isfinite(value) and lo <= round(value, digits) <= hi):
+        container.error(out_of_range_message(text, value, lo, hi, shown, digits), icon="⚠️")
         return si_value
     new_si = value if quantity is None else from_display(value, quantity, system)
     if round(value, digits) != round(shown, digits):
         st.session_state[store] = new_si
         return new_si
     return si_value
+
+
+def out_of_range_message(label: str, value: float, low: float, high: float, kept: float,
+                         digits: int) -> str:
+    """One line for a number outside its input's range, saying what the page uses instead:
+    "Average power [W]: 2000 is outside 30 to 800; the page keeps 240"."""
+    def shown(number: float) -> str:
+        return f"{number:.{digits}f}" if math.isfinite(number) else str(number)
+
+    return (f"{label}: {shown(value)} is outside {shown(low)} to {shown(high)}; the page "
+            f"keeps {shown(kept)}")
