@@ -10,7 +10,9 @@ The plan is then verified by the inertial simulation (pacing.simulate) and corre
 verified ride meets the constraints: the free segments' powers are scaled until the simulated
 mean power (or work) hits its target; the W′ reserve and the effort cap are re-checked on the
 simulated ride and, when broken (or held with needless slack), the solver runs again with the
-solver-side limit moved by secant steps.
+solver-side limit moved by secant steps, starting from the previous round's plan. The first
+round already asks the solver for a reserve in the middle of the accepted band (reserve plus
+half of _SLACK), since the ride drains W′ a little faster than the steady model.
 
 References
 ----------

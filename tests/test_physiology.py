@@ -159,11 +159,30 @@ def test_balance_properties(samples, model):
     power, duration = (np.array(x) for x in zip(*samples, strict=True))
     balance = w_prime_balance(power, duration, CP, W_PRIME, model)
     assert np.all(balance <= W_PRIME + 1e-6)
-    # more power everywhere never leaves more W′
-    harder = w_prime_balance(power + 20.0, duration, CP, W_PRIME, model)
-    assert np.all(harder <= balance + 1e-6)
+    if model == "differential":
+        # more power everywhere never leaves more W′ (the recovery rate depends only on the
+        # instantaneous power); the integral form is not monotone: see the next test
+        harder = w_prime_balance(power + 20.0, duration, CP, W_PRIME, model)
+        assert np.all(harder <= balance + 1e-6)
     if np.all(power <= CP):
         np.testing.assert_allclose(balance, W_PRIME)
+
+
+def test_integral_form_recovers_faster_when_the_easy_riding_is_easier():
+    """In the integral form (Skiba et al. 2012) the recovery time constant
+    τ = 546·e^(−0.01·D_CP) + 316 s depends on D_CP, CP minus the mean power of all the riding
+    below CP. Raising every power by 20 W can move a sample from just below CP to CP, which
+    leaves only the easier samples in that mean, raises D_CP, shortens τ, and so leaves MORE
+    W′ afterwards: the form is not monotone in power. A counterexample found by hypothesis;
+    the differential form has no such effect."""
+    power = np.array([0.0, 361.0, 230.0])
+    duration = np.array([1.0, 2.0, 120.0])
+    easier = w_prime_balance(power, duration, CP, W_PRIME, "integral")
+    harder = w_prime_balance(power + 20.0, duration, CP, W_PRIME, "integral")
+    assert harder[-1] > easier[-1]
+    differential_easier = w_prime_balance(power, duration, CP, W_PRIME, "differential")
+    differential_harder = w_prime_balance(power + 20.0, duration, CP, W_PRIME, "differential")
+    assert differential_harder[-1] <= differential_easier[-1]
 
 
 def test_unknown_model_and_bad_series_raise():

@@ -532,7 +532,8 @@ def test_segment_times_of_segments_not_in_course_order_are_still_summed_by_segme
     course, bounds, air = random_course(7)
     model = segment_model(course, bounds, RIDER, air)
     order = np.arange(model.count)[::-1]
-    shuffled = replace(model, segment=order[model.segment], speed_guess={})
+    steady_segment_times(model, np.full(model.count, 250.0))  # its cache is shared below
+    shuffled = replace(model, segment=order[model.segment])
     power = np.linspace(180.0, 320.0, model.count)
     for plain, mixed in zip(steady_segment_times(model, power),
                             steady_segment_times(shuffled, power[order]), strict=True):
