@@ -76,6 +76,12 @@ def add_compare_flags(parser: argparse.ArgumentParser) -> None:
     plan.add_argument("--target-time", default=None, help=argparse.SUPPRESS)  # not compared
     plan.add_argument("--start-speed", type=float, default=0.0,
                       help="speed at the start line [m/s] (default 0, standing start)")
+    plan.add_argument("--max-descent-speed", type=float, default=None,
+                      help="speed the rider never exceeds, braking on descents [m/s] "
+                           "(default: no limit)")
+    plan.add_argument("--coasting-speed", type=float, default=None,
+                      help="above this speed the rider stops pedalling [m/s] "
+                           "(default: always pedal)")
     spread = parser.add_argument_group("uncertainty (1 standard deviation)")
     spread.add_argument("--sd-cda", type=float, default=DEFAULT_SD["cda"],
                         help=f"of each setup's CdA [m²] (default {DEFAULT_SD['cda']})")
@@ -203,6 +209,7 @@ def analyse(args: argparse.Namespace) -> dict:
     from pacing.cli.plan_cycling import (
         conditions_from_args,
         load_course_and_bounds,
+        simulation_options_from_args,
         validate_args,
     )
     from pacing.compare import break_even, compare_setups, mixed_plan
@@ -214,7 +221,6 @@ def analyse(args: argparse.Namespace) -> dict:
         sampled_finish_time,
         sensitivity,
     )
-    from pacing.simulate import SimulationOptions
 
     validate_args(args)
     if args.samples and not 2 <= args.samples <= 10_000:
@@ -225,7 +231,7 @@ def analyse(args: argparse.Namespace) -> dict:
     conditions = conditions_from_args(args)
     course, bounds = load_course_and_bounds(args)
     air = air_along_course(course, conditions)
-    options = SimulationOptions(start_speed=args.start_speed)
+    options = simulation_options_from_args(args)
     comparison = compare_setups(course, bounds, setups, air, request, args.baseline, options)
     base = comparison.baseline_result
     sens = {r.name: sensitivity(course, r.plan.piece_power, r.setup.rider, conditions, options)
