@@ -194,8 +194,12 @@ def format_pace(seconds_per_unit: float) -> str:
 def parse_clock(text: str, what: str = "time") -> float:
     """"H:MM:SS", "M:SS" or plain seconds → seconds [s] (> 0); InputError otherwise."""
     raw = str(text).strip()
+    fields = raw.split(":")
+    if any(len(field.strip().split(".")[0]) != 2 for field in fields[1:]):
+        raise InputError(f"{what} must look like H:MM:SS or M:SS (two digits after each "
+                         f"colon), got {text!r}")
     try:
-        parts = [float(part) for part in raw.split(":")]
+        parts = [float(part) for part in fields]
     except ValueError:
         raise InputError(f"{what} must look like H:MM:SS or M:SS, got {text!r}") from None
     if not 1 <= len(parts) <= 3 or any(not math.isfinite(p) or p < 0 for p in parts):

@@ -82,22 +82,6 @@ def add_rider_flags(parser: argparse.ArgumentParser) -> None:
                        help="drag reduction from drafting [%%] (default 0)")
 
 
-def parse_clock(text: str, what: str) -> float:
-    """'H:MM:SS', 'M:SS' or plain seconds → seconds [s]."""
-    try:
-        parts = [float(p) for p in str(text).strip().split(":")]
-    except ValueError:
-        raise InputError(f"{what} must look like H:MM:SS or M:SS, got {text!r}") from None
-    if not 1 <= len(parts) <= 3 or any(p < 0 for p in parts):
-        raise InputError(f"{what} must look like H:MM:SS or M:SS, got {text!r}")
-    seconds = 0.0
-    for part in parts:
-        seconds = seconds * 60.0 + part
-    if seconds <= 0:
-        raise InputError(f"{what} must be positive, got {text!r}")
-    return seconds
-
-
 def require(condition: bool, message: str) -> None:
     """Raise InputError(message) unless condition holds."""
     if not condition:

@@ -290,9 +290,9 @@ def run(args: argparse.Namespace) -> int:
 def request_from_args(args: argparse.Namespace):
     """The pacing.strategy.PlanRequest of --strategy, --power, --target-time, --cp, --w-prime,
     --w-prime-reserve and --max-power-ratio."""
-    from pacing.cli.common import parse_clock
     from pacing.cli.plan import CYCLING_STRATEGIES
     from pacing.strategy import PlanRequest
+    from pacing.units import parse_clock
 
     strategy = args.strategy
     _check(strategy in CYCLING_STRATEGIES,
