@@ -14,7 +14,8 @@ CORE_MODULES = ["pacing.cycling", "pacing.course", "pacing.air", "pacing.wind",
                 "pacing.athlete", "pacing.constants", "pacing.errors", "pacing.segments",
                 "pacing.running_plans", "pacing.ride", "pacing.virtual_elevation",
                 "pacing.sensitivity", "pacing.plan_request", "pacing.segment_model",
-                "pacing.strategy_solver", "pacing.drag_fit", "pacing.even_pace"]
+                "pacing.strategy_solver", "pacing.drag_fit", "pacing.even_pace",
+                "pacing.prediction", "pacing.elevation", "pacing.lagrange_solver"]
 """Modules of the numeric core (DEVELOPERS.md: all of pacing/ but io/, store, cli/); those not
 written yet are left out."""
 EDGE_LIBRARIES = ["gpxpy", "pandas", "streamlit", "plotly", "sqlalchemy"]

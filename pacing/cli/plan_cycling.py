@@ -70,7 +70,7 @@ def validate_args(args: argparse.Namespace) -> None:
     _check(0.0 <= args.crr <= 0.1, f"--crr must be 0-0.1, got {args.crr:g}")
     _check(0.0 < args.efficiency <= 1.0,
            f"--efficiency must be above 0 and at most 1, got {args.efficiency:g}")
-    _check(0.0 <= args.drafting < 100.0, f"--drafting must be 0-99 %, got {args.drafting:g}")
+    _check(0.0 <= args.drafting <= 99.0, f"--drafting must be 0-99 %, got {args.drafting:g}")
     _check(0.0 <= args.humidity <= 100.0,
            f"--humidity must be 0-100 %, got {args.humidity:g}")
     _check(args.start_speed >= 0.0, f"--start-speed must be >= 0 m/s, got {args.start_speed:g}")

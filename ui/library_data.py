@@ -1,0 +1,350 @@
+"""Pure helpers of the library panel (ui.library_panel): the plan inputs and results saved
+with a plan and worked out again, the page's values of a stored athlete and setup, the widget
+states that show a saved plan in the page, and the panel's tables. No Streamlit here; the
+panel re-exports every name.
+
+Plan inputs (`page_plan_inputs`, all SI) are described in ui.library_panel.
+"""
+
+from __future__ import annotations
+
+import dataclasses
+from collections.abc import Callable, Mapping
+from typing import Any
+
+import pandas as pd
+
+from pacing.errors import ConflictError, InputError
+from pacing.units import format_duration, to_display, unit_label
+
+CONFLICT_MESSAGE = "changed in another window — reload"
+"""What a stale save or delete says (pacing.errors.ConflictError), before the details."""
+
+ATHLETE_KEYS = ("body_mass", "critical_power", "w_prime", "height", "flat_pace",
+                "critical_speed", "d_prime")
+SETUP_KEYS = ("bike_mass", "drag_area", "power_share", "rolling_coefficient",
+              "drivetrain_efficiency")
+
+PAGE_WIDGETS = {
+    # page value → (ui.widgets store key, factor from SI to the stored number)
+    "body_mass": ("body_mass", 1.0),
+    "bike_mass": ("bike_mass", 1.0),
+    "critical_power": ("critical_power", 1.0),
+    "w_prime": ("w_prime_kj", 0.001),
+    "drag_area": ("cda", 1.0),
+    "rolling_coefficient": ("crr", 1.0),
+    "drivetrain_efficiency": ("efficiency_pct", 100.0),
+    "height": ("height", 1.0),
+    "critical_speed": ("critical_speed", 1.0),
+    "d_prime": ("d_prime", 1.0),
+    "flat_pace": ("flat_pace", 1.0),
+    "temperature": ("temperature", 1.0),
+    "relative_humidity": ("humidity_pct", 100.0),
+    "sea_level_pressure": ("pressure_hpa", 0.01),
+    "wind_speed": ("wind_speed", 1.0),
+    "wind_from": ("wind_from", 1.0),
+    "wind_height": ("wind_height", 1.0),
+    "mean_power": ("mean_power", 1.0),
+    "max_power_ratio": ("max_power_ratio", 1.0),
+    "w_prime_reserve": ("w_prime_reserve", 0.001),
+}
+"""How the page's inputs (ui.sections, ui.widgets.unit_number) keep their values: page value
+(SI) → (the widget's store key "si:<key>" and widget keys "<key>:<system>", factor from SI to
+the stored number)."""
+
+
+def _first_line(error: Exception) -> str:
+    text = str(error).strip()
+    return text.splitlines()[0] if text else type(error).__name__
+
+
+def error_message(error: Exception) -> str:
+    """One line for the page; a conflict says plainly that another window changed it."""
+    if isinstance(error, ConflictError):
+        return f"{CONFLICT_MESSAGE}: {_first_line(error)}"
+    return _first_line(error)
+
+
+# ------------------------------------------------------------------------ plan inputs, result
+
+def page_plan_inputs(course_gpx: bytes, course_name: str, course, bounds, athlete: dict,
+                     weather: dict, approach: dict, smoothing: dict,
+                     allow_flat: bool = False, split: dict | None = None) -> dict:
+    """The `current_inputs` of render_library from the page's values.
+
+    Parameters
+    ----------
+    course_gpx : the course file's bytes; course_name : its label; course : the Course made
+    from it (for its distance [m] and ascent [m]); bounds : segment boundary point indices;
+    athlete, weather, approach : ui.sections dicts (SI); smoothing : {"window" [m],
+    "max_grade" [-]}; allow_flat : a file without heights was read as flat; split : how
+    the page cut the course (ui.sections.split_inputs: "mode", "length" [m], "marks" [m]),
+    kept so "Show in the page" can set the same choice again.
+    """
+    return {
+        "course_gpx": bytes(course_gpx),
+        "course_name": str(course_name),
+        "course_distance": float(course.total_distance),
+        "course_ascent": float(course.ascent),
+        "smoothing": {"window": float(smoothing["window"]),
+                      "max_grade": float(smoothing["max_grade"]),
+                      "allow_flat": bool(allow_flat)},
+        "bounds": [int(b) for b in bounds],
+        "athlete": dict(athlete),
+        "weather": dict(weather),
+        "approach": dict(approach),
+        **({} if split is None else {"split": {
+            "mode": str(split["mode"]),
+            "length": None if split.get("length") is None else float(split["length"]),
+            "marks": [float(m) for m in split.get("marks") or ()]}}),
+    }
+
+
+def plan_result(outcome, weather: dict | None = None, approach: dict | None = None) -> dict:
+    """The `current_result` of render_library from a ui.pipeline.Outcome: the keys of
+    pacing.store.PLAN_RESULT_KEYS (finish_time [s], time_saved [s] or None, targets as one
+    dict of SI numbers per segment, strategy and weather as given)."""
+    targets = [dataclasses.asdict(row) if dataclasses.is_dataclass(row) else dict(row)
+               for row in outcome.rows]
+    return {
+        "strategy": None if approach is None else dict(approach),
+        "weather": None if weather is None else dict(weather),
+        "targets": targets,
+        "time_saved": outcome.time_saved,
+        "finish_time": float(outcome.finish_time),
+    }
+
+
+def recompute_plan(inputs: Mapping[str, Any], gpx: bytes) -> dict:
+    """Work a saved plan out again from its inputs (as page_plan_inputs made them) and its
+    course file, through the same calls as the page (ui.pipeline)."""
+    from ui import pipeline
+
+    try:
+        smoothing = inputs["smoothing"]
+        athlete, weather, approach = inputs["athlete"], inputs["weather"], inputs["approach"]
+        bounds = inputs["bounds"]
+    except (KeyError, TypeError):
+        raise InputError("this saved plan was not made by the page: its inputs cannot be "
+                         "worked out again here") from None
+    course = pipeline.load_course_from_bytes(
+        gpx, inputs.get("course_name", "course"), smoothing["window"], smoothing["max_grade"],
+        smoothing.get("allow_flat", False))
+    runner = pipeline.running_outcome if athlete.get("sport") == "running" \
+        else pipeline.cycling_outcome
+    outcome = runner(course, bounds, dict(athlete), dict(weather), dict(approach))
+    return plan_result(outcome, weather, approach)
+
+
+def library_compute(library) -> Callable[[dict], dict]:
+    """compute(inputs) -> result for pacing.store.reproduce_plan, reading the plan's course
+    file from `library`."""
+    def compute(inputs: dict) -> dict:
+        course_id = inputs.get("course_id")
+        if course_id is None:
+            raise InputError("this saved plan names no stored course")
+        return recompute_plan(inputs, library.course(int(course_id)).gpx)
+
+    return compute
+
+
+def store_course(library, name: str, gpx: bytes, distance: float, ascent: float) -> int:
+    """Id of the stored course with exactly this GPX file, storing it first if new."""
+    found = library.find_courses(gpx)
+    if found:
+        return found[0].id
+    return library.add_course(name, gpx, distance, ascent).id
+
+
+def save_current_plan(library, name: str, notes: str, current_inputs: Mapping[str, Any],
+                      current_result: Mapping[str, Any], athlete_id: int | None = None,
+                      setup_id: int | None = None):
+    """Save the page's plan (its course file stored once); returns the PlanRecord."""
+    inputs = {k: v for k, v in current_inputs.items() if k != "course_gpx"}
+    gpx = current_inputs.get("course_gpx")
+    if gpx:
+        inputs["course_id"] = store_course(
+            library, current_inputs.get("course_name") or "course", gpx,
+            current_inputs.get("course_distance", 0.0),
+            current_inputs.get("course_ascent", 0.0))
+    if athlete_id is not None:
+        inputs["athlete_id"] = int(athlete_id)
+    if setup_id is not None:
+        inputs["setup_id"] = int(setup_id)
+    return library.save_plan(name, inputs, dict(current_result), notes=notes)
+
+
+# ------------------------------------------------------------------------ page values
+
+def page_values(athlete, setup=None) -> dict:
+    """SI values of a stored athlete (and setup) under the page's keys (ui.sections):
+    body_mass, critical_power, w_prime, height, flat_pace, critical_speed, d_prime, and
+    with a setup bike_mass, drag_area, power_share, rolling_coefficient,
+    drivetrain_efficiency. Unknown values (None) are left out."""
+    values = {key: getattr(athlete, key) for key in ATHLETE_KEYS
+              if getattr(athlete, key) is not None}
+    if setup is not None:
+        values.update({key: getattr(setup, key) for key in SETUP_KEYS})
+    return values
+
+
+def athlete_from_page(name: str, values: Mapping[str, Any]):
+    """pacing.athlete.Athlete from the page's athlete dict (SI)."""
+    from pacing.athlete import Athlete
+
+    return Athlete(name=name, **{k: values[k] for k in ATHLETE_KEYS if values.get(k) is not None})
+
+
+def setup_from_page(name: str, values: Mapping[str, Any]):
+    """pacing.athlete.Setup from the page's athlete dict (SI)."""
+    from pacing.athlete import Setup
+
+    return Setup(name=name, **{k: values[k] for k in SETUP_KEYS if values.get(k) is not None})
+
+LIBRARY_COURSE = "library:course"
+"""Session key of the course file the page shows instead of its demo or upload after "Show
+in the page": {"gpx": bytes, "name": str, "plan": the saved plan's name}."""
+
+
+def _split_marks_text(marks, system: str) -> str:
+    """Split marks [m] as the page's text input shows them (km or mi, 4 decimals: 0.1 m)."""
+    shown = (to_display(float(m), "distance", system) for m in marks)
+    return ", ".join(f"{v:.4f}".rstrip("0").rstrip(".") for v in shown)
+
+
+def plan_page_state(inputs: Mapping[str, Any], system: str, course=None) -> dict:
+    """The page's widget states that show a saved plan (pure; `open_plan_in_page` applies
+    them): sport, plan radio and its limits, smoothing, "file without heights", terrain and
+    the segment choice. Numbers under ui.widgets stores are returned as "si:<key>" entries
+    (SI or the stored factor, see PAGE_WIDGETS).
+
+    Parameters
+    ----------
+    inputs : the saved plan inputs (page_plan_inputs).
+    system : "metric" or "imperial": the page's units, for the split marks' text.
+    course : the Course of the saved file; only needed for plans saved without their segment
+        choice, whose saved bounds then become "my own marks" at those points' distances.
+    """
+    from pacing.units import format_duration
+    from pacing.wind import ROUGHNESS_LENGTHS
+    from ui import text
+
+    state: dict = {}
+    athlete = inputs.get("athlete") or {}
+    weather = inputs.get("weather") or {}
+    approach = inputs.get("approach") or {}
+    smoothing = inputs.get("smoothing") or {}
+    values = {**athlete, **weather, **approach}
+    for key, value in values.items():
+        if key in PAGE_WIDGETS and value is not None:
+            store, factor = PAGE_WIDGETS[key]
+            state[f"si:{store}"] = float(value) * factor
+    if "window" in smoothing:
+        state["si:smooth_window"] = float(smoothing["window"])
+    if "max_grade" in smoothing:
+        state["si:max_grade_pct"] = float(smoothing["max_grade"]) * 100.0
+    if "allow_flat" in smoothing:
+        state["allow_flat"] = bool(smoothing["allow_flat"])
+    sport = athlete.get("sport")
+    if sport in ("cycling", "running"):
+        state["sport"] = sport
+    strategy = approach.get("strategy")
+    choices = text.RUNNING_APPROACHES if sport == "running" else text.APPROACHES
+    label = next((k for k, v in choices.items() if v == strategy), None)
+    if label is not None:
+        state["running_approach" if sport == "running" else "approach"] = label
+    if approach.get("target_time") is not None:
+        state["target_time"] = format_duration(float(approach["target_time"]))
+    if "allow_zero_on_descents" in approach:
+        state["coast_descents"] = bool(approach["allow_zero_on_descents"])
+    if athlete.get("drag_area") is not None:
+        own = next((k for k, v in text.DRAG_AREA_PRESETS.items() if v is None), None)
+        if own is not None:
+            state["cda_preset"] = own
+    if athlete.get("rolling_coefficient") is not None:
+        own = next((k for k, v in text.ROLLING_PRESETS.items() if v is None), None)
+        if own is not None:
+            state["crr_preset"] = own
+    roughness = weather.get("roughness_length")
+    terrain = next((k for k, v in ROUGHNESS_LENGTHS.items() if roughness is not None
+                    and abs(v - float(roughness)) <= 1e-12), None)
+    if terrain is not None:
+        state["terrain"] = terrain
+    split = inputs.get("split")
+    if split:
+        state["split_mode"] = split["mode"]
+        if split.get("length") is not None:
+            state["si:split_length"] = float(split["length"])
+        if split.get("marks"):
+            state["split_marks"] = _split_marks_text(split["marks"], system)
+    elif course is not None and inputs.get("bounds"):
+        inner = [int(b) for b in inputs["bounds"][1:-1]]
+        distance = course.distance
+        state["split_mode"] = "my own marks"
+        state["split_marks"] = _split_marks_text(
+            [float(distance[b] - distance[0]) for b in inner], system)
+    return state
+
+
+
+# ------------------------------------------------------------------------ tables
+
+def _stamp(value) -> str:
+    return value.strftime("%Y-%m-%d %H:%M UTC") if value is not None else ""
+
+
+def plans_table(plans) -> pd.DataFrame:
+    """Saved plans (PlanSummary) as a table, newest first."""
+    return pd.DataFrame({
+        "Plan": [p.name for p in plans],
+        "Finish [h:mm:ss]": [format_duration(p.finish_time) for p in plans],
+        "Gained on even power [s]": [("" if p.time_saved is None else f"{p.time_saved:.0f}")
+                                     for p in plans],
+        "Saved": [_stamp(p.updated_at) for p in plans],
+        "Made with pacing": [p.library_version for p in plans],
+        "Notes": [p.notes for p in plans],
+    }, columns=["Plan", "Finish [h:mm:ss]", "Gained on even power [s]", "Saved",
+                "Made with pacing", "Notes"])
+
+
+def targets_frame(targets: list, system: str) -> pd.DataFrame:
+    """A saved target table (dicts of SI numbers) with units on every column."""
+    from pacing.io.exports import segment_table
+
+    return segment_table(targets, system)
+
+
+def inputs_summary(inputs: Mapping[str, Any], system: str) -> list[str]:
+    """A saved plan's main inputs as short lines with units."""
+    lines = []
+    name = inputs.get("course_name")
+    if name:
+        distance = inputs.get("course_distance")
+        shown = ("" if distance is None else
+                 f", {to_display(distance, 'distance', system):.2f} "
+                 f"{unit_label('distance', system)}")
+        lines.append(f"course: {name}{shown}")
+    athlete = inputs.get("athlete") or {}
+    if athlete.get("body_mass") is not None:
+        lines.append(f"athlete: {to_display(athlete['body_mass'], 'mass', system):.1f} "
+                     f"{unit_label('mass', system)}"
+                     + (f", critical power {athlete['critical_power']:.0f} W"
+                        if athlete.get("critical_power") else ""))
+    if athlete.get("drag_area") is not None:
+        lines.append(f"setup: CdA {athlete['drag_area']:.3f} m², Crr "
+                     f"{athlete.get('rolling_coefficient', float('nan')):.4f}, bike and kit "
+                     f"{to_display(athlete.get('bike_mass', 0.0), 'mass', system):.1f} "
+                     f"{unit_label('mass', system)}")
+    weather = inputs.get("weather") or {}
+    if weather:
+        lines.append(
+            f"weather: {to_display(weather.get('temperature', 20.0), 'temperature', system):.0f}"
+            f" {unit_label('temperature', system)}, wind "
+            f"{to_display(weather.get('wind_speed', 0.0), 'wind_speed', system):.0f} "
+            f"{unit_label('wind_speed', system)} from {weather.get('wind_from', 0.0):.0f}°")
+    approach = inputs.get("approach") or {}
+    if approach.get("strategy"):
+        power = approach.get("mean_power")
+        lines.append(f"plan: {approach['strategy']}"
+                     + (f", average {power:.0f} W" if power else ""))
+    return [line for line in lines if "nan" not in line]
