@@ -25,6 +25,31 @@ RUNNING_CAUTION = (
 """Printed under every human-readable running prediction (not in JSON output)."""
 
 
+def add_course_flags(parser: argparse.ArgumentParser) -> None:
+    """The GPX file and how it becomes a course and segments (course, plan, compare)."""
+    parser.add_argument("route", help="GPX file of the course")
+    parser.add_argument("--step", type=float, default=None,
+                        help="resampling step of the course [m] (default 10)")
+    parser.add_argument("--segment-length", type=float, default=None,
+                        help="split into segments of this length [m] instead of by terrain "
+                             "(grade, turnarounds, at most 2 km)")
+    parser.add_argument("--flat", action="store_true",
+                        help="treat a course without elevation as flat (with a warning)")
+    parser.add_argument("--json", action="store_true", help="print JSON instead of a table")
+
+
+def add_simulation_flags(group) -> None:
+    """Start speed, descent speed limit and coasting speed of the inertial simulation."""
+    group.add_argument("--start-speed", type=float, default=0.0,
+                       help="speed at the start line [m/s] (default 0, standing start)")
+    group.add_argument("--max-descent-speed", type=float, default=None,
+                       help="speed the rider never exceeds, braking on descents [m/s] "
+                            "(default: no limit)")
+    group.add_argument("--coasting-speed", type=float, default=None,
+                       help="above this speed the rider stops pedalling [m/s] "
+                            "(default: always pedal)")
+
+
 def add_air_flags(parser: argparse.ArgumentParser) -> None:
     """Air and wind flags (issue: cycling physics), shared by plan, compare and fieldtest."""
     group = parser.add_argument_group("air and wind")

@@ -21,7 +21,13 @@ import sys
 import numpy as np
 
 from pacing import units
-from pacing.cli.common import CAUTION, add_air_flags, add_rider_flags
+from pacing.cli.common import (
+    CAUTION,
+    add_air_flags,
+    add_course_flags,
+    add_rider_flags,
+    add_simulation_flags,
+)
 from pacing.errors import InputError
 
 SETUP_KEYS = ("cda", "power", "mass", "crr", "yaw")
@@ -47,20 +53,13 @@ def add_parser(subparsers: argparse._SubParsersAction) -> None:
 
 def add_compare_flags(parser: argparse.ArgumentParser) -> None:
     """Every flag of the compare command."""
-    parser.add_argument("route", help="GPX file of the course")
+    add_course_flags(parser)
     parser.add_argument("--setup", action="append", default=[], metavar="NAME:KEY=VALUE,...",
                         help="a setup, e.g. aero:cda=0.25,power=0.95 (keys: cda [m²], power "
                              "[share of --power], mass [kg, rider+bike total], crr, "
                              "yaw=DEG/FACTOR+DEG/FACTOR); repeat for each setup")
     parser.add_argument("--baseline", default=None,
                         help="name of the setup the others are compared to (default: first)")
-    parser.add_argument("--json", action="store_true", help="print JSON instead of tables")
-    parser.add_argument("--step", type=float, default=None,
-                        help="resampling step of the course [m]")
-    parser.add_argument("--flat", action="store_true",
-                        help="treat a course without elevation as flat (with a warning)")
-    parser.add_argument("--segment-length", type=float, default=None,
-                        help="split into segments of this length [m] instead of by grade")
     add_rider_flags(parser)
     add_air_flags(parser)
     plan = parser.add_argument_group("pacing (the same for every setup)")
@@ -74,14 +73,7 @@ def add_compare_flags(parser: argparse.ArgumentParser) -> None:
     plan.add_argument("--max-power-ratio", type=float, default=None,
                       help="segment power at most this multiple of CP (or of the mean power)")
     plan.add_argument("--target-time", default=None, help=argparse.SUPPRESS)  # not compared
-    plan.add_argument("--start-speed", type=float, default=0.0,
-                      help="speed at the start line [m/s] (default 0, standing start)")
-    plan.add_argument("--max-descent-speed", type=float, default=None,
-                      help="speed the rider never exceeds, braking on descents [m/s] "
-                           "(default: no limit)")
-    plan.add_argument("--coasting-speed", type=float, default=None,
-                      help="above this speed the rider stops pedalling [m/s] "
-                           "(default: always pedal)")
+    add_simulation_flags(plan)
     spread = parser.add_argument_group("uncertainty (1 standard deviation)")
     spread.add_argument("--sd-cda", type=float, default=DEFAULT_SD["cda"],
                         help=f"of each setup's CdA [m²] (default {DEFAULT_SD['cda']})")

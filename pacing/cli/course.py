@@ -10,6 +10,7 @@ import warnings
 
 import numpy as np
 
+from pacing.cli.common import add_course_flags
 from pacing.course import Course, describe_segments, split_by_grade, split_every
 
 
@@ -20,15 +21,7 @@ def add_parser(subparsers: argparse._SubParsersAction) -> None:
         description="Summarise a GPX course: distance, ascent (cleaned and raw), descent, "
                     "highest and lowest point, and its segments.",
     )
-    parser.add_argument("route", help="GPX file of the course")
-    parser.add_argument("--step", type=float, default=None,
-                        help="resampling step of the course [m] (default 10)")
-    parser.add_argument("--segment-length", type=float, default=None,
-                        help="split into segments of this length [m] instead of by terrain "
-                             "(grade, turnarounds, at most 2 km)")
-    parser.add_argument("--flat", action="store_true",
-                        help="treat a course without elevation as flat (with a warning)")
-    parser.add_argument("--json", action="store_true", help="print JSON instead of a table")
+    add_course_flags(parser)
     parser.set_defaults(run=run)
 
 

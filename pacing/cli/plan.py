@@ -8,7 +8,12 @@ from __future__ import annotations
 
 import argparse
 
-from pacing.cli.common import add_air_flags, add_rider_flags
+from pacing.cli.common import (
+    add_air_flags,
+    add_course_flags,
+    add_rider_flags,
+    add_simulation_flags,
+)
 
 CYCLING_STRATEGIES = ("constant", "fastest", "target-time")
 RUNNING_STRATEGIES = ("equal-effort", "even-pace", "fastest")
@@ -26,15 +31,8 @@ def add_parser(subparsers: argparse._SubParsersAction) -> None:
 
 def add_plan_flags(parser: argparse.ArgumentParser) -> None:
     """Every flag of the plan command (compare reuses them)."""
-    parser.add_argument("route", help="GPX file of the course")
+    add_course_flags(parser)
     parser.add_argument("--sport", choices=("cycling", "running"), default="cycling")
-    parser.add_argument("--json", action="store_true", help="print JSON instead of a table")
-    parser.add_argument("--step", type=float, default=None,
-                        help="resampling step of the course [m]")
-    parser.add_argument("--flat", action="store_true",
-                        help="treat a course without elevation as flat (with a warning)")
-    parser.add_argument("--segment-length", type=float, default=None,
-                        help="split into segments of this length [m] instead of by grade")
     add_rider_flags(parser)
     add_air_flags(parser)
     cyc = parser.add_argument_group("cycling plan")
@@ -51,14 +49,7 @@ def add_plan_flags(parser: argparse.ArgumentParser) -> None:
     cyc.add_argument("--max-power-ratio", type=float, default=None,
                      help="segment power at most this multiple of critical power (or of the "
                           "mean power when --cp is not given)")
-    cyc.add_argument("--start-speed", type=float, default=0.0,
-                     help="speed at the start line [m/s] (default 0, standing start)")
-    cyc.add_argument("--max-descent-speed", type=float, default=None,
-                     help="speed the rider never exceeds, braking on descents [m/s] "
-                          "(default: no limit)")
-    cyc.add_argument("--coasting-speed", type=float, default=None,
-                     help="above this speed the rider stops pedalling [m/s] "
-                          "(default: always pedal)")
+    add_simulation_flags(cyc)
     run = parser.add_argument_group("running plan")
     run.add_argument("--flat-pace", default=None,
                      help="pace held on flat ground in still air, M:SS per km")
