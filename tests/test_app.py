@@ -6,12 +6,11 @@ switch to imperial units, make mistakes. Nothing may raise; every refusal is a m
 
 from __future__ import annotations
 
-import math
 import sys
 from pathlib import Path
 
-import gpxpy.gpx
 import pytest
+from samples import hill_road_gpx
 from streamlit.testing.v1 import AppTest
 
 ROOT = Path(__file__).resolve().parents[1]
@@ -24,24 +23,6 @@ if str(ROOT) not in sys.path:  # the app's ui/ package sits beside app.py, not i
 def plan_downloads(app):
     """The plan's download buttons (the library's own backup button is not one of them)."""
     return [b for b in app.get("download_button") if "library" not in b.proto.label]
-
-def small_gpx(length_km: float = 6.0, climb_m: float = 60.0) -> bytes:
-    """A made-up road heading north-east with one hill, points every ~20 m (GPX 1.1)."""
-    gpx = gpxpy.gpx.GPX()
-    track = gpxpy.gpx.GPXTrack(name="test hill road")
-    segment = gpxpy.gpx.GPXTrackSegment()
-    count = int(length_km * 50) + 1
-    for i in range(count):
-        along = i / (count - 1)
-        metres = along * length_km * 1000.0
-        lat = 47.0 + metres * math.cos(math.radians(40)) / 111_195.0
-        lon = 8.0 + metres * math.sin(math.radians(40)) / (111_195.0 * math.cos(math.radians(47)))
-        ele = 400.0 + climb_m * math.sin(math.pi * along) ** 2
-        segment.points.append(gpxpy.gpx.GPXTrackPoint(lat, lon, elevation=ele))
-    track.segments.append(segment)
-    gpx.tracks.append(track)
-    return gpx.to_xml(version="1.1").encode("utf-8")
-
 
 def started() -> AppTest:
     app = AppTest.from_file(APP, default_timeout=120)
@@ -106,7 +87,7 @@ def test_uploading_a_gpx_updates_the_table():
     app = started()
     before = targets(app)
     app.file_uploader(key="upload_gpx").set_value(
-        ("hill road.gpx", small_gpx(6.0), "application/gpx+xml")).run()
+        ("hill road.gpx", hill_road_gpx(6.0), "application/gpx+xml")).run()
     no_failure(app)
     assert not app.error, [e.value for e in app.error]
     after = targets(app)
@@ -219,7 +200,7 @@ class TestPipeline:
     def test_upload_path_reads_gpx_bytes(self):
         from ui.pipeline import load_course_from_bytes
 
-        course = load_course_from_bytes(small_gpx(6.0), "hill road", 100.0, 0.25)
+        course = load_course_from_bytes(hill_road_gpx(6.0), "hill road", 100.0, 0.25)
         assert course.total_distance == pytest.approx(6000.0, rel=0.01)
         assert course.ascent == pytest.approx(60.0, abs=5.0)
 
@@ -311,7 +292,7 @@ class TestFigures:
 
 def test_a_gpx_without_heights_is_refused_or_flat_on_request():
     app = started()
-    flat = small_gpx(5.0).replace(b"<ele>", b"<!--").replace(b"</ele>", b"-->")
+    flat = hill_road_gpx(5.0).replace(b"<ele>", b"<!--").replace(b"</ele>", b"-->")
     app.file_uploader(key="upload_gpx").set_value(("flat.gpx", flat, "application/gpx+xml"))
     app.run()
     no_failure(app)
@@ -365,7 +346,7 @@ def test_a_saved_plan_reopens_in_the_page_with_its_course_split_and_approach(tmp
     monkeypatch.setenv("PACING_DATABASE_URL", str(tmp_path / "library.sqlite3"))
     app = started()
     app.file_uploader(key="upload_gpx").set_value(
-        ("hill road.gpx", small_gpx(8.0, 80.0), "application/gpx+xml")).run()
+        ("hill road.gpx", hill_road_gpx(8.0, 80.0), "application/gpx+xml")).run()
     app.number_input(key="smooth_window:metric").set_value(150.0).run()
     app.radio(key="split_mode").set_value("fixed length").run()
     app.number_input(key="split_length:metric").set_value(2.0).run()

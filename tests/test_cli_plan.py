@@ -9,8 +9,8 @@ from __future__ import annotations
 import json
 import math
 
-import numpy as np
 import pytest
+from samples import north_hill_gpx
 
 from pacing.cli import main
 
@@ -24,19 +24,9 @@ SEGMENT_KEYS = {"start_m", "end_m", "grade", "power_w", "power_low_w", "power_hi
 
 @pytest.fixture(scope="module")
 def route(tmp_path_factory):
-    """A 6 km out-and-up course heading north: flat, a 5 % climb, a descent (GPX 1.1)."""
-    metres_per_degree = 111_195.0
-    distance = np.arange(0.0, 6001.0, 25.0)
-    elevation = np.interp(distance, [0, 2000, 4000, 6000], [100, 100, 200, 120])
-    points = "\n".join(
-        f'<trkpt lat="{45.0 + d / metres_per_degree:.7f}" lon="6.0000000">'
-        f"<ele>{e:.2f}</ele></trkpt>"
-        for d, e in zip(distance, elevation, strict=True))
-    text = ('<?xml version="1.0" encoding="UTF-8"?>\n'
-            '<gpx version="1.1" creator="tests" xmlns="http://www.topografix.com/GPX/1/1">'
-            f"<trk><name>test hill</name><trkseg>\n{points}\n</trkseg></trk></gpx>\n")
+    """A 6 km course heading north: flat, a 5 % climb, a descent (GPX 1.1)."""
     path = tmp_path_factory.mktemp("routes") / "hill.gpx"
-    path.write_text(text, encoding="utf-8")
+    path.write_text(north_hill_gpx(), encoding="utf-8")
     return str(path)
 
 

@@ -11,16 +11,15 @@ from __future__ import annotations
 import functools
 import io
 import json
-import math
 import sys
 from pathlib import Path
 
-import gpxpy.gpx
 import numpy as np
 import pandas as pd
 import pytest
 from hypothesis import given, settings
 from hypothesis import strategies as st_
+from samples import hill_road_gpx
 from streamlit.testing.v1 import AppTest
 
 ROOT = Path(__file__).resolve().parents[1]
@@ -37,24 +36,6 @@ EARTH_RADIUS = 6371008.8  # m, IUGG mean radius
 
 
 # ------------------------------------------------------------------------------ fixtures
-
-def hill_road_gpx(length_km: float = 6.0, climb_m: float = 60.0) -> bytes:
-    """A made-up road heading north-east with one hill, points every ~20 m (GPX 1.1)."""
-    gpx = gpxpy.gpx.GPX()
-    track = gpxpy.gpx.GPXTrack(name="test hill road")
-    segment = gpxpy.gpx.GPXTrackSegment()
-    count = int(length_km * 50) + 1
-    for i in range(count):
-        along = i / (count - 1)
-        metres = along * length_km * 1000.0
-        lat = 47.0 + metres * math.cos(math.radians(40)) / 111_195.0
-        lon = 8.0 + metres * math.sin(math.radians(40)) / (111_195.0 * math.cos(math.radians(47)))
-        ele = 400.0 + climb_m * math.sin(math.pi * along) ** 2
-        segment.points.append(gpxpy.gpx.GPXTrackPoint(lat, lon, elevation=ele))
-    track.segments.append(segment)
-    gpx.tracks.append(track)
-    return gpx.to_xml(version="1.1").encode("utf-8")
-
 
 @pytest.fixture(scope="module")
 def hill_road():
