@@ -22,7 +22,7 @@ from pathlib import Path
 
 import pandas as pd
 import pytest
-from test_app import small_gpx
+from samples import hill_road_gpx
 
 pytestmark = [pytest.mark.browser, pytest.mark.slow]
 
@@ -131,7 +131,7 @@ def test_coach_workflow_in_chromium(server, page, tmp_path):
 
     # upload a GPX
     gpx = tmp_path / "hill road.gpx"
-    gpx.write_bytes(small_gpx(6.0))
+    gpx.write_bytes(hill_road_gpx(6.0))
     page.locator('input[type="file"][accept*=".gpx"]').set_input_files(str(gpx))
     page.wait_for_function(
         "() => [...document.querySelectorAll('[data-testid=\"stMetricValue\"]')]"
