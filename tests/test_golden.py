@@ -1,0 +1,69 @@
+"""Golden outputs: the command line's JSON and the page's numbers on the demo courses and a
+simulated test ride stay what they were when recorded (tests/golden/record.py), to 1e-9.
+
+This guards moves and refactors: a change here must be a deliberate change of a model, recorded
+again on purpose and noted in CHANGELOG.md.
+"""
+
+from __future__ import annotations
+
+import json
+import math
+import sys
+from pathlib import Path
+
+import pytest
+
+GOLDEN = Path(__file__).parent / "golden"
+sys.path.insert(0, str(GOLDEN))
+
+from cases import app_cases, cases, run_app_case, run_case, write_ride  # noqa: E402
+
+TOLERANCE = 1e-9
+RECORDED = json.loads((GOLDEN / "golden.json").read_text())
+RECORDED_APP = json.loads((GOLDEN / "golden_app.json").read_text())
+
+
+def differences(expected, actual, where="") -> list[str]:
+    """Where two JSON values differ: numbers beyond 1e-9 (relative, or absolute near 0),
+    anything else not equal."""
+    if isinstance(expected, dict) and isinstance(actual, dict):
+        found = [f"{where}: keys {sorted(set(expected) ^ set(actual))}"] \
+            if set(expected) != set(actual) else []
+        for key in expected.keys() & actual.keys():
+            found += differences(expected[key], actual[key], f"{where}.{key}")
+        return found
+    if isinstance(expected, list) and isinstance(actual, list):
+        if len(expected) != len(actual):
+            return [f"{where}: length {len(expected)} → {len(actual)}"]
+        return [d for k, (e, a) in enumerate(zip(expected, actual, strict=True))
+                for d in differences(e, a, f"{where}[{k}]")]
+    numbers = (int, float)
+    if isinstance(expected, numbers) and isinstance(actual, numbers) \
+            and not isinstance(expected, bool):
+        if math.isclose(expected, actual, rel_tol=TOLERANCE, abs_tol=TOLERANCE):
+            return []
+        return [f"{where}: {expected!r} → {actual!r}"]
+    return [] if expected == actual else [f"{where}: {expected!r} → {actual!r}"]
+
+
+@pytest.fixture(scope="module")
+def ride(tmp_path_factory):
+    return write_ride(tmp_path_factory.mktemp("golden") / "ride.csv")
+
+
+@pytest.mark.parametrize("name", sorted(RECORDED))
+def test_command_line_output_is_unchanged(name, ride):
+    code, output = run_case(cases(ride)[name])
+    assert code == 0
+    assert differences(RECORDED[name], output) == []
+
+
+@pytest.mark.parametrize("name", sorted(RECORDED_APP))
+def test_page_numbers_are_unchanged(name):
+    assert differences(RECORDED_APP[name], run_app_case(*app_cases()[name])) == []
+
+
+def test_every_case_is_recorded():
+    assert set(cases("ride.csv")) == set(RECORDED)
+    assert set(app_cases()) == set(RECORDED_APP)
