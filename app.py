@@ -13,11 +13,20 @@ from pathlib import Path
 import numpy as np
 import streamlit as st
 
+from pacing.display.units import format_quantity
 from pacing.errors import InputError
 from pacing.io.exports import segment_table
-from pacing.units import format_quantity
-from pacing.wind import ROUGHNESS_LENGTHS
-from ui import comparison, fieldtest_panel, figures, library_panel, pipeline, sections, text
+from pacing.physics.wind import ROUGHNESS_LENGTHS
+from ui import (
+    comparison,
+    fieldtest_panel,
+    figures,
+    library_data,
+    library_panel,
+    pipeline,
+    sections,
+    text,
+)
 
 st.set_page_config(page_title="pacing · race plan", layout="wide")
 
@@ -106,7 +115,7 @@ except OSError:
 
 def leave_library_course() -> None:
     """Choosing a demo course or a file puts the page back on it (off a reopened plan's)."""
-    st.session_state.pop(library_panel.LIBRARY_COURSE, None)
+    st.session_state.pop(library_data.LIBRARY_COURSE, None)
 
 
 cols = st.columns([2, 3])
@@ -119,7 +128,7 @@ allow_flat = cols[1].checkbox("A file without heights is a flat course", key="al
                               help="otherwise such a file is refused")
 smoothing = sections.smoothing_inputs(system)
 source_bytes, source_name = None, None
-library_course = st.session_state.get(library_panel.LIBRARY_COURSE)
+library_course = st.session_state.get(library_data.LIBRARY_COURSE)
 if library_course:
     source_bytes, source_name = library_course["gpx"], library_course["name"]
     cols = st.columns([4, 1])

@@ -11,14 +11,19 @@ import time
 
 import numpy as np
 
-from pacing.compare import RiderSetup, break_even, compare_setups, mixed_plan
-from pacing.conditions import Conditions, air_along_course
-from pacing.course import split_by_grade
-from pacing.cycling import Rider
+from pacing.compare.sensitivity import (
+    Uncertainty,
+    finish_time_spread,
+    sampled_finish_time,
+    sensitivity,
+)
+from pacing.compare.setups import RiderSetup, break_even, compare_setups, mixed_plan
+from pacing.course.segments import split_by_grade
 from pacing.io.gpx import demo_route_paths, load_course
-from pacing.sensitivity import Uncertainty, finish_time_spread, sampled_finish_time, sensitivity
-from pacing.simulate import simulate
-from pacing.strategy import PlanRequest
+from pacing.physics.cycling import Rider
+from pacing.plan.request import PlanRequest
+from pacing.plan.simulate import simulate
+from pacing.weather.conditions import Conditions, air_along_course
 
 
 def timed(action):

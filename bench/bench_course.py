@@ -10,7 +10,8 @@ import time
 
 import numpy as np
 
-from pacing.course import build_course, split_by_grade
+from pacing.course.geometry import build_course
+from pacing.course.segments import split_by_grade
 from pacing.io.gpx import DEFAULT_DEMO_ROUTE, load_course, read_track, write_gpx
 
 

@@ -1,8 +1,8 @@
 """Benchmark of the cycling solvers on a 200 km course at 10 m (20,000 points).
 
 Prints, never asserts:
-- steady-state speeds for the whole course (pacing.cycling.speed_for_power; target < 50 ms),
-- the inertial simulation (pacing.simulate.simulate; target < 1 s),
+- steady-state speeds for the whole course (pacing.physics.cycling.speed_for_power; target < 50 ms),
+- the inertial simulation (pacing.plan.simulate.simulate; target < 1 s),
 - scipy's solve_ivp on the same model at equal accuracy on finish time, and the ratio
   (target >= 20x),
 - scaling with course length (50/100/200 km): time per point should stay flat.
@@ -23,10 +23,11 @@ import time
 import numpy as np
 from scipy.integrate import solve_ivp
 
-from pacing.conditions import Conditions, air_along_course
-from pacing.course import synthetic_course
-from pacing.cycling import Rider, speed_for_power
-from pacing.simulate import SimulationOptions, simulate, steady_prediction
+from pacing.course.geometry import synthetic_course
+from pacing.physics.cycling import Rider, speed_for_power
+from pacing.plan.prediction import SimulationOptions, steady_prediction
+from pacing.plan.simulate import simulate
+from pacing.weather.conditions import Conditions, air_along_course
 
 STEP = 10.0
 POWER = 250.0

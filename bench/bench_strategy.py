@@ -16,11 +16,13 @@ from pathlib import Path
 
 import numpy as np
 
-from pacing.conditions import Conditions, CourseAir, air_along_course
-from pacing.course import split_by_grade, split_every, synthetic_course
-from pacing.cycling import Rider
-from pacing.simulate import SimulationOptions
-from pacing.strategy import PlanRequest, make_plan
+from pacing.course.geometry import synthetic_course
+from pacing.course.segments import split_by_grade, split_every
+from pacing.physics.cycling import Rider
+from pacing.plan.cycling import make_plan
+from pacing.plan.prediction import SimulationOptions
+from pacing.plan.request import PlanRequest
+from pacing.weather.conditions import Conditions, CourseAir, air_along_course
 
 STEP = 10.0
 

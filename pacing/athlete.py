@@ -3,15 +3,15 @@ imply.
 
 An Athlete is the person (body mass, physiology); a Setup is a bike with a riding position
 (drag area, the share of the athlete's power the position allows, rolling resistance). The
-cycling power balance takes a Rider (pacing.cycling), made by `rider_for`.
+cycling power balance takes a Rider (pacing.physics.cycling), made by `rider_for`.
 """
 
 from __future__ import annotations
 
 from dataclasses import dataclass
 
-from pacing.cycling import MARTIN_1998, Rider
 from pacing.errors import InputError
+from pacing.physics.cycling import MARTIN_1998, Rider
 
 
 @dataclass(frozen=True)

@@ -238,7 +238,7 @@ class TestFigures:
     def course(self):
         import numpy as np
 
-        from pacing.course import synthetic_course
+        from pacing.course.geometry import synthetic_course
 
         distance = np.linspace(0.0, 10000.0, 1001)
         return synthetic_course(distance, 200 + 40 * np.sin(distance / 1500.0),
@@ -327,7 +327,7 @@ def test_the_app_cleans_elevation_like_the_command_line(app):
     # Review finding 13: the app's smoothing window (100 m) differed from the library default
     # that `pacing course` uses (ElevationSmoothing(), 200 m), so the two showed different
     # cleaned ascents for the same file.
-    from pacing.course import ElevationSmoothing
+    from pacing.course.elevation import ElevationSmoothing
     from pacing.io.gpx import DEFAULT_DEMO_ROUTE, load_course
 
     defaults = ElevationSmoothing()

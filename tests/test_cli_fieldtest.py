@@ -1,5 +1,5 @@
-"""``pacing fieldtest`` on synthetic test rides (see tests/test_fieldtest.py for the forward
-simulation and the published noise levels it uses)."""
+"""``pacing fieldtest`` on synthetic test rides (see tests/test_fieldtest_estimate.py for the
+forward simulation and the published noise levels it uses)."""
 
 from __future__ import annotations
 
@@ -7,7 +7,7 @@ import json
 
 import numpy as np
 import pytest
-from test_fieldtest import POWER_CV, TRUE_AREA, TRUE_ROLLING, simulate_loop_ride
+from test_fieldtest_estimate import POWER_CV, TRUE_AREA, TRUE_ROLLING, simulate_loop_ride
 
 from pacing.cli import main
 
@@ -140,8 +140,9 @@ def test_varied_laps_fit_crr(capsys, ride_file):
 
 def test_negative_crr_and_undetermined_cda_are_flagged_in_text():
     from pacing.cli.fieldtest import _as_text
-    from pacing.cycling import Rider
-    from pacing.fieldtest import PositionTest, estimate_drag, make_ride
+    from pacing.fieldtest.estimate import PositionTest, estimate_drag
+    from pacing.fieldtest.ride import make_ride
+    from pacing.physics.cycling import Rider
 
     # a power meter reading 40 W low on varied laps: Crr comes out below 0
     data = simulate_loop_ride()

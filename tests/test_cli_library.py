@@ -12,7 +12,7 @@ import pytest
 
 from pacing.athlete import Athlete, Setup
 from pacing.cli import main
-from pacing.store import open_library
+from pacing.store.library import open_library
 
 GPX = b"<?xml version='1.0'?>\r\n<gpx version='1.1'><trk><name>Loop</name></trk></gpx>\r\n"
 

@@ -143,7 +143,7 @@ def test_tiny_power_walks_the_bike_and_is_flagged_never_nan(capsys, route):
     assert math.isfinite(result["finish_time_s"]) and result["finish_time_s"] > 0
     # walked: the flat 2 km and the 5 % climb; the −4 % descent rolls on gravity alone
     assert 4000.0 - 30.0 <= result["walking_distance_m"] < result["distance_m"] - 1500.0
-    # walking pace (1 m/s, pacing.cycling.WALKING_SPEED) is the slowest the rider goes
+    # walking pace (1 m/s, pacing.physics.cycling.WALKING_SPEED) is the slowest the rider goes
     assert result["average_speed_mps"] >= 0.99
     assert main(["plan", route, "--power", "0.5"]) == 0
     out = capsys.readouterr().out

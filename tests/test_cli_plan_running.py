@@ -8,10 +8,10 @@ import numpy as np
 import pytest
 
 from pacing.cli import main
-from pacing.course import synthetic_course
+from pacing.course.geometry import synthetic_course
+from pacing.display.units import format_duration
 from pacing.io.gpx import load_course, write_gpx
-from pacing.running import runner_drag_area
-from pacing.units import format_duration
+from pacing.physics.running import runner_drag_area
 
 
 @pytest.fixture
@@ -168,7 +168,7 @@ def test_json_has_the_cycling_keys_and_the_d_prime_balance(capsys, hilly_route):
 def test_equal_effort_is_at_least_as_fast_as_even_pace_on_a_flat_out_and_back_in_wind(
         capsys, tmp_path):
     # issue 5's property, through the command line (the hilly case is the model's physics:
-    # see pacing.running_plans' docstring)
+    # see pacing.plan.running' docstring)
     distance = np.arange(0.0, 6000.1, 10.0)
     heading = np.where(distance[:-1] < 3000.0, 0.0, 180.0)
     path = tmp_path / "outback.gpx"

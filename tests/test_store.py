@@ -31,18 +31,21 @@ from hypothesis import strategies as st
 import pacing
 from pacing.athlete import Athlete, Setup
 from pacing.errors import ConflictError, InputError
-from pacing.store import (
-    dump_library_file,
-    export_library,
+from pacing.store.database import (
+    create_library_engine,
+    downgrade,
     head_revision,
-    import_library,
     migrate,
-    open_library,
-    read_library_file,
     resolve_database_url,
     schema_revision,
 )
-from pacing.store.database import create_library_engine, downgrade
+from pacing.store.library import open_library
+from pacing.store.library_file import (
+    dump_library_file,
+    export_library,
+    import_library,
+    read_library_file,
+)
 from pacing.store.schema import TABLES, metadata
 
 POSTGRES_ENV = "PACING_TEST_POSTGRES_URL"

@@ -1,5 +1,5 @@
-"""Reopening a saved plan (pacing.store.reproduce_plan): the same inputs give the same numbers,
-or the report says what changed, shows both versions and whether pacing's version differs.
+"""Reopening a saved plan (pacing.store.reproduce.reproduce_plan): the same inputs give the same
+numbers, or the report says what changed, shows both versions and whether pacing's version differs.
 Also the strict JSON values plans are stored as (pacing.store.jsontext)."""
 
 from __future__ import annotations
@@ -15,8 +15,9 @@ from hypothesis import strategies as st
 
 import pacing
 from pacing.errors import InputError
-from pacing.store import PLAN_RESULT_KEYS, PlanRecord, PlanSummary, jsontext, reproduce_plan
-from pacing.store.reproduce import RELATIVE_TOLERANCE, compare_values
+from pacing.store import jsontext
+from pacing.store.records import PLAN_RESULT_KEYS, PlanRecord, PlanSummary
+from pacing.store.reproduce import RELATIVE_TOLERANCE, compare_values, reproduce_plan
 
 NOW = datetime.datetime(2026, 12, 1, 20, 0, tzinfo=datetime.UTC)
 

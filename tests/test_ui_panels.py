@@ -26,9 +26,15 @@ ROOT = Path(__file__).resolve().parents[1]
 if str(ROOT) not in sys.path:  # the app's ui/ package sits beside app.py
     sys.path.insert(0, str(ROOT))
 
-from pacing.cycling import Rider, resistive_force  # noqa: E402
 from pacing.errors import ConflictError, InputError  # noqa: E402
-from ui import comparison, fieldtest_panel, library_panel  # noqa: E402
+from pacing.physics.cycling import Rider, resistive_force  # noqa: E402
+from ui import (  # noqa: E402
+    comparison,
+    comparison_figures,
+    comparison_tables,
+    fieldtest_panel,
+    library_data,
+)
 
 POUND = 0.45359237  # kg, exact (NIST SP 811 (2008), Appendix B.8)
 MILE_PER_HOUR = 0.44704  # m/s, exact (NIST SP 811 (2008), Appendix B.8)
@@ -40,7 +46,7 @@ EARTH_RADIUS = 6371008.8  # m, IUGG mean radius
 @pytest.fixture(scope="module")
 def hill_road():
     """(course, bounds, air, conditions) of the small hill road with a 4 m/s west wind."""
-    from pacing.conditions import Conditions, air_along_course
+    from pacing.weather.conditions import Conditions, air_along_course
     from ui import pipeline
 
     course = pipeline.load_course_from_bytes(hill_road_gpx(), "hill road", 100.0, 0.25)
@@ -55,8 +61,8 @@ BODY_MASS = 72.0
 
 @pytest.fixture(scope="module")
 def report(hill_road):
-    from pacing.sensitivity import Uncertainty
-    from pacing.strategy import PlanRequest
+    from pacing.compare.sensitivity import Uncertainty
+    from pacing.plan.request import PlanRequest
 
     course, bounds, air, conditions = hill_road
     rows = comparison.default_setup_rows(BASE_RIDER, BODY_MASS, "metric")
@@ -145,14 +151,14 @@ def test_bike_mass_survives_the_editor_in_either_unit_system(bike, system):
 
 @given(seconds=st_.floats(-7200.0, 7200.0))
 def test_a_signed_difference_reads_quicker_or_slower(seconds):
-    text = comparison.signed_time(seconds)
+    text = comparison_tables.signed_time(seconds)
     assert text[0] == ("+" if seconds > 0.05 else "−" if seconds < -0.05 else "±")
     assert "nan" not in text
 
 
 class TestComparisonHelpers:
     def test_ranked_bars_show_each_difference_with_its_spread(self, report):
-        figure = comparison.difference_figure(report)
+        figure = comparison_figures.difference_figure(report)
         bars = figure.data[0]
         ranked = sorted(report.comparison.results, key=lambda r: r.finish_time)
         assert list(bars.x) == pytest.approx([r.delta for r in ranked])
@@ -164,13 +170,14 @@ class TestComparisonHelpers:
         colors = dict(zip(bars.y, bars.marker.color, strict=True))
         for r in ranked:
             name = (f"{r.name} · baseline" if r is base
-                    else f"{r.name} · {comparison.signed_time(r.delta)}")
-            expected = (comparison.BASELINE_COLOR if r is base else comparison.FASTER_COLOR
-                        if r.delta < 0 else comparison.SLOWER_COLOR)
+                    else f"{r.name} · {comparison_tables.signed_time(r.delta)}")
+            figures = comparison_figures
+            expected = (figures.BASELINE_COLOR if r is base else figures.FASTER_COLOR
+                        if r.delta < 0 else figures.SLOWER_COLOR)
             assert colors[name] == expected
 
     def test_results_table_is_fastest_first_with_units(self, report):
-        table = comparison.results_table(report, "metric")
+        table = comparison_tables.results_table(report, "metric")
         order = sorted(report.comparison.results, key=lambda r: r.finish_time)
         assert [name.replace(" (baseline)", "") for name in table["Setup"]] == \
             [r.name for r in order]
@@ -179,15 +186,15 @@ class TestComparisonHelpers:
 
     def test_time_along_the_course_ends_at_the_finish_difference(self, report, hill_road):
         course = hill_road[0]
-        figure = comparison.gap_along_figure(report, course, "metric")
+        figure = comparison_figures.gap_along_figure(report, course, "metric")
         lines = {trace.name: trace for trace in figure.data if trace.name != "terrain"}
         for r in report.comparison.results:
             assert lines[r.name].y[-1] == pytest.approx(r.delta, abs=1e-6)
             assert lines[r.name].x[-1] == pytest.approx(course.distance[-1] / 1000.0)
 
     def test_sensitivity_table_per_pound_and_per_mph_in_imperial(self, report):
-        metric = comparison.sensitivity_table(report, "metric").set_index("Change")
-        imperial = comparison.sensitivity_table(report, "imperial").set_index("Change")
+        metric = comparison_tables.sensitivity_table(report, "metric").set_index("Change")
+        imperial = comparison_tables.sensitivity_table(report, "imperial").set_index("Change")
         assert list(metric.index)[1] == "mass +1 kg"
         assert list(imperial.index)[1] == "mass +1 lb"
         for column in metric.columns:
@@ -203,7 +210,7 @@ class TestComparisonHelpers:
             assert metric[column].iloc[2] < 0 and metric[column].iloc[3] > 0
 
     def test_break_even_sentences_carry_the_library_figures(self, report):
-        lines = comparison.break_even_sentences(report, "metric")
+        lines = comparison_tables.break_even_sentences(report, "metric")
         assert len(lines) == len(report.comparison.results) - 1
         lower = report.break_evens["lower position"]
         line = next(text for text in lines if text.startswith("**lower position**"))
@@ -213,8 +220,8 @@ class TestComparisonHelpers:
 
     def test_break_even_power_ties_on_the_simulation(self, report, hill_road):
         """Riding the setup's plan scaled to the break-even mean power ties with the
-        baseline (an independent check by direct simulation, pacing.simulate)."""
-        from pacing.simulate import simulate
+        baseline (an independent check by direct simulation, pacing.plan.simulate)."""
+        from pacing.plan.simulate import simulate
 
         course, _, air, _ = hill_road
         result = report.comparison.result("lower position")
@@ -226,19 +233,19 @@ class TestComparisonHelpers:
                                                  abs=0.05)
 
     def test_position_by_segment_in_words_and_as_bands(self, report, hill_road):
-        text = comparison.mixed_summary(report)
+        text = comparison_tables.mixed_summary(report)
         mixed = report.mixed
         assert mixed is not None  # "as entered" and "lower position" share bike and tyres
         assert mixed.best_single in text
-        figure = comparison.mixed_figure(report, hill_road[0], "metric")
+        figure = comparison_figures.mixed_figure(report, hill_road[0], "metric")
         assert len(figure.data) == len(mixed.names)
 
     def test_signed_time_reads_like_a_split(self):
-        assert comparison.signed_time(-19.04) == "−19.0 s"
-        assert comparison.signed_time(75.0) == "+1:15.0 min"
-        assert comparison.signed_time(float("nan")) == "–"
-        assert comparison.verdict(10.0, 3.0) == "clear"
-        assert comparison.verdict(5.0, 3.0) == "within the uncertainty"
+        assert comparison_tables.signed_time(-19.04) == "−19.0 s"
+        assert comparison_tables.signed_time(75.0) == "+1:15.0 min"
+        assert comparison_tables.signed_time(float("nan")) == "–"
+        assert comparison_tables.verdict(10.0, 3.0) == "clear"
+        assert comparison_tables.verdict(5.0, 3.0) == "within the uncertainty"
 
 
 def comparison_page(sport: str = "cycling", strategy: str = "constant",
@@ -314,7 +321,7 @@ def test_comparison_view_in_imperial_units():
 
 def test_conflicts_read_as_changed_in_another_window(tmp_path):
     from pacing.athlete import Athlete
-    from pacing.store import open_library
+    from pacing.store.library import open_library
 
     with open_library(tmp_path / "lib.sqlite3") as first, \
             open_library(tmp_path / "lib.sqlite3") as second:
@@ -324,7 +331,7 @@ def test_conflicts_read_as_changed_in_another_window(tmp_path):
         with pytest.raises(ConflictError) as caught:
             first.update_athlete(stored.id, Athlete(name="Ann", body_mass=62.0),
                                  revision=stored.revision)
-    message = library_panel.error_message(caught.value)
+    message = library_data.error_message(caught.value)
     assert message.startswith("changed in another window — reload")
     assert "\n" not in message
 
@@ -332,11 +339,11 @@ def test_conflicts_read_as_changed_in_another_window(tmp_path):
 def test_page_values_use_the_page_keys():
     from pacing.athlete import Athlete, Setup
 
-    values = library_panel.page_values(Athlete(name="Ann", body_mass=61.0, critical_power=250.0),
+    values = library_data.page_values(Athlete(name="Ann", body_mass=61.0, critical_power=250.0),
                                        Setup(name="TT", drag_area=0.23, bike_mass=9.0))
     assert values["body_mass"] == 61.0 and values["drag_area"] == 0.23
     assert values["bike_mass"] == 9.0 and "flat_pace" not in values  # unknowns left out
-    assert set(values) <= set(library_panel.PAGE_WIDGETS) | {"power_share", "flat_pace"}
+    assert set(values) <= set(library_data.PAGE_WIDGETS) | {"power_share", "flat_pace"}
 
 
 def library_page(location: str):
@@ -351,7 +358,8 @@ def library_page(location: str):
     if str(root) not in sys.path:
         sys.path.insert(0, str(root))
     from ui import pipeline
-    from ui.library_panel import page_plan_inputs, plan_result, render_library
+    from ui.library_data import page_plan_inputs, plan_result
+    from ui.library_panel import render_library
 
     @st.cache_resource
     def demo_plan():
@@ -377,7 +385,8 @@ def library_page(location: str):
 
 def library_state(path) -> dict:
     """Everything in the library file but the export stamp (to see that nothing changed)."""
-    from pacing.store import export_library, open_library
+    from pacing.store.library import open_library
+    from pacing.store.library_file import export_library
 
     with open_library(path) as library:
         data = export_library(library)
@@ -454,7 +463,8 @@ def test_a_bad_library_file_is_refused_and_changes_nothing(tmp_path, content):
 
 def test_a_good_library_file_is_brought_in(tmp_path):
     from pacing.athlete import Athlete, Setup
-    from pacing.store import dump_library_file, open_library
+    from pacing.store.library import open_library
+    from pacing.store.library_file import dump_library_file
 
     with open_library(tmp_path / "other.sqlite3") as other:
         bea = other.add_athlete(Athlete(name="Bea", body_mass=58.0))
@@ -473,7 +483,7 @@ def test_a_good_library_file_is_brought_in(tmp_path):
 
 # ------------------------------------------------------------------------------ field test
 
-AIR_DENSITY = 1.19931  # CIPM-2007 at 20 °C, 50 % RH, 101325 Pa as pacing.air gives it (the
+AIR_DENSITY = 1.19931  # CIPM-2007 at 20 °C, 50 % RH, 101325 Pa as pacing.physics.air gives it (the
 # panel's default air; checked below)
 
 
@@ -483,7 +493,7 @@ def loop_ride_csv(drag_area: float = 0.30, rolling: float = 0.005,
                   power_cv: float = 0.012) -> bytes:
     """A test ride as CSV: laps of a 2 km circular loop with a gentle hill, one constant power
     per lap, integrated (RK4, 0.5 s steps) with the Martin et al. (1998) forces of
-    pacing.cycling; 1 Hz samples; power-meter noise with CV 1.2 % (Maier et al. 2017, Int J
+    pacing.physics.cycling; 1 Hz samples; power-meter noise with CV 1.2 % (Maier et al. 2017, Int J
     Sports Med 38:456)."""
     rider = Rider(mass=80.0, drag_area=drag_area, rolling_coefficient=rolling)
     length, amplitude = 2000.0, 5.0
@@ -528,7 +538,7 @@ def loop_ride_csv(drag_area: float = 0.30, rolling: float = 0.005,
 
 
 def test_the_synthetic_ride_uses_the_panels_air_density():
-    from pacing.air import AIR_DENSITY_MODELS, standard_pressure
+    from pacing.physics.air import AIR_DENSITY_MODELS, standard_pressure
 
     density = float(AIR_DENSITY_MODELS["cipm_2007"](20.0, standard_pressure(0.0), 0.5))
     assert density == pytest.approx(AIR_DENSITY, rel=1e-5)
@@ -537,7 +547,7 @@ def test_the_synthetic_ride_uses_the_panels_air_density():
 
 
 def test_fieldtest_recovers_cda_and_crr_of_a_synthetic_ride():
-    from pacing.conditions import Conditions
+    from pacing.weather.conditions import Conditions
 
     run = fieldtest_panel.run_fieldtest([("ride.csv", loop_ride_csv(), "hoods")], 80.0,
                                         Conditions(), "loop")
@@ -553,7 +563,7 @@ def test_fieldtest_recovers_cda_and_crr_of_a_synthetic_ride():
 
 
 def test_two_positions_differ_significantly():
-    from pacing.conditions import Conditions
+    from pacing.weather.conditions import Conditions
 
     files = [("hoods.csv", loop_ride_csv(0.32), "hoods"),
              ("aero.csv", loop_ride_csv(0.26, seed=5), "aero bars")]
@@ -570,7 +580,7 @@ def test_two_positions_differ_significantly():
     ([("ride.csv", b"", "x")], "empty"),
 ])
 def test_bad_rides_are_one_line_errors(files, words):
-    from pacing.conditions import Conditions
+    from pacing.weather.conditions import Conditions
 
     with pytest.raises(InputError, match=words) as caught:
         fieldtest_panel.run_fieldtest(files, 80.0, Conditions())
@@ -621,7 +631,7 @@ def test_fieldtest_panel_shows_a_bad_file_as_one_line():
 
 def test_laps_marked_by_time_replace_positions():
     """Without positions the laps are marked by their start times [s]."""
-    from pacing.conditions import Conditions
+    from pacing.weather.conditions import Conditions
 
     frame = pd.read_csv(io.BytesIO(loop_ride_csv()))
     along = np.concatenate(([0.0], np.cumsum(0.5 * (frame.speed_mps.values[1:]
@@ -661,7 +671,7 @@ def test_a_measured_position_is_saved_as_a_setup_of_the_chosen_athlete(tmp_path)
     no_failure(app)
     assert app.button(key="library_add_athlete").disabled  # no page athlete to store
     from pacing.athlete import Athlete
-    from pacing.store import open_library
+    from pacing.store.library import open_library
 
     with open_library(path) as library:
         library.add_athlete(Athlete(name="Ann", body_mass=61.0))
@@ -707,16 +717,16 @@ def test_a_plan_saved_without_its_segment_choice_reopens_on_the_same_bounds():
     # them back as "my own marks" at those points' distances, in the page's units.
     import numpy as np
 
-    from pacing.course import synthetic_course
+    from pacing.course.geometry import synthetic_course
     from ui.pipeline import segment_bounds
 
     distance = np.linspace(0.0, 12340.0, 1235)
     course = synthetic_course(distance, 100 + 30 * np.sin(distance / 900.0))
     bounds = [0, 137, 640, 1001, 1234]
     for system in ("metric", "imperial"):
-        state = library_panel.plan_page_state({"bounds": bounds}, system, course)
+        state = library_data.plan_page_state({"bounds": bounds}, system, course)
         assert state["split_mode"] == "my own marks"
-        from pacing.units import from_display
+        from pacing.display.units import from_display
         from ui.pipeline import parse_marks
 
         marks = tuple(from_display(v, "distance", system)
@@ -731,7 +741,7 @@ def test_plan_page_state_sets_the_approach_terrain_and_smoothing():
                            "allow_zero_on_descents": True},
               "smoothing": {"window": 150.0, "max_grade": 0.2, "allow_flat": True},
               "split": {"mode": "fixed length", "length": 2000.0, "marks": []}}
-    state = library_panel.plan_page_state(inputs, "metric")
+    state = library_data.plan_page_state(inputs, "metric")
     assert state["approach"] == "Reach a finish time"
     assert state["target_time"] == "1:02:05"
     assert state["coast_descents"] is True
@@ -740,7 +750,7 @@ def test_plan_page_state_sets_the_approach_terrain_and_smoothing():
     assert state["allow_flat"] is True
     assert state["split_mode"] == "fixed length" and state["si:split_length"] == 2000.0
     assert state["cda_preset"] == "my own value"
-    from pacing.wind import ROUGHNESS_LENGTHS
+    from pacing.physics.wind import ROUGHNESS_LENGTHS
 
     assert ROUGHNESS_LENGTHS[state["terrain"]] == 0.03
 

@@ -5,12 +5,12 @@ to measure against, and reads at a glance which is fastest, by how much, how sur
 where on the course the time is won or lost, what each setup may give away before it stops
 paying, what each parameter is worth, and whether changing position by segment pays.
 
-Every number comes from the library (pacing.compare, pacing.sensitivity); ui.comparison_tables
-and ui.comparison_figures turn them into tables, sentences and plotly figures (pure helpers,
-testable without Streamlit; their names stay importable from here), and this module draws them
-(`render_comparison`, `render_comparison_for_page`).
+Every number comes from the library (pacing.compare.setups, pacing.compare.sensitivity);
+ui.comparison_tables and ui.comparison_figures turn them into tables, sentences and plotly figures
+(pure helpers, testable without Streamlit), and this module draws them (`render_comparison`,
+`render_comparison_for_page`).
 
-Sign convention (as in pacing.compare): a time difference is setup − baseline [s]; positive =
+Sign convention (as in pacing.compare.setups): a time difference is setup − baseline [s]; positive =
 slower.
 """
 
@@ -24,21 +24,14 @@ import numpy as np
 import pandas as pd
 import streamlit as st
 
+from pacing.display.units import format_duration, to_display, unit_label
 from pacing.errors import InputError
-from pacing.units import format_duration, to_display, unit_label
 from ui.comparison_figures import (
-    BASELINE_COLOR,
-    FASTER_COLOR,
-    INK,
-    SETUP_COLORS,
-    SLOWER_COLOR,
-    TERRAIN_FILL,
     difference_figure,
     gap_along_figure,
     mixed_figure,
 )
 from ui.comparison_tables import (
-    SENSITIVITY_ROWS,
     break_even_sentences,
     mixed_summary,
     results_table,
@@ -47,19 +40,6 @@ from ui.comparison_tables import (
     signed_time,
     verdict,
 )
-
-__all__ = [
-    # the setups, the analysis and the Streamlit view (this module)
-    "MAX_SHOWN_SETUPS", "DEFAULT_SPREAD", "COLUMNS", "mass_column", "default_setup_rows",
-    "setups_from_rows", "SetupsReport", "analyse_setups", "render_comparison",
-    "render_comparison_for_page",
-    # words and tables (ui.comparison_tables)
-    "SENSITIVITY_ROWS", "signed_time", "verdict", "results_table", "sensitivity_table",
-    "break_even_sentences", "segment_table", "mixed_summary",
-    # figures (ui.comparison_figures)
-    "FASTER_COLOR", "SLOWER_COLOR", "BASELINE_COLOR", "INK", "TERRAIN_FILL", "SETUP_COLORS",
-    "difference_figure", "gap_along_figure", "mixed_figure",
-]
 
 MAX_SHOWN_SETUPS = 6
 """Most setups the view compares at once (the library allows more; six stay readable)."""
@@ -93,7 +73,7 @@ def default_setup_rows(base_rider, body_mass: float, system: str) -> pd.DataFram
 
     Parameters
     ----------
-    base_rider : pacing.cycling.Rider of the page (mass = rider + bike + kit [kg]).
+    base_rider : pacing.physics.cycling.Rider of the page (mass = rider + bike + kit [kg]).
     body_mass : the athlete's body mass [kg].
     """
     bike = max(float(base_rider.mass) - float(body_mass), 0.0)
@@ -128,17 +108,17 @@ def _cell(row, column: str, name: str, low: float, high: float, unit: str) -> fl
 
 
 def setups_from_rows(rows, base_rider, body_mass: float, system: str) -> list:
-    """RiderSetups (pacing.compare) from the editor's rows; InputError with one line naming
+    """RiderSetups (pacing.compare.setups) from the editor's rows; InputError with one line naming
     the setup and the column for a bad cell.
 
     Parameters
     ----------
     rows : pandas DataFrame (or list of dicts) with the columns of `default_setup_rows`.
-    base_rider : pacing.cycling.Rider whose other parameters (drivetrain, wheels) every setup
-        keeps.
+    base_rider : pacing.physics.cycling.Rider whose other parameters (drivetrain, wheels) every
+        setup keeps.
     body_mass : [kg]; a setup's mass is body_mass + its bike and kit.
     """
-    from pacing.compare import RiderSetup
+    from pacing.compare.setups import RiderSetup
 
     records = rows.to_dict("records") if isinstance(rows, pd.DataFrame) else list(rows)
     records = [r for r in records if any(
@@ -174,7 +154,7 @@ def setups_from_rows(rows, base_rider, body_mass: float, system: str) -> list:
 
 
 def _from_display_mass(value: float, system: str) -> float:
-    from pacing.units import from_display
+    from pacing.display.units import from_display
 
     return float(from_display(value, "mass", system))
 
@@ -187,13 +167,13 @@ class SetupsReport:
 
     Attributes
     ----------
-    comparison : pacing.compare.Comparison.
-    sensitivities : setup name → pacing.sensitivity.Sensitivity.
-    spreads : setup name → pacing.sensitivity.Spread: of the difference to the baseline
+    comparison : pacing.compare.setups.Comparison.
+    sensitivities : setup name → pacing.compare.sensitivity.Sensitivity.
+    spreads : setup name → pacing.compare.sensitivity.Spread: of the difference to the baseline
         (difference_spread), of the finish time for the baseline itself (finish_time_spread).
-    break_evens : setup name → pacing.compare.BreakEven (not the baseline; empty when not
+    break_evens : setup name → pacing.compare.setups.BreakEven (not the baseline; empty when not
         asked for).
-    mixed : pacing.compare.MixedPlan, or None (fewer than two positions of one bike).
+    mixed : pacing.compare.setups.MixedPlan, or None (fewer than two positions of one bike).
     """
 
     comparison: object
@@ -209,18 +189,18 @@ def analyse_setups(course, bounds, air, setups, request, conditions, uncertainty
 
     Parameters
     ----------
-    course : pacing.course.Course; bounds : segment boundary point indices;
-    air : pacing.conditions.CourseAir of `conditions` on the course;
-    setups : pacing.compare.RiderSetup list; request : pacing.strategy.PlanRequest
+    course : pacing.course.geometry.Course; bounds : segment boundary point indices;
+    air : pacing.weather.conditions.CourseAir of `conditions` on the course;
+    setups : pacing.compare.setups.RiderSetup list; request : pacing.plan.request.PlanRequest
         ("constant" or "fastest"; power figures at power share 1);
-    conditions : pacing.conditions.Conditions (sensitivities re-derive the air from it);
-    uncertainty : pacing.sensitivity.Uncertainty (1 σ of CdA, Crr, mass, wind);
+    conditions : pacing.weather.conditions.Conditions (sensitivities re-derive the air from it);
+    uncertainty : pacing.compare.sensitivity.Uncertainty (1 σ of CdA, Crr, mass, wind);
     baseline : name or index of the setup the others are measured against;
     break_even_figures : also search the break-even power, CdA and mass (a few simulations
-        per setup); options : pacing.simulate.SimulationOptions.
+        per setup); options : pacing.plan.prediction.SimulationOptions.
     """
-    from pacing.compare import break_even, compare_setups, mixed_plan
-    from pacing.sensitivity import difference_spread, finish_time_spread, sensitivity
+    from pacing.compare.sensitivity import difference_spread, finish_time_spread, sensitivity
+    from pacing.compare.setups import break_even, compare_setups, mixed_plan
 
     comparison = compare_setups(course, bounds, setups, air, request, baseline, options)
     base = comparison.baseline_result
@@ -278,7 +258,7 @@ def _first_line(error: Exception) -> str:
 
 
 def _uncertainty_inputs(system: str):
-    from pacing.sensitivity import Uncertainty
+    from pacing.compare.sensitivity import Uncertainty
     from ui.widgets import unit_number
 
     with st.expander("How sure are the inputs? (1 standard deviation)", expanded=False):
@@ -308,16 +288,16 @@ def render_comparison(course, bounds, air, base_rider, request, conditions, syst
 
     Parameters
     ----------
-    course : pacing.course.Course; bounds : segment boundary point indices;
-    air : pacing.conditions.CourseAir of `conditions` on the course;
-    base_rider : pacing.cycling.Rider of the page's athlete and setup (mass = rider + bike +
-        kit [kg]); request : pacing.strategy.PlanRequest of the page (a "target-time" request
+    course : pacing.course.geometry.Course; bounds : segment boundary point indices;
+    air : pacing.weather.conditions.CourseAir of `conditions` on the course;
+    base_rider : pacing.physics.cycling.Rider of the page's athlete and setup (mass = rider + bike +
+        kit [kg]); request : pacing.plan.request.PlanRequest of the page (a "target-time" request
         is ridden as even power at its mean power, asked for here when missing);
-    conditions : pacing.conditions.Conditions; system : "metric" or "imperial";
+    conditions : pacing.weather.conditions.Conditions; system : "metric" or "imperial";
     body_mass : the athlete's body mass [kg], to show bike-and-kit mass per setup; None
         takes 8 kg of base_rider.mass as bike and kit (pacing.athlete.Setup's default).
     """
-    from pacing.strategy import PlanRequest
+    from pacing.plan.request import PlanRequest
 
     st.subheader("Setups side by side")
     st.caption("Each setup is ridden with the same pacing on this course and this weather. "
@@ -433,8 +413,8 @@ def render_comparison_for_page(course, bounds, athlete: dict, weather: dict, app
     builds the rider, air, request and conditions as ui.pipeline does, then
     `render_comparison`. Running: a short note instead (setups are a cycling matter)."""
     from pacing.athlete import Athlete, Setup, rider_for
-    from pacing.conditions import air_along_course
-    from pacing.strategy import PlanRequest
+    from pacing.plan.request import PlanRequest
+    from pacing.weather.conditions import air_along_course
     from ui.pipeline import conditions_from
 
     if course is None or bounds is None or athlete is None or approach is None:

@@ -1,8 +1,7 @@
 """Plotly figures of the "setups side by side" view (ui.comparison): ranked differences, the
 gap along the course, the position chosen on each segment.
 
-Pure helpers over a ui.comparison.SetupsReport (no Streamlit); their names stay importable from
-ui.comparison.
+Pure helpers over a ui.comparison.SetupsReport (no Streamlit).
 """
 
 from __future__ import annotations
@@ -12,7 +11,7 @@ from typing import TYPE_CHECKING
 import numpy as np
 import plotly.graph_objects as go
 
-from pacing.units import to_display, unit_label
+from pacing.display.units import to_display, unit_label
 from ui.comparison_tables import signed_time
 
 if TYPE_CHECKING:

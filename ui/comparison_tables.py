@@ -1,9 +1,9 @@
-"""Words and tables of the "setups side by side" view (ui.comparison): finish times and
-differences, sensitivities, break-even figures, per-segment gaps, the position-by-segment plan.
+"""Words and tables of the "setups side by side" view (ui.comparison): finish times and differences,
+sensitivities, break-even figures, per-segment gaps, the position-by-segment plan.
 
-Pure helpers over a ui.comparison.SetupsReport (no Streamlit), testable on their own; their
-names stay importable from ui.comparison. Sign convention (as in pacing.compare): a time
-difference is setup − baseline [s]; positive = slower.
+Pure helpers over a ui.comparison.SetupsReport (no Streamlit), testable on their own. Sign
+convention (as in pacing.compare.setups): a time difference is setup − baseline [s]; positive =
+slower.
 """
 
 from __future__ import annotations
@@ -14,7 +14,7 @@ from typing import TYPE_CHECKING
 import numpy as np
 import pandas as pd
 
-from pacing.units import MILE_PER_HOUR, POUND, format_duration, to_display, unit_label
+from pacing.display.units import MILE_PER_HOUR, POUND, format_duration, to_display, unit_label
 
 if TYPE_CHECKING:
     from ui.comparison import SetupsReport

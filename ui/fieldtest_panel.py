@@ -4,7 +4,7 @@ whether the positions really differ, the warnings, and plots of the virtual agai
 measured elevation of every lap with the residuals. A measured position becomes a setup (and
 goes into the library when one is open).
 
-The estimation is pacing.fieldtest.estimate_drag (virtual elevation after Chung, or the
+The estimation is pacing.fieldtest.estimate.estimate_drag (virtual elevation after Chung, or the
 regression of Lim et al. 2011); rides are read by pacing.io.rides.read_ride. Pure helpers
 build the rides, tables and plotly figures; `render_fieldtest` draws the panel.
 """
@@ -21,15 +21,15 @@ import plotly.graph_objects as go
 import streamlit as st
 from plotly.subplots import make_subplots
 
+from pacing.display.units import to_display, unit_label
 from pacing.errors import ConflictError, InputError
-from pacing.units import to_display, unit_label
 
 METHOD_LABELS = {
     "Laps close on themselves (no heights needed)": "loop",
     "Follow the recorded heights": "profile",
     "Steady laps, mean force against speed": "regression",
 }
-"""Method choices (our words → pacing.fieldtest.METHODS key)."""
+"""Method choices (our words → pacing.fieldtest.estimate.METHODS key)."""
 
 LAP_COLORS = ("#0f6e8c", "#b5542c", "#6a3d9a", "#5a6b2f", "#c28f1a", "#1b7f79", "#8c2d5a",
               "#3d5a80")
@@ -38,7 +38,7 @@ INK = "#1d2b3a"
 REFERENCE_COLOR = "rgba(29,43,58,0.55)"
 
 BOOTSTRAP_DRAWS = 1000
-"""Bootstrap draws for the 95 % intervals (pacing.fieldtest.estimate_drag's default)."""
+"""Bootstrap draws for the 95 % intervals (pacing.fieldtest.estimate.estimate_drag's default)."""
 
 
 @dataclass(frozen=True, eq=False)
@@ -53,20 +53,21 @@ class FieldTestRun:
 
 
 def read_tests(files, conditions) -> tuple[list, list[str]]:
-    """PositionTests (pacing.fieldtest) from uploaded files with their air.
+    """PositionTests (pacing.fieldtest.estimate) from uploaded files with their air.
 
     Parameters
     ----------
     files : (file name, bytes, position label) per ride, optionally with a fourth item: lap
         boundaries as times from the ride start [s] (empty: laps found from the positions);
         an empty label takes the file name.
-    conditions : pacing.conditions.Conditions of the test day.
+    conditions : pacing.weather.conditions.Conditions of the test day.
 
     Returns
     -------
     (tests, notes): one PositionTest per file; notes of reading and cleaning, one line each.
     """
-    from pacing.fieldtest import PositionTest, indices_at_times, laps_from_bounds, ride_air
+    from pacing.fieldtest.estimate import PositionTest
+    from pacing.fieldtest.ride import indices_at_times, laps_from_bounds, ride_air
     from pacing.io.rides import read_ride
 
     tests, notes = [], []
@@ -106,12 +107,13 @@ def run_fieldtest(files, total_mass: float, conditions, method: str = "loop",
     ----------
     files : (file name, bytes, position label) per ride (see read_tests).
     total_mass : rider + bike + kit [kg], 20-300.
-    conditions : pacing.conditions.Conditions; method : key of pacing.fieldtest.METHODS;
+    conditions : pacing.weather.conditions.Conditions; method : key of
+    pacing.fieldtest.estimate.METHODS;
     rolling_coefficient : Crr to hold [-], or None to fit it; drivetrain_efficiency : [-];
     bootstrap : draws for the intervals.
     """
-    from pacing.cycling import Rider
-    from pacing.fieldtest import estimate_drag
+    from pacing.fieldtest.estimate import estimate_drag
+    from pacing.physics.cycling import Rider
 
     if not (np.isfinite(total_mass) and 20.0 <= total_mass <= 300.0):
         raise InputError(f"rider + bike mass must be 20-300 kg, got {total_mass:g}")
@@ -228,7 +230,7 @@ def lap_figure(estimate, system: str) -> go.Figure:
 def road_test_cda_note() -> str:
     """What the measured CdA leaves out: the rotating-wheel area F_w and the bearing friction
     of Martin et al. (1998), which the fit takes off and the race model adds back."""
-    from pacing.cycling import MARTIN_1998
+    from pacing.physics.cycling import MARTIN_1998
     from ui.text import ROAD_TEST_CDA_NOTE
 
     return ROAD_TEST_CDA_NOTE.format(wheel=MARTIN_1998["wheel_drag_area"])
@@ -252,7 +254,7 @@ def _cached_run(key: str, _files, total_mass, _conditions, method, rolling, effi
 
 
 def _conditions_inputs(system: str):
-    from pacing.conditions import Conditions
+    from pacing.weather.conditions import Conditions
     from ui.widgets import unit_number
 
     cols = st.columns(3)

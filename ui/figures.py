@@ -14,7 +14,7 @@ import numpy as np
 import plotly.graph_objects as go
 from plotly.subplots import make_subplots
 
-from pacing.units import to_display, unit_label
+from pacing.display.units import to_display, unit_label
 
 GRADE_COLORSCALE = "balance"
 """cmocean "balance", built into plotly."""

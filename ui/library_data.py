@@ -1,7 +1,6 @@
 """Pure helpers of the library panel (ui.library_panel): the plan inputs and results saved
 with a plan and worked out again, the page's values of a stored athlete and setup, the widget
-states that show a saved plan in the page, and the panel's tables. No Streamlit here; the
-panel re-exports every name.
+states that show a saved plan in the page, and the panel's tables. No Streamlit here.
 
 Plan inputs (`page_plan_inputs`, all SI) are described in ui.library_panel.
 """
@@ -14,8 +13,8 @@ from typing import Any
 
 import pandas as pd
 
+from pacing.display.units import format_duration, to_display, unit_label
 from pacing.errors import ConflictError, InputError
-from pacing.units import format_duration, to_display, unit_label
 
 CONFLICT_MESSAGE = "changed in another window — reload"
 """What a stale save or delete says (pacing.errors.ConflictError), before the details."""
@@ -102,7 +101,7 @@ def page_plan_inputs(course_gpx: bytes, course_name: str, course, bounds, athlet
 
 def plan_result(outcome, weather: dict | None = None, approach: dict | None = None) -> dict:
     """The `current_result` of render_library from a ui.pipeline.Outcome: the keys of
-    pacing.store.PLAN_RESULT_KEYS (finish_time [s], time_saved [s] or None, targets as one
+    pacing.store.records.PLAN_RESULT_KEYS (finish_time [s], time_saved [s] or None, targets as one
     dict of SI numbers per segment, strategy and weather as given)."""
     targets = [dataclasses.asdict(row) if dataclasses.is_dataclass(row) else dict(row)
                for row in outcome.rows]
@@ -137,8 +136,8 @@ def recompute_plan(inputs: Mapping[str, Any], gpx: bytes) -> dict:
 
 
 def library_compute(library) -> Callable[[dict], dict]:
-    """compute(inputs) -> result for pacing.store.reproduce_plan, reading the plan's course
-    file from `library`."""
+    """compute(inputs) -> result for pacing.store.reproduce.reproduce_plan, reading the plan's
+    course file from `library`."""
     def compute(inputs: dict) -> dict:
         course_id = inputs.get("course_id")
         if course_id is None:
@@ -225,8 +224,8 @@ def plan_page_state(inputs: Mapping[str, Any], system: str, course=None) -> dict
     course : the Course of the saved file; only needed for plans saved without their segment
         choice, whose saved bounds then become "my own marks" at those points' distances.
     """
-    from pacing.units import format_duration
-    from pacing.wind import ROUGHNESS_LENGTHS
+    from pacing.display.units import format_duration
+    from pacing.physics.wind import ROUGHNESS_LENGTHS
     from ui import text
 
     state: dict = {}

@@ -4,7 +4,7 @@ and the whole library as a JSON file to take away or bring in.
 
 All storage goes through pacing.store (SQLAlchemy; SQLite file by default, any URL through
 PACING_DATABASE_URL). Pure helpers build the plan inputs and results, the tables and the page
-values (ui.library_data, re-exported here); `render_library` draws the panel with Streamlit.
+values (ui.library_data); `render_library` draws the panel with Streamlit.
 
 Plan inputs saved by this panel (`page_plan_inputs`, all SI)::
 
@@ -28,32 +28,25 @@ from typing import Any
 import pandas as pd
 import streamlit as st
 
+from pacing.display.units import format_duration
 from pacing.errors import ConflictError, InputError
-from pacing.units import format_duration
-
-# The pure helpers live in ui.library_data; their names stay importable from here.
-from ui.library_data import ATHLETE_KEYS as ATHLETE_KEYS
-from ui.library_data import CONFLICT_MESSAGE as CONFLICT_MESSAGE
-from ui.library_data import LIBRARY_COURSE as LIBRARY_COURSE
-from ui.library_data import PAGE_WIDGETS as PAGE_WIDGETS
-from ui.library_data import SETUP_KEYS as SETUP_KEYS
-from ui.library_data import _first_line as _first_line
-from ui.library_data import _split_marks_text as _split_marks_text
-from ui.library_data import _stamp as _stamp
-from ui.library_data import athlete_from_page as athlete_from_page
-from ui.library_data import error_message as error_message
-from ui.library_data import inputs_summary as inputs_summary
-from ui.library_data import library_compute as library_compute
-from ui.library_data import page_plan_inputs as page_plan_inputs
-from ui.library_data import page_values as page_values
-from ui.library_data import plan_page_state as plan_page_state
-from ui.library_data import plan_result as plan_result
-from ui.library_data import plans_table as plans_table
-from ui.library_data import recompute_plan as recompute_plan
-from ui.library_data import save_current_plan as save_current_plan
-from ui.library_data import setup_from_page as setup_from_page
-from ui.library_data import store_course as store_course
-from ui.library_data import targets_frame as targets_frame
+from ui.library_data import (
+    LIBRARY_COURSE,
+    PAGE_WIDGETS,
+    _first_line,
+    athlete_from_page,
+    error_message,
+    inputs_summary,
+    library_compute,
+    page_plan_inputs,
+    page_values,
+    plan_page_state,
+    plan_result,
+    plans_table,
+    save_current_plan,
+    setup_from_page,
+    targets_frame,
+)
 
 # ------------------------------------------------------------------------ page inputs
 
@@ -119,7 +112,7 @@ def open_plan_in_page(library, inputs: Mapping[str, Any], plan_name: str = "") -
 
 @st.cache_resource(max_entries=4, show_spinner=False)
 def _open(location_key: str, _location):
-    from pacing.store import open_library
+    from pacing.store.library import open_library
 
     return open_library(_location)
 
@@ -153,7 +146,7 @@ def render_library(current_inputs: dict | None, current_result: dict | None, sys
     current_result : the page's plan result (`plan_result`), or None when there is none.
     system : "metric" or "imperial".
     location : database path or SQLAlchemy URL; None for PACING_DATABASE_URL, else the
-        user's data directory (pacing.store.open_library).
+        user's data directory (pacing.store.library.open_library).
     compute : compute(inputs) -> result for working a saved plan out again; None uses
         `library_compute` (plans saved from the page).
 
@@ -314,7 +307,7 @@ def _plans_tab(library, system: str, compute) -> dict | None:
     cols = st.columns(2)
     if cols[0].button("Work it out again", key="library_reproduce",
                       help="recompute the plan from its inputs and compare the numbers"):
-        from pacing.store import reproduce_plan
+        from pacing.store.reproduce import reproduce_plan
 
         try:
             report = reproduce_plan(record, compute)
@@ -347,7 +340,7 @@ def _plans_tab(library, system: str, compute) -> dict | None:
 
 
 def _backup_tab(library) -> None:
-    from pacing.store import dump_library_file, import_library
+    from pacing.store.library_file import dump_library_file, import_library
 
     st.download_button("Download the library (JSON)",
                        functools.partial(dump_library_file, library),

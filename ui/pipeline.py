@@ -49,7 +49,7 @@ def load_course_from_bytes(data: bytes, name: str, smoothing_window: float,
     max_grade : steepest grade kept after smoothing [-].
     allow_flat : a file without heights becomes a flat course instead of an error.
     """
-    from pacing.course import ElevationSmoothing
+    from pacing.course.elevation import ElevationSmoothing
     from pacing.io.gpx import load_course
 
     if not data:
@@ -75,7 +75,7 @@ def segment_bounds(course, mode: str, length: float | None = None,
     length : segment length for "fixed length" [m].
     marks : split distances from the start for "my own marks" [m].
     """
-    from pacing.segments import split_at, split_by_grade, split_every
+    from pacing.course.segments import split_at, split_by_grade, split_every
 
     if mode == "by terrain":
         return split_by_grade(course)
@@ -114,7 +114,7 @@ class Outcome:
     distance, speed : per point [m], [m/s] (N).
     power, headwind : per piece [W], [m/s] (N-1) or None.
     w_prime_balance : per point [J] (cycling W′), or per piece end [m] (running D′), or None.
-    rows : segment targets (pacing.targets.SegmentTarget or objects with the same fields).
+    rows : segment targets (pacing.plan.targets.SegmentTarget or objects with the same fields).
     notes : short remarks from the library (binding limits, solver messages).
     exhausted_at : where the W′ (or D′) balance first falls below zero [m], or None.
     note_paces : (text, speed [m/s]) pairs: the metric paces written into `notes` by the
@@ -146,8 +146,8 @@ def _build(cls, values: dict):
 
 
 def conditions_from(values: dict):
-    """pacing.conditions.Conditions from a dict of SI values."""
-    from pacing.conditions import Conditions
+    """pacing.weather.conditions.Conditions from a dict of SI values."""
+    from pacing.weather.conditions import Conditions
 
     return _build(Conditions, values)
 
@@ -174,21 +174,21 @@ RUNNING_PLANNERS = {
     "even-pace": "plan_even_pace",
     "fastest": "plan_fastest",
 }
-"""Running strategy name → pacing.running_plans function."""
+"""Running strategy name → pacing.plan.running function."""
 
 
 def running_outcome(course, bounds, athlete: dict, weather: dict, approach: dict) -> Outcome:
-    """Plan a run with pacing.running_plans and gather what the page shows.
+    """Plan a run with pacing.plan.running and gather what the page shows.
 
     Parameters
     ----------
     athlete : body_mass [kg], height [m], flat_pace [s/km], critical_speed [m/s], d_prime [m].
-    weather : pacing.conditions.Conditions fields (SI).
+    weather : pacing.weather.conditions.Conditions fields (SI).
     approach : {"strategy": one of RUNNING_PLANNERS}.
     """
-    from pacing import running_plans
-    from pacing.conditions import air_along_course
-    from pacing.running import Runner
+    from pacing.physics.running import Runner
+    from pacing.plan import running as running_plans
+    from pacing.weather.conditions import air_along_course
 
     runner = Runner.from_body(athlete["body_mass"], height=athlete.get("height"))
     air = air_along_course(course, conditions_from(weather))
@@ -215,10 +215,10 @@ def running_outcome(course, bounds, athlete: dict, weather: dict, approach: dict
 
 
 def running_note_paces(plan, total_distance: float) -> tuple:
-    """The paces pacing.running_plans writes into its notes, as (text, speed [m/s]) pairs:
+    """The paces pacing.plan.running writes into its notes, as (text, speed [m/s]) pairs:
     the even pace at the same mean effort (`even_pace_speed`) and, for the fastest plan, the
     fastest even pace within critical speed and D′ (total distance / its finish time)."""
-    from pacing.even_pace import pace_clock
+    from pacing.plan.even_pace import pace_clock
 
     speeds = []
     if plan.even_pace_speed:
@@ -236,7 +236,12 @@ def notes_in(outcome: Outcome, system: str) -> list[str]:
     """The outcome's notes with every pace in the unit system's own words: "(5:07 /km)"
     becomes "(8:14 /mi)" in imperial, from the exact speed when the plan gave it, else
     converted from the written M:SS (1 mi = 1.609344 km, NIST SP 811)."""
-    from pacing.units import format_pace, pace_from_speed, pace_per_km_to_display, unit_label
+    from pacing.display.units import (
+        format_pace,
+        pace_from_speed,
+        pace_per_km_to_display,
+        unit_label,
+    )
 
     if system == "metric":
         return list(outcome.notes)
@@ -256,20 +261,21 @@ def notes_in(outcome: Outcome, system: str) -> list[str]:
 
 
 def cycling_plan(course, bounds, athlete: dict, weather: dict, approach: dict):
-    """The RacePlan (pacing.strategy.make_plan) for the page's inputs.
+    """The RacePlan (pacing.plan.cycling.make_plan) for the page's inputs.
 
     Parameters
     ----------
     athlete : body_mass, bike_mass [kg], drag_area [m²], rolling_coefficient [-],
         drivetrain_efficiency [-], critical_power [W], w_prime [J].
-    weather : pacing.conditions.Conditions fields (SI).
+    weather : pacing.weather.conditions.Conditions fields (SI).
     approach : strategy ("constant" | "fastest" | "target-time"), mean_power [W],
         target_time [s], max_power_ratio [-], w_prime_reserve [J].
     """
     from pacing.athlete import Athlete, Setup, rider_for
-    from pacing.conditions import air_along_course
-    from pacing.simulate import SimulationOptions
-    from pacing.strategy import PlanRequest, make_plan
+    from pacing.plan.cycling import make_plan
+    from pacing.plan.prediction import SimulationOptions
+    from pacing.plan.request import PlanRequest
+    from pacing.weather.conditions import air_along_course
 
     person = _build(Athlete, athlete)
     setup = _build(Setup, athlete)
@@ -311,16 +317,16 @@ def cycling_outcome(course, bounds, athlete: dict, weather: dict, approach: dict
 
 
 def cycling_rows(course, plan) -> list:
-    """Segment target rows of a RacePlan (pacing.targets.target_table)."""
-    from pacing.targets import target_table
+    """Segment target rows of a RacePlan (pacing.plan.targets.target_table)."""
+    from pacing.plan.targets import target_table
 
     return list(target_table(course, plan.bounds, plan))
 
 
 def running_rows(plan) -> list:
-    """Segment target rows (pacing.targets.SegmentTarget) of a running plan: target pace,
+    """Segment target rows (pacing.plan.targets.SegmentTarget) of a running plan: target pace,
     expected speed, split and elapsed time, no power."""
-    from pacing.targets import SegmentTarget
+    from pacing.plan.targets import SegmentTarget
 
     return [
         SegmentTarget(index=i, start=s.start, end=s.end, length=s.end - s.start, grade=s.grade,

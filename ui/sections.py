@@ -7,9 +7,8 @@ import functools
 
 import streamlit as st
 
-from pacing.course import ElevationSmoothing
-from pacing.errors import InputError
-from pacing.units import (
+from pacing.course.elevation import ElevationSmoothing
+from pacing.display.units import (
     format_duration,
     format_pace,
     from_display,
@@ -17,6 +16,7 @@ from pacing.units import (
     to_display,
     unit_label,
 )
+from pacing.errors import InputError
 from ui import text
 from ui.widgets import unit_number
 
@@ -42,7 +42,7 @@ def segment_overview(course, bounds, system: str) -> None:
     """The segments as a small table (kind, where, how long, how steep), folded away."""
     import pandas as pd
 
-    from pacing.segments import describe_segments
+    from pacing.course.segments import describe_segments
 
     segments = describe_segments(course, bounds)
     dist, elev = unit_label("distance", system), unit_label("elevation", system)
@@ -92,8 +92,8 @@ def split_inputs(system: str, total_distance: float | None = None) -> dict:
 def smoothing_inputs(system: str) -> dict:
     """Elevation cleaning controls; returns {"window" [m], "max_grade" [-]}.
 
-    The defaults are the library's (pacing.course.ElevationSmoothing()), the same the command
-    line uses, so the app and `pacing course` show the same cleaned ascent.
+    The defaults are the library's (pacing.course.elevation.ElevationSmoothing()), the same the
+    command line uses, so the app and `pacing course` show the same cleaned ascent.
     """
     defaults = ElevationSmoothing()
     with st.expander("Elevation cleaning (GPS heights are noisy)", expanded=False):
@@ -118,7 +118,7 @@ FLAT_PACE_RANGE = (120.0, 900.0)
 def flat_pace_range_message(system: str) -> str:
     """The flat-pace refusal in the unit system's own words: "… between 2:00 and 15:00 per
     km" in metric, "… between 3:13 and 24:08 per mile" in imperial (1 mi = 1.609344 km)."""
-    from pacing.units import pace_per_km_to_display
+    from pacing.display.units import pace_per_km_to_display
 
     low, high = (format_pace(float(pace_per_km_to_display(v, system))) for v in FLAT_PACE_RANGE)
     per = "per mile" if system == "imperial" else "per km"
@@ -205,7 +205,7 @@ def athlete_inputs(system: str) -> dict:
 # -------------------------------------------------------------------------------- weather
 
 def weather_inputs(system: str, roughness_classes: dict[str, float] | None) -> dict:
-    """Conditions on the day; returns pacing.conditions.Conditions fields in SI."""
+    """Conditions on the day; returns pacing.weather.conditions.Conditions fields in SI."""
     values: dict = {}
     cols = st.columns(3)
     with cols[0]:

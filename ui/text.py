@@ -71,14 +71,14 @@ APPROACHES = {
     "Quickest within my limits": "fastest",
     "Reach a finish time": "target-time",
 }
-"""Cycling plan choices (label → pacing.strategy name)."""
+"""Cycling plan choices (label → pacing.plan.cycling name)."""
 
 RUNNING_APPROACHES = {
     "Equal effort on every grade": "equal-effort",
     "Even pace (for comparison)": "even-pace",
     "Quickest within my limits": "fastest",
 }
-"""Running plan choices (label → pacing.running name)."""
+"""Running plan choices (label → pacing.physics.running name)."""
 
 ROAD_TEST_CDA_NOTE = (
     "The CdA shown is the rider and bike without the rotating-wheel term (F_w = {wheel:g} m²) "
@@ -86,4 +86,4 @@ ROAD_TEST_CDA_NOTE = (
     "before the fit and adds them back on its own when it predicts a race. A wind-tunnel CdA "
     "that includes the spinning wheels therefore reads a little higher than this one."
 )
-"""Road-test caption; {wheel} is pacing.cycling.MARTIN_1998["wheel_drag_area"] [m²]."""
+"""Road-test caption; {wheel} is pacing.physics.cycling.MARTIN_1998["wheel_drag_area"] [m²]."""

@@ -11,7 +11,7 @@ import math
 
 import streamlit as st
 
-from pacing.units import from_display, to_display, unit_label
+from pacing.display.units import from_display, to_display, unit_label
 
 
 def _decimals(step: float) -> int:
@@ -26,8 +26,8 @@ def unit_number(label: str, quantity: str | None, system: str, key: str, default
     Parameters
     ----------
     label : text before the unit, e.g. "Rider mass"; the unit is appended in brackets.
-    quantity : pacing.units quantity ("mass", "speed", ...) or None for a unitless or SI-only
-        number (then `label` should carry its unit).
+    quantity : pacing.display.units quantity ("mass", "speed", ...) or None for a unitless or
+        SI-only number (then `label` should carry its unit).
     default, low, high : default and limits in SI units.
     step : increment in display units.
     """

@@ -20,7 +20,6 @@ import sys
 
 import numpy as np
 
-from pacing import units
 from pacing.cli.common import (
     CAUTION,
     add_air_flags,
@@ -28,6 +27,7 @@ from pacing.cli.common import (
     add_rider_flags,
     add_simulation_flags,
 )
+from pacing.display import units
 from pacing.errors import InputError
 
 SETUP_KEYS = ("cda", "power", "mass", "crr", "yaw")
@@ -140,7 +140,7 @@ def parse_setup(text: str) -> tuple[str, dict]:
 def setups_from_args(args: argparse.Namespace) -> list:
     """The RiderSetups of the --setup flags (defaults from --cda, --mass, --crr)."""
     from pacing.cli.plan_cycling import MASS_RANGE, rider_from_args
-    from pacing.compare import MAX_SETUPS, RiderSetup
+    from pacing.compare.setups import MAX_SETUPS, RiderSetup
 
     if not args.setup:
         raise InputError("give at least one --setup NAME:cda=...,power=...")
@@ -173,7 +173,7 @@ def _request(args: argparse.Namespace):
     """The PlanRequest of the pacing flags (through the plan command's own checks when
     pacing.cli.plan_cycling provides them)."""
     from pacing.cli import plan_cycling
-    from pacing.strategy import PlanRequest
+    from pacing.plan.request import PlanRequest
 
     if hasattr(plan_cycling, "request_from_args"):
         return plan_cycling.request_from_args(args)
@@ -186,7 +186,7 @@ def _request(args: argparse.Namespace):
 
 
 def _uncertainty(args: argparse.Namespace):
-    from pacing.sensitivity import Uncertainty
+    from pacing.compare.sensitivity import Uncertainty
 
     return Uncertainty(drag_area=args.sd_cda, rolling_coefficient=args.sd_crr,
                        mass=args.sd_mass, wind=args.sd_wind)
@@ -204,15 +204,15 @@ def analyse(args: argparse.Namespace) -> dict:
         simulation_options_from_args,
         validate_args,
     )
-    from pacing.compare import break_even, compare_setups, mixed_plan
-    from pacing.conditions import air_along_course
-    from pacing.sensitivity import (
+    from pacing.compare.sensitivity import (
         difference_spread,
         finish_time_spread,
         sampled_difference,
         sampled_finish_time,
         sensitivity,
     )
+    from pacing.compare.setups import break_even, compare_setups, mixed_plan
+    from pacing.weather.conditions import air_along_course
 
     validate_args(args)
     if args.samples and not 2 <= args.samples <= 10_000:

@@ -11,7 +11,8 @@ import warnings
 import numpy as np
 
 from pacing.cli.common import add_course_flags
-from pacing.course import Course, describe_segments, split_by_grade, split_every
+from pacing.course.geometry import Course
+from pacing.course.segments import describe_segments, split_by_grade, split_every
 
 
 def add_parser(subparsers: argparse._SubParsersAction) -> None:

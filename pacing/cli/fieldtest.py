@@ -87,17 +87,11 @@ def _pair(values) -> list[float] | None:
 
 
 def run(args: argparse.Namespace) -> int:
-    from pacing.conditions import Conditions
-    from pacing.cycling import Rider
-    from pacing.fieldtest import (
-        TYPICAL_ROLLING_COEFFICIENT,
-        PositionTest,
-        estimate_drag,
-        indices_at_times,
-        laps_from_bounds,
-        ride_air,
-    )
+    from pacing.fieldtest.estimate import TYPICAL_ROLLING_COEFFICIENT, PositionTest, estimate_drag
+    from pacing.fieldtest.ride import indices_at_times, laps_from_bounds, ride_air
     from pacing.io.rides import read_ride
+    from pacing.physics.cycling import Rider
+    from pacing.weather.conditions import Conditions
 
     require(np.isfinite(args.mass) and 20.0 <= args.mass <= 300.0,
             f"--mass must be 20-300 kg (rider + bike), got {args.mass:g}")

@@ -51,7 +51,7 @@ def add_parser(subparsers: argparse._SubParsersAction) -> None:
 
 
 def run(args: argparse.Namespace) -> int:
-    from pacing.store import open_library
+    from pacing.store.library import open_library
 
     try:
         with open_library(args.database) as library:
@@ -221,7 +221,7 @@ def _cell(value: Any) -> str:
 
 
 def _export(library, args) -> int:
-    from pacing.store import dump_library_file
+    from pacing.store.library_file import dump_library_file
 
     text = dump_library_file(library, args.athlete)
     if args.output is None or args.output == "-":
@@ -233,7 +233,7 @@ def _export(library, args) -> int:
 
 
 def _import(library, args) -> int:
-    from pacing.store import import_library
+    from pacing.store.library_file import import_library
 
     if args.file == "-":
         data = sys.stdin.buffer.read()

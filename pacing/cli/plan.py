@@ -8,12 +8,7 @@ from __future__ import annotations
 
 import argparse
 
-from pacing.cli.common import (
-    add_air_flags,
-    add_course_flags,
-    add_rider_flags,
-    add_simulation_flags,
-)
+from pacing.cli.common import add_air_flags, add_course_flags, add_rider_flags, add_simulation_flags
 
 CYCLING_STRATEGIES = ("constant", "fastest", "target-time")
 RUNNING_STRATEGIES = ("equal-effort", "even-pace", "fastest")

@@ -2,13 +2,13 @@
 
 Steps (each one function, so a strategy can replace the power step):
 validate the flags → load the course and its segments → rider and air → per-piece power
-(`_plan_powers`) → inertial simulation (pacing.simulate) → segment summaries → table or JSON.
+(`_plan_powers`) → inertial simulation (pacing.plan.simulate) → segment summaries → table or JSON.
 
 Units on the command line are SI except --humidity [%] and --drafting [%]; the table shows km,
 km/h, % and H:MM:SS, the JSON SI numbers with the unit in each key. Every segment row carries
 the band around its target power (±3 % unless the request says otherwise; JSON power_low_w and
 power_high_w). --max-descent-speed and --coasting-speed [m/s] go to SimulationOptions. Where
-the power cannot hold walking pace the rider walks the bike (pacing.simulate): the output says
+the power cannot hold walking pace the rider walks the bike (pacing.plan.simulate): the output says
 how far (JSON walking_distance_m). A target-time plan above HUMAN_POWER_CEILING is refused, and
 without CP and W′ one warning line says its power is not checked against the athlete.
 """
@@ -23,12 +23,12 @@ import warnings
 
 import numpy as np
 
-from pacing import units
 from pacing.cli.common import CAUTION
-from pacing.cycling import WALKING_SPEED, Rider
+from pacing.display import units
 from pacing.errors import InputError
-from pacing.simulate import Prediction, SegmentResult, SimulationOptions, segment_results
-from pacing.targets import DEFAULT_BAND, power_band
+from pacing.physics.cycling import WALKING_SPEED, Rider
+from pacing.plan.prediction import Prediction, SegmentResult, SimulationOptions, segment_results
+from pacing.plan.targets import DEFAULT_BAND, power_band
 
 MASS_RANGE = (20.0, 300.0)
 """Accepted rider + bike mass [kg]."""
@@ -100,7 +100,7 @@ def rider_from_args(args: argparse.Namespace) -> Rider:
 
 def conditions_from_args(args: argparse.Namespace):
     """The race-day air of the air and wind flags (humidity given in percent)."""
-    from pacing.conditions import Conditions
+    from pacing.weather.conditions import Conditions
 
     return Conditions(
         temperature=args.temperature,
@@ -115,7 +115,7 @@ def conditions_from_args(args: argparse.Namespace):
 
 def load_course_and_bounds(args: argparse.Namespace):
     """The course of the GPX file and its segment bounds (by grade, or every N metres)."""
-    from pacing.course import split_by_grade, split_every
+    from pacing.course.segments import split_by_grade, split_every
     from pacing.io.gpx import load_course
 
     course = load_course(args.route, step=args.step, allow_missing_elevation=args.flat)
@@ -140,7 +140,7 @@ def _plan_powers(args: argparse.Namespace, course, bounds, rider: Rider, air) ->
 
 def predict(args: argparse.Namespace) -> tuple[Prediction, list[SegmentResult]]:
     """Validate, load, plan and simulate: the prediction and its segment summaries."""
-    from pacing.conditions import air_along_course
+    from pacing.weather.conditions import air_along_course
 
     validate_args(args)
     if (args.strategy or "constant") == "constant" and args.power is None:
@@ -163,7 +163,7 @@ def simulation_options_from_args(args: argparse.Namespace) -> SimulationOptions:
 
 
 def _simulate(course, powers, rider: Rider, air, args: argparse.Namespace) -> Prediction:
-    from pacing.simulate import simulate
+    from pacing.plan.simulate import simulate
 
     return simulate(course, powers, rider, air, simulation_options_from_args(args))
 
@@ -288,11 +288,11 @@ def run(args: argparse.Namespace) -> int:
 # ------------------------------------------------------------------ --strategy (issue 4)
 
 def request_from_args(args: argparse.Namespace):
-    """The pacing.strategy.PlanRequest of --strategy, --power, --target-time, --cp, --w-prime,
+    """The pacing.plan.request.PlanRequest of --strategy, --power, --target-time, --cp, --w-prime,
     --w-prime-reserve and --max-power-ratio."""
     from pacing.cli.plan import CYCLING_STRATEGIES
-    from pacing.strategy import PlanRequest
-    from pacing.units import parse_clock
+    from pacing.display.units import parse_clock
+    from pacing.plan.request import PlanRequest
 
     strategy = args.strategy
     _check(strategy in CYCLING_STRATEGIES,
@@ -325,10 +325,10 @@ def request_from_args(args: argparse.Namespace):
 
 
 def plan_with_strategy(args: argparse.Namespace):
-    """Validate, load, make the plan (pacing.strategy.make_plan, verified by the inertial
+    """Validate, load, make the plan (pacing.plan.cycling.make_plan, verified by the inertial
     simulation) and summarise its segments: (RacePlan, segment summaries)."""
-    from pacing.conditions import air_along_course
-    from pacing.strategy import make_plan
+    from pacing.plan.cycling import make_plan
+    from pacing.weather.conditions import air_along_course
 
     validate_args(args)
     request = request_from_args(args)

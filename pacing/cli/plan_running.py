@@ -1,4 +1,4 @@
-"""``pacing plan ROUTE.gpx --sport running …``: running paces on a course (pacing.running).
+"""``pacing plan ROUTE.gpx --sport running …``: running paces on a course (pacing.physics.running).
 
 The effort is a flat-ground pace in still air (``--flat-pace M:SS`` per km), or critical speed
 and D′ (``--critical-speed``, ``--d-prime``). Strategies: equal-effort (default), even-pace,
@@ -13,15 +13,15 @@ import math
 import sys
 import warnings
 
-from pacing import units
 from pacing.athlete import Athlete
 from pacing.cli.common import RUNNING_CAUTION
-from pacing.conditions import Conditions, air_along_course
-from pacing.course import split_by_grade, split_every
+from pacing.course.segments import split_by_grade, split_every
+from pacing.display import units
 from pacing.errors import InputError
 from pacing.io.gpx import load_course
-from pacing.running import Runner, critical_speed_flat_race_time
-from pacing.running_plans import (
+from pacing.physics.running import Runner
+from pacing.physiology.critical_speed import critical_speed_flat_race_time
+from pacing.plan.running import (
     DOWNHILL_SPEED_RATIO_CAP,
     RUNNING_STRATEGIES,
     RunningPlan,
@@ -29,6 +29,7 @@ from pacing.running_plans import (
     plan_even_pace,
     plan_fastest,
 )
+from pacing.weather.conditions import Conditions, air_along_course
 
 SHARED_FLAGS = frozenset({"strategy", "cda", "drafting"})
 """Destinations of the cycling and rider groups' flags that running uses too."""
@@ -37,7 +38,7 @@ _GROUPS_OF_SPORT = {"cycling": ("cycling plan", "rider and bike"), "running": ("
 """Titles of the plan command's argument groups that belong to each sport."""
 
 FLAT_PACE_RANGE = (1000.0 / 12.0, 1000.0 / 0.5)
-"""Flat paces accepted, 1:24-33:20 per km [s/km] (as pacing.running.flat_effort)."""
+"""Flat paces accepted, 1:24-33:20 per km [s/km] (as pacing.physics.running.flat_effort)."""
 
 
 def flags_of_other_sport(args: argparse.Namespace, sport: str) -> list[str]:

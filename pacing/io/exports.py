@@ -1,7 +1,7 @@
 """Segment targets leave the program here: a table with units, CSV, XLSX, GPX with waypoints,
 and a printable card (PNG or PDF) a rider can tape to the stem.
 
-Input rows are segment targets as made by ``pacing.targets.target_table`` (objects with the
+Input rows are segment targets as made by ``pacing.plan.targets.target_table`` (objects with the
 attributes below, or dicts with the same keys), all in SI units:
 
     index, start, end, length [m], grade [-], target_power, power_low, power_high [W] or None,
@@ -10,7 +10,7 @@ attributes below, or dicts with the same keys), all in SI units:
 
 `segment_table` turns them into the one table the app shows; CSV and XLSX write that same
 table, so the numbers in a file are the numbers on the screen. Units are converted only here
-(through pacing.units).
+(through pacing.display.units).
 """
 
 from __future__ import annotations
@@ -23,15 +23,15 @@ from typing import Any
 
 import pandas as pd
 
-from pacing.errors import InputError
-from pacing.io.gpx import write_gpx
-from pacing.units import (
+from pacing.display.units import (
     format_duration,
     format_pace,
     pace_per_km_to_display,
     to_display,
     unit_label,
 )
+from pacing.errors import InputError
+from pacing.io.gpx import write_gpx
 
 CAUTION_LINE = (
     "Speeds are estimates, not safe limits. Ride within your skills, the road, "

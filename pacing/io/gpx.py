@@ -24,13 +24,8 @@ import gpxpy
 import gpxpy.gpx
 import numpy as np
 
-from pacing.course import (
-    DEFAULT_STEP,
-    Course,
-    ElevationSmoothing,
-    build_course,
-    validate_track,
-)
+from pacing.course.elevation import ElevationSmoothing
+from pacing.course.geometry import DEFAULT_STEP, Course, build_course, validate_track
 from pacing.errors import InputError
 from pacing.io.safe_xml import local_name, parse_xml
 
@@ -230,7 +225,7 @@ def read_track(source) -> Track:
 def load_course(source, step: float | None = None,
                 smoothing: ElevationSmoothing | None = None,
                 allow_missing_elevation: bool = False, name: str | None = None) -> Course:
-    """Read a GPX file and build its Course (see pacing.course.build_course).
+    """Read a GPX file and build its Course (see pacing.course.geometry.build_course).
 
     Parameters
     ----------
@@ -240,7 +235,7 @@ def load_course(source, step: float | None = None,
     allow_missing_elevation : a file without any elevation is treated as flat (elevation 0 m,
         so sea-level air unless conditions say otherwise) with a UserWarning; otherwise it is
         refused. Points missing some elevations are interpolated with a UserWarning (see
-        pacing.course.build_course).
+        pacing.course.geometry.build_course).
 
     Raises InputError for everything read_track and build_course refuse, and for a course
     shorter than MINIMUM_COURSE_LENGTH.

@@ -1,4 +1,4 @@
-"""Read test rides (for pacing.fieldtest) from CSV and GPX files.
+"""Read test rides (for pacing.fieldtest.estimate) from CSV and GPX files.
 
 CSV
 ---
@@ -27,7 +27,7 @@ heading        heading_deg, heading, bearing, course                            
 
 Timestamps become seconds from the first sample. Without a speed column, speed is taken from
 the distance column (central differences). Empty cells are missing values: short gaps in power
-are interpolated, long ones are an error (see pacing.fieldtest.make_ride).
+are interpolated, long ones are an error (see pacing.fieldtest.ride.make_ride).
 
 GPX
 ---
@@ -50,11 +50,8 @@ import numpy as np
 import pandas as pd
 
 from pacing.errors import InputError
-from pacing.fieldtest import Ride, make_ride
+from pacing.fieldtest.ride import Ride, local_position, make_ride
 from pacing.io.safe_xml import local_name, parse_xml
-from pacing.ride import local_position
-
-__all__ = ["Ride", "read_ride", "read_ride_csv", "read_ride_gpx", "CSV_COLUMNS"]
 
 MAX_RIDE_BYTES = 100 * 1024 * 1024
 """Largest ride file accepted [bytes]."""
@@ -114,7 +111,7 @@ def read_ride(source, name: str | None = None, kind: str | None = None, **option
     source : path, bytes or file-like object.
     name : label of the ride (default the file name without extension).
     kind : "csv" or "gpx"; default from the file extension, else from the content.
-    options : passed to pacing.fieldtest.make_ride (stop_speed, max_gap, max_power_fill).
+    options : passed to pacing.fieldtest.ride.make_ride (stop_speed, max_gap, max_power_fill).
     """
     if kind is None and isinstance(source, str | os.PathLike):
         suffix = Path(source).suffix.lower().lstrip(".")

@@ -1,1 +1,2 @@
-"""Alembic migrations of the library database (run by pacing.store.migrate, not by hand)."""
+"""Alembic migrations of the library database (run by pacing.store.database.migrate, not by
+hand)."""

@@ -1,6 +1,6 @@
 """Alembic environment of the library database.
 
-pacing.store.migrate builds the Alembic Config in code and hands over an open connection,
+pacing.store.database.migrate builds the Alembic Config in code and hands over an open connection,
 already inside the transaction that holds the migration lock, in
 ``config.attributes["connection"]``; this script only runs the migrations on it.
 """
@@ -9,7 +9,7 @@ from alembic import context
 
 connection = context.config.attributes.get("connection")
 if connection is None:
-    raise RuntimeError("run the library migrations through pacing.store.migrate(engine)")
+    raise RuntimeError("run the library migrations through pacing.store.database.migrate(engine)")
 
 context.configure(
     connection=connection,

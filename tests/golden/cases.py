@@ -3,7 +3,7 @@
 Each case is a list of arguments to ``pacing.cli.main``; ``record.py`` runs them and writes
 ``golden.json``; ``tests/test_golden.py`` runs them again and compares every number to 1e-9.
 A test ride for the field test is simulated by the independent forward model of
-tests/test_fieldtest.py (never by the code under test).
+tests/test_fieldtest_estimate.py (never by the code under test).
 """
 
 from __future__ import annotations
@@ -62,9 +62,9 @@ def cases(ride: str) -> dict[str, list[str]]:
 
 
 def write_ride(path: Path) -> str:
-    """A simulated loop ride (tests/test_fieldtest.py's forward model, seed 1) as a CSV."""
+    """A simulated loop ride (tests/test_fieldtest_estimate.py's forward model, seed 1) as a CSV."""
     import numpy as np
-    from test_fieldtest import POWER_CV, simulate_loop_ride
+    from test_fieldtest_estimate import POWER_CV, simulate_loop_ride
 
     data = simulate_loop_ride(air_density=1.19931)
     rng = np.random.default_rng(1)

@@ -1,0 +1,1 @@
+"""Setups side by side: finish times, break-even figures, sensitivities and uncertainty."""

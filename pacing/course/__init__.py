@@ -1,0 +1,1 @@
+"""The course: GPX geometry turned into arrays along distance, elevation cleaning, segments."""

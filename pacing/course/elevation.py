@@ -1,0 +1,217 @@
+"""Elevation of a course: the cleaning settings (ElevationSmoothing), smoothing over a distance
+window, the grade limit, filling points without a height, the absurd-jump check, ascent.
+
+The profile is smoothed with a positive, symmetric kernel from scipy.signal.windows (the ends
+padded by odd reflection, so start and finish heights and a linear profile are kept and the
+ascent never grows), then re-integrated with every grade clipped to the limit.
+pacing.course.geometry builds courses with these.
+"""
+
+from __future__ import annotations
+
+import math
+import warnings
+from dataclasses import dataclass
+
+import numpy as np
+
+from pacing.errors import InputError
+
+ELEVATION_JUMP_SLACK = 50.0
+"""Elevation change between two track points is absurd beyond this height [m] plus
+ELEVATION_JUMP_GRADE times their horizontal distance."""
+
+ELEVATION_JUMP_GRADE = 1.0
+"""Grade no road or path keeps between two track points (100 %) [-]."""
+
+
+@dataclass(frozen=True)
+class ElevationSmoothing:
+    """How a course's elevation is cleaned: smoothing over a distance window, then a grade limit.
+
+    Attributes
+    ----------
+    window : width of the smoothing window along the course [m]. For "gaussian" the kernel's
+        standard deviation is window/4 (truncated at ±3 standard deviations); for
+        "moving-average" it is a flat window of this width. 0 turns smoothing off.
+    max_grade : steepest grade kept after smoothing, up or down [-]; steeper pieces are
+        flattened to this grade.
+    method : a key of SMOOTHING_METHODS ("gaussian", "moving-average", "none").
+
+    Both kernels are positive and symmetric; the ends are padded by odd reflection about the end
+    points, so a straight or linear profile passes unchanged and the start and finish heights
+    are kept, and the ascent of the cleaned course never exceeds that of the raw track (see
+    smooth_elevation; padding with the end values is the fallback that guarantees it).
+    """
+
+    window: float = 200.0
+    max_grade: float = 0.25
+    method: str = "gaussian"
+
+    def __post_init__(self) -> None:
+        if not (math.isfinite(self.window) and self.window >= 0):
+            raise InputError(f"smoothing window must be a length >= 0 m, got {self.window!r}")
+        if not (math.isfinite(self.max_grade) and 0 < self.max_grade <= 1.0):
+            raise InputError(
+                f"grade limit must be between 0 and 1 (100 %), got {self.max_grade!r}")
+        if self.method not in SMOOTHING_METHODS:
+            raise InputError(f"unknown smoothing method {self.method!r}; choose one of "
+                             f"{', '.join(SMOOTHING_METHODS)}")
+
+
+def total_ascent(elevation: np.ndarray) -> float:
+    """Sum of the rises between consecutive points [m] (descents are not subtracted)."""
+    rise = np.diff(np.asarray(elevation, dtype=float))
+    return float(rise[rise > 0].sum())
+
+
+def check_elevation_jumps(length: np.ndarray, elevation: np.ndarray) -> None:
+    """Raise InputError where the elevation changes absurdly between two track points.
+
+    A change |Δz| > ELEVATION_JUMP_SLACK + ELEVATION_JUMP_GRADE·Δs (Δs the horizontal distance
+    [m]) is taken as a recording fault no cleaning should paper over.
+    """
+    jump = np.abs(np.diff(elevation))
+    bad = jump > ELEVATION_JUMP_SLACK + ELEVATION_JUMP_GRADE * length
+    if bad.any():
+        index = int(np.argmax(bad))
+        raise InputError(f"absurd elevation jump of {jump[index]:.0f} m over "
+                         f"{length[index]:.0f} m between points {index + 1} and {index + 2}")
+
+
+def fill_missing_elevation(distance: np.ndarray, elevation: np.ndarray) -> np.ndarray:
+    """Elevation with NaN points filled by linear interpolation along the distance [m].
+
+    Points before the first (after the last) known height take that height. Warns
+    (UserWarning, one line) how many points had no elevation; raises InputError when none has.
+
+    Parameters
+    ----------
+    distance : distance of each track point from the start [m], increasing.
+    elevation : elevation of each point [m], NaN where the point has none.
+    """
+    known = np.isfinite(elevation)
+    if known.all():
+        return elevation
+    if not known.any():
+        raise InputError("the course has no elevation at any point")
+    missing = int(np.count_nonzero(~known))
+    warnings.warn(f"{missing} of {known.size} track points had no elevation; their heights "
+                  "were interpolated from the neighbouring points", UserWarning, stacklevel=3)
+    return np.interp(distance, distance[known], elevation[known])
+
+
+# scipy.signal is imported inside the functions that use it: it takes a second or more to
+# import, and code that only needs Course or synthetic_course should not pay for it.
+
+def _gaussian_kernel(window: float, step: float) -> np.ndarray:
+    from scipy import signal
+
+    deviation = window / 4.0 / step
+    if deviation < 0.5:
+        return np.ones(1)
+    half = int(math.ceil(3.0 * deviation))
+    return signal.windows.gaussian(2 * half + 1, deviation)
+
+
+def _moving_average_kernel(window: float, step: float) -> np.ndarray:
+    from scipy import signal
+
+    half = int(round(window / step / 2.0))
+    return signal.windows.boxcar(2 * half + 1)
+
+
+SMOOTHING_METHODS = {
+    "gaussian": _gaussian_kernel,
+    "moving-average": _moving_average_kernel,
+    "none": None,
+}
+"""Elevation smoothing kernels by name: function (window [m], step [m]) -> positive weights."""
+
+
+def smooth_elevation(elevation: np.ndarray, step: float,
+                     smoothing: ElevationSmoothing = ElevationSmoothing()) -> np.ndarray:
+    """Elevation smoothed over a distance window [m] (no grade limit).
+
+    z_s[i] = Σ_j w_j·z[i+j] / Σ_j w_j with positive, symmetric weights w from
+    scipy.signal.windows. Beyond the ends the profile is continued by odd reflection about the
+    end point, z[-k] = 2·z[0] − z[k] (and likewise at the finish), so that
+
+    - a linear profile a + b·s is returned unchanged (a symmetric kernel averages a straight
+      line to itself), and so is every profile at its two end points: start and finish heights,
+      hence the net rise and potential energy of the course, are kept exactly;
+    - a monotonic climb or descent stays monotonic, with the same ascent or descent.
+
+    Smoothing cannot invent climbing: the ascent of a weighted mean of shifted copies is at most
+    the weighted mean of their ascents (positive weights). With odd reflection the rises of the
+    padded profile are the raw rises mirrored at each end, and for a symmetric kernel the copies
+    shifted by +j and −j points together hold every raw rise exactly twice, so their mean
+    ascent is the raw ascent. Should rounding (or a kernel that is not symmetric) still give a
+    larger ascent, the ends are padded with the end values instead, for which the same bound
+    holds with any positive kernel.
+
+    Parameters
+    ----------
+    elevation : elevation at points a uniform `step` apart [m].
+    step : distance between the points [m].
+    smoothing : window and method.
+
+    The odd reflection is numpy.pad(mode="reflect", reflect_type="odd").
+    """
+    elevation = np.asarray(elevation, dtype=float)
+    make_kernel = SMOOTHING_METHODS[smoothing.method]
+    if make_kernel is None or smoothing.window <= 0 or elevation.size < 3:
+        return elevation.copy()
+    kernel = make_kernel(smoothing.window, step)
+    if kernel.size == 1:
+        return elevation.copy()
+    kernel = kernel / kernel.sum()
+    half = kernel.size // 2
+    reflected = _convolve_padded(elevation, kernel, half, "odd")
+    raw_ascent = total_ascent(elevation)
+    if total_ascent(reflected) <= raw_ascent + ASCENT_TOLERANCE * max(1.0, raw_ascent):
+        return reflected
+    return _convolve_padded(elevation, kernel, half, "edge")
+
+
+ASCENT_TOLERANCE = 1e-9
+"""Relative rounding slack when checking that smoothing added no ascent [-]."""
+
+
+def _convolve_padded(elevation: np.ndarray, kernel: np.ndarray, half: int,
+                     padding: str) -> np.ndarray:
+    """Convolve with `kernel` after padding `half` points each side ("odd" or "edge")."""
+    from scipy import signal
+
+    if padding == "odd":
+        padded = np.pad(elevation, half, mode="reflect", reflect_type="odd")
+    else:
+        padded = np.pad(elevation, half, mode="edge")
+    return signal.convolve(padded, kernel, mode="valid", method="auto")
+
+
+def limit_grade(distance: np.ndarray, elevation: np.ndarray, max_grade: float) -> np.ndarray:
+    """Elevation re-integrated with every piece's grade clipped to ±max_grade [m].
+
+    z'[0] = z[0]; z'[i+1] = z'[i] + clip(z[i+1] − z[i], −g·Δs, +g·Δs). Clipping only shrinks
+    rises, so ascent never grows.
+    """
+    length = np.diff(distance)
+    rise = np.clip(np.diff(elevation), -max_grade * length, max_grade * length)
+    return elevation[0] + np.concatenate([[0.0], np.cumsum(rise)])
+
+
+def clean_elevation(distance: np.ndarray, elevation: np.ndarray,
+                    smoothing: ElevationSmoothing = ElevationSmoothing()) -> np.ndarray:
+    """Smooth the elevation over `smoothing.window`, then limit the grade [m].
+
+    Parameters
+    ----------
+    distance : distance of each point, uniform step except maybe the last piece [m].
+    elevation : resampled raw elevation [m].
+    smoothing : window, grade limit and method.
+    """
+    distance = np.asarray(distance, dtype=float)
+    step = float(distance[1] - distance[0]) if distance.size > 1 else 1.0
+    smoothed = smooth_elevation(elevation, step, smoothing)
+    return limit_grade(distance, smoothed, smoothing.max_grade)

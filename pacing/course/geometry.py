@@ -1,0 +1,406 @@
+"""Course geometry along the distance: resampled points, grades, headings, corner radii.
+
+Conventions (see DEVELOPERS.md):
+- N points at a uniform horizontal step; *point* arrays have length N.
+- A *piece* is the stretch between point i and i+1; *piece* arrays have length N-1.
+- Grade is rise over run (a fraction, 0.05 = 5 %); heading is degrees clockwise from true north
+  in [0, 360).
+- Segments are given by boundary point indices (`bounds`: increasing, first 0, last N-1); they
+  are made and described in pacing.course.segments.
+
+Building a course from a track (`build_course`):
+
+1. validate the positions and elevations, drop repeated consecutive points;
+2. measure each raw piece on the WGS84 ellipsoid (pyproj.Geod, Karney 2013), which also handles
+   tracks that cross the antimeridian;
+3. resample along the track at a uniform step, moving along each raw piece's geodesic;
+4. clean the elevation: smooth over a distance window (`ElevationSmoothing`, scipy.signal
+   windows), then limit the grade (pacing.course.elevation); the raw ascent is kept for comparison;
+5. heading of each piece (geodesic azimuth) and corner radius at each point (circumradius of
+   points a few tens of metres apart, in an azimuthal equidistant projection around the point).
+
+pyproj is the one library outside numpy/scipy this module imports (DEVELOPERS.md, Conventions).
+
+References
+----------
+Karney, C.F.F. (2013). Algorithms for geodesics. J Geodesy 87:43-55. doi:10.1007/s00190-012-0578-z
+"""
+
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass
+
+import numpy as np
+from pyproj import Geod
+
+from pacing.course.elevation import (
+    ElevationSmoothing,
+    check_elevation_jumps,
+    clean_elevation,
+    fill_missing_elevation,
+    total_ascent,
+)
+from pacing.errors import InputError
+
+STRAIGHT_ROAD_RADIUS = 1000.0
+"""Corner radius reported for straight road [m]: larger radii never limit speed."""
+
+DEFAULT_STEP = 10.0
+"""Default resampling step along the course [m]: fine enough to keep the shape of a hairpin
+bend, coarse enough that 200 km make 20,000 points."""
+
+MINIMUM_STEP = 1.0
+"""Smallest resampling step accepted [m]."""
+
+MAXIMUM_STEP = 1000.0
+"""Largest resampling step accepted [m]."""
+
+MAXIMUM_COURSE_POINTS = 2_000_000
+"""Most points a resampled course may have (course length / step)."""
+
+CORNER_SPAN = 20.0
+"""Distance along the course from a point to each of the two neighbours used for its corner
+radius [m]."""
+
+REPEATED_POINT_DISTANCE = 1e-3
+"""Consecutive points closer than this are one point [m]; the later ones are dropped."""
+
+LOWEST_ELEVATION = -500.0
+"""Lowest plausible elevation of a course [m] (the shore of the Dead Sea is about -430 m)."""
+
+HIGHEST_ELEVATION = 9000.0
+"""Highest plausible elevation of a course [m] (Everest is 8849 m)."""
+
+
+
+WGS84 = Geod(ellps="WGS84")
+"""The WGS84 ellipsoid for geodesic distances and azimuths (pyproj, after Karney 2013)."""
+
+
+# ---------------------------------------------------------------------------- the course itself
+
+@dataclass(frozen=True, eq=False)
+class Course:
+    """A course resampled along its horizontal distance.
+
+    Attributes
+    ----------
+    distance : horizontal distance from the start of each point [m], length N, uniform step
+        except possibly the last piece.
+    latitude, longitude : WGS84 position of each point [deg], length N.
+    elevation : cleaned elevation of each point [m], length N.
+    raw_elevation : elevation of each point before cleaning, resampled [m], length N.
+    grade : grade of each piece, rise/run [-], length N-1.
+    heading : direction of travel of each piece [deg clockwise from north], length N-1.
+    corner_radius : radius of the road's curve at each point [m], capped at
+        STRAIGHT_ROAD_RADIUS, length N.
+    name : a label for the course.
+    raw_ascent : total ascent of the raw track, before resampling and cleaning [m].
+    smoothing : the elevation cleaning used (None for a course made from numbers).
+    """
+
+    distance: np.ndarray
+    latitude: np.ndarray
+    longitude: np.ndarray
+    elevation: np.ndarray
+    raw_elevation: np.ndarray
+    grade: np.ndarray
+    heading: np.ndarray
+    corner_radius: np.ndarray
+    name: str = "course"
+    raw_ascent: float = float("nan")
+    smoothing: ElevationSmoothing | None = None
+
+    @property
+    def piece_length(self) -> np.ndarray:
+        """Horizontal length of each piece [m], length N-1."""
+        return np.diff(self.distance)
+
+    @property
+    def total_distance(self) -> float:
+        """Horizontal length of the course [m]."""
+        return float(self.distance[-1] - self.distance[0])
+
+    @property
+    def ascent(self) -> float:
+        """Total ascent of the cleaned profile [m]."""
+        return total_ascent(self.elevation)
+
+    @property
+    def descent(self) -> float:
+        """Total descent of the cleaned profile [m] (a positive number)."""
+        return total_ascent(-np.asarray(self.elevation))
+
+    @property
+    def highest_elevation(self) -> float:
+        """Highest point of the cleaned profile [m]."""
+        return float(np.max(self.elevation))
+
+    @property
+    def lowest_elevation(self) -> float:
+        """Lowest point of the cleaned profile [m]."""
+        return float(np.min(self.elevation))
+
+
+
+def synthetic_course(
+    distance: np.ndarray,
+    elevation: np.ndarray,
+    heading: float | np.ndarray = 0.0,
+    corner_radius: float | np.ndarray = STRAIGHT_ROAD_RADIUS,
+    name: str = "synthetic",
+) -> Course:
+    """A course straight from arrays, for tests and for courses described by numbers.
+
+    Parameters
+    ----------
+    distance : horizontal distance of each point [m], strictly increasing, length N >= 2.
+    elevation : elevation of each point [m], length N.
+    heading : direction of travel per piece [deg from north], scalar or length N-1.
+    corner_radius : per point [m], scalar or length N.
+    name : label.
+
+    Latitude and longitude are placed on a flat-earth approximation around (0, 0) following the
+    headings; they are for display only.
+    """
+    distance = np.asarray(distance, dtype=float)
+    elevation = np.asarray(elevation, dtype=float)
+    if distance.ndim != 1 or distance.size < 2 or elevation.shape != distance.shape:
+        raise InputError("distance and elevation must be 1-D arrays of equal length >= 2")
+    step = np.diff(distance)
+    if np.any(step <= 0):
+        raise InputError("distance must be strictly increasing")
+    heading = np.broadcast_to(np.asarray(heading, dtype=float), step.shape) % 360.0
+    radius = np.broadcast_to(np.asarray(corner_radius, dtype=float), distance.shape)
+    north = np.concatenate([[0.0], np.cumsum(step * np.cos(np.radians(heading)))])
+    east = np.concatenate([[0.0], np.cumsum(step * np.sin(np.radians(heading)))])
+    metres_per_degree = 111_195.0
+    rise = np.diff(elevation)
+    return Course(
+        distance=distance,
+        latitude=north / metres_per_degree,
+        longitude=east / metres_per_degree,
+        elevation=elevation,
+        raw_elevation=elevation.copy(),
+        grade=rise / step,
+        heading=np.array(heading),
+        corner_radius=np.minimum(np.array(radius), STRAIGHT_ROAD_RADIUS),
+        name=name,
+        raw_ascent=float(rise[rise > 0].sum()),
+    )
+
+
+# ------------------------------------------------------------------------------ geodesy
+
+def geodesic_pieces(latitude: np.ndarray, longitude: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+    """Length and initial azimuth of the geodesic between consecutive points on WGS84.
+
+    Parameters
+    ----------
+    latitude, longitude : positions [deg], length N >= 1.
+
+    Returns
+    -------
+    length : [m], length N-1.
+    azimuth : direction at the start of each piece [deg clockwise from north, 0..360), length N-1.
+
+    Solved with pyproj.Geod.inv, Karney's (2013) algorithm, accurate to nanometres; a piece that
+    crosses the antimeridian is measured the short way.
+    """
+    latitude = np.asarray(latitude, dtype=float)
+    longitude = np.asarray(longitude, dtype=float)
+    if latitude.size < 2:
+        return np.zeros(0), np.zeros(0)
+    azimuth, _, length = WGS84.inv(longitude[:-1], latitude[:-1], longitude[1:], latitude[1:])
+    return np.asarray(length, dtype=float), np.mod(np.asarray(azimuth, dtype=float), 360.0)
+
+
+def validate_track(latitude, longitude, elevation=None) -> tuple[np.ndarray, ...]:
+    """Check the raw track's arrays and return them as float arrays.
+
+    Raises InputError for unequal lengths, fewer than two points, non-finite or out-of-range
+    positions, elevations outside LOWEST_ELEVATION..HIGHEST_ELEVATION. NaN elevations mean
+    "missing at that point" and are kept (build_course fills them).
+    """
+    try:
+        latitude = np.asarray(latitude, dtype=float).ravel()
+        longitude = np.asarray(longitude, dtype=float).ravel()
+        elevation = (None if elevation is None
+                     else np.asarray(elevation, dtype=float).ravel())
+    except (TypeError, ValueError):
+        raise InputError("positions and elevations must be numbers") from None
+    if latitude.size != longitude.size or (elevation is not None
+                                           and elevation.size != latitude.size):
+        raise InputError("latitude, longitude and elevation must have the same number of points")
+    if latitude.size == 0:
+        raise InputError("the course has no points")
+    if latitude.size == 1:
+        raise InputError("the course has only one point; a course needs at least two")
+    bad = ~np.isfinite(latitude) | (np.abs(latitude) > 90.0)
+    if bad.any():
+        index = int(np.argmax(bad))
+        raise InputError(f"latitude out of range -90..90 deg at point {index + 1}: "
+                         f"{latitude[index]:g}")
+    bad = ~np.isfinite(longitude) | (np.abs(longitude) > 180.0)
+    if bad.any():
+        index = int(np.argmax(bad))
+        raise InputError(f"longitude out of range -180..180 deg at point {index + 1}: "
+                         f"{longitude[index]:g}")
+    if elevation is not None:
+        with np.errstate(invalid="ignore"):
+            bad = np.isinf(elevation) | (elevation < LOWEST_ELEVATION) | (
+                elevation > HIGHEST_ELEVATION)
+        if bad.any():
+            index = int(np.argmax(bad))
+            raise InputError(f"elevation {elevation[index]:g} m at point {index + 1} is outside "
+                             f"the plausible range {LOWEST_ELEVATION:g}..{HIGHEST_ELEVATION:g} m")
+    return latitude, longitude, elevation
+
+
+def resample_distance(total: float, step: float) -> np.ndarray:
+    """Uniform distances 0, step, 2·step, … and the total [m]; the last piece is kept between
+    0.1·step and 1.1·step long so that no sliver piece remains."""
+    grid = np.arange(0.0, total, step)
+    if grid.size > 1 and total - grid[-1] < 0.1 * step:
+        grid = grid[:-1]
+    return np.append(grid, total)
+
+
+def circumradius(latitude: np.ndarray, longitude: np.ndarray, offset: int) -> np.ndarray:
+    """Circumradius [m] of each point i with points i-k and i+k, k = min(offset, i, N-1-i).
+
+    R = a·b·c / (4·area) for the triangle, in an azimuthal equidistant projection centred on
+    point i (coordinates from the geodesic distance and azimuth to each neighbour: exact at the
+    centre, valid across the antimeridian). Infinite for collinear points and at the two ends.
+    """
+    count = latitude.size
+    radius = np.full(count, np.inf)
+    if count < 3:
+        return radius
+    index = np.arange(1, count - 1)
+    reach = np.minimum(offset, np.minimum(index, count - 1 - index))
+    before, after = index - reach, index + reach
+    azimuth_a, _, distance_a = WGS84.inv(longitude[index], latitude[index],
+                                         longitude[before], latitude[before])
+    azimuth_b, _, distance_b = WGS84.inv(longitude[index], latitude[index],
+                                         longitude[after], latitude[after])
+    distance_a, distance_b = np.asarray(distance_a), np.asarray(distance_b)
+    ax = distance_a * np.sin(np.radians(azimuth_a))
+    ay = distance_a * np.cos(np.radians(azimuth_a))
+    bx = distance_b * np.sin(np.radians(azimuth_b))
+    by = distance_b * np.cos(np.radians(azimuth_b))
+    chord = np.hypot(bx - ax, by - ay)
+    twice_area = np.abs(ax * by - ay * bx)
+    with np.errstate(divide="ignore", invalid="ignore"):
+        inner = distance_a * distance_b * chord / (2.0 * twice_area)
+    radius[index] = np.where(np.isfinite(inner), inner, np.inf)
+    return radius
+
+
+def corner_radius(latitude: np.ndarray, longitude: np.ndarray, step: float,
+                  span: float = CORNER_SPAN) -> np.ndarray:
+    """Radius of the road's curve at each point [m], capped at STRAIGHT_ROAD_RADIUS.
+
+    R = max(R(span), R(2·span) / 2), where R(s) is the circumradius of the point and the points
+    s before and after it (see `circumradius`). A real bend curves both triangles alike (for
+    bends of 12 m radius or more, R(2s)/2 stays below R(s)), while GPS jitter of a metre bends
+    a 40 m chord into a false radius of ~200 m but a 80 m chord hardly at all; the second term
+    removes most such false bends. Straight road and the two end points get
+    STRAIGHT_ROAD_RADIUS.
+
+    Parameters
+    ----------
+    latitude, longitude : points at a uniform step [deg], length N.
+    step : distance between the points [m].
+    span : distance to each neighbour [m]; rounded to a whole number of steps (at least one).
+    """
+    latitude = np.asarray(latitude, dtype=float)
+    longitude = np.asarray(longitude, dtype=float)
+    offset = max(1, int(round(span / step)))
+    radius = np.maximum(circumradius(latitude, longitude, offset),
+                        circumradius(latitude, longitude, 2 * offset) / 2.0)
+    return np.minimum(radius, STRAIGHT_ROAD_RADIUS)
+
+
+# ------------------------------------------------------------------------------ build
+
+def build_course(latitude, longitude, elevation, step: float = DEFAULT_STEP,
+                 smoothing: ElevationSmoothing = ElevationSmoothing(),  # noqa: B008 (frozen)
+                 name: str = "course") -> Course:
+    """Build a Course from a raw track (positions in order along the course).
+
+    Parameters
+    ----------
+    latitude, longitude : WGS84 positions of the track points [deg], length M >= 2.
+    elevation : elevation of each track point [m], length M; NaN where a point has none (filled
+        by interpolation along the distance, with a UserWarning saying how many).
+    step : resampling step [m], MINIMUM_STEP..MAXIMUM_STEP.
+    smoothing : elevation cleaning.
+    name : label of the course.
+
+    Returns
+    -------
+    Course with `distance` along the track (sum of geodesic piece lengths), elevation cleaned,
+    grade from the cleaned elevation, heading and corner radius from the resampled positions.
+
+    Raises InputError (one-line message) for bad positions, elevations, step, a track whose
+    points are all at one place, absurd elevation jumps, or a course too long for the step.
+    Repeated consecutive points are dropped silently.
+    """
+    try:
+        step = float(step)
+    except (TypeError, ValueError):
+        raise InputError(f"step must be a number of metres, got {step!r}") from None
+    if not (math.isfinite(step) and MINIMUM_STEP <= step <= MAXIMUM_STEP):
+        raise InputError(f"step must be between {MINIMUM_STEP:g} and {MAXIMUM_STEP:g} m, "
+                         f"got {step:g}")
+    if smoothing is None:
+        smoothing = ElevationSmoothing()
+    if elevation is None:
+        raise InputError("the course has no elevation")
+    latitude, longitude, elevation = validate_track(latitude, longitude, elevation)
+
+    length, _ = geodesic_pieces(latitude, longitude)
+    keep = np.concatenate([[True], length > REPEATED_POINT_DISTANCE])
+    latitude, longitude, elevation = latitude[keep], longitude[keep], elevation[keep]
+    if latitude.size < 2:
+        raise InputError("all points of the course are at the same place")
+    length, azimuth = geodesic_pieces(latitude, longitude)
+    track_distance = np.concatenate([[0.0], np.cumsum(length)])
+    elevation = fill_missing_elevation(track_distance, elevation)
+    check_elevation_jumps(length, elevation)
+    total = float(track_distance[-1])
+    if total / step > MAXIMUM_COURSE_POINTS:
+        raise InputError(f"course of {total / 1000:.0f} km is too long for a {step:g} m step "
+                         f"(at most {MAXIMUM_COURSE_POINTS} points)")
+
+    distance = resample_distance(total, step)
+    piece = np.clip(np.searchsorted(track_distance, distance, side="right") - 1,
+                    0, length.size - 1)
+    along = distance - track_distance[piece]
+    new_longitude, new_latitude, _ = WGS84.fwd(longitude[piece], latitude[piece],
+                                               azimuth[piece], along)
+    new_latitude = np.asarray(new_latitude, dtype=float)
+    new_longitude = np.asarray(new_longitude, dtype=float)
+    new_latitude[-1], new_longitude[-1] = latitude[-1], longitude[-1]
+    new_longitude = (new_longitude + 180.0) % 360.0 - 180.0
+
+    raw_elevation = np.interp(distance, track_distance, elevation)
+    cleaned = clean_elevation(distance, raw_elevation, smoothing)
+    piece_length = np.diff(distance)
+    grade = np.clip(np.diff(cleaned) / piece_length, -smoothing.max_grade, smoothing.max_grade)
+    _, heading = geodesic_pieces(new_latitude, new_longitude)
+    return Course(
+        distance=distance,
+        latitude=new_latitude,
+        longitude=new_longitude,
+        elevation=cleaned,
+        raw_elevation=raw_elevation,
+        grade=grade,
+        heading=heading,
+        corner_radius=corner_radius(new_latitude, new_longitude, step),
+        name=str(name),
+        raw_ascent=total_ascent(elevation),
+        smoothing=smoothing,
+    )

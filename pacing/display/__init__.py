@@ -1,0 +1,1 @@
+"""The edge where numbers become words: unit systems, formatting, parsing clock times."""

@@ -1,0 +1,2 @@
+"""Physics of moving through air: air density, wind at rider height, the cycling power
+balance (Martin et al.) and the running cost (Minetti et al.) with air resistance."""

@@ -1,0 +1,2 @@
+"""What the athlete can sustain: critical power and W′ balance (cycling), critical speed
+and D′ (running)."""

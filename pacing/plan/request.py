@@ -1,0 +1,139 @@
+"""What the coach asks of a cycling plan (PlanRequest), and the power bounds of each segment
+that follow from it and from the athlete's limits (power_limits).
+"""
+
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass
+
+import numpy as np
+
+from pacing.errors import InputError
+from pacing.physics.cycling import WALKING_SPEED, power_for_speed
+from pacing.physiology.critical_power import W_PRIME_BALANCE_MODELS
+from pacing.plan.steady_model import SegmentModel
+
+STRATEGIES = ("constant", "fastest", "target-time")
+"""Plans `make_plan` can make."""
+
+CONSTRAINTS = ("mean-power", "work")
+"""What the fastest plan keeps equal to the constant plan: time-weighted mean power or work."""
+
+DEFAULT_MAX_POWER_RATIO = 1.5
+"""Upper power bound relative to the mean power when the request sets none [-]: a safety cap
+so an unbounded optimum never asks for a sprint-level effort on a long climb."""
+
+DESCENT_GRADE = -0.02
+"""Mean grade at or below which a segment counts as a descent for `allow_zero_on_descents` [-]."""
+
+MAXIMUM_PLAN_POWER = 3000.0
+"""No plan asks for more crank power than this [W]."""
+
+
+@dataclass(frozen=True)
+class PlanRequest:
+    """What the coach asks for, and the athlete's limits.
+
+    Attributes
+    ----------
+    strategy : "constant", "fastest" or "target-time".
+    mean_power : constant power, or the mean power the fastest plan must match [W].
+    target_time : finish time to reach ("target-time") [s].
+    constraint : "mean-power" (time-weighted mean equal to `mean_power`) or "work" (same
+        total work as the constant plan at `mean_power`).
+    critical_power : CP [W]; None if unknown.
+    w_prime : W′ [J]; None if unknown (both CP and W′ are needed for the W′ reserve).
+    w_prime_reserve : W′ balance never to go below [J].
+    max_power_ratio : segment power at most this multiple of CP (of the mean power without
+        CP) [-]; None means DEFAULT_MAX_POWER_RATIO times the mean power.
+    min_power_ratio : segment power at least this multiple of CP (of the mean power without
+        CP) [-].
+    allow_zero_on_descents : descents (mean grade ≤ DESCENT_GRADE) may go down to 0 W.
+    effort_weighted_cap : upper limit of the effort-weighted power [W]; None for none.
+    w_prime_model : key of pacing.physiology.critical_power.W_PRIME_BALANCE_MODELS.
+    band : half-width of the target band around each segment power, as a fraction [-].
+    """
+
+    strategy: str = "constant"
+    mean_power: float | None = None
+    target_time: float | None = None
+    constraint: str = "mean-power"
+    critical_power: float | None = None
+    w_prime: float | None = None
+    w_prime_reserve: float = 0.0
+    max_power_ratio: float | None = None
+    min_power_ratio: float = 0.0
+    allow_zero_on_descents: bool = False
+    effort_weighted_cap: float | None = None
+    w_prime_model: str = "differential"
+    band: float = 0.03
+
+    def __post_init__(self) -> None:
+        def positive(value: float | None) -> bool:
+            return value is None or (math.isfinite(value) and value > 0)
+
+        if self.strategy not in STRATEGIES:
+            raise InputError(f"unknown strategy {self.strategy!r}; choose one of "
+                             f"{', '.join(STRATEGIES)}")
+        if self.constraint not in CONSTRAINTS:
+            raise InputError(f"unknown constraint {self.constraint!r}; choose one of "
+                             f"{', '.join(CONSTRAINTS)}")
+        if self.w_prime_model not in W_PRIME_BALANCE_MODELS:
+            raise InputError(f"unknown W′ balance model {self.w_prime_model!r}")
+        for name in ("mean_power", "target_time", "critical_power", "w_prime",
+                     "max_power_ratio", "effort_weighted_cap"):
+            if not positive(getattr(self, name)):
+                raise InputError(f"{name.replace('_', ' ')} must be positive, "
+                                 f"got {getattr(self, name)}")
+        if self.mean_power is not None and self.mean_power > MAXIMUM_PLAN_POWER:
+            raise InputError(f"mean power {self.mean_power:g} W is beyond "
+                             f"{MAXIMUM_PLAN_POWER:g} W")
+        if not (math.isfinite(self.w_prime_reserve) and self.w_prime_reserve >= 0):
+            raise InputError(f"W′ reserve must be ≥ 0 J, got {self.w_prime_reserve}")
+        if self.w_prime is not None and self.w_prime_reserve >= self.w_prime:
+            raise InputError(f"W′ reserve {self.w_prime_reserve:g} J must be below W′ "
+                             f"{self.w_prime:g} J")
+        if not (math.isfinite(self.min_power_ratio) and self.min_power_ratio >= 0):
+            raise InputError(f"min power ratio must be ≥ 0, got {self.min_power_ratio}")
+        if (self.max_power_ratio is not None
+                and self.max_power_ratio <= self.min_power_ratio):
+            raise InputError("max power ratio must exceed min power ratio")
+        if not (math.isfinite(self.band) and 0 <= self.band < 1):
+            raise InputError(f"band must be a fraction 0..1, got {self.band}")
+
+    @property
+    def uses_w_prime(self) -> bool:
+        """Whether CP and W′ are both known, so the W′ balance is tracked and limited."""
+        return self.critical_power is not None and self.w_prime is not None
+
+
+def power_limits(model: SegmentModel, request: PlanRequest) -> tuple[np.ndarray, np.ndarray]:
+    """Lower and upper power bound of each segment [W].
+
+    The reference is CP when known, else the mean power. The lower bound is at least the power
+    that keeps the rider moving at walking pace on the segment's steepest piece (below it the
+    steady model stalls), except on descents when zero is allowed.
+    """
+    mean = float(request.mean_power)
+    reference = request.critical_power if request.critical_power is not None else mean
+    upper = (request.max_power_ratio * reference if request.max_power_ratio is not None
+             else DEFAULT_MAX_POWER_RATIO * mean)
+    upper = min(upper, MAXIMUM_PLAN_POWER)
+    lower = np.full(model.count, request.min_power_ratio * reference)
+    if request.allow_zero_on_descents:
+        lower[model.mean_grade <= DESCENT_GRADE] = 0.0
+    moving = power_for_speed(WALKING_SPEED, model.grade, model.density, model.rider,
+                             model.headwind, model.crosswind)
+    needed = np.zeros(model.count)
+    np.maximum.at(needed, model.segment, np.maximum(moving, 0.0))
+    lower = np.maximum(lower, needed)
+    high = np.full(model.count, upper)
+    if np.any(lower > high):
+        k = int(np.argmax(lower - high))
+        raise InputError(f"segment {k + 1} needs {lower[k]:.0f} W just to keep riding, more "
+                         f"than the power cap {upper:.0f} W")
+    if not (lower.min() <= mean <= upper):
+        raise InputError(f"mean power {mean:g} W lies outside the power limits "
+                         f"{lower.min():.0f}-{upper:.0f} W")
+    return lower, high

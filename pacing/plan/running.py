@@ -1,0 +1,536 @@
+"""Running race plans on a course: equal effort, even pace, and the fastest that critical
+speed and D′ allow, with their segment target rows.
+
+The athlete's *effort* is the metabolic power of the flat-ground pace in still air at the
+start's air density (pacing.physics.running: Minetti et al. 2002 cost of running on grades plus air
+resistance). An *equal-effort* plan runs every piece at the speed with that metabolic power; an
+*even-pace* plan runs one speed everywhere; the *fastest* plan is the highest equal effort that
+the runner's critical speed and D′ allow (D′ balance by Skiba's differential form, see
+`pacing.physiology.critical_speed.distance_capacity_balance`). The even-pace references and the D′
+balance of a plan are in pacing.plan.even_pace.
+
+What each plan holds to, and which is faster
+--------------------------------------------
+* Equal effort: every piece at the effort target, never above it. This is the plan a runner can
+  sustain: no climb asks for more than the flat effort. Where the descent cap binds, the piece
+  runs below the target and that effort is not used.
+* Even pace: one speed, chosen so that the *time-weighted mean* metabolic power over the course
+  equals the effort target. It meets the effort only on average: on climbs (and into the wind)
+  each piece costs more than the target, e.g. 130 % of the flat effort on a 5 % climb at
+  5:00/km, and the plan reports that peak (`peak_effort_ratio`) and each segment's ratio.
+* Fastest: the highest equal effort that critical speed and D′ allow. Only this plan uses the
+  runner's ability to go above the flat effort for a while, and it is where a plan gains time.
+
+In this model the cost per metre on a grade, Cr(i), does not depend on speed, so in still air
+the energy per metre on piece j is e_j(v) = Cr_j + k·v² (k = a·ρ, the air term). Among all
+plans with the same time-weighted mean metabolic power P̄, the fastest minimises
+T = Σ L_j/v_j subject to Σ L_j·e_j(v_j) = P̄·T. With the Lagrangian
+T + λ·(Σ L_j·(Cr_j + k·v_j²) − P̄·T), ∂/∂v_j = −(1 − λP̄)·L_j/v_j² + 2λk·L_j·v_j = 0 gives
+v_j³ = (1 − λP̄)/(2λk), the same on every piece: a constant speed. So, at equal mean effort,
+even pace is the fastest plan on a windless hilly course without a descent cap (with k = 0 all
+plans of that mean effort take the same time, T = Σ L_j·Cr_j / P̄), and equal effort is slower
+by a few seconds. That is the model's physics, not a flaw of either plan: the price of even
+pace is the effort above the target on every climb, which an equal-effort runner never pays.
+With wind, e_j depends on the air speed v + w_j, and equal effort gains into a headwind and
+loses little with a tailwind, so on a flat out-and-back in wind it is at least as fast as even
+pace at the same mean effort (issue 5's property, tested). Each plan carries the even pace at
+its own mean effort (`even_pace_time`, `time_saved`) so the two can be compared fairly.
+
+References
+----------
+Minetti, A.E., Moia, C., Roi, G.S., Susta, D. & Ferretti, G. (2002). Energy cost of walking and
+running at extreme uphill and downhill slopes. J Appl Physiol 93(3):1039-1046.
+Poole, D.C. et al. (2016). Critical power: an important fatigue threshold in exercise
+physiology. Med Sci Sports Exerc 48(11):2320-2334.
+Skiba, P.F. et al. (2015). Intramuscular determinants of the ability to recover work capacity
+above critical power. Eur J Appl Physiol 115(4):703-713.
+"""
+
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+import numpy as np
+
+from pacing.course.geometry import Course
+from pacing.course.segments import split_every
+from pacing.errors import InputError
+from pacing.physics.running import (
+    RUNNING_COST_MODELS,
+    Runner,
+    flat_effort,
+    speed_for_metabolic_power,
+)
+from pacing.physiology.critical_speed import check_critical_speed, distance_capacity_balance
+from pacing.plan.even_pace import (
+    PieceAir,
+    check_limits,
+    even_pace_reference,
+    even_pace_speed,
+    even_pace_within_limits,
+    highest_feasible_speed,
+    lowest_even_pace_balance,
+    pace_clock,
+    piece_air,
+    piece_metabolic_power,
+    plan_d_prime_balance,
+)
+from pacing.plan.targets import SegmentTarget
+
+DOWNHILL_SPEED_RATIO_CAP = 1.2
+"""Default cap on speed on descents, as a multiple of the flat speed [-]. Our choice: the
+Minetti polynomial's equal-effort speeds on descents are unrealistically high (its authors
+say so): ×1.27 at −5 %, ×1.67 at −10 %. Runners in a self-paced hilly time trial ran 13.8 %
+faster on descents than on level sections (Med Sci Sports Exerc 42(1):160-169, 2010,
+"Spontaneous pacing during overground hill running"; authors Townshend et al. from
+memory), so 1.2 leaves room for steeper descents without the model's excess."""
+
+DEFAULT_SPLIT = 1000.0
+"""Segment length when no segment bounds are given [m]: kilometre splits."""
+
+
+@dataclass(frozen=True)
+class RunningSegment:
+    """One row of a running plan's target table (numbers only; formatting at the edges).
+
+    Attributes
+    ----------
+    start, end : distance from the start [m].
+    grade : mean grade, rise/run [-].
+    headwind : length-weighted mean headwind component [m/s] (negative: tailwind).
+    speed : mean ground speed [m/s].
+    pace : target pace [s/km].
+    time : expected time on the segment [s].
+    cumulative_time : elapsed time at the segment's end [s].
+    effort_ratio : time-weighted mean metabolic power relative to the effort target [-].
+    max_speed : highest speed on a piece of the segment [m/s].
+    d_prime_balance : D′ balance at the segment's end [m] (None without critical speed and D′).
+    """
+
+    start: float
+    end: float
+    grade: float
+    headwind: float
+    speed: float
+    pace: float
+    time: float
+    cumulative_time: float
+    effort_ratio: float
+    max_speed: float
+    d_prime_balance: float | None = None
+
+
+@dataclass(frozen=True, eq=False)
+class RunningPlan:
+    """A running plan on a course and its prediction.
+
+    Attributes
+    ----------
+    strategy : "equal-effort", "even-pace" or "fastest".
+    speed : ground speed on each piece [m/s], length N-1.
+    time : time on each piece [s], length N-1.
+    metabolic_power : on each piece [W/kg], length N-1.
+    effort : the effort target, metabolic power of the flat speed in still air [W/kg].
+    flat_speed : the flat-ground, still-air speed of that effort [m/s].
+    segments : target rows.
+    d_prime_balance : D′ balance at the end of each piece [m] (fastest plan, or any plan given
+        critical speed and D′; else None).
+    notes : cautions to show beside the numbers.
+    even_pace_speed : the even pace with this plan's time-weighted mean metabolic power [m/s].
+    even_pace_time : finish time of that even pace [s] (the reference of `time_saved`).
+    even_pace_peak_effort_ratio : that even pace's highest piece effort / effort target [-].
+    limited_even_pace_time : finish time of the fastest even pace within critical speed and D′
+        [s] (fastest plan; else None).
+    """
+
+    strategy: str
+    speed: np.ndarray
+    time: np.ndarray
+    metabolic_power: np.ndarray
+    effort: float
+    flat_speed: float
+    segments: tuple[RunningSegment, ...]
+    d_prime_balance: np.ndarray | None = None
+    notes: tuple[str, ...] = ()
+    even_pace_speed: float | None = None
+    even_pace_time: float | None = None
+    even_pace_peak_effort_ratio: float | None = None
+    limited_even_pace_time: float | None = None
+
+    @property
+    def finish_time(self) -> float:
+        """[s]."""
+        return float(self.time.sum())
+
+    @property
+    def distance(self) -> float:
+        """[m]."""
+        return float((self.speed * self.time).sum())
+
+    @property
+    def average_speed(self) -> float:
+        """[m/s]."""
+        return self.distance / self.finish_time
+
+    @property
+    def mean_effort_ratio(self) -> float:
+        """Time-weighted mean metabolic power relative to the effort target [-] (below 1 for
+        an equal-effort plan where the descent cap holds the runner back)."""
+        return float(np.sum(self.metabolic_power * self.time) / self.finish_time / self.effort)
+
+    @property
+    def peak_effort_ratio(self) -> float:
+        """Highest metabolic power on a piece relative to the effort target [-] (1 for an
+        equal-effort plan; above 1 on the climbs of an even pace)."""
+        return float(self.metabolic_power.max() / self.effort)
+
+    @property
+    def max_speed(self) -> float:
+        """Highest speed on a piece [m/s]."""
+        return float(self.speed.max())
+
+    @property
+    def time_saved(self) -> float | None:
+        """Seconds this plan finishes before the even pace at the same time-weighted mean
+        metabolic power [s] (negative: that even pace is faster, at the price of efforts
+        above the target on climbs; see the module docstring). None without a reference."""
+        return None if self.even_pace_time is None else self.even_pace_time - self.finish_time
+
+    @property
+    def min_d_prime_balance(self) -> float | None:
+        """Lowest D′ balance along the course [m] (None without critical speed and D′)."""
+        return None if self.d_prime_balance is None else float(self.d_prime_balance.min())
+
+    @property
+    def min_d_prime_distance(self) -> float | None:
+        """Distance from the start where the D′ balance is lowest [m] (None without it)."""
+        if self.d_prime_balance is None:
+            return None
+        return float(np.cumsum(self.speed * self.time)[int(np.argmin(self.d_prime_balance))])
+
+
+def _check_bounds(course: Course, bounds) -> np.ndarray:
+    if bounds is None:
+        return split_every(course, DEFAULT_SPLIT)
+    bounds = np.asarray(bounds, dtype=int)
+    n = course.distance.size
+    if bounds.ndim != 1 or bounds.size < 2 or bounds[0] != 0 or bounds[-1] != n - 1 \
+            or np.any(np.diff(bounds) <= 0):
+        raise InputError("segment bounds must increase from 0 to the last point of the course")
+    return bounds
+
+
+def _segments(course: Course, bounds: np.ndarray, speed: np.ndarray, time: np.ndarray,
+              power: np.ndarray, effort: float, headwind: np.ndarray,
+              balance: np.ndarray | None = None) -> tuple:
+    length = course.piece_length
+    cumulative = np.concatenate([[0.0], np.cumsum(time)])
+    rows = []
+    for first, last in zip(bounds[:-1], bounds[1:], strict=True):
+        pieces = slice(first, last)
+        run = float(course.distance[last] - course.distance[first])
+        seg_time = float(time[pieces].sum())
+        seg_speed = run / seg_time
+        rows.append(RunningSegment(
+            start=float(course.distance[first] - course.distance[0]),
+            end=float(course.distance[last] - course.distance[0]),
+            grade=float((course.elevation[last] - course.elevation[first]) / run),
+            headwind=float(np.average(headwind[pieces], weights=length[pieces])),
+            speed=seg_speed,
+            pace=1000.0 / seg_speed,
+            time=seg_time,
+            cumulative_time=float(cumulative[last]),
+            effort_ratio=float(np.average(power[pieces], weights=time[pieces]) / effort),
+            max_speed=float(speed[pieces].max()),
+            d_prime_balance=None if balance is None else float(balance[last - 1]),
+        ))
+    return tuple(rows)
+
+
+def _grade_notes(course: Course, runner: Runner) -> list[str]:
+    low, high = RUNNING_COST_MODELS[runner.cost_model].grade_range
+    outside = int(np.count_nonzero((course.grade < low) | (course.grade > high)))
+    if outside:
+        return [f"{outside} piece(s) steeper than the cost model's range {low:+.0%}..{high:+.0%}"
+                " were costed at its edge"]
+    return []
+
+
+def _equal_effort_speeds(course: Course, runner: Runner, effort: float, flat_speed: float,
+                         air: PieceAir, downhill_speed_ratio_cap: float | None):
+    """Equal-effort speed per piece [m/s] and where the descent cap holds it back."""
+    speed = speed_for_metabolic_power(effort, course.grade, air.density, runner, air.headwind,
+                                      air.crosswind)
+    capped = np.zeros(speed.shape, dtype=bool)
+    if downhill_speed_ratio_cap is not None:
+        if not downhill_speed_ratio_cap >= 1.0:
+            raise InputError(
+                f"downhill speed cap must be at least 1 × flat speed, got "
+                f"{downhill_speed_ratio_cap}"
+            )
+        limit = downhill_speed_ratio_cap * flat_speed
+        capped = (course.grade < 0) & (speed > limit)
+        speed = np.where(capped, limit, speed)
+    return speed, capped
+
+
+def _flat_speed_inputs(course: Course, runner: Runner, flat_speed: float, air_density,
+                       headwind, crosswind, bounds, critical_speed: float | None,
+                       d_prime: float | None) -> tuple[PieceAir, np.ndarray, float]:
+    """Checked inputs of a plan set by its flat speed: air per piece, segment bounds and the
+    effort target, the metabolic power of flat_speed at the start's air density [W/kg]."""
+    check_limits(critical_speed, d_prime)
+    air = piece_air(course, air_density, headwind, crosswind)
+    bounds = _check_bounds(course, bounds)
+    return air, bounds, flat_effort(flat_speed, float(air.density[0]), runner)
+
+
+def _balance_if_given(power: np.ndarray, time: np.ndarray, runner: Runner, air: PieceAir,
+                      critical_speed: float | None, d_prime: float | None) -> np.ndarray | None:
+    """`plan_d_prime_balance` at the start's air density, or None without critical speed."""
+    if critical_speed is None:
+        return None
+    return plan_d_prime_balance(power, time, runner, float(air.density[0]), critical_speed,
+                                d_prime)
+
+
+def _running_plan(strategy: str, course: Course, bounds: np.ndarray, air: PieceAir,
+                  speed: np.ndarray, time: np.ndarray, power: np.ndarray, effort: float,
+                  flat_speed: float, balance: np.ndarray | None, notes: list[str],
+                  **fields) -> RunningPlan:
+    """The RunningPlan of per-piece speed, time and metabolic power, with its target rows;
+    `fields`: the even-pace references."""
+    return RunningPlan(
+        strategy=strategy, speed=speed, time=time, metabolic_power=power, effort=effort,
+        flat_speed=float(flat_speed),
+        segments=_segments(course, bounds, speed, time, power, effort, air.headwind, balance),
+        d_prime_balance=balance, notes=tuple(notes), **fields,
+    )
+
+
+def _comparison_note(finish_time: float, reference: dict, overdraw: str = "") -> list[str]:
+    saved = reference["even_pace_time"] - finish_time
+    if abs(saved) < 0.5:
+        return []
+    order = "later" if saved > 0 else "sooner"
+    return [
+        f"even pace at the same mean effort ({pace_clock(1000.0 / reference['even_pace_speed'])} "
+        f"/km) would finish {abs(saved):.0f} s {order} in this model, running up to "
+        f"{reference['even_pace_peak_effort_ratio']:.0%} of the flat effort on the hardest "
+        f"piece{overdraw}; this plan never goes above its target effort"
+    ]
+
+
+def plan_equal_effort(
+    course: Course,
+    runner: Runner,
+    flat_speed: float,
+    air_density: float | np.ndarray = 1.2,
+    headwind: float | np.ndarray = 0.0,
+    crosswind: float | np.ndarray = 0.0,
+    bounds: np.ndarray | None = None,
+    downhill_speed_ratio_cap: float | None = DOWNHILL_SPEED_RATIO_CAP,
+    critical_speed: float | None = None,
+    d_prime: float | None = None,
+) -> RunningPlan:
+    """Equal effort: on every piece the speed whose metabolic power equals the flat effort.
+
+    effort = P_met(flat_speed, grade 0, still air, ρ at the first piece); then on each piece
+    P_met(v) = effort is solved for v, and on descents v ≤ cap × flat_speed. No piece runs
+    above the effort target (physiologically sustainable); capped descents run below it.
+
+    The plan also carries the even pace at its own time-weighted mean metabolic power
+    (`even_pace_time`, `time_saved`): in still air on hills that even pace is a few seconds
+    faster (module docstring: the Lagrange condition gives a constant speed) but runs the
+    climbs above the target (`even_pace_peak_effort_ratio`).
+
+    Parameters
+    ----------
+    course : Course; runner : Runner; flat_speed : speed held on flat ground in still air
+    [m/s]; air_density : per piece or scalar [kg/m³]; headwind, crosswind : per piece or
+    scalar [m/s] at the runner; bounds : segment boundary point indices (default: every km);
+    downhill_speed_ratio_cap : highest speed on descents as a multiple of flat_speed [-], None
+    for no cap; critical_speed [m/s], d_prime [m] : optional, to show the D′ balance.
+    """
+    air, bounds, effort = _flat_speed_inputs(course, runner, flat_speed, air_density, headwind,
+                                             crosswind, bounds, critical_speed, d_prime)
+    speed, capped = _equal_effort_speeds(course, runner, effort, flat_speed, air,
+                                         downhill_speed_ratio_cap)
+    time = course.piece_length / speed
+    power = piece_metabolic_power(course, runner, air, speed)
+    balance = _balance_if_given(power, time, runner, air, critical_speed, d_prime)
+    reference = even_pace_reference(course, runner, air, power, time, effort)
+    notes = _grade_notes(course, runner)
+    if capped.any():
+        notes.append(
+            f"descent speed capped at {downhill_speed_ratio_cap:g} × flat speed on "
+            f"{capped.mean():.0%} of the course: the cost model's downhill speeds are "
+            "unrealistic"
+        )
+    notes.extend(_comparison_note(float(time.sum()), reference))
+    return _running_plan("equal-effort", course, bounds, air, speed, time, power, effort,
+                         flat_speed, balance, notes, **reference)
+
+
+def plan_even_pace(
+    course: Course,
+    runner: Runner,
+    flat_speed: float,
+    air_density: float | np.ndarray = 1.2,
+    headwind: float | np.ndarray = 0.0,
+    crosswind: float | np.ndarray = 0.0,
+    bounds: np.ndarray | None = None,
+    speed: float | None = None,
+    critical_speed: float | None = None,
+    d_prime: float | None = None,
+) -> RunningPlan:
+    """Even pace, the naive plan: one speed everywhere, and what it costs.
+
+    By default the speed is the one whose time-weighted mean metabolic power over the course
+    equals the flat effort (`even_pace_for_mean_power`): the effort target is met on average,
+    not on every piece. Each segment's `effort_ratio` and the plan's `peak_effort_ratio` show
+    what the even pace costs (above 1 on climbs and into the wind): the reason a runner does
+    not hold one pace up a hill. In still air it is the fastest plan of its mean effort
+    (module docstring), so it can finish sooner than equal effort, which never runs above the
+    target.
+
+    Parameters
+    ----------
+    as plan_equal_effort; speed : hold this speed instead [m/s].
+    """
+    air, bounds, effort = _flat_speed_inputs(course, runner, flat_speed, air_density, headwind,
+                                             crosswind, bounds, critical_speed, d_prime)
+    length = course.piece_length
+    if speed is None:
+        speed = even_pace_speed(course, runner, air, effort)
+    elif not np.isfinite(speed) or not 0.5 <= speed <= 12.0:
+        raise InputError(
+            f"even pace must be 1:24-33:20 per km (0.5-12 m/s), got "
+            f"{pace_clock(1000.0 / speed)} per km ({speed:.3g} m/s)"
+            if np.isfinite(speed) and speed > 0 else f"even pace must be 0.5-12 m/s, got {speed}"
+        )
+    speeds = np.full(length.shape, float(speed))
+    time = length / speeds
+    power = piece_metabolic_power(course, runner, air, speeds)
+    balance = _balance_if_given(power, time, runner, air, critical_speed, d_prime)
+    notes = _grade_notes(course, runner)
+    peak = float(power.max() / effort)
+    mean = float(np.sum(power * time) / time.sum() / effort)
+    notes.append(
+        f"even pace meets the target effort on average ({mean:.0%} time-weighted), not on "
+        f"every piece: it costs up to {peak:.0%} of the flat effort on the hardest piece"
+    )
+    return _running_plan("even-pace", course, bounds, air, speeds, time, power, effort,
+                         flat_speed, balance, notes, even_pace_speed=float(speed),
+                         even_pace_time=float(time.sum()), even_pace_peak_effort_ratio=peak)
+
+
+def plan_fastest(
+    course: Course,
+    runner: Runner,
+    critical_speed: float,
+    d_prime: float,
+    air_density: float | np.ndarray = 1.2,
+    headwind: float | np.ndarray = 0.0,
+    crosswind: float | np.ndarray = 0.0,
+    bounds: np.ndarray | None = None,
+    downhill_speed_ratio_cap: float | None = DOWNHILL_SPEED_RATIO_CAP,
+    d_prime_reserve: float = 0.0,
+    tolerance: float = 1e-6,
+) -> RunningPlan:
+    """The fastest equal-effort plan that critical speed and D′ allow.
+
+    Each effort level is expressed as its flat-equivalent speed u (flat ground, still air,
+    start density). The plan is equal effort at level u; its D′ balance along the course is
+    computed with `distance_capacity_balance` (pieces where the descent cap holds the runner
+    back run below the level and may recover). The highest u whose balance never falls below
+    `d_prime_reserve` is found by bisection. On a flat still-air course this is u = d/t with
+    t = (d − D′)/CS (`critical_speed_flat_race_time`).
+
+    This is where a plan gains: at the limit of D′ an even pace must slow down for its
+    climbs, which cost more than its mean effort, while equal effort spends D′ evenly.
+    `limited_even_pace_time` is the fastest even pace within the same CS and D′
+    (`even_pace_within_limits`); `time_saved` is, as in the other plans, against the even pace
+    at the same mean effort (which may overdraw D′).
+
+    Caution: the recovery below critical speed uses Skiba's constants from cycling.
+
+    Parameters
+    ----------
+    as plan_equal_effort; critical_speed : CS [m/s]; d_prime : D′ [m]; d_prime_reserve :
+    balance never to go below [m]; tolerance : on u [m/s].
+    """
+    check_critical_speed(critical_speed, d_prime)
+    if not 0.0 <= d_prime_reserve < d_prime:
+        raise InputError(f"D′ reserve must be 0 to D′ ({d_prime:g} m), got {d_prime_reserve}")
+    air = piece_air(course, air_density, headwind, crosswind)
+    bounds = _check_bounds(course, bounds)
+    start_density = float(air.density[0])
+    length = course.piece_length
+    if course.total_distance <= d_prime - d_prime_reserve:
+        raise InputError(
+            f"course ({course.total_distance:.0f} m) must be longer than the usable D′ "
+            f"({d_prime - d_prime_reserve:.0f} m)"
+        )
+
+    def attempt(level: float):
+        effort = flat_effort(level, start_density, runner)
+        speed, capped = _equal_effort_speeds(course, runner, effort, level, air,
+                                             downhill_speed_ratio_cap)
+        time = length / speed
+        power = piece_metabolic_power(course, runner, air, speed)
+        equivalent = np.full(speed.shape, level)
+        if capped.any():
+            equivalent[capped] = speed_for_metabolic_power(power[capped], 0.0, start_density,
+                                                           runner)
+        balance = distance_capacity_balance(equivalent, time, critical_speed, d_prime)
+        return effort, speed, time, power, capped, balance
+
+    low = highest_feasible_speed(lambda level: attempt(level)[-1].min() >= d_prime_reserve,
+                                 critical_speed, critical_speed * 1.05 + 0.1, tolerance)
+    effort, speed, time, power, capped, balance = attempt(low)
+    reference = even_pace_reference(course, runner, air, power, time, effort)
+    limited_speed = even_pace_within_limits(course, runner, critical_speed, d_prime,
+                                            air.density, air.headwind, air.crosswind,
+                                            d_prime_reserve, tolerance)
+    limited_time = float(length.sum() / limited_speed)
+    notes = _grade_notes(course, runner)
+    notes.append("D′ recovery below critical speed uses Skiba's constants from cycling")
+    if capped.any():
+        notes.append(
+            f"descent speed capped at {downhill_speed_ratio_cap:g} × flat-equivalent speed on "
+            f"{capped.mean():.0%} of the course"
+        )
+    even_lowest = lowest_even_pace_balance(course, runner, air, reference["even_pace_speed"],
+                                           critical_speed, d_prime)
+    overdraw = (f" and overdrawing D′ (lowest balance {even_lowest:.0f} m)"
+                if even_lowest < d_prime_reserve else "")
+    notes.extend(_comparison_note(float(time.sum()), reference, overdraw))
+    notes.append(
+        f"the fastest even pace within the same critical speed and D′ "
+        f"({pace_clock(1000.0 / limited_speed)} /km) would finish "
+        f"{limited_time - float(time.sum()):.0f} s later: its climbs spend D′ faster"
+    )
+    return _running_plan("fastest", course, bounds, air, speed, time, power, effort, low,
+                         balance, notes, limited_even_pace_time=limited_time, **reference)
+
+
+RUNNING_STRATEGIES = ("equal-effort", "even-pace", "fastest")
+"""Names of the running plans (the CLI's --strategy values)."""
+
+
+def running_targets(plan: RunningPlan) -> list[SegmentTarget]:
+    """The plan's segments as pacing.plan.targets.SegmentTarget rows (for exports and the app).
+
+    Power fields and W′ balance are None; target_pace is the segment's pace [s/km].
+    """
+    return [
+        SegmentTarget(
+            index=index, start=row.start, end=row.end, length=row.end - row.start,
+            grade=row.grade, target_power=None, power_low=None, power_high=None,
+            target_pace=row.pace, speed=row.speed, time=row.time,
+            cumulative_time=row.cumulative_time, w_prime_balance=None, headwind=row.headwind,
+        )
+        for index, row in enumerate(plan.segments)
+    ]

@@ -1,0 +1,192 @@
+"""Segment target tables: what the athlete aims for on each segment, as numbers.
+
+One row per segment with the target power (and its band), the expected speed, the split and
+cumulative times, the W′ balance at its end and the headwind. Values are SI (m, s, m/s, W, J);
+pace is in seconds per kilometre because that is how every runner and coach reads it. Units and
+formatting are left to the edges (pacing.display.units, the CLI, exports, the app).
+"""
+
+from __future__ import annotations
+
+import math
+from dataclasses import asdict, dataclass
+
+import numpy as np
+
+from pacing.errors import InputError
+from pacing.plan.prediction import segment_results
+
+DEFAULT_BAND = 0.03
+"""Half-width of the power band around a target power, as a fraction [-]: ±3 %, as the
+issue on pacing strategies asks (a target with a tolerance band is common practice)."""
+
+
+def power_band(target_power, band: float = DEFAULT_BAND) -> tuple[np.ndarray, np.ndarray]:
+    """Lower and upper edge of the band around target powers [W].
+
+    low = P·(1 − band), high = P·(1 + band).
+
+    Parameters
+    ----------
+    target_power : target crank power, one number or an array [W] (finite, ≥ 0).
+    band : half-width as a fraction, 0 ≤ band < 1 [-].
+    """
+    try:
+        band = float(band)
+    except (TypeError, ValueError):
+        raise InputError(f"band must be a fraction 0..1, got {band!r}") from None
+    if not (math.isfinite(band) and 0 <= band < 1):
+        raise InputError(f"band must be a fraction 0..1, got {band}")
+    power = np.asarray(target_power, dtype=float)
+    if not np.all(np.isfinite(power)) or np.any(power < 0):
+        raise InputError("target power must be finite and not negative")
+    return power * (1.0 - band), power * (1.0 + band)
+
+
+@dataclass(frozen=True)
+class SegmentTarget:
+    """The targets of one segment.
+
+    Attributes
+    ----------
+    index : segment number, from 0.
+    start, end : course distance of its first and last point [m].
+    length : horizontal length [m].
+    grade : mean grade, rise/run [-].
+    target_power : crank power to hold [W]; None when the plan has no power (running).
+    power_low, power_high : band around the target power [W]; None without a target power.
+    target_pace : pace to hold [s/km]; None unless pace is asked for (running).
+    speed : expected mean speed, length / time [m/s].
+    time : expected time on the segment [s].
+    cumulative_time : expected time from the start to its end [s].
+    w_prime_balance : W′ balance at its end [J]; None without CP and W′.
+    headwind : length-weighted mean headwind component [m/s] (negative = tailwind); 0 without
+        air data.
+    """
+
+    index: int
+    start: float
+    end: float
+    length: float
+    grade: float
+    target_power: float | None
+    power_low: float | None
+    power_high: float | None
+    target_pace: float | None
+    speed: float
+    time: float
+    cumulative_time: float
+    w_prime_balance: float | None
+    headwind: float
+
+
+def _optional(values, count: int, name: str) -> np.ndarray | None:
+    if values is None:
+        return None
+    array = np.asarray(values, dtype=float)
+    if array.shape != (count,):
+        raise InputError(f"{name} must have one value per segment ({count})")
+    return array
+
+
+def target_table(
+    course,
+    bounds,
+    plan,
+    *,
+    segment_power=None,
+    segment_w_prime_balance=None,
+    air=None,
+    band: float | None = None,
+    pace: bool = False,
+) -> list[SegmentTarget]:
+    """The target table of a plan, one SegmentTarget per segment.
+
+    Parameters
+    ----------
+    course : pacing.course.geometry.Course; bounds : segment boundary point indices (first 0, last
+    N-1).
+    plan : a pacing.plan.cycling.RacePlan, or a pacing.plan.prediction.Prediction (anything with the
+        Prediction fields distance, time, speed, power).
+    segment_power : target power per segment [W] (default: the RacePlan's segment power; for a
+        bare Prediction, the time-weighted mean power it rode on each segment; none when
+        `pace` is set and no power is given).
+    segment_w_prime_balance : W′ balance at each segment end [J] (default: the RacePlan's).
+    air : per-piece air (pacing.weather.conditions.CourseAir) for the headwind column; default the
+        Prediction's headwind when it has one.
+    band : half-width of the power band as a fraction [-] (default the RacePlan request's band,
+        else DEFAULT_BAND, 0.03).
+    pace : also give the target pace [s/km] (running).
+    """
+    prediction = getattr(plan, "prediction", plan)
+    bounds = np.asarray(bounds)
+    if band is None:
+        request = getattr(plan, "request", None)
+        band = request.band if request is not None else DEFAULT_BAND
+    if not (math.isfinite(band) and 0 <= band < 1):
+        raise InputError(f"band must be a fraction 0..1, got {band}")
+    results = segment_results(course, prediction, bounds)
+    count = len(results)
+    if segment_power is None:
+        segment_power = getattr(plan, "segment_power", None)
+        if segment_power is None and not pace:
+            segment_power = [r.power for r in results]
+    power = _optional(segment_power, count, "segment power")
+    if segment_w_prime_balance is None:
+        segment_w_prime_balance = getattr(plan, "segment_w_prime_balance", None)
+    balance = _optional(segment_w_prime_balance, count, "W′ balance")
+    headwind_source = air.headwind if air is not None else getattr(prediction, "headwind", None)
+    piece_length = np.diff(np.asarray(course.distance, dtype=float))
+    if headwind_source is None:
+        headwind = np.zeros(count)
+    else:
+        wind = np.broadcast_to(np.asarray(headwind_source, dtype=float), piece_length.shape)
+        segment = np.repeat(np.arange(count), np.diff(bounds.astype(int)))
+        headwind = (np.bincount(segment, wind * piece_length, count)
+                    / np.bincount(segment, piece_length, count))
+    rows = []
+    elapsed = 0.0
+    for k, result in enumerate(results):
+        elapsed += result.time
+        target = None if power is None else float(power[k])
+        rows.append(SegmentTarget(
+            index=result.index,
+            start=result.start,
+            end=result.end,
+            length=result.length,
+            grade=result.grade,
+            target_power=target,
+            power_low=None if target is None else float(power_band(target, band)[0]),
+            power_high=None if target is None else float(power_band(target, band)[1]),
+            target_pace=1000.0 / result.speed if pace else None,
+            speed=result.speed,
+            time=result.time,
+            cumulative_time=elapsed,
+            w_prime_balance=None if balance is None else float(balance[k]),
+            headwind=float(headwind[k]),
+        ))
+    return rows
+
+
+RECORD_KEYS = {
+    "index": "index",
+    "start": "start_m",
+    "end": "end_m",
+    "length": "length_m",
+    "grade": "grade",
+    "target_power": "power_w",
+    "power_low": "power_low_w",
+    "power_high": "power_high_w",
+    "target_pace": "pace_s_per_km",
+    "speed": "speed_m_s",
+    "time": "time_s",
+    "cumulative_time": "cumulative_time_s",
+    "w_prime_balance": "w_prime_balance_j",
+    "headwind": "headwind_m_s",
+}
+"""Field of SegmentTarget → key in exported records (SI units in the key's suffix)."""
+
+
+def targets_as_records(rows: list[SegmentTarget]) -> list[dict]:
+    """Rows as plain dicts with SI-suffixed keys (RECORD_KEYS), for JSON and CSV exports."""
+    return [{RECORD_KEYS[name]: value for name, value in asdict(row).items()} for row in rows]

@@ -1,0 +1,224 @@
+"""The weather on race day and the air it makes along a course.
+
+`Conditions` holds what a coach reads off a forecast (temperature, humidity, sea-level pressure,
+wind). `air_along_course` turns it into what the power balance needs on every piece of a
+course: air density, headwind and crosswind (pacing.physics.cycling.air_speed_components combines
+them with the rider's speed into the apparent wind and yaw).
+
+Per piece (length N-1, see pacing.course.geometry):
+
+- elevation: mean of the piece's two end points;
+- pressure: ICAO standard atmosphere from the sea-level pressure
+(pacing.physics.air.standard_pressure);
+- temperature: given at the start's elevation (course.elevation[0]), following the standard
+  lapse rate 6.5 K/km elsewhere (pacing.physics.air.temperature_at_elevation);
+- density: humid air by CIPM-2007 (or another model of pacing.physics.air.AIR_DENSITY_MODELS);
+- wind: reduced from its measurement height to the rider's height by the log wind profile
+  (pacing.physics.wind.wind_at_height), split by the piece's heading
+  (pacing.physics.wind.wind_components).
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+import numpy as np
+
+from pacing.errors import InputError
+from pacing.physics.air import (
+    AIR_DENSITY_MODELS,
+    TEMPERATURE_RANGE,
+    standard_pressure,
+    temperature_at_elevation,
+)
+from pacing.physics.wind import wind_at_height, wind_components
+
+SEA_LEVEL_PRESSURE_RANGE = (85000.0, 110000.0)
+"""Sea-level pressures accepted [Pa]. Recorded extremes lie near 87 and 108.4 kPa (common
+practice); the range also catches a value typed in hPa or kPa."""
+
+WIND_SPEED_LIMIT = 60.0
+"""Largest wind speed accepted [m/s]: no race is held in more."""
+
+
+WIND_HEIGHT_RANGE = (0.5, 200.0)
+"""Heights at which a wind speed is accepted [m]: from a hand-held anemometer to a tall mast
+(the logarithmic profile is not meant for the layer just above the ground)."""
+
+ROUGHNESS_LENGTH_RANGE = (0.0001, 2.0)
+"""Roughness lengths accepted [m]: from calm open water to the roughest Davenport-Wieringa class
+("chaotic", z0 ≥ 2 m; Wieringa 1992)."""
+
+
+@dataclass(frozen=True)
+class Conditions:
+    """The air on race day.
+
+    Attributes
+    ----------
+    temperature : air temperature at the start's elevation [°C], -60..60.
+    relative_humidity : relative humidity as a fraction 0..1 [-] (50 % = 0.5).
+    sea_level_pressure : air pressure reduced to sea level [Pa] (forecasts give it in hPa:
+        1013.25 hPa = 101325 Pa).
+    wind_speed : mean wind speed at wind_height [m/s], ≥ 0.
+    wind_from : direction the wind blows FROM [deg clockwise from north].
+    wind_height : height of the wind measurement [m] (10 m for weather reports).
+    roughness_length : terrain roughness length z0 [m] (pacing.physics.wind.ROUGHNESS_LENGTHS;
+        0.03 m = open grassland).
+    rider_height : height where the wind acts on the rider [m], about the middle of the body.
+    """
+
+    temperature: float = 20.0
+    relative_humidity: float = 0.5
+    sea_level_pressure: float = 101325.0
+    wind_speed: float = 0.0
+    wind_from: float = 0.0
+    wind_height: float = 10.0
+    roughness_length: float = 0.03
+    rider_height: float = 1.0
+
+    def __post_init__(self) -> None:
+        for name in (
+            "temperature",
+            "relative_humidity",
+            "sea_level_pressure",
+            "wind_speed",
+            "wind_from",
+            "wind_height",
+            "roughness_length",
+            "rider_height",
+        ):
+            value = getattr(self, name)
+            try:
+                number = float(value)
+            except (TypeError, ValueError):
+                raise InputError(f"{name.replace('_', ' ')} must be a number, got {value!r}") \
+                    from None
+            if not np.isfinite(number):
+                raise InputError(f"{name.replace('_', ' ')} must be a finite number")
+        low, high = TEMPERATURE_RANGE
+        _require(low <= self.temperature <= high,
+                 f"temperature must be between {low:g} and {high:g} °C, got {self.temperature:g}")
+        _require(0.0 <= self.relative_humidity <= 1.0,
+                 f"relative humidity must be 0-100 %, got {100 * self.relative_humidity:g} % "
+                 f"(fraction {self.relative_humidity:g})")
+        low, high = SEA_LEVEL_PRESSURE_RANGE
+        _require(low <= self.sea_level_pressure <= high,
+                 f"sea-level pressure must be between {low:g} and {high:g} Pa "
+                 f"(1013 hPa = 101300 Pa), got {self.sea_level_pressure:g}")
+        _require(0.0 <= self.wind_speed <= WIND_SPEED_LIMIT,
+                 f"wind speed must be between 0 and {WIND_SPEED_LIMIT:g} m/s, "
+                 f"got {self.wind_speed:g}")
+        _require(0.0 <= self.wind_from <= 360.0,
+                 f"wind direction must be 0-360 degrees from north, got {self.wind_from:g}")
+        low, high = WIND_HEIGHT_RANGE
+        _require(low <= self.wind_height <= high,
+                 f"wind measurement height must be {low:g}-{high:g} m (weather reports use "
+                 f"10 m), got {self.wind_height:g}")
+        low, high = ROUGHNESS_LENGTH_RANGE
+        _require(low <= self.roughness_length <= high,
+                 f"roughness length must be {low:g}-{high:g} m (open terrain 0.03 m), "
+                 f"got {self.roughness_length:g}")
+        _require(self.roughness_length < self.wind_height,
+                 f"the wind must be measured above the roughness length "
+                 f"({self.roughness_length:g} m), got {self.wind_height:g} m")
+        _require(0.3 <= self.rider_height <= 3.0,
+                 f"rider height must be 0.3-3 m, got {self.rider_height:g}")
+
+    @property
+    def wind_at_rider(self) -> float:
+        """Wind speed reduced to rider_height by the log wind profile [m/s]."""
+        return float(
+            wind_at_height(self.wind_speed, self.wind_height, self.rider_height,
+                           self.roughness_length)
+        )
+
+
+def _require(condition: bool, message: str) -> None:
+    if not condition:
+        raise InputError(message)
+
+
+@dataclass(frozen=True, eq=False)
+class CourseAir:
+    """The air on every piece of a course (arrays of length N-1).
+
+    Attributes
+    ----------
+    density : air density [kg/m³].
+    headwind : wind component against the direction of travel [m/s] (negative = tailwind).
+    crosswind : wind component across the direction of travel [m/s] (positive = from the
+        rider's right).
+    """
+
+    density: np.ndarray
+    headwind: np.ndarray
+    crosswind: np.ndarray
+
+    def __post_init__(self) -> None:
+        shapes = {np.shape(self.density), np.shape(self.headwind), np.shape(self.crosswind)}
+        if len(shapes) != 1:
+            raise ValueError(f"density, headwind and crosswind differ in shape: {shapes}")
+
+
+def piece_elevation(course) -> np.ndarray:
+    """Elevation of each piece: the mean of its end points [m], length N-1."""
+    elevation = np.asarray(course.elevation, dtype=float)
+    return 0.5 * (elevation[:-1] + elevation[1:])
+
+
+def air_along_course(course, conditions: Conditions, density_model: str = "cipm_2007"):
+    """Air density and wind components on every piece of a course.
+
+    Parameters
+    ----------
+    course : a pacing.course.geometry.Course (elevation per point [m], heading per piece [deg]).
+    conditions : the weather (Conditions).
+    density_model : a key of pacing.physics.air.AIR_DENSITY_MODELS ("cipm_2007" or "ideal_gas").
+
+    Returns
+    -------
+    CourseAir with density [kg/m³], headwind and crosswind [m/s], each of length N-1.
+
+    Raises InputError where the air is out of the models' range (e.g. a point above the
+    troposphere, or the lapse rate taking the temperature below -60 °C).
+    """
+    if density_model not in AIR_DENSITY_MODELS:
+        raise InputError(f"unknown air density model {density_model!r}; choose one of "
+                         f"{', '.join(AIR_DENSITY_MODELS)}")
+    elevation = piece_elevation(course)
+    pressure = standard_pressure(elevation, conditions.sea_level_pressure)
+    temperature = temperature_at_elevation(
+        elevation, conditions.temperature, float(course.elevation[0])
+    )
+    density = AIR_DENSITY_MODELS[density_model](
+        temperature, pressure, conditions.relative_humidity
+    )
+    headwind, crosswind = wind_components(
+        np.asarray(course.heading, dtype=float), conditions.wind_from, conditions.wind_at_rider
+    )
+    return CourseAir(
+        density=np.asarray(density, dtype=float),
+        headwind=np.asarray(headwind, dtype=float),
+        crosswind=np.asarray(crosswind, dtype=float),
+    )
+
+
+def still_air(course, density: float | None = None) -> CourseAir:
+    """No wind on any piece, and a given density or that of the default Conditions.
+
+    Parameters
+    ----------
+    course : a pacing.course.geometry.Course.
+    density : air density on every piece [kg/m³]; None means the density of `Conditions()`
+        (20 °C at the start, 50 % humidity, standard pressure) along the course's elevations.
+    """
+    pieces = np.asarray(course.elevation).size - 1
+    if density is None:
+        values = air_along_course(course, Conditions()).density
+    else:
+        if not (np.isfinite(density) and density > 0):
+            raise InputError(f"air density must be positive [kg/m³], got {density!r}")
+        values = np.full(pieces, float(density))
+    zeros = np.zeros(pieces)
+    return CourseAir(density=values, headwind=zeros, crosswind=zeros.copy())

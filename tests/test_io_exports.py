@@ -1,0 +1,252 @@
+"""Exports of the segment target table (pacing.io.exports).
+
+Each file is read back with an independent reader: pandas and openpyxl for CSV/XLSX, gpxpy for
+GPX, Pillow (matplotlib's image dependency) for the PNG; a PDF file starts with "%PDF-"
+(ISO 32000-1:2008, 7.5.2 File header).
+"""
+
+from __future__ import annotations
+
+import io
+
+import gpxpy
+import numpy as np
+import openpyxl
+import pandas as pd
+import pytest
+from PIL import Image
+
+from pacing.course.geometry import synthetic_course
+from pacing.display.units import format_duration
+from pacing.errors import InputError
+from pacing.io.exports import (
+    CARD_DPI,
+    CAUTION_LINE,
+    card_size,
+    course_with_targets_gpx,
+    segment_table,
+    segment_waypoints,
+    table_to_csv,
+    table_to_xlsx,
+    target_card_pdf,
+    target_card_png,
+)
+
+
+def make_rows(count=6, running=False, wprime=True):
+    """Segment targets in SI units, shaped like pacing.plan.targets.SegmentTarget rows."""
+    rows, elapsed = [], 0.0
+    for i in range(count):
+        length = 5000.0 + 250.0 * i
+        start = sum(5000.0 + 250.0 * k for k in range(i))
+        speed = 9.0 + 0.37 * i
+        time = length / speed
+        elapsed += time
+        rows.append(dict(
+            index=i, start=start, end=start + length, length=length, grade=0.013 * (i - 2),
+            target_power=None if running else 250.0 + 7.3 * i,
+            power_low=None if running else 240.0, power_high=None if running else 310.0,
+            target_pace=1000.0 / speed if running else None, speed=speed, time=time,
+            cumulative_time=elapsed, w_prime_balance=(20000.0 - 900.0 * i) if wprime else None,
+            headwind=1.25 - 0.5 * i,
+        ))
+    return rows
+
+
+class TestTable:
+    def test_every_column_names_its_unit(self):
+        table = segment_table(make_rows())
+        for column in table.columns:
+            assert column == "Segment" or ("[" in column and column.endswith("]")), column
+
+    def test_metric_numbers(self):
+        row = make_rows()[1]
+        table = segment_table(make_rows())
+        assert table.loc[1, "From [km]"] == pytest.approx(row["start"] / 1000, abs=0.005)
+        assert table.loc[1, "Speed [km/h]"] == pytest.approx(row["speed"] * 3.6, abs=0.05)
+        assert table.loc[1, "Target power [W]"] == round(row["target_power"])
+        assert table.loc[1, "Grade [%]"] == pytest.approx(100 * row["grade"], abs=0.05)
+        assert table.loc[1, "W′ left [kJ]"] == pytest.approx(row["w_prime_balance"] / 1000)
+
+    def test_imperial_units(self):
+        table = segment_table(make_rows(), "imperial")
+        assert "From [mi]" in table.columns and "Speed [mph]" in table.columns
+        # 1 mi = 1609.344 m (NIST SP 811, exact)
+        assert table.loc[1, "From [mi]"] == pytest.approx(5000 / 1609.344, abs=0.005)
+
+    def test_running_table_shows_pace_not_power(self):
+        table = segment_table(make_rows(running=True))
+        assert "Target pace [min/km]" in table.columns
+        assert "Target power [W]" not in table.columns
+        # 9 m/s is 1000/9 = 111.1 s/km → "1:51"
+        assert table.loc[0, "Target pace [min/km]"] == "1:51"
+        assert "Target pace [min/mi]" in segment_table(make_rows(running=True), "imperial")
+
+    def test_columns_without_data_are_left_out_and_nothing_is_nan(self):
+        table = segment_table(make_rows(wprime=False))
+        assert "W′ left [kJ]" not in table.columns
+        assert not table.isna().any().any()
+
+    def test_no_segments_is_an_input_error(self):
+        with pytest.raises(InputError, match="no segments"):
+            segment_table([])
+
+    def test_a_row_without_time_is_an_input_error(self):
+        rows = make_rows()
+        rows[2]["time"] = float("nan")
+        with pytest.raises(InputError):
+            segment_table(rows)
+
+    def test_rows_can_be_objects_with_attributes(self):
+        from types import SimpleNamespace
+
+        table = segment_table([SimpleNamespace(**row) for row in make_rows()])
+        pd.testing.assert_frame_equal(table, segment_table(make_rows()))
+
+
+class TestCsvAndXlsx:
+    def test_csv_reads_back_with_pandas_holding_the_table(self):
+        table = segment_table(make_rows())
+        back = pd.read_csv(io.BytesIO(table_to_csv(table)))
+        pd.testing.assert_frame_equal(back, table, check_dtype=False)
+
+    def test_imperial_running_csv_reads_back(self):
+        table = segment_table(make_rows(running=True), "imperial")
+        back = pd.read_csv(io.BytesIO(table_to_csv(table)), dtype={"Target pace [min/mi]": str})
+        pd.testing.assert_frame_equal(back, table, check_dtype=False)
+
+    def test_xlsx_reads_back_with_openpyxl_holding_the_table(self):
+        table = segment_table(make_rows())
+        book = openpyxl.load_workbook(io.BytesIO(table_to_xlsx(table, title="Test loop")))
+        sheet = book.active
+        values = list(sheet.values)
+        assert list(values[0]) == list(table.columns)
+        assert len(values) == len(table) + 1
+        for got, (_, expected) in zip(values[1:], table.iterrows(), strict=True):
+            for cell, want in zip(got, expected, strict=True):
+                assert cell == pytest.approx(want) if isinstance(want, float) else cell == want
+        assert book.properties.title == "Test loop"
+
+    def test_xlsx_reads_back_with_pandas(self):
+        table = segment_table(make_rows())
+        back = pd.read_excel(io.BytesIO(table_to_xlsx(table)))
+        pd.testing.assert_frame_equal(back, table, check_dtype=False)
+
+
+class TestGpx:
+    def course(self):
+        distance = np.linspace(0.0, 40000.0, 2001)
+        return synthetic_course(distance, 100 + 30 * np.sin(distance / 3000.0),
+                                heading=np.linspace(0.0, 300.0, 2000), name="test loop")
+
+    def test_one_waypoint_per_segment_at_its_start(self):
+        course, rows = self.course(), make_rows(6)
+        parsed = gpxpy.parse(course_with_targets_gpx(course, rows))
+        assert len(parsed.waypoints) == len(rows)
+        for waypoint, row in zip(parsed.waypoints, rows, strict=True):
+            lat = np.interp(row["start"], course.distance, course.latitude)
+            lon = np.interp(row["start"], course.distance, course.longitude)
+            assert waypoint.latitude == pytest.approx(lat, abs=1e-5)
+            assert waypoint.longitude == pytest.approx(lon, abs=1e-5)
+            assert f"{round(row['target_power'])} W" in waypoint.name
+
+    def test_track_is_the_course(self):
+        course = self.course()
+        parsed = gpxpy.parse(course_with_targets_gpx(course, make_rows()))
+        points = [p for t in parsed.tracks for s in t.segments for p in s.points]
+        assert len(points) == course.distance.size
+        assert points[-1].latitude == pytest.approx(course.latitude[-1], abs=1e-6)
+
+    def test_waypoint_text_carries_target_split_and_units(self):
+        _, name, description = segment_waypoints(make_rows(), "imperial")[1]
+        assert name.startswith("S2 ")
+        assert "mi" in description and "mph" in description and "split 0:" in description
+
+    def test_running_waypoints_carry_pace(self):
+        _, name, _ = segment_waypoints(make_rows(running=True))[0]
+        assert "min/km" in name
+
+
+class TestCard:
+    @pytest.mark.parametrize("count", [1, 6, 20, 21, 45])
+    def test_png_has_the_documented_size(self, count):
+        png = target_card_png(make_rows(count), title="Test loop")
+        assert png[:8] == b"\x89PNG\r\n\x1a\n"  # PNG signature (ISO/IEC 15948, 5.2)
+        width, height = card_size(count)
+        with Image.open(io.BytesIO(png)) as image:
+            assert image.size == (round(width * CARD_DPI), round(height * CARD_DPI))
+
+    def test_more_segments_add_columns(self):
+        assert card_size(45)[0] == pytest.approx(3 * card_size(5)[0])
+
+    def test_pdf_starts_with_the_pdf_header(self):
+        pdf = target_card_pdf(make_rows(running=True), "imperial", title="Test run")
+        assert pdf.startswith(b"%PDF-")
+        assert len(pdf) > 1000
+
+    def test_card_is_not_blank(self):
+        png = target_card_png(make_rows())
+        with Image.open(io.BytesIO(png)) as image:
+            grey = np.asarray(image.convert("L"), dtype=float)
+        assert (grey < 100).mean() > 0.01  # dark ink on a white card
+
+    def test_caution_line_is_printed(self):
+        # the PDF text is compressed; check the figure's texts instead
+        from pacing.io.exports import _card_figure
+
+        figure = _card_figure(make_rows(), "metric", "x")
+        texts = " ".join(t.get_text().replace("\n", " ") for t in figure.axes[0].texts)
+        assert CAUTION_LINE in texts
+
+    def test_no_segments_is_an_input_error(self):
+        with pytest.raises(InputError):
+            target_card_png([])
+
+
+@pytest.fixture(scope="module")
+def planned():
+    from pacing.course.segments import split_every
+    from pacing.physics.cycling import Rider
+    from pacing.plan.cycling import make_plan
+    from pacing.plan.request import PlanRequest
+    from pacing.plan.targets import target_table
+    from pacing.weather.conditions import Conditions, air_along_course
+
+    distance = np.linspace(0.0, 12000.0, 1201)
+    course = synthetic_course(distance, 150 + 40 * np.sin(distance / 2000.0),
+                              heading=np.linspace(0.0, 270.0, 1200), name="rolling road")
+    bounds = split_every(course, 2000.0)
+    air = air_along_course(course, Conditions(wind_speed=4.0, wind_from=200.0))
+    plan = make_plan(course, bounds, Rider(mass=80.0, drag_area=0.28), air,
+                     PlanRequest(strategy="constant", mean_power=250.0,
+                                 critical_power=280.0, w_prime=20000.0))
+    return course, target_table(course, bounds, plan)
+
+
+class TestWithTheLibrary:
+    """The table and its files from a real plan (pacing.plan.cycling → pacing.plan.targets)."""
+
+    def test_table_numbers_are_the_targets(self, planned):
+        _, rows = planned
+        table = segment_table(rows)
+        assert len(table) == len(rows) == 6
+        for (_, line), row in zip(table.iterrows(), rows, strict=True):
+            assert line["Target power [W]"] == round(row.target_power)
+            assert line["Speed [km/h]"] == pytest.approx(row.speed * 3.6, abs=0.051)
+            assert line["W′ left [kJ]"] == pytest.approx(row.w_prime_balance / 1000, abs=0.051)
+        assert table["Elapsed [h:mm:ss]"].iloc[-1] == format_duration(rows[-1].cumulative_time)
+
+    def test_csv_and_xlsx_hold_the_same_numbers(self, planned):
+        _, rows = planned
+        table = segment_table(rows, "imperial")
+        from_csv = pd.read_csv(io.BytesIO(table_to_csv(table)))
+        from_xlsx = pd.read_excel(io.BytesIO(table_to_xlsx(table)))
+        pd.testing.assert_frame_equal(from_csv, table, check_dtype=False)
+        pd.testing.assert_frame_equal(from_xlsx, table, check_dtype=False)
+
+    def test_gpx_has_a_waypoint_per_segment(self, planned):
+        course, rows = planned
+        parsed = gpxpy.parse(course_with_targets_gpx(course, rows))
+        assert len(parsed.waypoints) == len(rows)
+        assert all(" W" in w.name for w in parsed.waypoints)
+
