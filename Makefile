@@ -24,8 +24,10 @@ test: $(STAMP)
 test-fast: $(STAMP)
 	$(BIN)/python -m pytest -q -m "not slow and not browser and not postgres"
 
+## Lint and type check (ruff: style, imports, complexity; mypy: the pacing package).
 lint: $(STAMP)
-	$(BIN)/ruff check pacing tests bench app.py ui
+	$(BIN)/ruff check pacing tests bench app.py ui demo_routes
+	$(BIN)/mypy
 
 bench: $(STAMP)
 	for f in bench/bench_*.py; do echo "== $$f"; $(BIN)/python $$f || exit 1; done

@@ -23,7 +23,7 @@ import pytest
 
 ROOT = Path(__file__).resolve().parents[1]
 CORE_PACKAGES = ("course", "weather", "physics", "physiology", "plan", "compare", "fieldtest")
-CORE_TOP_MODULES = ("__init__", "athlete", "constants", "errors")
+CORE_TOP_MODULES = ("__init__", "athlete", "constants", "errors", "notices")
 EDGE_PACKAGES = ("pacing.io", "pacing.store", "pacing.store_migrations", "pacing.cli",
                  "pacing.display", "ui")
 CORE_LIBRARIES = {"numpy", "scipy"}

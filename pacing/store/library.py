@@ -7,7 +7,7 @@ InputError message says what would go (fit for the app's question to the user).
 
 Example
 -------
->>> from pacing.store import open_library
+>>> from pacing.store.library import open_library
 >>> with open_library("/tmp/demo-library.sqlite3") as library:     # doctest: +SKIP
 ...     ann = library.add_athlete(Athlete(name="Ann", body_mass=61.0))
 ...     library.add_setup(ann.id, Setup(name="TT bike", drag_area=0.23))
