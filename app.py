@@ -13,7 +13,7 @@ from pathlib import Path
 import numpy as np
 import streamlit as st
 
-from pacing.display.units import format_quantity
+from pacing.display.notices import describe
 from pacing.errors import InputError
 from pacing.io.exports import segment_table
 from pacing.physics.wind import ROUGHNESS_LENGTHS
@@ -55,9 +55,7 @@ def cached_outcome(course_key: str, _course, bounds: tuple, athlete: tuple, weat
     is not recomputed on every rerun."""
     arguments = (_course, np.asarray(bounds), dict(athlete), dict(weather), dict(approach))
     try:
-        if dict(athlete)["sport"] == "running":
-            return pipeline.running_outcome(*arguments), None
-        return pipeline.cycling_outcome(*arguments), None
+        return pipeline.race_outcome(*arguments), None
     except InputError as error:
         return None, str(error).splitlines()[0] if str(error) else "bad input"
     except (ValueError, ArithmeticError, RuntimeError) as error:  # a model could not solve
@@ -209,14 +207,11 @@ else:
 if outcome is not None:
     sections.outcome_headline(outcome, system)
     st.warning(text.speed_caution(outcome.sport))
-    if outcome.exhausted_at is not None:
-        st.warning(
-            "⚠ W′ runs out at "
-            f"{format_quantity(outcome.exhausted_at, 'distance', system, 1)}: this plan asks "
-            "more than the athlete's critical power and W′ allow. Lower the power or choose "
-            "the quickest plan within limits.")
-    for note in pipeline.notes_in(outcome, system):
-        st.caption(f"Note: {note}")
+    for notice in outcome.notices:  # warnings and notes of the planning chain, in words
+        if notice.level == "warning":
+            st.warning(f"⚠ {describe(notice, system)}")
+        else:
+            st.caption(f"Note: {describe(notice, system)}")
     st.plotly_chart(cached_along(outcome_key, outcome, system), key="along")
     st.subheader("Segment targets")
     try:

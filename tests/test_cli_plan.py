@@ -17,7 +17,7 @@ from pacing.cli import main
 pytest.importorskip("pacing.io.gpx")
 
 JSON_KEYS = {"finish_time_s", "distance_m", "average_speed_mps", "average_power_w",
-             "max_speed_mps", "work_kj", "walking_distance_m", "segments"}
+             "max_speed_mps", "work_kj", "walking_distance_m", "segments", "notices"}
 SEGMENT_KEYS = {"start_m", "end_m", "grade", "power_w", "power_low_w", "power_high_w",
                 "speed_mps", "time_s", "max_speed_mps"}
 
@@ -46,7 +46,8 @@ def test_json_has_exactly_the_contract_keys(capsys, route):
     assert set(result) == JSON_KEYS
     assert result["segments"] and all(set(s) == SEGMENT_KEYS for s in result["segments"])
     assert all(isinstance(v, float) and math.isfinite(v)
-               for k, v in result.items() if k != "segments")
+               for k, v in result.items() if k not in ("segments", "notices"))
+    assert result["notices"] == []  # 250 W on a 6 km hill: nothing to warn about
 
 
 def test_json_numbers_are_consistent(capsys, route):
@@ -208,7 +209,7 @@ def test_target_time_without_cp_warns_on_one_line(capsys, route):
     """Review finding 11: without CP and W′ the power is not checked against the athlete."""
     assert main(["plan", route, "--strategy", "target-time", "--target-time", "0:12:00"]) == 0
     err = capsys.readouterr().err.strip().splitlines()
-    assert len(err) == 1 and "warning" in err[0] and "--cp" in err[0]
+    assert len(err) == 1 and "warning" in err[0] and "critical power" in err[0]
     assert main(["plan", route, "--strategy", "target-time", "--target-time", "0:12:00",
                  "--cp", "300", "--w-prime", "20000"]) == 0
     assert capsys.readouterr().err == ""

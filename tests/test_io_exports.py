@@ -250,3 +250,37 @@ class TestWithTheLibrary:
         assert len(parsed.waypoints) == len(rows)
         assert all(" W" in w.name for w in parsed.waypoints)
 
+
+
+# ------------------------------------------------------ the plan's warnings reach every file
+
+SAID = ["warning: W′ runs out at 3.8 km: this plan asks more than the athlete's critical power "
+        "and W′ allow (lowest balance -46.8 kJ). Lower the power or plan the fastest race "
+        "within the limits.", "note: limits reached: mean-power"]
+
+
+def test_csv_starts_with_the_warnings_as_comment_lines_and_reads_back():
+    table = segment_table(make_rows(), "metric")
+    data = table_to_csv(table, SAID).decode("utf-8")
+    assert data.splitlines()[0].startswith("# warning: W′ runs out at 3.8 km")
+    assert data.splitlines()[1] == "# note: limits reached: mean-power"
+    back = pd.read_csv(io.StringIO(data), comment="#")
+    assert list(back.columns) == list(table.columns) and len(back) == len(table)
+    assert not table_to_csv(table).decode("utf-8").startswith("#")  # nothing to say: bare table
+
+
+def test_xlsx_keeps_the_targets_first_and_the_warnings_on_their_own_sheet():
+    table = segment_table(make_rows(), "metric")
+    book = openpyxl.load_workbook(io.BytesIO(table_to_xlsx(table, notices=SAID)))
+    assert book.sheetnames == ["segment targets", "warnings and notes"]
+    said = [row[0].value for row in book["warnings and notes"].iter_rows(min_row=2)]
+    assert said == SAID
+    assert pd.read_excel(io.BytesIO(table_to_xlsx(table, notices=SAID))).shape == table.shape
+
+
+def test_the_card_grows_to_print_its_warnings():
+    rows = make_rows()
+    plain = Image.open(io.BytesIO(target_card_png(rows, dpi=50)))
+    warned = Image.open(io.BytesIO(target_card_png(rows, dpi=50, warnings=SAID[:1])))
+    assert warned.size[0] == plain.size[0]
+    assert warned.size[1] == pytest.approx(plain.size[1] + 0.45 * 50, abs=1)

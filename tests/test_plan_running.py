@@ -65,7 +65,8 @@ def test_downhill_speed_is_capped_by_default_and_the_cap_is_settable():
     course = straight_course(2000.0, grade=-0.10)
     capped = plan_equal_effort(course, NO_AIR, FIVE_MINUTES_PER_KM)
     assert np.allclose(capped.speed, DOWNHILL_SPEED_RATIO_CAP * FIVE_MINUTES_PER_KM)
-    assert any("capped" in note for note in capped.notes)
+    assert [n.code for n in capped.notes] == ["running-descent-capped"]
+    assert capped.notes[0].values == {"ratio": DOWNHILL_SPEED_RATIO_CAP, "share": 1.0}
     looser = plan_equal_effort(course, NO_AIR, FIVE_MINUTES_PER_KM,
                                downhill_speed_ratio_cap=1.5)
     assert np.allclose(looser.speed, 1.5 * FIVE_MINUTES_PER_KM)
@@ -113,7 +114,7 @@ def test_fastest_plan_on_a_flat_course_spends_exactly_d_prime():
     assert plan.finish_time == pytest.approx(987.247, abs=0.01)
     assert plan.d_prime_balance[-1] == pytest.approx(0.0, abs=0.01)
     assert plan.d_prime_balance.min() >= 0.0
-    assert any("cycling" in note for note in plan.notes)
+    assert "d-prime-recovery-by-analogy" in [n.code for n in plan.notes]
     reserve = plan_fastest(course, NO_AIR, 4.94, 123.0, d_prime_reserve=23.0)
     assert reserve.finish_time == pytest.approx(5000.0 / (4.94 + 100.0 / reserve.finish_time),
                                                 abs=0.01)
@@ -274,7 +275,9 @@ def test_even_pace_shows_its_effort_on_the_climb():
     assert plan.peak_effort_ratio == pytest.approx(1.26097, abs=1e-5)
     assert plan.segments[0].effort_ratio == pytest.approx(1.26097, abs=1e-5)
     assert plan.time_saved == 0.0
-    assert any("on average" in note and "126%" in note for note in plan.notes)
+    average = next(n for n in plan.notes if n.code == "even-pace-effort-on-average")
+    assert average.values["peak_effort_ratio"] == pytest.approx(1.26097, abs=1e-5)
+    assert average.values["mean_effort_ratio"] == pytest.approx(1.0)
 
 
 def test_fastest_gains_over_the_fastest_even_pace_within_d_prime_on_hills():
@@ -288,9 +291,11 @@ def test_fastest_gains_over_the_fastest_even_pace_within_d_prime_on_hills():
     even = plan_even_pace(course, runner, FIVE_MINUTES_PER_KM, speed=even_speed,
                           critical_speed=4.94, d_prime=123.0)
     assert even.min_d_prime_balance == pytest.approx(0.0, abs=0.05)
-    assert any("fastest even pace" in note for note in plan.notes)
+    within = next(n for n in plan.notes if n.code == "even-pace-within-limits")
+    assert within.values["later_s"] > 0
     # the even pace of the same mean effort is faster in this model only by overdrawing D′
-    assert any("overdrawing D′" in note for note in plan.notes)
+    same = next(n for n in plan.notes if n.code == "even-pace-at-same-effort")
+    assert same.values["later_s"] < 0 and same.values["overdrawn_balance_m"] < 0
 
 
 def test_fastest_even_pace_on_a_flat_course_is_the_closed_form():

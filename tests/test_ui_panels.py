@@ -374,7 +374,7 @@ def library_page(location: str):
                    "rolling_coefficient": 0.004, "drivetrain_efficiency": 0.976}
         weather = {"wind_speed": 3.0, "wind_from": 270.0}
         approach = {"strategy": "constant", "mean_power": 240.0}
-        outcome = pipeline.cycling_outcome(course, bounds, athlete, weather, approach)
+        outcome = pipeline.race_outcome(course, bounds, athlete, weather, approach)
         inputs = page_plan_inputs(data, path.stem, course, bounds, athlete, weather, approach,
                                   {"window": 100.0, "max_grade": 0.25})
         return inputs, plan_result(outcome, weather, approach)
@@ -758,20 +758,20 @@ def test_plan_page_state_sets_the_approach_terrain_and_smoothing():
 def test_running_notes_show_paces_per_mile_in_imperial():
     import numpy as np
 
+    from pacing.notices import note
     from ui.pipeline import Outcome, notes_in
 
-    speed = 1000.0 / 307.0  # 5:07 per km
     outcome = Outcome(sport="running", finish_time=1.0, average_speed=1.0, max_speed=1.0,
                       average_power=None, time_saved=None, distance=np.zeros(2),
                       speed=np.zeros(2), power=None, headwind=None, w_prime_balance=None,
-                      rows=[], notes=["even pace at the same mean effort (5:07 /km) would",
-                                      "the fastest even pace (4:00 /km) would"],
-                      note_paces=(("(5:07 /km)", speed),))
-    assert notes_in(outcome, "metric") == outcome.notes
-    # 307 s/km × 1.609344 = 494.07 s/mi = 8:14 (1 mi = 1.609344 km, NIST SP 811);
-    # 240 s/km × 1.609344 = 386.24 s/mi = 6:26
-    assert notes_in(outcome, "imperial") == ["even pace at the same mean effort (8:14 /mi) would",
-                                             "the fastest even pace (6:26 /mi) would"]
+                      rows=[], notices=(
+                          note("even-pace-within-limits", speed_mps=1000.0 / 307.0,
+                               later_s=386.0),))
+    assert notes_in(outcome, "metric") == [
+        "the fastest even pace within the same critical speed and D′ (5:07 /km) would finish "
+        "386 s later: its climbs spend D′ faster"]
+    # 307 s/km × 1.609344 = 494.07 s/mi = 8:14 (1 mi = 1.609344 km, NIST SP 811)
+    assert "(8:14 /mi)" in notes_in(outcome, "imperial")[0]
 
 
 def test_the_road_test_says_its_cda_leaves_out_the_wheel_and_bearing_terms():

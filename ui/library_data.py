@@ -129,9 +129,7 @@ def recompute_plan(inputs: Mapping[str, Any], gpx: bytes) -> dict:
     course = pipeline.load_course_from_bytes(
         gpx, inputs.get("course_name", "course"), smoothing["window"], smoothing["max_grade"],
         smoothing.get("allow_flat", False))
-    runner = pipeline.running_outcome if athlete.get("sport") == "running" \
-        else pipeline.cycling_outcome
-    outcome = runner(course, bounds, dict(athlete), dict(weather), dict(approach))
+    outcome = pipeline.race_outcome(course, bounds, dict(athlete), dict(weather), dict(approach))
     return plan_result(outcome, weather, approach)
 
 

@@ -6,9 +6,8 @@ tests call them directly. No physics here: every number comes from `pacing`.
 
 from __future__ import annotations
 
-import re
 import warnings
-from dataclasses import dataclass, field, fields, replace
+from dataclasses import dataclass, fields, replace
 from pathlib import Path
 
 import numpy as np
@@ -104,22 +103,20 @@ def parse_marks(text: str) -> tuple[float, ...]:
 
 @dataclass(frozen=True, eq=False)
 class Outcome:
-    """What the results section shows, all SI.
+    """What the results section shows, all SI (a view of pacing.plan.race.RaceResult).
 
     Attributes
     ----------
     sport : "cycling" or "running".
     finish_time [s], average_speed [m/s], max_speed [m/s], average_power [W] or None.
     time_saved : against constant power at the same mean [s], or None.
-    distance, speed : per point [m], [m/s] (N).
+    distance, speed : per point [m], [m/s] (N) for cycling; running speed is per piece (N-1).
     power, headwind : per piece [W], [m/s] (N-1) or None.
     w_prime_balance : per point [J] (cycling W′), or per piece end [m] (running D′), or None.
-    rows : segment targets (pacing.plan.targets.SegmentTarget or objects with the same fields).
-    notes : short remarks from the library (binding limits, solver messages).
+    rows : segment targets (pacing.plan.targets.SegmentTarget).
+    notices : what the user must be told (pacing.notices.Notice; words by
+        pacing.display.notices in the page's unit system).
     exhausted_at : where the W′ (or D′) balance first falls below zero [m], or None.
-    note_paces : (text, speed [m/s]) pairs: the metric paces written into `notes` by the
-        library ("5:07 /km") and the exact speeds they stand for, so `notes_in` can show them
-        in the page's unit system.
     """
 
     sport: str
@@ -134,9 +131,8 @@ class Outcome:
     headwind: np.ndarray | None
     w_prime_balance: np.ndarray | None
     rows: list
-    notes: list[str] = field(default_factory=list)
+    notices: tuple = ()
     exhausted_at: float | None = None
-    note_paces: tuple = ()
 
 
 def _build(cls, values: dict):
@@ -167,171 +163,92 @@ def with_replaced(obj, **changes):
     return replace(obj, **{k: v for k, v in changes.items() if k in names})
 
 
-# ---------------------------------------------------------------------------------- running
-
-RUNNING_PLANNERS = {
-    "equal-effort": "plan_equal_effort",
-    "even-pace": "plan_even_pace",
-    "fastest": "plan_fastest",
-}
-"""Running strategy name → pacing.plan.running function."""
-
-
-def running_outcome(course, bounds, athlete: dict, weather: dict, approach: dict) -> Outcome:
-    """Plan a run with pacing.plan.running and gather what the page shows.
+def race_request(course, bounds, athlete: dict, weather: dict, approach: dict):
+    """The pacing.plan.race.RaceRequest of the page's inputs (all SI).
 
     Parameters
     ----------
-    athlete : body_mass [kg], height [m], flat_pace [s/km], critical_speed [m/s], d_prime [m].
+    athlete : sport ("cycling" | "running"); cycling: body_mass, bike_mass [kg], drag_area
+        [m²], rolling_coefficient [-], drivetrain_efficiency [-], critical_power [W],
+        w_prime [J]; running: body_mass [kg], height [m], flat_pace [s/km],
+        critical_speed [m/s], d_prime [m].
     weather : pacing.weather.conditions.Conditions fields (SI).
-    approach : {"strategy": one of RUNNING_PLANNERS}.
+    approach : strategy (a key of pacing.plan.strategies.STRATEGIES[sport]); cycling:
+        mean_power [W], target_time [s], max_power_ratio [-], w_prime_reserve [J].
     """
-    from pacing.physics.running import Runner
-    from pacing.plan import running as running_plans
-    from pacing.weather.conditions import air_along_course
+    from pacing.plan.race import RaceRequest
 
-    runner = Runner.from_body(athlete["body_mass"], height=athlete.get("height"))
-    air = air_along_course(course, conditions_from(weather))
+    sport = athlete.get("sport", "cycling")
+    if sport == "running":
+        return _running_request(course, bounds, athlete, weather, approach)
+    from pacing.athlete import Athlete, Setup, rider_for
+    from pacing.plan.request import PlanRequest
+
+    person = _build(Athlete, athlete)
+    plan_request = _build(PlanRequest, {**approach, "critical_power": person.critical_power,
+                                        "w_prime": person.w_prime})
+    return RaceRequest(course=course, bounds=np.asarray(bounds),
+                       conditions=conditions_from(weather), sport="cycling",
+                       strategy=approach.get("strategy", "constant"),
+                       rider=rider_for(person, _build(Setup, athlete)), cycling=plan_request)
+
+
+def _running_request(course, bounds, athlete: dict, weather: dict, approach: dict):
+    from pacing.physics.running import Runner
+    from pacing.plan.race import RaceRequest, RunningRequest
+
     strategy = approach.get("strategy", "equal-effort")
-    if strategy not in RUNNING_PLANNERS:
-        raise InputError(f"unknown running plan {strategy!r}")
-    common = dict(air_density=air.density, headwind=air.headwind, crosswind=air.crosswind,
-                  bounds=np.asarray(bounds))
     if strategy == "fastest":
-        plan = running_plans.plan_fastest(course, runner, athlete["critical_speed"],
-                                    athlete["d_prime"], **common)
+        running = RunningRequest(critical_speed=athlete["critical_speed"],
+                                 d_prime=athlete["d_prime"])
     else:
-        flat_speed = 1000.0 / athlete["flat_pace"]
-        plan = getattr(running_plans, RUNNING_PLANNERS[strategy])(course, runner, flat_speed,
-                                                                    **common)
-    rows = running_rows(plan)
+        running = RunningRequest(flat_speed=1000.0 / athlete["flat_pace"])
+    return RaceRequest(course=course, bounds=np.asarray(bounds),
+                       conditions=conditions_from(weather), sport="running", strategy=strategy,
+                       runner=Runner.from_body(athlete["body_mass"], height=athlete.get("height")),
+                       running=running)
+
+
+def race_outcome(course, bounds, athlete: dict, weather: dict, approach: dict) -> Outcome:
+    """Plan the race of the page's inputs (one chain: pacing.plan.race.plan_race) and gather
+    what the page shows (see race_request for the inputs)."""
+    from pacing.plan.race import plan_race
+
+    result = plan_race(race_request(course, bounds, athlete, weather, approach))
+    if result.sport == "running":
+        return _running_outcome(result)
+    return _cycling_outcome(result)
+
+
+def _running_outcome(result) -> Outcome:
+    plan = result.plan
     return check_finite(Outcome(
         sport="running", finish_time=plan.finish_time, average_speed=plan.average_speed,
         max_speed=float(np.max(plan.speed)), average_power=None, time_saved=None,
-        distance=np.asarray(course.distance), speed=np.asarray(plan.speed), power=None,
-        headwind=np.asarray(air.headwind), w_prime_balance=plan.d_prime_balance, rows=rows,
-        notes=list(plan.notes), note_paces=running_note_paces(plan, course.total_distance),
+        distance=np.asarray(result.request.course.distance), speed=np.asarray(plan.speed),
+        power=None, headwind=np.asarray(result.air.headwind),
+        w_prime_balance=plan.d_prime_balance, rows=list(result.targets),
+        notices=result.notices, exhausted_at=result.exhausted_at,
     ))
 
 
-def running_note_paces(plan, total_distance: float) -> tuple:
-    """The paces pacing.plan.running writes into its notes, as (text, speed [m/s]) pairs:
-    the even pace at the same mean effort (`even_pace_speed`) and, for the fastest plan, the
-    fastest even pace within critical speed and D′ (total distance / its finish time)."""
-    from pacing.plan.even_pace import pace_clock
-
-    speeds = []
-    if plan.even_pace_speed:
-        speeds.append(float(plan.even_pace_speed))
-    if plan.limited_even_pace_time:
-        speeds.append(float(total_distance) / float(plan.limited_even_pace_time))
-    return tuple((f"({pace_clock(1000.0 / v)} /km)", v) for v in speeds
-                 if np.isfinite(v) and v > 0)
-
-
-_METRIC_PACE = re.compile(r"\b(\d+):(\d{2}) /km\b")
-
-
-def notes_in(outcome: Outcome, system: str) -> list[str]:
-    """The outcome's notes with every pace in the unit system's own words: "(5:07 /km)"
-    becomes "(8:14 /mi)" in imperial, from the exact speed when the plan gave it, else
-    converted from the written M:SS (1 mi = 1.609344 km, NIST SP 811)."""
-    from pacing.display.units import (
-        format_pace,
-        pace_from_speed,
-        pace_per_km_to_display,
-        unit_label,
-    )
-
-    if system == "metric":
-        return list(outcome.notes)
-    label = "/" + unit_label("pace", system).split("/")[-1]
-    notes = []
-    for note in outcome.notes:
-        for text, speed in outcome.note_paces:
-            note = note.replace(
-                text, f"({format_pace(float(pace_from_speed(speed, system)))} {label})")
-        def converted(match, label=label):
-            per_km = 60 * int(match.group(1)) + int(match.group(2))
-            return f"{format_pace(float(pace_per_km_to_display(per_km, system)))} {label}"
-
-        note = _METRIC_PACE.sub(converted, note)
-        notes.append(note)
-    return notes
-
-
-def cycling_plan(course, bounds, athlete: dict, weather: dict, approach: dict):
-    """The RacePlan (pacing.plan.cycling.make_plan) for the page's inputs.
-
-    Parameters
-    ----------
-    athlete : body_mass, bike_mass [kg], drag_area [m²], rolling_coefficient [-],
-        drivetrain_efficiency [-], critical_power [W], w_prime [J].
-    weather : pacing.weather.conditions.Conditions fields (SI).
-    approach : strategy ("constant" | "fastest" | "target-time"), mean_power [W],
-        target_time [s], max_power_ratio [-], w_prime_reserve [J].
-    """
-    from pacing.athlete import Athlete, Setup, rider_for
-    from pacing.plan.cycling import make_plan
-    from pacing.plan.prediction import SimulationOptions
-    from pacing.plan.request import PlanRequest
-    from pacing.weather.conditions import air_along_course
-
-    person = _build(Athlete, athlete)
-    setup = _build(Setup, athlete)
-    rider = rider_for(person, setup)
-    air = air_along_course(course, conditions_from(weather))
-    request = _build(PlanRequest, {
-        **approach,
-        "critical_power": person.critical_power,
-        "w_prime": person.w_prime,
-    })
-    return make_plan(course, np.asarray(bounds), rider, air, request, SimulationOptions())
-
-
-def cycling_outcome(course, bounds, athlete: dict, weather: dict, approach: dict) -> Outcome:
-    """Plan a ride and gather what the page shows (see cycling_plan for the inputs)."""
-    plan = cycling_plan(course, bounds, athlete, weather, approach)
+def _cycling_outcome(result) -> Outcome:
+    plan = result.plan
     prediction = plan.prediction
-    rows = cycling_rows(course, plan)
-    notes = []
-    if plan.binding:
-        notes.append("limits reached: " + ", ".join(str(b) for b in plan.binding))
-    if np.any(np.asarray(prediction.walking)):
-        notes.append("the predicted speed drops to walking pace on part of the course")
-    strategy = approach.get("strategy", "constant")
-    exhausted_at = None
-    if plan.w_prime_balance is not None and np.min(plan.w_prime_balance) < 0:
-        first = int(np.argmax(np.asarray(plan.w_prime_balance) < 0))
-        exhausted_at = float(np.asarray(prediction.distance)[first])
     return check_finite(Outcome(
         sport="cycling", finish_time=float(prediction.finish_time),
         average_speed=float(prediction.average_speed), max_speed=float(prediction.max_speed),
         average_power=float(prediction.average_power),
-        time_saved=None if strategy == "constant" else float(plan.time_saved),
+        time_saved=None if result.request.strategy == "constant" else float(plan.time_saved),
         distance=np.asarray(prediction.distance), speed=np.asarray(prediction.speed),
         power=np.asarray(prediction.power), headwind=np.asarray(prediction.headwind),
-        w_prime_balance=plan.w_prime_balance, rows=rows, notes=notes,
-        exhausted_at=exhausted_at,
+        w_prime_balance=plan.w_prime_balance, rows=list(result.targets),
+        notices=result.notices, exhausted_at=result.exhausted_at,
     ))
 
 
-def cycling_rows(course, plan) -> list:
-    """Segment target rows of a RacePlan (pacing.plan.targets.target_table)."""
-    from pacing.plan.targets import target_table
+def notes_in(outcome: Outcome, system: str) -> list[str]:
+    """The outcome's notices in words, in the page's unit system."""
+    from pacing.display.notices import describe_all
 
-    return list(target_table(course, plan.bounds, plan))
-
-
-def running_rows(plan) -> list:
-    """Segment target rows (pacing.plan.targets.SegmentTarget) of a running plan: target pace,
-    expected speed, split and elapsed time, no power."""
-    from pacing.plan.targets import SegmentTarget
-
-    return [
-        SegmentTarget(index=i, start=s.start, end=s.end, length=s.end - s.start, grade=s.grade,
-                      target_power=None, power_low=None, power_high=None, target_pace=s.pace,
-                      speed=s.speed, time=s.time, cumulative_time=s.cumulative_time,
-                      w_prime_balance=None, headwind=s.headwind)
-        for i, s in enumerate(plan.segments)
-    ]
+    return describe_all(outcome.notices, system)

@@ -301,15 +301,18 @@ def downloads(outcome, course, table, system: str, title: str) -> None:
 
     CSV is made now (cheap); the others only when their button is pressed.
     """
+    from pacing.display.notices import describe, labelled
     from pacing.io import exports
 
     base = "".join(c if c.isalnum() else "-" for c in title.lower()).strip("-") or "race"
+    said = [labelled(n, system) for n in outcome.notices]  # every file says what the page says
+    warned = [describe(n, system) for n in outcome.notices if n.level == "warning"]
     cols = st.columns(5)
-    cols[0].download_button("Table · CSV", exports.table_to_csv(table),
+    cols[0].download_button("Table · CSV", exports.table_to_csv(table, said),
                             file_name=f"{base}-targets.csv", mime="text/csv", key="dl_csv",
                             on_click="ignore")
     cols[1].download_button(
-        "Table · Excel", functools.partial(exports.table_to_xlsx, table, title=title),
+        "Table · Excel", functools.partial(exports.table_to_xlsx, table, title=title, notices=said),
         file_name=f"{base}-targets.xlsx", key="dl_xlsx", on_click="ignore",
         mime="application/vnd.openxmlformats-officedocument.spreadsheetml.sheet")
     cols[2].download_button(
@@ -319,9 +322,10 @@ def downloads(outcome, course, table, system: str, title: str) -> None:
         on_click="ignore")
     cols[3].download_button(
         "Stem card · PNG",
-        functools.partial(exports.target_card_png, outcome.rows, system, title),
+        functools.partial(exports.target_card_png, outcome.rows, system, title,
+                          warnings=warned),
         file_name=f"{base}-card.png", mime="image/png", key="dl_png", on_click="ignore")
     cols[4].download_button(
         "Stem card · PDF",
-        functools.partial(exports.target_card_pdf, outcome.rows, system, title),
+        functools.partial(exports.target_card_pdf, outcome.rows, system, title, warned),
         file_name=f"{base}-card.pdf", mime="application/pdf", key="dl_pdf", on_click="ignore")

@@ -111,3 +111,50 @@ def require(condition: bool, message: str) -> None:
     """Raise InputError(message) unless condition holds."""
     if not condition:
         raise InputError(message)
+
+
+def conditions_from_args(args: argparse.Namespace):
+    """The race-day air of the air and wind flags (humidity given in percent)."""
+    from pacing.weather.conditions import Conditions
+
+    return Conditions(
+        temperature=args.temperature,
+        relative_humidity=args.humidity / 100.0,
+        sea_level_pressure=args.sea_level_pressure,
+        wind_speed=args.wind_speed,
+        wind_from=args.wind_from,
+        wind_height=args.wind_height,
+        roughness_length=args.roughness,
+    )
+
+
+def load_course_and_bounds(args: argparse.Namespace):
+    """The course of the GPX file and its segment bounds (by grade, or every N metres)."""
+    from pacing.course.segments import split_by_grade, split_every
+    from pacing.io.gpx import load_course
+
+    course = load_course(args.route, step=args.step, allow_missing_elevation=args.flat)
+    bounds = (split_every(course, args.segment_length) if args.segment_length is not None
+              else split_by_grade(course))
+    return course, bounds
+
+
+def notices_as_json(notices) -> list[dict]:
+    """The planning chain's notices for JSON output: code, level, values (SI) and text."""
+    from pacing.display.notices import describe
+
+    return [{**n.as_dict(), "text": describe(n, "metric")} for n in notices]
+
+
+def report_notices(notices, table: bool) -> list[str]:
+    """Warnings go to stderr, one line each ("pacing: warning: …", as every warning of the
+    command line); returns the notes as lines to print under a table ("note: …"), none for
+    JSON (the JSON carries every notice under "notices")."""
+    import warnings
+
+    from pacing.display.notices import describe, labelled
+
+    for notice in notices:
+        if notice.level == "warning":
+            warnings.warn(describe(notice, "metric"), UserWarning, stacklevel=2)
+    return [labelled(n, "metric") for n in notices if n.level != "warning"] if table else []

@@ -198,12 +198,8 @@ def analyse(args: argparse.Namespace) -> dict:
     Returns a dict of library results (keys: course, comparison, sensitivity (per setup),
     spread, difference, sampled, sampled_difference, break_even, mixed, uncertainty).
     """
-    from pacing.cli.plan_cycling import (
-        conditions_from_args,
-        load_course_and_bounds,
-        simulation_options_from_args,
-        validate_args,
-    )
+    from pacing.cli.common import conditions_from_args, load_course_and_bounds
+    from pacing.cli.plan_cycling import simulation_options_from_args, validate_args
     from pacing.compare.sensitivity import (
         difference_spread,
         finish_time_spread,

@@ -1,16 +1,15 @@
 """``pacing plan ROUTE.gpx --power W …``: predict a cycling race on a GPX course.
 
-Steps (each one function, so a strategy can replace the power step):
-validate the flags → load the course and its segments → rider and air → per-piece power
-(`_plan_powers`) → inertial simulation (pacing.plan.simulate) → segment summaries → table or JSON.
+Steps: validate the flags → a RaceRequest (course and segments, air, rider, plan request,
+simulation options) → the one planning chain (pacing.plan.race.plan_race) → segment summaries
+→ table or JSON, with the chain's notices (JSON "notices"; lines under the table).
 
 Units on the command line are SI except --humidity [%] and --drafting [%]; the table shows km,
 km/h, % and H:MM:SS, the JSON SI numbers with the unit in each key. Every segment row carries
 the band around its target power (±3 % unless the request says otherwise; JSON power_low_w and
 power_high_w). --max-descent-speed and --coasting-speed [m/s] go to SimulationOptions. Where
 the power cannot hold walking pace the rider walks the bike (pacing.plan.simulate): the output says
-how far (JSON walking_distance_m). A target-time plan above HUMAN_POWER_CEILING is refused, and
-without CP and W′ one warning line says its power is not checked against the athlete.
+how far (JSON walking_distance_m). A target-time plan above HUMAN_POWER_CEILING is refused.
 """
 
 from __future__ import annotations
@@ -19,15 +18,21 @@ import argparse
 import json
 import math
 import sys
-import warnings
 
 import numpy as np
 
-from pacing.cli.common import CAUTION
+from pacing.cli.common import (
+    CAUTION,
+    conditions_from_args,
+    load_course_and_bounds,
+    notices_as_json,
+    report_notices,
+)
 from pacing.display import units
 from pacing.errors import InputError
-from pacing.physics.cycling import WALKING_SPEED, Rider
+from pacing.physics.cycling import Rider
 from pacing.plan.prediction import Prediction, SegmentResult, SimulationOptions, segment_results
+from pacing.plan.strategies import walking_distance
 from pacing.plan.targets import DEFAULT_BAND, power_band
 
 MASS_RANGE = (20.0, 300.0)
@@ -98,60 +103,37 @@ def rider_from_args(args: argparse.Namespace) -> Rider:
     )
 
 
-def conditions_from_args(args: argparse.Namespace):
-    """The race-day air of the air and wind flags (humidity given in percent)."""
-    from pacing.weather.conditions import Conditions
-
-    return Conditions(
-        temperature=args.temperature,
-        relative_humidity=args.humidity / 100.0,
-        sea_level_pressure=args.sea_level_pressure,
-        wind_speed=args.wind_speed,
-        wind_from=args.wind_from,
-        wind_height=args.wind_height,
-        roughness_length=args.roughness,
-    )
-
-
-def load_course_and_bounds(args: argparse.Namespace):
-    """The course of the GPX file and its segment bounds (by grade, or every N metres)."""
-    from pacing.course.segments import split_by_grade, split_every
-    from pacing.io.gpx import load_course
-
-    course = load_course(args.route, step=args.step, allow_missing_elevation=args.flat)
-    bounds = (split_every(course, args.segment_length) if args.segment_length is not None
-              else split_by_grade(course))
-    return course, bounds
-
-
-def _plan_powers(args: argparse.Namespace, course, bounds, rider: Rider, air) -> np.ndarray:
-    """Crank power per piece [W] for the plan the flags ask for (length N-1).
-
-    Only the constant plan is handled here; other strategies plug in at this one call.
-    """
-    strategy = args.strategy or "constant"
-    if strategy != "constant":
-        raise InputError(f"--strategy {strategy} is not available for cycling yet; "
-                         "use --strategy constant")
-    if args.power is None:
-        raise InputError("a constant plan needs --power W (crank power)")
-    return np.full(np.asarray(course.distance).size - 1, float(args.power))
-
-
-def predict(args: argparse.Namespace) -> tuple[Prediction, list[SegmentResult]]:
-    """Validate, load, plan and simulate: the prediction and its segment summaries."""
-    from pacing.weather.conditions import air_along_course
+def race_request_from_args(args: argparse.Namespace):
+    """The pacing.plan.race.RaceRequest of the flags: without --strategy a constant plan at
+    --power (CP and W′ checked when given), else the strategy's request."""
+    from pacing.plan.race import RaceRequest
+    from pacing.plan.request import PlanRequest
 
     validate_args(args)
-    if (args.strategy or "constant") == "constant" and args.power is None:
-        raise InputError("a constant plan needs --power W (crank power)")
-    rider = rider_from_args(args)
-    conditions = conditions_from_args(args)
+    if args.strategy is None:
+        if args.power is None:
+            raise InputError("a constant plan needs --power W (crank power)")
+        request = PlanRequest(strategy="constant", mean_power=float(args.power),
+                              critical_power=args.cp if args.w_prime is not None else None,
+                              w_prime=args.w_prime if args.cp is not None else None)
+    else:
+        request = request_from_args(args)
     course, bounds = load_course_and_bounds(args)
-    air = air_along_course(course, conditions)
-    powers = _plan_powers(args, course, bounds, rider, air)
-    prediction = _simulate(course, powers, rider, air, args)
-    return prediction, segment_results(course, prediction, bounds)
+    return RaceRequest(course=course, bounds=bounds, conditions=conditions_from_args(args),
+                       sport="cycling", strategy=request.strategy, rider=rider_from_args(args),
+                       cycling=request, options=simulation_options_from_args(args))
+
+
+def plan_from_args(args: argparse.Namespace):
+    """Validate, load and plan through the one chain (pacing.plan.race.plan_race): the
+    RaceResult and the segment summaries of its verified prediction."""
+    from pacing.plan.race import plan_race
+
+    result = plan_race(race_request_from_args(args))
+    if result.request.strategy == "target-time":
+        check_target_time_plan(result.plan, args.target_time)
+    return result, segment_results(result.request.course, result.plan.prediction,
+                                   result.request.bounds)
 
 
 def simulation_options_from_args(args: argparse.Namespace) -> SimulationOptions:
@@ -160,18 +142,6 @@ def simulation_options_from_args(args: argparse.Namespace) -> SimulationOptions:
     return SimulationOptions(start_speed=args.start_speed,
                              max_descent_speed=getattr(args, "max_descent_speed", None),
                              coasting_speed=getattr(args, "coasting_speed", None))
-
-
-def _simulate(course, powers, rider: Rider, air, args: argparse.Namespace) -> Prediction:
-    from pacing.plan.simulate import simulate
-
-    return simulate(course, powers, rider, air, simulation_options_from_args(args))
-
-
-def walking_distance(prediction: Prediction) -> float:
-    """Course distance of the pieces walked or ridden below walking pace [m]."""
-    pieces = np.diff(np.asarray(prediction.distance, dtype=float))
-    return float(np.sum(pieces[np.asarray(prediction.walking, dtype=bool)]))
 
 
 def prediction_as_dict(prediction: Prediction, segments: list[SegmentResult], *,
@@ -250,21 +220,7 @@ def prediction_as_table(prediction: Prediction, segments: list[SegmentResult], *
     )
     if target_power is not None:
         lines.append(f"band: ±{100 * band:g} % around the target power")
-    walked = walking_distance(prediction)
-    if walked > 0:
-        lines.append(_walking_note(walked, distance))
     return "\n".join(lines)
-
-
-def _walking_note(walked: float, distance: float) -> str:
-    """One line on the distance at walking pace [m] out of the course distance [m]."""
-    pace = f"walking pace ({WALKING_SPEED * 3.6:.1f} km/h)"
-    if walked >= 0.999 * distance:
-        return (f"warning: the power cannot keep the bike at {pace} on this course: the rider "
-                "walks it all the way (pushing the bike counts as rider work)")
-    return (f"note: below {pace} on {walked / 1000:.2f} of {distance / 1000:.2f} km; where the "
-            "power cannot hold that pace the rider walks the bike (pushing counts as rider "
-            "work)")
 
 
 def run(args: argparse.Namespace) -> int:
@@ -272,16 +228,22 @@ def run(args: argparse.Namespace) -> int:
     from pacing.cli.plan_running import warn_flags_of_other_sport
 
     warn_flags_of_other_sport(args, "cycling")
-    if args.strategy is not None:
-        return run_strategy(args)
-    prediction, segments = predict(args)
+    result, segments = plan_from_args(args)
+    plan = result.plan
     if args.json:
-        json.dump(prediction_as_dict(prediction, segments, target_power=args.power), sys.stdout,
-                  indent=2)
+        output = (prediction_as_dict(plan.prediction, segments, target_power=args.power)
+                  if args.strategy is None else plan_as_dict(plan, segments))
+        output["notices"] = notices_as_json(result.notices)
+        report_notices(result.notices, table=False)
+        json.dump(output, sys.stdout, indent=2)
         sys.stdout.write("\n")
-    else:
-        print(prediction_as_table(prediction, segments, target_power=args.power))
-        print(CAUTION)
+        return 0
+    table = (prediction_as_table(plan.prediction, segments, target_power=args.power)
+             if args.strategy is None else plan_as_table(plan, segments))
+    print(table)
+    for line in report_notices(result.notices, table=True):
+        print(line)
+    print(CAUTION)
     return 0
 
 
@@ -324,34 +286,14 @@ def request_from_args(args: argparse.Namespace):
     )
 
 
-def plan_with_strategy(args: argparse.Namespace):
-    """Validate, load, make the plan (pacing.plan.cycling.make_plan, verified by the inertial
-    simulation) and summarise its segments: (RacePlan, segment summaries)."""
-    from pacing.plan.cycling import make_plan
-    from pacing.weather.conditions import air_along_course
-
-    validate_args(args)
-    request = request_from_args(args)
-    rider = rider_from_args(args)
-    course, bounds = load_course_and_bounds(args)
-    air = air_along_course(course, conditions_from_args(args))
-    plan = make_plan(course, bounds, rider, air, request, simulation_options_from_args(args))
-    if request.strategy == "target-time":
-        check_target_time_plan(plan, request, args.target_time)
-    return plan, segment_results(course, plan.prediction, bounds)
-
-
-def check_target_time_plan(plan, request, clock: str) -> None:
-    """Refuse a target-time plan beyond what any rider holds (HUMAN_POWER_CEILING); warn (one
-    line) when CP and W′ are not given, so the power is not checked against the athlete."""
+def check_target_time_plan(plan, clock: str) -> None:
+    """Refuse a target-time plan beyond what any rider holds (HUMAN_POWER_CEILING). (Without
+    CP and W′ the chain's notice "target-time-unchecked" says the power is not checked.)"""
     power = float(np.max(plan.segment_power))
     if power > HUMAN_POWER_CEILING:
         raise InputError(f"--target-time {clock} is not reachable: it needs {power:.0f} W, "
                          f"beyond the {HUMAN_POWER_CEILING:g} W no rider holds over a race; "
                          "give a longer time")
-    if not request.uses_w_prime:
-        warnings.warn(f"--target-time without --cp and --w-prime: the {power:.0f} W it needs "
-                      "is not checked against the athlete's limits", UserWarning, stacklevel=2)
 
 
 def plan_as_dict(plan, segments: list[SegmentResult]) -> dict:
@@ -400,15 +342,3 @@ def plan_as_table(plan, segments: list[SegmentResult]) -> str:
                     f"{plan.min_w_prime_distance / 1000:.2f}")
     out.append(summary)
     return "\n".join(out)
-
-
-def run_strategy(args: argparse.Namespace) -> int:
-    """``pacing plan … --strategy constant|fastest|target-time``; returns the exit code."""
-    plan, segments = plan_with_strategy(args)
-    if args.json:
-        json.dump(plan_as_dict(plan, segments), sys.stdout, indent=2)
-        sys.stdout.write("\n")
-    else:
-        print(plan_as_table(plan, segments))
-        print(CAUTION)
-    return 0

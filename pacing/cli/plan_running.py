@@ -14,22 +14,23 @@ import sys
 import warnings
 
 from pacing.athlete import Athlete
-from pacing.cli.common import RUNNING_CAUTION
-from pacing.course.segments import split_by_grade, split_every
+from pacing.cli.common import (
+    RUNNING_CAUTION,
+    conditions_from_args,
+    load_course_and_bounds,
+    notices_as_json,
+    report_notices,
+)
 from pacing.display import units
+from pacing.display.notices import describe_all
 from pacing.errors import InputError
-from pacing.io.gpx import load_course
 from pacing.physics.running import Runner
 from pacing.physiology.critical_speed import critical_speed_flat_race_time
 from pacing.plan.running import (
     DOWNHILL_SPEED_RATIO_CAP,
     RUNNING_STRATEGIES,
     RunningPlan,
-    plan_equal_effort,
-    plan_even_pace,
-    plan_fastest,
 )
-from pacing.weather.conditions import Conditions, air_along_course
 
 SHARED_FLAGS = frozenset({"strategy", "cda", "drafting"})
 """Destinations of the cycling and rider groups' flags that running uses too."""
@@ -117,19 +118,6 @@ def runner_from_args(args: argparse.Namespace) -> Runner:
                             drafting_reduction=drafting / 100.0)
 
 
-def conditions_from_args(args: argparse.Namespace) -> Conditions:
-    """The race-day air of the air and wind flags (humidity given in percent)."""
-    return Conditions(
-        temperature=args.temperature,
-        relative_humidity=args.humidity / 100.0,
-        sea_level_pressure=args.sea_level_pressure,
-        wind_speed=args.wind_speed,
-        wind_from=args.wind_from,
-        wind_height=args.wind_height,
-        roughness_length=args.roughness,
-    )
-
-
 def validate_args(args: argparse.Namespace) -> None:
     """One-line InputError for flags out of range, before any file is read."""
     for flag in ("body_mass", "height", "cda", "drafting", "critical_speed", "d_prime",
@@ -142,8 +130,10 @@ def validate_args(args: argparse.Namespace) -> None:
         raise InputError(f"--humidity must be 0-100 %, got {args.humidity:g}")
 
 
-def make_plan(args: argparse.Namespace) -> RunningPlan:
-    """Load the course and compute the running plan the flags ask for."""
+def race_request_from_args(args: argparse.Namespace):
+    """The pacing.plan.race.RaceRequest of the running flags (after checking them)."""
+    from pacing.plan.race import RaceRequest, RunningRequest
+
     validate_args(args)
     strategy = args.strategy or "equal-effort"
     if strategy not in RUNNING_STRATEGIES:
@@ -158,38 +148,42 @@ def make_plan(args: argparse.Namespace) -> RunningPlan:
                       stacklevel=2)
     runner = runner_from_args(args)
     conditions = conditions_from_args(args)
-    course = load_course(args.route, step=args.step, allow_missing_elevation=args.flat)
-    air = air_along_course(course, conditions)
-    bounds = (split_every(course, args.segment_length) if args.segment_length is not None
-              else split_by_grade(course))
-    air_args = dict(air_density=air.density, headwind=air.headwind, crosswind=air.crosswind,
-                    bounds=bounds)
-    has_critical = args.critical_speed is not None and args.d_prime is not None
+    course, bounds = load_course_and_bounds(args)
     if (args.critical_speed is None) != (args.d_prime is None):
         raise InputError("give --critical-speed and --d-prime together")
+    has_critical = args.critical_speed is not None
+    running = RunningRequest(flat_speed=_flat_speed(args, strategy, course, has_critical),
+                             critical_speed=args.critical_speed, d_prime=args.d_prime,
+                             downhill_speed_ratio_cap=downhill_cap)
+    return RaceRequest(course=course, bounds=bounds, conditions=conditions, sport="running",
+                       strategy=strategy, runner=runner, running=running)
+
+
+def _flat_speed(args: argparse.Namespace, strategy: str, course, has_critical: bool):
+    """The flat-ground speed of --flat-pace, or the pace that spends D′ exactly over the
+    course's distance on flat ground (CS model) [m/s]; None for the fastest plan."""
     if strategy == "fastest":
         if not has_critical:
             raise InputError("--strategy fastest needs --critical-speed and --d-prime")
         if args.flat_pace is not None:
             warnings.warn("--flat-pace is not used by the fastest plan: its effort comes from "
                           "--critical-speed and --d-prime", stacklevel=2)
-        return plan_fastest(course, runner, args.critical_speed, args.d_prime,
-                            downhill_speed_ratio_cap=downhill_cap, **air_args)
-    if has_critical:
-        air_args.update(critical_speed=args.critical_speed, d_prime=args.d_prime)
+        return None
     if args.flat_pace is not None:
-        flat_speed = flat_speed_from_pace(args.flat_pace)
-    elif has_critical:
-        # the pace that spends D′ exactly over this distance on flat ground (CS model)
-        flat_speed = course.total_distance / critical_speed_flat_race_time(
+        return flat_speed_from_pace(args.flat_pace)
+    if has_critical:
+        return course.total_distance / critical_speed_flat_race_time(
             course.total_distance, args.critical_speed, args.d_prime)
-    else:
-        raise InputError("running needs --flat-pace M:SS (per km), or --critical-speed and "
-                         "--d-prime")
-    if strategy == "equal-effort":
-        return plan_equal_effort(course, runner, flat_speed, downhill_speed_ratio_cap=downhill_cap,
-                                 **air_args)
-    return plan_even_pace(course, runner, flat_speed, **air_args)
+    raise InputError("running needs --flat-pace M:SS (per km), or --critical-speed and "
+                     "--d-prime")
+
+
+def make_plan(args: argparse.Namespace):
+    """Load the course and plan the run the flags ask for, through the one planning chain
+    (pacing.plan.race.plan_race): the RaceResult."""
+    from pacing.plan.race import plan_race
+
+    return plan_race(race_request_from_args(args))
 
 
 TIME_SAVED_MEANING = ("seconds before the even pace with the same time-weighted mean "
@@ -236,7 +230,7 @@ def plan_as_dict(plan: RunningPlan, runner: Runner | None = None) -> dict:
         "limited_even_pace_time_s": _optional(plan.limited_even_pace_time),
         "min_d_prime_balance_m": plan.min_d_prime_balance,
         "min_d_prime_distance_m": plan.min_d_prime_distance,
-        "notes": list(plan.notes),
+        "notes": describe_all(plan.notes, "metric"),
         "segments": [
             {
                 "start_m": row.start,
@@ -301,18 +295,22 @@ def plan_as_table(plan: RunningPlan, runner: Runner | None = None) -> str:
     if plan.min_d_prime_balance is not None:
         lines.append(f"lowest D′ balance {plan.min_d_prime_balance:.0f} m at km "
                      f"{plan.min_d_prime_distance / 1000:.2f}")
-    lines.extend(f"note: {note}" for note in plan.notes)
     return "\n".join(lines)
 
 
 def run(args: argparse.Namespace) -> int:
     """Run ``pacing plan --sport running``; returns the exit code."""
-    plan = make_plan(args)
-    runner = runner_from_args(args)
+    result = make_plan(args)
+    runner = result.request.runner
     if args.json:
-        json.dump(plan_as_dict(plan, runner), sys.stdout, indent=2)
+        output = plan_as_dict(result.plan, runner)
+        output["notices"] = notices_as_json(result.notices)
+        report_notices(result.notices, table=False)
+        json.dump(output, sys.stdout, indent=2)
         sys.stdout.write("\n")
-    else:
-        print(plan_as_table(plan, runner))
-        print(RUNNING_CAUTION)
+        return 0
+    print(plan_as_table(result.plan, runner))
+    for line in report_notices(result.notices, table=True):
+        print(line)
+    print(RUNNING_CAUTION)
     return 0

@@ -144,23 +144,46 @@ def segment_table(rows: Iterable[Any], system: str = "metric") -> pd.DataFrame:
     return pd.DataFrame(table)
 
 
-def table_to_csv(table: pd.DataFrame) -> bytes:
-    """The table as UTF-8 CSV (comma separated, header row, no index)."""
+def table_to_csv(table: pd.DataFrame, notices: Sequence[str] = ()) -> bytes:
+    """The table as UTF-8 CSV (comma separated, header row, no index).
+
+    Parameters
+    ----------
+    table : pandas.DataFrame
+        The segment table (`segment_table`).
+    notices : sequence of str
+        The plan's warnings and notes in words ("warning: …"), written first as comment lines
+        starting with "# " (read back with ``pandas.read_csv(..., comment="#")``); none, and
+        the file is the bare table.
+
+    Returns
+    -------
+    bytes
+    """
     buffer = io.StringIO()
+    for line in notices:
+        buffer.write("# " + " ".join(str(line).split()) + "\n")
     table.to_csv(buffer, index=False, quoting=csv.QUOTE_MINIMAL)
     return buffer.getvalue().encode("utf-8")
 
 
 def table_to_xlsx(table: pd.DataFrame, sheet_name: str = "segment targets",
-                  title: str | None = None) -> bytes:
-    """The table as an Excel workbook (openpyxl): one sheet, header row frozen, columns sized.
+                  title: str | None = None, notices: Sequence[str] = ()) -> bytes:
+    """The table as an Excel workbook (openpyxl): header row frozen, columns sized.
 
     The header is on row 1 and data from row 2 (a title, if given, goes in the workbook's
-    properties, not in a cell, so the sheet reads straight back into a table).
+    properties, not in a cell, so the sheet reads straight back into a table). The plan's
+    warnings and notes in words (`notices`), if any, go on a second sheet, "warnings and
+    notes", one per row.
     """
     buffer = io.BytesIO()
     with pd.ExcelWriter(buffer, engine="openpyxl") as writer:
+        if notices:
+            pd.DataFrame({"warnings and notes": list(notices)}).to_excel(
+                writer, sheet_name="warnings and notes", index=False)
         table.to_excel(writer, sheet_name=sheet_name[:31], index=False)
+        if notices:  # the targets stay the first sheet, the one a reader opens
+            writer.book.move_sheet(sheet_name[:31], offset=-1)
         sheet = writer.sheets[sheet_name[:31]]
         sheet.freeze_panes = "A2"
         for cells in sheet.columns:
@@ -217,21 +240,27 @@ def course_with_targets_gpx(course: Any, rows: Iterable[Any], system: str = "met
     return write_gpx(course, segment_waypoints(rows, system))
 
 
-def card_size(segment_count: int) -> tuple[float, float]:
-    """Size of the printed card for a number of segments (width, height) [in]."""
+CARD_WARNING_HEIGHT = 0.45
+"""Height of one warning on the card [in]."""
+
+
+def card_size(segment_count: int, warning_count: int = 0) -> tuple[float, float]:
+    """Size of the printed card (width, height) [in] for a number of segments and of
+    warnings printed above the caution line."""
     if segment_count < 1:
         raise InputError("there are no segments to put on the card")
     columns = math.ceil(segment_count / ROWS_PER_CARD_COLUMN)
     lines = min(segment_count, ROWS_PER_CARD_COLUMN)
     return (CARD_COLUMN_WIDTH * columns,
-            CARD_HEADER_HEIGHT + CARD_ROW_HEIGHT * (lines + 1) + CARD_FOOTER_HEIGHT)
+            CARD_HEADER_HEIGHT + CARD_ROW_HEIGHT * (lines + 1) + CARD_FOOTER_HEIGHT
+            + CARD_WARNING_HEIGHT * warning_count)
 
 
-def _card_figure(rows: Sequence[Any], system: str, title: str):
+def _card_figure(rows: Sequence[Any], system: str, title: str, warnings: Sequence[str] = ()):
     from matplotlib.backends.backend_agg import FigureCanvasAgg
     from matplotlib.figure import Figure
 
-    width, height = card_size(len(rows))
+    width, height = card_size(len(rows), len(warnings))
     figure = Figure(figsize=(width, height))
     FigureCanvasAgg(figure)
     axes = figure.add_axes((0, 0, 1, 1))
@@ -264,6 +293,11 @@ def _card_figure(rows: Sequence[Any], system: str, title: str):
             axes.text(left, y, f"{start:.1f}", fontsize=15, va="center", family="monospace")
             axes.text(left + 0.95, y, target, fontsize=17, fontweight="bold", va="center")
             axes.text(left + 2.45, y, split, fontsize=13, va="center", family="monospace")
+    for number, warning in enumerate(warnings):
+        y = (height - CARD_FOOTER_HEIGHT - CARD_WARNING_HEIGHT * (len(warnings) - number)
+             + CARD_WARNING_HEIGHT / 2)
+        axes.text(0.12, y, _wrap("⚠ " + warning, width), fontsize=7, va="center",
+                  color="#8a2c0d", fontweight="bold")
     axes.text(0.12, height - CARD_FOOTER_HEIGHT / 2, _wrap(CAUTION_LINE, width), fontsize=7,
               va="center", color="0.2")
     return figure
@@ -276,21 +310,22 @@ def _wrap(text: str, width_inches: float) -> str:
 
 
 def target_card_png(rows: Iterable[Any], system: str = "metric", title: str = "race plan",
-                    dpi: int = CARD_DPI) -> bytes:
-    """The printable target card as PNG: card_size(len(rows)) inches at `dpi`.
+                    dpi: int = CARD_DPI, warnings: Sequence[str] = ()) -> bytes:
+    """The printable target card as PNG: card_size(len(rows), len(warnings)) inches at `dpi`.
 
-    Large type: segment start (km or mi), target power or pace, expected split; a caution
-    line at the bottom.
+    Large type: segment start (km or mi), target power or pace, expected split; the plan's
+    warnings in words (e.g. where W′ runs out), then a caution line at the bottom.
     """
     rows = _rows(rows)
     buffer = io.BytesIO()
-    _card_figure(rows, system, title).savefig(buffer, format="png", dpi=dpi)
+    _card_figure(rows, system, title, warnings).savefig(buffer, format="png", dpi=dpi)
     return buffer.getvalue()
 
 
-def target_card_pdf(rows: Iterable[Any], system: str = "metric", title: str = "race plan") -> bytes:
-    """The printable target card as a one-page PDF of card_size(len(rows)) inches."""
+def target_card_pdf(rows: Iterable[Any], system: str = "metric", title: str = "race plan",
+                    warnings: Sequence[str] = ()) -> bytes:
+    """The printable target card as a one-page PDF (see target_card_png)."""
     rows = _rows(rows)
     buffer = io.BytesIO()
-    _card_figure(rows, system, title).savefig(buffer, format="pdf")
+    _card_figure(rows, system, title, warnings).savefig(buffer, format="pdf")
     return buffer.getvalue()

@@ -22,7 +22,6 @@ above critical power. Eur J Appl Physiol 115(4):703-713.
 from __future__ import annotations
 
 from collections.abc import Callable
-from dataclasses import dataclass
 
 import numpy as np
 from scipy.optimize import brentq
@@ -31,21 +30,10 @@ from pacing.course.geometry import Course
 from pacing.errors import InputError
 from pacing.physics.running import Runner, metabolic_power, speed_for_metabolic_power
 from pacing.physiology.critical_speed import check_critical_speed, distance_capacity_balance
+from pacing.weather.conditions import CourseAir
 
 
-@dataclass(frozen=True)
-class PieceAir:
-    """Air along a course, one value per piece (length N-1).
-
-    density : [kg/m³]; headwind, crosswind : wind components at the runner [m/s].
-    """
-
-    density: np.ndarray
-    headwind: np.ndarray
-    crosswind: np.ndarray
-
-
-def piece_air(course: Course, air_density, headwind, crosswind) -> PieceAir:
+def piece_air(course: Course, air_density, headwind, crosswind) -> CourseAir:
     """Check the air of a plan and spread scalars over the pieces of `course`.
 
     Parameters
@@ -66,10 +54,10 @@ def piece_air(course: Course, air_density, headwind, crosswind) -> PieceAir:
         arrays.append(array)
     if np.any(arrays[0] <= 0.3) or np.any(arrays[0] > 1.6):
         raise InputError("air density must be 0.3-1.6 kg/m³")
-    return PieceAir(*arrays)
+    return CourseAir(*arrays)
 
 
-def piece_metabolic_power(course: Course, runner: Runner, air: PieceAir,
+def piece_metabolic_power(course: Course, runner: Runner, air: CourseAir,
                           speed: float | np.ndarray) -> np.ndarray:
     """Metabolic power on each piece at ground `speed` (scalar or per piece) [W/kg]
     (pacing.physics.running.metabolic_power on the course's grades in `air`)."""
@@ -78,13 +66,13 @@ def piece_metabolic_power(course: Course, runner: Runner, air: PieceAir,
 
 
 def _mean_power_of_even_pace(speed: float, course: Course, runner: Runner,
-                             air: PieceAir) -> float:
+                             air: CourseAir) -> float:
     power = piece_metabolic_power(course, runner, air, speed)
     length = course.piece_length
     return float(np.sum(power * length) / length.sum())
 
 
-def even_pace_speed(course: Course, runner: Runner, air: PieceAir, mean_power: float) -> float:
+def even_pace_speed(course: Course, runner: Runner, air: CourseAir, mean_power: float) -> float:
     """`even_pace_for_mean_power` in air already checked by `piece_air` [m/s]; mean_power
     [W/kg], > 0."""
     high = 2.0
@@ -154,7 +142,7 @@ def plan_d_prime_balance(
                                      d_prime)
 
 
-def lowest_even_pace_balance(course: Course, runner: Runner, air: PieceAir, speed: float,
+def lowest_even_pace_balance(course: Course, runner: Runner, air: CourseAir, speed: float,
                              critical_speed: float, d_prime: float) -> float:
     """Lowest D′ balance along the course at the even pace `speed` [m/s] → [m]
     (`plan_d_prime_balance` at the start's air density)."""
@@ -228,7 +216,7 @@ def check_limits(critical_speed: float | None, d_prime: float | None) -> bool:
     return critical_speed is not None
 
 
-def even_pace_reference(course: Course, runner: Runner, air: PieceAir, power: np.ndarray,
+def even_pace_reference(course: Course, runner: Runner, air: CourseAir, power: np.ndarray,
                         time: np.ndarray, effort: float) -> dict:
     """The even pace at a plan's time-weighted mean metabolic power, and what it costs.
 

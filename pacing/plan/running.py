@@ -56,6 +56,7 @@ import numpy as np
 from pacing.course.geometry import Course
 from pacing.course.segments import split_every
 from pacing.errors import InputError
+from pacing.notices import Notice, note, warning
 from pacing.physics.running import (
     RUNNING_COST_MODELS,
     Runner,
@@ -64,7 +65,6 @@ from pacing.physics.running import (
 )
 from pacing.physiology.critical_speed import check_critical_speed, distance_capacity_balance
 from pacing.plan.even_pace import (
-    PieceAir,
     check_limits,
     even_pace_reference,
     even_pace_speed,
@@ -77,6 +77,7 @@ from pacing.plan.even_pace import (
     plan_d_prime_balance,
 )
 from pacing.plan.targets import SegmentTarget
+from pacing.weather.conditions import CourseAir
 
 DOWNHILL_SPEED_RATIO_CAP = 1.2
 """Default cap on speed on descents, as a multiple of the flat speed [-]. Our choice: the
@@ -136,7 +137,7 @@ class RunningPlan:
     segments : target rows.
     d_prime_balance : D′ balance at the end of each piece [m] (fastest plan, or any plan given
         critical speed and D′; else None).
-    notes : cautions to show beside the numbers.
+    notes : what the user must be told beside the numbers (pacing.notices.Notice).
     even_pace_speed : the even pace with this plan's time-weighted mean metabolic power [m/s].
     even_pace_time : finish time of that even pace [s] (the reference of `time_saved`).
     even_pace_peak_effort_ratio : that even pace's highest piece effort / effort target [-].
@@ -152,7 +153,7 @@ class RunningPlan:
     flat_speed: float
     segments: tuple[RunningSegment, ...]
     d_prime_balance: np.ndarray | None = None
-    notes: tuple[str, ...] = ()
+    notes: tuple[Notice, ...] = ()
     even_pace_speed: float | None = None
     even_pace_time: float | None = None
     even_pace_peak_effort_ratio: float | None = None
@@ -248,17 +249,18 @@ def _segments(course: Course, bounds: np.ndarray, speed: np.ndarray, time: np.nd
     return tuple(rows)
 
 
-def _grade_notes(course: Course, runner: Runner) -> list[str]:
+def _grade_notices(course: Course, runner: Runner) -> list[Notice]:
+    """A warning when pieces lie outside the cost model's grade range (costed at its edge)."""
     low, high = RUNNING_COST_MODELS[runner.cost_model].grade_range
     outside = int(np.count_nonzero((course.grade < low) | (course.grade > high)))
     if outside:
-        return [f"{outside} piece(s) steeper than the cost model's range {low:+.0%}..{high:+.0%}"
-                " were costed at its edge"]
+        return [warning("running-grade-beyond-cost-model", count=outside, lowest_grade=low,
+                        highest_grade=high)]
     return []
 
 
 def _equal_effort_speeds(course: Course, runner: Runner, effort: float, flat_speed: float,
-                         air: PieceAir, downhill_speed_ratio_cap: float | None):
+                         air: CourseAir, downhill_speed_ratio_cap: float | None):
     """Equal-effort speed per piece [m/s] and where the descent cap holds it back."""
     speed = speed_for_metabolic_power(effort, course.grade, air.density, runner, air.headwind,
                                       air.crosswind)
@@ -277,7 +279,7 @@ def _equal_effort_speeds(course: Course, runner: Runner, effort: float, flat_spe
 
 def _flat_speed_inputs(course: Course, runner: Runner, flat_speed: float, air_density,
                        headwind, crosswind, bounds, critical_speed: float | None,
-                       d_prime: float | None) -> tuple[PieceAir, np.ndarray, float]:
+                       d_prime: float | None) -> tuple[CourseAir, np.ndarray, float]:
     """Checked inputs of a plan set by its flat speed: air per piece, segment bounds and the
     effort target, the metabolic power of flat_speed at the start's air density [W/kg]."""
     check_limits(critical_speed, d_prime)
@@ -286,7 +288,7 @@ def _flat_speed_inputs(course: Course, runner: Runner, flat_speed: float, air_de
     return air, bounds, flat_effort(flat_speed, float(air.density[0]), runner)
 
 
-def _balance_if_given(power: np.ndarray, time: np.ndarray, runner: Runner, air: PieceAir,
+def _balance_if_given(power: np.ndarray, time: np.ndarray, runner: Runner, air: CourseAir,
                       critical_speed: float | None, d_prime: float | None) -> np.ndarray | None:
     """`plan_d_prime_balance` at the start's air density, or None without critical speed."""
     if critical_speed is None:
@@ -295,9 +297,9 @@ def _balance_if_given(power: np.ndarray, time: np.ndarray, runner: Runner, air: 
                                 d_prime)
 
 
-def _running_plan(strategy: str, course: Course, bounds: np.ndarray, air: PieceAir,
+def _running_plan(strategy: str, course: Course, bounds: np.ndarray, air: CourseAir,
                   speed: np.ndarray, time: np.ndarray, power: np.ndarray, effort: float,
-                  flat_speed: float, balance: np.ndarray | None, notes: list[str],
+                  flat_speed: float, balance: np.ndarray | None, notes: list[Notice],
                   **fields) -> RunningPlan:
     """The RunningPlan of per-piece speed, time and metabolic power, with its target rows;
     `fields`: the even-pace references."""
@@ -309,17 +311,16 @@ def _running_plan(strategy: str, course: Course, bounds: np.ndarray, air: PieceA
     )
 
 
-def _comparison_note(finish_time: float, reference: dict, overdraw: str = "") -> list[str]:
-    saved = reference["even_pace_time"] - finish_time
-    if abs(saved) < 0.5:
+def _comparison_notice(finish_time: float, reference: dict,
+                       overdrawn_balance: float | None = None) -> list[Notice]:
+    """A note on the even pace at the same mean effort: how much later (or sooner) it
+    finishes, its peak effort and, when it overdraws D′, its lowest balance [m]."""
+    later = reference["even_pace_time"] - finish_time
+    if abs(later) < 0.5:
         return []
-    order = "later" if saved > 0 else "sooner"
-    return [
-        f"even pace at the same mean effort ({pace_clock(1000.0 / reference['even_pace_speed'])} "
-        f"/km) would finish {abs(saved):.0f} s {order} in this model, running up to "
-        f"{reference['even_pace_peak_effort_ratio']:.0%} of the flat effort on the hardest "
-        f"piece{overdraw}; this plan never goes above its target effort"
-    ]
+    return [note("even-pace-at-same-effort", speed_mps=reference["even_pace_speed"],
+                 later_s=later, peak_effort_ratio=reference["even_pace_peak_effort_ratio"],
+                 overdrawn_balance_m=overdrawn_balance)]
 
 
 def plan_equal_effort(
@@ -361,14 +362,11 @@ def plan_equal_effort(
     power = piece_metabolic_power(course, runner, air, speed)
     balance = _balance_if_given(power, time, runner, air, critical_speed, d_prime)
     reference = even_pace_reference(course, runner, air, power, time, effort)
-    notes = _grade_notes(course, runner)
+    notes = _grade_notices(course, runner)
     if capped.any():
-        notes.append(
-            f"descent speed capped at {downhill_speed_ratio_cap:g} × flat speed on "
-            f"{capped.mean():.0%} of the course: the cost model's downhill speeds are "
-            "unrealistic"
-        )
-    notes.extend(_comparison_note(float(time.sum()), reference))
+        notes.append(note("running-descent-capped", ratio=downhill_speed_ratio_cap,
+                          share=float(capped.mean())))
+    notes.extend(_comparison_notice(float(time.sum()), reference))
     return _running_plan("equal-effort", course, bounds, air, speed, time, power, effort,
                          flat_speed, balance, notes, **reference)
 
@@ -414,13 +412,11 @@ def plan_even_pace(
     time = length / speeds
     power = piece_metabolic_power(course, runner, air, speeds)
     balance = _balance_if_given(power, time, runner, air, critical_speed, d_prime)
-    notes = _grade_notes(course, runner)
+    notes = _grade_notices(course, runner)
     peak = float(power.max() / effort)
     mean = float(np.sum(power * time) / time.sum() / effort)
-    notes.append(
-        f"even pace meets the target effort on average ({mean:.0%} time-weighted), not on "
-        f"every piece: it costs up to {peak:.0%} of the flat effort on the hardest piece"
-    )
+    notes.append(note("even-pace-effort-on-average", mean_effort_ratio=mean,
+                      peak_effort_ratio=peak))
     return _running_plan("even-pace", course, bounds, air, speeds, time, power, effort,
                          flat_speed, balance, notes, even_pace_speed=float(speed),
                          even_pace_time=float(time.sum()), even_pace_peak_effort_ratio=peak)
@@ -495,23 +491,17 @@ def plan_fastest(
                                             air.density, air.headwind, air.crosswind,
                                             d_prime_reserve, tolerance)
     limited_time = float(length.sum() / limited_speed)
-    notes = _grade_notes(course, runner)
-    notes.append("D′ recovery below critical speed uses Skiba's constants from cycling")
+    notes = _grade_notices(course, runner)
+    notes.append(note("d-prime-recovery-by-analogy"))
     if capped.any():
-        notes.append(
-            f"descent speed capped at {downhill_speed_ratio_cap:g} × flat-equivalent speed on "
-            f"{capped.mean():.0%} of the course"
-        )
+        notes.append(note("running-descent-capped-at-level", ratio=downhill_speed_ratio_cap,
+                          share=float(capped.mean())))
     even_lowest = lowest_even_pace_balance(course, runner, air, reference["even_pace_speed"],
                                            critical_speed, d_prime)
-    overdraw = (f" and overdrawing D′ (lowest balance {even_lowest:.0f} m)"
-                if even_lowest < d_prime_reserve else "")
-    notes.extend(_comparison_note(float(time.sum()), reference, overdraw))
-    notes.append(
-        f"the fastest even pace within the same critical speed and D′ "
-        f"({pace_clock(1000.0 / limited_speed)} /km) would finish "
-        f"{limited_time - float(time.sum()):.0f} s later: its climbs spend D′ faster"
-    )
+    notes.extend(_comparison_notice(float(time.sum()), reference,
+                                    even_lowest if even_lowest < d_prime_reserve else None))
+    notes.append(note("even-pace-within-limits", speed_mps=limited_speed,
+                      later_s=limited_time - float(time.sum())))
     return _running_plan("fastest", course, bounds, air, speed, time, power, effort, low,
                          balance, notes, limited_even_pace_time=limited_time, **reference)
 
