@@ -31,6 +31,7 @@ from pacing.cli.common import (
 from pacing.display import units
 from pacing.errors import InputError
 from pacing.physics.cycling import Rider
+from pacing.plan.cycling import RacePlan
 from pacing.plan.prediction import Prediction, SegmentResult, SimulationOptions, segment_results
 from pacing.plan.strategies import walking_distance
 from pacing.plan.targets import DEFAULT_BAND, power_band
@@ -130,9 +131,11 @@ def plan_from_args(args: argparse.Namespace):
     from pacing.plan.race import plan_race
 
     result = plan_race(race_request_from_args(args))
+    plan = result.plan
+    assert isinstance(plan, RacePlan)  # a cycling request makes a cycling plan
     if result.request.strategy == "target-time":
-        check_target_time_plan(result.plan, args.target_time)
-    return result, segment_results(result.request.course, result.plan.prediction,
+        check_target_time_plan(plan, args.target_time)
+    return result, segment_results(result.request.course, plan.prediction,
                                    result.request.bounds)
 
 
@@ -195,10 +198,10 @@ def prediction_as_table(prediction: Prediction, segments: list[SegmentResult], *
     kmh = 3.6
     header = (f"{'#':>3} {'from km':>8} {'to km':>7} {'grade %':>8} {'power W':>8} "
               f"{'speed km/h':>11} {'time':>9} {'elapsed':>9} {'max km/h':>9}")
-    low = high = None
+    band_edges = None
     if target_power is not None:
-        low, high = power_band(np.broadcast_to(np.asarray(target_power, dtype=float),
-                                               (len(segments),)), band)
+        band_edges = power_band(np.broadcast_to(np.asarray(target_power, dtype=float),
+                                                (len(segments),)), band)
         header += BAND_HEADER
     lines = [header]
     elapsed = 0.0
@@ -208,8 +211,8 @@ def prediction_as_table(prediction: Prediction, segments: list[SegmentResult], *
                f"{100 * s.grade:8.1f} {s.power:8.0f} {s.speed * kmh:11.1f} "
                f"{units.format_duration(s.time):>9} {units.format_duration(elapsed):>9} "
                f"{s.max_speed * kmh:9.1f}")
-        if low is not None:
-            row += f" {_band_text(low[k], high[k]):>11}"
+        if band_edges is not None:
+            row += f" {_band_text(band_edges[0][k], band_edges[1][k]):>11}"
         lines.append(row)
     distance = float(prediction.distance[-1] - prediction.distance[0])
     lines.append(

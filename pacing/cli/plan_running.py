@@ -292,9 +292,10 @@ def plan_as_table(plan: RunningPlan, runner: Runner | None = None) -> str:
         f"{plan.mean_effort_ratio:.0%}, peak {plan.peak_effort_ratio:.0%}); "
         "wind: headwind m/s, + against"
     )
-    if plan.min_d_prime_balance is not None:
+    where = plan.min_d_prime_distance
+    if plan.min_d_prime_balance is not None and where is not None:
         lines.append(f"lowest D′ balance {plan.min_d_prime_balance:.0f} m at km "
-                     f"{plan.min_d_prime_distance / 1000:.2f}")
+                     f"{where / 1000:.2f}")
     return "\n".join(lines)
 
 

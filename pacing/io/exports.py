@@ -70,6 +70,14 @@ def _number(row: Any, name: str) -> float | None:
     return value if math.isfinite(value) else None
 
 
+def _required(row: Any, name: str) -> float:
+    """A number every segment row has (start, end, time, cumulative time)."""
+    value = _number(row, name)
+    if value is None:
+        raise InputError(f"segment {name.replace('_', ' ')} is missing or not finite")
+    return value
+
+
 def _rows(rows: Iterable[Any]) -> list[Any]:
     rows = list(rows)
     if not rows:
@@ -119,7 +127,7 @@ def segment_table(rows: Iterable[Any], system: str = "metric") -> pd.DataFrame:
     table[f"From [{dist}]"] = col("start", "distance", digits=2)
     table[f"To [{dist}]"] = col("end", "distance", digits=2)
     table[f"Length [{dist}]"] = [
-        round(to_display(_number(r, "end") - _number(r, "start"), "distance", system), 2)
+        round(to_display(_required(r, "end") - _required(r, "start"), "distance", system), 2)
         for r in rows
     ]
     table["Grade [%]"] = col("grade", factor=100.0, digits=1)
@@ -137,8 +145,8 @@ def segment_table(rows: Iterable[Any], system: str = "metric") -> pd.DataFrame:
     table[f"Speed [{speed}]"] = col("speed", "speed", digits=1)
     if _has(rows, "headwind"):
         table[f"Headwind [{speed}]"] = col("headwind", "wind_speed", digits=1)
-    table["Split [h:mm:ss]"] = [format_duration(_number(r, "time")) for r in rows]
-    table["Elapsed [h:mm:ss]"] = [format_duration(_number(r, "cumulative_time")) for r in rows]
+    table["Split [h:mm:ss]"] = [format_duration(_required(r, "time")) for r in rows]
+    table["Elapsed [h:mm:ss]"] = [format_duration(_required(r, "cumulative_time")) for r in rows]
     if _has(rows, "w_prime_balance"):
         table["W′ left [kJ]"] = col("w_prime_balance", factor=1e-3, digits=1)
     return pd.DataFrame(table)
@@ -215,7 +223,7 @@ def segment_waypoints(rows: Iterable[Any], system: str = "metric") -> list[tuple
     rows = _rows(rows)
     points = []
     for number, row in enumerate(rows, start=1):
-        start = _number(row, "start")
+        start = _required(row, "start")
         target = _target_text(row, system)
         speed = _number(row, "speed")
         speed_text = (f", {to_display(speed, 'speed', system):.1f} {unit_label('speed', system)}"
@@ -225,8 +233,8 @@ def segment_waypoints(rows: Iterable[Any], system: str = "metric") -> list[tuple
         description = (
             f"segment {number} from {to_display(start, 'distance', system):.2f} "
             f"{unit_label('distance', system)}: {target}{speed_text}{grade_text}, "
-            f"split {format_duration(_number(row, 'time'))}, "
-            f"elapsed {format_duration(_number(row, 'cumulative_time'))}"
+            f"split {format_duration(_required(row, 'time'))}, "
+            f"elapsed {format_duration(_required(row, 'cumulative_time'))}"
         )
         points.append((start, f"S{number} {target}", description))
     return points
@@ -267,7 +275,7 @@ def _card_figure(rows: Sequence[Any], system: str, title: str, warnings: Sequenc
     axes.set_axis_off()
     axes.set_xlim(0, width)
     axes.set_ylim(height, 0)  # y grows downward, in inches
-    finish = _number(rows[-1], "cumulative_time")
+    finish = _required(rows[-1], "cumulative_time")
     axes.text(0.12, 0.38, title[:40], fontsize=15, fontweight="bold", va="center")
     axes.text(0.12, 0.72, f"finish {format_duration(finish)}", fontsize=12, va="center")
     dist = unit_label("distance", system)
@@ -286,9 +294,9 @@ def _card_figure(rows: Sequence[Any], system: str, title: str, warnings: Sequenc
                 axes.axhspan(y - CARD_ROW_HEIGHT / 2, y + CARD_ROW_HEIGHT / 2,
                              xmin=column / columns, xmax=(column + 1) / columns,
                              color="0.92", lw=0)
-            start = to_display(_number(row, "start"), "distance", system)
+            start = to_display(_required(row, "start"), "distance", system)
             target = _target_text(row, system).replace(" min/km", "").replace(" min/mi", "")
-            split = format_duration(_number(row, "time"))
+            split = format_duration(_required(row, "time"))
             split = split[2:] if split.startswith("0:") else split
             axes.text(left, y, f"{start:.1f}", fontsize=15, va="center", family="monospace")
             axes.text(left + 0.95, y, target, fontsize=17, fontweight="bold", va="center")

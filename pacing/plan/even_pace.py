@@ -211,7 +211,7 @@ def check_limits(critical_speed: float | None, d_prime: float | None) -> bool:
     InputError when only one is."""
     if (critical_speed is None) != (d_prime is None):
         raise InputError("give critical speed and D′ together")
-    if critical_speed is not None:
+    if critical_speed is not None and d_prime is not None:
         check_critical_speed(critical_speed, d_prime)
     return critical_speed is not None
 

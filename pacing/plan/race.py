@@ -215,6 +215,6 @@ def _exhausted_notice(result: RaceResult, distance: float) -> Notice:
     plan = result.plan
     if isinstance(plan, RacePlan):
         return warning("w-prime-exhausted", distance_m=distance,
-                       lowest_balance_j=float(np.min(plan.w_prime_balance)))
+                       lowest_balance_j=float(np.min(np.asarray(plan.w_prime_balance))))
     return warning("d-prime-exhausted", distance_m=distance,
-                   lowest_balance_m=float(np.min(plan.d_prime_balance)))
+                   lowest_balance_m=float(np.min(np.asarray(plan.d_prime_balance))))

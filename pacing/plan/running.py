@@ -291,7 +291,7 @@ def _flat_speed_inputs(course: Course, runner: Runner, flat_speed: float, air_de
 def _balance_if_given(power: np.ndarray, time: np.ndarray, runner: Runner, air: CourseAir,
                       critical_speed: float | None, d_prime: float | None) -> np.ndarray | None:
     """`plan_d_prime_balance` at the start's air density, or None without critical speed."""
-    if critical_speed is None:
+    if critical_speed is None or d_prime is None:
         return None
     return plan_d_prime_balance(power, time, runner, float(air.density[0]), critical_speed,
                                 d_prime)
