@@ -134,71 +134,86 @@ def athlete_inputs(system: str) -> dict:
         values["body_mass"] = unit_number("Athlete mass", "mass", system, "body_mass", 72.0,
                                           30.0, 200.0, 0.5)
     if sport == "cycling":
-        with cols[1]:
-            values["bike_mass"] = unit_number("Bike and kit", "mass", system, "bike_mass", 8.0,
-                                              3.0, 40.0, 0.1,
-                                              help="bike, bottles, shoes, helmet")
-        with cols[2]:
-            values["critical_power"] = unit_number(
-                "Critical power [W]", None, system, "critical_power", 280.0, 50.0, 600.0, 5.0,
-                help="the power you can hold for about half an hour to an hour")
-            values["w_prime"] = 1000.0 * unit_number(
-                "W′ [kJ]", None, system, "w_prime_kj", 20.0, 1.0, 60.0, 0.5,
-                help="work you can do above critical power before you must ease off")
-        cols = st.columns(3)
-        with cols[0]:
-            preset = st.selectbox("Riding position", list(text.DRAG_AREA_PRESETS),
-                                  key="cda_preset", help=text.DRAG_AREA_GUIDE)
-            chosen = text.DRAG_AREA_PRESETS[preset]
-            if chosen is None:
-                values["drag_area"] = unit_number("CdA [m²]", None, system, "cda", 0.30, 0.10,
-                                                  0.80, 0.005, help=text.DRAG_AREA_GUIDE)
-            else:
-                values["drag_area"] = chosen
-        with cols[1]:
-            preset = st.selectbox("Road surface", list(text.ROLLING_PRESETS), key="crr_preset",
-                                  help=text.ROLLING_GUIDE)
-            chosen = text.ROLLING_PRESETS[preset]
-            if chosen is None:
-                values["rolling_coefficient"] = unit_number(
-                    "Crr [-]", None, system, "crr", 0.0032, 0.001, 0.05, 0.0005,
-                    help=text.ROLLING_GUIDE)
-            else:
-                values["rolling_coefficient"] = chosen
-        with cols[2]:
-            values["drivetrain_efficiency"] = unit_number(
-                "Drivetrain efficiency [%]", None, system, "efficiency_pct", 97.6, 85.0,
-                100.0, 0.1, help="share of crank power reaching the wheel; Martin et al. "
-                                 "(1998) measured 97.6 %") / 100.0
-        with st.expander("What the CdA and Crr values mean"):
-            st.markdown(text.DRAG_AREA_GUIDE)
-            st.markdown(text.ROLLING_GUIDE)
+        values.update(_rider_inputs(cols, system))
     else:
-        with cols[1]:
-            values["height"] = unit_number("Height", "elevation", system, "height", 1.78,
-                                           1.2, 2.2, 0.01)
-        with cols[2]:
-            pace_label = unit_label("pace", system)
-            default = st.session_state.get("si:flat_pace", 300.0)
-            shown = default * (1609.344 / 1000.0 if system == "imperial" else 1.0)
-            typed = st.text_input(f"Flat pace, still air [{pace_label}, M:SS]",
-                                  value=format_pace(shown), key=f"flat_pace:{system}",
-                                  help="the pace you would hold for this race on flat ground")
-            seconds = parse_clock(typed, "flat pace")
-            per_km = seconds / (1609.344 / 1000.0) if system == "imperial" else seconds
-            if not FLAT_PACE_RANGE[0] <= per_km <= FLAT_PACE_RANGE[1]:
-                raise InputError(flat_pace_range_message(system))
-            st.session_state["si:flat_pace"] = per_km
-            values["flat_pace"] = per_km
-        cols = st.columns(3)
-        with cols[0]:
-            values["critical_speed"] = unit_number(
-                "Critical speed", "speed", system, "critical_speed", 4.5, 1.5, 7.0, 0.1,
-                help="the speed you can hold for about half an hour")
-        with cols[1]:
-            values["d_prime"] = unit_number("D′ [m]", None, system, "d_prime", 150.0, 10.0,
-                                            600.0, 5.0,
-                                            help="distance you can run beyond critical speed")
+        values.update(_runner_inputs(cols, system))
+    return values
+
+
+def _rider_inputs(cols, system: str) -> dict:
+    """Bike, physiology and position of a rider (the first row's last two columns, then a row
+    of their own); SI values."""
+    values: dict = {}
+    with cols[1]:
+        values["bike_mass"] = unit_number("Bike and kit", "mass", system, "bike_mass", 8.0,
+                                          3.0, 40.0, 0.1,
+                                          help="bike, bottles, shoes, helmet")
+    with cols[2]:
+        values["critical_power"] = unit_number(
+            "Critical power [W]", None, system, "critical_power", 280.0, 50.0, 600.0, 5.0,
+            help="the power you can hold for about half an hour to an hour")
+        values["w_prime"] = 1000.0 * unit_number(
+            "W′ [kJ]", None, system, "w_prime_kj", 20.0, 1.0, 60.0, 0.5,
+            help="work you can do above critical power before you must ease off")
+    cols = st.columns(3)
+    with cols[0]:
+        preset = st.selectbox("Riding position", list(text.DRAG_AREA_PRESETS),
+                              key="cda_preset", help=text.DRAG_AREA_GUIDE)
+        chosen = text.DRAG_AREA_PRESETS[preset]
+        if chosen is None:
+            values["drag_area"] = unit_number("CdA [m²]", None, system, "cda", 0.30, 0.10,
+                                              0.80, 0.005, help=text.DRAG_AREA_GUIDE)
+        else:
+            values["drag_area"] = chosen
+    with cols[1]:
+        preset = st.selectbox("Road surface", list(text.ROLLING_PRESETS), key="crr_preset",
+                              help=text.ROLLING_GUIDE)
+        chosen = text.ROLLING_PRESETS[preset]
+        if chosen is None:
+            values["rolling_coefficient"] = unit_number(
+                "Crr [-]", None, system, "crr", 0.0032, 0.001, 0.05, 0.0005,
+                help=text.ROLLING_GUIDE)
+        else:
+            values["rolling_coefficient"] = chosen
+    with cols[2]:
+        values["drivetrain_efficiency"] = unit_number(
+            "Drivetrain efficiency [%]", None, system, "efficiency_pct", 97.6, 85.0,
+            100.0, 0.1, help="share of crank power reaching the wheel; Martin et al. "
+                             "(1998) measured 97.6 %") / 100.0
+    with st.expander("What the CdA and Crr values mean"):
+        st.markdown(text.DRAG_AREA_GUIDE)
+        st.markdown(text.ROLLING_GUIDE)
+    return values
+
+
+def _runner_inputs(cols, system: str) -> dict:
+    """Height, flat pace, critical speed and D′ of a runner; SI values."""
+    values: dict = {}
+    with cols[1]:
+        values["height"] = unit_number("Height", "elevation", system, "height", 1.78,
+                                       1.2, 2.2, 0.01)
+    with cols[2]:
+        pace_label = unit_label("pace", system)
+        default = st.session_state.get("si:flat_pace", 300.0)
+        shown = default * (1609.344 / 1000.0 if system == "imperial" else 1.0)
+        typed = st.text_input(f"Flat pace, still air [{pace_label}, M:SS]",
+                              value=format_pace(shown), key=f"flat_pace:{system}",
+                              help="the pace you would hold for this race on flat ground")
+        seconds = parse_clock(typed, "flat pace")
+        per_km = seconds / (1609.344 / 1000.0) if system == "imperial" else seconds
+        if not FLAT_PACE_RANGE[0] <= per_km <= FLAT_PACE_RANGE[1]:
+            raise InputError(flat_pace_range_message(system))
+        st.session_state["si:flat_pace"] = per_km
+        values["flat_pace"] = per_km
+    cols = st.columns(3)
+    with cols[0]:
+        values["critical_speed"] = unit_number(
+            "Critical speed", "speed", system, "critical_speed", 4.5, 1.5, 7.0, 0.1,
+            help="the speed you can hold for about half an hour")
+    with cols[1]:
+        values["d_prime"] = unit_number("D′ [m]", None, system, "d_prime", 150.0, 10.0,
+                                        600.0, 5.0,
+                                        help="distance you can run beyond critical speed")
     return values
 
 
