@@ -10,6 +10,7 @@ import sys
 
 import pytest
 
+import pacing
 from pacing.athlete import Athlete, Setup
 from pacing.cli import main
 from pacing.store.library import open_library
@@ -68,6 +69,15 @@ def test_show_each_kind(capsys, database, tmp_path):
     assert code == 0 and "610.0" in out and gpx_copy.read_bytes() == GPX
     code, out, _ = run(capsys, "library", "--database", database, "show", "plan", "1")
     assert code == 0 and "251.25" in out and '"course_id": 1' in out and "1:02:05" in out
+
+
+def test_saved_plans_show_the_version_of_pacing_that_made_them(capsys, database):
+    code, out, _ = run(capsys, "library", "--database", database, "list")
+    header, row = out.split("saved plans (1)\n")[1].splitlines()[:2]
+    assert header.endswith("made by pacing")
+    assert row.split()[-1] == pacing.__version__
+    code, out, _ = run(capsys, "library", "--database", database, "show", "plan", "1")
+    assert f"made by pacing  {pacing.__version__}" in out
 
 
 def test_export_to_standard_output_and_to_a_file(capsys, database, tmp_path):

@@ -53,12 +53,24 @@ the stored number)."""
 
 
 def _first_line(error: Exception) -> str:
-    text = str(error).strip()
-    return text.splitlines()[0] if text else type(error).__name__
+    """The first line of an error's message (its class name when it has none)."""
+    message = str(error).strip()
+    return message.splitlines()[0] if message else type(error).__name__
 
 
 def error_message(error: Exception) -> str:
-    """One line for the page; a conflict says plainly that another window changed it."""
+    """One line for the page; a conflict says plainly that another window changed it.
+
+    Parameters
+    ----------
+    error : Exception
+        A refusal (InputError, ConflictError) or a file's decoding error.
+
+    Returns
+    -------
+    str
+        The first line of its message; for a ConflictError, CONFLICT_MESSAGE before it.
+    """
     if isinstance(error, ConflictError):
         return f"{CONFLICT_MESSAGE}: {_first_line(error)}"
     return _first_line(error)
@@ -73,12 +85,32 @@ def page_plan_inputs(course_gpx: bytes, course_name: str, course, bounds, athlet
 
     Parameters
     ----------
-    course_gpx : the course file's bytes; course_name : its label; course : the Course made
-    from it (for its distance [m] and ascent [m]); bounds : segment boundary point indices;
-    athlete, weather, approach : ui.sections dicts (SI); smoothing : {"window" [m],
-    "max_grade" [-]}; allow_flat : a file without heights was read as flat; split : how
-    the page cut the course (ui.sections.split_inputs: "mode", "length" [m], "marks" [m]),
-    kept so "Show in the page" can set the same choice again.
+    course_gpx : bytes
+        The course file as uploaded or read [bytes].
+    course_name : str
+        Its label.
+    course : pacing.course.geometry.Course
+        The course made from it (for its distance [m] and ascent [m]).
+    bounds : sequence of int
+        Segment boundary point indices [-].
+    athlete : dict
+        ui.sections athlete and equipment inputs (SI).
+    weather : dict
+        ui.sections weather inputs (SI; Conditions fields).
+    approach : dict
+        ui.sections approach inputs (SI).
+    smoothing : dict
+        ``{"window": [m], "max_grade": [-]}``: how the elevation was cleaned.
+    allow_flat : bool
+        A file without heights was read as flat.
+    split : dict or None
+        How the page cut the course (ui.sections.split_inputs: ``"mode"``, ``"length"`` [m],
+        ``"marks"`` [m]), kept so "Show in the page" can set the same choice again.
+
+    Returns
+    -------
+    dict
+        The plan inputs described in ui.library_panel (SI).
     """
     return {
         "course_gpx": bytes(course_gpx),
@@ -100,10 +132,26 @@ def page_plan_inputs(course_gpx: bytes, course_name: str, course, bounds, athlet
 
 
 def plan_result(outcome, weather: dict | None = None, approach: dict | None = None) -> dict:
-    """The `current_result` of render_library from a ui.pipeline.Outcome: the keys of
-    pacing.store.records.PLAN_RESULT_KEYS (finish_time [s], time_saved [s] or None, targets as one
-    dict of SI numbers per segment, strategy and weather as given)."""
-    targets = [dataclasses.asdict(row) if dataclasses.is_dataclass(row) else dict(row)
+    """The `current_result` of render_library from a ui.pipeline.Outcome.
+
+    Parameters
+    ----------
+    outcome : ui.pipeline.Outcome
+        The page's predicted race (finish_time [s], time_saved [s] or None, rows).
+    weather : dict or None
+        The weather inputs it used (SI), saved as the plan's weather.
+    approach : dict or None
+        The approach inputs it used (SI), saved as the plan's strategy.
+
+    Returns
+    -------
+    dict
+        The keys of pacing.store.records.PLAN_RESULT_KEYS: finish_time [s], time_saved [s]
+        or None, targets as one dict of SI numbers per segment, strategy and weather as
+        given.
+    """
+    targets = [dataclasses.asdict(row)
+               if dataclasses.is_dataclass(row) and not isinstance(row, type) else dict(row)
                for row in outcome.rows]
     return {
         "strategy": None if approach is None else dict(approach),
@@ -115,8 +163,26 @@ def plan_result(outcome, weather: dict | None = None, approach: dict | None = No
 
 
 def recompute_plan(inputs: Mapping[str, Any], gpx: bytes) -> dict:
-    """Work a saved plan out again from its inputs (as page_plan_inputs made them) and its
-    course file, through the same calls as the page (ui.pipeline)."""
+    """Work a saved plan out again from its inputs and its course file, through the same
+    calls as the page (ui.pipeline).
+
+    Parameters
+    ----------
+    inputs : Mapping
+        The saved plan's inputs, as page_plan_inputs made them (SI).
+    gpx : bytes
+        Its stored course file [bytes].
+
+    Returns
+    -------
+    dict
+        The result as plan_result gives it.
+
+    Raises
+    ------
+    InputError
+        Inputs not made by the page, or a course or plan the page would refuse.
+    """
     from ui import pipeline
 
     try:
@@ -134,8 +200,20 @@ def recompute_plan(inputs: Mapping[str, Any], gpx: bytes) -> dict:
 
 
 def library_compute(library) -> Callable[[dict], dict]:
-    """compute(inputs) -> result for pacing.store.reproduce.reproduce_plan, reading the plan's
-    course file from `library`."""
+    """The computation that works saved plans out again, for
+    pacing.store.reproduce.reproduce_plan.
+
+    Parameters
+    ----------
+    library : pacing.store.library.Library
+        The open library, which holds the plans' course files.
+
+    Returns
+    -------
+    callable
+        ``compute(inputs) -> result``: recompute_plan on the course named by the inputs'
+        ``course_id`` (InputError when they name none).
+    """
     def compute(inputs: dict) -> dict:
         course_id = inputs.get("course_id")
         if course_id is None:
@@ -146,7 +224,26 @@ def library_compute(library) -> Callable[[dict], dict]:
 
 
 def store_course(library, name: str, gpx: bytes, distance: float, ascent: float) -> int:
-    """Id of the stored course with exactly this GPX file, storing it first if new."""
+    """Id of the stored course with exactly this GPX file, storing it first if new.
+
+    Parameters
+    ----------
+    library : pacing.store.library.Library
+        The open library.
+    name : str
+        Label, if the course is new.
+    gpx : bytes
+        The course file [bytes].
+    distance : float
+        Course length, if the course is new [m].
+    ascent : float
+        Total climbing, if the course is new [m].
+
+    Returns
+    -------
+    int
+        The course's library id (the oldest one holding this file).
+    """
     found = library.find_courses(gpx)
     if found:
         return found[0].id
@@ -156,7 +253,33 @@ def store_course(library, name: str, gpx: bytes, distance: float, ascent: float)
 def save_current_plan(library, name: str, notes: str, current_inputs: Mapping[str, Any],
                       current_result: Mapping[str, Any], athlete_id: int | None = None,
                       setup_id: int | None = None):
-    """Save the page's plan (its course file stored once); returns the PlanRecord."""
+    """Save the page's plan, its course file stored once (store_course).
+
+    The library records the version of pacing that made the plan.
+
+    Parameters
+    ----------
+    library : pacing.store.library.Library
+        The open library.
+    name : str
+        The plan's label.
+    notes : str
+        The coach's free text.
+    current_inputs : Mapping
+        The page's plan inputs (page_plan_inputs); ``course_gpx`` is stored as a course and
+        replaced by its ``course_id``.
+    current_result : Mapping
+        The page's plan result (plan_result).
+    athlete_id : int or None
+        Library id of the athlete to file it under, or None.
+    setup_id : int or None
+        Library id of the setup to file it under, or None.
+
+    Returns
+    -------
+    pacing.store.records.PlanRecord
+        The saved plan.
+    """
     inputs = {k: v for k, v in current_inputs.items() if k != "course_gpx"}
     gpx = current_inputs.get("course_gpx")
     if gpx:
@@ -174,10 +297,23 @@ def save_current_plan(library, name: str, notes: str, current_inputs: Mapping[st
 # ------------------------------------------------------------------------ page values
 
 def page_values(athlete, setup=None) -> dict:
-    """SI values of a stored athlete (and setup) under the page's keys (ui.sections):
-    body_mass, critical_power, w_prime, height, flat_pace, critical_speed, d_prime, and
-    with a setup bike_mass, drag_area, power_share, rolling_coefficient,
-    drivetrain_efficiency. Unknown values (None) are left out."""
+    """SI values of a stored athlete (and setup) under the page's keys (ui.sections).
+
+    Parameters
+    ----------
+    athlete : pacing.athlete.Athlete
+        The stored athlete (SI).
+    setup : pacing.athlete.Setup or None
+        The stored setup (SI), or None for the athlete alone.
+
+    Returns
+    -------
+    dict
+        body_mass [kg], critical_power [W], w_prime [J], height [m], flat_pace [s/km],
+        critical_speed [m/s], d_prime [m], and with a setup bike_mass [kg], drag_area [m²],
+        power_share [-], rolling_coefficient [-], drivetrain_efficiency [-]. Unknown values
+        (None) are left out.
+    """
     values = {key: getattr(athlete, key) for key in ATHLETE_KEYS
               if getattr(athlete, key) is not None}
     if setup is not None:
@@ -186,14 +322,42 @@ def page_values(athlete, setup=None) -> dict:
 
 
 def athlete_from_page(name: str, values: Mapping[str, Any]):
-    """pacing.athlete.Athlete from the page's athlete dict (SI)."""
+    """An Athlete from the page's athlete dict.
+
+    Parameters
+    ----------
+    name : str
+        The athlete's name.
+    values : Mapping
+        The page's athlete inputs (SI, keys of ATHLETE_KEYS; None or missing values take the
+        Athlete defaults).
+
+    Returns
+    -------
+    pacing.athlete.Athlete
+        The athlete (InputError if a value is out of range).
+    """
     from pacing.athlete import Athlete
 
     return Athlete(name=name, **{k: values[k] for k in ATHLETE_KEYS if values.get(k) is not None})
 
 
 def setup_from_page(name: str, values: Mapping[str, Any]):
-    """pacing.athlete.Setup from the page's athlete dict (SI)."""
+    """A Setup from the page's athlete dict.
+
+    Parameters
+    ----------
+    name : str
+        The setup's name.
+    values : Mapping
+        The page's athlete and equipment inputs (SI, keys of SETUP_KEYS; None or missing
+        values take the Setup defaults).
+
+    Returns
+    -------
+    pacing.athlete.Setup
+        The setup (InputError if a value is out of range).
+    """
     from pacing.athlete import Setup
 
     return Setup(name=name, **{k: values[k] for k in SETUP_KEYS if values.get(k) is not None})
@@ -209,29 +373,13 @@ def _split_marks_text(marks, system: str) -> str:
     return ", ".join(f"{v:.4f}".rstrip("0").rstrip(".") for v in shown)
 
 
-def plan_page_state(inputs: Mapping[str, Any], system: str, course=None) -> dict:
-    """The page's widget states that show a saved plan (pure; `open_plan_in_page` applies
-    them): sport, plan radio and its limits, smoothing, "file without heights", terrain and
-    the segment choice. Numbers under ui.widgets stores are returned as "si:<key>" entries
-    (SI or the stored factor, see PAGE_WIDGETS).
-
-    Parameters
-    ----------
-    inputs : the saved plan inputs (page_plan_inputs).
-    system : "metric" or "imperial": the page's units, for the split marks' text.
-    course : the Course of the saved file; only needed for plans saved without their segment
-        choice, whose saved bounds then become "my own marks" at those points' distances.
-    """
-    from pacing.display.units import format_duration
-    from pacing.physics.wind import ROUGHNESS_LENGTHS
-    from ui import text
-
+def _number_states(inputs: Mapping[str, Any]) -> dict:
+    """The ui.widgets number stores ("si:<key>") of the athlete, weather, approach and
+    smoothing, and the "file without heights" box."""
     state: dict = {}
-    athlete = inputs.get("athlete") or {}
-    weather = inputs.get("weather") or {}
-    approach = inputs.get("approach") or {}
     smoothing = inputs.get("smoothing") or {}
-    values = {**athlete, **weather, **approach}
+    values = {**(inputs.get("athlete") or {}), **(inputs.get("weather") or {}),
+              **(inputs.get("approach") or {})}
     for key, value in values.items():
         if key in PAGE_WIDGETS and value is not None:
             store, factor = PAGE_WIDGETS[key]
@@ -242,6 +390,15 @@ def plan_page_state(inputs: Mapping[str, Any], system: str, course=None) -> dict
         state["si:max_grade_pct"] = float(smoothing["max_grade"]) * 100.0
     if "allow_flat" in smoothing:
         state["allow_flat"] = bool(smoothing["allow_flat"])
+    return state
+
+
+def _approach_states(athlete: Mapping[str, Any], approach: Mapping[str, Any]) -> dict:
+    """The sport, the approach radio (cycling or running labels), the target time and the
+    "coast on descents" box."""
+    from ui import text
+
+    state: dict = {}
     sport = athlete.get("sport")
     if sport in ("cycling", "running"):
         state["sport"] = sport
@@ -254,6 +411,14 @@ def plan_page_state(inputs: Mapping[str, Any], system: str, course=None) -> dict
         state["target_time"] = format_duration(float(approach["target_time"]))
     if "allow_zero_on_descents" in approach:
         state["coast_descents"] = bool(approach["allow_zero_on_descents"])
+    return state
+
+
+def _preset_states(athlete: Mapping[str, Any]) -> dict:
+    """The CdA and Crr choices switched to "my own value" where the plan has its own."""
+    from ui import text
+
+    state: dict = {}
     if athlete.get("drag_area") is not None:
         own = next((k for k, v in text.DRAG_AREA_PRESETS.items() if v is None), None)
         if own is not None:
@@ -262,11 +427,23 @@ def plan_page_state(inputs: Mapping[str, Any], system: str, course=None) -> dict
         own = next((k for k, v in text.ROLLING_PRESETS.items() if v is None), None)
         if own is not None:
             state["crr_preset"] = own
+    return state
+
+
+def _terrain_state(weather: Mapping[str, Any]) -> dict:
+    """The terrain choice whose roughness length [m] is the plan's (to 1e-12 m)."""
+    from pacing.physics.wind import ROUGHNESS_LENGTHS
+
     roughness = weather.get("roughness_length")
     terrain = next((k for k, v in ROUGHNESS_LENGTHS.items() if roughness is not None
                     and abs(v - float(roughness)) <= 1e-12), None)
-    if terrain is not None:
-        state["terrain"] = terrain
+    return {} if terrain is None else {"terrain": terrain}
+
+
+def _split_states(inputs: Mapping[str, Any], system: str, course) -> dict:
+    """The segment choice: the saved one, or for plans saved without it their bounds as
+    "my own marks" (needs the course)."""
+    state: dict = {}
     split = inputs.get("split")
     if split:
         state["split_mode"] = split["mode"]
@@ -283,15 +460,56 @@ def plan_page_state(inputs: Mapping[str, Any], system: str, course=None) -> dict
     return state
 
 
+def plan_page_state(inputs: Mapping[str, Any], system: str, course=None) -> dict:
+    """The page's widget states that show a saved plan (pure; `open_plan_in_page` applies
+    them): sport, plan radio and its limits, smoothing, "file without heights", terrain and
+    the segment choice. Numbers under ui.widgets stores are returned as "si:<key>" entries
+    (SI or the stored factor, see PAGE_WIDGETS).
+
+    Parameters
+    ----------
+    inputs : Mapping
+        The saved plan inputs (page_plan_inputs, SI).
+    system : str
+        "metric" or "imperial": the page's units, for the split marks' text.
+    course : pacing.course.geometry.Course or None
+        The course of the saved file; only needed for plans saved without their segment
+        choice, whose saved bounds then become "my own marks" at those points' distances.
+
+    Returns
+    -------
+    dict
+        Session-state key → value for every widget the plan sets.
+    """
+    athlete = inputs.get("athlete") or {}
+    return {**_number_states(inputs),
+            **_approach_states(athlete, inputs.get("approach") or {}),
+            **_preset_states(athlete),
+            **_terrain_state(inputs.get("weather") or {}),
+            **_split_states(inputs, system, course)}
+
 
 # ------------------------------------------------------------------------ tables
 
 def _stamp(value) -> str:
+    """A stored time (UTC) to the minute, "" for None."""
     return value.strftime("%Y-%m-%d %H:%M UTC") if value is not None else ""
 
 
 def plans_table(plans) -> pd.DataFrame:
-    """Saved plans (PlanSummary) as a table, newest first."""
+    """Saved plans as a table, in the order given (the library lists newest first).
+
+    Parameters
+    ----------
+    plans : sequence of pacing.store.records.PlanSummary
+        The saved plans.
+
+    Returns
+    -------
+    pandas.DataFrame
+        Plan, finish [h:mm:ss], time gained on even power [s], when saved (UTC), the version
+        of pacing that made it, notes.
+    """
     return pd.DataFrame({
         "Plan": [p.name for p in plans],
         "Finish [h:mm:ss]": [format_duration(p.finish_time) for p in plans],
@@ -304,15 +522,65 @@ def plans_table(plans) -> pd.DataFrame:
                 "Made with pacing", "Notes"])
 
 
+def version_caption(summary) -> str:
+    """Which version of pacing made a saved plan, and whether it is another than this one.
+
+    Parameters
+    ----------
+    summary : pacing.store.records.PlanSummary
+        The saved plan's summary (its ``library_version``).
+
+    Returns
+    -------
+    str
+        E.g. "made with pacing 0.1.0"; for another version, a reminder that working the plan
+        out again may give other numbers.
+    """
+    import pacing
+
+    made = f"made with pacing {summary.library_version}"
+    if summary.library_version == pacing.__version__:
+        return made
+    return (f"{made}; this is pacing {pacing.__version__}, so working it out again may give "
+            "other numbers")
+
+
 def targets_frame(targets: list, system: str) -> pd.DataFrame:
-    """A saved target table (dicts of SI numbers) with units on every column."""
+    """A saved target table with units on every column.
+
+    Parameters
+    ----------
+    targets : list of dict
+        The saved target table, one dict of SI numbers per segment.
+    system : str
+        "metric" or "imperial".
+
+    Returns
+    -------
+    pandas.DataFrame
+        As pacing.io.exports.segment_table shows it (InputError if it cannot).
+    """
     from pacing.io.exports import segment_table
 
     return segment_table(targets, system)
 
 
 def inputs_summary(inputs: Mapping[str, Any], system: str) -> list[str]:
-    """A saved plan's main inputs as short lines with units."""
+    """A saved plan's main inputs as short lines with units.
+
+    Parameters
+    ----------
+    inputs : Mapping
+        The saved plan inputs (page_plan_inputs, SI).
+    system : str
+        "metric" or "imperial".
+
+    Returns
+    -------
+    list of str
+        Course, athlete, setup, weather and plan lines, each only when the inputs hold it
+        (lines with a missing number left out).
+    """
     lines = []
     name = inputs.get("course_name")
     if name:

@@ -33,7 +33,6 @@ from pacing.errors import ConflictError, InputError
 from ui.library_data import (
     LIBRARY_COURSE,
     PAGE_WIDGETS,
-    _first_line,
     athlete_from_page,
     error_message,
     inputs_summary,
@@ -46,6 +45,7 @@ from ui.library_data import (
     save_current_plan,
     setup_from_page,
     targets_frame,
+    version_caption,
 )
 
 # ------------------------------------------------------------------------ page inputs
@@ -53,7 +53,14 @@ from ui.library_data import (
 def fill_page_inputs(values: Mapping[str, Any]) -> None:
     """Put library values into the page's inputs (use as a button's on_click, which runs
     before the page is drawn again): the SI stores of ui.widgets.unit_number are set, their
-    widgets re-made, and the CdA and Crr choices switched to "my own value"."""
+    widgets re-made, and the CdA and Crr choices switched to "my own value".
+
+    Parameters
+    ----------
+    values : Mapping
+        Page values (SI) under the page's keys, as library_data.page_values gives them;
+        keys the page does not keep as numbers, and None values, are skipped.
+    """
     from ui import text
 
     for key, value in values.items():
@@ -74,7 +81,17 @@ def fill_page_inputs(values: Mapping[str, Any]) -> None:
 def open_plan_in_page(library, inputs: Mapping[str, Any], plan_name: str = "") -> None:
     """Show a saved plan in the page (a button's on_click, run before the page is drawn
     again): its stored course file (LIBRARY_COURSE), then every input plan_page_state gives.
-    A plan that cannot be shown leaves the page as it was and says why."""
+    A plan that cannot be shown leaves the page as it was and says why.
+
+    Parameters
+    ----------
+    library : pacing.store.library.Library
+        The open library (for the plan's course file).
+    inputs : Mapping
+        The saved plan's inputs (library_data.page_plan_inputs, SI).
+    plan_name : str
+        The saved plan's name, for the page's message.
+    """
     try:
         course = None
         gpx = None
@@ -112,12 +129,15 @@ def open_plan_in_page(library, inputs: Mapping[str, Any], plan_name: str = "") -
 
 @st.cache_resource(max_entries=4, show_spinner=False)
 def _open(location_key: str, _location):
+    """The library at `_location`, opened once per `location_key` and kept (Streamlit's
+    resource cache)."""
     from pacing.store.library import open_library
 
     return open_library(_location)
 
 
 def _library(location):
+    """The open library at `location` (None: PACING_DATABASE_URL, else the default file)."""
     import os
 
     key = (os.environ.get("PACING_DATABASE_URL", "") if location is None else str(location))
@@ -142,21 +162,28 @@ def render_library(current_inputs: dict | None, current_result: dict | None, sys
 
     Parameters
     ----------
-    current_inputs : the page's plan inputs (`page_plan_inputs`), or None.
-    current_result : the page's plan result (`plan_result`), or None when there is none.
-    system : "metric" or "imperial".
-    location : database path or SQLAlchemy URL; None for PACING_DATABASE_URL, else the
-        user's data directory (pacing.store.library.open_library).
-    compute : compute(inputs) -> result for working a saved plan out again; None uses
+    current_inputs : dict or None
+        The page's plan inputs (`page_plan_inputs`, SI), or None.
+    current_result : dict or None
+        The page's plan result (`plan_result`), or None when there is none.
+    system : str
+        "metric" or "imperial".
+    location : str or os.PathLike or None
+        Database path or SQLAlchemy URL; None for PACING_DATABASE_URL, else the user's data
+        directory (pacing.store.library.open_library).
+    compute : callable or None
+        ``compute(inputs) -> result`` for working a saved plan out again; None uses
         `library_compute` (plans saved from the page).
 
     Returns
     -------
-    None, or in the run where the user asks for it a dict:
-    {"action": "use", "athlete_id", "athlete": Athlete, "setup_id" (or None),
-     "setup": Setup or None, "values": page_values(...)}  — the page's inputs are also filled
-     (fill_page_inputs) before the page is drawn again;
-    {"action": "open", "plan_id", "plan": PlanRecord, "inputs": dict} — a saved plan to show.
+    dict or None
+        None, or in the run where the user asks for it:
+        ``{"action": "use", "athlete_id", "athlete": Athlete, "setup_id" (or None),
+        "setup": Setup or None, "values": page_values(...)}`` (the page's inputs are also
+        filled by fill_page_inputs before the page is drawn again), or
+        ``{"action": "open", "plan_id", "plan": PlanRecord, "inputs": dict}`` (a saved plan
+        to show).
     """
     st.subheader("Library")
     try:
@@ -186,6 +213,8 @@ def render_library(current_inputs: dict | None, current_result: dict | None, sys
 
 
 def _athletes_tab(library, current_inputs, system) -> dict | None:
+    """The "Athletes and setups" tab: choose a stored athlete and setup to fill the page,
+    delete them, or store the page's athlete and equipment. Returns the "use" action."""
     try:
         athletes = library.athletes()
     except (InputError, ConflictError) as error:
@@ -195,45 +224,66 @@ def _athletes_tab(library, current_inputs, system) -> dict | None:
     result = None
     record = None
     if athletes:
-        labels = {f"{a.athlete.name} · {a.athlete.body_mass:.1f} kg (#{a.id})": a
-                  for a in athletes}
-        label = st.selectbox("Athlete", list(labels), key="library_athlete")
-        record = labels[label]
-        st.session_state["library:athlete_id"] = record.id
-        setups = library.setups(record.id)
-        setup_labels = {f"{s.setup.name} · CdA {s.setup.drag_area:.3f} m² (#{s.id})": s
-                        for s in setups}
-        setup_labels["(the athlete only, no setup)"] = None
-        setup_label = st.selectbox("Setup", list(setup_labels), key="library_setup")
-        setup_record = setup_labels[setup_label]
-        st.session_state["library:setup_id"] = None if setup_record is None else setup_record.id
-        values = page_values(record.athlete, None if setup_record is None
-                             else setup_record.setup)
-        if st.button("Use in the page", key="library_use", on_click=fill_page_inputs,
-                     args=(values,), help="fills the athlete and equipment inputs"):
-            result = {"action": "use", "athlete_id": record.id, "athlete": record.athlete,
-                      "setup_id": None if setup_record is None else setup_record.id,
-                      "setup": None if setup_record is None else setup_record.setup,
-                      "values": values}
-        with st.expander("Delete…", expanded=False):
-            target = setup_record or record
-            what = (f"setup {setup_record.setup.name!r}" if setup_record is not None
-                    else f"athlete {record.athlete.name!r} with their setups and saved plans")
-            sure = st.checkbox(f"Yes, delete {what}", key=(
-                "library_delete_sure:" + ("setup" if setup_record is not None else "athlete")
-                + f":{target.id}"))
-            if st.button("Delete", key="library_delete_person", disabled=not sure):
-                if setup_record is not None:
-                    _report(lambda: library.delete_setup(target.id, confirm=True,
-                                                         revision=target.revision),
-                            f"Deleted {what}.")
-                else:
-                    _report(lambda: library.delete_athlete(target.id, confirm=True,
-                                                           revision=target.revision),
-                            f"Deleted {what}.")
+        record, result = _choose_athlete(library, athletes)
     else:
         st.caption("No athletes stored yet.")
-    with st.expander("Store the page's athlete and equipment", expanded=not athletes):
+    _store_page_athlete(library, page_athlete, record, expanded=not athletes)
+    return result
+
+
+def _choose_athlete(library, athletes) -> tuple[Any, dict | None]:
+    """Athlete and setup choices, "Use in the page" and "Delete…"; returns the chosen
+    athlete's record and, when "Use in the page" was pressed, the "use" action."""
+    labels = {f"{a.athlete.name} · {a.athlete.body_mass:.1f} kg (#{a.id})": a
+              for a in athletes}
+    label = st.selectbox("Athlete", list(labels), key="library_athlete")
+    record = labels[label]
+    st.session_state["library:athlete_id"] = record.id
+    setups = library.setups(record.id)
+    setup_labels = {f"{s.setup.name} · CdA {s.setup.drag_area:.3f} m² (#{s.id})": s
+                    for s in setups}
+    setup_labels["(the athlete only, no setup)"] = None
+    setup_label = st.selectbox("Setup", list(setup_labels), key="library_setup")
+    setup_record = setup_labels[setup_label]
+    st.session_state["library:setup_id"] = None if setup_record is None else setup_record.id
+    values = page_values(record.athlete, None if setup_record is None
+                         else setup_record.setup)
+    result = None
+    if st.button("Use in the page", key="library_use", on_click=fill_page_inputs,
+                 args=(values,), help="fills the athlete and equipment inputs"):
+        result = {"action": "use", "athlete_id": record.id, "athlete": record.athlete,
+                  "setup_id": None if setup_record is None else setup_record.id,
+                  "setup": None if setup_record is None else setup_record.setup,
+                  "values": values}
+    _delete_athlete_or_setup(library, record, setup_record)
+    return record, result
+
+
+def _delete_athlete_or_setup(library, record, setup_record) -> None:
+    """"Delete…": the chosen setup, or with no setup chosen the athlete with their setups and
+    saved plans, once the box is ticked."""
+    with st.expander("Delete…", expanded=False):
+        target = setup_record or record
+        what = (f"setup {setup_record.setup.name!r}" if setup_record is not None
+                else f"athlete {record.athlete.name!r} with their setups and saved plans")
+        sure = st.checkbox(f"Yes, delete {what}", key=(
+            "library_delete_sure:" + ("setup" if setup_record is not None else "athlete")
+            + f":{target.id}"))
+        if st.button("Delete", key="library_delete_person", disabled=not sure):
+            if setup_record is not None:
+                _report(lambda: library.delete_setup(target.id, confirm=True,
+                                                     revision=target.revision),
+                        f"Deleted {what}.")
+            else:
+                _report(lambda: library.delete_athlete(target.id, confirm=True,
+                                                       revision=target.revision),
+                        f"Deleted {what}.")
+
+
+def _store_page_athlete(library, page_athlete: dict, record, expanded: bool) -> None:
+    """"Store the page's athlete and equipment": as a new athlete (with a setup when
+    cycling), or as a new setup of the chosen athlete `record`."""
+    with st.expander("Store the page's athlete and equipment", expanded=expanded):
         cols = st.columns(2)
         name = cols[0].text_input("Athlete name", key="library_new_athlete")
         setup_name = cols[1].text_input("Setup name", value="race bike",
@@ -252,10 +302,10 @@ def _athletes_tab(library, current_inputs, system) -> dict | None:
             _report(lambda: library.add_setup(record.id,
                                               setup_from_page(setup_name, page_athlete)),
                     f"Stored setup {setup_name!r}.")
-    return result
 
 
 def _save_tab(library, current_inputs, current_result) -> None:
+    """The "Save this plan" tab: name, notes, filed under the chosen athlete and setup."""
     if not current_result or not current_inputs:
         st.caption("There is no plan to save yet: the page needs a predicted race.")
         return
@@ -277,6 +327,8 @@ def _save_tab(library, current_inputs, current_result) -> None:
 
 
 def _plans_tab(library, system: str, compute) -> dict | None:
+    """The "Saved plans" tab: the list, one plan's details, "Work it out again", "Show in
+    the page" (returns the "open" action) and "Delete this plan…"."""
     try:
         plans = library.plans()
     except (InputError, ConflictError) as error:
@@ -294,41 +346,60 @@ def _plans_tab(library, system: str, compute) -> dict | None:
     except (InputError, ConflictError) as error:
         st.error(error_message(error), icon="⚠️")
         return None
-    for line in inputs_summary(record.inputs, system):
-        st.caption(line)
-    if record.summary.notes:
-        st.caption(f"notes: {record.summary.notes}")
-    try:
-        st.dataframe(targets_frame(record.targets, system), hide_index=True,
-                     key="library_plan_targets")
-    except InputError as error:
-        st.error(f"Its target table cannot be shown: {error_message(error)}", icon="⚠️")
+    _plan_details(record, system)
     result = None
     cols = st.columns(2)
     if cols[0].button("Work it out again", key="library_reproduce",
                       help="recompute the plan from its inputs and compare the numbers"):
-        from pacing.store.reproduce import reproduce_plan
-
-        try:
-            report = reproduce_plan(record, compute)
-        except (InputError, ConflictError) as error:
-            st.error(f"It cannot be worked out again: {error_message(error)}", icon="⚠️")
-        else:
-            if report.same:
-                st.success(report.message().capitalize() + ".")
-            else:
-                st.warning(report.message().capitalize() + ".")
-                st.dataframe(pd.DataFrame({
-                    "Where": [d.where for d in report.differences],
-                    "Saved": [str(d.saved) for d in report.differences],
-                    "Now": [str(d.recomputed) for d in report.differences],
-                }), hide_index=True, key="library_differences")
+        _work_out_again(record, compute)
     if cols[1].button("Show in the page", key="library_open", on_click=open_plan_in_page,
                       args=(library, record.inputs, record.name),
                       help="the page takes the plan's stored course, segments, athlete, "
                            "equipment, weather and pacing approach"):
         result = {"action": "open", "plan_id": record.id, "plan": record,
                   "inputs": record.inputs}
+    _delete_plan(library, record)
+    return result
+
+
+def _plan_details(record, system: str) -> None:
+    """A saved plan's main inputs, notes, the version of pacing that made it and its target
+    table."""
+    for line in inputs_summary(record.inputs, system):
+        st.caption(line)
+    if record.summary.notes:
+        st.caption(f"notes: {record.summary.notes}")
+    st.caption(version_caption(record.summary))
+    try:
+        st.dataframe(targets_frame(record.targets, system), hide_index=True,
+                     key="library_plan_targets")
+    except InputError as error:
+        st.error(f"Its target table cannot be shown: {error_message(error)}", icon="⚠️")
+
+
+def _work_out_again(record, compute) -> None:
+    """Recompute a saved plan and say whether its numbers hold; if not, a table of every
+    value that differs."""
+    from pacing.store.reproduce import reproduce_plan
+
+    try:
+        report = reproduce_plan(record, compute)
+    except (InputError, ConflictError) as error:
+        st.error(f"It cannot be worked out again: {error_message(error)}", icon="⚠️")
+        return
+    if report.same:
+        st.success(report.message().capitalize() + ".")
+        return
+    st.warning(report.message().capitalize() + ".")
+    st.dataframe(pd.DataFrame({
+        "Where": [d.where for d in report.differences],
+        "Saved": [str(d.saved) for d in report.differences],
+        "Now": [str(d.recomputed) for d in report.differences],
+    }), hide_index=True, key="library_differences")
+
+
+def _delete_plan(library, record) -> None:
+    """"Delete this plan…", once the box is ticked."""
     with st.expander("Delete this plan…", expanded=False):
         sure = st.checkbox(f"Yes, delete the saved plan {record.name!r}",
                            key=f"library_delete_plan_sure:{record.id}")
@@ -336,10 +407,10 @@ def _plans_tab(library, system: str, compute) -> dict | None:
             _report(lambda: library.delete_plan(record.id, confirm=True,
                                                 revision=record.revision),
                     f"Deleted {record.name!r}.")
-    return result
 
 
 def _backup_tab(library) -> None:
+    """The "Backup" tab: download the library file, or bring one in (all or nothing)."""
     from pacing.store.library_file import dump_library_file, import_library
 
     st.download_button("Download the library (JSON)",
@@ -363,7 +434,7 @@ def _backup_tab(library) -> None:
                      icon="⚠️")
             return
         except (UnicodeDecodeError, ValueError) as error:
-            st.error(f"The file was refused, nothing changed: {_first_line(error)}",
+            st.error(f"The file was refused, nothing changed: {error_message(error)}",
                      icon="⚠️")
             return
         st.session_state["library:imported"] = digest
@@ -378,7 +449,42 @@ def render_library_for_page(course_gpx: bytes | None, course_name: str | None, c
                             location=None, split: dict | None = None) -> dict | None:
     """`render_library` from app.py's own variables: the plan inputs and result are built
     here (page_plan_inputs, plan_result) when the page has a course, inputs and a predicted
-    race; otherwise the panel still offers the athletes, saved plans and backup."""
+    race; otherwise the panel still offers the athletes, saved plans and backup.
+
+    Parameters
+    ----------
+    course_gpx : bytes or None
+        The page's course file [bytes], or None.
+    course_name : str or None
+        Its label.
+    course : pacing.course.geometry.Course or None
+        The course made from it.
+    bounds : sequence of int or None
+        Segment boundary point indices [-].
+    athlete : dict or None
+        ui.sections athlete and equipment inputs (SI).
+    weather : dict or None
+        ui.sections weather inputs (SI).
+    approach : dict or None
+        ui.sections approach inputs (SI).
+    smoothing : dict
+        ``{"window": [m], "max_grade": [-]}``.
+    allow_flat : bool
+        A file without heights was read as flat.
+    outcome : ui.pipeline.Outcome or None
+        The page's predicted race, or None.
+    system : str
+        "metric" or "imperial".
+    location : str or os.PathLike or None
+        Database path or SQLAlchemy URL; None for PACING_DATABASE_URL, else the default file.
+    split : dict or None
+        How the page cut the course (ui.sections.split_inputs).
+
+    Returns
+    -------
+    dict or None
+        As render_library.
+    """
     inputs = None
     if (course_gpx and course is not None and bounds is not None and athlete
             and approach is not None):

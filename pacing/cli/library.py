@@ -7,7 +7,8 @@
 
 The library is the SQLite file in the user's data directory unless --database or the
 environment variable PACING_DATABASE_URL names another (a file path or an SQLAlchemy URL).
-Values are shown in SI units, times as H:MM:SS.
+Values are shown in SI units, times as H:MM:SS. Saved plans show the version of pacing that
+made them.
 """
 
 from __future__ import annotations
@@ -15,15 +16,28 @@ from __future__ import annotations
 import argparse
 import json
 import sys
+from collections.abc import Callable
 from pathlib import Path
-from typing import Any
+from typing import TYPE_CHECKING, Any
 
 from pacing.errors import ConflictError, InputError
 
+if TYPE_CHECKING:  # the store (SQLAlchemy) is imported only when a library command runs
+    from pacing.store.library import Library
+    from pacing.store.records import PlanRecord
+
+#: What `show` can show.
 KINDS = ("athlete", "setup", "course", "plan")
 
 
 def add_parser(subparsers: argparse._SubParsersAction) -> None:
+    """Add ``library`` and its actions (list, show, export, import) to the command line.
+
+    Parameters
+    ----------
+    subparsers : argparse._SubParsersAction
+        The ``pacing`` parser's subcommands.
+    """
     parser = subparsers.add_parser(
         "library",
         help="list, show, export or import the stored athletes, setups, courses and plans",
@@ -51,6 +65,18 @@ def add_parser(subparsers: argparse._SubParsersAction) -> None:
 
 
 def run(args: argparse.Namespace) -> int:
+    """Open the library and run the chosen action.
+
+    Parameters
+    ----------
+    args : argparse.Namespace
+        The parsed command line (``database``, ``action`` and the action's own flags).
+
+    Returns
+    -------
+    int
+        The exit code: 0; a refusal raises InputError (exit code 2 in pacing.cli.main).
+    """
     from pacing.store.library import open_library
 
     try:
@@ -63,7 +89,18 @@ def run(args: argparse.Namespace) -> int:
 # ---------------------------------------------------------------------------------------------
 
 def clock(seconds: float | None) -> str:
-    """Seconds as H:MM:SS ("-" for None); negative values keep their sign."""
+    """A duration as H:MM:SS, rounded to the second; negative values keep their sign.
+
+    Parameters
+    ----------
+    seconds : float or None
+        The duration [s]; None for unknown.
+
+    Returns
+    -------
+    str
+        E.g. ``"1:02:05"``; ``"-"`` for None.
+    """
     if seconds is None:
         return "-"
     sign = "-" if seconds < 0 else ""
@@ -72,11 +109,38 @@ def clock(seconds: float | None) -> str:
 
 
 def number(value: float | None, digits: int = 1) -> str:
+    """A number with a fixed count of decimals, ``"-"`` for None.
+
+    Parameters
+    ----------
+    value : float or None
+        The number, in the unit its label names.
+    digits : int
+        Decimals shown [-].
+
+    Returns
+    -------
+    str
+        The number as text.
+    """
     return "-" if value is None else f"{value:.{digits}f}"
 
 
 def table(headers: list[str], rows: list[list[str]]) -> str:
-    """Plain text columns, left-aligned, two spaces apart."""
+    """Plain text columns, left-aligned, two spaces apart.
+
+    Parameters
+    ----------
+    headers : list of str
+        Column titles (with their units).
+    rows : list of list of str
+        The cells, one list per row, as many as `headers`.
+
+    Returns
+    -------
+    str
+        The lines of the table, without trailing blanks or a final newline.
+    """
     cells = [headers] + rows
     widths = [max(len(row[i]) for row in cells) for i in range(len(headers))]
     lines = ["  ".join(cell.ljust(width) for cell, width in zip(row, widths, strict=True))
@@ -85,107 +149,125 @@ def table(headers: list[str], rows: list[list[str]]) -> str:
     return "\n".join(lines)
 
 
-def _list(library, _args) -> int:
+def _section(title: str, headers: list[str], rows: list[list[str]]) -> None:
+    """Print a titled table with its entry count (the title alone when it is empty)."""
+    print(f"\n{title} ({len(rows)})")
+    if rows:
+        print(table(headers, rows))
+
+
+def _list(library: Library, _args: argparse.Namespace) -> int:
+    """``library list``: every athlete, setup, course and saved plan, one table each."""
     athletes = library.athletes()
     names = {record.id: record.athlete.name for record in athletes}
     courses = library.courses()
     course_names = {course.id: course.name for course in courses}
     print(f"library: {library.location}")
-    print(f"\nathletes ({len(athletes)})")
-    if athletes:
-        print(table(["id", "name", "body mass [kg]", "critical power [W]", "W' [J]"],
-                    [[str(r.id), r.athlete.name, number(r.athlete.body_mass),
-                      number(r.athlete.critical_power, 0), number(r.athlete.w_prime, 0)]
-                     for r in athletes]))
-    setups = library.setups()
-    print(f"\nsetups ({len(setups)})")
-    if setups:
-        print(table(["id", "athlete", "name", "bike mass [kg]", "CdA [m²]", "Crr"],
-                    [[str(r.id), names.get(r.athlete_id, str(r.athlete_id)), r.setup.name,
-                      number(r.setup.bike_mass), number(r.setup.drag_area, 3),
-                      number(r.setup.rolling_coefficient, 4)] for r in setups]))
-    print(f"\ncourses ({len(courses)})")
-    if courses:
-        print(table(["id", "name", "distance [m]", "ascent [m]", "GPX [bytes]"],
-                    [[str(c.id), c.name, number(c.distance_m, 0), number(c.ascent_m, 0),
-                      str(c.gpx_size)] for c in courses]))
-    plans = library.plans()
-    print(f"\nsaved plans ({len(plans)})")
-    if plans:
-        print(table(["id", "name", "athlete", "course", "finish", "saved [s]", "updated (UTC)"],
-                    [[str(p.id), p.name, names.get(p.athlete_id, "-"),
-                      course_names.get(p.course_id, "-"), clock(p.finish_time),
-                      number(p.time_saved), p.updated_at.strftime("%Y-%m-%d %H:%M")]
-                     for p in plans]))
+    _section("athletes", ["id", "name", "body mass [kg]", "critical power [W]", "W' [J]"],
+             [[str(r.id), r.athlete.name, number(r.athlete.body_mass),
+               number(r.athlete.critical_power, 0), number(r.athlete.w_prime, 0)]
+              for r in athletes])
+    _section("setups", ["id", "athlete", "name", "bike mass [kg]", "CdA [m²]", "Crr"],
+             [[str(r.id), names.get(r.athlete_id, str(r.athlete_id)), r.setup.name,
+               number(r.setup.bike_mass), number(r.setup.drag_area, 3),
+               number(r.setup.rolling_coefficient, 4)] for r in library.setups()])
+    _section("courses", ["id", "name", "distance [m]", "ascent [m]", "GPX [bytes]"],
+             [[str(c.id), c.name, number(c.distance_m, 0), number(c.ascent_m, 0),
+               str(c.gpx_size)] for c in courses])
+    _section("saved plans", ["id", "name", "athlete", "course", "finish", "saved [s]",
+                             "updated (UTC)", "made by pacing"],
+             [[str(p.id), p.name, names.get(p.athlete_id, "-") if p.athlete_id else "-",
+               course_names.get(p.course_id, "-") if p.course_id else "-",
+               clock(p.finish_time), number(p.time_saved),
+               p.updated_at.strftime("%Y-%m-%d %H:%M"), p.library_version]
+              for p in library.plans()])
     return 0
 
 
 def _fields(pairs: list[tuple[str, Any]]) -> str:
+    """Label and value pairs, one per line, the values aligned."""
     width = max(len(label) for label, _ in pairs)
     return "\n".join(f"{label.ljust(width)}  {value}" for label, value in pairs)
 
 
-def _stamps(record) -> list[tuple[str, Any]]:
+def _stamps(record: Any) -> list[tuple[str, Any]]:
+    """The revision and times of a record (or summary) as _fields pairs."""
     return [("revision", record.revision),
             ("created (UTC)", record.created_at.strftime("%Y-%m-%d %H:%M:%S")),
             ("updated (UTC)", record.updated_at.strftime("%Y-%m-%d %H:%M:%S"))]
 
 
-def _show(library, args) -> int:
+def _show(library: Library, args: argparse.Namespace) -> int:
+    """``library show KIND ID``: one entry, every value with its unit."""
     if args.gpx is not None and args.kind != "course":
         raise InputError("--gpx only goes with 'show course'")
-    if args.kind == "athlete":
-        record = library.athlete(args.id)
-        athlete = record.athlete
-        print(_fields([
-            ("athlete", f"{record.id}  {athlete.name}"),
-            ("body mass [kg]", number(athlete.body_mass)),
-            ("critical power [W]", number(athlete.critical_power, 0)),
-            ("W' [J]", number(athlete.w_prime, 0)),
-            ("height [m]", number(athlete.height, 2)),
-            ("flat pace [s/km]", number(athlete.flat_pace)),
-            ("critical speed [m/s]", number(athlete.critical_speed, 2)),
-            ("D' [m]", number(athlete.d_prime, 0)),
-            *_stamps(record),
-            ("setups", ", ".join(f"{s.id} {s.setup.name}" for s in library.setups(record.id))
-             or "-"),
-            ("saved plans", ", ".join(f"{p.id} {p.name}" for p in
-                                      library.plans(athlete_id=record.id)) or "-"),
-        ]))
-    elif args.kind == "setup":
-        record = library.setup(args.id)
-        setup = record.setup
-        print(_fields([
-            ("setup", f"{record.id}  {setup.name}"),
-            ("athlete", f"{record.athlete_id}  {library.athlete(record.athlete_id).athlete.name}"),
-            ("bike mass [kg]", number(setup.bike_mass, 2)),
-            ("CdA [m²]", number(setup.drag_area, 4)),
-            ("power share", number(setup.power_share, 3)),
-            ("Crr", number(setup.rolling_coefficient, 5)),
-            ("drivetrain efficiency", number(setup.drivetrain_efficiency, 3)),
-            ("yaw drag table [deg, x]", setup.yaw_drag_table or "-"),
-            *_stamps(record),
-        ]))
-    elif args.kind == "course":
-        record = library.course(args.id)
-        summary = record.summary
-        print(_fields([
-            ("course", f"{record.id}  {record.name}"),
-            ("distance [m]", number(summary.distance_m, 1)),
-            ("ascent [m]", number(summary.ascent_m, 1)),
-            ("GPX [bytes]", summary.gpx_size),
-            ("GPX SHA-256", summary.gpx_sha256),
-            *_stamps(summary),
-        ]))
-        if args.gpx is not None:
-            Path(args.gpx).write_bytes(record.gpx)
-            print(f"wrote the original GPX file to {args.gpx}")
-    else:
-        _show_plan(library.plan(args.id))
+    SHOW[args.kind](library, args)
     return 0
 
 
-def _show_plan(plan) -> None:
+def _show_athlete(library: Library, args: argparse.Namespace) -> None:
+    """An athlete's values, revision and times, setups and saved plans."""
+    record = library.athlete(args.id)
+    athlete = record.athlete
+    print(_fields([
+        ("athlete", f"{record.id}  {athlete.name}"),
+        ("body mass [kg]", number(athlete.body_mass)),
+        ("critical power [W]", number(athlete.critical_power, 0)),
+        ("W' [J]", number(athlete.w_prime, 0)),
+        ("height [m]", number(athlete.height, 2)),
+        ("flat pace [s/km]", number(athlete.flat_pace)),
+        ("critical speed [m/s]", number(athlete.critical_speed, 2)),
+        ("D' [m]", number(athlete.d_prime, 0)),
+        *_stamps(record),
+        ("setups", ", ".join(f"{s.id} {s.setup.name}" for s in library.setups(record.id))
+         or "-"),
+        ("saved plans", ", ".join(f"{p.id} {p.name}" for p in
+                                  library.plans(athlete_id=record.id)) or "-"),
+    ]))
+
+
+def _show_setup(library: Library, args: argparse.Namespace) -> None:
+    """A setup's values, its athlete, revision and times."""
+    record = library.setup(args.id)
+    setup = record.setup
+    print(_fields([
+        ("setup", f"{record.id}  {setup.name}"),
+        ("athlete", f"{record.athlete_id}  {library.athlete(record.athlete_id).athlete.name}"),
+        ("bike mass [kg]", number(setup.bike_mass, 2)),
+        ("CdA [m²]", number(setup.drag_area, 4)),
+        ("power share", number(setup.power_share, 3)),
+        ("Crr", number(setup.rolling_coefficient, 5)),
+        ("drivetrain efficiency", number(setup.drivetrain_efficiency, 3)),
+        ("yaw drag table [deg, x]", setup.yaw_drag_table or "-"),
+        *_stamps(record),
+    ]))
+
+
+def _show_course(library: Library, args: argparse.Namespace) -> None:
+    """A course's summary; with --gpx its original file is written out too."""
+    record = library.course(args.id)
+    summary = record.summary
+    print(_fields([
+        ("course", f"{record.id}  {record.name}"),
+        ("distance [m]", number(summary.distance_m, 1)),
+        ("ascent [m]", number(summary.ascent_m, 1)),
+        ("GPX [bytes]", summary.gpx_size),
+        ("GPX SHA-256", summary.gpx_sha256),
+        *_stamps(summary),
+    ]))
+    if args.gpx is not None:
+        Path(args.gpx).write_bytes(record.gpx)
+        print(f"wrote the original GPX file to {args.gpx}")
+
+
+def _show_saved_plan(library: Library, args: argparse.Namespace) -> None:
+    """A saved plan (see _show_plan)."""
+    _show_plan(library.plan(args.id))
+
+
+def _show_plan(plan: PlanRecord) -> None:
+    """A saved plan: links, finish, pacing version, notes, inputs, strategy, weather and its
+    target table."""
     summary = plan.summary
     print(_fields([
         ("saved plan", f"{plan.id}  {plan.name}"),
@@ -211,6 +293,7 @@ def _show_plan(plan) -> None:
 
 
 def _cell(value: Any) -> str:
+    """A target table cell: 6 significant digits for floats, JSON for lists and dicts."""
     if value is None:
         return "-"
     if isinstance(value, float):
@@ -220,7 +303,8 @@ def _cell(value: Any) -> str:
     return str(value)
 
 
-def _export(library, args) -> int:
+def _export(library: Library, args: argparse.Namespace) -> int:
+    """``library export``: the library file to standard output or to -o FILE."""
     from pacing.store.library_file import dump_library_file
 
     text = dump_library_file(library, args.athlete)
@@ -232,7 +316,8 @@ def _export(library, args) -> int:
     return 0
 
 
-def _import(library, args) -> int:
+def _import(library: Library, args: argparse.Namespace) -> int:
+    """``library import FILE``: add a library file's entries ('-' reads standard input)."""
     from pacing.store.library_file import import_library
 
     if args.file == "-":
@@ -246,4 +331,11 @@ def _import(library, args) -> int:
     return 0
 
 
-ACTIONS = {"list": _list, "show": _show, "export": _export, "import": _import}
+#: What ``library show KIND`` prints, by kind.
+SHOW: dict[str, Callable[[Library, argparse.Namespace], None]] = {
+    "athlete": _show_athlete, "setup": _show_setup, "course": _show_course,
+    "plan": _show_saved_plan}
+
+#: The function of each action.
+ACTIONS: dict[str, Callable[[Library, argparse.Namespace], int]] = {
+    "list": _list, "show": _show, "export": _export, "import": _import}

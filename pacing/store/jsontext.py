@@ -18,8 +18,27 @@ def to_json_value(value: Any, where: str) -> Any:
     """A plain JSON value (dict with str keys, list, str, int, float, bool, None) from `value`.
 
     Tuples become lists; dataclasses (Athlete, Setup) become dicts of their fields; numpy
-    scalars and arrays become Python numbers and lists. Raises InputError naming the place
-    (e.g. ``targets[3].power``) of a NaN, an infinity or a value that JSON cannot hold.
+    scalars and arrays become Python numbers and lists.
+
+    Parameters
+    ----------
+    value : Any
+        The value to store (numbers in whatever units the caller uses; they are kept as
+        given).
+    where : str
+        Its place, for error messages (e.g. ``"targets"``); nested places are appended
+        (``targets[3].power``).
+
+    Returns
+    -------
+    Any
+        The plain JSON value.
+
+    Raises
+    ------
+    InputError
+        Naming the place of a NaN, an infinity, a dict key that is not text or a value that
+        JSON cannot hold.
     """
     if value is None or isinstance(value, (bool, str)):
         return value
@@ -49,11 +68,40 @@ def to_json_value(value: Any, where: str) -> Any:
 
 
 def dumps(value: Any, where: str) -> str:
-    """Stored text of a JSON value (validated by to_json_value)."""
+    """Stored text of a JSON value: compact, non-ASCII kept, floats written by `repr`.
+
+    Parameters
+    ----------
+    value : Any
+        The value to store (checked and converted by to_json_value).
+    where : str
+        Its place, for error messages.
+
+    Returns
+    -------
+    str
+        The JSON text.
+
+    Raises
+    ------
+    InputError
+        As to_json_value.
+    """
     return json.dumps(to_json_value(value, where), ensure_ascii=False, allow_nan=False,
                       separators=(",", ":"))
 
 
 def loads(text: str) -> Any:
-    """The JSON value stored as `text`."""
+    """The JSON value stored as `text`.
+
+    Parameters
+    ----------
+    text : str
+        JSON text as `dumps` wrote it.
+
+    Returns
+    -------
+    Any
+        The value (dict, list, str, int, float, bool or None).
+    """
     return json.loads(text)

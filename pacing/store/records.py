@@ -29,10 +29,16 @@ class AthleteRecord:
 
     Attributes
     ----------
-    id : library id.
-    athlete : the athlete's values.
-    revision : change counter, 1 when created.
-    created_at, updated_at : UTC times.
+    id : int
+        Library id.
+    athlete : pacing.athlete.Athlete
+        The athlete's values (SI).
+    revision : int
+        Change counter: 1 when created, +1 on every change.
+    created_at : datetime.datetime
+        When it was stored (timezone-aware, UTC).
+    updated_at : datetime.datetime
+        When it was last changed (timezone-aware, UTC).
     """
 
     id: int
@@ -48,10 +54,18 @@ class SetupRecord:
 
     Attributes
     ----------
-    id : library id.
-    athlete_id : id of the athlete who rides it.
-    setup : the setup's values.
-    revision, created_at, updated_at : as AthleteRecord.
+    id : int
+        Library id.
+    athlete_id : int
+        Library id of the athlete who rides it.
+    setup : pacing.athlete.Setup
+        The setup's values (SI).
+    revision : int
+        Change counter: 1 when created, +1 on every change.
+    created_at : datetime.datetime
+        When it was stored (timezone-aware, UTC).
+    updated_at : datetime.datetime
+        When it was last changed (timezone-aware, UTC).
     """
 
     id: int
@@ -68,13 +82,24 @@ class CourseSummary:
 
     Attributes
     ----------
-    id : library id.
-    name : label.
-    distance_m : course length [m], as computed by the caller when saving.
-    ascent_m : total climbing [m], as computed by the caller when saving.
-    gpx_size : length of the original GPX file [bytes].
-    gpx_sha256 : SHA-256 of the original GPX file (hex).
-    revision, created_at, updated_at : as AthleteRecord.
+    id : int
+        Library id.
+    name : str
+        Label.
+    distance_m : float
+        Course length, as computed by the caller when saving [m].
+    ascent_m : float
+        Total climbing, as computed by the caller when saving [m].
+    gpx_size : int
+        Length of the original GPX file [bytes].
+    gpx_sha256 : str
+        SHA-256 of the original GPX file (64 hexadecimal digits).
+    revision : int
+        Change counter: 1 when created, +1 on every change.
+    created_at : datetime.datetime
+        When it was stored (timezone-aware, UTC).
+    updated_at : datetime.datetime
+        When it was last changed (timezone-aware, UTC).
     """
 
     id: int
@@ -94,8 +119,10 @@ class CourseRecord:
 
     Attributes
     ----------
-    summary : everything but the file.
-    gpx : the GPX file as it was given.
+    summary : CourseSummary
+        Everything but the file.
+    gpx : bytes
+        The GPX file as it was given, byte for byte.
     """
 
     summary: CourseSummary
@@ -103,14 +130,17 @@ class CourseRecord:
 
     @property
     def id(self) -> int:
+        """Library id (of the summary)."""
         return self.summary.id
 
     @property
     def name(self) -> str:
+        """Label (of the summary)."""
         return self.summary.name
 
     @property
     def revision(self) -> int:
+        """Change counter (of the summary)."""
         return self.summary.revision
 
 
@@ -120,14 +150,31 @@ class PlanSummary:
 
     Attributes
     ----------
-    id : library id.
-    name : label.
-    athlete_id, setup_id, course_id : linked library entries, or None.
-    finish_time : predicted finish time [s].
-    time_saved : time saved against the reference plan [s], or None.
-    library_version : pacing.__version__ of the library that made the plan.
-    notes : the coach's free text.
-    revision, created_at, updated_at : as AthleteRecord.
+    id : int
+        Library id.
+    name : str
+        Label.
+    athlete_id : int or None
+        Library id of the linked athlete, or None.
+    setup_id : int or None
+        Library id of the linked setup, or None.
+    course_id : int or None
+        Library id of the linked course, or None.
+    finish_time : float
+        Predicted finish time [s].
+    time_saved : float or None
+        Time saved against the reference plan, or None [s].
+    library_version : str
+        ``pacing.__version__`` of the pacing that computed the plan's numbers (compared by
+        pacing.store.reproduce when the plan is worked out again).
+    notes : str
+        The coach's free text.
+    revision : int
+        Change counter: 1 when created, +1 on every change.
+    created_at : datetime.datetime
+        When it was stored (timezone-aware, UTC).
+    updated_at : datetime.datetime
+        When it was last changed (timezone-aware, UTC).
     """
 
     id: int
@@ -150,12 +197,17 @@ class PlanRecord:
 
     Attributes
     ----------
-    summary : name, links, finish time, time saved, version, notes, revision, times.
-    inputs : everything the computation needs (athlete, setup, conditions, strategy request,
-        segmentation, course id), a JSON object.
-    strategy : the strategy the computation chose (JSON value).
-    weather : the weather it used (JSON value).
-    targets : the target table, one dict per segment.
+    summary : PlanSummary
+        Name, links, finish time, time saved, pacing version, notes, revision and times.
+    inputs : dict
+        Everything the computation needs (athlete, setup, conditions, strategy request,
+        segmentation, course id), a JSON object (SI numbers).
+    strategy : Any
+        The strategy the computation chose (JSON value).
+    weather : Any
+        The weather it used (JSON value).
+    targets : list of dict
+        The target table, one dict per segment (SI numbers).
     """
 
     summary: PlanSummary
@@ -166,18 +218,28 @@ class PlanRecord:
 
     @property
     def id(self) -> int:
+        """Library id (of the summary)."""
         return self.summary.id
 
     @property
     def name(self) -> str:
+        """Label (of the summary)."""
         return self.summary.name
 
     @property
     def revision(self) -> int:
+        """Change counter (of the summary)."""
         return self.summary.revision
 
     def result(self) -> dict[str, Any]:
-        """The saved numbers in the shape `compute(inputs)` returns (PLAN_RESULT_KEYS)."""
+        """The saved numbers in the shape `compute(inputs)` returns.
+
+        Returns
+        -------
+        dict
+            The keys of PLAN_RESULT_KEYS: strategy, weather, targets, time_saved [s] and
+            finish_time [s].
+        """
         return {
             "strategy": self.strategy,
             "weather": self.weather,

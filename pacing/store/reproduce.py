@@ -30,9 +30,12 @@ class Difference:
 
     Attributes
     ----------
-    where : path in the result, e.g. ``finish_time`` or ``targets[3].power``.
-    saved : the saved value (None if missing).
-    recomputed : the recomputed value (None if missing).
+    where : str
+        Path in the result, e.g. ``finish_time`` or ``targets[3].power``.
+    saved : Any
+        The saved value (None if missing), in the unit the result uses.
+    recomputed : Any
+        The recomputed value (None if missing), in the same unit.
     """
 
     where: str
@@ -46,14 +49,21 @@ class ReproductionReport:
 
     Attributes
     ----------
-    plan_id : id of the saved plan.
-    same : True when every number agrees within RELATIVE_TOLERANCE and everything else
-        is equal.
-    saved : the saved result (keys of PLAN_RESULT_KEYS).
-    recomputed : the result computed now, as it would be stored.
-    differences : every place that differs (empty when `same`).
-    saved_library_version : pacing version that made the saved plan.
-    current_library_version : pacing version that computed it now.
+    plan_id : int
+        Library id of the saved plan.
+    same : bool
+        True when every number agrees within RELATIVE_TOLERANCE (or ABSOLUTE_TOLERANCE) and
+        everything else is equal.
+    saved : dict
+        The saved result (keys of PLAN_RESULT_KEYS).
+    recomputed : dict
+        The result computed now, as it would be stored.
+    differences : tuple of Difference
+        Every place that differs (empty when `same`).
+    saved_library_version : str
+        ``pacing.__version__`` of the pacing that made the saved plan.
+    current_library_version : str
+        ``pacing.__version__`` of the pacing that computed it now.
     """
 
     plan_id: int
@@ -70,7 +80,8 @@ class ReproductionReport:
         return self.saved_library_version != self.current_library_version
 
     def message(self) -> str:
-        """One line for the user."""
+        """One line for the user: reproduced, or how many values differ and the likely
+        cause (another pacing version, or inputs that give other numbers now)."""
         if self.same:
             return "the saved plan reproduces exactly"
         cause = (f"the model changed (saved with pacing {self.saved_library_version}, now "
@@ -82,17 +93,48 @@ class ReproductionReport:
 
 
 def numbers_agree(saved: float, recomputed: float) -> bool:
-    """Whether two numbers are the same within the reproduction tolerances."""
+    """Whether two numbers are the same within the reproduction tolerances.
+
+    Parameters
+    ----------
+    saved : float
+        The saved number (any unit).
+    recomputed : float
+        The recomputed number (same unit).
+
+    Returns
+    -------
+    bool
+        True when they differ by at most RELATIVE_TOLERANCE of the larger or by at most
+        ABSOLUTE_TOLERANCE (math.isclose).
+    """
     return math.isclose(saved, recomputed, rel_tol=RELATIVE_TOLERANCE,
                         abs_tol=ABSOLUTE_TOLERANCE)
 
 
 def _is_number(value: Any) -> bool:
+    """Whether a JSON value is a number (bool is not)."""
     return isinstance(value, (int, float)) and not isinstance(value, bool)
 
 
 def compare_values(saved: Any, recomputed: Any, where: str) -> list[Difference]:
-    """Every difference between two JSON values (numbers compared with numbers_agree)."""
+    """Every difference between two JSON values, walking dicts and lists.
+
+    Parameters
+    ----------
+    saved : Any
+        The saved JSON value.
+    recomputed : Any
+        The recomputed JSON value.
+    where : str
+        The path of both values in the result (e.g. ``"targets"``).
+
+    Returns
+    -------
+    list of Difference
+        One per leaf that differs (numbers compared with numbers_agree, everything else by
+        type and equality; a missing key or item counts as None).
+    """
     if _is_number(saved) and _is_number(recomputed):
         return [] if numbers_agree(saved, recomputed) else [Difference(where, saved, recomputed)]
     if isinstance(saved, dict) and isinstance(recomputed, dict):
@@ -119,12 +161,22 @@ def reproduce_plan(saved: PlanRecord,
 
     Parameters
     ----------
-    saved : the saved plan (Library.plan).
-    compute : the caller's computation, ``compute(inputs) -> result`` with the keys of
+    saved : PlanRecord
+        The saved plan (Library.plan).
+    compute : callable
+        The caller's computation, ``compute(inputs) -> result`` with the keys of
         PLAN_RESULT_KEYS; it gets a copy of the saved inputs.
 
-    Returns a ReproductionReport: `same`, or both versions of the numbers, each difference,
-    and whether the pacing version differs from the one that saved the plan.
+    Returns
+    -------
+    ReproductionReport
+        `same`, or both versions of the numbers and each difference; and the pacing version
+        that saved the plan beside the current one.
+
+    Raises
+    ------
+    InputError
+        `saved` is not a saved plan, or `compute` returns something other than a dict.
     """
     if not isinstance(saved, PlanRecord):
         raise InputError(f"expected a saved plan, got {type(saved).__name__}")

@@ -1,6 +1,7 @@
 """Checks of what goes into the library, and conversions between values and table rows.
 
-Each function raises InputError with a one-line message naming the field.
+Each check raises InputError with a one-line message naming the field. Numbers are stored as
+given, in SI (kg, W, J, m, s, m/s, m²; flat pace in s/km).
 """
 
 from __future__ import annotations
@@ -30,8 +31,10 @@ NAME_LENGTH = 200
 #: Largest GPX file the library keeps [bytes].
 GPX_SIZE_LIMIT = 64 * 1024 * 1024
 
+#: Number fields of pacing.athlete.Athlete, as the athletes table stores them.
 ATHLETE_NUMBERS = ("body_mass", "critical_power", "w_prime", "height", "flat_pace",
                    "critical_speed", "d_prime")
+#: Number fields of pacing.athlete.Setup, as the setups table stores them.
 SETUP_NUMBERS = ("bike_mass", "drag_area", "power_share", "rolling_coefficient",
                  "drivetrain_efficiency")
 
@@ -40,7 +43,26 @@ SETUP_NUMBERS = ("bike_mass", "drag_area", "power_share", "rolling_coefficient",
 # checks and conversions between values and rows
 
 def check_name(name: Any, what: str) -> str:
-    """A valid entry name (non-empty text of at most NAME_LENGTH characters), stripped."""
+    """A valid entry name: non-empty text of at most NAME_LENGTH characters, no control
+    characters, stripped of surrounding blanks.
+
+    Parameters
+    ----------
+    name : Any
+        The name given.
+    what : str
+        What is named, for the message (e.g. ``"an athlete"``).
+
+    Returns
+    -------
+    str
+        The name without surrounding blanks.
+
+    Raises
+    ------
+    InputError
+        Not text, empty, too long or holding control characters (tabs, line breaks).
+    """
     if not isinstance(name, str) or not name.strip():
         raise InputError(f"{what} needs a name (non-empty text)")
     name = name.strip()
@@ -52,15 +74,37 @@ def check_name(name: Any, what: str) -> str:
 
 
 def check_id(value: Any, what: str) -> int:
-    """A positive integer id."""
+    """A library id (or revision): a positive whole number.
+
+    Parameters
+    ----------
+    value : Any
+        The value given (a bool is refused although Python counts it as an int).
+    what : str
+        What it is, for the message (e.g. ``"athlete id"``).
+
+    Returns
+    -------
+    int
+        The value.
+
+    Raises
+    ------
+    InputError
+        Not a positive int.
+    """
     if isinstance(value, bool) or not isinstance(value, int) or value < 1:
         raise InputError(f"{what} must be a positive whole number, got {value!r}")
     return value
 
 
-def _finite(value: Any, what: str, optional: bool = False) -> float | None:
-    if value is None and optional:
-        return None
+def _optional_finite(value: Any, what: str) -> float | None:
+    """A finite number as float, or None when `value` is None."""
+    return None if value is None else _finite(value, what)
+
+
+def _finite(value: Any, what: str) -> float:
+    """A finite number as float (InputError naming `what` otherwise)."""
     if isinstance(value, bool) or not isinstance(value, numbers.Real):
         raise InputError(f"{what} must be a number, got {value!r}")
     if not math.isfinite(value):
@@ -69,18 +113,53 @@ def _finite(value: Any, what: str, optional: bool = False) -> float | None:
 
 
 def athlete_row(athlete: Athlete) -> dict[str, Any]:
-    """Column values of an athlete (checked: name, finite numbers)."""
+    """Column values of an athlete (checked: name, finite numbers).
+
+    Parameters
+    ----------
+    athlete : pacing.athlete.Athlete
+        The athlete (SI values; only body_mass is required).
+
+    Returns
+    -------
+    dict
+        ``name`` and the ATHLETE_NUMBERS as floats (None where unknown).
+
+    Raises
+    ------
+    InputError
+        Not an Athlete, a bad name or a number that is not finite.
+    """
     if not isinstance(athlete, Athlete):
         raise InputError(f"expected an Athlete, got {type(athlete).__name__}")
     row: dict[str, Any] = {"name": check_name(athlete.name, "an athlete")}
     for field in ATHLETE_NUMBERS:
-        row[field] = _finite(getattr(athlete, field), field.replace("_", " "),
-                             optional=field != "body_mass")
+        what = field.replace("_", " ")
+        value = getattr(athlete, field)
+        row[field] = _finite(value, what) if field == "body_mass" \
+            else _optional_finite(value, what)
     return row
 
 
 def setup_row(setup: Setup) -> dict[str, Any]:
-    """Column values of a setup (checked: name, finite numbers, yaw table)."""
+    """Column values of a setup (checked: name, finite numbers, yaw table).
+
+    Parameters
+    ----------
+    setup : pacing.athlete.Setup
+        The setup (SI values; yaw drag table as (yaw [deg], CdA multiplier [-]) pairs).
+
+    Returns
+    -------
+    dict
+        ``name``, the SETUP_NUMBERS as floats and ``yaw_drag_table`` as JSON text (or None).
+
+    Raises
+    ------
+    InputError
+        Not a Setup, a bad name, a number that is not finite or a yaw table entry that is not
+        a pair of finite numbers.
+    """
     if not isinstance(setup, Setup):
         raise InputError(f"expected a Setup, got {type(setup).__name__}")
     row: dict[str, Any] = {"name": check_name(setup.name, "a setup")}
@@ -100,10 +179,35 @@ def setup_row(setup: Setup) -> dict[str, Any]:
 
 
 def athlete_from_row(row: Any) -> Athlete:
+    """The Athlete of a row of the athletes table (or any object with its columns).
+
+    Parameters
+    ----------
+    row : Any
+        A database row with ``name`` and the ATHLETE_NUMBERS (SI).
+
+    Returns
+    -------
+    pacing.athlete.Athlete
+        The athlete.
+    """
     return Athlete(name=row.name, **{field: getattr(row, field) for field in ATHLETE_NUMBERS})
 
 
 def setup_from_row(row: Any) -> Setup:
+    """The Setup of a row of the setups table.
+
+    Parameters
+    ----------
+    row : Any
+        A database row with ``name``, the SETUP_NUMBERS (SI) and ``yaw_drag_table`` (JSON
+        text of [yaw [deg], CdA multiplier [-]] pairs, or None).
+
+    Returns
+    -------
+    pacing.athlete.Setup
+        The setup, its yaw drag table as a tuple of float pairs.
+    """
     table = None
     if row.yaw_drag_table is not None:
         table = tuple((float(yaw), float(factor))
@@ -113,17 +217,53 @@ def setup_from_row(row: Any) -> Setup:
 
 
 def athlete_record(row: Any) -> AthleteRecord:
+    """The AthleteRecord of a row.
+
+    Parameters
+    ----------
+    row : Any
+        A database row of the athletes table.
+
+    Returns
+    -------
+    AthleteRecord
+        The record, times timezone-aware (UTC).
+    """
     return AthleteRecord(id=row.id, athlete=athlete_from_row(row), revision=row.revision,
                          created_at=as_utc(row.created_at), updated_at=as_utc(row.updated_at))
 
 
 def setup_record(row: Any) -> SetupRecord:
+    """The SetupRecord of a row.
+
+    Parameters
+    ----------
+    row : Any
+        A database row of the setups table.
+
+    Returns
+    -------
+    SetupRecord
+        The record, times timezone-aware (UTC).
+    """
     return SetupRecord(id=row.id, athlete_id=row.athlete_id, setup=setup_from_row(row),
                        revision=row.revision, created_at=as_utc(row.created_at),
                        updated_at=as_utc(row.updated_at))
 
 
 def course_summary(row: Any) -> CourseSummary:
+    """The CourseSummary of a row (the GPX bytes, if selected, are not read).
+
+    Parameters
+    ----------
+    row : Any
+        A database row of the courses table.
+
+    Returns
+    -------
+    CourseSummary
+        The record, times timezone-aware (UTC).
+    """
     return CourseSummary(id=row.id, name=row.name, distance_m=row.distance_m,
                          ascent_m=row.ascent_m, gpx_size=row.gpx_size,
                          gpx_sha256=row.gpx_sha256, revision=row.revision,
@@ -131,6 +271,18 @@ def course_summary(row: Any) -> CourseSummary:
 
 
 def plan_summary(row: Any) -> PlanSummary:
+    """The PlanSummary of a row (the JSON columns, if selected, are not read).
+
+    Parameters
+    ----------
+    row : Any
+        A database row of the plans table.
+
+    Returns
+    -------
+    PlanSummary
+        The record, times timezone-aware (UTC).
+    """
     return PlanSummary(id=row.id, name=row.name, athlete_id=row.athlete_id,
                        setup_id=row.setup_id, course_id=row.course_id,
                        finish_time=row.finish_time, time_saved=row.time_saved,
@@ -140,6 +292,18 @@ def plan_summary(row: Any) -> PlanSummary:
 
 
 def plan_record(row: Any) -> PlanRecord:
+    """The PlanRecord of a row, its JSON columns read back.
+
+    Parameters
+    ----------
+    row : Any
+        A database row of the plans table.
+
+    Returns
+    -------
+    PlanRecord
+        The record, times timezone-aware (UTC).
+    """
     return PlanRecord(summary=plan_summary(row), inputs=jsontext.loads(row.inputs),
                       strategy=jsontext.loads(row.strategy),
                       weather=jsontext.loads(row.weather),
@@ -147,7 +311,30 @@ def plan_record(row: Any) -> PlanRecord:
 
 
 def course_row(name: Any, gpx: Any, distance_m: Any, ascent_m: Any) -> dict[str, Any]:
-    """Column values of a course (checked: name, GPX bytes, summary numbers)."""
+    """Column values of a course (checked: name, GPX bytes, summary numbers).
+
+    Parameters
+    ----------
+    name : Any
+        Label (checked by check_name).
+    gpx : Any
+        The GPX file, bytes-like, not empty, at most GPX_SIZE_LIMIT [bytes].
+    distance_m : Any
+        Course length, positive [m].
+    ascent_m : Any
+        Total climbing, not negative [m].
+
+    Returns
+    -------
+    dict
+        ``name``, ``gpx`` (bytes), ``gpx_sha256`` (hex), ``gpx_size`` [bytes],
+        ``distance_m`` [m] and ``ascent_m`` [m].
+
+    Raises
+    ------
+    InputError
+        Naming the first bad value.
+    """
     if not isinstance(gpx, (bytes, bytearray, memoryview)):
         raise InputError(f"the GPX file must be bytes, got {type(gpx).__name__}")
     gpx = bytes(gpx)
@@ -169,8 +356,24 @@ def course_row(name: Any, gpx: Any, distance_m: Any, ascent_m: Any) -> dict[str,
 def plan_result_values(result: Any) -> dict[str, Any]:
     """Column values of a plan result (checked): the PLAN_RESULT_KEYS of `result`.
 
-    `finish_time` [s] and `targets` (list of dicts) are required; `strategy`, `weather` and
-    `time_saved` [s] may be missing (None).
+    Parameters
+    ----------
+    result : Any
+        A dict with ``finish_time`` (positive) [s] and ``targets`` (list of dicts), both
+        required, and optionally ``strategy``, ``weather`` (JSON values) and ``time_saved``
+        (or None) [s].
+
+    Returns
+    -------
+    dict
+        ``strategy``, ``weather`` and ``targets`` as JSON text, ``time_saved`` [s] (or None)
+        and ``finish_time`` [s] as floats.
+
+    Raises
+    ------
+    InputError
+        Not a dict, unknown or missing keys, a finish time that is not positive, targets that
+        are not a list of dicts, or a value JSON cannot hold (NaN, infinity, other types).
     """
     if not isinstance(result, Mapping):
         raise InputError(f"a plan result must be a dict, got {type(result).__name__}")
@@ -192,13 +395,29 @@ def plan_result_values(result: Any) -> dict[str, Any]:
         "strategy": jsontext.dumps(result.get("strategy"), "strategy"),
         "weather": jsontext.dumps(result.get("weather"), "weather"),
         "targets": jsontext.dumps([dict(record) for record in targets], "targets"),
-        "time_saved": _finite(result.get("time_saved"), "time saved", optional=True),
+        "time_saved": _optional_finite(result.get("time_saved"), "time saved"),
         "finish_time": finish,
     }
 
 
 def plan_inputs_text(inputs: Any) -> tuple[str, dict[str, int | None]]:
-    """Stored text of plan inputs (a dict) and the library links it names (PLAN_LINK_KEYS)."""
+    """Stored text of plan inputs and the library links they name.
+
+    Parameters
+    ----------
+    inputs : Any
+        A dict of JSON values (SI numbers); its optional keys PLAN_LINK_KEYS hold library ids.
+
+    Returns
+    -------
+    tuple of (str, dict)
+        The JSON text of `inputs`, and ``{key: id or None}`` for each of PLAN_LINK_KEYS.
+
+    Raises
+    ------
+    InputError
+        Not a dict, a link that is not a positive whole number, or a value JSON cannot hold.
+    """
     if not isinstance(inputs, Mapping):
         raise InputError(f"plan inputs must be a dict, got {type(inputs).__name__}")
     links: dict[str, int | None] = {}
@@ -209,6 +428,23 @@ def plan_inputs_text(inputs: Any) -> tuple[str, dict[str, int | None]]:
 
 
 def check_notes(notes: Any) -> str:
+    """A plan's notes: any text without NUL characters (line breaks and tabs are fine).
+
+    Parameters
+    ----------
+    notes : Any
+        The coach's free text.
+
+    Returns
+    -------
+    str
+        The notes as given.
+
+    Raises
+    ------
+    InputError
+        Not text, or holding a NUL character.
+    """
     if not isinstance(notes, str):
         raise InputError(f"plan notes must be text, got {type(notes).__name__}")
     if "\x00" in notes:
@@ -217,5 +453,18 @@ def check_notes(notes: Any) -> str:
 
 
 def plural(count: int, word: str) -> str:
-    """'1 plan', '2 plans'."""
+    """A count with its word, plural when the count is not 1: '1 plan', '2 plans'.
+
+    Parameters
+    ----------
+    count : int
+        How many [-].
+    word : str
+        The singular noun; the plural adds an "s".
+
+    Returns
+    -------
+    str
+        E.g. ``"2 saved plans"``.
+    """
     return f"{count} {word}" if count == 1 else f"{count} {word}s"
