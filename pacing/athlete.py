@@ -20,14 +20,22 @@ class Athlete:
 
     Attributes
     ----------
-    name : label.
-    body_mass : [kg].
-    critical_power : cycling critical power (or threshold power) [W]; None if unknown.
-    w_prime : work capacity above critical power, W′ [J]; None if unknown.
-    height : [m], used for a runner's drag area; None if unknown.
-    flat_pace : running pace held on flat ground in still air [s/km]; None if unknown.
-    critical_speed : running critical speed [m/s]; None if unknown.
-    d_prime : distance capacity above critical speed, D′ [m]; None if unknown.
+    name : str
+        Label [-].
+    body_mass : float
+        Body mass, 20..250 [kg].
+    critical_power : float or None
+        Cycling critical power (or threshold power); None if unknown [W].
+    w_prime : float or None
+        W′, the work capacity above critical power; None if unknown [J].
+    height : float or None
+        Standing height, used for a runner's drag area; None if unknown [m].
+    flat_pace : float or None
+        Running pace held on flat ground in still air; None if unknown [s/km].
+    critical_speed : float or None
+        Running critical speed; None if unknown [m/s].
+    d_prime : float or None
+        D′, the distance capacity above critical speed; None if unknown [m].
     """
 
     name: str = "athlete"
@@ -55,13 +63,25 @@ class Setup:
 
     Attributes
     ----------
-    name : label ("road bike, hoods", "TT bike, extensions").
-    bike_mass : bike + kit (bottles, shoes, helmet) [kg].
-    drag_area : CdA in this position [m²].
-    power_share : share of the athlete's power this position allows, e.g. 0.95 [-].
-    rolling_coefficient : Crr of the tyres on the course's main surface [-].
-    drivetrain_efficiency : [-].
-    yaw_drag_table : optional ((yaw [deg], CdA multiplier), ...).
+    name : str
+        Label ("road bike, hoods", "TT bike, extensions") [-].
+    bike_mass : float
+        Bike + kit (bottles, shoes, helmet), 0..60 [kg].
+    drag_area : float
+        CdA in this position, 0.05..1.5 [m²].
+    power_share : float
+        Share of the athlete's power this position allows, e.g. 0.95, 0.3..1.2 [-].
+    rolling_coefficient : float
+        Crr of the tyres on the course's main surface, 0..0.1 [-].
+    drivetrain_efficiency : float
+        Share of crank power reaching the wheel, 0.5..1 [-].
+    yaw_drag_table : tuple of (float, float) pairs or None
+        ((yaw [deg], CdA multiplier [-]), ...); None for no yaw dependence [deg, -].
+
+    References
+    ----------
+    Martin et al. (1998), J Appl Biomech 14(3):276-291 (default Crr and drivetrain
+    efficiency); typical values: docs/references.md, "Typical CdA, Crr".
     """
 
     name: str = "road bike"
@@ -88,7 +108,27 @@ class Setup:
 
 
 def rider_for(athlete: Athlete, setup: Setup, drafting_reduction: float = 0.0) -> Rider:
-    """The cycling power-balance parameters of an athlete on a setup."""
+    """The cycling power-balance parameters of an athlete on a setup.
+
+    Parameters
+    ----------
+    athlete : Athlete
+        The person (body mass [kg]).
+    setup : Setup
+        The bike and position (bike mass [kg], CdA [m²], Crr [-], efficiency [-]).
+    drafting_reduction : float, optional
+        Share of the rider's own drag area removed by drafting, 0..1 [-].
+
+    Returns
+    -------
+    pacing.physics.cycling.Rider
+        Mass = body + bike, the setup's drag area, Crr, efficiency and yaw table.
+
+    Examples
+    --------
+    >>> rider_for(Athlete(body_mass=72.0), Setup(bike_mass=8.0)).mass
+    80.0
+    """
     return Rider(
         mass=athlete.body_mass + setup.bike_mass,
         drag_area=setup.drag_area,

@@ -12,7 +12,7 @@ from test_fieldtest_estimate import POWER_CV, TRUE_AREA, TRUE_ROLLING, simulate_
 from pacing.cli import main
 
 # CIPM-2007 density at the CLI's default air (20 °C, 50 % RH, 101325 Pa): 1.19931 kg/m³
-# (REFERENCES.md [calc]); the rides are simulated in that air.
+# ([calc], docs/references.md, "Air"); the rides are simulated in that air.
 DEFAULT_DENSITY = 1.19931
 
 
@@ -110,7 +110,9 @@ def test_inseparable_laps_hold_crr_and_say_so_in_json(capsys, steady_file):
     result = run_json(capsys, steady_file, "--mass", 80)
     assert result["crr_held"] is True and result["crr_fixed"] is False
     assert result["crr_source"] == "typical"
-    assert result["crr"] == 0.0032  # Martin et al. (1998), from memory (REFERENCES.md [mem])
+    # Martin et al. (1998), from memory (docs/references.md, "Cycling power balance (Martin
+    # et al. 1998)" marks it [mem])
+    assert result["crr"] == 0.0032
     assert result["crr_ci95"] is None
     low, high = result["cda_ci95"]
     assert 0 < low < result["cda_m2"] < high
@@ -231,3 +233,30 @@ def test_gpx_ride_with_power_and_speed_extensions(capsys, tmp_path):
     # speed rounded to 1 mm/s, power to 1 W in the file
     assert result["cda_m2"] == pytest.approx(TRUE_AREA, rel=0.02)
     assert result["crr"] == pytest.approx(TRUE_ROLLING, rel=0.10)
+
+
+def test_notes_of_cleaning_name_their_ride_in_json_and_text(capsys, tmp_path, ride_file):
+    # a stop of 5 samples in the middle of the ride: dropped, with a note in both outputs
+    lines = ride_file.read_text().splitlines()
+    for row in range(300, 305):
+        cells = lines[row].split(",")
+        cells[1] = "0.0"
+        lines[row] = ",".join(cells)
+    stopped = tmp_path / "stopped.csv"
+    stopped.write_text("\n".join(lines) + "\n")
+    expected = ("hoods: dropped 5 samples slower than 1 m/s (stops); the energy balance "
+                "restarts after each")
+    result = run_json(capsys, stopped, "--mass", 80, "--position", "hoods")
+    assert result["notes"] == [expected]
+    assert isinstance(result["warnings"], list)
+    assert main(["fieldtest", str(stopped), "--mass", "80", "--position", "hoods",
+                 "--bootstrap", "0"]) == 0
+    assert f"note: {expected}" in capsys.readouterr().out.splitlines()
+
+
+def test_warnings_in_text_carry_their_level(capsys, steady_file):
+    assert main(["fieldtest", str(steady_file), "--mass", "80", "--bootstrap", "200"]) == 0
+    warnings = [line for line in capsys.readouterr().out.splitlines()
+                if line.startswith("warning: ")]
+    assert any("laps lack speed variety" in line and "held at 0.0032" in line
+               for line in warnings)

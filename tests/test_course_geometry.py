@@ -1,5 +1,6 @@
-"""Specification of pacing.course.geometry: geodesy, resampling, elevation cleaning, corner radius,
-and the checks on bad tracks (segments: tests/test_course_segments.py)."""
+"""Specification of pacing.course.geometry: geodesy, resampling, building a course (with its
+elevation cleaned), corner radius, and the checks on bad tracks (the cleaning itself:
+tests/test_course_elevation.py; segments: tests/test_course_segments.py)."""
 
 from __future__ import annotations
 
@@ -12,19 +13,14 @@ from geographiclib.geodesic import Geodesic
 from hypothesis import HealthCheck, given, settings
 from hypothesis import strategies as st
 
-from pacing.course.elevation import (
-    SMOOTHING_METHODS,
-    ElevationSmoothing,
-    clean_elevation,
-    smooth_elevation,
-    total_ascent,
-)
+from pacing.course.elevation import ElevationSmoothing
 from pacing.course.geometry import (
     DEFAULT_STEP,
     STRAIGHT_ROAD_RADIUS,
     build_course,
     corner_radius,
     geodesic_pieces,
+    resample_distance,
     synthetic_course,
 )
 from pacing.course.segments import split_by_grade
@@ -182,12 +178,6 @@ def test_a_synthetic_course_with_a_known_profile_is_recovered():
     np.testing.assert_array_equal(course.corner_radius, STRAIGHT_ROAD_RADIUS)
 
 
-def test_a_smooth_profile_passes_cleaning_unchanged():
-    distance = np.arange(0.0, 10_000.0 + 1, 10.0)
-    cleaned = clean_elevation(distance, hill(distance))
-    assert np.max(np.abs(cleaned - hill(distance))) < 0.1  # 40 m hill, 0.25 % tolerance
-
-
 @pytest.mark.parametrize(("start", "finish"), [(200.0, 800.0), (1000.0, 200.0)])
 def test_a_straight_climb_or_descent_keeps_its_end_heights_and_ascent(start, finish):
     # Issue 2: "a known smooth profile passes through unchanged". 10 km at a constant +6 % or
@@ -202,39 +192,6 @@ def test_a_straight_climb_or_descent_keeps_its_end_heights_and_ascent(start, fin
     assert course.descent == pytest.approx(max(start - finish, 0.0), abs=0.1)
     assert np.max(np.abs(course.elevation - course.raw_elevation)) < 0.1
     np.testing.assert_allclose(course.grade, (finish - start) / 10_000.0, atol=1e-6)
-
-
-@pytest.mark.parametrize("method", ["gaussian", "moving-average"])
-@pytest.mark.parametrize("window", [50.0, 200.0, 1000.0, 5000.0])
-def test_both_kernels_return_a_linear_profile_unchanged(method, window):
-    # The 5 km window is wider than the 3 km profile: the reflection repeats beyond the ends.
-    distance = np.arange(0.0, 3000.0 + 1, 10.0)
-    elevation = 150.0 + 0.045 * distance
-    cleaned = smooth_elevation(elevation, 10.0, ElevationSmoothing(window=window, method=method))
-    np.testing.assert_allclose(cleaned, elevation, atol=1e-9)
-
-
-@settings(max_examples=80, deadline=None)
-@given(rises=st.lists(st.floats(-5.0, 5.0), min_size=2, max_size=120),
-       window=st.sampled_from([20.0, 100.0, 200.0, 800.0]),
-       method=st.sampled_from(["gaussian", "moving-average"]))
-def test_smoothing_keeps_the_end_heights_and_never_adds_ascent(rises, window, method):
-    elevation = 500.0 + np.concatenate([[0.0], np.cumsum(rises)])
-    smoothed = smooth_elevation(elevation, 10.0, ElevationSmoothing(window=window, method=method))
-    assert smoothed[0] == pytest.approx(elevation[0], abs=1e-9)
-    assert smoothed[-1] == pytest.approx(elevation[-1], abs=1e-9)
-    assert total_ascent(smoothed) <= total_ascent(elevation) + 1e-9
-
-
-def test_padding_falls_back_to_end_values_when_reflection_would_add_ascent(monkeypatch):
-    # A lopsided kernel (each point takes the next point's height; scipy's convolution flips
-    # the kernel) is not symmetric: with odd reflection it would turn the profile 0, 0, 1 into
-    # 0, 1, 2 (ascent 2 > 1). Padding with the end values gives 0, 1, 1 (ascent 1).
-    monkeypatch.setitem(SMOOTHING_METHODS, "lopsided",
-                        lambda window, step: np.array([1.0, 0.0, 0.0]))
-    smoothed = smooth_elevation(np.array([0.0, 0.0, 1.0]), 10.0,
-                                ElevationSmoothing(window=30.0, method="lopsided"))
-    np.testing.assert_allclose(smoothed, [0.0, 1.0, 1.0])
 
 
 def noisy_hill_track(seed, noise):
@@ -258,32 +215,6 @@ def test_injected_noise_is_removed(seed):
     assert np.sqrt(np.mean(error**2)) < 0.2
     wider = build_course(*track, smoothing=ElevationSmoothing(window=400.0))
     assert wider.ascent == pytest.approx(true_ascent, rel=0.04)
-
-
-def test_grade_limit_flattens_an_impossible_ramp():
-    distance = np.arange(0.0, 2001.0, 10.0)
-    elevation = np.where(distance < 1000, 0.0, 30.0)  # a 30 m wall
-    cleaned = clean_elevation(distance, elevation,
-                              ElevationSmoothing(window=0, max_grade=0.2))
-    assert np.max(np.diff(cleaned) / 10.0) == pytest.approx(0.2)
-    assert total_ascent(cleaned) == pytest.approx(2.0)  # one 10 m piece at the limit
-
-
-def test_smoothing_methods_and_their_validation():
-    distance = np.arange(0.0, 3001.0, 10.0)
-    elevation = hill(distance + 3500)
-    np.testing.assert_array_equal(
-        clean_elevation(distance, elevation, ElevationSmoothing(method="none")), elevation)
-    averaged = clean_elevation(distance, elevation, ElevationSmoothing(method="moving-average"))
-    assert total_ascent(averaged) <= total_ascent(elevation) + 1e-9
-    with pytest.raises(InputError, match="smoothing method"):
-        ElevationSmoothing(method="spline")
-    with pytest.raises(InputError, match="window"):
-        ElevationSmoothing(window=-1.0)
-    with pytest.raises(InputError, match="grade limit"):
-        ElevationSmoothing(max_grade=0.0)
-    assert ElevationSmoothing() == ElevationSmoothing(window=200.0, max_grade=0.25,
-                                                      method="gaussian")
 
 
 # --------------------------------------------------------------------------- corners
@@ -410,3 +341,22 @@ def test_a_course_shorter_than_one_step_has_two_points():
     course = build_course(latitude, longitude, [0.0, 0.2], step=10.0)
     np.testing.assert_allclose(course.distance, [0.0, 4.0], atol=1e-9)
     assert course.grade[0] == pytest.approx(0.05)
+
+
+def test_resampling_keeps_no_sliver_piece_at_the_end():
+    # by hand: the last piece is kept between 0.1 and 1.1 steps long
+    assert resample_distance(30.5, 10.0).tolist() == [0.0, 10.0, 20.0, 30.5]
+    assert resample_distance(32.0, 10.0).tolist() == [0.0, 10.0, 20.0, 30.0, 32.0]
+    assert resample_distance(4.0, 10.0).tolist() == [0.0, 4.0]
+
+
+def test_synthetic_course_follows_its_headings_and_keeps_its_elevation():
+    # 1 km east then 1 km north; display positions on a sphere of 111 195 m per degree
+    course = synthetic_course([0.0, 1000.0, 2000.0], [10.0, 30.0, 20.0], heading=[90.0, 0.0])
+    east = 1000.0 / 111_195.0
+    np.testing.assert_allclose(course.longitude, [0.0, east, east], atol=1e-12)
+    np.testing.assert_allclose(course.latitude, [0.0, 0.0, 1000.0 / 111_195.0], atol=1e-12)
+    np.testing.assert_allclose(course.grade, [0.02, -0.01])
+    np.testing.assert_array_equal(course.elevation, course.raw_elevation)
+    assert course.raw_ascent == course.ascent == 20.0
+    assert course.smoothing is None

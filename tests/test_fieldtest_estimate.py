@@ -1,5 +1,9 @@
 """CdA and Crr from test rides (pacing.fieldtest.estimate; the rides themselves:
-tests/test_fieldtest_ride.py, virtual elevation: tests/test_fieldtest_virtual_elevation.py).
+tests/test_fieldtest_ride.py, virtual elevation: tests/test_fieldtest_virtual_elevation.py, the
+least squares: tests/test_fieldtest_fit.py, the methods: tests/test_fieldtest_methods.py).
+
+The warnings are notices (pacing.notices); the checks read their codes and numbers, and their
+words through pacing.display.notices.
 
 The test rides are made by our own forward simulation: a rider with known CdA and Crr rides
 laps of a closed loop with a known profile, integrated with the Martin et al. (1998) forces of
@@ -21,14 +25,16 @@ import numpy as np
 import pytest
 
 from pacing.athlete import Setup
+from pacing.display.notices import describe, describe_all
 from pacing.errors import InputError
 from pacing.fieldtest.estimate import (
-    METHODS,
     TYPICAL_ROLLING_COEFFICIENT,
     PositionTest,
     estimate_drag,
 )
+from pacing.fieldtest.laps import laps_from_bounds
 from pacing.fieldtest.ride import EARTH_RADIUS, make_ride, ride_wind
+from pacing.notices import Notice
 from pacing.physics.cycling import Rider, resistive_force
 from pacing.physics.wind import wind_components
 
@@ -126,6 +132,15 @@ def fit(ride, method="loop", density=1.2, **options):
                          **options)
 
 
+def said(result) -> list[str]:
+    """The result's warnings in words (metric), as the command line prints them."""
+    return describe_all(result.warnings)
+
+
+def codes(result) -> list[str]:
+    return [notice.code for notice in result.warnings]
+
+
 # ---------------------------------------------------------------------------------------------
 # Recovering CdA and Crr
 # ---------------------------------------------------------------------------------------------
@@ -140,7 +155,8 @@ class TestRecovery:
         assert result.drag_area == pytest.approx(TRUE_AREA, rel=0.02)
         assert result.rolling_coefficient == pytest.approx(TRUE_ROLLING, rel=0.10)
         assert result.laps == 6
-        assert not any("speed variety" in w for w in result.warnings)
+        assert not any("speed variety" in w for w in said(result))
+        assert all(isinstance(n, Notice) and n.level == "warning" for n in result.warnings)
 
     def test_profile_fit_with_an_exact_profile_under_power_noise(self):
         result = fit(noisy_ride(simulate_loop_ride(), seed=4), method="profile")
@@ -182,7 +198,15 @@ class TestRecovery:
         assert result.drag_area == pytest.approx(TRUE_AREA, rel=0.02)
         assert result.rolling_coefficient == pytest.approx(TRUE_ROLLING, rel=0.10)
         # Lim et al. (2011) tested in calm air, under 1 m/s: 4 m/s is flagged
-        assert any("calm air" in w for w in result.warnings)
+        assert any("calm air" in w for w in said(result))
+        (windy,) = [n for n in result.warnings if n.code == "fieldtest-windy"]
+        # a steady 4 m/s splits into head and cross parts whose magnitude stays 4 m/s
+        assert windy.values["speed_mps"] == pytest.approx(4.0, rel=1e-9)
+        assert windy.values["limit_mps"] == 1.0
+        assert "wind of 4.0 m/s" in describe(windy)
+        # 1 mph = 0.44704 m/s exactly (NIST SP 811 (2008), App. B.8): 4 m/s = 8.9 mph
+        assert "wind of 8.9 mph" in describe(windy, "imperial")
+        assert "under 2.2 mph" in describe(windy, "imperial")
 
     def test_fixed_rolling_coefficient(self):
         result = fit(noisy_ride(simulate_loop_ride(), seed=9), rolling_coefficient=TRUE_ROLLING)
@@ -258,16 +282,18 @@ class TestUncertaintyAndWarnings:
         ride = noisy_ride(simulate_loop_ride(lap_powers=(250.0,) * 6), seed=2)
         for method in ("loop", "regression"):
             result = fit(ride, method=method)
-            assert any("speed variety" in w for w in result.warnings), method
+            assert any("speed variety" in w for w in said(result)), method
             assert result.estimate_correlation > 0.99
 
     def test_regression_on_hilly_laps_warns_about_unsteady_speed(self):
         result = fit(noisy_ride(simulate_loop_ride(), seed=1), method="regression",
                      bootstrap=0)
-        assert any("steady runs" in w for w in result.warnings)
+        assert any("steady runs" in w for w in said(result))
+        (unsteady,) = [n for n in result.warnings if n.code == "fieldtest-unsteady-runs"]
+        assert unsteady.values["share"] > unsteady.values["limit_share"] == 0.10
         gentle = fit(noisy_ride(simulate_loop_ride(amplitude=0.5), seed=1),
                      method="regression", bootstrap=0)
-        assert not any("steady runs" in w for w in gentle.warnings)
+        assert "fieldtest-unsteady-runs" not in codes(gentle)
 
     def test_braking_is_reported(self):
         data = dict(simulate_loop_ride())
@@ -276,19 +302,23 @@ class TestUncertaintyAndWarnings:
         power[400:404] = 0.0
         ride = make_ride(data["time"], speed, power, latitude=data["latitude"],
                          longitude=data["longitude"])
-        assert any("braking" in w for w in fit(ride).warnings)
+        result = fit(ride)
+        assert any("braking" in w for w in said(result))
+        (braking,) = [n for n in result.warnings if n.code == "fieldtest-braking"]
+        assert braking.values["label"] == "test" and braking.values["count"] >= 1
+        assert all(399.0 <= t <= 404.0 for t in braking.values["times_s"])
 
     def test_fewer_than_three_laps_give_no_interval(self):
         data = simulate_loop_ride(lap_powers=(150.0, 350.0))
         result = fit(noisy_ride(data, seed=3))
         assert result.drag_area_ci95 is None
-        assert any("fewer than 3 laps" in w for w in result.warnings)
+        assert any("fewer than 3 laps" in w for w in said(result))
 
 
 class TestLapsWithoutSpeedVariety:
     """Laps all at one power on a loop cannot tell CdA from Crr: air drag and rolling
     resistance then both scale with the distance ridden (the common-practice reason field tests
-    ask for laps at different speeds; REFERENCES.md, "CdA from field tests"). Crr is then held
+    ask for laps at different speeds; docs/references.md, "CdA from field tests"). Crr is then held
     at a typical value and CdA alone is fitted, never a negative Crr or a CdA interval
     reaching below 0 (review finding #12)."""
 
@@ -297,13 +327,17 @@ class TestLapsWithoutSpeedVariety:
         ride = noisy_ride(simulate_loop_ride(lap_powers=(250.0,) * 6), seed=2)
         result = fit(ride, method=method)
         assert result.rolling_held and not result.rolling_fixed
-        # Martin et al. (1998) Crr, from memory (REFERENCES.md marks it [mem])
+        # Martin et al. (1998) Crr, from memory (docs/references.md, "Cycling power balance
+        # (Martin et al. 1998)" marks it [mem])
         assert result.rolling_coefficient == TYPICAL_ROLLING_COEFFICIENT == 0.0032
         assert result.rolling_coefficient_ci95 is None
         low, high = result.drag_area_ci95
         assert 0 < low < result.drag_area < high
-        (warning,) = [w for w in result.warnings if "speed variety" in w]
+        (warning,) = [w for w in said(result) if "speed variety" in w]
         assert "held at 0.0032" in warning and "only CdA is fitted" in warning
+        (held,) = [n for n in result.warnings if n.code == "fieldtest-crr-held"]
+        assert held.values["held_rolling_coefficient"] == 0.0032
+        assert held.values["labels"] == ("test",)
 
     def test_holding_the_true_crr_recovers_the_true_cda(self):
         ride = noisy_ride(simulate_loop_ride(lap_powers=(250.0,) * 6), seed=2)
@@ -325,7 +359,7 @@ class TestLapsWithoutSpeedVariety:
         assert (high.drag_area - low.drag_area) / 0.003 == pytest.approx(
             low.drag_area_per_rolling[0], rel=1e-6)
         # the warning states CdA over the usual Crr of road tyres, 0.0025-0.006 (from memory)
-        warning = next(w for w in low.warnings if "speed variety" in w)
+        warning = next(w for w in said(low) if "speed variety" in w)
         assert f"{high.drag_area:.3f}-" in warning
 
     def test_without_a_bootstrap_the_correlation_decides(self):
@@ -350,9 +384,10 @@ class TestLapsWithoutSpeedVariety:
         ride = noisy_ride(simulate_loop_ride(lap_powers=(250.0,) * 6), seed=1)
         result = fit(ride, fallback_rolling_coefficient=None)
         assert not result.rolling_held
-        assert any("speed variety" in w for w in result.warnings)
+        assert any("speed variety" in w for w in said(result))
+        assert "fieldtest-inseparable" in codes(result)
         assert result.drag_area_ci95[0] < 0
-        assert any("interval of CdA" in w and "below 0" in w for w in result.warnings)
+        assert any("interval of CdA" in w and "below 0" in w for w in said(result))
 
     def test_a_negative_crr_is_flagged(self):
         # a power meter reading 40 W low (an offset not zeroed) leaves too little energy for
@@ -362,7 +397,9 @@ class TestLapsWithoutSpeedVariety:
                          latitude=data["latitude"], longitude=data["longitude"])
         result = fit(ride)
         assert result.rolling_coefficient < 0 and not result.rolling_held
-        assert any("below 0, which no tyre has" in w for w in result.warnings)
+        assert any("below 0, which no tyre has" in w for w in said(result))
+        (negative,) = [n for n in result.warnings if n.code == "fieldtest-crr-negative"]
+        assert negative.values["rolling_coefficient"] == result.rolling_coefficient
 
     def test_fallback_must_be_a_crr(self):
         ride = noisy_ride(simulate_loop_ride(), seed=1)
@@ -395,6 +432,15 @@ class TestPositions:
                                Rider(mass=MASS))
         assert not result.differences[0].significant
 
+    def test_laps_marked_by_sample_index(self):
+        data = simulate_loop_ride()
+        ride = noisy_ride(data, seed=11, with_position=False)
+        bounds = [int(np.argmin(np.abs(data["distance"] - 2000.0 * i))) for i in range(7)]
+        laps = laps_from_bounds(bounds, ride.time.size)
+        result = estimate_drag(PositionTest("marked", ride, 1.2, tuple(laps)), Rider(mass=MASS))
+        assert result.laps == 6
+        assert result.drag_area == pytest.approx(TRUE_AREA, rel=0.02)
+
     def test_plot_traces_per_lap(self):
         result = fit(noisy_ride(simulate_loop_ride(), seed=16), method="profile")
         traces = result.positions[0].traces
@@ -411,9 +457,9 @@ class TestPositions:
 class TestBadRequests:
     def test_unknown_method(self):
         ride = noisy_ride(simulate_loop_ride(), seed=1)
-        with pytest.raises(InputError, match="unknown method 'tunnel'"):
+        with pytest.raises(InputError, match="unknown method 'tunnel'; choose one of loop, "
+                                             "profile, regression"):
             fit(ride, method="tunnel")
-        assert set(METHODS) == {"loop", "profile", "regression"}
 
     def test_profile_needs_elevation(self):
         ride = noisy_ride(simulate_loop_ride(), seed=1, with_elevation=False)

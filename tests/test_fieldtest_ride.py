@@ -1,80 +1,63 @@
-"""Test rides (pacing.fieldtest.ride): cleaning, air and wind along the ride, laps.
+"""Test rides (pacing.fieldtest.ride): cleaning, air and wind along the ride (their laps:
+tests/test_fieldtest_laps.py).
 
 The rides come from our own forward simulation with published noise levels
 (tests/test_fieldtest_estimate.py: `simulate_loop_ride`, `noisy_ride`; GNSS horizontal error after
-Gløersen et al. 2018, Front Physiol 9:1425, doi:10.3389/fphys.2018.01425).
+Gløersen et al. 2018, Front Physiol 9:1425, doi:10.3389/fphys.2018.01425). What cleaning did
+comes back as notes (pacing.notices.Notice), read here by code and values and, through
+pacing.display.notices, in words.
 """
 
 from __future__ import annotations
 
 import numpy as np
 import pytest
-from test_fieldtest_estimate import (
-    HORIZONTAL_SIGMA,
-    MASS,
-    TRUE_AREA,
-    noisy_ride,
-    simulate_loop_ride,
-)
+from test_fieldtest_estimate import noisy_ride, simulate_loop_ride
 
+from pacing.display.notices import describe, describe_all
 from pacing.errors import InputError
-from pacing.fieldtest.estimate import PositionTest, estimate_drag
-from pacing.fieldtest.ride import (
-    detect_laps,
-    indices_at_times,
-    laps_from_bounds,
-    make_ride,
-    ride_air,
-    ride_wind,
-)
-from pacing.fieldtest.virtual_elevation import elevation_terms
-from pacing.physics.cycling import Rider
-from pacing.weather.conditions import Conditions
+from pacing.fieldtest.ride import make_ride, ride_air, ride_wind
+from pacing.notices import note
+from pacing.physics.wind import wind_components
+from pacing.weather.conditions import Conditions, CourseAir
 
 
-class TestLaps:
-    def test_detects_the_laps_despite_gnss_position_noise(self):
-        data = simulate_loop_ride()
-        ride = noisy_ride(data, seed=10, horizontal_sigma=HORIZONTAL_SIGMA)
-        laps = detect_laps(ride.latitude, ride.longitude)
-        assert len(laps) == 6
-        true_starts = [int(np.argmin(np.abs(data["distance"] - 2000.0 * i))) for i in range(6)]
-        for (start, _), expected in zip(laps, true_starts, strict=True):
-            assert abs(start - expected) <= 2
-
-    def test_user_given_laps(self):
-        data = simulate_loop_ride()
-        ride = noisy_ride(data, seed=11, with_position=False)
-        bounds = [int(np.argmin(np.abs(data["distance"] - 2000.0 * i))) for i in range(7)]
-        laps = laps_from_bounds(bounds, ride.time.size)
-        result = estimate_drag(PositionTest("marked", ride, 1.2, tuple(laps)), Rider(mass=MASS))
-        assert result.drag_area == pytest.approx(TRUE_AREA, rel=0.02)
-
-    def test_lap_times_to_indices(self):
-        ride = noisy_ride(simulate_loop_ride(), seed=1)
-        assert indices_at_times(ride, [0.0, 10.2, 99.6]) == [0, 10, 100]
-        with pytest.raises(InputError, match="within the ride"):
-            indices_at_times(ride, [1e6])
-
-    def test_a_ride_that_never_returns_has_no_laps(self):
-        latitude = 46.0 + np.linspace(0, 0.05, 100)
-        with pytest.raises(InputError, match="no lap found"):
-            detect_laps(latitude, np.full(100, 7.0))
-
-    def test_bad_bounds(self):
-        with pytest.raises(InputError, match="increase"):
-            laps_from_bounds([5, 3, 9], 20)
+def notes_of(ride) -> dict[str, dict]:
+    """The ride's notes as {code: values}."""
+    return {notice.code: dict(notice.values) for notice in ride.notes}
 
 
 class TestAir:
     def test_ride_air_matches_the_conditions_density(self):
         ride = noisy_ride(simulate_loop_ride(), seed=1)
-        density, headwind, crosswind = ride_air(ride, Conditions(temperature=20.0,
-                                                                 relative_humidity=0.5))
-        # CIPM-2007 at 20 °C, 50 % RH, 101325 Pa: 1.19931 kg/m³ (REFERENCES.md [calc]); the
-        # ride lies within ±8 m of sea level (±0.1 % pressure)
-        assert np.all(np.abs(density / 1.19931 - 1) < 0.0015)
-        assert np.all(headwind == 0) and np.all(crosswind == 0)
+        air = ride_air(ride, Conditions(temperature=20.0, relative_humidity=0.5))
+        assert isinstance(air, CourseAir)
+        assert air.density.shape == air.headwind.shape == (ride.time.size - 1,)
+        # CIPM-2007 at 20 °C, 50 % RH, 101325 Pa: 1.19931 kg/m³, CoolProp HAPropsSI 1.19936
+        # (docs/references.md, "Air"); the ride lies within ±8 m of sea level (±0.1 % pressure)
+        assert np.all(np.abs(air.density / 1.19931 - 1) < 0.0015)
+        assert np.all(air.headwind == 0) and np.all(air.crosswind == 0)
+
+    def test_ride_air_splits_the_wind_by_the_direction_of_travel(self):
+        # a wind measured at rider height (1 m) needs no log-profile reduction; the heading
+        # column of the simulated loop gives each piece's direction (circular mean of its ends)
+        data = simulate_loop_ride()
+        ride = make_ride(data["time"], data["speed"], data["power"], heading=data["heading"])
+        air = ride_air(ride, Conditions(wind_speed=3.0, wind_from=200.0, wind_height=1.0,
+                                        rider_height=1.0))
+        radians = np.radians(data["heading"])
+        mean = np.degrees(np.arctan2(np.sin(radians[1:]) + np.sin(radians[:-1]),
+                                     np.cos(radians[1:]) + np.cos(radians[:-1])))
+        headwind, crosswind = wind_components(mean, 200.0, 3.0)
+        np.testing.assert_allclose(air.headwind, headwind, atol=1e-12)
+        np.testing.assert_allclose(air.crosswind, crosswind, atol=1e-12)
+        # a steady wind's magnitude is the same on every piece
+        np.testing.assert_allclose(np.hypot(air.headwind, air.crosswind), 3.0, rtol=1e-12)
+
+    def test_unknown_density_model(self):
+        ride = noisy_ride(simulate_loop_ride(), seed=1)
+        with pytest.raises(InputError, match="unknown air density model"):
+            ride_air(ride, Conditions(), density_model="guess")
 
     def test_wind_needs_a_direction_of_travel(self):
         ride = noisy_ride(simulate_loop_ride(), seed=1, with_position=False)
@@ -110,15 +93,26 @@ class TestCleaning:
         power[20:22] = np.nan
         ride = make_ride(time, speed, power)
         assert np.all(ride.power == 200.0)
-        assert any("power dropouts" in note for note in ride.notes)
+        # samples 19 and 22 bracket the gap: 3 s between the readings on either side
+        assert notes_of(ride) == {"test-ride-power-filled": {"duration_s": 3.0}}
+        assert describe_all(ride.notes) == ["filled power dropouts up to 3 s by interpolation"]
+        assert all(n.level == "note" for n in ride.notes)
+
+    def test_short_speed_gap_is_filled_with_a_note(self):
+        time, speed, power = self.base()
+        speed[30] = np.nan
+        ride = make_ride(time, speed, power)
+        assert np.all(ride.speed == 9.0)
+        assert "test-ride-speed-filled" in notes_of(ride)
 
     def test_zero_power_while_the_speed_holds_is_noted(self):
         time, speed, power = self.base()
         power[20:35] = 0.0
         ride = make_ride(time, speed, power)
-        assert any("power reads 0 W for 14 s from t = 20 s" in note for note in ride.notes)
+        assert notes_of(ride)["test-ride-zero-power"] == {"start_s": 20.0, "duration_s": 14.0}
+        assert "power reads 0 W for 14 s from t = 20 s" in describe(ride.notes[0])
         speed[20:35] = np.linspace(9.0, 7.0, 15)  # coasting and slowing: no note
-        assert not any("0 W" in note for note in make_ride(time, speed, power).notes)
+        assert make_ride(time, speed, power).notes == ()
 
     def test_stops_are_dropped_with_a_note(self):
         time, speed, power = self.base()
@@ -126,10 +120,30 @@ class TestCleaning:
         ride = make_ride(time, speed, power)
         assert ride.time.size == 40
         assert ride.pause.sum() == 1
-        assert any("dropped 20 samples" in note for note in ride.notes)
-        # a pause adds nothing to the trace
-        terms = elevation_terms(ride.time, ride.speed, ride.power, 1.2, Rider(), pause=ride.pause)
-        assert terms.known[ride.pause][0] == 0.0
+        assert notes_of(ride) == {"test-ride-stops-dropped": {"count": 20, "speed_mps": 1.0}}
+        assert "dropped 20 samples slower than 1 m/s (stops)" in describe(ride.notes[0])
+        # 1 mph = 0.44704 m/s exactly (NIST SP 811 (2008), App. B.8): 1 m/s = 2.2 mph
+        assert "slower than 2.2 mph" in describe(ride.notes[0], "imperial")
+        # the distance does not grow over the pause
+        assert ride.distance[20] == ride.distance[19]
+
+    def test_optional_columns_empty_or_with_gaps_are_noted(self):
+        time, speed, power = self.base()
+        elevation = np.full(60, np.nan)
+        heading = np.full(60, 90.0)
+        heading[[5, 6]] = np.nan
+        ride = make_ride(time, speed, power, elevation=elevation, heading=heading)
+        assert ride.elevation is None
+        np.testing.assert_allclose(ride.heading, 90.0)
+        assert describe_all(ride.notes) == ["elevation column is empty: ignored",
+                                            "filled 2 missing heading values by interpolation"]
+
+    def test_notes_of_reading_come_first(self):
+        time, speed, power = self.base()
+        speed[20:25] = 0.0
+        ride = make_ride(time, speed, power, notes=[note("test-ride-speed-from-distance")])
+        assert [n.code for n in ride.notes] == ["test-ride-speed-from-distance",
+                                                "test-ride-stops-dropped"]
 
     def test_negative_power(self):
         time, speed, power = self.base()

@@ -1,6 +1,6 @@
 """Virtual elevation (pacing.fieldtest.virtual_elevation) against the Martin et al. (1998) model's
-worked values and our own forward simulation (tests/test_fieldtest_estimate.py,
-`simulate_loop_ride`)."""
+worked values (docs/references.md, "Cycling power balance (Martin et al. 1998)") and our own
+forward simulation (tests/test_fieldtest_estimate.py, `simulate_loop_ride`)."""
 
 from __future__ import annotations
 
@@ -19,21 +19,22 @@ from pacing.physics.cycling import Rider
 
 
 class TestVirtualElevationWorkedValues:
-    """Steady rides at the powers of REFERENCES.md (Martin et al. 1998 model, m = 80 kg,
-    ρ = 1.2, CdA 0.269, Crr 0.0032; values [calc] from the published equation)."""
+    """Steady rides at the worked powers of docs/references.md, "Cycling power balance (Martin
+    et al. 1998)" (m = 80 kg, ρ = 1.2, CdA 0.269, Crr 0.0032; values [calc] from the published
+    equation)."""
 
     rider = Rider(mass=80.0, drag_area=0.269)
 
     def test_flat_ride_at_the_model_power_stays_level(self):
         time = np.arange(60.0)
         trace = virtual_elevation(time, np.full(60, 10.0), np.full(60, 195.6), 1.2, self.rider)
-        # 195.6 W at 10 m/s on the flat (REFERENCES.md [calc]); 0.05 W of rounding → < 5 mm
+        # 195.6 W at 10 m/s on the flat ([calc], docs/references.md); 0.05 W of rounding → < 5 mm
         assert abs(trace[-1]) < 0.005
 
     def test_climb_at_the_model_power_rises_at_six_percent(self):
         time = np.arange(61.0)
         trace = virtual_elevation(time, np.full(61, 5.0), np.full(61, 275.3), 1.2, self.rider)
-        # 275.3 W at 5 m/s on 6 % (REFERENCES.md [calc]): rise = v·t·sin(atan 0.06)
+        # 275.3 W at 5 m/s on 6 % ([calc], docs/references.md): rise = v·t·sin(atan 0.06)
         expected = 5.0 * 60.0 * 0.06 / np.sqrt(1 + 0.06**2)
         # cos θ taken as 1 in the rolling term: Crr·(1 − cos θ)·s ≈ 0.0006 m here
         assert trace[-1] == pytest.approx(expected, abs=0.02)
@@ -45,6 +46,17 @@ class TestVirtualElevationWorkedValues:
                                   start_elevation=data["elevation"][0])
         # own forward simulation, exact data: the trace drifts only by discretisation
         assert np.max(np.abs(trace - data["elevation"])) < 1.0
+
+
+def test_a_pause_adds_nothing_to_the_trace():
+    # a piece that bridges a dropped stop carries no energy balance: its rise is 0 in every
+    # part, whatever the speeds at its ends
+    time = np.arange(6.0)
+    speed = np.array([9.0, 9.0, 2.0, 9.0, 9.0, 9.0])
+    pause = np.array([False, True, False, False, False])
+    terms = elevation_terms(time, speed, np.full(6, 200.0), 1.2, Rider(), pause=pause)
+    assert terms.known[1] == terms.per_drag_area[1] == terms.per_rolling_coefficient[1] == 0.0
+    assert terms.known[0] != 0.0
 
 
 @settings(max_examples=30, deadline=None)

@@ -12,6 +12,7 @@ import numpy as np
 import pytest
 import scipy.constants as sc
 
+from pacing.display.notices import describe_all
 from pacing.errors import InputError
 from pacing.fieldtest.ride import Ride
 from pacing.io.rides import CSV_COLUMNS, read_ride, read_ride_csv, read_ride_gpx
@@ -83,7 +84,8 @@ class TestCsv:
                          "power_w": [200] * N})
         ride = read_ride_csv(data)
         np.testing.assert_allclose(ride.speed, 9.0)
-        assert any("distance column" in note for note in ride.notes)
+        assert [n.code for n in ride.notes] == ["test-ride-speed-from-distance"]
+        assert describe_all(ride.notes) == ["speed taken from the distance column"]
 
     def test_missing_column_names_what_is_missing(self):
         base = canonical()
@@ -125,7 +127,9 @@ class TestCsv:
         base["speed_mps"][15:25] = [0.0] * 10
         ride = read_ride_csv(csv_text(base))
         assert ride.time.size == N - 10
-        assert any("stops" in note for note in ride.notes)
+        assert describe_all(ride.notes) == [
+            "dropped 10 samples slower than 1 m/s (stops); the energy balance restarts after "
+            "each"]
 
     def test_empty_and_missing_files(self, tmp_path):
         with pytest.raises(InputError, match="empty"):
@@ -181,7 +185,9 @@ class TestGpx:
         ride = read_ride_gpx(gpx_text(speed=False))
         # 9 m per step on the local flat map (mean Earth radius 6371.0088 km, IUGG)
         np.testing.assert_allclose(ride.speed, 9.0, rtol=1e-3)
-        assert any("GNSS" in note for note in ride.notes)
+        assert describe_all(ride.notes) == [
+            "speed taken from GNSS positions (noisier than a wheel sensor)"]
+        assert ride.notes[0].level == "note"
 
     def test_no_power(self):
         with pytest.raises(InputError, match="no power values"):

@@ -51,7 +51,8 @@ def coolprop_density(temperature, pressure, humidity):
 
 
 # ICAO standard atmosphere (ICAO Doc 7488; ISO 2533:1975) density by geopotential altitude,
-# REFERENCES.md [calc] from the troposphere equations: ρ [kg/m³].
+# docs/references.md, "Air" [calc] from the troposphere equations (fluids.ATMOSPHERE_1976
+# agrees to 1e-6): ρ [kg/m³].
 ICAO_DENSITY_TABLE = [
     (0.0, 1.22500),
     (500.0, 1.16727),
@@ -95,7 +96,7 @@ def test_standard_pressure_and_temperature_match_fluids_atmosphere_1976(elevatio
 
 
 def test_pressure_exponent_is_the_icao_value():
-    # ICAO Doc 7488: p = p0·(T/T0)^5.25588 in the troposphere (REFERENCES.md).
+    # ICAO Doc 7488: p = p0·(T/T0)^5.25588 in the troposphere (docs/references.md, "Air").
     assert PRESSURE_EXPONENT == pytest.approx(5.25588, abs=1e-5)
 
 
@@ -136,7 +137,8 @@ def test_temperature_given_at_the_start_holds_there():
 
 
 def test_saturation_pressure_at_20_celsius_from_references():
-    # REFERENCES.md [calc]: Hardy 1998 2339.26 Pa, Alduchov & Eskridge 1996 2333.44 Pa at 20 °C.
+    # docs/references.md, "Air" [calc]: Hardy 1998 2339.26 Pa, Alduchov & Eskridge 1996
+    # 2333.44 Pa at 20 °C.
     assert saturation_vapour_pressure(20.0) == pytest.approx(2339.26, abs=0.01)
     assert saturation_vapour_pressure_magnus(20.0) == pytest.approx(2333.44, abs=0.01)
 
@@ -162,7 +164,7 @@ def test_saturation_models_registry_lists_callables_that_agree_below_freezing():
     # from memory).
     values = [float(model(-30.0)) for model in SATURATION_VAPOUR_PRESSURE_MODELS.values()]
     assert max(values) / min(values) - 1 < 5e-3
-    assert "hardy_1998" in SATURATION_VAPOUR_PRESSURE_MODELS
+    assert "hardy-1998" in SATURATION_VAPOUR_PRESSURE_MODELS
 
 
 # --- humid air --------------------------------------------------------------------------------
@@ -171,7 +173,7 @@ def test_saturation_models_registry_lists_callables_that_agree_below_freezing():
 @pytest.mark.parametrize(
     ("temperature", "pressure", "humidity", "cipm", "coolprop"),
     [
-        # REFERENCES.md [calc]: CIPM-2007 / CoolProp HAPropsSI.
+        # docs/references.md, "Air" [calc]: CIPM-2007 / CoolProp HAPropsSI.
         (20.0, 101325.0, 0.5, 1.19931, 1.19936),
         (20.0, 101325.0, 0.0, 1.20456, 1.20460),
         (30.0, 101325.0, 0.8, 1.15001, 1.15006),
@@ -215,7 +217,8 @@ def test_cipm_2007_agrees_with_coolprop(temperature, pressure, humidity):
 
 
 def test_ideal_gas_reads_a_little_below_cipm():
-    # REFERENCES.md: an ideal-gas mixture with a good saturation formula reads ~0.04 % low.
+    # docs/references.md, "Air" [calc]: an ideal-gas mixture with a good saturation formula
+    # reads ~0.04 % low.
     ratio = air_density_ideal_gas(20.0, 101325.0, 0.5) / air_density(20.0, 101325.0, 0.5)
     assert 1 - ratio == pytest.approx(4e-4, abs=1e-4)
 
@@ -230,7 +233,7 @@ def test_enhancement_factor_and_compressibility_are_close_to_one():
 
 
 def test_density_models_registry():
-    assert list(AIR_DENSITY_MODELS) == ["cipm_2007", "ideal_gas"]
+    assert list(AIR_DENSITY_MODELS) == ["cipm-2007", "ideal-gas"]
     for model in AIR_DENSITY_MODELS.values():
         assert model(20.0, 101325.0, 0.5) == pytest.approx(1.1995, rel=1e-3)
 

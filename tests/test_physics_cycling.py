@@ -1,8 +1,9 @@
 """Specification of the cycling power balance (pacing.physics.cycling).
 
 Sources beside each check. The equation and constants of Martin et al. (1998) are from memory
-(REFERENCES.md marks them [mem]); the worked values were computed from that equation
-(REFERENCES.md [calc]), so they pin the implementation to the equation as written there.
+(docs/references.md, "Cycling power balance (Martin et al. 1998)" marks them [mem]); the
+worked values were computed there from that equation with plain floats and scipy's brentq
+([calc]), so they pin the implementation to the equation as written there.
 """
 
 from __future__ import annotations
@@ -28,7 +29,8 @@ from pacing.physics.cycling import (
 )
 
 MARTIN_RIDER = Rider(mass=80.0, drag_area=0.269)
-"""REFERENCES.md worked-value rider: m = 80 kg, CdA = 0.269 m², Martin et al. constants."""
+"""The worked-value rider of docs/references.md, "Cycling power balance (Martin et al. 1998)":
+m = 80 kg, CdA = 0.269 m², Martin et al. constants."""
 
 
 # ---------------------------------------------------------------- Martin et al. (1998)
@@ -36,9 +38,9 @@ MARTIN_RIDER = Rider(mass=80.0, drag_area=0.269)
 @pytest.mark.parametrize(
     ("speed", "grade", "power"),
     [
-        (10.0, 0.0, 195.6),   # REFERENCES.md [calc]: 10 m/s flat → 195.6 W
-        (12.0, 0.0, 323.7),   # REFERENCES.md [calc]: 12 m/s flat → 323.7 W
-        (5.0, 0.06, 275.3),   # REFERENCES.md [calc]: 5 m/s on 6 % → 275.3 W
+        (10.0, 0.0, 195.6),   # [calc]: 10 m/s flat → 195.6 W
+        (12.0, 0.0, 323.7),   # [calc]: 12 m/s flat → 323.7 W
+        (5.0, 0.06, 275.3),   # [calc]: 5 m/s on 6 % → 275.3 W
     ],
 )
 def test_power_for_speed_matches_martin_1998_worked_values(speed, grade, power):
@@ -47,12 +49,14 @@ def test_power_for_speed_matches_martin_1998_worked_values(speed, grade, power):
 
 
 def test_speed_for_power_matches_martin_1998_worked_value():
-    # REFERENCES.md [calc]: 289 W on flat → 11.522 m/s (printed to 1 mm/s)
+    # docs/references.md, "Cycling power balance (Martin et al. 1998)" [calc]: 289 W on
+    # flat → 11.522 m/s (printed to 1 mm/s)
     assert speed_for_power(289.0, 0.0, 1.2, MARTIN_RIDER) == pytest.approx(11.522, abs=5e-4)
 
 
 def test_default_constants_are_martin_1998():
-    # Martin et al. 1998 constants (from memory, REFERENCES.md [mem])
+    # Martin et al. 1998 constants (from memory; docs/references.md, "Cycling power balance
+    # (Martin et al. 1998)" [mem])
     rider = Rider()
     assert rider.drivetrain_efficiency == 0.976
     assert rider.wheel_drag_area == 0.0044
@@ -89,14 +93,14 @@ def test_drag_at_36_is_1_44_times_drag_at_30():
 
 
 def test_apparent_wind_worked_value():
-    # REFERENCES.md [calc]: v = 10, W = 5 from 90° → v_A = 11.180 m/s, yaw 26.57°
+    # docs/references.md, "Wind" [calc]: v = 10, W = 5 from 90° → v_A = 11.180 m/s, yaw 26.57°
     along, apparent, yaw = air_speed_components(10.0, 0.0, 5.0)
     assert apparent == pytest.approx(11.180, abs=5e-4)
     assert yaw == pytest.approx(26.57, abs=5e-3)
 
 
 def test_crosswind_raises_drag_along_the_track():
-    # REFERENCES.md, Phys Rev Fluids 6:124601 (2021): crosswind drag is not just the
+    # docs/references.md, "Wind"; Phys Rev Fluids 6:124601 (2021): crosswind drag is not just the
     # along-track part; here F = ½ρCdA·V·v_a > ½ρCdA·v_a²
     assert aerodynamic_force(10.0, 1.2, Rider(), 0.0, 4.0) > aerodynamic_force(10.0, 1.2, Rider())
 

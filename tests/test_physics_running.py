@@ -1,7 +1,9 @@
-"""Running: energy cost on grades, air resistance, critical speed and D′ (the plans:
+"""Specification of pacing.physics.running: energy cost on grades and air resistance
+(critical speed and D′: tests/test_physiology_critical_speed.py; the plans:
 tests/test_plan_running.py).
 
-Each check names its source. REFERENCES.md is ../shared/REFERENCES.md ("Running").
+Each check names its source; values marked [calc] or [mem] are in docs/references.md,
+"Running".
 """
 
 from __future__ import annotations
@@ -27,11 +29,6 @@ from pacing.physics.running import (
     runner_drag_area,
     running_cost_minetti,
     speed_for_metabolic_power,
-)
-from pacing.physiology.critical_speed import (
-    critical_speed_flat_race_time,
-    critical_speed_time_limit,
-    distance_capacity_balance,
 )
 from pacing.plan.running import plan_equal_effort
 
@@ -61,7 +58,7 @@ def average_runner():
 @pytest.mark.parametrize(
     "grade, cost",
     # Minetti et al. 2002 (J Appl Physiol 93:1039) polynomial [read]; values [calc] in
-    # REFERENCES.md, printed to 3 decimals.
+    # docs/references.md, "Running", printed to 3 decimals.
     [(-0.2, 1.800), (-0.1, 2.152), (0.0, 3.600), (0.1, 5.968), (0.2, 9.007)],
 )
 def test_minetti_polynomial_matches_the_published_values(grade, cost):
@@ -110,21 +107,23 @@ def test_du_bois_body_surface_area():
 
 
 def test_default_drag_area_of_a_runner():
-    # REFERENCES.md [mem chain]: 0.9 × 0.266 × BSA ≈ 0.44 m² for 70 kg, 1.75 m (from memory)
+    # docs/references.md, "Running" [mem chain]: 0.9 × 0.266 × BSA ≈ 0.44 m² for 70 kg,
+    # 1.75 m (from memory)
     assert runner_drag_area(70.0, 1.75) == pytest.approx(0.44, abs=0.005)
 
 
 def test_air_term_agrees_with_di_prampero_form():
-    """Péronnet & Thibault 1989 (after di Prampero): 0.4·BSA·v³/m W/kg in still air [read in
-    REFERENCES.md]. Ours: ½ρ·(0.9·0.266·BSA)·v³/(0.361·m) at ρ = 1.2 kg/m³ → 0.398·BSA·v³/m:
-    the two agree within 1 %. The efficiency 0.361 is Lloyd & Zacks 1972 (J Physiol 223:355).
+    """Péronnet & Thibault 1989 (after di Prampero): 0.4·BSA·v³/m W/kg in still air [read in a
+    secondary copy; docs/references.md, "Running"]. Ours: ½ρ·(0.9·0.266·BSA)·v³/(0.361·m) at
+    ρ = 1.2 kg/m³ → 0.398·BSA·v³/m: the two agree within 1 %. The efficiency 0.361 is Lloyd &
+    Zacks 1972 (J Physiol 223:355).
     """
     runner = average_runner()
     bsa = body_surface_area_du_bois(70.0, 1.75)
     speed = np.array([3.0, 4.5, 6.0, 8.0])
     ours = metabolic_power(speed, 0.0, 1.2, runner) - metabolic_power(speed, 0.0, 1.2, NO_AIR)
     assert ours == pytest.approx(air_metabolic_power_di_prampero(speed, bsa, 70.0), rel=0.01)
-    # ≈ 0.0106·v³ for 70 kg, 1.75 m (REFERENCES.md)
+    # ≈ 0.0106·v³ for 70 kg, 1.75 m (docs/references.md, "Running" [calc])
     assert ours[2] / 6.0**3 == pytest.approx(0.0106, abs=0.0002)
     mechanical = air_resistance_power(speed, 1.2, runner.drag_area)
     assert ours * 70.0 * EFFICIENCY_AGAINST_AIR == pytest.approx(mechanical, rel=1e-12)
@@ -215,30 +214,6 @@ def test_bad_runner_and_air_input_is_refused():
         plan_equal_effort(course, NO_AIR, 40.0)  # 40 m/s: not a running pace
     with pytest.raises(InputError):
         plan_equal_effort(course, NO_AIR, FIVE_MINUTES_PER_KM, bounds=[0, 50, 20, 100])
-
-
-# --------------------------------------------------------------------------- critical speed
-
-
-def test_critical_speed_model_time_limit():
-    # Poole et al. 2016 (MSSE 48:2320): t = D′/(v − CS) [read]; Kordi et al. 2019 (IJSPP
-    # 14:685) trained men CS 4.94 m/s, D′ 123 m [read]: at 5.5 m/s, 123/0.56 = 219.64 s [calc]
-    assert critical_speed_time_limit(5.5, 4.94, 123.0) == pytest.approx(219.642857, rel=1e-6)
-    assert np.isinf(critical_speed_time_limit(4.9, 4.94, 123.0))
-    # 5 km on the flat: t = (d − D′)/CS = 4877/4.94 = 987.247 s [calc]
-    assert critical_speed_flat_race_time(5000.0, 4.94, 123.0) == pytest.approx(987.2470, abs=1e-3)
-    with pytest.raises(InputError):
-        critical_speed_flat_race_time(100.0, 4.94, 123.0)
-    with pytest.raises(InputError):
-        critical_speed_time_limit(5.0, -1.0, 123.0)
-
-
-def test_distance_capacity_balance_falls_above_and_recovers_below_critical_speed():
-    # Skiba differential form (REFERENCES.md [mem]) in speed units: 60 s at CS + 1 m/s spends
-    # 60 m; then 100 s at CS − 1 m/s recovers D′ − 60·e^(−100/123)
-    balance = distance_capacity_balance([5.94, 3.94], [60.0, 100.0], 4.94, 123.0)
-    assert balance[0] == pytest.approx(63.0)
-    assert balance[1] == pytest.approx(123.0 - 60.0 * np.exp(-100.0 / 123.0))
 
 
 # --------------------------------------------------------------------------- properties

@@ -38,8 +38,8 @@ def test_default_class_is_open_terrain():
 
 
 def test_factor_at_one_metre_over_open_terrain():
-    # REFERENCES.md [calc]: u(1 m)/u(10 m) = ln(1/0.03)/ln(10/0.03) = 0.604 (neutral log law,
-    # computed here independently).
+    # docs/references.md, "Wind" [calc]: u(1 m)/u(10 m) = ln(1/0.03)/ln(10/0.03) = 0.604
+    # (neutral log law, computed here independently).
     expected = math.log(1.0 / 0.03) / math.log(10.0 / 0.03)
     assert expected == pytest.approx(0.604, abs=5e-4)
     assert log_profile_factor(10.0, 1.0, 0.03) == pytest.approx(expected, rel=1e-12)
@@ -161,7 +161,8 @@ def test_components_are_vectorized_over_headings():
 
 
 def test_apparent_wind_example_from_references():
-    # REFERENCES.md [calc]: v = 10, W = 5 at 90° off the nose → V = 11.180 m/s, β = 26.57°.
+    # docs/references.md, "Wind" [calc]: v = 10, W = 5 at 90° off the nose → V = 11.180 m/s,
+    # β = 26.57°.
     head, cross = wind_components(0.0, 90.0, 5.0)
     along, apparent, yaw = air_speed_components(10.0, head, cross)
     assert along == pytest.approx(10.0, abs=1e-12)

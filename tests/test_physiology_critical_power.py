@@ -26,13 +26,15 @@ CP, W_PRIME = 250.0, 20000.0
 
 
 def test_critical_power_model_check_value():
-    # REFERENCES.md "Critical power" [calc]: CP 250 W, W′ 20 kJ, 400 W → 133.3 s.
+    # docs/references.md, "Critical power and W′ balance" [calc]: CP 250 W, W′ 20 kJ, 400 W
+    # → 133.3 s.
     # Equation P = W′/t + CP as printed in Skiba et al. 2012's abstract [read].
     assert time_to_exhaustion(400.0, CP, W_PRIME) == pytest.approx(133.333, abs=0.001)
 
 
 def test_morton_three_parameter_check_value():
-    # REFERENCES.md [calc], Morton 1996 (equation from memory): P_max 1000 W → 106.7 s.
+    # docs/references.md, "Critical power and W′ balance" [calc], Morton 1996 (equation from
+    # memory): P_max 1000 W → 106.7 s.
     assert time_to_exhaustion_morton(400.0, CP, W_PRIME, 1000.0) == pytest.approx(
         106.667, abs=0.001)
 
@@ -71,7 +73,8 @@ def test_bad_physiology_raises_input_error(call):
 
 
 def test_differential_form_worked_example():
-    # REFERENCES.md [calc] from Skiba et al. 2015's differential form (equation from memory):
+    # docs/references.md, "Critical power and W′ balance" [calc] from Skiba et al. 2015's
+    # differential form (equation from memory):
     # 60 s at 400 W then 60 s at 150 W → 13332.6 J.
     balance = w_prime_balance_differential([400.0, 150.0], [60.0, 60.0], CP, W_PRIME)
     assert balance[0] == pytest.approx(W_PRIME - 150.0 * 60.0)
@@ -79,7 +82,8 @@ def test_differential_form_worked_example():
 
 
 def test_integral_form_worked_example():
-    # REFERENCES.md [calc] from Skiba et al. 2012's integral form, continuous (equation and
+    # docs/references.md, "Critical power and W′ balance" [calc] from Skiba et al. 2012's
+    # integral form, continuous (equation and
     # τ = 546·e^(−0.01·D_CP) + 316 from memory): same series → 12434.0 J.
     balance = w_prime_balance_integral([400.0, 150.0], [60.0, 60.0], CP, W_PRIME)
     assert balance[-1] == pytest.approx(12434.0, abs=0.05)

@@ -50,7 +50,7 @@ def test_conditions_are_frozen():
 
 
 def test_wind_at_rider_over_open_terrain():
-    # Log law, open terrain (REFERENCES.md [calc]): 0.604 of the 10 m wind at 1 m.
+    # Log law, open terrain (docs/references.md, "Wind" [calc]): 0.604 of the 10 m wind at 1 m.
     factor = math.log(1.0 / 0.03) / math.log(10.0 / 0.03)
     assert Conditions(wind_speed=8.0).wind_at_rider == pytest.approx(8.0 * factor)
 
@@ -84,7 +84,8 @@ def test_invalid_conditions_raise_a_one_line_input_error(changes):
 
 
 def test_flat_course_at_sea_level_has_the_cipm_density_everywhere():
-    # CIPM-2007 check value, 20 °C, 101325 Pa, 50 % (REFERENCES.md [calc]): 1.19931 kg/m³.
+    # CIPM-2007 check value, 20 °C, 101325 Pa, 50 % (docs/references.md, "Air" [calc]):
+    # 1.19931 kg/m³.
     air = air_along_course(square_loop(), Conditions())
     assert air.density.shape == (4,)
     np.testing.assert_allclose(air.density, 1.19931, atol=5e-6)
@@ -120,10 +121,25 @@ def test_course_air_matches_coolprop_on_a_mountain_piece():
 
 def test_ideal_gas_model_can_be_chosen():
     course = square_loop()
-    air = air_along_course(course, Conditions(), density_model="ideal_gas")
+    air = air_along_course(course, Conditions(), density_model="ideal-gas")
     np.testing.assert_allclose(air.density, air_density_ideal_gas(20.0, 101325.0, 0.5))
-    with pytest.raises(InputError):
+    with pytest.raises(InputError, match="unknown air density model 'guess'; choose one of "
+                                         "cipm-2007, ideal-gas"):
         air_along_course(course, Conditions(), density_model="guess")
+
+
+@pytest.mark.parametrize(("old", "new"), [("cipm_2007", "cipm-2007"), ("ideal_gas", "ideal-gas")])
+def test_the_underscore_model_keys_of_earlier_versions_give_the_same_air(old, new):
+    # stored plans and user files may hold the old spelling
+    course = square_loop()
+    np.testing.assert_array_equal(air_along_course(course, Conditions(), density_model=old).density,
+                                  air_along_course(course, Conditions(), density_model=new).density)
+
+
+def test_the_default_density_model_is_cipm_2007():
+    course = square_loop()
+    np.testing.assert_array_equal(air_along_course(course, Conditions()).density,
+                                  air_along_course(course, Conditions(), "cipm-2007").density)
 
 
 def test_wind_from_the_north_on_a_square_loop():

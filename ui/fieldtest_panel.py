@@ -12,8 +12,10 @@ build the rides, tables and plotly figures; `render_fieldtest` draws the panel.
 from __future__ import annotations
 
 import hashlib
+from collections.abc import Sequence
 from dataclasses import dataclass
 from pathlib import Path
+from typing import Any
 
 import numpy as np
 import pandas as pd
@@ -21,15 +23,11 @@ import plotly.graph_objects as go
 import streamlit as st
 from plotly.subplots import make_subplots
 
+from pacing.display.notices import describe
 from pacing.display.units import to_display, unit_label
 from pacing.errors import ConflictError, InputError
-
-METHOD_LABELS = {
-    "Laps close on themselves (no heights needed)": "loop",
-    "Follow the recorded heights": "profile",
-    "Steady laps, mean force against speed": "regression",
-}
-"""Method choices (our words → pacing.fieldtest.estimate.METHODS key)."""
+from pacing.fieldtest.methods import FIELD_TEST_METHODS
+from pacing.notices import Notice
 
 LAP_COLORS = ("#0f6e8c", "#b5542c", "#6a3d9a", "#5a6b2f", "#c28f1a", "#1b7f79", "#8c2d5a",
               "#3d5a80")
@@ -43,34 +41,70 @@ BOOTSTRAP_DRAWS = 1000
 
 @dataclass(frozen=True, eq=False)
 class FieldTestRun:
-    """A finished field test: the library result, the position tests it used, the mean air
-    density [kg/m³] and the notes of reading and cleaning the rides."""
+    """A finished field test.
 
-    result: object
-    tests: tuple
+    Attributes
+    ----------
+    result : pacing.fieldtest.estimate.FieldTestResult
+        CdA per position, Crr, intervals and warnings.
+    tests : tuple of pacing.fieldtest.estimate.PositionTest
+        The position tests it used.
+    air_density : float
+        Mean air density over the rides [kg/m³].
+    notes : tuple of (str, pacing.notices.Notice)
+        Notes of reading and cleaning each ride, after the position's label.
+    """
+
+    result: Any
+    tests: tuple[Any, ...]
     air_density: float
-    notes: tuple[str, ...]
+    notes: tuple[tuple[str, Notice], ...]
 
 
-def read_tests(files, conditions) -> tuple[list, list[str]]:
+def note_lines(notes: Sequence[tuple[str, Notice]], system: str) -> list[str]:
+    """Each ride's notes in words after its label ("hoods: dropped 3 samples …").
+
+    Parameters
+    ----------
+    notes : sequence of (str, pacing.notices.Notice)
+        Position label and note.
+    system : str
+        "metric" or "imperial".
+
+    Returns
+    -------
+    list of str
+        One line per note.
+    """
+    return [f"{label}: {describe(notice, system)}" for label, notice in notes]
+
+
+def read_tests(files: Sequence[tuple[Any, ...]],
+               conditions: Any) -> tuple[list[Any], list[tuple[str, Notice]]]:
     """PositionTests (pacing.fieldtest.estimate) from uploaded files with their air.
 
     Parameters
     ----------
-    files : (file name, bytes, position label) per ride, optionally with a fourth item: lap
+    files : sequence of tuple
+        (file name, bytes, position label) per ride, optionally with a fourth item: lap
         boundaries as times from the ride start [s] (empty: laps found from the positions);
         an empty label takes the file name.
-    conditions : pacing.weather.conditions.Conditions of the test day.
+    conditions : pacing.weather.conditions.Conditions
+        The air and wind of the test day.
 
     Returns
     -------
-    (tests, notes): one PositionTest per file; notes of reading and cleaning, one line each.
+    tuple
+        (tests, notes): one PositionTest per file; notes of reading and cleaning as
+        (position label, pacing.notices.Notice).
     """
     from pacing.fieldtest.estimate import PositionTest
-    from pacing.fieldtest.ride import indices_at_times, laps_from_bounds, ride_air
+    from pacing.fieldtest.laps import indices_at_times, laps_from_bounds
+    from pacing.fieldtest.ride import ride_air
     from pacing.io.rides import read_ride
 
-    tests, notes = [], []
+    tests: list[PositionTest] = []
+    notes: list[tuple[str, Notice]] = []
     if not files:
         raise InputError("upload at least one test ride (CSV or GPX)")
     for index, (file_name, data, label, *rest) in enumerate(files):
@@ -91,26 +125,39 @@ def read_tests(files, conditions) -> tuple[list, list[str]]:
                                               ride.time.size))
             except InputError as error:
                 raise InputError(f"{file_name}: {_first_line(error)}") from None
-        density, headwind, crosswind = ride_air(ride, conditions)
-        tests.append(PositionTest(label, ride, density, laps, headwind, crosswind))
-        notes.extend(f"{label}: {note}" for note in ride.notes)
+        air = ride_air(ride, conditions)
+        tests.append(PositionTest(label, ride, air.density, laps, air.headwind, air.crosswind))
+        notes.extend((label, notice) for notice in ride.notes)
     return tests, notes
 
 
-def run_fieldtest(files, total_mass: float, conditions, method: str = "loop",
-                  rolling_coefficient: float | None = None,
+def run_fieldtest(files: Sequence[tuple[Any, ...]], total_mass: float, conditions: Any,
+                  method: str = "loop", rolling_coefficient: float | None = None,
                   drivetrain_efficiency: float = 0.976,
                   bootstrap: int = BOOTSTRAP_DRAWS) -> FieldTestRun:
     """Read the rides and estimate CdA per position and a shared Crr.
 
     Parameters
     ----------
-    files : (file name, bytes, position label) per ride (see read_tests).
-    total_mass : rider + bike + kit [kg], 20-300.
-    conditions : pacing.weather.conditions.Conditions; method : key of
-    pacing.fieldtest.estimate.METHODS;
-    rolling_coefficient : Crr to hold [-], or None to fit it; drivetrain_efficiency : [-];
-    bootstrap : draws for the intervals.
+    files : sequence of tuple
+        (file name, bytes, position label[, lap times [s]]) per ride (see read_tests).
+    total_mass : float
+        Rider + bike + kit [kg], 20-300.
+    conditions : pacing.weather.conditions.Conditions
+        The air and wind of the test day.
+    method : str
+        Key of pacing.fieldtest.methods.FIELD_TEST_METHODS.
+    rolling_coefficient : float or None
+        Crr to hold [-], or None to fit it.
+    drivetrain_efficiency : float
+        Drivetrain efficiency [-], 0.5-1.
+    bootstrap : int
+        Draws for the intervals [-].
+
+    Returns
+    -------
+    FieldTestRun
+        The result, the tests, the mean air density [kg/m³] and the rides' notes.
     """
     from pacing.fieldtest.estimate import estimate_drag
     from pacing.physics.cycling import Rider
@@ -135,14 +182,26 @@ def run_fieldtest(files, total_mass: float, conditions, method: str = "loop",
 
 # ------------------------------------------------------------------------------ tables
 
-def _interval(values, digits: int, unit: str = "") -> str:
+def _interval(values: Sequence[float] | None, digits: int, unit: str = "") -> str:
+    """A 95 % interval as "low to high", or why there is none."""
     if values is None:
         return "no interval (fewer than 3 laps)"
     return f"{values[0]:.{digits}f} to {values[1]:.{digits}f}{unit}"
 
 
-def position_table(result) -> pd.DataFrame:
-    """CdA per position with its 95 % interval, lap count and lap-to-lap spread."""
+def position_table(result: Any) -> pd.DataFrame:
+    """CdA per position with its 95 % interval, lap count and lap-to-lap spread.
+
+    Parameters
+    ----------
+    result : pacing.fieldtest.estimate.FieldTestResult
+        The field test's result.
+
+    Returns
+    -------
+    pandas.DataFrame
+        One row per position: CdA [m²], interval [m²], laps, lap-to-lap spread [%].
+    """
     rows = []
     for p in result.positions:
         laps = np.asarray(p.lap_drag_area, dtype=float)
@@ -158,8 +217,19 @@ def position_table(result) -> pd.DataFrame:
     return pd.DataFrame(rows)
 
 
-def rolling_line(result) -> str:
-    """Crr in words, with its interval or "held"."""
+def rolling_line(result: Any) -> str:
+    """Crr in words, with its interval or "held".
+
+    Parameters
+    ----------
+    result : pacing.fieldtest.estimate.FieldTestResult
+        The field test's result.
+
+    Returns
+    -------
+    str
+        One line.
+    """
     if result.rolling_fixed:
         return f"Crr {result.rolling_coefficient:.5f} (held at the value given)"
     if result.rolling_held:
@@ -169,9 +239,20 @@ def rolling_line(result) -> str:
             f"{_interval(result.rolling_coefficient_ci95, 5)}), shared by all positions")
 
 
-def difference_lines(result) -> list[str]:
+def difference_lines(result: Any) -> list[str]:
     """Each position against the first: the CdA difference, its interval, and whether it is
-    significant (the 95 % bootstrap interval excludes 0)."""
+    significant (the 95 % bootstrap interval excludes 0).
+
+    Parameters
+    ----------
+    result : pacing.fieldtest.estimate.FieldTestResult
+        The field test's result.
+
+    Returns
+    -------
+    list of str
+        One line per position after the first (differences in m²).
+    """
     lines = []
     for d in result.differences:
         word = ("a real difference (the 95 % interval excludes 0)" if d.significant
@@ -184,9 +265,24 @@ def difference_lines(result) -> list[str]:
 
 # ------------------------------------------------------------------------------ figures
 
-def lap_figure(estimate, system: str) -> go.Figure:
-    """Virtual elevation of every lap of one position against what it should follow (the
-    measured heights, or the laps' mean trace for loop closure), and the residuals below."""
+def lap_figure(estimate: Any, system: str) -> go.Figure:
+    """Virtual elevation of every lap of one position against what it should follow.
+
+    The reference is the measured heights, or the laps' mean trace for loop closure; the
+    residuals are drawn below.
+
+    Parameters
+    ----------
+    estimate : pacing.fieldtest.estimate.PositionEstimate
+        One position's CdA [m²] and lap traces.
+    system : str
+        "metric" or "imperial" (distance in km or mi, elevation in m or ft).
+
+    Returns
+    -------
+    plotly.graph_objects.Figure
+        Two rows sharing the distance axis.
+    """
     figure = make_subplots(rows=2, cols=1, shared_xaxes=True, row_heights=[0.68, 0.32],
                            vertical_spacing=0.06)
     for index, trace in enumerate(estimate.traces):
@@ -228,8 +324,20 @@ def lap_figure(estimate, system: str) -> go.Figure:
 # ------------------------------------------------------------------------------ Streamlit
 
 def road_test_cda_note() -> str:
-    """What the measured CdA leaves out: the rotating-wheel area F_w and the bearing friction
-    of Martin et al. (1998), which the fit takes off and the race model adds back."""
+    """What the measured CdA leaves out.
+
+    The rotating-wheel area F_w and the bearing friction of Martin et al. (1998), which the
+    fit takes off and the race model adds back.
+
+    Returns
+    -------
+    str
+        The note, with F_w in m².
+
+    References
+    ----------
+    Martin, J.C. et al. (1998). J Appl Biomech 14(3):276-291. doi:10.1123/jab.14.3.276
+    """
     from pacing.physics.cycling import MARTIN_1998
     from ui.text import ROAD_TEST_CDA_NOTE
 
@@ -237,12 +345,15 @@ def road_test_cda_note() -> str:
 
 
 def _first_line(error: Exception) -> str:
+    """The first line of an error's message (or its type's name)."""
     text = str(error).strip()
     return text.splitlines()[0] if text else type(error).__name__
 
 
 @st.cache_resource(max_entries=8, show_spinner="Fitting CdA and Crr…")
-def _cached_run(key: str, _files, total_mass, _conditions, method, rolling, efficiency):
+def _cached_run(key: str, _files: Sequence[tuple[Any, ...]], total_mass: float,
+                _conditions: Any, method: str, rolling: float | None,
+                efficiency: float) -> tuple[FieldTestRun | None, str | None]:
     """(FieldTestRun, None) or (None, one-line refusal), keyed on the files' digests and
     the inputs."""
     try:
@@ -253,7 +364,8 @@ def _cached_run(key: str, _files, total_mass, _conditions, method, rolling, effi
         return None, f"the rides could not be fitted: {_first_line(error)}"
 
 
-def _conditions_inputs(system: str):
+def _conditions_inputs(system: str) -> Any:
+    """The test day's air and wind as drawn (pacing.weather.conditions.Conditions)."""
     from pacing.weather.conditions import Conditions
     from ui.widgets import unit_number
 
@@ -278,27 +390,11 @@ def _conditions_inputs(system: str):
                       wind_height=height)
 
 
-def render_fieldtest(system: str, location=None, athlete_id: int | None = None):
-    """Draw the field-test panel; returns the Setup made from a measured position in the run
-    where the user asks for one, else None.
+def _uploaded_rides(uploads: Sequence[Any]) -> list[tuple[str, bytes, str, tuple]] | None:
+    """(file name, bytes, position label, lap times [s]) of each uploaded ride, with their
+    inputs drawn; None (after showing the error) when lap times do not read."""
+    from ui.pipeline import parse_marks
 
-    Parameters
-    ----------
-    system : "metric" or "imperial".
-    location : library path or URL to save setups into; None takes the library the library
-        panel opened in this session (if any).
-    athlete_id : library athlete the setup belongs to; None takes the athlete chosen in the
-        library panel.
-    """
-    from ui.widgets import unit_number
-
-    st.subheader("Measure CdA on the road")
-    st.caption("Ride laps of a quiet loop with a power meter, one file per riding position "
-               "(CSV with time_s, speed_mps, power_w and optional elevation_m, latitude, "
-               "longitude; or GPX with power in the track-point extensions). Laps at clearly "
-               "different speeds let CdA and Crr be told apart.")
-    uploads = st.file_uploader("Test rides", type=["csv", "gpx"], accept_multiple_files=True,
-                               key="ft_files") or []
     files = []
     for index, upload in enumerate(uploads):
         cols = st.columns([2, 3])
@@ -311,23 +407,29 @@ def render_fieldtest(system: str, location=None, athlete_id: int | None = None):
             help="leave empty to find the laps from the positions (each pass near the start "
                  "point); give at least two times to mark them yourself")
         try:
-            from ui.pipeline import parse_marks
-
             lap_times = parse_marks(marks) if marks.strip() else ()
         except InputError as error:
             st.error(f"{upload.name}: lap starts: {_first_line(error)}", icon="⚠️")
             return None
         files.append((upload.name, upload.getvalue(), label, lap_times))
+    return files
+
+
+def _fit_inputs(system: str) -> tuple[float, str, float | None, float]:
+    """(mass [kg], method key, Crr held [-] or None, drivetrain efficiency [-]) as drawn."""
+    from ui.widgets import unit_number
+
     cols = st.columns(3)
     with cols[0]:
         mass = unit_number("Rider, bike and kit", "mass", system, "ft_mass", 80.0, 30.0, 250.0,
                            0.5, help="everything that moves, weighed on the test day")
     with cols[1]:
-        label = st.radio("Method", list(METHOD_LABELS), key="ft_method",
-                         help="laps close: every lap returns to its start height, so noisy "
-                              "GPS heights do not matter; recorded heights: follow a trusted "
-                              "elevation trace; steady laps: the regression of Lim et al. "
-                              "(2011), for laps at constant speed")
+        method = st.radio("Method", list(FIELD_TEST_METHODS), key="ft_method",
+                          format_func=lambda key: FIELD_TEST_METHODS[key].label,
+                          help="laps close: every lap returns to its start height, so noisy "
+                               "GPS heights do not matter; recorded heights: follow a trusted "
+                               "elevation trace; steady laps: the regression of Lim et al. "
+                               "(2011), for laps at constant speed")
     with cols[2]:
         hold = st.checkbox("Hold Crr at a known value", key="ft_hold_crr")
         rolling = None
@@ -336,26 +438,21 @@ def render_fieldtest(system: str, location=None, athlete_id: int | None = None):
                                   0.0005)
         efficiency = unit_number("Drivetrain efficiency [%]", None, system, "ft_efficiency",
                                  97.6, 85.0, 100.0, 0.1) / 100.0
-    with st.expander("Air on the test day", expanded=False):
-        try:
-            conditions = _conditions_inputs(system)
-        except InputError as error:
-            st.error(_first_line(error), icon="⚠️")
-            return None
-    if not files:
-        st.info("Upload one or more test rides to measure CdA.")
-        return None
+    return float(mass), str(method), rolling, float(efficiency)
+
+
+def _run_key(files: Sequence[tuple[str, bytes, str, tuple]], mass: float, conditions: Any,
+             method: str, rolling: float | None, efficiency: float) -> str:
+    """Cache key of a run: the files' digests and every input."""
     digest = hashlib.sha256()
     for name, data, position, lap_times in files:
         digest.update(name.encode() + b"\0" + position.encode() + b"\0" + repr(lap_times).encode()
                       + hashlib.sha256(data).digest())
-    key = f"{digest.hexdigest()}|{mass!r}|{conditions!r}|{METHOD_LABELS[label]}|{rolling!r}|" \
-          f"{efficiency!r}"
-    run, refusal = _cached_run(key, tuple(files), float(mass), conditions,
-                               METHOD_LABELS[label], rolling, float(efficiency))
-    if refusal:
-        st.error(refusal, icon="⚠️")
-        return None
+    return f"{digest.hexdigest()}|{mass!r}|{conditions!r}|{method}|{rolling!r}|{efficiency!r}"
+
+
+def _show_run(run: FieldTestRun, system: str) -> None:
+    """The measured CdA and Crr, the table, the differences, warnings, notes and lap plots."""
     result = run.result
     cols = st.columns(len(result.positions) + 1)
     for column, position in zip(cols, result.positions, strict=False):
@@ -372,16 +469,67 @@ def render_fieldtest(system: str, location=None, athlete_id: int | None = None):
     st.caption(road_test_cda_note())
     for line in difference_lines(result):
         st.markdown(f"- {line}")
-    for warning in result.warnings:
-        st.warning(warning)
-    for note in run.notes:
-        st.caption(f"Note: {note}")
+    for notice in result.warnings:
+        st.warning(describe(notice, system))
+    for line in note_lines(run.notes, system):
+        st.caption(f"Note: {line}")
     for index, position in enumerate(result.positions):
         st.plotly_chart(lap_figure(position, system), key=f"ft_laps:{index}")
-    return _setup_maker(result, system, location, athlete_id)
 
 
-def _setup_maker(result, system: str, location, athlete_id):
+def render_fieldtest(system: str, location: str | None = None,
+                     athlete_id: int | None = None) -> Any:
+    """Draw the field-test panel.
+
+    Parameters
+    ----------
+    system : str
+        "metric" or "imperial".
+    location : str or None
+        Library path or URL to save setups into; None takes the library the library panel
+        opened in this session (if any).
+    athlete_id : int or None
+        Library athlete the setup belongs to; None takes the athlete chosen in the library
+        panel.
+
+    Returns
+    -------
+    pacing.athlete.Setup or None
+        The setup made from a measured position in the run where the user asks for one.
+    """
+    st.subheader("Measure CdA on the road")
+    st.caption("Ride laps of a quiet loop with a power meter, one file per riding position "
+               "(CSV with time_s, speed_mps, power_w and optional elevation_m, latitude, "
+               "longitude; or GPX with power in the track-point extensions). Laps at clearly "
+               "different speeds let CdA and Crr be told apart.")
+    uploads = st.file_uploader("Test rides", type=["csv", "gpx"], accept_multiple_files=True,
+                               key="ft_files") or []
+    files = _uploaded_rides(uploads)
+    if files is None:
+        return None
+    mass, method, rolling, efficiency = _fit_inputs(system)
+    with st.expander("Air on the test day", expanded=False):
+        try:
+            conditions = _conditions_inputs(system)
+        except InputError as error:
+            st.error(_first_line(error), icon="⚠️")
+            return None
+    if not files:
+        st.info("Upload one or more test rides to measure CdA.")
+        return None
+    key = _run_key(files, mass, conditions, method, rolling, efficiency)
+    run, refusal = _cached_run(key, tuple(files), mass, conditions, method, rolling, efficiency)
+    if refusal:
+        st.error(refusal, icon="⚠️")
+        return None
+    _show_run(run, system)
+    return _setup_maker(run.result, system, location, athlete_id)
+
+
+def _setup_maker(result: Any, system: str, location: str | None,
+                 athlete_id: int | None) -> Any:
+    """Inputs that turn a measured position into a setup (and save it to the library);
+    returns the Setup in the run where it is made, else None."""
     from ui.widgets import unit_number
 
     st.markdown("**Turn a measured position into a setup**")

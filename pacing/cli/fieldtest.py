@@ -18,11 +18,20 @@ from __future__ import annotations
 import argparse
 import json
 import sys
+from collections.abc import Sequence
+from typing import TYPE_CHECKING, Any
 
 import numpy as np
 
 from pacing.cli.common import add_air_flags, require
+from pacing.display.notices import describe, describe_all, labelled
 from pacing.errors import InputError
+from pacing.fieldtest.methods import FIELD_TEST_METHODS
+
+if TYPE_CHECKING:
+    from pacing.fieldtest.estimate import FieldTestResult, PositionTest
+    from pacing.notices import Notice
+    from pacing.weather.conditions import Conditions
 
 EPILOG = """\
 Ride laps of one loop at clearly different speeds (e.g. 25, 32 and 40 km/h): only speed
@@ -43,6 +52,13 @@ example: python -m pacing fieldtest hoods.csv aero.csv --mass 82 --position hood
 
 
 def add_parser(subparsers: argparse._SubParsersAction) -> None:
+    """Add the ``fieldtest`` command to the command line.
+
+    Parameters
+    ----------
+    subparsers : argparse._SubParsersAction
+        The command line's subcommands.
+    """
     parser = subparsers.add_parser(
         "fieldtest",
         help="measure CdA and Crr from test rides with a power meter",
@@ -58,9 +74,10 @@ def add_parser(subparsers: argparse._SubParsersAction) -> None:
                         help="rider + bike + kit [kg]")
     parser.add_argument("--position", action="append", default=None, metavar="LABEL",
                         help="label of each ride's position, in order (default: file names)")
-    parser.add_argument("--method", choices=("loop", "profile", "regression"), default="loop",
-                        help="loop: laps return to the same height (default); profile: fit "
-                             "the recorded elevation; regression: lap means (Lim et al. 2011)")
+    parser.add_argument("--method", choices=tuple(FIELD_TEST_METHODS), default="loop",
+                        help="; ".join(f"{key}: {method.computes}"
+                                       for key, method in FIELD_TEST_METHODS.items())
+                        + " (default loop)")
     parser.add_argument("--crr", type=float, default=None, metavar="CRR",
                         help="hold Crr at this value (your tyres on this road, 0-0.1) instead "
                              "of fitting it")
@@ -82,17 +99,13 @@ def add_parser(subparsers: argparse._SubParsersAction) -> None:
     parser.set_defaults(run=run)
 
 
-def _pair(values) -> list[float] | None:
+def _pair(values: Sequence[float] | None) -> list[float] | None:
+    """An interval rounded to 6 decimals for JSON, or None."""
     return None if values is None else [round(float(v), 6) for v in values]
 
 
-def run(args: argparse.Namespace) -> int:
-    from pacing.fieldtest.estimate import TYPICAL_ROLLING_COEFFICIENT, PositionTest, estimate_drag
-    from pacing.fieldtest.ride import indices_at_times, laps_from_bounds, ride_air
-    from pacing.io.rides import read_ride
-    from pacing.physics.cycling import Rider
-    from pacing.weather.conditions import Conditions
-
+def _check_flags(args: argparse.Namespace) -> None:
+    """Refuse flags out of range, and --position or --laps not given once per ride."""
     require(np.isfinite(args.mass) and 20.0 <= args.mass <= 300.0,
             f"--mass must be 20-300 kg (rider + bike), got {args.mass:g}")
     require(0.5 <= args.efficiency <= 1.0, f"--efficiency must be 0.5-1, got {args.efficiency:g}")
@@ -101,21 +114,33 @@ def run(args: argparse.Namespace) -> int:
     for flag, value in (("--crr", args.crr), ("--fallback-crr", args.fallback_crr)):
         require(value is None or (np.isfinite(value) and 0.0 <= value <= 0.1),
                 f"{flag} must be 0-0.1 (road tyres are about 0.002-0.01), got {value}")
-    labels = args.position or []
-    require(len(labels) in (0, len(args.rides)),
+    require(len(args.position or []) in (0, len(args.rides)),
             f"give one --position per ride ({len(args.rides)}), or none")
-    laps_flags = args.laps or []
-    require(len(laps_flags) in (0, len(args.rides)),
+    require(len(args.laps or []) in (0, len(args.rides)),
             f"give one --laps per ride ({len(args.rides)}), or none")
-    conditions = Conditions(
-        temperature=args.temperature, relative_humidity=args.humidity / 100.0,
-        sea_level_pressure=args.sea_level_pressure, wind_speed=args.wind_speed,
-        wind_from=args.wind_from, wind_height=args.wind_height,
-        roughness_length=args.roughness)
-    rider = Rider(mass=args.mass, drivetrain_efficiency=args.efficiency)
 
-    tests = []
-    notes = []
+
+def _lap_times(flag: str) -> list[float]:
+    """Lap boundaries of a --laps flag as times [s]."""
+    try:
+        return [float(t) for t in flag.split(",")]
+    except ValueError:
+        raise InputError(f"--laps must be times in seconds separated by commas, got "
+                         f"{flag!r}") from None
+
+
+def _position_tests(args: argparse.Namespace, conditions: Conditions,
+                    ) -> tuple[list[PositionTest], list[tuple[str, Notice]]]:
+    """One PositionTest per ride file, with its air, and each ride's notes by label."""
+    from pacing.fieldtest.estimate import PositionTest
+    from pacing.fieldtest.laps import indices_at_times, laps_from_bounds
+    from pacing.fieldtest.ride import ride_air
+    from pacing.io.rides import read_ride
+
+    labels = args.position or []
+    laps_flags = args.laps or []
+    tests: list[PositionTest] = []
+    notes: list[tuple[str, Notice]] = []
     for index, path in enumerate(args.rides):
         ride = read_ride(path)
         label = labels[index] if labels else ride.name
@@ -123,16 +148,39 @@ def run(args: argparse.Namespace) -> int:
             label = f"{label} ({index + 1})"
         laps = None
         if laps_flags:
-            try:
-                times = [float(t) for t in laps_flags[index].split(",")]
-            except ValueError:
-                raise InputError(f"--laps must be times in seconds separated by commas, got "
-                                 f"{laps_flags[index]!r}") from None
-            laps = tuple(laps_from_bounds(indices_at_times(ride, times), ride.time.size))
-        density, headwind, crosswind = ride_air(ride, conditions)
-        tests.append(PositionTest(label, ride, density, laps, headwind, crosswind))
-        notes.extend(f"{label}: {note}" for note in ride.notes)
+            bounds = indices_at_times(ride, _lap_times(laps_flags[index]))
+            laps = tuple(laps_from_bounds(bounds, ride.time.size))
+        air = ride_air(ride, conditions)
+        tests.append(PositionTest(label, ride, air.density, laps, air.headwind, air.crosswind))
+        notes.extend((label, notice) for notice in ride.notes)
+    return tests, notes
 
+
+def run(args: argparse.Namespace) -> int:
+    """Read the rides, estimate CdA and Crr, print a table or JSON.
+
+    Parameters
+    ----------
+    args : argparse.Namespace
+        The parsed flags (see `add_parser`).
+
+    Returns
+    -------
+    int
+        0; bad input raises pacing.errors.InputError (exit code 2).
+    """
+    from pacing.fieldtest.estimate import TYPICAL_ROLLING_COEFFICIENT, estimate_drag
+    from pacing.physics.cycling import Rider
+    from pacing.weather.conditions import Conditions
+
+    _check_flags(args)
+    conditions = Conditions(
+        temperature=args.temperature, relative_humidity=args.humidity / 100.0,
+        sea_level_pressure=args.sea_level_pressure, wind_speed=args.wind_speed,
+        wind_from=args.wind_from, wind_height=args.wind_height,
+        roughness_length=args.roughness)
+    rider = Rider(mass=args.mass, drivetrain_efficiency=args.efficiency)
+    tests, notes = _position_tests(args, conditions)
     fallback = TYPICAL_ROLLING_COEFFICIENT if args.fallback_crr is None else args.fallback_crr
     result = estimate_drag(tests, rider, method=args.method, rolling_coefficient=args.crr,
                            lap_radius=args.lap_radius, bootstrap=args.bootstrap,
@@ -144,7 +192,14 @@ def run(args: argparse.Namespace) -> int:
     return 0
 
 
-def _as_json(result, tests, notes) -> dict:
+def _note_lines(notes: Sequence[tuple[str, Notice]]) -> list[str]:
+    """Each ride's notes in words, after the ride's label: "hoods: dropped 3 samples …"."""
+    return [f"{label}: {describe(notice)}" for label, notice in notes]
+
+
+def _as_json(result: FieldTestResult, tests: Sequence[PositionTest],
+             notes: Sequence[tuple[str, Notice]]) -> dict[str, Any]:
+    """The result as the JSON object described in EPILOG."""
     return {
         "method": result.method,
         "cda_m2": round(result.drag_area, 5),
@@ -169,28 +224,34 @@ def _as_json(result, tests, notes) -> dict:
              round(d.difference, 5), "ci95": _pair(d.ci95), "significant": d.significant}
             for d in result.differences
         ],
-        "warnings": list(result.warnings),
-        "notes": notes,
+        "warnings": describe_all(result.warnings),
+        "notes": _note_lines(notes),
     }
 
 
-def _crr_source(result) -> str:
+def _crr_source(result: FieldTestResult) -> str:
+    """Where Crr came from: "given", "typical" (held) or "fitted"."""
     if result.rolling_fixed:
         return "given"
     return "typical" if result.rolling_held else "fitted"
 
 
 def _laps(count: int) -> str:
+    """The count with its noun: "1 lap" or "6 laps"."""
     return f"{count} lap" if count == 1 else f"{count} laps"
 
 
-def _interval(values, digits: int) -> str:
+def _interval(values: Sequence[float] | None, digits: int) -> str:
+    """A 95 % interval in words, or "(no interval)"."""
     if values is None:
         return "(no interval)"
     return f"(95 % interval {values[0]:.{digits}f} to {values[1]:.{digits}f})"
 
 
-def _as_text(result, tests, notes) -> str:
+def _as_text(result: FieldTestResult, tests: Sequence[PositionTest],
+             notes: Sequence[tuple[str, Notice]]) -> str:
+    """The result as lines for the terminal: CdA per position, Crr, differences, warnings and
+    notes."""
     lines = [f"method: {result.method}, {_laps(result.laps)}, air density "
              f"{float(np.mean(tests[0].air_density)):.3f} kg/m³"]
     for p in result.positions:
@@ -216,8 +277,8 @@ def _as_text(result, tests, notes) -> str:
         verdict = "significant" if d.significant else "not significant"
         lines.append(f"{d.label} - {d.baseline}: {d.difference:+.4f} m² "
                      f"{_interval(d.ci95, 4)}, {verdict}")
-    lines.extend(f"warning: {w}" for w in result.warnings)
-    lines.extend(f"note: {n}" for n in notes)
+    lines.extend(labelled(w) for w in result.warnings)
+    lines.extend(f"note: {line}" for line in _note_lines(notes))
     return "\n".join(lines)
 
 

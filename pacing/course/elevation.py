@@ -14,6 +14,7 @@ import warnings
 from dataclasses import dataclass
 
 import numpy as np
+from numpy.typing import ArrayLike
 
 from pacing.errors import InputError
 
@@ -29,19 +30,22 @@ ELEVATION_JUMP_GRADE = 1.0
 class ElevationSmoothing:
     """How a course's elevation is cleaned: smoothing over a distance window, then a grade limit.
 
-    Attributes
-    ----------
-    window : width of the smoothing window along the course [m]. For "gaussian" the kernel's
-        standard deviation is window/4 (truncated at ±3 standard deviations); for
-        "moving-average" it is a flat window of this width. 0 turns smoothing off.
-    max_grade : steepest grade kept after smoothing, up or down [-]; steeper pieces are
-        flattened to this grade.
-    method : a key of SMOOTHING_METHODS ("gaussian", "moving-average", "none").
-
     Both kernels are positive and symmetric; the ends are padded by odd reflection about the end
     points, so a straight or linear profile passes unchanged and the start and finish heights
     are kept, and the ascent of the cleaned course never exceeds that of the raw track (see
     smooth_elevation; padding with the end values is the fallback that guarantees it).
+
+    Attributes
+    ----------
+    window : float
+        Width of the smoothing window along the course, ≥ 0; for "gaussian" the kernel's
+        standard deviation is window/4 (truncated at ±3 standard deviations), for
+        "moving-average" it is a flat window of this width; 0 turns smoothing off [m].
+    max_grade : float
+        Steepest grade kept after smoothing, up or down, 0..1; steeper pieces are flattened
+        to this grade [-].
+    method : {"gaussian", "moving-average", "none"}
+        A key of SMOOTHING_METHODS [-].
     """
 
     window: float = 200.0
@@ -59,8 +63,26 @@ class ElevationSmoothing:
                              f"{', '.join(SMOOTHING_METHODS)}")
 
 
-def total_ascent(elevation: np.ndarray) -> float:
-    """Sum of the rises between consecutive points [m] (descents are not subtracted)."""
+def total_ascent(elevation: ArrayLike) -> float:
+    """Sum of the rises between consecutive points, descents not subtracted [m].
+
+    Parameters
+    ----------
+    elevation : array_like
+        Elevation of consecutive points [m].
+
+    Returns
+    -------
+    float
+        Total ascent [m].
+
+    Examples
+    --------
+    Up 5 m, down 2 m, up 7 m: 12 m of ascent.
+
+    >>> total_ascent([100.0, 105.0, 103.0, 110.0])
+    12.0
+    """
     rise = np.diff(np.asarray(elevation, dtype=float))
     return float(rise[rise > 0].sum())
 
@@ -68,8 +90,15 @@ def total_ascent(elevation: np.ndarray) -> float:
 def check_elevation_jumps(length: np.ndarray, elevation: np.ndarray) -> None:
     """Raise InputError where the elevation changes absurdly between two track points.
 
-    A change |Δz| > ELEVATION_JUMP_SLACK + ELEVATION_JUMP_GRADE·Δs (Δs the horizontal distance
-    [m]) is taken as a recording fault no cleaning should paper over.
+    A change |Δz| > ELEVATION_JUMP_SLACK + ELEVATION_JUMP_GRADE·Δs (Δs the horizontal distance)
+    is taken as a recording fault no cleaning should paper over.
+
+    Parameters
+    ----------
+    length : numpy.ndarray
+        Horizontal distance between consecutive track points Δs, length M-1 [m].
+    elevation : numpy.ndarray
+        Elevation of the track points, length M [m].
     """
     jump = np.abs(np.diff(elevation))
     bad = jump > ELEVATION_JUMP_SLACK + ELEVATION_JUMP_GRADE * length
@@ -87,8 +116,15 @@ def fill_missing_elevation(distance: np.ndarray, elevation: np.ndarray) -> np.nd
 
     Parameters
     ----------
-    distance : distance of each track point from the start [m], increasing.
-    elevation : elevation of each point [m], NaN where the point has none.
+    distance : numpy.ndarray
+        Distance of each track point from the start, increasing [m].
+    elevation : numpy.ndarray
+        Elevation of each point, NaN where the point has none [m].
+
+    Returns
+    -------
+    numpy.ndarray
+        Elevation of every point [m] (the input itself when none is missing).
     """
     known = np.isfinite(elevation)
     if known.all():
@@ -129,7 +165,7 @@ SMOOTHING_METHODS = {
 """Elevation smoothing kernels by name: function (window [m], step [m]) -> positive weights."""
 
 
-def smooth_elevation(elevation: np.ndarray, step: float,
+def smooth_elevation(elevation: ArrayLike, step: float,
                      smoothing: ElevationSmoothing = ElevationSmoothing()) -> np.ndarray:
     """Elevation smoothed over a distance window [m] (no grade limit).
 
@@ -150,13 +186,28 @@ def smooth_elevation(elevation: np.ndarray, step: float,
     larger ascent, the ends are padded with the end values instead, for which the same bound
     holds with any positive kernel.
 
+    The odd reflection is numpy.pad(mode="reflect", reflect_type="odd").
+
     Parameters
     ----------
-    elevation : elevation at points a uniform `step` apart [m].
-    step : distance between the points [m].
-    smoothing : window and method.
+    elevation : array_like
+        Elevation at points a uniform `step` apart [m].
+    step : float
+        Distance between the points [m].
+    smoothing : ElevationSmoothing, optional
+        Window [m] and method; its grade limit is not applied here.
 
-    The odd reflection is numpy.pad(mode="reflect", reflect_type="odd").
+    Returns
+    -------
+    numpy.ndarray
+        Smoothed elevation, same length [m].
+
+    Examples
+    --------
+    A straight climb passes unchanged (a symmetric kernel averages a line to itself):
+
+    >>> smooth_elevation([100.0, 101.0, 102.0, 103.0, 104.0], 10.0).tolist()
+    [100.0, 101.0, 102.0, 103.0, 104.0]
     """
     elevation = np.asarray(elevation, dtype=float)
     make_kernel = SMOOTHING_METHODS[smoothing.method]
@@ -195,21 +246,58 @@ def limit_grade(distance: np.ndarray, elevation: np.ndarray, max_grade: float) -
 
     z'[0] = z[0]; z'[i+1] = z'[i] + clip(z[i+1] − z[i], −g·Δs, +g·Δs). Clipping only shrinks
     rises, so ascent never grows.
+
+    Parameters
+    ----------
+    distance : numpy.ndarray
+        Distance of each point, increasing [m].
+    elevation : numpy.ndarray
+        Elevation of each point [m].
+    max_grade : float
+        g, the steepest grade kept [-].
+
+    Returns
+    -------
+    numpy.ndarray
+        Elevation with no piece steeper than g [m].
+
+    Examples
+    --------
+    A 10 m step between two points 10 m apart becomes a 25 % ramp of 2.5 m:
+
+    >>> limit_grade(np.array([0.0, 10.0, 20.0]), np.array([0.0, 10.0, 10.0]), 0.25).tolist()
+    [0.0, 2.5, 2.5]
     """
     length = np.diff(distance)
     rise = np.clip(np.diff(elevation), -max_grade * length, max_grade * length)
     return elevation[0] + np.concatenate([[0.0], np.cumsum(rise)])
 
 
-def clean_elevation(distance: np.ndarray, elevation: np.ndarray,
+def clean_elevation(distance: ArrayLike, elevation: ArrayLike,
                     smoothing: ElevationSmoothing = ElevationSmoothing()) -> np.ndarray:
     """Smooth the elevation over `smoothing.window`, then limit the grade [m].
 
     Parameters
     ----------
-    distance : distance of each point, uniform step except maybe the last piece [m].
-    elevation : resampled raw elevation [m].
-    smoothing : window, grade limit and method.
+    distance : array_like
+        Distance of each point, a uniform step except maybe the last piece [m].
+    elevation : array_like
+        Resampled raw elevation [m].
+    smoothing : ElevationSmoothing, optional
+        Window [m], grade limit [-] and method.
+
+    Returns
+    -------
+    numpy.ndarray
+        Cleaned elevation [m].
+
+    Examples
+    --------
+    A 5 % climb keeps its end heights and its grade (the default 200 m Gaussian window):
+
+    >>> distance = np.arange(0.0, 1001.0, 10.0)
+    >>> clean_elevation(distance, 100.0 + 0.05 * distance)[[0, 50, 100]].round(6).tolist()
+    [100.0, 125.0, 150.0]
     """
     distance = np.asarray(distance, dtype=float)
     step = float(distance[1] - distance[0]) if distance.size > 1 else 1.0

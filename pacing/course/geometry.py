@@ -32,6 +32,7 @@ import math
 from dataclasses import dataclass
 
 import numpy as np
+from numpy.typing import ArrayLike
 from pyproj import Geod
 
 from pacing.course.elevation import (
@@ -72,7 +73,9 @@ LOWEST_ELEVATION = -500.0
 HIGHEST_ELEVATION = 9000.0
 """Highest plausible elevation of a course [m] (Everest is 8849 m)."""
 
-
+METRES_PER_DEGREE = 111_195.0
+"""Length of one degree on the sphere of mean radius 6 371 km [m], used to place a synthetic
+course's display positions."""
 
 WGS84 = Geod(ellps="WGS84")
 """The WGS84 ellipsoid for geodesic distances and azimuths (pyproj, after Karney 2013)."""
@@ -86,18 +89,29 @@ class Course:
 
     Attributes
     ----------
-    distance : horizontal distance from the start of each point [m], length N, uniform step
-        except possibly the last piece.
-    latitude, longitude : WGS84 position of each point [deg], length N.
-    elevation : cleaned elevation of each point [m], length N.
-    raw_elevation : elevation of each point before cleaning, resampled [m], length N.
-    grade : grade of each piece, rise/run [-], length N-1.
-    heading : direction of travel of each piece [deg clockwise from north], length N-1.
-    corner_radius : radius of the road's curve at each point [m], capped at
-        STRAIGHT_ROAD_RADIUS, length N.
-    name : a label for the course.
-    raw_ascent : total ascent of the raw track, before resampling and cleaning [m].
-    smoothing : the elevation cleaning used (None for a course made from numbers).
+    distance : numpy.ndarray
+        Horizontal distance of each point from the start, length N, a uniform step except
+        possibly the last piece [m].
+    latitude : numpy.ndarray
+        WGS84 latitude of each point, length N [deg].
+    longitude : numpy.ndarray
+        WGS84 longitude of each point, length N [deg].
+    elevation : numpy.ndarray
+        Cleaned elevation of each point, length N [m].
+    raw_elevation : numpy.ndarray
+        Elevation of each point before cleaning, resampled, length N [m].
+    grade : numpy.ndarray
+        Grade of each piece, rise/run, length N-1 [-].
+    heading : numpy.ndarray
+        Direction of travel of each piece, clockwise from north, length N-1 [deg].
+    corner_radius : numpy.ndarray
+        Radius of the road's curve at each point, capped at STRAIGHT_ROAD_RADIUS, length N [m].
+    name : str
+        A label for the course [-].
+    raw_ascent : float
+        Total ascent of the raw track, before resampling and cleaning [m].
+    smoothing : ElevationSmoothing or None
+        The elevation cleaning used (None for a course made from numbers).
     """
 
     distance: np.ndarray
@@ -145,24 +159,42 @@ class Course:
 
 
 def synthetic_course(
-    distance: np.ndarray,
-    elevation: np.ndarray,
-    heading: float | np.ndarray = 0.0,
-    corner_radius: float | np.ndarray = STRAIGHT_ROAD_RADIUS,
+    distance: ArrayLike,
+    elevation: ArrayLike,
+    heading: ArrayLike = 0.0,
+    corner_radius: ArrayLike = STRAIGHT_ROAD_RADIUS,
     name: str = "synthetic",
 ) -> Course:
     """A course straight from arrays, for tests and for courses described by numbers.
 
+    Latitude and longitude are placed on a flat-earth approximation around (0, 0) following the
+    headings; they are for display only. The elevation is taken as it is (no cleaning).
+
     Parameters
     ----------
-    distance : horizontal distance of each point [m], strictly increasing, length N >= 2.
-    elevation : elevation of each point [m], length N.
-    heading : direction of travel per piece [deg from north], scalar or length N-1.
-    corner_radius : per point [m], scalar or length N.
-    name : label.
+    distance : array_like
+        Horizontal distance of each point, strictly increasing, length N ≥ 2 [m].
+    elevation : array_like
+        Elevation of each point, length N [m].
+    heading : float or array_like, optional
+        Direction of travel of each piece, a number or length N-1 [deg clockwise from north].
+    corner_radius : float or array_like, optional
+        Radius of the road's curve at each point, a number or length N [m].
+    name : str, optional
+        Label of the course [-].
 
-    Latitude and longitude are placed on a flat-earth approximation around (0, 0) following the
-    headings; they are for display only.
+    Returns
+    -------
+    Course
+        The course, grades from the elevation differences.
+
+    Examples
+    --------
+    500 m up 25 m (5 %) and 500 m down 5 m (−1 %):
+
+    >>> course = synthetic_course([0.0, 500.0, 1000.0], [100.0, 125.0, 120.0])
+    >>> course.grade.tolist(), course.ascent, course.descent
+    ([0.05, -0.01], 25.0, 5.0)
     """
     distance = np.asarray(distance, dtype=float)
     elevation = np.asarray(elevation, dtype=float)
@@ -175,12 +207,11 @@ def synthetic_course(
     radius = np.broadcast_to(np.asarray(corner_radius, dtype=float), distance.shape)
     north = np.concatenate([[0.0], np.cumsum(step * np.cos(np.radians(heading)))])
     east = np.concatenate([[0.0], np.cumsum(step * np.sin(np.radians(heading)))])
-    metres_per_degree = 111_195.0
     rise = np.diff(elevation)
     return Course(
         distance=distance,
-        latitude=north / metres_per_degree,
-        longitude=east / metres_per_degree,
+        latitude=north / METRES_PER_DEGREE,
+        longitude=east / METRES_PER_DEGREE,
         elevation=elevation,
         raw_elevation=elevation.copy(),
         grade=rise / step,
@@ -193,20 +224,39 @@ def synthetic_course(
 
 # ------------------------------------------------------------------------------ geodesy
 
-def geodesic_pieces(latitude: np.ndarray, longitude: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+def geodesic_pieces(latitude: ArrayLike, longitude: ArrayLike) -> tuple[np.ndarray, np.ndarray]:
     """Length and initial azimuth of the geodesic between consecutive points on WGS84.
-
-    Parameters
-    ----------
-    latitude, longitude : positions [deg], length N >= 1.
-
-    Returns
-    -------
-    length : [m], length N-1.
-    azimuth : direction at the start of each piece [deg clockwise from north, 0..360), length N-1.
 
     Solved with pyproj.Geod.inv, Karney's (2013) algorithm, accurate to nanometres; a piece that
     crosses the antimeridian is measured the short way.
+
+    Parameters
+    ----------
+    latitude : array_like
+        Latitude of each point, length N ≥ 1 [deg].
+    longitude : array_like
+        Longitude of each point, length N [deg].
+
+    Returns
+    -------
+    length : numpy.ndarray
+        Geodesic length of each piece, length N-1 [m].
+    azimuth : numpy.ndarray
+        Direction at the start of each piece, 0..360, length N-1 [deg clockwise from north].
+
+    References
+    ----------
+    Karney, C.F.F. (2013). Algorithms for geodesics. J Geodesy 87:43-55.
+    doi:10.1007/s00190-012-0578-z
+
+    Examples
+    --------
+    One degree of latitude north from the equator; geographiclib's Inverse(0, 0, 1, 0) gives
+    110 574.3886 m:
+
+    >>> length, azimuth = geodesic_pieces([0.0, 1.0], [0.0, 0.0])
+    >>> round(float(length[0]), 4), float(azimuth[0])
+    (110574.3886, 0.0)
     """
     latitude = np.asarray(latitude, dtype=float)
     longitude = np.asarray(longitude, dtype=float)
@@ -216,22 +266,42 @@ def geodesic_pieces(latitude: np.ndarray, longitude: np.ndarray) -> tuple[np.nda
     return np.asarray(length, dtype=float), np.mod(np.asarray(azimuth, dtype=float), 360.0)
 
 
-def validate_track(latitude, longitude, elevation=None) -> tuple[np.ndarray, ...]:
+def validate_track(
+    latitude: ArrayLike, longitude: ArrayLike, elevation: ArrayLike | None = None
+) -> tuple[np.ndarray, np.ndarray, np.ndarray | None]:
     """Check the raw track's arrays and return them as float arrays.
 
     Raises InputError for unequal lengths, fewer than two points, non-finite or out-of-range
     positions, elevations outside LOWEST_ELEVATION..HIGHEST_ELEVATION. NaN elevations mean
     "missing at that point" and are kept (build_course fills them).
+
+    Parameters
+    ----------
+    latitude : array_like
+        Latitude of each track point, -90..90 [deg].
+    longitude : array_like
+        Longitude of each track point, -180..180 [deg].
+    elevation : array_like, optional
+        Elevation of each track point, NaN where missing [m].
+
+    Returns
+    -------
+    latitude : numpy.ndarray
+        Flat float array [deg].
+    longitude : numpy.ndarray
+        Flat float array [deg].
+    elevation : numpy.ndarray or None
+        Flat float array, or None when none was given [m].
     """
     try:
         latitude = np.asarray(latitude, dtype=float).ravel()
         longitude = np.asarray(longitude, dtype=float).ravel()
-        elevation = (None if elevation is None
-                     else np.asarray(elevation, dtype=float).ravel())
+        heights = (None if elevation is None
+                   else np.asarray(elevation, dtype=float).ravel())
     except (TypeError, ValueError):
         raise InputError("positions and elevations must be numbers") from None
-    if latitude.size != longitude.size or (elevation is not None
-                                           and elevation.size != latitude.size):
+    if latitude.size != longitude.size or (heights is not None
+                                           and heights.size != latitude.size):
         raise InputError("latitude, longitude and elevation must have the same number of points")
     if latitude.size == 0:
         raise InputError("the course has no points")
@@ -247,20 +317,41 @@ def validate_track(latitude, longitude, elevation=None) -> tuple[np.ndarray, ...
         index = int(np.argmax(bad))
         raise InputError(f"longitude out of range -180..180 deg at point {index + 1}: "
                          f"{longitude[index]:g}")
-    if elevation is not None:
+    if heights is not None:
         with np.errstate(invalid="ignore"):
-            bad = np.isinf(elevation) | (elevation < LOWEST_ELEVATION) | (
-                elevation > HIGHEST_ELEVATION)
+            bad = np.isinf(heights) | (heights < LOWEST_ELEVATION) | (
+                heights > HIGHEST_ELEVATION)
         if bad.any():
             index = int(np.argmax(bad))
-            raise InputError(f"elevation {elevation[index]:g} m at point {index + 1} is outside "
+            raise InputError(f"elevation {heights[index]:g} m at point {index + 1} is outside "
                              f"the plausible range {LOWEST_ELEVATION:g}..{HIGHEST_ELEVATION:g} m")
-    return latitude, longitude, elevation
+    return latitude, longitude, heights
 
 
 def resample_distance(total: float, step: float) -> np.ndarray:
-    """Uniform distances 0, step, 2·step, … and the total [m]; the last piece is kept between
-    0.1·step and 1.1·step long so that no sliver piece remains."""
+    """Uniform distances 0, step, 2·step, … and the total [m].
+
+    The last piece is kept between 0.1·step and 1.1·step long so that no sliver piece remains.
+
+    Parameters
+    ----------
+    total : float
+        Length of the course [m].
+    step : float
+        Resampling step [m].
+
+    Returns
+    -------
+    numpy.ndarray
+        Distances of the resampled points [m].
+
+    Examples
+    --------
+    A 0.5 m sliver at the end is joined to the last piece, which becomes 10.5 m long:
+
+    >>> resample_distance(30.5, 10.0).tolist()
+    [0.0, 10.0, 20.0, 30.5]
+    """
     grid = np.arange(0.0, total, step)
     if grid.size > 1 and total - grid[-1] < 0.1 * step:
         grid = grid[:-1]
@@ -268,11 +359,25 @@ def resample_distance(total: float, step: float) -> np.ndarray:
 
 
 def circumradius(latitude: np.ndarray, longitude: np.ndarray, offset: int) -> np.ndarray:
-    """Circumradius [m] of each point i with points i-k and i+k, k = min(offset, i, N-1-i).
+    """Circumradius of each point i with points i-k and i+k, k = min(offset, i, N-1-i) [m].
 
     R = a·b·c / (4·area) for the triangle, in an azimuthal equidistant projection centred on
     point i (coordinates from the geodesic distance and azimuth to each neighbour: exact at the
     centre, valid across the antimeridian). Infinite for collinear points and at the two ends.
+
+    Parameters
+    ----------
+    latitude : numpy.ndarray
+        Latitude of each point, length N [deg].
+    longitude : numpy.ndarray
+        Longitude of each point, length N [deg].
+    offset : int
+        k, the number of points to each neighbour [-].
+
+    Returns
+    -------
+    numpy.ndarray
+        Circumradius at each point, length N [m].
     """
     count = latitude.size
     radius = np.full(count, np.inf)
@@ -298,7 +403,7 @@ def circumradius(latitude: np.ndarray, longitude: np.ndarray, offset: int) -> np
     return radius
 
 
-def corner_radius(latitude: np.ndarray, longitude: np.ndarray, step: float,
+def corner_radius(latitude: ArrayLike, longitude: ArrayLike, step: float,
                   span: float = CORNER_SPAN) -> np.ndarray:
     """Radius of the road's curve at each point [m], capped at STRAIGHT_ROAD_RADIUS.
 
@@ -311,9 +416,19 @@ def corner_radius(latitude: np.ndarray, longitude: np.ndarray, step: float,
 
     Parameters
     ----------
-    latitude, longitude : points at a uniform step [deg], length N.
-    step : distance between the points [m].
-    span : distance to each neighbour [m]; rounded to a whole number of steps (at least one).
+    latitude : array_like
+        Latitude of points a uniform step apart, length N [deg].
+    longitude : array_like
+        Longitude of the points, length N [deg].
+    step : float
+        Distance between the points [m].
+    span : float, optional
+        Distance to each neighbour, rounded to a whole number of steps (at least one) [m].
+
+    Returns
+    -------
+    numpy.ndarray
+        Corner radius at each point, length N [m].
     """
     latitude = np.asarray(latitude, dtype=float)
     longitude = np.asarray(longitude, dtype=float)
@@ -325,29 +440,8 @@ def corner_radius(latitude: np.ndarray, longitude: np.ndarray, step: float,
 
 # ------------------------------------------------------------------------------ build
 
-def build_course(latitude, longitude, elevation, step: float = DEFAULT_STEP,
-                 smoothing: ElevationSmoothing = ElevationSmoothing(),  # noqa: B008 (frozen)
-                 name: str = "course") -> Course:
-    """Build a Course from a raw track (positions in order along the course).
-
-    Parameters
-    ----------
-    latitude, longitude : WGS84 positions of the track points [deg], length M >= 2.
-    elevation : elevation of each track point [m], length M; NaN where a point has none (filled
-        by interpolation along the distance, with a UserWarning saying how many).
-    step : resampling step [m], MINIMUM_STEP..MAXIMUM_STEP.
-    smoothing : elevation cleaning.
-    name : label of the course.
-
-    Returns
-    -------
-    Course with `distance` along the track (sum of geodesic piece lengths), elevation cleaned,
-    grade from the cleaned elevation, heading and corner radius from the resampled positions.
-
-    Raises InputError (one-line message) for bad positions, elevations, step, a track whose
-    points are all at one place, absurd elevation jumps, or a course too long for the step.
-    Repeated consecutive points are dropped silently.
-    """
+def _checked_step(step: float) -> float:
+    """The resampling step as a float, or InputError unless MINIMUM_STEP ≤ step ≤ MAXIMUM_STEP."""
     try:
         step = float(step)
     except (TypeError, ValueError):
@@ -355,27 +449,25 @@ def build_course(latitude, longitude, elevation, step: float = DEFAULT_STEP,
     if not (math.isfinite(step) and MINIMUM_STEP <= step <= MAXIMUM_STEP):
         raise InputError(f"step must be between {MINIMUM_STEP:g} and {MAXIMUM_STEP:g} m, "
                          f"got {step:g}")
-    if smoothing is None:
-        smoothing = ElevationSmoothing()
-    if elevation is None:
-        raise InputError("the course has no elevation")
-    latitude, longitude, elevation = validate_track(latitude, longitude, elevation)
+    return step
 
+
+def _without_repeated_points(latitude: np.ndarray, longitude: np.ndarray,
+                             elevation: np.ndarray) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+    """The track without points closer than REPEATED_POINT_DISTANCE to the one before."""
     length, _ = geodesic_pieces(latitude, longitude)
     keep = np.concatenate([[True], length > REPEATED_POINT_DISTANCE])
     latitude, longitude, elevation = latitude[keep], longitude[keep], elevation[keep]
     if latitude.size < 2:
         raise InputError("all points of the course are at the same place")
-    length, azimuth = geodesic_pieces(latitude, longitude)
-    track_distance = np.concatenate([[0.0], np.cumsum(length)])
-    elevation = fill_missing_elevation(track_distance, elevation)
-    check_elevation_jumps(length, elevation)
-    total = float(track_distance[-1])
-    if total / step > MAXIMUM_COURSE_POINTS:
-        raise InputError(f"course of {total / 1000:.0f} km is too long for a {step:g} m step "
-                         f"(at most {MAXIMUM_COURSE_POINTS} points)")
+    return latitude, longitude, elevation
 
-    distance = resample_distance(total, step)
+
+def _positions_at(distance: np.ndarray, latitude: np.ndarray, longitude: np.ndarray,
+                  track_distance: np.ndarray, length: np.ndarray,
+                  azimuth: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+    """Latitude and longitude [deg] at distances along the track, each moved along its raw
+    piece's geodesic (pyproj.Geod.fwd); the last point is the track's last point."""
     piece = np.clip(np.searchsorted(track_distance, distance, side="right") - 1,
                     0, length.size - 1)
     along = distance - track_distance[piece]
@@ -385,8 +477,77 @@ def build_course(latitude, longitude, elevation, step: float = DEFAULT_STEP,
     new_longitude = np.asarray(new_longitude, dtype=float)
     new_latitude[-1], new_longitude[-1] = latitude[-1], longitude[-1]
     new_longitude = (new_longitude + 180.0) % 360.0 - 180.0
+    return new_latitude, new_longitude
 
-    raw_elevation = np.interp(distance, track_distance, elevation)
+
+def build_course(latitude: ArrayLike, longitude: ArrayLike, elevation: ArrayLike | None,
+                 step: float = DEFAULT_STEP,
+                 smoothing: ElevationSmoothing = ElevationSmoothing(),  # noqa: B008 (frozen)
+                 name: str = "course") -> Course:
+    """Build a Course from a raw track (positions in order along the course).
+
+    Raises InputError (one-line message) for bad positions, elevations, step, a track whose
+    points are all at one place, absurd elevation jumps, or a course too long for the step.
+    Repeated consecutive points are dropped silently.
+
+    Parameters
+    ----------
+    latitude : array_like
+        WGS84 latitude of the track points, length M ≥ 2 [deg].
+    longitude : array_like
+        WGS84 longitude of the track points, length M [deg].
+    elevation : array_like
+        Elevation of each track point, length M; NaN where a point has none (filled by
+        interpolation along the distance, with a UserWarning saying how many) [m].
+    step : float, optional
+        Resampling step, MINIMUM_STEP..MAXIMUM_STEP [m].
+    smoothing : ElevationSmoothing, optional
+        Elevation cleaning.
+    name : str, optional
+        Label of the course [-].
+
+    Returns
+    -------
+    Course
+        `distance` along the track (sum of geodesic piece lengths), elevation cleaned, grade
+        from the cleaned elevation, heading and corner radius from the resampled positions.
+
+    References
+    ----------
+    Karney, C.F.F. (2013). Algorithms for geodesics. J Geodesy 87:43-55.
+    doi:10.1007/s00190-012-0578-z
+
+    Examples
+    --------
+    One degree of latitude north from the equator measures 110 574.3886 m on WGS84
+    (geographiclib's Inverse(0, 0, 1, 0)), resampled every 10 m:
+
+    >>> course = build_course([0.0, 1.0], [0.0, 0.0], [0.0, 0.0])
+    >>> round(course.total_distance, 4), course.distance.size
+    (110574.3886, 11059)
+    """
+    step = _checked_step(step)
+    if smoothing is None:
+        smoothing = ElevationSmoothing()
+    if elevation is None:
+        raise InputError("the course has no elevation")
+    latitude, longitude, heights = validate_track(latitude, longitude, elevation)
+    if heights is None:  # never: an elevation was given (narrows the type)
+        raise InputError("the course has no elevation")
+    latitude, longitude, heights = _without_repeated_points(latitude, longitude, heights)
+    length, azimuth = geodesic_pieces(latitude, longitude)
+    track_distance = np.concatenate([[0.0], np.cumsum(length)])
+    heights = fill_missing_elevation(track_distance, heights)
+    check_elevation_jumps(length, heights)
+    total = float(track_distance[-1])
+    if total / step > MAXIMUM_COURSE_POINTS:
+        raise InputError(f"course of {total / 1000:.0f} km is too long for a {step:g} m step "
+                         f"(at most {MAXIMUM_COURSE_POINTS} points)")
+
+    distance = resample_distance(total, step)
+    new_latitude, new_longitude = _positions_at(distance, latitude, longitude, track_distance,
+                                                length, azimuth)
+    raw_elevation = np.interp(distance, track_distance, heights)
     cleaned = clean_elevation(distance, raw_elevation, smoothing)
     piece_length = np.diff(distance)
     grade = np.clip(np.diff(cleaned) / piece_length, -smoothing.max_grade, smoothing.max_grade)
@@ -401,6 +562,6 @@ def build_course(latitude, longitude, elevation, step: float = DEFAULT_STEP,
         heading=heading,
         corner_radius=corner_radius(new_latitude, new_longitude, step),
         name=str(name),
-        raw_ascent=total_ascent(elevation),
+        raw_ascent=total_ascent(heights),
         smoothing=smoothing,
     )

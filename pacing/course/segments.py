@@ -14,6 +14,7 @@ from dataclasses import dataclass
 from typing import TYPE_CHECKING
 
 import numpy as np
+from numpy.typing import ArrayLike
 
 from pacing.errors import InputError
 
@@ -43,15 +44,30 @@ class Segment:
 
     Attributes
     ----------
-    index : number of the segment, from 0.
-    start, end : distance of its first and last point from the start [m].
-    length : end - start [m].
-    mean_grade : net rise over length [-].
-    max_grade : grade of its steepest piece, with its sign (a descent's is negative) [-].
-    ascent, descent : total rise and fall of the cleaned profile within it [m] (both >= 0).
-    mean_heading : length-weighted circular mean of its pieces' headings [deg from north].
-    kind : "climb" (mean grade >= CLIMB_GRADE), "descent" (<= -CLIMB_GRADE) or "flat".
-    start_index, end_index : its boundary point indices in the course.
+    index : int
+        Number of the segment, from 0 [-].
+    start : float
+        Distance of its first point from the start [m].
+    end : float
+        Distance of its last point from the start [m].
+    length : float
+        end − start [m].
+    mean_grade : float
+        Net rise over length [-].
+    max_grade : float
+        Grade of its steepest piece, with its sign (a descent's is negative) [-].
+    ascent : float
+        Total rise of the cleaned profile within it, ≥ 0 [m].
+    descent : float
+        Total fall of the cleaned profile within it, ≥ 0 [m].
+    mean_heading : float
+        Length-weighted circular mean of its pieces' headings [deg clockwise from north].
+    kind : {"climb", "descent", "flat"}
+        "climb" (mean grade ≥ CLIMB_GRADE), "descent" (≤ −CLIMB_GRADE) or "flat" [-].
+    start_index : int
+        Boundary point index of its first point in the course [-].
+    end_index : int
+        Boundary point index of its last point in the course [-].
     """
 
     index: int
@@ -69,7 +85,25 @@ class Segment:
 
 
 def grade_kind(grade: float, climb_grade: float = CLIMB_GRADE) -> str:
-    """"climb", "descent" or "flat" for a mean grade [-]."""
+    """"climb", "descent" or "flat" for a mean grade.
+
+    Parameters
+    ----------
+    grade : float
+        Mean grade, rise/run [-].
+    climb_grade : float, optional
+        Grade from which a stretch is a climb, and below minus which a descent [-].
+
+    Returns
+    -------
+    str
+        "climb", "descent" or "flat".
+
+    Examples
+    --------
+    >>> grade_kind(0.03), grade_kind(-0.03), grade_kind(0.01)
+    ('climb', 'descent', 'flat')
+    """
     if grade >= climb_grade:
         return "climb"
     if grade <= -climb_grade:
@@ -77,7 +111,7 @@ def grade_kind(grade: float, climb_grade: float = CLIMB_GRADE) -> str:
     return "flat"
 
 
-def _check_bounds(course: Course, bounds: np.ndarray) -> np.ndarray:
+def _check_bounds(course: Course, bounds: ArrayLike) -> np.ndarray:
     bounds = np.asarray(bounds)
     count = course.distance.size
     if bounds.dtype.kind == "f" and np.all(np.isfinite(bounds)) and np.all(bounds % 1 == 0):
@@ -108,16 +142,32 @@ def split_by_grade(course: Course, climb_grade: float = CLIMB_GRADE,
 
     Parameters
     ----------
-    course : the course.
-    climb_grade : grade threshold [-], > 0.
-    min_length : shortest segment kept [m] (a course shorter than this is one segment).
-    max_length : longest segment [m], >= min_length; math.inf for no limit.
-    turn_angle : change of direction that cuts the course [deg], 0 < angle <= 180; None for no
-        cut at turns.
+    course : Course
+        The course.
+    climb_grade : float, optional
+        Grade threshold, > 0 [-].
+    min_length : float, optional
+        Shortest segment kept (a course shorter than this is one segment) [m].
+    max_length : float, optional
+        Longest segment, ≥ min_length; math.inf for no limit [m].
+    turn_angle : float or None, optional
+        Change of direction that cuts the course, 0 < angle ≤ 180; None for no cut at turns
+        [deg].
 
     Returns
     -------
-    bounds : boundary point indices, increasing, first 0, last N-1.
+    numpy.ndarray
+        Boundary point indices, increasing, first 0, last N-1 [-].
+
+    Examples
+    --------
+    1 km flat, 1 km at 6 %, 1 km flat, points every 10 m:
+
+    >>> from pacing.course.geometry import synthetic_course
+    >>> distance = np.arange(0.0, 3001.0, 10.0)
+    >>> elevation = np.interp(distance, [0, 1000, 2000, 3000], [100, 100, 160, 160])
+    >>> split_by_grade(synthetic_course(distance, elevation)).tolist()
+    [0, 100, 200, 300]
     """
     if not (math.isfinite(climb_grade) and climb_grade > 0):
         raise InputError(f"climb grade must be > 0, got {climb_grade!r}")
@@ -155,14 +205,29 @@ def turn_points(course: Course, turn_angle: float = TURN_ANGLE, span: float = TU
 
     Parameters
     ----------
-    course : the course.
-    turn_angle : change of direction [deg], 0 < angle <= 180.
-    span : length of road on each side over which the direction is averaged [m], > 0.
-    min_distance : smallest distance between two turn points, and from either end [m].
+    course : Course
+        The course.
+    turn_angle : float, optional
+        Change of direction, 0 < angle ≤ 180 [deg].
+    span : float, optional
+        Length of road on each side over which the direction is averaged, > 0 [m].
+    min_distance : float, optional
+        Smallest distance between two turn points, and from either end [m].
 
     Returns
     -------
-    Point indices, increasing (empty when the course never turns that much).
+    numpy.ndarray
+        Point indices, increasing (empty when the course never turns that much) [-].
+
+    Examples
+    --------
+    Out 2 km due north and back due south: the turn is at the far end, point 200.
+
+    >>> from pacing.course.geometry import synthetic_course
+    >>> distance = np.arange(0.0, 4001.0, 10.0)
+    >>> heading = np.where(distance[:-1] < 2000.0, 0.0, 180.0)
+    >>> turn_points(synthetic_course(distance, 0 * distance, heading=heading)).tolist()
+    [200]
     """
     if turn_angle is None or not (0 < turn_angle <= 180):
         raise InputError(f"turn angle must be between 0 and 180 deg, got {turn_angle!r}")
@@ -222,35 +287,45 @@ def _cap_length(distance: np.ndarray, bounds: np.ndarray, min_length: float,
     return np.asarray(result, dtype=int)
 
 
-def _split_stretch_by_grade(distance: np.ndarray, elevation: np.ndarray, grade: np.ndarray,
-                            climb_grade: float, min_length: float) -> np.ndarray:
-    """Grade split (step 2 of split_by_grade) of one stretch; bounds local to the stretch."""
-    kind = np.where(grade >= climb_grade, 1, np.where(grade <= -climb_grade, -1, 0))
-    change = np.flatnonzero(np.diff(kind)) + 1
-    starts = [0, *change.tolist()]
-    ends = [*change.tolist(), distance.size - 1]
+class _GradeRuns:
+    """Runs of pieces of one grade class in a stretch, kept as a doubly linked list so that a
+    short run can be merged into a neighbour in constant time (step 2 of split_by_grade)."""
 
-    def mean_grade(first: int, last: int) -> float:
-        return float((elevation[last] - elevation[first]) / (distance[last] - distance[first]))
+    def __init__(self, distance: np.ndarray, elevation: np.ndarray, grade: np.ndarray,
+                 climb_grade: float) -> None:
+        self.distance = distance
+        self.elevation = elevation
+        self.climb_grade = climb_grade
+        kind = np.where(grade >= climb_grade, 1, np.where(grade <= -climb_grade, -1, 0))
+        change = np.flatnonzero(np.diff(kind)) + 1
+        self.starts = [0, *change.tolist()]
+        self.ends = [*change.tolist(), distance.size - 1]
+        count = len(self.starts)
+        self.previous = list(range(-1, count - 1))
+        self.following = [*range(1, count), -1]
+        self.alive = [True] * count
 
-    def klass(first: int, last: int) -> int:
-        value = mean_grade(first, last)
-        return 1 if value >= climb_grade else (-1 if value <= -climb_grade else 0)
+    def length(self, run: int) -> float:
+        """Length of a run [m]."""
+        return float(self.distance[self.ends[run]] - self.distance[self.starts[run]])
 
-    # Segments as a doubly linked list; a heap gives the shortest (stale entries skipped).
-    count = len(starts)
-    previous = list(range(-1, count - 1))
-    following = [*range(1, count), -1]
-    alive = [True] * count
-    version = [0] * count
-    heap = [(float(distance[ends[k]] - distance[starts[k]]), 0, k) for k in range(count)]
-    heapq.heapify(heap)
+    def mean_grade(self, run: int) -> float:
+        """Net rise over length of a run [-]."""
+        first, last = self.starts[run], self.ends[run]
+        return float((self.elevation[last] - self.elevation[first])
+                     / (self.distance[last] - self.distance[first]))
 
-    def absorb(keep: int, gone: int) -> None:
-        """Join segment `gone` into its neighbour `keep`."""
-        starts[keep] = min(starts[keep], starts[gone])
-        ends[keep] = max(ends[keep], ends[gone])
-        alive[gone] = False
+    def klass(self, run: int) -> int:
+        """1 for a climb, -1 for a descent, 0 for flat, by the run's mean grade."""
+        value = self.mean_grade(run)
+        return 1 if value >= self.climb_grade else (-1 if value <= -self.climb_grade else 0)
+
+    def absorb(self, keep: int, gone: int) -> None:
+        """Join run `gone` into its neighbour `keep`."""
+        self.starts[keep] = min(self.starts[keep], self.starts[gone])
+        self.ends[keep] = max(self.ends[keep], self.ends[gone])
+        self.alive[gone] = False
+        following, previous = self.following, self.previous
         if following[keep] == gone:
             following[keep] = following[gone]
             if following[gone] != -1:
@@ -260,30 +335,48 @@ def _split_stretch_by_grade(distance: np.ndarray, elevation: np.ndarray, grade: 
             if previous[gone] != -1:
                 following[previous[gone]] = keep
 
-    while heap:
-        length, seen, node = heapq.heappop(heap)
-        if not alive[node] or seen != version[node]:
-            continue
-        if length >= min_length or (previous[node] == -1 and following[node] == -1):
-            break
-        own = mean_grade(starts[node], ends[node])
-        neighbours = [k for k in (previous[node], following[node]) if k != -1]
-        target = min(neighbours, key=lambda k: abs(mean_grade(starts[k], ends[k]) - own))
-        absorb(target, node)
-        merged_class = klass(starts[target], ends[target])
-        for side in (previous[target], following[target]):
-            if side != -1 and klass(starts[side], ends[side]) == merged_class:
-                absorb(target, side)
-        version[target] += 1
-        heapq.heappush(heap, (float(distance[ends[target]] - distance[starts[target]]),
-                              version[target], target))
+    def merge_short(self, min_length: float) -> None:
+        """While a run is shorter than min_length, merge the shortest into the neighbour whose
+        mean grade is nearer its own, then join neighbours of the merged run's class (a heap
+        gives the shortest; stale entries are skipped)."""
+        version = [0] * len(self.starts)
+        heap = [(self.length(k), 0, k) for k in range(len(self.starts))]
+        heapq.heapify(heap)
+        while heap:
+            length, seen, node = heapq.heappop(heap)
+            if not self.alive[node] or seen != version[node]:
+                continue
+            if length >= min_length or (self.previous[node] == -1
+                                        and self.following[node] == -1):
+                break
+            own = self.mean_grade(node)
+            neighbours = [k for k in (self.previous[node], self.following[node]) if k != -1]
+            target = min(neighbours, key=lambda k: abs(self.mean_grade(k) - own))
+            self.absorb(target, node)
+            merged_class = self.klass(target)
+            for side in (self.previous[target], self.following[target]):
+                if side != -1 and self.klass(side) == merged_class:
+                    self.absorb(target, side)
+            version[target] += 1
+            heapq.heappush(heap, (self.length(target), version[target], target))
 
-    node = next(k for k in range(count) if alive[k] and previous[k] == -1)
-    bounds = [0]
-    while node != -1:
-        bounds.append(ends[node])
-        node = following[node]
-    return np.asarray(bounds, dtype=int)
+    def bounds(self) -> np.ndarray:
+        """Boundary point indices of the runs, local to the stretch."""
+        node = next(k for k in range(len(self.starts))
+                    if self.alive[k] and self.previous[k] == -1)
+        bounds = [0]
+        while node != -1:
+            bounds.append(self.ends[node])
+            node = self.following[node]
+        return np.asarray(bounds, dtype=int)
+
+
+def _split_stretch_by_grade(distance: np.ndarray, elevation: np.ndarray, grade: np.ndarray,
+                            climb_grade: float, min_length: float) -> np.ndarray:
+    """Grade split (step 2 of split_by_grade) of one stretch; bounds local to the stretch."""
+    runs = _GradeRuns(distance, elevation, grade, climb_grade)
+    runs.merge_short(min_length)
+    return runs.bounds()
 
 
 def split_every(course: Course, length: float) -> np.ndarray:
@@ -291,10 +384,23 @@ def split_every(course: Course, length: float) -> np.ndarray:
 
     Parameters
     ----------
-    length : segment length [m], > 0.
+    course : Course
+        The course.
+    length : float
+        Segment length, > 0 [m].
 
-    Returns bounds (point indices nearest to each multiple of length; a last segment shorter than
-    half a step is merged into the one before).
+    Returns
+    -------
+    numpy.ndarray
+        Boundary point indices, the nearest points to each multiple of `length` (a last segment
+        shorter than half a step is merged into the one before) [-].
+
+    Examples
+    --------
+    >>> from pacing.course.geometry import synthetic_course
+    >>> distance = np.arange(0.0, 3001.0, 10.0)
+    >>> split_every(synthetic_course(distance, 0 * distance), 1000.0).tolist()
+    [0, 100, 200, 300]
     """
     try:
         length = float(length)
@@ -309,12 +415,33 @@ def split_every(course: Course, length: float) -> np.ndarray:
     return _bounds_at(course, marks)
 
 
-def split_at(course: Course, distances) -> np.ndarray:
-    """Split the course at the given distances from the start [m].
+def split_at(course: Course, distances: ArrayLike) -> np.ndarray:
+    """Split the course at given distances from the start.
 
     Distances are sorted; each is moved to the nearest point; ones at the start, the finish or
     repeated are ignored. Raises InputError for values that are not finite numbers or lie
     outside 0..course length.
+
+    Parameters
+    ----------
+    course : Course
+        The course.
+    distances : array_like
+        Distances of the splits from the start [m].
+
+    Returns
+    -------
+    numpy.ndarray
+        Boundary point indices [-].
+
+    Examples
+    --------
+    1234 m lies nearest point 123 on a course with points every 10 m:
+
+    >>> from pacing.course.geometry import synthetic_course
+    >>> distance = np.arange(0.0, 3001.0, 10.0)
+    >>> split_at(synthetic_course(distance, 0 * distance), [1234.0]).tolist()
+    [0, 123, 300]
     """
     try:
         marks = np.asarray(distances, dtype=float).ravel()
@@ -338,15 +465,53 @@ def _bounds_at(course: Course, marks: np.ndarray) -> np.ndarray:
     return np.concatenate([[0], inner, [last]]).astype(int)
 
 
-def piece_segment_index(bounds: np.ndarray) -> np.ndarray:
-    """Segment number of each piece (length N-1) from the boundary point indices."""
+def piece_segment_index(bounds: ArrayLike) -> np.ndarray:
+    """Segment number of each piece from the boundary point indices.
+
+    Parameters
+    ----------
+    bounds : array_like
+        Boundary point indices, increasing, first 0, last N-1 [-].
+
+    Returns
+    -------
+    numpy.ndarray
+        Segment number of each piece, length N-1 [-].
+
+    Examples
+    --------
+    >>> piece_segment_index([0, 2, 5]).tolist()
+    [0, 0, 1, 1, 1]
+    """
     bounds = np.asarray(bounds, dtype=int)
     return np.repeat(np.arange(bounds.size - 1), np.diff(bounds))
 
 
-def describe_segments(course: Course, bounds: np.ndarray,
+def describe_segments(course: Course, bounds: ArrayLike,
                       climb_grade: float = CLIMB_GRADE) -> list[Segment]:
-    """One Segment per stretch between consecutive bounds (see Segment for the fields)."""
+    """One Segment per stretch between consecutive bounds (see Segment for the fields).
+
+    Parameters
+    ----------
+    course : Course
+        The course.
+    bounds : array_like
+        Boundary point indices, increasing, first 0, last N-1 [-].
+    climb_grade : float, optional
+        Mean grade from which a segment is a climb (and below minus which a descent) [-].
+
+    Returns
+    -------
+    list of Segment
+        The segments in order.
+
+    Examples
+    --------
+    >>> from pacing.course.geometry import synthetic_course
+    >>> course = synthetic_course([0.0, 500.0, 1000.0], [100.0, 125.0, 120.0])
+    >>> [(s.kind, s.length, s.ascent) for s in describe_segments(course, [0, 1, 2])]
+    [('climb', 500.0, 25.0), ('flat', 500.0, 0.0)]
+    """
     bounds = _check_bounds(course, bounds)
     distance, elevation = course.distance, course.elevation
     grade, heading = np.asarray(course.grade), np.asarray(course.heading)

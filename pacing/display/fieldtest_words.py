@@ -1,7 +1,13 @@
 """Sentences for the notices of pacing.fieldtest (see pacing.display.notices).
 
 Each function takes a notice's values (SI, keys ending with the unit) and the unit system
-("metric" or "imperial") and returns one line.
+("metric" or "imperial") and returns one line. Codes "fieldtest-…" come from
+pacing.fieldtest.estimate.estimate_drag (warnings about a fit), codes "test-ride-…" from
+pacing.fieldtest.ride.make_ride and pacing.io.rides (notes of reading and cleaning a ride).
+
+In metric the sentences keep the units the field test has always printed: wind and stop speeds
+in m/s (a test rider reads them off an anemometer and a wheel sensor), CdA in m² in both
+systems (the unit every wind tunnel and field-test report uses).
 """
 
 from __future__ import annotations
@@ -9,4 +15,172 @@ from __future__ import annotations
 from collections.abc import Callable, Mapping
 from typing import Any
 
-WORDS: dict[str, Callable[[Mapping[str, Any], str], str]] = {}
+from pacing.display.units import to_display, unit_label
+
+Values = Mapping[str, Any]
+
+
+def _speed(metres_per_second: float, system: str, metric_format: str) -> str:
+    """A speed in m/s (metric, as `metric_format`) or in mph with one decimal (imperial)."""
+    if system == "imperial":
+        return f"{to_display(metres_per_second, 'speed', system):.1f} " \
+               f"{unit_label('speed', system)}"
+    return f"{metres_per_second:{metric_format}} m/s"
+
+
+def _separation_reason(values: Values) -> str:
+    """Why CdA and Crr cannot be separated, in a few words."""
+    reason = values["reason"]
+    if reason == "singular":
+        return "the fit is singular"
+    if reason == "crr-interval":
+        return (f"correlation {values['correlation']:.3f}; the 95 % interval of Crr, "
+                f"{values['rolling_ci95_low']:.4f} to {values['rolling_ci95_high']:.4f}, is "
+                f"wider than the {values['rolling_spread']:g} spread of road tyres")
+    return f"correlation {values['correlation']:.3f}"
+
+
+def _crr_held(values: Values, system: str) -> str:
+    held, low, high = (values["held_rolling_coefficient"], values["rolling_low"],
+                       values["rolling_high"])
+    spans = ", ".join(
+        f"{label!r} {at_high:.3f}-{at_low:.3f} m²"
+        for label, at_high, at_low in zip(values["labels"],
+                                          values["drag_area_at_high_rolling_m2"],
+                                          values["drag_area_at_low_rolling_m2"], strict=True))
+    return (f"laps lack speed variety: CdA and Crr cannot be separated "
+            f"({_separation_reason(values)}), so Crr is held at {held:g} (a typical road value, "
+            f"Martin et al. 1998) and only CdA is fitted; its interval counts no Crr error: for "
+            f"Crr {low:g}-{high:g} CdA would be {spans}; ride laps at clearly different speeds "
+            "or give the Crr of your tyres")
+
+
+def _inseparable(values: Values, system: str) -> str:
+    return (f"laps lack speed variety: CdA and Crr cannot be separated "
+            f"({_separation_reason(values)}); ride laps at clearly different speeds or give Crr")
+
+
+def _few_laps(values: Values, system: str) -> str:
+    return f"fewer than {values['count']} laps for {', '.join(values['labels'])}: no interval"
+
+
+def _bootstrap_failed(values: Values, system: str) -> str:
+    return "too many bootstrap draws could not be fitted: no interval"
+
+
+def _lap_spread(values: Values, system: str) -> str:
+    return (f"CdA of {values['label']!r} varies by {100 * values['share']:.0f} % between laps: "
+            "wind gusts, braking, drafting or a changing position spoil the data")
+
+
+def _unsteady_runs(values: Values, system: str) -> str:
+    return (f"speed varies by {100 * values['share']:.0f} % within the laps of "
+            f"{values['label']!r}: the regression assumes steady runs (Lim et al. 2011); "
+            "prefer method 'loop'")
+
+
+def _windy(values: Values, system: str) -> str:
+    return (f"wind of {_speed(values['speed_mps'], system, '.1f')} at rider height on "
+            f"{values['label']!r}: test rides want calm air (under "
+            f"{_speed(values['limit_mps'], system, 'g')}, Lim et al. 2011); the result is only "
+            "as good as the wind given")
+
+
+def _braking(values: Values, system: str) -> str:
+    times = values["times_s"]
+    shown = ", ".join(f"{t:.0f}" for t in times)
+    more = " …" if values["count"] > len(times) else ""
+    return (f"braking suspected in {values['label']!r} at {values['count']} samples "
+            f"(t = {shown} s{more}): brake-free laps give better estimates")
+
+
+def _cda_not_physical(values: Values, system: str) -> str:
+    return (f"CdA of {values['label']!r} came out {values['drag_area_m2']:.3f} m², which is not "
+            "physical: check mass, power, speed and wind")
+
+
+def _cda_unusual(values: Values, system: str) -> str:
+    return (f"CdA of {values['label']!r} ({values['drag_area_m2']:.3f} m²) is outside the usual "
+            f"{values['low_m2']:g}-{values['high_m2']:g} m²: check mass, power and wind")
+
+
+def _cda_interval_below_zero(values: Values, system: str) -> str:
+    return (f"the 95 % interval of CdA of {values['label']!r} reaches {values['low_m2']:.3f} m² "
+            "(below 0): these laps do not pin CdA down")
+
+
+def _crr_negative(values: Values, system: str) -> str:
+    return (f"Crr came out {values['rolling_coefficient']:.4f}, below 0, which no tyre has: "
+            "something the model lacks went into it (a power-meter offset, wind, braking, a "
+            "wrong mass); zero the power meter before the test, or give the Crr of your tyres")
+
+
+def _crr_unusual(values: Values, system: str) -> str:
+    return (f"Crr ({values['rolling_coefficient']:.4f}) is outside the usual "
+            f"{values['rolling_low']:g}-{values['rolling_high']:g}: check the laps")
+
+
+def _crr_interval_below_zero(values: Values, system: str) -> str:
+    return (f"the 95 % interval of Crr reaches {values['rolling_ci95_low']:.4f} (below 0): the "
+            "laps determine Crr poorly")
+
+
+def _speed_filled(values: Values, system: str) -> str:
+    return "filled short gaps in speed by interpolation"
+
+
+def _power_filled(values: Values, system: str) -> str:
+    return f"filled power dropouts up to {values['duration_s']:g} s by interpolation"
+
+
+def _zero_power(values: Values, system: str) -> str:
+    return (f"power reads 0 W for {values['duration_s']:g} s from t = {values['start_s']:g} s "
+            "while the speed holds: a power-meter dropout? Leave that stretch out of the laps")
+
+
+def _column_empty(values: Values, system: str) -> str:
+    return f"{values['label']} column is empty: ignored"
+
+
+def _column_filled(values: Values, system: str) -> str:
+    return f"filled {values['count']} missing {values['label']} values by interpolation"
+
+
+def _stops_dropped(values: Values, system: str) -> str:
+    return (f"dropped {values['count']} samples slower than "
+            f"{_speed(values['speed_mps'], system, 'g')} (stops); the energy balance restarts "
+            "after each")
+
+
+def _speed_from_distance(values: Values, system: str) -> str:
+    return "speed taken from the distance column"
+
+
+def _speed_from_positions(values: Values, system: str) -> str:
+    return "speed taken from GNSS positions (noisier than a wheel sensor)"
+
+
+WORDS: dict[str, Callable[[Mapping[str, Any], str], str]] = {
+    "fieldtest-crr-held": _crr_held,
+    "fieldtest-inseparable": _inseparable,
+    "fieldtest-few-laps": _few_laps,
+    "fieldtest-bootstrap-failed": _bootstrap_failed,
+    "fieldtest-lap-spread": _lap_spread,
+    "fieldtest-unsteady-runs": _unsteady_runs,
+    "fieldtest-windy": _windy,
+    "fieldtest-braking": _braking,
+    "fieldtest-cda-not-physical": _cda_not_physical,
+    "fieldtest-cda-unusual": _cda_unusual,
+    "fieldtest-cda-interval-below-zero": _cda_interval_below_zero,
+    "fieldtest-crr-negative": _crr_negative,
+    "fieldtest-crr-unusual": _crr_unusual,
+    "fieldtest-crr-interval-below-zero": _crr_interval_below_zero,
+    "test-ride-speed-filled": _speed_filled,
+    "test-ride-power-filled": _power_filled,
+    "test-ride-zero-power": _zero_power,
+    "test-ride-column-empty": _column_empty,
+    "test-ride-column-filled": _column_filled,
+    "test-ride-stops-dropped": _stops_dropped,
+    "test-ride-speed-from-distance": _speed_from_distance,
+    "test-ride-speed-from-positions": _speed_from_positions,
+}

@@ -16,8 +16,10 @@ from __future__ import annotations
 
 import math
 from dataclasses import dataclass
+from typing import overload
 
 import numpy as np
+from numpy.typing import ArrayLike
 
 from pacing.errors import InputError
 
@@ -42,9 +44,12 @@ class DisplayUnit:
 
     Attributes
     ----------
-    label : unit symbol shown beside numbers ("km/h").
-    scale : size of one display unit in SI units (1 km/h = 0.2778 m/s) [SI per display unit].
-    offset : added after scaling (only temperatures use it) [display unit].
+    label : str
+        Unit symbol shown beside numbers ("km/h") [-].
+    scale : float
+        Size of one display unit in SI units (1 km/h = 0.2778 m/s) [SI per display unit].
+    offset : float
+        Added after scaling (only temperatures use it) [display unit].
     """
 
     label: str
@@ -94,9 +99,24 @@ def _unit(quantity: str, system: str) -> DisplayUnit:
 
 
 def unit_label(quantity: str, system: str) -> str:
-    """Unit symbol of a quantity in a system, e.g. ``unit_label("speed", "imperial") == "mph"``.
+    """Unit symbol of a quantity in a system.
 
-    ``quantity="pace"`` gives "min/km" or "min/mi".
+    Parameters
+    ----------
+    quantity : str
+        A key of UNITS, or "pace" [-].
+    system : {"metric", "imperial"}
+        The unit system [-].
+
+    Returns
+    -------
+    str
+        The symbol, e.g. "km/h"; "min/km" or "min/mi" for a pace.
+
+    Examples
+    --------
+    >>> unit_label("speed", "imperial"), unit_label("pace", "metric")
+    ('mph', 'min/km')
     """
     if quantity == "pace":
         _unit("speed", system)
@@ -104,36 +124,109 @@ def unit_label(quantity: str, system: str) -> str:
     return _unit(quantity, system).label
 
 
-def to_display(value, quantity: str, system: str):
+@overload
+def to_display(value: float, quantity: str, system: str) -> float: ...
+@overload
+def to_display(value: np.ndarray, quantity: str, system: str) -> np.ndarray: ...
+@overload
+def to_display(value: ArrayLike, quantity: str, system: str) -> float | np.ndarray: ...
+def to_display(value: ArrayLike, quantity: str, system: str) -> float | np.ndarray:
     """SI value → the number shown in `system`: display = value / scale + offset.
 
     Parameters
     ----------
-    value : float or array in SI units (temperature in °C) [SI].
-    quantity : one of UNITS' keys.
-    system : "metric" or "imperial".
+    value : float or array_like
+        Value in SI units, temperature in °C [SI].
+    quantity : str
+        One of UNITS' keys [-].
+    system : {"metric", "imperial"}
+        The unit system [-].
+
+    Returns
+    -------
+    float or numpy.ndarray
+        The displayed number, a float for a scalar [display unit].
+
+    References
+    ----------
+    NIST SP 811 (2008), Appendix B.8 (exact factors).
+
+    Examples
+    --------
+    10 m/s is 36 km/h and 22.369 mph (1 mph = 0.44704 m/s exactly); 20 °C is 68 °F:
+
+    >>> to_display(10.0, "speed", "metric"), round(to_display(10.0, "speed", "imperial"), 3)
+    (36.0, 22.369)
+    >>> to_display(20.0, "temperature", "imperial")
+    68.0
     """
     unit = _unit(quantity, system)
     result = np.asarray(value, dtype=float) / unit.scale + unit.offset
     return float(result) if result.ndim == 0 else result
 
 
-def from_display(value, quantity: str, system: str):
+@overload
+def from_display(value: float, quantity: str, system: str) -> float: ...
+@overload
+def from_display(value: np.ndarray, quantity: str, system: str) -> np.ndarray: ...
+@overload
+def from_display(value: ArrayLike, quantity: str, system: str) -> float | np.ndarray: ...
+def from_display(value: ArrayLike, quantity: str, system: str) -> float | np.ndarray:
     """Number shown in `system` → SI value: value_SI = (display − offset) · scale.
 
     The inverse of `to_display`.
+
+    Parameters
+    ----------
+    value : float or array_like
+        The displayed number [display unit].
+    quantity : str
+        One of UNITS' keys [-].
+    system : {"metric", "imperial"}
+        The unit system [-].
+
+    Returns
+    -------
+    float or numpy.ndarray
+        The value in SI units, temperature in °C [SI].
+
+    Examples
+    --------
+    1000 ft is 304.8 m exactly:
+
+    >>> from_display(1000.0, "elevation", "imperial")
+    304.8
     """
     unit = _unit(quantity, system)
     result = (np.asarray(value, dtype=float) - unit.offset) * unit.scale
     return float(result) if result.ndim == 0 else result
 
 
-def pace_from_speed(speed, system: str):
+@overload
+def pace_from_speed(speed: float, system: str) -> float: ...
+@overload
+def pace_from_speed(speed: np.ndarray, system: str) -> np.ndarray: ...
+@overload
+def pace_from_speed(speed: ArrayLike, system: str) -> float | np.ndarray: ...
+def pace_from_speed(speed: ArrayLike, system: str) -> float | np.ndarray:
     """Time to cover one display distance unit (km or mile) at a speed [s per km or s per mi].
 
     Parameters
     ----------
-    speed : [m/s], > 0.
+    speed : float or array_like
+        Speed, > 0 [m/s].
+    system : {"metric", "imperial"}
+        The unit system [-].
+
+    Returns
+    -------
+    float or numpy.ndarray
+        Pace [s/km or s/mi].
+
+    Examples
+    --------
+    >>> pace_from_speed(1000.0 / 300.0, "metric")
+    300.0
     """
     speed = np.asarray(speed, dtype=float)
     if np.any(~np.isfinite(speed)) or np.any(speed <= 0):
@@ -142,8 +235,34 @@ def pace_from_speed(speed, system: str):
     return float(result) if result.ndim == 0 else result
 
 
-def speed_from_pace(pace, system: str):
-    """Speed from a pace in seconds per km or per mile [m/s]; the inverse of pace_from_speed."""
+@overload
+def speed_from_pace(pace: float, system: str) -> float: ...
+@overload
+def speed_from_pace(pace: np.ndarray, system: str) -> np.ndarray: ...
+@overload
+def speed_from_pace(pace: ArrayLike, system: str) -> float | np.ndarray: ...
+def speed_from_pace(pace: ArrayLike, system: str) -> float | np.ndarray:
+    """Speed from a pace in seconds per km or per mile [m/s]; the inverse of pace_from_speed.
+
+    Parameters
+    ----------
+    pace : float or array_like
+        Pace, > 0 [s/km or s/mi].
+    system : {"metric", "imperial"}
+        The unit system [-].
+
+    Returns
+    -------
+    float or numpy.ndarray
+        Speed [m/s].
+
+    Examples
+    --------
+    A 4:00 mile is 1609.344/240 = 6.7056 m/s:
+
+    >>> speed_from_pace(240.0, "imperial")
+    6.7056
+    """
     pace = np.asarray(pace, dtype=float)
     if np.any(~np.isfinite(pace)) or np.any(pace <= 0):
         raise InputError("pace must be a positive time per distance")
@@ -151,8 +270,28 @@ def speed_from_pace(pace, system: str):
     return float(result) if result.ndim == 0 else result
 
 
-def pace_per_km_to_display(pace_per_km, system: str):
-    """A pace in s/km (the package's pace unit) → s per display unit (km or mile)."""
+def pace_per_km_to_display(pace_per_km: ArrayLike | None, system: str) -> np.ndarray:
+    """A pace in s/km (the package's pace unit) → s per display unit (km or mile).
+
+    Parameters
+    ----------
+    pace_per_km : float, array_like or None
+        Pace; None (no pace) gives NaN [s/km].
+    system : {"metric", "imperial"}
+        The unit system [-].
+
+    Returns
+    -------
+    numpy.ndarray
+        Pace [s/km or s/mi].
+
+    Examples
+    --------
+    5:00 per km is 482.8 s per mile:
+
+    >>> float(pace_per_km_to_display(300.0, "imperial"))
+    482.8032
+    """
     return np.asarray(pace_per_km, dtype=float) * (_unit("distance", system).scale / 1000.0)
 
 
@@ -171,6 +310,18 @@ def _check_finite(seconds: float, what: str) -> float:
 def format_duration(seconds: float) -> str:
     """Seconds → "H:MM:SS" (whole seconds, rounded half up; hours not wrapped at 24).
 
+    Parameters
+    ----------
+    seconds : float
+        Duration, ≥ 0 [s].
+
+    Returns
+    -------
+    str
+        "H:MM:SS".
+
+    Examples
+    --------
     >>> format_duration(3725.4)
     '1:02:05'
     """
@@ -183,6 +334,18 @@ def format_duration(seconds: float) -> str:
 def format_pace(seconds_per_unit: float) -> str:
     """Seconds per km or mile → "M:SS" (rounded to whole seconds).
 
+    Parameters
+    ----------
+    seconds_per_unit : float
+        Pace, ≥ 0 [s/km or s/mi].
+
+    Returns
+    -------
+    str
+        "M:SS".
+
+    Examples
+    --------
     >>> format_pace(299.6)
     '5:00'
     """
@@ -192,7 +355,25 @@ def format_pace(seconds_per_unit: float) -> str:
 
 
 def parse_clock(text: str, what: str = "time") -> float:
-    """"H:MM:SS", "M:SS" or plain seconds → seconds [s] (> 0); InputError otherwise."""
+    """"H:MM:SS", "M:SS" or plain seconds → seconds (> 0); InputError otherwise [s].
+
+    Parameters
+    ----------
+    text : str
+        The clock time as typed; two digits after each colon [-].
+    what : str, optional
+        How the value is named in the error message [-].
+
+    Returns
+    -------
+    float
+        Seconds [s].
+
+    Examples
+    --------
+    >>> parse_clock("1:02:05"), parse_clock("4:30"), parse_clock("90")
+    (3725.0, 270.0, 90.0)
+    """
     raw = str(text).strip()
     fields = raw.split(":")
     if any(len(field.strip().split(".")[0]) != 2 for field in fields[1:]):
@@ -214,8 +395,30 @@ def parse_clock(text: str, what: str = "time") -> float:
     return seconds
 
 
-def format_quantity(value, quantity: str, system: str, digits: int = 1) -> str:
-    """SI value → "12.3 km/h" style text in `system`; "–" for None or a non-finite value."""
+def format_quantity(value: float | None, quantity: str, system: str, digits: int = 1) -> str:
+    """SI value → "12.3 km/h" style text in `system`; "–" for None or a non-finite value.
+
+    Parameters
+    ----------
+    value : float or None
+        Value in SI units, temperature in °C [SI].
+    quantity : str
+        One of UNITS' keys [-].
+    system : {"metric", "imperial"}
+        The unit system [-].
+    digits : int, optional
+        Decimals shown [-].
+
+    Returns
+    -------
+    str
+        Number and unit symbol.
+
+    Examples
+    --------
+    >>> format_quantity(10.0, "speed", "metric"), format_quantity(None, "speed", "metric")
+    ('36.0 km/h', '–')
+    """
     if value is None:
         return "–"
     shown = to_display(float(value), quantity, system)

@@ -1,15 +1,16 @@
 """Drag area (CdA) and rolling resistance (Crr) measured on the road from test rides.
 
 Two published methods, both built on the power balance of pacing.physics.cycling (Martin et al.
-1998):
+1998); pacing.fieldtest.methods lists them (`FIELD_TEST_METHODS`) with what each needs and where
+each holds:
 
-*Virtual elevation* (Chung, pacing.fieldtest.virtual_elevation). The power balance gives the rise of
-each piece, linear in CdA and Crr; summed along the ride this gives a *virtual elevation* trace,
-so both follow from linear least squares, either against a known elevation profile (method
-"profile": each lap's trace, shifted by its own offset, should follow the profile) or from loop
-closure (method "loop": each lap ends where it started, so its trace must return to its
-starting height; no elevation data are needed, so altimeter or GNSS altitude noise cannot
-enter).
+*Virtual elevation* (Chung, pacing.fieldtest.virtual_elevation). The power balance gives the
+rise of each piece, linear in CdA and Crr; summed along the ride this gives a *virtual
+elevation* trace, so both follow from linear least squares, either against a known elevation
+profile (method "profile": each lap's trace, shifted by its own offset, should follow the
+profile) or from loop closure (method "loop": each lap ends where it started, so its trace must
+return to its starting height; no elevation data are needed, so altimeter or GNSS altitude noise
+cannot enter).
 
 *Regression* (Lim et al. 2011). On steady runs (laps or marked stretches) the mean driving
 force balances the resistance: η·P̄/v̄ = Crr·m·g + CdA·½ρ·V̄·v̄_a + (bearing, wheel, slope and
@@ -21,13 +22,17 @@ CdA and Crr can only be told apart when the speed varies (laps at clearly differ
 hills within a lap for method "profile"); the fit reports the correlation between the two
 estimates, and when the laps cannot separate them it holds Crr at a typical value, fits CdA
 alone and says so (`FieldTestResult.rolling_held`), rather than trading one against the other
-into a negative Crr. A steady
-wind that is not given shows up mostly in Crr on a loop (it adds a nearly constant drag);
-changing wind, braking or a changing position make the per-lap CdA scatter, which is
-reported. Uncertainty comes from a bootstrap over laps (Efron & Tibshirani 1993).
+into a negative Crr. A steady wind that is not given shows up mostly in Crr on a loop (it adds a
+nearly constant drag); changing wind, braking or a changing position make the per-lap CdA
+scatter, which is reported. Uncertainty comes from a bootstrap over laps (Efron & Tibshirani
+1993).
 
-Rides, their cleaning, air and laps are in pacing.fieldtest.ride, the least squares over laps
-and its bootstrap in pacing.fieldtest.fit.
+What the user must hear comes back as `FieldTestResult.warnings`, notices (pacing.notices) with
+their numbers; pacing.display.fieldtest_words has their sentences.
+
+Rides, their cleaning and air are in pacing.fieldtest.ride, their laps in pacing.fieldtest.laps,
+the least squares over laps and its bootstrap in pacing.fieldtest.fit, the warnings in
+pacing.fieldtest.checks.
 Conventions: point arrays (one value per sample) have length N, piece arrays (between samples i
 and i+1) length N-1. Laps are (start, end) pairs of sample indices.
 
@@ -38,7 +43,9 @@ elevation method; no journal version).
 Lim, A.C., Homestead, E.P., Edwards, A.G., Carver, T.C., Kram, R. & Byrnes, W.C. (2011).
 Measuring changes in aerodynamic/rolling resistances by cycle-mounted power meters. Med Sci
 Sports Exerc 43(5):853-860.
-Martin, J.C. et al. (1998). J Appl Biomech 14(3):276-291.
+Martin, J.C., Milliken, D.L., Cobb, J.E., McFadden, K.L. & Coggan, A.R. (1998). Validation of
+a mathematical model for road cycling power. J Appl Biomech 14(3):276-291.
+doi:10.1123/jab.14.3.276
 Efron, B. & Tibshirani, R.J. (1993). An Introduction to the Bootstrap. Chapman & Hall.
 """
 
@@ -46,34 +53,35 @@ from __future__ import annotations
 
 from collections.abc import Sequence
 from dataclasses import dataclass
+from typing import Any
 
 import numpy as np
 
 from pacing.athlete import Setup
 from pacing.errors import InputError
+from pacing.fieldtest.checks import (
+    PLAUSIBLE_ROLLING,
+    conditions_notices,
+    drag_area_notices,
+    interval_notices,
+    lap_notices,
+    rolling_notices,
+    separation_notices,
+)
 from pacing.fieldtest.fit import (
     GRID_POINTS,
-    LapTerms,
+    Columns,
     bootstrap_fits,
-    build_laps,
     drag_area_per_rolling,
     estimate_correlation,
-    lap_matrices,
     normal_equations,
     solve_normal_equations,
 )
-from pacing.fieldtest.ride import (
-    LAP_RADIUS,
-    Ride,
-)
+from pacing.fieldtest.laps import LAP_RADIUS, LapTerms, build_laps
+from pacing.fieldtest.methods import FIELD_TEST_METHODS, FieldTestMethod
+from pacing.fieldtest.ride import Ride
+from pacing.notices import Notice
 from pacing.physics.cycling import MARTIN_1998, Rider
-
-METHODS = {
-    "loop": "virtual elevation, every lap returns to the same height (no elevation data needed)",
-    "profile": "virtual elevation fitted to a known elevation profile",
-    "regression": "mean force against mean air speed over laps (Lim et al. 2011)",
-}
-"""The estimation methods, by name, with a one-line description."""
 
 SEPARATION_LIMIT = 0.99
 """|correlation| of the CdA and Crr estimates above which they are reported as inseparable
@@ -81,29 +89,14 @@ when there is no bootstrap interval of Crr to judge by (see `estimate_drag`)."""
 
 TYPICAL_ROLLING_COEFFICIENT = MARTIN_1998["rolling_coefficient"]
 """Crr held when the laps cannot separate CdA from Crr and none is given [-]: 0.0032, the
-value in Martin et al. (1998) (pacing.physics.cycling.MARTIN_1998; from memory, REFERENCES.md). Each
-0.001 it is off moves the fitted CdA by about m·g·0.001 / (½ρ·v²) (≈ 0.016 m² for 80 kg at
-9 m/s in air of 1.2 kg/m³); the warning gives CdA over PLAUSIBLE_ROLLING."""
+value in Martin et al. (1998) (pacing.physics.cycling.MARTIN_1998; from memory, see
+docs/references.md, "Cycling power balance (Martin et al. 1998)"). Each 0.001 it is off moves
+the fitted CdA by about m·g·0.001 / (½ρ·v²) (≈ 0.016 m² for 80 kg at 9 m/s in air of
+1.2 kg/m³); the warning gives CdA over PLAUSIBLE_ROLLING."""
 
-PLAUSIBLE_ROLLING = (0.0025, 0.006)
-"""Crr of road tyres from race tyres on smooth asphalt to ordinary asphalt [-] (from memory,
-tabulated in many cycling-physics texts; see REFERENCES.md "Typical CdA, Crr"): the span shown
-for CdA when Crr is held."""
+INTERVAL_LAPS = 3
+"""Fewest laps per position that get a bootstrap interval."""
 
-LAP_SPREAD_LIMIT = 0.05
-"""Coefficient of variation of per-lap CdA above which the laps are reported as inconsistent."""
-
-CALM_WIND = 1.0
-"""Wind at rider height above which a warning says the test was not in calm air [m/s]
-(Lim et al. 2011 tested in wind under 1.0 m/s)."""
-
-STEADY_SPEED_LIMIT = 0.10
-"""Median coefficient of variation of speed within laps above which the regression method
-warns that the runs are not steady [-]."""
-
-BRAKING_DECELERATION = 1.0
-"""Deceleration while hardly pedalling that marks a sample as braking [m/s²] (common practice:
-coasting on a road rarely slows a rider by more than ~0.5 m/s²)."""
 
 @dataclass(frozen=True)
 class PositionTest:
@@ -111,12 +104,20 @@ class PositionTest:
 
     Attributes
     ----------
-    label : name of the position ("hoods", "aero bars").
-    ride : the cleaned ride.
-    air_density : [kg/m³], scalar or per piece (length N-1).
-    laps : (start, end) sample index pairs; None = detect from positions, or the whole ride
-        as one lap when it has none.
-    headwind, crosswind : wind components per piece [m/s] (see `ride_wind`), or scalars.
+    label : str
+        Name of the position ("hoods", "aero bars").
+    ride : pacing.fieldtest.ride.Ride
+        The cleaned ride.
+    air_density : float or numpy.ndarray
+        Air density, scalar or per piece (length N-1) [kg/m³].
+    laps : tuple of (int, int) or None
+        (start, end) sample index pairs; None = detect from positions, or the whole ride as
+        one lap when it has none.
+    headwind : float or numpy.ndarray
+        Wind against the direction of travel per piece, or a scalar [m/s]
+        (pacing.fieldtest.ride.ride_air).
+    crosswind : float or numpy.ndarray
+        Wind across the direction of travel per piece, or a scalar [m/s].
     """
 
     label: str
@@ -131,13 +132,22 @@ class PositionTest:
 class LapTrace:
     """Plot data of one lap (point arrays over the lap's samples).
 
-    time, distance : from the lap start [s], [m].
-    virtual_elevation : trace with the fitted CdA and Crr [m], starting at the measured
-        elevation of the lap start when known, else at 0.
-    reference_elevation : what the trace should follow [m]: the measured/known profile (method
-        "profile"), else the mean virtual trace of the position's laps at the same place.
-    residual : virtual − reference [m].
-    measured_elevation : the ride's elevation column over the lap [m], or None.
+    Attributes
+    ----------
+    time : numpy.ndarray
+        Time from the lap start [s].
+    distance : numpy.ndarray
+        Distance from the lap start [m].
+    virtual_elevation : numpy.ndarray
+        Trace with the fitted CdA and Crr [m], starting at the measured elevation of the lap
+        start when known, else at 0.
+    reference_elevation : numpy.ndarray
+        What the trace should follow [m]: the measured/known profile (methods that need
+        elevation), else the mean virtual trace of the position's laps at the same place.
+    residual : numpy.ndarray
+        Virtual − reference [m].
+    measured_elevation : numpy.ndarray or None
+        The ride's elevation column over the lap [m].
     """
 
     time: np.ndarray
@@ -152,9 +162,20 @@ class LapTrace:
 class PositionEstimate:
     """CdA of one position.
 
-    drag_area : [m²]; drag_area_ci95 : bootstrap 95 % interval [m²] or None (too few laps);
-    lap_drag_area : CdA of each lap alone with Crr held at the fitted value [m²];
-    traces : plot data per lap.
+    Attributes
+    ----------
+    label : str
+        Name of the position.
+    drag_area : float
+        CdA [m²].
+    drag_area_ci95 : tuple of float or None
+        Bootstrap 95 % interval [m²]; None with too few laps.
+    laps : int
+        Number of laps.
+    lap_drag_area : numpy.ndarray
+        CdA of each lap alone with Crr held at the fitted value [m²].
+    traces : tuple of LapTrace
+        Plot data per lap.
     """
 
     label: str
@@ -167,8 +188,21 @@ class PositionEstimate:
 
 @dataclass(frozen=True)
 class PositionDifference:
-    """CdA of `label` minus CdA of `baseline` [m²] with its bootstrap 95 % interval; the
-    difference is significant when the interval excludes 0."""
+    """CdA of one position minus that of the first.
+
+    Attributes
+    ----------
+    label : str
+        The position.
+    baseline : str
+        The first position.
+    difference : float
+        CdA of `label` minus CdA of `baseline` [m²].
+    ci95 : tuple of float or None
+        Bootstrap 95 % interval of the difference [m²].
+    significant : bool
+        True when the interval excludes 0.
+    """
 
     label: str
     baseline: str
@@ -181,16 +215,34 @@ class PositionDifference:
 class FieldTestResult:
     """Estimated CdA per position and a common Crr, with intervals and warnings.
 
-    rolling_coefficient : Crr [-]; rolling_coefficient_ci95 : interval or None;
-    rolling_fixed : True when Crr was given, not fitted;
-    estimate_correlation : largest |correlation| between a CdA and the Crr estimate [-]
-        (0 when Crr was given; when Crr is held, the correlation that made it so);
-    bootstrap_drag_area : bootstrap draws, shape (draws, positions) [m²] (empty if none);
-    rolling_held : True when the laps could not separate CdA from Crr, so Crr was held at a
-        typical value (`fallback_rolling_coefficient` of `estimate_drag`) and only CdA fitted;
-        the CdA intervals then hold for that Crr only;
-    drag_area_per_rolling : change of each position's fitted CdA per unit change of the Crr
-        it is fitted with [m²], d CdA / d Crr (negative: a higher Crr leaves less drag to air).
+    Attributes
+    ----------
+    method : str
+        Key of pacing.fieldtest.methods.FIELD_TEST_METHODS.
+    positions : tuple of PositionEstimate
+        CdA per position, in the order given.
+    rolling_coefficient : float
+        Crr [-].
+    rolling_coefficient_ci95 : tuple of float or None
+        Bootstrap 95 % interval of Crr [-]; None when held or with too few laps.
+    rolling_fixed : bool
+        True when Crr was given, not fitted.
+    estimate_correlation : float
+        Largest |correlation| between a CdA and the Crr estimate [-] (0 when Crr was given;
+        when Crr is held, the correlation that made it so).
+    differences : tuple of PositionDifference
+        Each position against the first.
+    warnings : tuple of pacing.notices.Notice
+        What may mislead (codes "fieldtest-…"; words in pacing.display.fieldtest_words).
+    bootstrap_drag_area : numpy.ndarray
+        Bootstrap draws, shape (draws, positions) [m²] (empty if none).
+    rolling_held : bool
+        True when the laps could not separate CdA from Crr, so Crr was held at a typical value
+        (`fallback_rolling_coefficient` of `estimate_drag`) and only CdA fitted; the CdA
+        intervals then hold for that Crr only.
+    drag_area_per_rolling : tuple of float
+        Change of each position's fitted CdA per unit change of the Crr it is fitted with
+        [m²], d CdA / d Crr (negative: a higher Crr leaves less drag to air).
     """
 
     method: str
@@ -200,7 +252,7 @@ class FieldTestResult:
     rolling_fixed: bool
     estimate_correlation: float
     differences: tuple[PositionDifference, ...]
-    warnings: tuple[str, ...]
+    warnings: tuple[Notice, ...]
     bootstrap_drag_area: np.ndarray
     rolling_held: bool = False
     drag_area_per_rolling: tuple[float, ...] = ()
@@ -212,6 +264,7 @@ class FieldTestResult:
 
     @property
     def drag_area_ci95(self) -> tuple[float, float] | None:
+        """Bootstrap 95 % interval of the first position's CdA [m²], or None."""
         return self.positions[0].drag_area_ci95
 
     @property
@@ -219,9 +272,23 @@ class FieldTestResult:
         """Number of laps used, over all positions."""
         return sum(p.laps for p in self.positions)
 
-    def setup(self, position: str | int = 0, name: str | None = None, **fields) -> Setup:
-        """The measured position as a pacing.athlete.Setup (drag_area and rolling_coefficient
-        filled in; other Setup fields such as bike_mass from `fields`)."""
+    def setup(self, position: str | int = 0, name: str | None = None, **fields: Any) -> Setup:
+        """The measured position as a pacing.athlete.Setup.
+
+        Parameters
+        ----------
+        position : str or int
+            Label or index of the position.
+        name : str or None
+            Name of the setup (default the position's label).
+        **fields
+            Other Setup fields, e.g. bike_mass [kg].
+
+        Returns
+        -------
+        pacing.athlete.Setup
+            With drag_area [m²] rounded to 4 decimals and rolling_coefficient [-] to 5.
+        """
         if isinstance(position, str):
             matches = [p for p in self.positions if p.label == position]
             if not matches:
@@ -233,26 +300,183 @@ class FieldTestResult:
                      rolling_coefficient=round(self.rolling_coefficient, 5), **fields)
 
 
+# ---------------------------------------------------------------------------------------------
+# The request
+# ---------------------------------------------------------------------------------------------
+
+
+def method_named(name: str) -> FieldTestMethod:
+    """The field-test method of that name (pacing.fieldtest.methods.FIELD_TEST_METHODS).
+
+    Parameters
+    ----------
+    name : str
+        "loop", "profile" or "regression".
+
+    Returns
+    -------
+    pacing.fieldtest.methods.FieldTestMethod
+        The registry entry.
+
+    Raises
+    ------
+    InputError
+        For an unknown name (one line naming the choices).
+    """
+    return FIELD_TEST_METHODS.resolve(name)
+
+
+def _check_request(tests: list[PositionTest], rolling_coefficient: float | None,
+                   fallback_rolling_coefficient: float | None) -> None:
+    """Refuse no tests, repeated labels and a Crr outside 0-0.1."""
+    if not tests:
+        raise InputError("give at least one test ride")
+    labels = [t.label for t in tests]
+    if len(set(labels)) != len(labels):
+        raise InputError("position labels must differ")
+    for value, what in ((rolling_coefficient, "Crr"),
+                        (fallback_rolling_coefficient, "the fallback Crr")):
+        if value is not None and not (np.isfinite(value) and 0 <= value <= 0.1):
+            raise InputError(f"{what} must be 0-0.1, got {value}")
+
+
+def _check_lap_counts(tests: Sequence[PositionTest], lap_sets: Sequence[list[LapTerms]],
+                      method: FieldTestMethod, fixed: bool) -> None:
+    """Refuse a position with fewer laps than the method needs (1 when Crr is held)."""
+    need = 1 if fixed else method.laps_to_separate
+    for test, laps in zip(tests, lap_sets, strict=True):
+        if len(laps) < need:
+            hint = "" if test.ride.has_position or test.laps else \
+                " (no positions to find laps in: mark the lap boundaries)"
+            raise InputError(f"method {method.name!r} needs at least {need} laps per position; "
+                             f"{test.label!r} has {len(laps)}{hint}")
+
+
+# ---------------------------------------------------------------------------------------------
+# The fit: joint, or with Crr held when the laps cannot separate CdA from Crr
+# ---------------------------------------------------------------------------------------------
+
+
+@dataclass(frozen=True, eq=False)
+class _Fit:
+    """The solved least squares.
+
+    solution : CdA per position [m²] (then Crr [-] when fitted); correlation : of the joint
+    estimates [-]; draws : bootstrap estimates; valid : enough draws for an interval;
+    held_value : Crr held [-] (given or fallback) or None; held : held at the fallback;
+    problem : values of the separation notice, or None.
+    """
+
+    solution: np.ndarray
+    correlation: float
+    draws: np.ndarray
+    valid: bool
+    held_value: float | None
+    held: bool
+    problem: dict[str, Any] | None
+
+
 def _separation_problem(solution: np.ndarray | None, correlation: float,
-                        rolling_draws: np.ndarray | None) -> str | None:
-    """Why the laps cannot separate CdA from Crr (a few words), or None when they can.
+                        rolling_draws: np.ndarray | None) -> dict[str, Any] | None:
+    """Why the laps cannot separate CdA from Crr (notice values), or None when they can.
 
     With bootstrap draws of Crr: when their 95 % interval is wider than the spread of road
     tyres (PLAUSIBLE_ROLLING), the laps say less about Crr than a typical value does. Without
     them: when |correlation| of the two estimates exceeds SEPARATION_LIMIT.
+
+    Parameters
+    ----------
+    solution : numpy.ndarray or None
+        The joint fit (None when singular).
+    correlation : float
+        |correlation| of the CdA and Crr estimates [-].
+    rolling_draws : numpy.ndarray or None
+        Bootstrap draws of Crr [-], or None when there is no usable interval.
+
+    Returns
+    -------
+    dict or None
+        ``reason`` ("singular", "crr-interval" or "correlation") with ``correlation`` [-] and,
+        for "crr-interval", ``rolling_ci95_low``, ``rolling_ci95_high`` and
+        ``rolling_spread`` [-].
     """
     if solution is None:
-        return "the fit is singular"
+        return {"reason": "singular"}
     if rolling_draws is not None:
         low, high = np.percentile(rolling_draws, [2.5, 97.5])
         span = PLAUSIBLE_ROLLING[1] - PLAUSIBLE_ROLLING[0]
         if high - low > span:
-            return (f"correlation {correlation:.3f}; the 95 % interval of Crr, {low:.4f} to "
-                    f"{high:.4f}, is wider than the {span:g} spread of road tyres")
+            return {"reason": "crr-interval", "correlation": correlation,
+                    "rolling_ci95_low": float(low), "rolling_ci95_high": float(high),
+                    "rolling_spread": span}
         return None
     if correlation > SEPARATION_LIMIT:
-        return f"correlation {correlation:.3f}"
+        return {"reason": "correlation", "correlation": correlation}
     return None
+
+
+def _solve(groups: Sequence[Columns], method: FieldTestMethod, rolling: float | None,
+           bootstrap: int, seed: int, bootstrap_when_singular: bool,
+           ) -> tuple[np.ndarray | None, float, np.ndarray, bool]:
+    """(solution or None, correlation, bootstrap draws, enough draws) of one least squares."""
+    equations = normal_equations(groups, method.offset_per_lap, rolling)
+    solution = None if equations is None else solve_normal_equations(*equations)
+    correlation = 1.0
+    if equations is not None and solution is not None:
+        correlation = estimate_correlation(equations[0], rolling is not None)
+    draws = bootstrap_fits(groups, method.offset_per_lap, rolling,
+                           bootstrap if solution is not None or bootstrap_when_singular else 0,
+                           seed)
+    valid = draws.shape[0] >= max(20, bootstrap // 2) if bootstrap else False
+    return solution, correlation, draws, valid
+
+
+def _fit(groups: Sequence[Columns], method: FieldTestMethod, rolling_coefficient: float | None,
+         fallback_rolling_coefficient: float | None, bootstrap: int, seed: int,
+         few: Sequence[str]) -> _Fit:
+    """Fit CdA per position and Crr; hold Crr at the fallback when the laps cannot separate
+    them. Raises InputError when no CdA can be fitted."""
+    fixed = rolling_coefficient is not None
+    solution, correlation, draws, valid = _solve(groups, method, rolling_coefficient, bootstrap,
+                                                 seed, bootstrap_when_singular=False)
+    problem = None if fixed else _separation_problem(
+        solution, correlation, draws[:, -1] if valid and not few else None)
+    held_value = rolling_coefficient
+    held = problem is not None and fallback_rolling_coefficient is not None
+    if problem is not None and fallback_rolling_coefficient is not None:
+        # CdA and Crr trade off freely: hold Crr at the typical value, fit CdA alone
+        held_value = float(fallback_rolling_coefficient)
+        solution, _, draws, valid = _solve(groups, method, held_value, bootstrap, seed,
+                                           bootstrap_when_singular=True)
+    if solution is None:
+        raise InputError("CdA and Crr cannot be separated from these laps: ride laps at "
+                         "clearly different speeds, or give Crr")
+    return _Fit(solution, correlation, draws, valid, held_value, held, problem)
+
+
+def _interval(values: np.ndarray, usable: bool) -> tuple[float, float] | None:
+    """Percentile 95 % interval of bootstrap values, or None when not usable."""
+    if not usable:
+        return None
+    low, high = np.percentile(values, [2.5, 97.5])
+    return float(low), float(high)
+
+
+# ---------------------------------------------------------------------------------------------
+# estimate_drag
+# ---------------------------------------------------------------------------------------------
+
+
+def _differences(tests: Sequence[PositionTest], areas: np.ndarray, draws: np.ndarray,
+                 usable: bool) -> tuple[PositionDifference, ...]:
+    """Each position's CdA minus the first's, with its bootstrap interval."""
+    differences = []
+    for p in range(1, len(tests)):
+        ci = _interval(draws[:, p] - draws[:, 0], usable) if draws.size else None
+        differences.append(PositionDifference(
+            label=tests[p].label, baseline=tests[0].label, difference=float(areas[p] - areas[0]),
+            ci95=ci, significant=bool(ci is not None and (ci[0] > 0 or ci[1] < 0))))
+    return tuple(differences)
 
 
 def estimate_drag(
@@ -270,9 +494,9 @@ def estimate_drag(
 
     All positions share one Crr (same tyres and road); each has its own CdA. The fit is linear
     least squares on the virtual elevation (methods "loop", "profile") or on lap means
-    ("regression"), see the module docstring. Intervals: percentile bootstrap over laps,
-    resampled within each position (Efron & Tibshirani 1993); a position with fewer than 3 laps
-    gets no interval.
+    ("regression"), see the module docstring and pacing.fieldtest.methods. Intervals:
+    percentile bootstrap over laps, resampled within each position (Efron & Tibshirani 1993);
+    a position with fewer than INTERVAL_LAPS laps gets no interval.
 
     CdA and Crr are told apart only by speed variety (air drag grows with v², rolling
     resistance does not), between laps or within them on a hilly profile. When the laps cannot
@@ -287,196 +511,109 @@ def estimate_drag(
 
     Parameters
     ----------
-    tests : one PositionTest per position (or marked part of a ride).
-    rider : mass [kg] of rider + bike, drivetrain efficiency and wheel parameters.
-    method : "loop", "profile" or "regression" (see METHODS).
-    rolling_coefficient : Crr to hold fixed [-]; None fits it.
-    fallback_rolling_coefficient : Crr to hold when the laps cannot separate CdA from Crr [-]
-        (default TYPICAL_ROLLING_COEFFICIENT, Martin et al. 1998); None fits both anyway and
-        only warns.
-    lap_radius : capture radius of automatic lap detection [m].
-    profile : known elevation (distance along the lap [m], elevation [m]) for method
-        "profile"; default the ride's elevation column.
-    bootstrap : number of bootstrap draws (0 for none).
-    seed : random seed of the bootstrap.
+    tests : PositionTest or sequence of PositionTest
+        One per position (or marked part of a ride).
+    rider : pacing.physics.cycling.Rider
+        Mass of rider + bike [kg], drivetrain efficiency [-] and wheel parameters.
+    method : str
+        Key of pacing.fieldtest.methods.FIELD_TEST_METHODS: "loop", "profile" or
+        "regression".
+    rolling_coefficient : float or None
+        Crr to hold fixed [-]; None fits it.
+    lap_radius : float
+        Capture radius of automatic lap detection [m].
+    profile : tuple of numpy.ndarray or None
+        Known elevation (distance along the lap [m], elevation [m]) for method "profile";
+        default the ride's elevation column.
+    bootstrap : int
+        Number of bootstrap draws (0 for none).
+    seed : int
+        Random seed of the bootstrap.
+    fallback_rolling_coefficient : float or None
+        Crr to hold when the laps cannot separate CdA from Crr [-] (default
+        TYPICAL_ROLLING_COEFFICIENT, Martin et al. 1998); None fits both anyway and only warns.
+
+    Returns
+    -------
+    FieldTestResult
+        CdA per position [m²], Crr [-], intervals and warnings (pacing.notices.Notice).
 
     Raises
     ------
-    InputError : unknown method, too few laps, or no CdA can be fitted (with
+    InputError
+        Unknown method, too few laps, or no CdA can be fitted (with
         `fallback_rolling_coefficient` None: CdA and Crr cannot be separated).
+
+    References
+    ----------
+    Chung, R. Estimating CdA with a power meter (self-published notes).
+    Lim, A.C. et al. (2011). Med Sci Sports Exerc 43(5):853-860.
+    Martin, J.C. et al. (1998). J Appl Biomech 14(3):276-291. doi:10.1123/jab.14.3.276
+    Efron, B. & Tibshirani, R.J. (1993). An Introduction to the Bootstrap. Chapman & Hall.
     """
-    if isinstance(tests, PositionTest):
-        tests = [tests]
-    tests = list(tests)
-    if method not in METHODS:
-        raise InputError(f"unknown method {method!r}: choose one of {', '.join(METHODS)}")
-    if not tests:
-        raise InputError("give at least one test ride")
-    labels = [t.label for t in tests]
-    if len(set(labels)) != len(labels):
-        raise InputError("position labels must differ")
-    for value, what in ((rolling_coefficient, "Crr"),
-                        (fallback_rolling_coefficient, "the fallback Crr")):
-        if value is not None and not (np.isfinite(value) and 0 <= value <= 0.1):
-            raise InputError(f"{what} must be 0-0.1, got {value}")
-    fixed = rolling_coefficient is not None
-    warnings: list[str] = []
-    lap_sets = [build_laps(t, g, rider, lap_radius, profile, method) for g, t in
-                enumerate(tests)]
-    for test, laps in zip(tests, lap_sets, strict=True):
-        need = 2 if method in ("loop", "regression") and not fixed else 1
-        if len(laps) < need:
-            hint = "" if test.ride.has_position or test.laps else \
-                " (no positions to find laps in: mark the lap boundaries)"
-            raise InputError(f"method {method!r} needs at least {need} laps per position; "
-                             f"{test.label!r} has {len(laps)}{hint}")
-    groups = [lap_matrices(laps, method) for laps in lap_sets]
-    equations = normal_equations(groups, method, rolling_coefficient)
-    solution = None if equations is None else solve_normal_equations(*equations)
-    correlation = 1.0
-    if equations is not None and solution is not None:
-        correlation = estimate_correlation(equations[0], fixed)
-    few = [t.label for t, laps in zip(tests, lap_sets, strict=True) if len(laps) < 3]
-    draws = bootstrap_fits(groups, method, rolling_coefficient, bootstrap if solution is not None
-                       else 0, seed)
-    valid = draws.shape[0] >= max(20, bootstrap // 2) if bootstrap else False
-    problem = None if fixed else _separation_problem(
-        solution, correlation, draws[:, -1] if valid and not few else None)
-    held_value = rolling_coefficient
-    held = problem is not None and fallback_rolling_coefficient is not None
-    if held:
-        # CdA and Crr trade off freely: hold Crr at the typical value, fit CdA alone
-        held_value = float(fallback_rolling_coefficient)
-        equations = normal_equations(groups, method, held_value)
-        solution = None if equations is None else solve_normal_equations(*equations)
-        draws = bootstrap_fits(groups, method, held_value, bootstrap, seed)
-        valid = draws.shape[0] >= max(20, bootstrap // 2) if bootstrap else False
-    if solution is None:
-        raise InputError("CdA and Crr cannot be separated from these laps: ride laps at "
-                         "clearly different speeds, or give Crr")
-    slopes = drag_area_per_rolling(groups, method)
-    crr = float(held_value) if held_value is not None else float(solution[-1])
-    areas = solution[:len(tests)]
-    if held:
-        low, high = PLAUSIBLE_ROLLING
-        spans = ", ".join(
-            f"{test.label!r} {areas[p] + slopes[p] * (high - held_value):.3f}-"
-            f"{areas[p] + slopes[p] * (low - held_value):.3f} m²"
-            for p, test in enumerate(tests))
-        warnings.append(
-            f"laps lack speed variety: CdA and Crr cannot be separated ({problem}), so Crr is "
-            f"held at {held_value:g} (a typical road value, Martin et al. 1998) and only CdA "
-            f"is fitted; its interval counts no Crr error: for Crr {low:g}-{high:g} CdA would "
-            f"be {spans}; ride laps at clearly different speeds or give the Crr of your tyres"
-        )
-    elif problem is not None:
-        warnings.append(
-            f"laps lack speed variety: CdA and Crr cannot be separated ({problem}); ride laps "
-            "at clearly different speeds or give Crr"
-        )
-
-    if few and bootstrap:
-        warnings.append(f"fewer than 3 laps for {', '.join(few)}: no interval")
-    if bootstrap and not valid and not few:
-        warnings.append("too many bootstrap draws could not be fitted: no interval")
-
-    def interval(values: np.ndarray) -> tuple[float, float] | None:
-        if not valid or few:
-            return None
-        low, high = np.percentile(values, [2.5, 97.5])
-        return float(low), float(high)
-
+    tests = [tests] if isinstance(tests, PositionTest) else list(tests)
+    spec = method_named(method)
+    _check_request(tests, rolling_coefficient, fallback_rolling_coefficient)
+    lap_sets = [build_laps(t, g, rider, lap_radius, profile, spec) for g, t in enumerate(tests)]
+    _check_lap_counts(tests, lap_sets, spec, rolling_coefficient is not None)
+    groups = [spec.columns(laps) for laps in lap_sets]
+    few = [t.label for t, laps in zip(tests, lap_sets, strict=True)
+           if len(laps) < INTERVAL_LAPS]
+    fit = _fit(groups, spec, rolling_coefficient, fallback_rolling_coefficient, bootstrap, seed,
+               few)
+    slopes = drag_area_per_rolling(groups, spec.offset_per_lap)
+    crr = float(fit.held_value) if fit.held_value is not None else float(fit.solution[-1])
+    areas = fit.solution[:len(tests)]
+    draws, usable = fit.draws, fit.valid and not few
+    notices = separation_notices(fit.problem, fit.held_value if fit.held else None,
+                                 [t.label for t in tests], [float(a) for a in areas], slopes)
+    notices += interval_notices(few, INTERVAL_LAPS, bootstrap, fit.valid)
     positions = []
     for p, (test, laps) in enumerate(zip(tests, lap_sets, strict=True)):
-        lap_areas, traces = _lap_results(laps, method, float(areas[p]), crr)
+        lap_areas, traces = _lap_results(laps, spec, float(areas[p]), crr)
         positions.append(PositionEstimate(
             label=test.label, drag_area=float(areas[p]),
-            drag_area_ci95=interval(draws[:, p]) if draws.size else None, laps=len(laps),
-            lap_drag_area=lap_areas, traces=traces))
-        if len(laps) >= 3:
-            spread = float(np.std(lap_areas, ddof=1) / abs(np.mean(lap_areas)))
-            if spread > LAP_SPREAD_LIMIT:
-                warnings.append(
-                    f"CdA of {test.label!r} varies by {100 * spread:.0f} % between laps: wind "
-                    "gusts, braking, drafting or a changing position spoil the data"
-                )
-        if method == "regression":
-            ride = test.ride
-            variation = np.median([np.std(ride.speed[lap.start:lap.end + 1])
-                                   / np.mean(ride.speed[lap.start:lap.end + 1]) for lap in laps])
-            if variation > STEADY_SPEED_LIMIT:
-                warnings.append(
-                    f"speed varies by {100 * variation:.0f} % within the laps of "
-                    f"{test.label!r}: the regression assumes steady runs (Lim et al. 2011); "
-                    "prefer method 'loop'"
-                )
-        wind = float(np.mean(np.hypot(test.headwind, test.crosswind)))
-        if wind > CALM_WIND:
-            warnings.append(
-                f"wind of {wind:.1f} m/s at rider height on {test.label!r}: test rides want "
-                f"calm air (under {CALM_WIND:g} m/s, Lim et al. 2011); the result is only as "
-                "good as the wind given"
-            )
-        braking = _braking_times(test.ride)
-        if braking.size:
-            shown = ", ".join(f"{t:.0f}" for t in braking[:5])
-            warnings.append(
-                f"braking suspected in {test.label!r} at {braking.size} samples (t = {shown} s"
-                f"{' …' if braking.size > 5 else ''}): brake-free laps give better estimates"
-            )
-        if areas[p] <= 0:
-            warnings.append(f"CdA of {test.label!r} came out {areas[p]:.3f} m², which is not "
-                            "physical: check mass, power, speed and wind")
-        elif not 0.1 <= areas[p] <= 0.8:
-            warnings.append(f"CdA of {test.label!r} ({areas[p]:.3f} m²) is outside the usual "
-                            "0.1-0.8 m²: check mass, power and wind")
-        area_interval = positions[-1].drag_area_ci95
-        if area_interval is not None and area_interval[0] <= 0 < areas[p]:
-            warnings.append(f"the 95 % interval of CdA of {test.label!r} reaches "
-                            f"{area_interval[0]:.3f} m² (below 0): these laps do not pin CdA "
-                            "down")
-    crr_interval = (None if held_value is not None or not draws.size
-                    else interval(draws[:, -1]))
-    if held_value is None and crr < 0:
-        warnings.append(f"Crr came out {crr:.4f}, below 0, which no tyre has: something the "
-                        "model lacks went into it (a power-meter offset, wind, braking, a wrong "
-                        "mass); zero the power meter before the test, or give the Crr of your "
-                        "tyres")
-    elif held_value is None and not 0.0005 <= crr <= 0.03:
-        warnings.append(f"Crr ({crr:.4f}) is outside the usual 0.0005-0.03: check the laps")
-    if crr_interval is not None and crr_interval[0] < 0 <= crr:
-        warnings.append(f"the 95 % interval of Crr reaches {crr_interval[0]:.4f} (below 0): "
-                        "the laps determine Crr poorly")
-    differences = []
-    for p in range(1, len(tests)):
-        delta = float(areas[p] - areas[0])
-        ci = interval(draws[:, p] - draws[:, 0]) if draws.size else None
-        differences.append(PositionDifference(
-            label=tests[p].label, baseline=tests[0].label, difference=delta, ci95=ci,
-            significant=bool(ci is not None and (ci[0] > 0 or ci[1] < 0))))
+            drag_area_ci95=_interval(draws[:, p], usable) if draws.size else None,
+            laps=len(laps), lap_drag_area=lap_areas, traces=traces))
+        notices += lap_notices(test.label, test.ride, laps, spec, lap_areas)
+        notices += conditions_notices(test.label, test.ride, test.headwind, test.crosswind, spec)
+        notices += drag_area_notices(test.label, float(areas[p]), positions[-1].drag_area_ci95)
+    crr_interval = (None if fit.held_value is not None or not draws.size
+                    else _interval(draws[:, -1], usable))
+    notices += rolling_notices(fit.held_value is None, crr, crr_interval)
+    fixed = rolling_coefficient is not None
     return FieldTestResult(
-        method=method, positions=tuple(positions), rolling_coefficient=crr,
+        method=spec.name, positions=tuple(positions), rolling_coefficient=crr,
         rolling_coefficient_ci95=crr_interval, rolling_fixed=fixed,
-        estimate_correlation=0.0 if fixed else correlation, differences=tuple(differences),
-        warnings=tuple(warnings),
+        estimate_correlation=0.0 if fixed else fit.correlation,
+        differences=_differences(tests, areas, draws, usable), warnings=tuple(notices),
         bootstrap_drag_area=draws[:, :len(tests)] if draws.size else np.empty((0, len(tests))),
-        rolling_held=held, drag_area_per_rolling=slopes,
+        rolling_held=fit.held, drag_area_per_rolling=slopes,
     )
 
 
-def _lap_results(laps: list[LapTerms], method: str, area: float,
+def _lap_results(laps: Sequence[LapTerms], method: FieldTestMethod, area: float,
                  crr: float) -> tuple[np.ndarray, tuple[LapTrace, ...]]:
-    """Per-lap CdA (Crr held) and plot traces."""
-    lap_areas = []
-    virtual = []
-    for lap in laps:
-        if method == "regression":
-            y, x_drag, x_rolling = lap.run
-            lap_areas.append((y - crr * x_rolling) / x_drag)
-        else:
-            rise = 0.0 if lap.reference is None else lap.reference[-1]
-            lap_areas.append((lap.known[-1] - rise - crr * lap.rolling[-1]) / lap.drag[-1])
-        virtual.append(lap.known - area * lap.drag - crr * lap.rolling)
+    """Per-lap CdA with Crr held [m²], and the plot trace of each lap.
+
+    Parameters
+    ----------
+    laps : sequence of LapTerms
+        The laps of one position.
+    method : pacing.fieldtest.methods.FieldTestMethod
+        The method of the fit.
+    area : float
+        The position's fitted CdA [m²].
+    crr : float
+        The fitted or held Crr [-].
+
+    Returns
+    -------
+    tuple
+        (CdA of each lap [m²], LapTrace of each lap).
+    """
+    lap_areas = [method.lap_drag_area(lap, crr) for lap in laps]
+    virtual = [lap.known - area * lap.drag - crr * lap.rolling for lap in laps]
     grid = np.linspace(0.0, 1.0, GRID_POINTS)
     mean_trace = np.mean([np.interp(grid, lap.fraction, z) for lap, z in
                           zip(laps, virtual, strict=True)], axis=0)
@@ -484,11 +621,11 @@ def _lap_results(laps: list[LapTerms], method: str, area: float,
     for lap, z in zip(laps, virtual, strict=True):
         if lap.reference is not None:
             reference = lap.reference
-        elif method == "regression" and lap.measured is not None:
+        elif method.trace_follows_measured and lap.measured is not None:
             reference = lap.measured
         else:
             reference = np.interp(lap.fraction, grid, mean_trace)
-        if method == "profile":
+        if method.offset_per_lap:
             # the fit allows each lap its own offset
             z = z - np.mean(z - reference)
         base = lap.start_elevation
@@ -497,12 +634,3 @@ def _lap_results(laps: list[LapTerms], method: str, area: float,
             reference_elevation=base + reference, residual=z - reference,
             measured_elevation=None if lap.measured is None else base + lap.measured))
     return np.array(lap_areas), tuple(traces)
-
-
-def _braking_times(ride: Ride, low_power: float = 20.0) -> np.ndarray:
-    """Times [s] of samples that slow faster than BRAKING_DECELERATION while hardly pedalling."""
-    rate = np.diff(ride.speed) / np.diff(ride.time)
-    if ride.pause is not None:
-        rate = np.where(ride.pause, 0.0, rate)
-    idle = 0.5 * (ride.power[1:] + ride.power[:-1]) < low_power
-    return ride.time[1:][(rate < -BRAKING_DECELERATION) & idle]

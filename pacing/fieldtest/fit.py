@@ -1,17 +1,19 @@
 """Least squares of CdA and Crr over the laps of test rides, and its bootstrap.
 
-The machinery behind pacing.fieldtest.estimate.estimate_drag: each lap's virtual-elevation sums
-(Chung) or regression row (Lim et al. 2011), the normal equations of a fit with one CdA per
-position and one common Crr (or Crr held), their scaled solution, the correlation of the two
-estimates, the change of CdA per unit of held Crr, and a bootstrap over laps (Efron &
-Tibshirani 1993). Every fit is linear: y = CdA·a + Crr·b, with a the drag column and b the
-rolling column of a lap.
+The machinery behind pacing.fieldtest.estimate.estimate_drag: from each lap's virtual-elevation
+sums (Chung) or regression row (Lim et al. 2011; both in pacing.fieldtest.laps), the
+least-squares columns each method makes of them (pacing.fieldtest.methods lists which), the
+normal equations of a fit with one CdA per position and one common Crr (or Crr held), their
+scaled solution, the correlation of the two estimates, the change of CdA per unit of held Crr,
+and a bootstrap over laps (Efron & Tibshirani 1993). Every fit is linear: y = CdA·a + Crr·b,
+with a the drag column and b the rolling column of a lap.
 
-Per lap the three columns have the shape (laps, G): G = 1 for methods "loop" (the lap's total
-rise, which loop closure sets to 0) and "regression" (one row of lap means), G = GRID_POINTS for
-method "profile" (the virtual elevation on a common grid of lap-distance fraction, centred per
-lap, since each lap keeps its own offset). Conventions as in pacing.fieldtest.estimate: point
-arrays have length N, piece arrays N-1, laps are (start, end) sample index pairs.
+Per lap the three columns have the shape (laps, G): G = 1 for `closure_columns` (the lap's
+total rise, which loop closure sets to 0) and `regression_columns` (one row of lap means),
+G = GRID_POINTS for `profile_columns` (the virtual elevation on a common grid of lap-distance
+fraction, centred per lap in the fit, since each lap keeps its own offset). Conventions as in
+pacing.fieldtest.estimate: point arrays have length N, piece arrays N-1, laps are (start, end)
+sample index pairs.
 
 References
 ----------
@@ -25,21 +27,11 @@ Efron, B. & Tibshirani, R.J. (1993). An Introduction to the Bootstrap. Chapman &
 
 from __future__ import annotations
 
-import dataclasses
-from dataclasses import dataclass
-from typing import TYPE_CHECKING
+from collections.abc import Sequence
 
 import numpy as np
 
-from pacing.constants import STANDARD_GRAVITY
-from pacing.errors import InputError
-from pacing.fieldtest.ride import Ride, detect_laps, local_position
-from pacing.fieldtest.virtual_elevation import elevation_terms, unit_rider
-from pacing.physics.cycling import Rider, aerodynamic_force, bearing_force, rolling_force
-
-if TYPE_CHECKING:  # pacing.fieldtest.estimate imports this module
-    from pacing.fieldtest.estimate import PositionTest
-
+from pacing.fieldtest.laps import LapTerms
 
 GRID_POINTS = 200
 """Points per lap on the common grid of lap-distance fraction."""
@@ -48,176 +40,51 @@ Columns = tuple[np.ndarray, np.ndarray, np.ndarray]
 """One position's least-squares columns (y, drag a, rolling b), each of shape (laps, G)."""
 
 
-@dataclass(frozen=True, eq=False)
-class LapTerms:
-    """One lap of one position, ready for the fit.
-
-    group : index of the position; start, end : sample indices;
-    time, distance : from the lap start, points [s], [m];
-    known, drag, rolling : cumulative sums of the virtual-elevation terms from the lap start,
-        points (pacing.fieldtest.virtual_elevation.ElevationTerms: known rise [m], rise per unit CdA
-        [m/m²], rise per unit Crr [m]);
-    measured : measured elevation relative to the lap start, points [m], or None;
-    reference : method "profile": known elevation relative to the lap start [m], else None;
-    start_elevation : measured elevation at the lap start [m] (0 when unknown);
-    run : regression row (y [N], x_drag [N/m²], x_rolling [N]), see `regression_row`;
-    fraction : distance / lap length, points [-].
-    """
-
-    group: int
-    start: int
-    end: int
-    time: np.ndarray
-    distance: np.ndarray
-    known: np.ndarray
-    drag: np.ndarray
-    rolling: np.ndarray
-    measured: np.ndarray | None
-    reference: np.ndarray | None
-    start_elevation: float
-    run: np.ndarray
-    fraction: np.ndarray
+# ---------------------------------------------------------------------------------------------
+# Least-squares columns of each method, and the CdA of one lap
+# ---------------------------------------------------------------------------------------------
 
 
-def resolve_laps(test: PositionTest, radius: float) -> list[tuple[int, int]]:
-    """The test's laps: as marked (checked to lie inside the ride), else detected from the
-    positions within `radius` [m], else the whole ride as one lap."""
-    ride = test.ride
-    n = ride.time.size
-    if test.laps is not None:
-        laps = [(int(a), int(b)) for a, b in test.laps]
-        for a, b in laps:
-            if not 0 <= a < b < n:
-                raise InputError(
-                    f"lap ({a}, {b}) of {test.label!r} is not inside the ride (0..{n - 1})"
-                )
-        if not laps:
-            raise InputError(f"position {test.label!r} has no laps")
-        return laps
-    if ride.has_position:
-        return detect_laps(ride.latitude, ride.longitude, radius)
-    return [(0, n - 1)]
-
-
-def _is_closed(ride: Ride, start: int, end: int, radius: float) -> bool:
-    """True when the lap ends within `radius` of where it started (needs positions)."""
-    if not ride.has_position:
-        return False
-    east, north = local_position(ride.latitude[[end]], ride.longitude[[end]],
-                                  (float(ride.latitude[start]), float(ride.longitude[start])))
-    return bool(np.hypot(east, north)[0] < radius)
-
-
-def build_laps(test: PositionTest, group: int, rider: Rider, radius: float,
-               profile: tuple[np.ndarray, np.ndarray] | None, method: str) -> list[LapTerms]:
-    """The laps of one position with their virtual-elevation sums and regression rows.
+def closure_columns(laps: Sequence[LapTerms]) -> Columns:
+    """Loop closure: each lap's virtual elevation returns to its starting height.
 
     Parameters
     ----------
-    test : pacing.fieldtest.estimate.PositionTest; group : its index; rider : mass [kg], drivetrain
-    efficiency and wheel parameters; radius : lap capture radius [m]; profile : known elevation
-    (distance along the lap [m], elevation [m]) for method "profile", or None for the ride's
-    elevation column; method : "loop", "profile" or "regression".
+    laps : sequence of LapTerms
+        The laps of one position.
+
+    Returns
+    -------
+    Columns
+        (known rise [m], rise per unit CdA [m/m²], rise per unit Crr [m]) over each whole lap,
+        shape (laps, 1).
+
+    References
+    ----------
+    Chung, R. Estimating CdA with a power meter (self-published notes).
     """
-    ride = test.ride
-    n = ride.time.size
-    density = np.broadcast_to(np.asarray(test.air_density, dtype=float), (n - 1,))
-    if np.any(~np.isfinite(density)) or np.any(density <= 0) or np.any(density > 2.0):
-        raise InputError("air density must be between 0 and 2 kg/m³")
-    head = np.broadcast_to(np.asarray(test.headwind, dtype=float), (n - 1,))
-    cross = np.broadcast_to(np.asarray(test.crosswind, dtype=float), (n - 1,))
-    terms = elevation_terms(ride.time, ride.speed, ride.power, density, rider, head, cross,
-                            ride.pause)
-    laps = []
-    for start, end in resolve_laps(test, radius):
-        pieces = slice(start, end)
-        cumulative = [np.concatenate(([0.0], np.cumsum(part[pieces])))
-                      for part in (terms.known, terms.per_drag_area,
-                                   terms.per_rolling_coefficient)]
-        step = 0.5 * (ride.speed[start + 1:end + 1] + ride.speed[start:end]) * np.diff(
-            ride.time[start:end + 1])
-        if ride.pause is not None:
-            step = np.where(ride.pause[pieces], 0.0, step)
-        distance = np.concatenate(([0.0], np.cumsum(step)))
-        if distance[-1] <= 0:
-            raise InputError(f"lap ({start}, {end}) of {test.label!r} covers no distance")
-        measured = None
-        start_elevation = 0.0
-        if ride.elevation is not None:
-            start_elevation = float(ride.elevation[start])
-            measured = ride.elevation[start:end + 1] - start_elevation
-        reference = None
-        if method == "profile":
-            if profile is not None:
-                along, height = profile
-                lap_height = np.interp(distance, along, height)
-                reference = lap_height - lap_height[0]
-            elif measured is not None:
-                reference = measured
-            else:
-                raise InputError("method 'profile' needs elevation data or a known profile; "
-                                 "use method 'loop' instead")
-        # regression row (Lim et al. 2011): lap means of power and speed; a lap that returns
-        # to its start rises by 0, others by their measured rise
-        rise = 0.0
-        if measured is not None and not _is_closed(ride, start, end, radius):
-            rise = float(measured[-1])
-        run = regression_row(ride, start, end, distance[-1], rise, density, head, cross, rider)
-        laps.append(LapTerms(group, start, end, ride.time[start:end + 1] - ride.time[start],
-                             distance, *cumulative, measured, reference, start_elevation,
-                             run, distance / distance[-1]))
-    return laps
+    rows = np.array([(lap.known[-1], lap.drag[-1], lap.rolling[-1]) for lap in laps])
+    return rows[:, :1], rows[:, 1:2], rows[:, 2:3]
 
 
-def regression_row(ride: Ride, start: int, end: int, length: float, rise: float, density,
-                   head, cross, rider: Rider) -> np.ndarray:
-    """One run of the regression: (y, x_drag, x_rolling) with y = CdA·x_drag + Crr·x_rolling.
-
-        y = η·P̄/v̄ − (a + b·v̄) − F_w·q̄ − m·g·rise/length − (m + I/r²)·(v_end − v_start)/T
-        x_drag = q̄ = ½·ρ̄·V̄·v̄_a (mean speed and mean wind),  x_rolling = m·g
-
-    P̄, v̄ are time means over the run (Lim et al. 2011 use the means of constant-speed runs).
+def profile_columns(laps: Sequence[LapTerms]) -> Columns:
+    """Virtual elevation along each lap against its known profile, on a common grid.
 
     Parameters
     ----------
-    ride : the cleaned ride; start, end : sample indices of the run; length : its distance [m];
-    rise : its rise [m]; density : air density per piece [kg/m³]; head, cross : wind components
-    per piece [m/s]; rider : mass [kg], drivetrain efficiency, bearing and wheel parameters.
+    laps : sequence of LapTerms
+        The laps of one position (with `reference` set when the profile is known).
+
+    Returns
+    -------
+    Columns
+        (known rise − profile [m], rise per unit CdA [m/m²], rise per unit Crr [m]) at
+        GRID_POINTS fractions of each lap, shape (laps, GRID_POINTS).
+
+    References
+    ----------
+    Chung, R. Estimating CdA with a power meter (self-published notes).
     """
-    pieces = slice(start, end)
-    duration = np.diff(ride.time[start:end + 1])
-    if ride.pause is not None:
-        duration = np.where(ride.pause[pieces], 0.0, duration)
-    total = float(duration.sum())
-    mean_power = float(np.sum(0.5 * (ride.power[start + 1:end + 1] + ride.power[start:end])
-                              * duration) / total)
-    mean_speed = length / total
-
-    def mean(values):
-        return float(np.sum(values[pieces] * duration) / total)
-
-    unit = unit_rider(rider)
-    q = float(aerodynamic_force(mean_speed, mean(density), unit, mean(head), mean(cross)))
-    q_wheel = float(aerodynamic_force(mean_speed, mean(density),
-                                      dataclasses.replace(unit, yaw_drag_table=None),
-                                      mean(head), mean(cross)))
-    weight = rider.mass * STANDARD_GRAVITY
-    y = (rider.drivetrain_efficiency * mean_power / mean_speed
-         - float(bearing_force(mean_speed, rider)) - rider.wheel_drag_area * q_wheel
-         - weight * rise / length
-         - rider.effective_mass * (ride.speed[end] - ride.speed[start]) / total)
-    return np.array([y, q, float(rolling_force(0.0, unit))])
-
-
-def lap_matrices(laps: list[LapTerms], method: str) -> Columns:
-    """Per lap: target y, drag column, rolling column, shape (L, G) (G = 1 for regression)."""
-    if method == "regression":
-        rows = np.array([lap.run for lap in laps])
-        return rows[:, :1], rows[:, 1:2], rows[:, 2:3]
-    if method == "loop":
-        # loop closure: each lap's virtual elevation returns to its starting height
-        rows = np.array([(lap.known[-1], lap.drag[-1], lap.rolling[-1]) for lap in laps])
-        return rows[:, :1], rows[:, 1:2], rows[:, 2:3]
     grid = np.linspace(0.0, 1.0, GRID_POINTS)
     ys, a_s, b_s = [], [], []
     for lap in laps:
@@ -228,20 +95,114 @@ def lap_matrices(laps: list[LapTerms], method: str) -> Columns:
     return np.array(ys), np.array(a_s), np.array(b_s)
 
 
-def normal_equations(groups: list[Columns], method: str,
+def regression_columns(laps: Sequence[LapTerms]) -> Columns:
+    """Mean driving force against mean air speed: one regression row per lap.
+
+    Parameters
+    ----------
+    laps : sequence of LapTerms
+        The laps of one position.
+
+    Returns
+    -------
+    Columns
+        (y [N], x_drag [N/m²], x_rolling [N]) of each lap (`regression_row`), shape (laps, 1).
+
+    References
+    ----------
+    Lim, A.C. et al. (2011). Med Sci Sports Exerc 43(5):853-860.
+    """
+    rows = np.array([lap.run for lap in laps])
+    return rows[:, :1], rows[:, 1:2], rows[:, 2:3]
+
+
+def virtual_elevation_lap_drag_area(lap: LapTerms, rolling_coefficient: float) -> float:
+    """CdA of one lap alone from its virtual elevation, with Crr held.
+
+    The lap's virtual elevation must gain what its reference gains (0 when it closes on
+    itself): CdA = (known − rise − Crr·per_Crr) / per_CdA over the whole lap.
+
+    Parameters
+    ----------
+    lap : LapTerms
+        The lap.
+    rolling_coefficient : float
+        Crr held [-].
+
+    Returns
+    -------
+    float
+        CdA [m²].
+
+    References
+    ----------
+    Chung, R. Estimating CdA with a power meter (self-published notes).
+    """
+    rise = 0.0 if lap.reference is None else lap.reference[-1]
+    return (lap.known[-1] - rise - rolling_coefficient * lap.rolling[-1]) / lap.drag[-1]
+
+
+def regression_lap_drag_area(lap: LapTerms, rolling_coefficient: float) -> float:
+    """CdA of one lap alone from its regression row, with Crr held: (y − Crr·x_rolling)/x_drag.
+
+    Parameters
+    ----------
+    lap : LapTerms
+        The lap.
+    rolling_coefficient : float
+        Crr held [-].
+
+    Returns
+    -------
+    float
+        CdA [m²].
+
+    References
+    ----------
+    Lim, A.C. et al. (2011). Med Sci Sports Exerc 43(5):853-860.
+    """
+    y, x_drag, x_rolling = lap.run
+    return (y - rolling_coefficient * x_rolling) / x_drag
+
+
+# ---------------------------------------------------------------------------------------------
+# The fit
+# ---------------------------------------------------------------------------------------------
+
+
+def _centred(columns: Sequence[np.ndarray], offset_per_lap: bool) -> list[np.ndarray]:
+    """The columns less their mean per lap (row) when each lap keeps its own offset."""
+    if offset_per_lap:
+        return [v - v.mean(axis=1, keepdims=True) for v in columns]
+    return list(columns)
+
+
+def normal_equations(groups: Sequence[Columns], offset_per_lap: bool,
                      fixed_rolling: float | None) -> tuple[np.ndarray, np.ndarray] | None:
-    """Normal matrix and right side of the least-squares problem; None when a group cannot
-    be fitted (e.g. a loop group with a single distinct lap).
+    """Normal matrix and right side of the least-squares problem.
 
     Unknowns: one CdA per group [m²], then Crr [-] unless `fixed_rolling` holds it.
+
+    Parameters
+    ----------
+    groups : sequence of Columns
+        (y, drag, rolling) columns of each position, shape (laps, G).
+    offset_per_lap : bool
+        True to centre the columns per lap (each lap keeps its own offset).
+    fixed_rolling : float or None
+        Crr held [-]; None fits it.
+
+    Returns
+    -------
+    tuple of numpy.ndarray or None
+        (matrix, right side); None when a group cannot be fitted (e.g. a drag column of zeros).
     """
     count = len(groups)
     size = count + (fixed_rolling is None)
     matrix = np.zeros((size, size))
     right = np.zeros(size)
-    for p, (y, a, b) in enumerate(groups):
-        if method == "profile":
-            y, a, b = (v - v.mean(axis=1, keepdims=True) for v in (y, a, b))
+    for p, group in enumerate(groups):
+        y, a, b = _centred(group, offset_per_lap)
         if fixed_rolling is not None:
             y = y - fixed_rolling * b
         aa = float(np.sum(a * a))
@@ -259,8 +220,21 @@ def normal_equations(groups: list[Columns], method: str,
 
 
 def solve_normal_equations(matrix: np.ndarray, right: np.ndarray) -> np.ndarray | None:
-    """Solution of matrix·x = right after scaling to a unit diagonal; None when singular
-    (a zero diagonal or a scaled condition number above 1e12)."""
+    """Solution of matrix·x = right after scaling to a unit diagonal.
+
+    Parameters
+    ----------
+    matrix : numpy.ndarray
+        Normal matrix, square.
+    right : numpy.ndarray
+        Right side.
+
+    Returns
+    -------
+    numpy.ndarray or None
+        x (CdA per group [m²], then Crr [-] when fitted); None when singular (a zero diagonal
+        or a scaled condition number above 1e12).
+    """
     scale = np.sqrt(np.diag(matrix))
     if np.any(scale <= 0):
         return None
@@ -270,24 +244,49 @@ def solve_normal_equations(matrix: np.ndarray, right: np.ndarray) -> np.ndarray 
     return np.linalg.solve(scaled, right / scale) / scale
 
 
-def drag_area_per_rolling(groups: list[Columns], method: str) -> tuple[float, ...]:
+def drag_area_per_rolling(groups: Sequence[Columns], offset_per_lap: bool) -> tuple[float, ...]:
     """d CdA / d Crr of each position when CdA is fitted with Crr held [m²].
 
     With Crr held, CdA = Σa·(y − Crr·b) / Σa², so d CdA / d Crr = −Σa·b / Σa² (a: drag column,
-    b: rolling column, centred per lap for method "profile" as in the fit).
+    b: rolling column, centred per lap as in the fit when each lap keeps its own offset).
+
+    Parameters
+    ----------
+    groups : sequence of Columns
+        (y, drag, rolling) columns of each position.
+    offset_per_lap : bool
+        True to centre the columns per lap.
+
+    Returns
+    -------
+    tuple of float
+        One slope per position [m²] (0 when its drag column is all zeros).
     """
     slopes = []
-    for _, a, b in groups:
-        if method == "profile":
-            a, b = (v - v.mean(axis=1, keepdims=True) for v in (a, b))
+    for _, *columns in groups:
+        a, b = _centred(columns, offset_per_lap)
         aa = float(np.sum(a * a))
         slopes.append(-float(np.sum(a * b)) / aa if aa > 0 else 0.0)
     return tuple(slopes)
 
 
 def estimate_correlation(matrix: np.ndarray, fixed: bool) -> float:
-    """Largest |correlation| between a CdA estimate and the Crr estimate [-], from the
-    inverse of the (scaled) normal matrix; 0 when Crr is held, 1 when the matrix is singular."""
+    """Largest |correlation| between a CdA estimate and the Crr estimate [-].
+
+    From the inverse of the (scaled) normal matrix.
+
+    Parameters
+    ----------
+    matrix : numpy.ndarray
+        Normal matrix of the fit.
+    fixed : bool
+        True when Crr was held (then there is no Crr estimate).
+
+    Returns
+    -------
+    float
+        In 0..1; 0 when Crr is held, 1 when the matrix is singular.
+    """
     if fixed:
         return 0.0
     scale = np.sqrt(np.diag(matrix))
@@ -300,12 +299,34 @@ def estimate_correlation(matrix: np.ndarray, fixed: bool) -> float:
     return float(np.clip(np.max(np.abs(corr)), 0.0, 1.0))
 
 
-def bootstrap_fits(groups: list[Columns], method: str, fixed_rolling: float | None, draws: int,
-                   seed: int) -> np.ndarray:
-    """Bootstrap estimates, shape (valid draws, positions [+ Crr]).
+def bootstrap_fits(groups: Sequence[Columns], offset_per_lap: bool,
+                   fixed_rolling: float | None, draws: int, seed: int) -> np.ndarray:
+    """Bootstrap estimates over laps.
 
     Each draw resamples the laps of every position with replacement (within the position) and
-    refits; draws that cannot be fitted are left out (Efron & Tibshirani 1993).
+    refits; draws that cannot be fitted are left out.
+
+    Parameters
+    ----------
+    groups : sequence of Columns
+        (y, drag, rolling) columns of each position.
+    offset_per_lap : bool
+        True to centre the columns per lap (as in `normal_equations`).
+    fixed_rolling : float or None
+        Crr held [-]; None fits it.
+    draws : int
+        Number of draws (0 for none).
+    seed : int
+        Seed of the random generator.
+
+    Returns
+    -------
+    numpy.ndarray
+        Shape (valid draws, positions [+ 1 for Crr]): CdA [m²] per position, then Crr [-].
+
+    References
+    ----------
+    Efron, B. & Tibshirani, R.J. (1993). An Introduction to the Bootstrap. Chapman & Hall.
     """
     columns = len(groups) + (fixed_rolling is None)
     if draws <= 0:
@@ -317,7 +338,7 @@ def bootstrap_fits(groups: list[Columns], method: str, fixed_rolling: float | No
         for y, a, b in groups:
             pick = rng.integers(0, y.shape[0], y.shape[0])
             sample.append((y[pick], a[pick], b[pick]))
-        equations = normal_equations(sample, method, fixed_rolling)
+        equations = normal_equations(sample, offset_per_lap, fixed_rolling)
         solution = None if equations is None else solve_normal_equations(*equations)
         if solution is not None:
             results.append(solution)

@@ -1,9 +1,13 @@
-"""A test ride as arrays: cleaning, direction of travel, air along it, and laps.
+"""A test ride as arrays: cleaning, direction of travel, and the air along it.
 
 `make_ride` checks and cleans the samples of a recorded ride (time, speed, power, optional
-elevation, positions, heading) into a `Ride`; `ride_air` and `ride_wind` give the air density
-and wind components on each piece; `detect_laps`, `laps_from_bounds` and `indices_at_times`
-mark its laps. The estimation of CdA and Crr from rides is in pacing.fieldtest.estimate.
+elevation, positions, heading) into a `Ride`; `ride_air` gives the air density and wind
+components on each piece (a pacing.weather.conditions.CourseAir), `ride_wind` the wind alone.
+Its laps are marked by pacing.fieldtest.laps; the estimation of CdA and Crr from rides is in
+pacing.fieldtest.estimate.
+
+What cleaning did comes back as `Ride.notes`, notices (pacing.notices, codes "test-ride-…")
+whose sentences are in pacing.display.fieldtest_words.
 
 Conventions: point arrays (one value per sample) have length N, piece arrays (between samples
 i and i+1) length N-1. Laps are (start, end) pairs of sample indices.
@@ -15,11 +19,18 @@ from collections.abc import Sequence
 from dataclasses import dataclass
 
 import numpy as np
+from numpy.typing import ArrayLike
 
 from pacing.errors import InputError
-from pacing.physics.air import AIR_DENSITY_MODELS, standard_pressure, temperature_at_elevation
+from pacing.notices import Notice, note
+from pacing.physics.air import (
+    AIR_DENSITY_MODELS,
+    DEFAULT_AIR_DENSITY_MODEL,
+    standard_pressure,
+    temperature_at_elevation,
+)
 from pacing.physics.wind import wind_components
-from pacing.weather.conditions import Conditions
+from pacing.weather.conditions import Conditions, CourseAir
 
 STOP_SPEED = 1.0
 """Samples slower than this are a stop and are dropped [m/s]."""
@@ -33,11 +44,14 @@ MAX_POWER_FILL = 3.0
 ZERO_POWER_DROPOUT = 10.0
 """Shortest stretch of 0 W with the speed holding that is noted as a possible dropout [s]."""
 
-LAP_RADIUS = 20.0
-"""A lap ends when the rider passes within this distance of the start point [m]."""
-
 EARTH_RADIUS = 6371008.8
 """Mean Earth radius (IUGG) for local positions [m]."""
+
+MIN_SAMPLES = 10
+"""Fewest samples of a test ride, and fewest moving ones."""
+
+OPTIONAL_COLUMNS = ("elevation", "latitude", "longitude", "heading", "distance")
+"""The optional series of a ride, in the order they are checked."""
 
 
 @dataclass(frozen=True, eq=False)
@@ -46,16 +60,28 @@ class Ride:
 
     Attributes
     ----------
-    time : time of each sample from the start [s], strictly increasing, length N.
-    speed : ground speed [m/s], length N.
-    power : crank power [W], length N.
-    distance : distance ridden [m], length N.
-    elevation : measured elevation [m] or None.
-    latitude, longitude : position [deg] or None.
-    heading : direction of travel [deg clockwise from north] or None, length N.
-    pause : True for a piece that bridges a dropped stop, length N-1.
-    notes : what cleaning did (one line each).
-    name : label.
+    time : numpy.ndarray
+        Time of each sample from the start [s], strictly increasing, length N.
+    speed : numpy.ndarray
+        Ground speed [m/s], length N.
+    power : numpy.ndarray
+        Crank power [W], length N.
+    distance : numpy.ndarray
+        Distance ridden [m], length N.
+    elevation : numpy.ndarray or None
+        Measured elevation [m], length N.
+    latitude : numpy.ndarray or None
+        Latitude [deg], length N.
+    longitude : numpy.ndarray or None
+        Longitude [deg], length N.
+    heading : numpy.ndarray or None
+        Direction of travel [deg clockwise from north], length N.
+    pause : numpy.ndarray or None
+        True for a piece that bridges a dropped stop, length N-1.
+    notes : tuple of pacing.notices.Notice
+        What reading and cleaning did (codes "test-ride-…", level "note").
+    name : str
+        Label.
     """
 
     time: np.ndarray
@@ -67,15 +93,22 @@ class Ride:
     longitude: np.ndarray | None = None
     heading: np.ndarray | None = None
     pause: np.ndarray | None = None
-    notes: tuple[str, ...] = ()
+    notes: tuple[Notice, ...] = ()
     name: str = "ride"
 
     @property
     def has_position(self) -> bool:
+        """True when the ride has latitude and longitude."""
         return self.latitude is not None and self.longitude is not None
 
 
-def _array(values, name: str, length: int | None = None) -> np.ndarray:
+# ---------------------------------------------------------------------------------------------
+# Cleaning
+# ---------------------------------------------------------------------------------------------
+
+
+def _array(values: ArrayLike, name: str, length: int | None = None) -> np.ndarray:
+    """`values` as a 1-D float array of `length` values, or a one-line InputError."""
     try:
         array = np.asarray(values, dtype=float)
     except (TypeError, ValueError):
@@ -123,6 +156,7 @@ def _first_bad_sample(values: np.ndarray, time: np.ndarray, name: str, unit: str
 
 
 def _first_missing_run(values: np.ndarray, time: np.ndarray) -> tuple[float, float]:
+    """(start [s], duration [s]) of the first run of missing (NaN) values."""
     missing = np.isnan(values)
     start = int(np.argmax(missing))
     stop = start
@@ -146,41 +180,11 @@ def _zero_power_holding_speed(time: np.ndarray, speed: np.ndarray, power: np.nda
     return None
 
 
-def make_ride(
-    time,
-    speed,
-    power,
-    elevation=None,
-    latitude=None,
-    longitude=None,
-    heading=None,
-    distance=None,
-    name: str = "ride",
-    notes: Sequence[str] = (),
-    stop_speed: float = STOP_SPEED,
-    max_gap: float = MAX_GAP,
-    max_power_fill: float = MAX_POWER_FILL,
-) -> Ride:
-    """Check and clean the arrays of a test ride.
-
-    Missing power readings (NaN) up to `max_power_fill` seconds are interpolated; longer ones
-    are a power-meter dropout and an error. Samples slower than `stop_speed` are dropped with a
-    note (the pieces that bridge them become pauses). A time step longer than `max_gap` while
-    moving is an error (a recording gap breaks the energy balance).
-
-    Parameters
-    ----------
-    time [s], speed [m/s], power [W] : length N; elevation [m], latitude, longitude [deg],
-        heading [deg], distance [m] : optional, length N.
-
-    Raises
-    ------
-    InputError : with a one-line message naming the problem and where it is.
-    """
-    time = _array(time, "time")
-    n = time.size
-    if n < 10:
-        raise InputError(f"a test ride needs at least 10 samples, got {n}")
+def _checked_time(values: ArrayLike) -> np.ndarray:
+    """The time column [s]: at least MIN_SAMPLES finite values, strictly increasing."""
+    time = _array(values, "time")
+    if time.size < MIN_SAMPLES:
+        raise InputError(f"a test ride needs at least {MIN_SAMPLES} samples, got {time.size}")
     if not np.all(np.isfinite(time)):
         raise InputError("time has missing or non-numeric values")
     steps = np.diff(time)
@@ -190,70 +194,83 @@ def make_ride(
             f"time does not increase at sample {i + 1} (t = {time[i]:g} s): sort the file or "
             "remove repeated rows"
         )
-    speed = _array(speed, "speed", n)
-    power = _array(power, "power", n)
-    notes = list(notes)
+    return time
+
+
+def _cleaned_speed(speed: np.ndarray, time: np.ndarray, longest: float,
+                   notes: list[Notice]) -> np.ndarray:
+    """Speed [m/s] with gaps up to `longest` [s] filled (noted); refuses longer gaps and
+    negative or non-finite values."""
     if np.isnan(speed).any():
-        speed, worst = _fill_short(speed, time, max_power_fill)
+        speed, worst = _fill_short(speed, time, longest)
         if np.isnan(speed).any():
             at, _ = _first_missing_run(speed, time)
             raise InputError(f"speed is missing for {worst:g} s from t = {at:g} s")
-        notes.append("filled short gaps in speed by interpolation")
+        notes.append(note("test-ride-speed-filled", duration_s=float(worst)))
     problem = _first_bad_sample(speed, time, "speed", "m/s")
     if problem:
         raise InputError(problem)
+    return speed
+
+
+def _cleaned_power(power: np.ndarray, time: np.ndarray, longest: float,
+                   notes: list[Notice]) -> np.ndarray:
+    """Power [W] with dropouts up to `longest` [s] filled (noted); refuses longer dropouts and
+    negative or non-finite values."""
     if np.isnan(power).any():
-        filled, worst = _fill_short(power, time, max_power_fill)
+        filled, worst = _fill_short(power, time, longest)
         if np.isnan(filled).any():
             at, _ = _first_missing_run(power, time)
             raise InputError(
                 f"power is missing for {worst:g} s from t = {at:g} s (power-meter dropout): "
                 "cut that part out or mark laps around it"
             )
-        notes.append(f"filled power dropouts up to {worst:g} s by interpolation")
+        notes.append(note("test-ride-power-filled", duration_s=float(worst)))
         power = filled
     problem = _first_bad_sample(power, time, "power", "W")
     if problem:
         raise InputError(problem)
-    suspect = _zero_power_holding_speed(time, speed, power)
-    if suspect is not None:
-        notes.append(
-            f"power reads 0 W for {suspect[1]:g} s from t = {suspect[0]:g} s while the speed "
-            "holds: a power-meter dropout? Leave that stretch out of the laps"
-        )
-    optional = {}
-    for label, values in (("elevation", elevation), ("latitude", latitude),
-                          ("longitude", longitude), ("heading", heading),
-                          ("distance", distance)):
-        if values is None:
-            optional[label] = None
-            continue
-        array = _array(values, label, n)
-        if np.isnan(array).all():
-            optional[label] = None
-            notes.append(f"{label} column is empty: ignored")
-            continue
-        if np.isnan(array).any():
-            good = ~np.isnan(array)
-            array = np.interp(time, time[good], array[good])
-            notes.append(f"filled {int((~good).sum())} missing {label} values by interpolation")
-        optional[label] = array
-    if (optional["latitude"] is None) != (optional["longitude"] is None):
+    return power
+
+
+def _optional_column(values: ArrayLike | None, label: str, time: np.ndarray,
+                     notes: list[Notice]) -> np.ndarray | None:
+    """An optional column: None when absent or empty (noted), gaps filled by interpolation
+    (noted)."""
+    if values is None:
+        return None
+    array = _array(values, label, time.size)
+    if np.isnan(array).all():
+        notes.append(note("test-ride-column-empty", label=label))
+        return None
+    if np.isnan(array).any():
+        good = ~np.isnan(array)
+        array = np.interp(time, time[good], array[good])
+        notes.append(note("test-ride-column-filled", label=label, count=int((~good).sum())))
+    return array
+
+
+def _check_positions(latitude: np.ndarray | None, longitude: np.ndarray | None) -> None:
+    """Refuse half a position, or one outside ±90° latitude and ±180° longitude."""
+    if (latitude is None) != (longitude is None):
         raise InputError("give both latitude and longitude, or neither")
-    if optional["latitude"] is not None and (
-        np.any(np.abs(optional["latitude"]) > 90) or np.any(np.abs(optional["longitude"]) > 180)
+    if latitude is not None and longitude is not None and (
+        np.any(np.abs(latitude) > 90) or np.any(np.abs(longitude) > 180)
     ):
         raise InputError("latitude must be within ±90° and longitude within ±180°")
 
+
+def _moving_samples(time: np.ndarray, speed: np.ndarray, stop_speed: float, max_gap: float,
+                    notes: list[Notice]) -> tuple[np.ndarray, np.ndarray]:
+    """(indices of the samples kept, pause flag of each kept piece): stops are dropped
+    (noted); a longer step than `max_gap` [s] while moving is refused."""
     moving = speed >= stop_speed
-    if moving.sum() < 10:
-        raise InputError(f"fewer than 10 samples faster than {stop_speed:g} m/s: nothing to fit")
+    if moving.sum() < MIN_SAMPLES:
+        raise InputError(f"fewer than {MIN_SAMPLES} samples faster than {stop_speed:g} m/s: "
+                         "nothing to fit")
     if not moving.all():
-        dropped = int((~moving).sum())
-        notes.append(
-            f"dropped {dropped} samples slower than {stop_speed:g} m/s (stops); the energy "
-            "balance restarts after each"
-        )
+        notes.append(note("test-ride-stops-dropped", count=int((~moving).sum()),
+                          speed_mps=float(stop_speed)))
     index = np.flatnonzero(moving)
     pause = np.diff(index) > 1
     kept_steps = np.diff(time[index])
@@ -264,24 +281,123 @@ def make_ride(
             f"recording gap of {kept_steps[i]:g} s at t = {time[index[i]]:g} s while moving: "
             "split the file there or mark laps around it"
         )
-    time, speed, power = time[index], speed[index], power[index]
-    for label in optional:
-        if optional[label] is not None:
-            optional[label] = optional[label][index]
-    if optional["distance"] is None:
-        step = 0.5 * (speed[1:] + speed[:-1]) * np.diff(time)
-        optional["distance"] = np.concatenate(([0.0], np.cumsum(np.where(pause, 0.0, step))))
-    return Ride(time=time, speed=speed, power=power, pause=pause, notes=tuple(notes), name=name,
-                **optional)
+    return index, pause
+
+
+def make_ride(
+    time: ArrayLike,
+    speed: ArrayLike,
+    power: ArrayLike,
+    elevation: ArrayLike | None = None,
+    latitude: ArrayLike | None = None,
+    longitude: ArrayLike | None = None,
+    heading: ArrayLike | None = None,
+    distance: ArrayLike | None = None,
+    name: str = "ride",
+    notes: Sequence[Notice] = (),
+    stop_speed: float = STOP_SPEED,
+    max_gap: float = MAX_GAP,
+    max_power_fill: float = MAX_POWER_FILL,
+) -> Ride:
+    """Check and clean the arrays of a test ride.
+
+    Missing speed or power readings (NaN) up to `max_power_fill` seconds are interpolated;
+    longer gaps in power are a power-meter dropout and an error. A stretch of 0 W over which
+    the speed holds is noted as a possible dropout. Samples slower than `stop_speed` are
+    dropped with a note (the pieces that bridge them become pauses). A time step longer than
+    `max_gap` while moving is an error (a recording gap breaks the energy balance).
+
+    Parameters
+    ----------
+    time : array_like
+        Time of each sample [s], length N ≥ 10, strictly increasing.
+    speed : array_like
+        Ground speed [m/s], length N.
+    power : array_like
+        Crank power [W], length N.
+    elevation : array_like or None
+        Elevation [m], length N.
+    latitude : array_like or None
+        Latitude [deg], length N.
+    longitude : array_like or None
+        Longitude [deg], length N.
+    heading : array_like or None
+        Direction of travel [deg clockwise from north], length N.
+    distance : array_like or None
+        Distance ridden [m], length N; None integrates the speed.
+    name : str
+        Label of the ride.
+    notes : sequence of pacing.notices.Notice
+        Notes of reading the file, kept ahead of those of cleaning.
+    stop_speed : float
+        Samples slower than this are dropped [m/s].
+    max_gap : float
+        Largest time step accepted while moving [s].
+    max_power_fill : float
+        Longest gap in speed or power filled by interpolation [s].
+
+    Returns
+    -------
+    Ride
+        The moving samples, with pauses where stops were dropped and notes of what was done.
+
+    Raises
+    ------
+    InputError
+        With a one-line message naming the problem and where it is.
+    """
+    seconds = _checked_time(time)
+    n = seconds.size
+    speed_values = _array(speed, "speed", n)
+    power_values = _array(power, "power", n)
+    cleaning = list(notes)
+    speed_values = _cleaned_speed(speed_values, seconds, max_power_fill, cleaning)
+    power_values = _cleaned_power(power_values, seconds, max_power_fill, cleaning)
+    suspect = _zero_power_holding_speed(seconds, speed_values, power_values)
+    if suspect is not None:
+        cleaning.append(note("test-ride-zero-power", start_s=suspect[0], duration_s=suspect[1]))
+    given = dict(zip(OPTIONAL_COLUMNS, (elevation, latitude, longitude, heading, distance),
+                     strict=True))
+    columns = {label: _optional_column(given[label], label, seconds, cleaning)
+               for label in OPTIONAL_COLUMNS}
+    _check_positions(columns["latitude"], columns["longitude"])
+    index, pause = _moving_samples(seconds, speed_values, stop_speed, max_gap, cleaning)
+    seconds, speed_values, power_values = seconds[index], speed_values[index], power_values[index]
+    kept = {label: None if values is None else values[index]
+            for label, values in columns.items()}
+    ridden = kept["distance"]
+    if ridden is None:
+        step = 0.5 * (speed_values[1:] + speed_values[:-1]) * np.diff(seconds)
+        ridden = np.concatenate(([0.0], np.cumsum(np.where(pause, 0.0, step))))
+    return Ride(time=seconds, speed=speed_values, power=power_values, distance=ridden,
+                elevation=kept["elevation"], latitude=kept["latitude"],
+                longitude=kept["longitude"], heading=kept["heading"], pause=pause,
+                notes=tuple(cleaning), name=name)
 
 
 # ---------------------------------------------------------------------------------------------
-# Geometry: headings, laps
+# Geometry: positions, headings, air
 # ---------------------------------------------------------------------------------------------
 
 
-def local_position(latitude: np.ndarray, longitude: np.ndarray, origin: tuple[float, float]):
-    """East and north offsets from an origin on a local flat map [m] (equirectangular)."""
+def local_position(latitude: ArrayLike, longitude: ArrayLike,
+                   origin: tuple[float, float]) -> tuple[np.ndarray, np.ndarray]:
+    """East and north offsets from an origin on a local flat map (equirectangular).
+
+    Parameters
+    ----------
+    latitude : array_like
+        Latitude [deg].
+    longitude : array_like
+        Longitude [deg].
+    origin : tuple of float
+        (latitude, longitude) of the origin [deg].
+
+    Returns
+    -------
+    tuple of numpy.ndarray
+        (east [m], north [m]), on a sphere of EARTH_RADIUS.
+    """
     lat0 = np.radians(origin[0])
     east = EARTH_RADIUS * np.cos(lat0) * np.radians(
         (np.asarray(longitude) - origin[1] + 180.0) % 360.0 - 180.0
@@ -295,17 +411,32 @@ def piece_heading(ride: Ride) -> np.ndarray:
 
     From the heading column when present (circular mean of the two ends), else from the
     positions (local flat map; the heading of a piece without movement repeats the previous).
+
+    Parameters
+    ----------
+    ride : Ride
+        The cleaned ride, with a heading column or positions.
+
+    Returns
+    -------
+    numpy.ndarray
+        Heading of each piece [deg], 0-360.
+
+    Raises
+    ------
+    InputError
+        When the ride has neither headings nor positions, or its positions never change.
     """
     if ride.heading is not None:
         radians = np.radians(ride.heading)
         east = np.sin(radians[1:]) + np.sin(radians[:-1])
         north = np.cos(radians[1:]) + np.cos(radians[:-1])
         return np.degrees(np.arctan2(east, north)) % 360.0
-    if not ride.has_position:
+    latitude, longitude = ride.latitude, ride.longitude
+    if latitude is None or longitude is None:
         raise InputError("wind needs the direction of travel: the ride has no heading or "
                          "latitude/longitude columns")
-    east, north = local_position(ride.latitude, ride.longitude,
-                                  (float(ride.latitude[0]), float(ride.longitude[0])))
+    east, north = local_position(latitude, longitude, (float(latitude[0]), float(longitude[0])))
     de, dn = np.diff(east), np.diff(north)
     heading = np.degrees(np.arctan2(de, dn)) % 360.0
     still = np.hypot(de, dn) < 1e-6
@@ -320,12 +451,21 @@ def piece_heading(ride: Ride) -> np.ndarray:
 
 
 def ride_wind(ride: Ride, wind_speed: float, wind_from: float) -> tuple[np.ndarray, np.ndarray]:
-    """Headwind and crosswind on each piece of a ride for a steady wind [m/s], length N-1.
+    """Headwind and crosswind on each piece of a ride for a steady wind, length N-1.
 
     Parameters
     ----------
-    wind_speed : wind at rider height [m/s] (reduce a 10 m report with pacing.physics.wind).
-    wind_from : direction the wind blows from [deg clockwise from north].
+    ride : Ride
+        The cleaned ride (headings or positions are needed unless the air is still).
+    wind_speed : float
+        Wind at rider height [m/s] (reduce a 10 m report with pacing.physics.wind).
+    wind_from : float
+        Direction the wind blows from [deg clockwise from north].
+
+    Returns
+    -------
+    tuple of numpy.ndarray
+        (headwind [m/s], crosswind [m/s]) per piece (pacing.physics.wind.wind_components).
     """
     if wind_speed == 0:
         zeros = np.zeros(ride.time.size - 1)
@@ -334,20 +474,35 @@ def ride_wind(ride: Ride, wind_speed: float, wind_from: float) -> tuple[np.ndarr
 
 
 def ride_air(ride: Ride, conditions: Conditions,
-             density_model: str = "cipm_2007") -> tuple[np.ndarray, np.ndarray, np.ndarray]:
-    """Air density, headwind and crosswind on each piece of a ride, length N-1.
+             density_model: str = DEFAULT_AIR_DENSITY_MODEL) -> CourseAir:
+    """Air density, headwind and crosswind on each piece of a ride.
 
     Pressure from the sea-level pressure and the ride's elevation (ICAO standard atmosphere;
-    sea level when the ride has no elevation), temperature given at the start elevation with
-    the standard lapse rate, humid-air density by CIPM-2007 (pacing.physics.air); wind reduced to
-    rider height by the log profile and split by the direction of travel (pacing.physics.wind).
+    sea level when the ride has no elevation), temperature given at the first piece's elevation
+    with the standard lapse rate, humid-air density by CIPM-2007 (pacing.physics.air); wind
+    reduced to rider height by the log profile and split by the direction of travel
+    (pacing.physics.wind).
+
+    Parameters
+    ----------
+    ride : Ride
+        The cleaned ride.
+    conditions : pacing.weather.conditions.Conditions
+        The air and wind of the test day.
+    density_model : str
+        Key of pacing.physics.air.AIR_DENSITY_MODELS (default CIPM-2007).
 
     Returns
     -------
-    (density [kg/m³], headwind [m/s], crosswind [m/s])
+    pacing.weather.conditions.CourseAir
+        density [kg/m³], headwind and crosswind [m/s], each of length N-1.
+
+    References
+    ----------
+    Picard, A., Davis, R.S., Gläser, M. & Fujii, K. (2008). Revised formula for the density of
+    moist air (CIPM-2007). Metrologia 45:149-155. doi:10.1088/0026-1394/45/2/004
     """
-    if density_model not in AIR_DENSITY_MODELS:
-        raise InputError(f"unknown air density model {density_model!r}")
+    model = AIR_DENSITY_MODELS.resolve(density_model)
     if ride.elevation is None:
         elevation = np.zeros(ride.time.size - 1)
     else:
@@ -355,84 +510,7 @@ def ride_air(ride: Ride, conditions: Conditions,
     pressure = standard_pressure(elevation, conditions.sea_level_pressure)
     temperature = temperature_at_elevation(elevation, conditions.temperature,
                                            float(elevation[0]))
-    density = np.asarray(AIR_DENSITY_MODELS[density_model](
-        temperature, pressure, conditions.relative_humidity), dtype=float)
+    density = np.asarray(model(temperature, pressure, conditions.relative_humidity), dtype=float)
     headwind, crosswind = ride_wind(ride, conditions.wind_at_rider, conditions.wind_from)
-    return density, np.asarray(headwind, dtype=float), np.asarray(crosswind, dtype=float)
-
-
-def detect_laps(
-    latitude,
-    longitude,
-    radius: float = LAP_RADIUS,
-    start: tuple[float, float] | None = None,
-) -> list[tuple[int, int]]:
-    """Laps of a ride from its positions: each pass near the start point closes a lap.
-
-    A pass is a stretch closer than `radius` to the start point, entered after the rider has
-    been farther than 2·radius; its sample nearest the start marks the lap boundary. The part
-    before the first and after the last boundary is left out.
-
-    Parameters
-    ----------
-    latitude, longitude : positions [deg], length N.
-    radius : capture radius around the start point [m] (common practice: larger than the
-        GNSS horizontal error, ~5 m for a watch, Gløersen et al. 2018).
-    start : (latitude, longitude) of the start/finish point [deg]; default the first sample.
-
-    Returns
-    -------
-    list of (start, end) sample indices, one pair per lap.
-    """
-    latitude = np.asarray(latitude, dtype=float)
-    longitude = np.asarray(longitude, dtype=float)
-    if radius <= 0:
-        raise InputError(f"lap radius must be positive, got {radius}")
-    origin = start if start is not None else (float(latitude[0]), float(longitude[0]))
-    east, north = local_position(latitude, longitude, origin)
-    gap = np.hypot(east, north)
-    near = gap < radius
-    far = gap > 2.0 * radius
-    boundaries = []
-    armed = True
-    i, n = 0, gap.size
-    while i < n:
-        if near[i] and armed:
-            j = i
-            while j < n and not far[j]:
-                j += 1
-            boundaries.append(i + int(np.argmin(np.where(near[i:j], gap[i:j], np.inf))))
-            armed = False
-            i = j
-            continue
-        if far[i]:
-            armed = True
-        i += 1
-    if len(boundaries) < 2:
-        raise InputError(
-            f"no lap found: the ride never comes back within {radius:g} m of its start; "
-            "give lap boundaries instead"
-        )
-    return list(zip(boundaries[:-1], boundaries[1:], strict=True))
-
-
-def laps_from_bounds(bounds: Sequence[int], size: int) -> list[tuple[int, int]]:
-    """Consecutive laps (start, end) from increasing boundary sample indices."""
-    bounds = [int(b) for b in bounds]
-    if len(bounds) < 2:
-        raise InputError("give at least two lap boundaries")
-    if any(b < 0 or b >= size for b in bounds) or any(
-        b1 <= b0 for b0, b1 in zip(bounds[:-1], bounds[1:], strict=True)
-    ):
-        raise InputError(f"lap boundaries must increase and lie within the ride (0..{size - 1})")
-    return list(zip(bounds[:-1], bounds[1:], strict=True))
-
-
-def indices_at_times(ride: Ride, times: Sequence[float]) -> list[int]:
-    """Sample index nearest to each time [s] (for lap boundaries given as times)."""
-    times = np.asarray(times, dtype=float)
-    if np.any(times < ride.time[0] - MAX_GAP) or np.any(times > ride.time[-1] + MAX_GAP):
-        raise InputError(
-            f"lap times must lie within the ride ({ride.time[0]:g}-{ride.time[-1]:g} s)"
-        )
-    return [int(np.argmin(np.abs(ride.time - t))) for t in times]
+    return CourseAir(density=density, headwind=np.asarray(headwind, dtype=float),
+                     crosswind=np.asarray(crosswind, dtype=float))

@@ -14,7 +14,9 @@ References
 ----------
 Chung, R. Estimating CdA with a power meter (self-published notes presenting the virtual
 elevation method; no journal version).
-Martin, J.C. et al. (1998). J Appl Biomech 14(3):276-291.
+Martin, J.C., Milliken, D.L., Cobb, J.E., McFadden, K.L. & Coggan, A.R. (1998). Validation of
+a mathematical model for road cycling power. J Appl Biomech 14(3):276-291.
+doi:10.1123/jab.14.3.276
 """
 
 from __future__ import annotations
@@ -23,6 +25,7 @@ import dataclasses
 from dataclasses import dataclass
 
 import numpy as np
+from numpy.typing import ArrayLike
 
 from pacing.constants import STANDARD_GRAVITY
 from pacing.physics.cycling import Rider, aerodynamic_force, bearing_force, rolling_force
@@ -30,9 +33,18 @@ from pacing.physics.cycling import Rider, aerodynamic_force, bearing_force, roll
 
 @dataclass(frozen=True, eq=False)
 class ElevationTerms:
-    """The three parts of the virtual elevation rise of each piece [m], length N-1.
+    """The three parts of the virtual elevation rise of each piece, length N-1.
 
     rise = known − drag_area·per_drag_area − rolling_coefficient·per_rolling_coefficient
+
+    Attributes
+    ----------
+    known : numpy.ndarray
+        Rise from the terms that do not involve CdA or Crr [m].
+    per_drag_area : numpy.ndarray
+        Rise lost per unit CdA [m/m²].
+    per_rolling_coefficient : numpy.ndarray
+        Rise lost per unit Crr [m].
     """
 
     known: np.ndarray
@@ -41,21 +53,34 @@ class ElevationTerms:
 
 
 def unit_rider(rider: Rider) -> Rider:
-    """The rider with CdA = 1 m² and Crr = 1, no wheel drag and no drafting: forces computed
-    with it are per unit CdA or Crr."""
+    """The rider with CdA = 1 m² and Crr = 1, no wheel drag and no drafting.
+
+    Forces computed with it are per unit CdA or Crr.
+
+    Parameters
+    ----------
+    rider : pacing.physics.cycling.Rider
+        Mass [kg], drivetrain, bearing and yaw parameters kept.
+
+    Returns
+    -------
+    pacing.physics.cycling.Rider
+        A copy with drag_area 1 [m²], rolling_coefficient 1 [-], wheel_drag_area 0 [m²] and
+        drafting_reduction 0 [-].
+    """
     return dataclasses.replace(rider, drag_area=1.0, wheel_drag_area=0.0, drafting_reduction=0.0,
                                rolling_coefficient=1.0)
 
 
 def elevation_terms(
-    time,
-    speed,
-    power,
-    air_density,
+    time: ArrayLike,
+    speed: ArrayLike,
+    power: ArrayLike,
+    air_density: ArrayLike,
     rider: Rider,
-    headwind=0.0,
-    crosswind=0.0,
-    pause=None,
+    headwind: ArrayLike = 0.0,
+    crosswind: ArrayLike = 0.0,
+    pause: ArrayLike | None = None,
 ) -> ElevationTerms:
     """Rise of each piece implied by the power balance, split into parts linear in CdA, Crr.
 
@@ -66,15 +91,33 @@ def elevation_terms(
 
     Parameters
     ----------
-    time [s], speed [m/s], power [W] : length N.
-    air_density [kg/m³], headwind, crosswind [m/s] : scalars or length N-1.
-    rider : mass, drivetrain efficiency, wheel and bearing parameters (its drag_area and
+    time : array_like
+        Time of each sample [s], length N.
+    speed : array_like
+        Ground speed [m/s], length N.
+    power : array_like
+        Crank power [W], length N.
+    air_density : array_like
+        Air density [kg/m³], scalar or length N-1.
+    rider : pacing.physics.cycling.Rider
+        Mass [kg], drivetrain efficiency [-], wheel and bearing parameters (its drag_area and
         rolling_coefficient are not used; its yaw_drag_table is).
-    pause : bool, length N-1, or None.
+    headwind : array_like
+        Wind against the direction of travel [m/s], scalar or length N-1.
+    crosswind : array_like
+        Wind across the direction of travel [m/s], scalar or length N-1.
+    pause : array_like or None
+        True for pieces that bridge a dropped stop (bool, length N-1).
+
+    Returns
+    -------
+    ElevationTerms
+        Known rise [m], rise per unit CdA [m/m²], rise per unit Crr [m], each of length N-1.
 
     References
     ----------
-    Chung, "Estimating CdA with a power meter"; Martin et al. (1998).
+    Chung, R. Estimating CdA with a power meter (self-published notes).
+    Martin, J.C. et al. (1998). J Appl Biomech 14(3):276-291. doi:10.1123/jab.14.3.276
     """
     time = np.asarray(time, dtype=float)
     speed = np.asarray(speed, dtype=float)
@@ -93,7 +136,7 @@ def elevation_terms(
     known = (rider.drivetrain_efficiency * mean_power * duration - kinetic
              - (bearing_force(mean_speed, rider) + wheel) * length) / weight
     per_drag = per_area * length / weight
-    per_rolling = rolling_force(0.0, unit) * length / weight
+    per_rolling = rolling_force(np.zeros(()), unit) * length / weight
     if pause is not None:
         keep = ~np.asarray(pause, dtype=bool)
         known, per_drag, per_rolling = known * keep, per_drag * keep, per_rolling * keep
@@ -101,24 +144,51 @@ def elevation_terms(
 
 
 def virtual_elevation(
-    time,
-    speed,
-    power,
-    air_density,
+    time: ArrayLike,
+    speed: ArrayLike,
+    power: ArrayLike,
+    air_density: ArrayLike,
     rider: Rider,
-    headwind=0.0,
-    crosswind=0.0,
+    headwind: ArrayLike = 0.0,
+    crosswind: ArrayLike = 0.0,
     start_elevation: float = 0.0,
-    pause=None,
+    pause: ArrayLike | None = None,
 ) -> np.ndarray:
-    """Elevation trace implied by the power balance with the rider's CdA and Crr [m], length N.
+    """Elevation trace implied by the power balance with the rider's CdA and Crr.
 
     z_k = z_0 + Σ_{i<k} Δh_i, Δh_i from `elevation_terms` with CdA = rider.drag_area and
     Crr = rider.rolling_coefficient. With the right CdA and Crr it follows the road's profile.
 
+    Parameters
+    ----------
+    time : array_like
+        Time of each sample [s], length N.
+    speed : array_like
+        Ground speed [m/s], length N.
+    power : array_like
+        Crank power [W], length N.
+    air_density : array_like
+        Air density [kg/m³], scalar or length N-1.
+    rider : pacing.physics.cycling.Rider
+        Mass [kg], CdA [m²], Crr [-], drivetrain, wheel and bearing parameters.
+    headwind : array_like
+        Wind against the direction of travel [m/s], scalar or length N-1.
+    crosswind : array_like
+        Wind across the direction of travel [m/s], scalar or length N-1.
+    start_elevation : float
+        Elevation of the first sample [m].
+    pause : array_like or None
+        True for pieces that bridge a dropped stop (bool, length N-1).
+
+    Returns
+    -------
+    numpy.ndarray
+        Virtual elevation of each sample [m], length N.
+
     References
     ----------
-    Chung, "Estimating CdA with a power meter".
+    Chung, R. Estimating CdA with a power meter (self-published notes).
+    Martin, J.C. et al. (1998). J Appl Biomech 14(3):276-291. doi:10.1123/jab.14.3.276
     """
     terms = elevation_terms(time, speed, power, air_density, rider, headwind, crosswind, pause)
     rise = (terms.known - rider.drag_area * terms.per_drag_area

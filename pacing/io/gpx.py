@@ -17,12 +17,15 @@ from __future__ import annotations
 import os
 import re
 import warnings
+from collections.abc import Iterable
 from dataclasses import dataclass
 from pathlib import Path
+from typing import Any
 
 import gpxpy
 import gpxpy.gpx
 import numpy as np
+from numpy.typing import ArrayLike
 
 from pacing.course.elevation import ElevationSmoothing
 from pacing.course.geometry import DEFAULT_STEP, Course, build_course, validate_track
@@ -52,10 +55,15 @@ class Track:
 
     Attributes
     ----------
-    latitude, longitude : WGS84 positions [deg], length M.
-    elevation : elevation of each point [m], NaN where a point has none; None when no point of
-        the file has an elevation.
-    name : the track's (or route's, or file's) name; "" when the file names none.
+    latitude : numpy.ndarray
+        WGS84 latitude of each point, length M [deg].
+    longitude : numpy.ndarray
+        WGS84 longitude of each point, length M [deg].
+    elevation : numpy.ndarray or None
+        Elevation of each point, NaN where a point has none; None when no point of the file
+        has an elevation [m].
+    name : str
+        The track's (or route's, or file's) name; "" when the file names none [-].
     """
 
     latitude: np.ndarray
@@ -70,7 +78,7 @@ def _shown(path: Path) -> str:
     return text if len(text) <= 200 else text[:197] + "..."
 
 
-def _read_bytes(source) -> tuple[bytes, str]:
+def _read_bytes(source: Any) -> tuple[bytes, str]:
     """The file's bytes and a fallback name, from a path, bytes or a file-like object."""
     if isinstance(source, bytes | bytearray | memoryview):
         data = bytes(source)
@@ -171,22 +179,50 @@ def _check_number(value: str, what: str) -> None:
                          "not a number") from None
 
 
-def read_track(source) -> Track:
+def _points(document: gpxpy.gpx.GPX) -> tuple[list[gpxpy.gpx.GPXTrackPoint]
+                                               | list[gpxpy.gpx.GPXRoutePoint], str]:
+    """The points of all tracks and segments in order, or without any those of all routes, and
+    the first name found among them."""
+    track_points = [point for track in document.tracks for segment in track.segments
+                    for point in segment.points]
+    if track_points:
+        return track_points, next((t.name for t in document.tracks if t.name), "")
+    route_points = [point for route in document.routes for point in route.points]
+    return route_points, next((r.name for r in document.routes if r.name), "")
+
+
+def read_track(source: str | os.PathLike | bytes | bytearray | memoryview | Any) -> Track:
     """Read the points of a GPX file.
-
-    Parameters
-    ----------
-    source : path (str or os.PathLike), the file's bytes, or a binary or text file-like object;
-        a str that starts with "<" is taken as the GPX text itself.
-
-    Returns
-    -------
-    Track with the points of all tracks and track segments in order (or, without any, of all
-    routes), validated for range (latitude -90..90, longitude -180..180 [deg]).
 
     Raises InputError: empty file, not XML or not GPX, DTD or entities, too large, no points,
     bad coordinates, a latitude, longitude or elevation that is not a number (the message
     names the point and the value).
+
+    Parameters
+    ----------
+    source : str, os.PathLike, bytes or file-like
+        A path, the file's bytes, or a binary or text file-like object; a str that starts with
+        "<" is taken as the GPX text itself [-].
+
+    Returns
+    -------
+    Track
+        The points of all tracks and track segments in order (or, without any, of all routes),
+        validated for range (latitude -90..90 [deg], longitude -180..180 [deg]).
+
+    References
+    ----------
+    GPX 1.1 schema, https://www.topografix.com/GPX/1/1/ (tracks, routes, <ele> in metres).
+
+    Examples
+    --------
+    >>> text = ('<gpx version="1.1" creator="x" xmlns="http://www.topografix.com/GPX/1/1">'
+    ...         '<trk><name>Loop</name><trkseg><trkpt lat="45.0" lon="7.0"><ele>210</ele>'
+    ...         '</trkpt><trkpt lat="45.001" lon="7.0"><ele>215</ele></trkpt></trkseg></trk>'
+    ...         '</gpx>')
+    >>> track = read_track(text)
+    >>> track.name, track.latitude.tolist(), track.elevation.tolist()
+    ('Loop', [45.0, 45.001], [210.0, 215.0])
     """
     data, fallback = _read_bytes(source)
     if not data.strip():
@@ -199,12 +235,7 @@ def read_track(source) -> Track:
         message = str(error).splitlines()[0] if str(error) else type(error).__name__
         raise InputError(f"not a valid GPX file: {message}") from None
 
-    points = [point for track in document.tracks for segment in track.segments
-              for point in segment.points]
-    name = next((t.name for t in document.tracks if t.name), "")
-    if not points:
-        points = [point for route in document.routes for point in route.points]
-        name = next((r.name for r in document.routes if r.name), "")
+    points, name = _points(document)
     if not points:
         raise InputError("GPX file has no track or route points")
     if len(points) > MAX_GPX_POINTS:
@@ -217,29 +248,39 @@ def read_track(source) -> Track:
                  else np.array([np.nan if h is None else h for h in heights], dtype=float))
     if len(points) >= 2:
         latitude, longitude, elevation = validate_track(latitude, longitude, elevation)
-    name = (name or document.name or fallback or "").strip().splitlines()
+    lines = (name or document.name or fallback or "").strip().splitlines()
     return Track(latitude=latitude, longitude=longitude, elevation=elevation,
-                 name=name[0] if name else "")
+                 name=lines[0] if lines else "")
 
 
-def load_course(source, step: float | None = None,
+def load_course(source: str | os.PathLike | bytes | bytearray | memoryview | Any,
+                step: float | None = None,
                 smoothing: ElevationSmoothing | None = None,
                 allow_missing_elevation: bool = False, name: str | None = None) -> Course:
     """Read a GPX file and build its Course (see pacing.course.geometry.build_course).
 
-    Parameters
-    ----------
-    source : path, bytes or file-like object of a GPX file.
-    step : resampling step [m]; None for DEFAULT_STEP.
-    smoothing : elevation cleaning; None for ElevationSmoothing() defaults.
-    allow_missing_elevation : a file without any elevation is treated as flat (elevation 0 m,
-        so sea-level air unless conditions say otherwise) with a UserWarning; otherwise it is
-        refused. Points missing some elevations are interpolated with a UserWarning (see
-        pacing.course.geometry.build_course).
-
     Raises InputError for everything read_track and build_course refuse, and for a course
     shorter than MINIMUM_COURSE_LENGTH.
-    name : label of the course; None for the file's own name.
+
+    Parameters
+    ----------
+    source : str, os.PathLike, bytes or file-like
+        Path, bytes or file-like object of a GPX file (see read_track) [-].
+    step : float, optional
+        Resampling step; None for DEFAULT_STEP [m].
+    smoothing : ElevationSmoothing, optional
+        Elevation cleaning; None for the ElevationSmoothing() defaults.
+    allow_missing_elevation : bool, optional
+        Treat a file without any elevation as flat (elevation 0 m, so sea-level air unless
+        conditions say otherwise) with a UserWarning; otherwise it is refused. Points missing
+        some elevations are interpolated with a UserWarning either way [-].
+    name : str, optional
+        Label of the course; None for the file's own name [-].
+
+    Returns
+    -------
+    Course
+        The course resampled every `step` metres.
     """
     track = read_track(source)
     elevation = track.elevation
@@ -261,11 +302,28 @@ def load_course(source, step: float | None = None,
     return course
 
 
-def position_at(course: Course, distance) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
-    """Latitude, longitude [deg] and elevation [m] at distances along the course [m].
+def position_at(course: Course, distance: ArrayLike) -> tuple[np.ndarray, np.ndarray,
+                                                               np.ndarray]:
+    """Latitude, longitude and elevation at distances along the course.
 
     Interpolated linearly between the course's points (longitude unwrapped first, so a course
     over the antimeridian interpolates the short way).
+
+    Parameters
+    ----------
+    course : Course
+        The course.
+    distance : float or array_like
+        Distance from the start [m].
+
+    Returns
+    -------
+    latitude : numpy.ndarray
+        [deg].
+    longitude : numpy.ndarray
+        [deg], in -180..180.
+    elevation : numpy.ndarray
+        Cleaned elevation [m].
     """
     distance = np.asarray(distance, dtype=float)
     longitude = np.degrees(np.unwrap(np.radians(course.longitude)))
@@ -274,14 +332,22 @@ def position_at(course: Course, distance) -> tuple[np.ndarray, np.ndarray, np.nd
     return lat, lon, np.interp(distance, course.distance, course.elevation)
 
 
-def write_gpx(course: Course, waypoints=None) -> str:
+def write_gpx(course: Course,
+              waypoints: Iterable[tuple[float, str, str | None]] | None = None) -> str:
     """The course as GPX 1.1 text: one track of its points (cleaned elevation) and waypoints.
 
     Parameters
     ----------
-    course : the course.
-    waypoints : optional list of (distance [m], name, description); each waypoint is placed on
-        the course at that distance from the start.
+    course : Course
+        The course.
+    waypoints : iterable of (float, str, str or None), optional
+        (distance from the start [m], name, description) of each waypoint, placed on the
+        course at that distance.
+
+    Returns
+    -------
+    str
+        GPX 1.1 text (positions to 7 decimals [deg], elevations to 2 [m]).
     """
     document = gpxpy.gpx.GPX()
     document.creator = "pacing"
@@ -312,7 +378,13 @@ def write_gpx(course: Course, waypoints=None) -> str:
 
 
 def demo_route_paths() -> dict[str, Path]:
-    """The demo courses by name (file stem), sorted, the default first; {} if none is found."""
+    """The demo courses by name (file stem), sorted, the default first; {} if none is found.
+
+    Returns
+    -------
+    dict of str to pathlib.Path
+        File stem → path of each demo GPX file.
+    """
     if not DEMO_ROUTES_DIR.is_dir():
         return {}
     return {path.stem: path for path in sorted(DEMO_ROUTES_DIR.glob("*.gpx"))}

@@ -45,6 +45,7 @@ import io
 import os
 import re
 from pathlib import Path
+from typing import Any
 
 import numpy as np
 import pandas as pd
@@ -52,6 +53,7 @@ import pandas as pd
 from pacing.errors import InputError
 from pacing.fieldtest.ride import Ride, local_position, make_ride
 from pacing.io.safe_xml import local_name, parse_xml
+from pacing.notices import Notice, note
 
 MAX_RIDE_BYTES = 100 * 1024 * 1024
 """Largest ride file accepted [bytes]."""
@@ -77,7 +79,7 @@ Units follow common practice: 1 mph = 0.44704 m/s, 1 ft = 0.3048 m (exact, 1959 
 REQUIRED = ("time", "speed", "power")
 
 
-def _read_bytes(source) -> tuple[bytes, str]:
+def _read_bytes(source: Any) -> tuple[bytes, str]:
     """The file's bytes and a name, from a path, bytes or a file-like object."""
     if isinstance(source, bytes | bytearray | memoryview):
         return bytes(source), ""
@@ -103,15 +105,26 @@ def _read_bytes(source) -> tuple[bytes, str]:
     raise InputError(f"cannot read a ride from {type(source).__name__}")
 
 
-def read_ride(source, name: str | None = None, kind: str | None = None, **options) -> Ride:
+def read_ride(source: Any, name: str | None = None, kind: str | None = None,
+              **options: Any) -> Ride:
     """Read a test ride from a CSV or GPX file (by extension, or `kind` "csv"/"gpx").
 
     Parameters
     ----------
-    source : path, bytes or file-like object.
-    name : label of the ride (default the file name without extension).
-    kind : "csv" or "gpx"; default from the file extension, else from the content.
-    options : passed to pacing.fieldtest.ride.make_ride (stop_speed, max_gap, max_power_fill).
+    source : str, os.PathLike, bytes or file-like
+        The file, its path or its bytes.
+    name : str or None
+        Label of the ride (default the file name without extension).
+    kind : str or None
+        "csv" or "gpx"; default from the file extension, else from the content.
+    **options
+        Passed to pacing.fieldtest.ride.make_ride: stop_speed [m/s], max_gap [s],
+        max_power_fill [s].
+
+    Returns
+    -------
+    pacing.fieldtest.ride.Ride
+        The cleaned ride, its notes (pacing.notices.Notice) saying what was done.
     """
     if kind is None and isinstance(source, str | os.PathLike):
         suffix = Path(source).suffix.lower().lstrip(".")
@@ -126,6 +139,7 @@ def read_ride(source, name: str | None = None, kind: str | None = None, **option
 
 
 def _normalise(label: str) -> str:
+    """A column name compared without case, outer spaces, or spaces/dashes for underscores."""
     return re.sub(r"[\s\-]+", "_", str(label).strip().lower())
 
 
@@ -140,37 +154,67 @@ def _seconds(values: pd.Series, label: str) -> np.ndarray:
     return (stamps - stamps.iloc[0]).dt.total_seconds().to_numpy(dtype=float)
 
 
-def read_ride_csv(source, name: str = "ride", **options) -> Ride:
-    """Read a test ride from CSV (columns in the module docstring)."""
-    data = source if isinstance(source, bytes) else _read_bytes(source)[0]
+def _csv_frame(data: bytes) -> pd.DataFrame:
+    """The CSV text as a table, or a one-line InputError."""
     try:
-        frame = pd.read_csv(io.BytesIO(data), skipinitialspace=True)
+        return pd.read_csv(io.BytesIO(data), skipinitialspace=True)
     except pd.errors.EmptyDataError:
         raise InputError("the CSV file is empty") from None
     except (pd.errors.ParserError, UnicodeDecodeError) as error:
         first = str(error).splitlines()[0] if str(error) else type(error).__name__
         raise InputError(f"the CSV file does not parse: {first}") from None
-    columns = {_normalise(c): c for c in frame.columns}
+
+
+def _csv_column(series: pd.Series, label: str, quantity: str,
+                factor: float | None) -> np.ndarray:
+    """One column in SI units: numbers times `factor`, or timestamps as seconds."""
+    if quantity == "time":
+        numbers = pd.to_numeric(series, errors="coerce")
+        if factor is None or numbers.isna().all():
+            return _seconds(series, label)
+        series = numbers
+    numbers = pd.to_numeric(series, errors="coerce")
+    bad = numbers.isna() & series.notna() & (series.astype(str).str.strip() != "")
+    if bad.any():
+        row = int(np.argmax(bad.to_numpy()))
+        raise InputError(f"column {label!r} has a non-number {series.iloc[row]!r} in data row "
+                         f"{row + 1}")
+    return numbers.to_numpy(dtype=float) * (1.0 if factor is None else factor)
+
+
+def _csv_quantities(frame: pd.DataFrame, columns: dict[str, str]) -> dict[str, np.ndarray]:
+    """Each quantity of CSV_COLUMNS found in the table (the first alias present), in SI."""
     found: dict[str, np.ndarray] = {}
     for quantity, aliases in CSV_COLUMNS.items():
         for alias, factor in aliases.items():
-            if alias not in columns:
-                continue
-            series = frame[columns[alias]]
-            if quantity == "time":
-                numbers = pd.to_numeric(series, errors="coerce")
-                if factor is None or numbers.isna().all():
-                    found[quantity] = _seconds(series, columns[alias])
-                    break
-                series = numbers
-            numbers = pd.to_numeric(series, errors="coerce")
-            bad = numbers.isna() & series.notna() & (series.astype(str).str.strip() != "")
-            if bad.any():
-                row = int(np.argmax(bad.to_numpy()))
-                raise InputError(f"column {columns[alias]!r} has a non-number "
-                                 f"{series.iloc[row]!r} in data row {row + 1}")
-            found[quantity] = numbers.to_numpy(dtype=float) * factor
-            break
+            if alias in columns:
+                found[quantity] = _csv_column(frame[columns[alias]], columns[alias], quantity,
+                                              factor)
+                break
+    return found
+
+
+def read_ride_csv(source: Any, name: str = "ride", **options: Any) -> Ride:
+    """Read a test ride from CSV (columns in the module docstring).
+
+    Parameters
+    ----------
+    source : bytes, str, os.PathLike or file-like
+        The file's bytes, its path or the open file.
+    name : str
+        Label of the ride.
+    **options
+        Passed to pacing.fieldtest.ride.make_ride.
+
+    Returns
+    -------
+    pacing.fieldtest.ride.Ride
+        The cleaned ride; a note says when the speed came from the distance column.
+    """
+    data = source if isinstance(source, bytes) else _read_bytes(source)[0]
+    frame = _csv_frame(data)
+    columns = {_normalise(c): c for c in frame.columns}
+    found = _csv_quantities(frame, columns)
     if "speed" not in found and "distance" in found and "time" in found:
         if np.all(np.isfinite(found["distance"])) and np.all(np.diff(found["time"]) > 0):
             found["speed"] = np.gradient(found["distance"], found["time"])
@@ -179,9 +223,9 @@ def read_ride_csv(source, name: str = "ride", **options) -> Ride:
         wanted = ", ".join(f"{q} (e.g. {next(iter(CSV_COLUMNS[q]))})" for q in missing)
         have = ", ".join(str(c) for c in frame.columns) or "none"
         raise InputError(f"missing column(s) {wanted}; the file has: {have}")
-    notes = []
+    notes: list[Notice] = []
     if "speed" in found and not any(a in columns for a in CSV_COLUMNS["speed"]):
-        notes.append("speed taken from the distance column")
+        notes.append(note("test-ride-speed-from-distance"))
     return make_ride(found["time"], found["speed"], found["power"],
                      elevation=found.get("elevation"), latitude=found.get("latitude"),
                      longitude=found.get("longitude"), heading=found.get("heading"),
@@ -189,64 +233,80 @@ def read_ride_csv(source, name: str = "ride", **options) -> Ride:
 
 
 def _local(tag: str) -> str:
+    """An XML tag's local name in lower case (namespace dropped)."""
     return local_name(tag).lower()
 
 
 def _number(text: str | None) -> float:
+    """A number from XML text, NaN when absent or unreadable."""
     try:
         return float(text) if text is not None else np.nan
     except ValueError:
         return np.nan
 
 
-def read_ride_gpx(source, name: str = "ride", **options) -> Ride:
-    """Read a test ride from GPX track points carrying power and speed (module docstring)."""
+def _gpx_point(point: Any) -> tuple[float, float, str | None, float, float, float]:
+    """(lat [deg], lon [deg], time text, elevation [m], power [W], speed [m/s]) of one
+    track point; NaN (or None for the time) where absent."""
+    stamp: str | None = None
+    values = {"ele": np.nan, "power": np.nan, "speed": np.nan}
+    for element in point.iter():
+        tag = _local(element.tag)
+        if tag == "time" and stamp is None:
+            stamp = (element.text or "").strip()
+        elif tag == "ele":
+            values["ele"] = _number(element.text)
+        elif tag in ("power", "watts"):
+            values["power"] = _number(element.text)
+        elif tag == "speed":
+            values["speed"] = _number(element.text)
+    return (_number(point.get("lat")), _number(point.get("lon")), stamp, values["ele"],
+            values["power"], values["speed"])
+
+
+def read_ride_gpx(source: Any, name: str = "ride", **options: Any) -> Ride:
+    """Read a test ride from GPX track points carrying power and speed (module docstring).
+
+    Parameters
+    ----------
+    source : bytes, str, os.PathLike or file-like
+        The file's bytes, its path or the open file.
+    name : str
+        Label of the ride.
+    **options
+        Passed to pacing.fieldtest.ride.make_ride.
+
+    Returns
+    -------
+    pacing.fieldtest.ride.Ride
+        The cleaned ride; a note says when the speed came from the positions.
+    """
     data = source if isinstance(source, bytes) else _read_bytes(source)[0]
     root = parse_xml(data, "GPX file")
     if _local(root.tag) != "gpx":
         raise InputError(f"not a GPX file: the root element is <{_local(root.tag)}>")
-    rows = []
-    for point in root.iter():
-        if _local(point.tag) != "trkpt":
-            continue
-        values = {"time": None, "ele": np.nan, "power": np.nan, "speed": np.nan}
-        for element in point.iter():
-            tag = _local(element.tag)
-            if tag == "time" and values["time"] is None:
-                values["time"] = (element.text or "").strip()
-            elif tag == "ele":
-                values["ele"] = _number(element.text)
-            elif tag in ("power", "watts"):
-                values["power"] = _number(element.text)
-            elif tag == "speed":
-                values["speed"] = _number(element.text)
-        rows.append((_number(point.get("lat")), _number(point.get("lon")), values["time"],
-                     values["ele"], values["power"], values["speed"]))
+    rows = [_gpx_point(point) for point in root.iter() if _local(point.tag) == "trkpt"]
     if not rows:
         raise InputError("the GPX file has no track points")
-    latitude, longitude, stamps, elevation, power, speed = (list(c) for c in zip(*rows,
-                                                                                strict=True))
+    stamps = [row[2] for row in rows]
     if any(s is None or s == "" for s in stamps):
         raise InputError("every GPX track point needs a <time>: some have none")
     time = _seconds(pd.Series(stamps), "time")
-    power = np.array(power, dtype=float)
+    latitude, longitude, elevation, power, speed = (
+        np.array([row[k] for row in rows], dtype=float) for k in (0, 1, 3, 4, 5))
     if np.isnan(power).all():
         raise InputError("the GPX track carries no power values (a <power> element in the "
                          "track-point extensions)")
-    latitude = np.array(latitude, dtype=float)
-    longitude = np.array(longitude, dtype=float)
     if np.isnan(latitude).any() or np.isnan(longitude).any():
         raise InputError("some GPX track points lack lat/lon")
-    speed = np.array(speed, dtype=float)
-    notes = []
+    notes: list[Notice] = []
     if np.isnan(speed).all():
         if np.any(np.diff(time) <= 0):
             raise InputError("time does not increase along the GPX track")
         east, north = local_position(latitude, longitude, (latitude[0], longitude[0]))
         along = np.concatenate(([0.0], np.cumsum(np.hypot(np.diff(east), np.diff(north)))))
         speed = np.gradient(along, time)
-        notes.append("speed taken from GNSS positions (noisier than a wheel sensor)")
-    elevation = np.array(elevation, dtype=float)
+        notes.append(note("test-ride-speed-from-positions"))
     return make_ride(time, speed, power, elevation=None if np.isnan(elevation).all()
                      else elevation, latitude=latitude, longitude=longitude, name=name,
                      notes=notes, **options)

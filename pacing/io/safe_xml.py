@@ -25,15 +25,29 @@ def parse_xml(data: bytes, what: str = "GPX file") -> Element:
     """The root element of the XML document `data`, parsed with DTDs, entities and external
     references refused.
 
+    Raises InputError (one line) when the document declares a DTD or entities, or does not
+    parse.
+
     Parameters
     ----------
-    data : the document's bytes (its encoding declaration is honoured).
-    what : how the file is named in error messages, e.g. "GPX file".
+    data : bytes
+        The document's bytes; its encoding declaration is honoured [-].
+    what : str, optional
+        How the file is named in error messages, e.g. "GPX file" [-].
 
     Returns
     -------
-    xml.etree.ElementTree.Element, the document's root. Raises InputError when the document
-    declares a DTD or entities, or does not parse.
+    xml.etree.ElementTree.Element
+        The document's root.
+
+    References
+    ----------
+    defusedxml documentation, https://pypi.org/project/defusedxml/.
+
+    Examples
+    --------
+    >>> parse_xml(b'<gpx version="1.1"><trk/></gpx>').tag
+    'gpx'
     """
     try:
         return defusedxml.ElementTree.fromstring(
@@ -46,5 +60,21 @@ def parse_xml(data: bytes, what: str = "GPX file") -> Element:
 
 
 def local_name(tag: str) -> str:
-    """An element's tag without its namespace: "{http://...}trkpt" → "trkpt"."""
+    """An element's tag without its namespace.
+
+    Parameters
+    ----------
+    tag : str
+        The tag as ElementTree gives it, "{namespace}name" or "name" [-].
+
+    Returns
+    -------
+    str
+        The name alone.
+
+    Examples
+    --------
+    >>> local_name("{http://www.topografix.com/GPX/1/1}trkpt")
+    'trkpt'
+    """
     return tag.rsplit("}", 1)[-1]

@@ -10,7 +10,10 @@ The chain used for a course (pacing.weather.conditions):
 2. temperature given at the start, following the standard lapse rate elsewhere
    (`temperature_at_elevation`);
 3. density of humid air by CIPM-2007 (`air_density`) or an ideal-gas mixture
-   (`air_density_ideal_gas`); both are listed in `AIR_DENSITY_MODELS`.
+   (`air_density_ideal_gas`); both are listed in `AIR_DENSITY_MODELS` ("cipm-2007", the
+   default, and "ideal-gas"; the old keys "cipm_2007" and "ideal_gas" are still accepted).
+
+Check values for every formula here are in docs/references.md, "Air".
 
 Humidity is relative to saturation over liquid water at every temperature (the meteorological
 convention, also below 0 °C).
@@ -35,6 +38,7 @@ from __future__ import annotations
 from collections.abc import Callable
 
 import numpy as np
+from numpy.typing import ArrayLike
 
 from pacing.constants import (
     EARTH_RADIUS_GEOPOTENTIAL,
@@ -47,6 +51,7 @@ from pacing.constants import (
     ZERO_CELSIUS,
 )
 from pacing.errors import InputError
+from pacing.physics.registry import ModelRegistry
 
 TEMPERATURE_RANGE = (-60.0, 60.0)
 """Air temperatures accepted [°C]; outside them the input is almost surely a mistake."""
@@ -96,7 +101,8 @@ HARDY_1998 = (
     -1.8680009e-13,
     2.7150305,
 )
-"""Coefficients g0..g7 of Hardy (1998), saturation over water on ITS-90."""
+"""Coefficients g0..g7 of Hardy (1998), saturation over water on ITS-90: g0 [K²], g1 [K],
+g2 [-], g3 [K⁻¹], g4 [K⁻²], g5 [K⁻³], g6 [K⁻⁴], g7 [-] (of ln T)."""
 
 ALDUCHOV_ESKRIDGE_1996 = (610.94, 17.625, 243.04)
 """Magnus-form coefficients of Alduchov & Eskridge (1996): C [Pa], A [-], B [°C]."""
@@ -108,9 +114,23 @@ DEFAULT_CO2_MOLE_FRACTION = 0.0004
 # --- input checks -----------------------------------------------------------------------------
 
 
-def _as_array(value, name: str) -> np.ndarray:
-    """`value` as a float array, or InputError naming `name` when it is not a finite number
-    (the one input check of pacing.physics.air and pacing.physics.wind)."""
+def finite_array(value: ArrayLike, name: str) -> np.ndarray:
+    """`value` as a float array, or InputError naming `name` when it is not a finite number.
+
+    The one input check of pacing.physics.air and pacing.physics.wind.
+
+    Parameters
+    ----------
+    value : float or array_like
+        The number or numbers to check [any unit].
+    name : str
+        How the value is named in the one-line error message [-].
+
+    Returns
+    -------
+    numpy.ndarray
+        `value` as floats, 0-d for a scalar [unit of `value`].
+    """
     try:
         array = np.asarray(value, dtype=float)
     except (TypeError, ValueError):
@@ -132,22 +152,22 @@ def _check_range(array: np.ndarray, low: float, high: float, message: str) -> No
         raise InputError(f"{message}, got {_first_bad(array, ok):g}")
 
 
-def _check_temperature(temperature, name: str = "temperature") -> np.ndarray:
-    array = _as_array(temperature, name)
+def _check_temperature(temperature: ArrayLike, name: str = "temperature") -> np.ndarray:
+    array = finite_array(temperature, name)
     low, high = TEMPERATURE_RANGE
     _check_range(array, low, high, f"{name} must be between {low:g} and {high:g} °C")
     return array
 
 
-def _check_pressure(pressure, name: str = "pressure") -> np.ndarray:
-    array = _as_array(pressure, name)
+def _check_pressure(pressure: ArrayLike, name: str = "pressure") -> np.ndarray:
+    array = finite_array(pressure, name)
     if not np.all(array > 0):
         raise InputError(f"{name} must be positive [Pa], got {_first_bad(array, array > 0):g}")
     return array
 
 
-def _check_humidity(relative_humidity) -> np.ndarray:
-    array = _as_array(relative_humidity, "relative humidity")
+def _check_humidity(relative_humidity: ArrayLike) -> np.ndarray:
+    array = finite_array(relative_humidity, "relative humidity")
     ok = (array >= 0.0) & (array <= 1.0)
     if not np.all(ok):
         bad = _first_bad(array, ok)
@@ -159,27 +179,45 @@ def _check_humidity(relative_humidity) -> np.ndarray:
 # --- standard atmosphere ----------------------------------------------------------------------
 
 
-def geopotential_height(elevation) -> np.ndarray:
+def geopotential_height(elevation: ArrayLike) -> np.ndarray:
     """Geopotential height of a geometric elevation [m].
 
-    H = r0·z / (r0 + z), r0 = 6 356 766 m (ICAO Doc 7488; ISO 2533).
+    H = r0·z / (r0 + z),  r0 = 6 356 766 m.
 
     Parameters
     ----------
-    elevation : geometric height above mean sea level z [m].
+    elevation : float or array_like
+        Geometric height above mean sea level z [m].
+
+    Returns
+    -------
+    numpy.ndarray
+        Geopotential height H [m], the shape of `elevation`.
+
+    References
+    ----------
+    ICAO (1993), Manual of the ICAO Standard Atmosphere, Doc 7488/3; ISO 2533:1975.
+
+    Examples
+    --------
+    From the formula: 3000 m geometric is 3000·6356766/6359766 = 2998.585 m geopotential.
+
+    >>> float(geopotential_height(3000.0))
+    2998.585
     """
-    elevation = _as_array(elevation, "elevation")
+    elevation = finite_array(elevation, "elevation")
     return EARTH_RADIUS_GEOPOTENTIAL * elevation / (EARTH_RADIUS_GEOPOTENTIAL + elevation)
 
 
-def _troposphere_height(elevation) -> np.ndarray:
+def _troposphere_height(elevation: ArrayLike) -> np.ndarray:
     height = geopotential_height(elevation)
     low, high = GEOPOTENTIAL_HEIGHT_RANGE
     _check_range(height, low, high, f"elevation must be between {low:g} and {high:g} m")
     return height
 
 
-def standard_pressure(elevation, sea_level_pressure: float = STANDARD_SEA_LEVEL_PRESSURE):
+def standard_pressure(elevation: ArrayLike,
+                      sea_level_pressure: ArrayLike = STANDARD_SEA_LEVEL_PRESSURE) -> np.ndarray:
     """Air pressure at an elevation by the ICAO standard atmosphere, troposphere [Pa].
 
     p = p_sl · (T(H) / T0)^(g0 / (L·R)),  T(H) = T0 − L·H
@@ -190,12 +228,29 @@ def standard_pressure(elevation, sea_level_pressure: float = STANDARD_SEA_LEVEL_
 
     Parameters
     ----------
-    elevation : geometric height above mean sea level [m], -2000..11000 m geopotential.
-    sea_level_pressure : pressure reduced to sea level [Pa].
+    elevation : float or array_like
+        Geometric height above mean sea level [m]; its geopotential height must lie in
+        -2000..11000 m.
+    sea_level_pressure : float or array_like, optional
+        Pressure reduced to sea level [Pa] (default 101325 Pa).
+
+    Returns
+    -------
+    numpy.ndarray
+        Pressure [Pa], broadcast from the inputs.
 
     References
     ----------
-    ICAO Doc 7488/3 (1993); ISO 2533:1975.
+    ICAO (1993), Manual of the ICAO Standard Atmosphere, Doc 7488/3; ISO 2533:1975.
+    docs/references.md, "Air".
+
+    Examples
+    --------
+    The ICAO table gives 89 874.6 Pa at 1000 m geopotential height, which is 1000.157 m
+    geometric:
+
+    >>> float(standard_pressure(1000.157))
+    89874.6
     """
     height = _troposphere_height(elevation)
     sea_level_pressure = _check_pressure(sea_level_pressure, "sea-level pressure")
@@ -203,7 +258,8 @@ def standard_pressure(elevation, sea_level_pressure: float = STANDARD_SEA_LEVEL_
     return sea_level_pressure * (temperature / STANDARD_SEA_LEVEL_TEMPERATURE) ** PRESSURE_EXPONENT
 
 
-def temperature_at_elevation(elevation, start_temperature, start_elevation):
+def temperature_at_elevation(elevation: ArrayLike, start_temperature: ArrayLike,
+                             start_elevation: ArrayLike) -> np.ndarray:
     """Air temperature at an elevation, from the temperature at the start [°C].
 
     T(z) = T_start − L·(H(z) − H(z_start)),  L = 0.0065 K/m (ICAO troposphere lapse rate),
@@ -214,13 +270,29 @@ def temperature_at_elevation(elevation, start_temperature, start_elevation):
 
     Parameters
     ----------
-    elevation : geometric height above mean sea level [m].
-    start_temperature : air temperature at start_elevation [°C].
-    start_elevation : elevation where start_temperature holds [m].
+    elevation : float or array_like
+        Geometric height above mean sea level [m].
+    start_temperature : float or array_like
+        Air temperature at `start_elevation` [°C], -60..60.
+    start_elevation : float or array_like
+        Elevation where `start_temperature` holds [m].
+
+    Returns
+    -------
+    numpy.ndarray
+        Temperature [°C], broadcast from the inputs.
 
     References
     ----------
-    ICAO Doc 7488/3 (1993); ISO 2533:1975.
+    ICAO (1993), Manual of the ICAO Standard Atmosphere, Doc 7488/3; ISO 2533:1975.
+
+    Examples
+    --------
+    The ICAO table gives 8.50 °C (281.65 K) at 1000 m geopotential height, 1000.157 m
+    geometric:
+
+    >>> float(temperature_at_elevation(1000.157, 15.0, 0.0))
+    8.50
     """
     start_temperature = _check_temperature(start_temperature, "start temperature")
     height = _troposphere_height(elevation)
@@ -231,7 +303,7 @@ def temperature_at_elevation(elevation, start_temperature, start_elevation):
 # --- saturation vapour pressure ---------------------------------------------------------------
 
 
-def saturation_vapour_pressure_hardy_1998(temperature):
+def saturation_vapour_pressure_hardy_1998(temperature: ArrayLike) -> np.ndarray:
     """Saturation vapour pressure over liquid water, Hardy (1998) on ITS-90 [Pa].
 
     ln e_s = Σ_{i=0..6} g_i·T^(i−2) + g7·ln T,  T [K]
@@ -241,33 +313,63 @@ def saturation_vapour_pressure_hardy_1998(temperature):
 
     Parameters
     ----------
-    temperature : air temperature [°C], -60..60.
+    temperature : float or array_like
+        Air temperature [°C], -60..60.
+
+    Returns
+    -------
+    numpy.ndarray
+        Saturation vapour pressure e_s [Pa], the shape of `temperature`.
 
     References
     ----------
-    Hardy, B. (1998), Proc. 3rd Int. Symp. on Humidity & Moisture, NPL London, 214-221.
+    Hardy, B. (1998). ITS-90 formulations for vapor pressure, frostpoint temperature, dewpoint
+    temperature, and enhancement factors in the range -100 to +100 °C. Proc. 3rd Int. Symp. on
+    Humidity & Moisture, NPL London, 214-221. docs/references.md, "Air".
+
+    Examples
+    --------
+    At 20 °C: 2339.26 Pa (CoolProp's IAPWS-95 saturation pressure is 2339.32 Pa):
+
+    >>> float(saturation_vapour_pressure_hardy_1998(20.0))
+    2339.26
     """
     kelvin = _check_temperature(temperature) + ZERO_CELSIUS
     g = HARDY_1998
-    exponent = g[7] * np.log(kelvin)
+    exponent: np.ndarray = g[7] * np.log(kelvin)
     for i in range(7):
         exponent = exponent + g[i] * kelvin ** (i - 2)
     return np.exp(exponent)
 
 
-def saturation_vapour_pressure_cipm_2007(temperature):
+def saturation_vapour_pressure_cipm_2007(temperature: ArrayLike) -> np.ndarray:
     """Saturation vapour pressure of CIPM-2007 (Davis 1992) [Pa].
 
     e_s = 1 Pa · exp(A·T² + B·T + C + D/T),  T [K]
 
     Parameters
     ----------
-    temperature : air temperature [°C], -60..60 (the formula was fitted for 15-27 °C; it
-        stays within 0.06 % of Hardy 1998 from -40 to 60 °C and 0.22 % at -60 °C).
+    temperature : float or array_like
+        Air temperature [°C], -60..60 (the formula was fitted for 15-27 °C; it stays within
+        0.06 % of Hardy 1998 from -40 to 60 °C and 0.22 % at -60 °C).
+
+    Returns
+    -------
+    numpy.ndarray
+        Saturation vapour pressure e_s [Pa], the shape of `temperature`.
 
     References
     ----------
-    Picard et al. (2008), Metrologia 45:149; Davis (1992), Metrologia 29:67.
+    Picard, A., Davis, R.S., Gläser, M. & Fujii, K. (2008). Revised formula for the density of
+    moist air (CIPM-2007). Metrologia 45(2):149-155. doi:10.1088/0026-1394/45/2/004
+    Davis, R.S. (1992). Metrologia 29(1):67-70.
+
+    Examples
+    --------
+    At 20 °C the formula gives 2339.16 Pa, 0.004 % below Hardy (1998):
+
+    >>> float(saturation_vapour_pressure_cipm_2007(20.0))
+    2339.16
     """
     kelvin = _check_temperature(temperature) + ZERO_CELSIUS
     c = CIPM_2007
@@ -279,33 +381,58 @@ def saturation_vapour_pressure_cipm_2007(temperature):
     )
 
 
-def saturation_vapour_pressure_magnus(temperature):
+def saturation_vapour_pressure_magnus(temperature: ArrayLike) -> np.ndarray:
     """Saturation vapour pressure over water, Magnus form of Alduchov & Eskridge (1996) [Pa].
 
     e_s = 610.94 Pa · exp(17.625·t / (243.04 + t)),  t [°C]
 
     Parameters
     ----------
-    temperature : air temperature [°C], -60..60.
+    temperature : float or array_like
+        Air temperature [°C], -60..60.
+
+    Returns
+    -------
+    numpy.ndarray
+        Saturation vapour pressure e_s [Pa], the shape of `temperature`.
 
     References
     ----------
-    Alduchov & Eskridge (1996), J Appl Meteorol 35:601.
+    Alduchov, O.A. & Eskridge, R.E. (1996). Improved Magnus form approximation of saturation
+    vapor pressure. J Appl Meteorol 35(4):601-609.
+
+    Examples
+    --------
+    At 20 °C: 610.94·exp(17.625·20/263.04) = 2333.44 Pa, 0.25 % below Hardy (1998):
+
+    >>> float(saturation_vapour_pressure_magnus(20.0))
+    2333.44
     """
     celsius = _check_temperature(temperature)
     scale, slope, offset = ALDUCHOV_ESKRIDGE_1996
     return scale * np.exp(slope * celsius / (offset + celsius))
 
 
-SATURATION_VAPOUR_PRESSURE_MODELS: dict[str, Callable] = {
-    "hardy_1998": saturation_vapour_pressure_hardy_1998,
-    "cipm_2007": saturation_vapour_pressure_cipm_2007,
-    "magnus_alduchov_eskridge_1996": saturation_vapour_pressure_magnus,
-}
-"""Saturation vapour pressure formulas by name: temperature [°C] → pressure [Pa]."""
+SATURATION_VAPOUR_PRESSURE_MODELS: ModelRegistry[Callable[[ArrayLike], np.ndarray]] = (
+    ModelRegistry(
+        {
+            "hardy-1998": saturation_vapour_pressure_hardy_1998,
+            "cipm-2007": saturation_vapour_pressure_cipm_2007,
+            "magnus-alduchov-eskridge-1996": saturation_vapour_pressure_magnus,
+        },
+        aliases={
+            "hardy_1998": "hardy-1998",
+            "cipm_2007": "cipm-2007",
+            "magnus_alduchov_eskridge_1996": "magnus-alduchov-eskridge-1996",
+        },
+        what="saturation vapour pressure formula",
+    )
+)
+"""Saturation vapour pressure formulas by name: temperature [°C] → pressure [Pa]. The
+underscore spellings of earlier versions are accepted on lookup."""
 
 
-def saturation_vapour_pressure(temperature):
+def saturation_vapour_pressure(temperature: ArrayLike) -> np.ndarray:
     """Saturation vapour pressure over liquid water [Pa]: Hardy (1998), the default.
 
     See `saturation_vapour_pressure_hardy_1998`; the alternatives are in
@@ -313,7 +440,24 @@ def saturation_vapour_pressure(temperature):
 
     Parameters
     ----------
-    temperature : air temperature [°C], -60..60.
+    temperature : float or array_like
+        Air temperature [°C], -60..60.
+
+    Returns
+    -------
+    numpy.ndarray
+        Saturation vapour pressure e_s [Pa], the shape of `temperature`.
+
+    References
+    ----------
+    Hardy (1998), Proc. 3rd Int. Symp. on Humidity & Moisture, NPL London, 214-221.
+
+    Examples
+    --------
+    The triple point of water, 0.01 °C, has 611.657 Pa (IAPWS):
+
+    >>> float(saturation_vapour_pressure(0.01))
+    611.657
     """
     return saturation_vapour_pressure_hardy_1998(temperature)
 
@@ -321,18 +465,33 @@ def saturation_vapour_pressure(temperature):
 # --- humid air density ------------------------------------------------------------------------
 
 
-def enhancement_factor(temperature, pressure):
+def enhancement_factor(temperature: ArrayLike, pressure: ArrayLike) -> np.ndarray:
     """Enhancement factor of water vapour in air, CIPM-2007 [-].
 
     f = α + β·p + γ·t²  (t [°C], p [Pa])
 
     Parameters
     ----------
-    temperature : [°C]; pressure : total pressure [Pa].
+    temperature : float or array_like
+        Air temperature t [°C], -60..60.
+    pressure : float or array_like
+        Total air pressure p [Pa], > 0.
+
+    Returns
+    -------
+    numpy.ndarray
+        f [-], broadcast from the inputs.
 
     References
     ----------
-    Picard et al. (2008), Metrologia 45:149.
+    Picard et al. (2008), Metrologia 45:149-155. doi:10.1088/0026-1394/45/2/004
+
+    Examples
+    --------
+    From the formula at 20 °C and 101 325 Pa: 1.00062 + 3.14e-8·101325 + 5.6e-7·400 = 1.00403.
+
+    >>> float(enhancement_factor(20.0, 101325.0))
+    1.00403
     """
     celsius = _check_temperature(temperature)
     pressure = _check_pressure(pressure)
@@ -342,18 +501,37 @@ def enhancement_factor(temperature, pressure):
     )
 
 
-def vapour_mole_fraction(temperature, pressure, relative_humidity):
+def vapour_mole_fraction(temperature: ArrayLike, pressure: ArrayLike,
+                         relative_humidity: ArrayLike) -> np.ndarray:
     """Mole fraction of water vapour in humid air, CIPM-2007 [-].
 
     x_v = h · f(p, t) · e_s(T) / p
 
     Parameters
     ----------
-    temperature : [°C]; pressure : total pressure [Pa]; relative_humidity : h, 0..1 [-].
+    temperature : float or array_like
+        Air temperature [°C], -60..60.
+    pressure : float or array_like
+        Total air pressure [Pa], > 0.
+    relative_humidity : float or array_like
+        h, relative to saturation over water, 0..1 [-].
+
+    Returns
+    -------
+    numpy.ndarray
+        x_v [-], broadcast from the inputs. Raises InputError when the vapour pressure would
+        exceed the total pressure.
 
     References
     ----------
-    Picard et al. (2008), Metrologia 45:149.
+    Picard et al. (2008), Metrologia 45:149-155. doi:10.1088/0026-1394/45/2/004
+
+    Examples
+    --------
+    Half-saturated air at 20 °C and one atmosphere: 0.5·1.00403·2339.16/101325 = 0.011589.
+
+    >>> float(vapour_mole_fraction(20.0, 101325.0, 0.5))
+    0.011589
     """
     humidity = _check_humidity(relative_humidity)
     fraction = (
@@ -368,7 +546,8 @@ def vapour_mole_fraction(temperature, pressure, relative_humidity):
     return fraction
 
 
-def compressibility_factor(temperature, pressure, vapour_fraction):
+def compressibility_factor(temperature: ArrayLike, pressure: ArrayLike,
+                           vapour_fraction: ArrayLike) -> np.ndarray:
     """Compressibility factor Z of humid air, CIPM-2007 [-].
 
     Z = 1 − (p/T)·[a0 + a1·t + a2·t² + (b0 + b1·t)·x_v + (c0 + c1·t)·x_v²]
@@ -378,15 +557,32 @@ def compressibility_factor(temperature, pressure, vapour_fraction):
 
     Parameters
     ----------
-    temperature : [°C]; pressure : total pressure [Pa]; vapour_fraction : x_v [-].
+    temperature : float or array_like
+        Air temperature t [°C], -60..60.
+    pressure : float or array_like
+        Total air pressure p [Pa], > 0.
+    vapour_fraction : float or array_like
+        Mole fraction of water vapour x_v [-].
+
+    Returns
+    -------
+    numpy.ndarray
+        Z [-], broadcast from the inputs.
 
     References
     ----------
-    Picard et al. (2008), Metrologia 45:149.
+    Picard et al. (2008), Metrologia 45:149-155. doi:10.1088/0026-1394/45/2/004
+
+    Examples
+    --------
+    Dry air at 20 °C and one atmosphere, from the formula: Z = 0.999643.
+
+    >>> float(compressibility_factor(20.0, 101325.0, 0.0))
+    0.999643
     """
     celsius = _check_temperature(temperature)
     pressure = _check_pressure(pressure)
-    fraction = _as_array(vapour_fraction, "vapour mole fraction")
+    fraction = finite_array(vapour_fraction, "vapour mole fraction")
     kelvin = celsius + ZERO_CELSIUS
     c = CIPM_2007
     bracket = (
@@ -402,8 +598,11 @@ def compressibility_factor(temperature, pressure, vapour_fraction):
 
 
 def air_density(
-    temperature, pressure, relative_humidity, co2_mole_fraction: float = DEFAULT_CO2_MOLE_FRACTION
-):
+    temperature: ArrayLike,
+    pressure: ArrayLike,
+    relative_humidity: ArrayLike,
+    co2_mole_fraction: float = DEFAULT_CO2_MOLE_FRACTION,
+) -> np.ndarray:
     """Density of humid air by CIPM-2007 [kg/m³].
 
     ρ = p·M_a / (Z·R·T) · [1 − x_v·(1 − M_v/M_a)]
@@ -417,14 +616,33 @@ def air_density(
 
     Parameters
     ----------
-    temperature : air temperature [°C], -60..60.
-    pressure : total air pressure [Pa], > 0.
-    relative_humidity : h, relative to saturation over water, 0..1 [-].
-    co2_mole_fraction : x_CO2 [-] (default 0.0004).
+    temperature : float or array_like
+        Air temperature [°C], -60..60.
+    pressure : float or array_like
+        Total air pressure [Pa], > 0.
+    relative_humidity : float or array_like
+        h, relative to saturation over water, 0..1 [-].
+    co2_mole_fraction : float, optional
+        x_CO2 [-] (default 0.0004).
+
+    Returns
+    -------
+    numpy.ndarray
+        Density ρ [kg/m³], broadcast from the inputs.
 
     References
     ----------
-    Picard, Davis, Gläser & Fujii (2008), Metrologia 45:149-155.
+    Picard, A., Davis, R.S., Gläser, M. & Fujii, K. (2008). Revised formula for the density of
+    moist air (CIPM-2007). Metrologia 45(2):149-155. doi:10.1088/0026-1394/45/2/004
+    docs/references.md, "Air".
+
+    Examples
+    --------
+    20 °C, 101 325 Pa, 50 % relative humidity: 1.19931 kg/m³ (CoolProp's HAPropsSI humid-air
+    model gives 1.19936 kg/m³, 0.004 % more):
+
+    >>> float(air_density(20.0, 101325.0, 0.5))
+    1.19931
     """
     celsius = _check_temperature(temperature)
     pressure = _check_pressure(pressure)
@@ -443,7 +661,8 @@ def air_density(
     )
 
 
-def air_density_ideal_gas(temperature, pressure, relative_humidity):
+def air_density_ideal_gas(temperature: ArrayLike, pressure: ArrayLike,
+                          relative_humidity: ArrayLike) -> np.ndarray:
     """Density of humid air as a mixture of ideal gases [kg/m³].
 
     ρ = (p − e)/(R_d·T) + e/(R_v·T),  e = h·e_s(t) (Hardy 1998)
@@ -454,12 +673,31 @@ def air_density_ideal_gas(temperature, pressure, relative_humidity):
 
     Parameters
     ----------
-    temperature : [°C], -60..60; pressure : total pressure [Pa], > 0;
-    relative_humidity : h, 0..1 [-].
+    temperature : float or array_like
+        Air temperature [°C], -60..60.
+    pressure : float or array_like
+        Total air pressure [Pa], > 0.
+    relative_humidity : float or array_like
+        h, relative to saturation over water, 0..1 [-].
+
+    Returns
+    -------
+    numpy.ndarray
+        Density ρ [kg/m³], broadcast from the inputs.
 
     References
     ----------
-    Dalton's law with the ideal-gas law (common practice); ICAO Doc 7488/3 for R_d.
+    Dalton's law with the ideal-gas law (common practice); ICAO (1993), Doc 7488/3 for R_d.
+
+    Examples
+    --------
+    Dry air on the standard atmosphere at 2000 m geopotential height (2000.629 m geometric),
+    where the ICAO table gives 1.00649 kg/m³:
+
+    >>> elevation = 2000.629
+    >>> air = temperature_at_elevation(elevation, 15.0, 0.0), standard_pressure(elevation)
+    >>> float(air_density_ideal_gas(*air, 0.0))
+    1.00649
     """
     celsius = _check_temperature(temperature)
     pressure = _check_pressure(pressure)
@@ -474,9 +712,20 @@ def air_density_ideal_gas(temperature, pressure, relative_humidity):
     )
 
 
-AIR_DENSITY_MODELS: dict[str, Callable] = {
-    "cipm_2007": air_density,
-    "ideal_gas": air_density_ideal_gas,
-}
+AirDensityModel = Callable[[ArrayLike, ArrayLike, ArrayLike], np.ndarray]
+"""(temperature [°C], pressure [Pa], relative humidity [0..1]) → density [kg/m³]."""
+
+AIR_DENSITY_MODELS: ModelRegistry[AirDensityModel] = ModelRegistry(
+    {
+        "cipm-2007": air_density,
+        "ideal-gas": air_density_ideal_gas,
+    },
+    aliases={"cipm_2007": "cipm-2007", "ideal_gas": "ideal-gas"},
+    what="air density model",
+)
 """Humid-air density models by name: (temperature [°C], pressure [Pa], relative humidity
-[0..1]) → density [kg/m³]. The first is the default."""
+[0..1]) → density [kg/m³]. The first, "cipm-2007", is the default; the old keys "cipm_2007"
+and "ideal_gas" are accepted on lookup (stored plans may hold them)."""
+
+DEFAULT_AIR_DENSITY_MODEL = "cipm-2007"
+"""Key of the default humid-air density model in AIR_DENSITY_MODELS."""

@@ -18,6 +18,8 @@ determinants of the ability to recover work capacity above critical power. Eur J
 115(4):703-713. doi:10.1007/s00421-014-3050-3
 Skiba, P.F. & Clarke, D.C. (2021). The W′ balance model: mathematical and methodological
 considerations. Int J Sports Physiol Perform 16(11):1561-1572. doi:10.1123/ijspp.2021-0205
+
+Check values: docs/references.md, "Critical power and W′ balance".
 """
 
 from __future__ import annotations
@@ -25,6 +27,7 @@ from __future__ import annotations
 from collections.abc import Callable
 
 import numpy as np
+from numpy.typing import ArrayLike
 
 from pacing.errors import InputError
 
@@ -47,7 +50,7 @@ def _check_critical_power(critical_power: float, w_prime: float) -> None:
         raise InputError(f"W′ must be positive, got {w_prime}")
 
 
-def _power_series(power: np.ndarray, duration: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+def _power_series(power: ArrayLike, duration: ArrayLike) -> tuple[np.ndarray, np.ndarray]:
     power, duration = np.broadcast_arrays(
         np.atleast_1d(np.asarray(power, dtype=float)),
         np.atleast_1d(np.asarray(duration, dtype=float)),
@@ -61,20 +64,36 @@ def _power_series(power: np.ndarray, duration: np.ndarray) -> tuple[np.ndarray, 
     return power, duration
 
 
-def time_to_exhaustion(power: np.ndarray, critical_power: float, w_prime: float) -> np.ndarray:
+def time_to_exhaustion(power: ArrayLike, critical_power: float, w_prime: float) -> np.ndarray:
     """Time a constant power can be held, critical power model [s].
 
     t_lim = W′ / (P − CP) for P > CP; infinite at or below CP.
 
     Parameters
     ----------
-    power : constant power [W].
-    critical_power : CP [W].
-    w_prime : W′, work capacity above CP [J].
+    power : float or array_like
+        Constant power P [W].
+    critical_power : float
+        CP, > 0 [W].
+    w_prime : float
+        W′, the work capacity above CP, > 0 [J].
+
+    Returns
+    -------
+    numpy.ndarray
+        t_lim [s], the shape of `power`.
 
     References
     ----------
-    Monod & Scherrer (1965); Skiba & Clarke (2021), eq. 1.
+    Monod, H. & Scherrer, J. (1965). Ergonomics 8:329-338. doi:10.1080/00140136508930810
+    Skiba & Clarke (2021), Int J Sports Physiol Perform 16(11):1561-1572, eq. 1.
+
+    Examples
+    --------
+    CP 250 W, W′ 20 kJ, held at 400 W: 20000/150 = 133.3 s.
+
+    >>> float(time_to_exhaustion(400.0, 250.0, 20000.0))
+    133.3
     """
     _check_critical_power(critical_power, w_prime)
     power = np.asarray(power, dtype=float)
@@ -84,7 +103,7 @@ def time_to_exhaustion(power: np.ndarray, critical_power: float, w_prime: float)
 
 
 def time_to_exhaustion_morton(
-    power: np.ndarray, critical_power: float, w_prime: float, max_power: float
+    power: ArrayLike, critical_power: float, w_prime: float, max_power: float
 ) -> np.ndarray:
     """Time a constant power can be held, Morton's 3-parameter model [s].
 
@@ -93,12 +112,31 @@ def time_to_exhaustion_morton(
 
     Parameters
     ----------
-    power : constant power [W]; critical_power : CP [W]; w_prime : W′ [J];
-    max_power : P_max, the instantaneous power asymptote (t_lim = 0) [W], above CP.
+    power : float or array_like
+        Constant power P, at most P_max [W].
+    critical_power : float
+        CP, > 0 [W].
+    w_prime : float
+        W′, > 0 [J].
+    max_power : float
+        P_max, the instantaneous power asymptote (t_lim = 0), above CP [W].
+
+    Returns
+    -------
+    numpy.ndarray
+        t_lim [s], the shape of `power`.
 
     References
     ----------
-    Morton (1996), Ergonomics 39:611.
+    Morton, R.H. (1996). A 3-parameter critical power model. Ergonomics 39(4):611-619.
+    doi:10.1080/00140139608964484
+
+    Examples
+    --------
+    CP 250 W, W′ 20 kJ, P_max 1000 W, held at 400 W: 20000/150 − 20000/750 = 106.7 s.
+
+    >>> float(time_to_exhaustion_morton(400.0, 250.0, 20000.0, 1000.0))
+    106.7
     """
     _check_critical_power(critical_power, w_prime)
     if not max_power > critical_power:
@@ -112,14 +150,35 @@ def time_to_exhaustion_morton(
     return np.where(excess > 0, np.maximum(limit, 0.0), np.inf)
 
 
-def power_for_duration(duration: np.ndarray, critical_power: float, w_prime: float) -> np.ndarray:
+def power_for_duration(duration: ArrayLike, critical_power: float, w_prime: float) -> np.ndarray:
     """Highest constant power that can be held for a duration, critical power model [W].
 
     P = CP + W′ / t (the inverse of `time_to_exhaustion`).
 
     Parameters
     ----------
-    duration : [s], positive; critical_power : CP [W]; w_prime : W′ [J].
+    duration : float or array_like
+        t, > 0 [s].
+    critical_power : float
+        CP, > 0 [W].
+    w_prime : float
+        W′, > 0 [J].
+
+    Returns
+    -------
+    numpy.ndarray
+        P [W], the shape of `duration`.
+
+    References
+    ----------
+    Monod & Scherrer (1965), Ergonomics 8:329-338.
+
+    Examples
+    --------
+    Five minutes with CP 250 W and W′ 20 kJ: 250 + 20000/300 = 316.7 W.
+
+    >>> float(power_for_duration(300.0, 250.0, 20000.0))
+    316.7
     """
     _check_critical_power(critical_power, w_prime)
     duration = np.asarray(duration, dtype=float)
@@ -150,8 +209,8 @@ def _affine_scan(decay: np.ndarray, increment: np.ndarray, initial: float) -> np
 
 
 def w_prime_balance_differential(
-    power: np.ndarray,
-    duration: np.ndarray,
+    power: ArrayLike,
+    duration: ArrayLike,
     critical_power: float,
     w_prime: float,
     initial_balance: float | None = None,
@@ -170,14 +229,35 @@ def w_prime_balance_differential(
 
     Parameters
     ----------
-    power : power of each sample [W]; duration : length of each sample [s].
-    critical_power : CP [W]; w_prime : W′ [J].
-    initial_balance : balance at the start [J] (default W′, fully rested).
+    power : array_like
+        Power of each sample [W].
+    duration : array_like
+        Length of each sample [s], ≥ 0.
+    critical_power : float
+        CP, > 0 [W].
+    w_prime : float
+        W′, > 0 [J].
+    initial_balance : float, optional
+        Balance at the start (default W′, fully rested) [J].
+
+    Returns
+    -------
+    numpy.ndarray
+        W′ balance at the end of each sample [J].
 
     References
     ----------
-    Skiba et al. (2015), Eur J Appl Physiol 115:703 (from memory: the form as summarised in
-    Skiba & Clarke 2021).
+    Skiba, P.F., Fulford, J., Clarke, D.C., Vanhatalo, A. & Jones, A.M. (2015). Eur J Appl
+    Physiol 115(4):703-713. doi:10.1007/s00421-014-3050-3 (equation from memory, as summarised
+    in Skiba & Clarke 2021). docs/references.md, "Critical power and W′ balance".
+
+    Examples
+    --------
+    CP 250 W, W′ 20 kJ: 60 s at 400 W spends 9000 J; 60 s at 150 W then recovers to
+    20000 − 9000·exp(−100·60/20000) = 13332.6 J.
+
+    >>> w_prime_balance_differential([400.0, 150.0], [60.0, 60.0], 250.0, 20000.0).round(1)
+    array([11000. , 13332.6])
     """
     _check_critical_power(critical_power, w_prime)
     power, duration = _power_series(power, duration)
@@ -193,18 +273,36 @@ def w_prime_balance_differential(
 def recovery_time_constant(critical_power_gap: float) -> float:
     """Time constant of W′ recovery in Skiba's integral form [s].
 
-    τ = 546·exp(−0.01·D_CP) + 316, D_CP = CP − (mean power of the samples below CP) [W].
+    τ = 546·exp(−0.01·D_CP) + 316, D_CP = CP − (mean power of the samples below CP).
+
+    Parameters
+    ----------
+    critical_power_gap : float
+        D_CP [W].
+
+    Returns
+    -------
+    float
+        τ [s].
 
     References
     ----------
-    Skiba et al. (2012), Med Sci Sports Exerc 44:1526 (constants from memory).
+    Skiba, P.F., Chidnok, W., Vanhatalo, A. & Jones, A.M. (2012). Med Sci Sports Exerc
+    44(8):1526-1532. doi:10.1249/MSS.0b013e3182517a80 (constants from memory).
+
+    Examples
+    --------
+    Recovering 100 W below CP: 546·e^(−1) + 316 = 516.9 s.
+
+    >>> recovery_time_constant(100.0)
+    516.9
     """
     return 546.0 * float(np.exp(-0.01 * critical_power_gap)) + 316.0
 
 
 def w_prime_balance_integral(
-    power: np.ndarray,
-    duration: np.ndarray,
+    power: ArrayLike,
+    duration: ArrayLike,
     critical_power: float,
     w_prime: float,
     initial_balance: float | None = None,
@@ -221,14 +319,37 @@ def w_prime_balance_integral(
 
     Parameters
     ----------
-    power : power of each sample [W]; duration : length of each sample [s].
-    critical_power : CP [W]; w_prime : W′ [J].
-    initial_balance : balance at the start [J] (default W′); a starting deficit decays like
-        the rest.
+    power : array_like
+        Power of each sample [W].
+    duration : array_like
+        Length of each sample [s], ≥ 0.
+    critical_power : float
+        CP, > 0 [W].
+    w_prime : float
+        W′, > 0 [J].
+    initial_balance : float, optional
+        Balance at the start (default W′); a starting deficit decays like the rest [J].
+
+    Returns
+    -------
+    numpy.ndarray
+        W′ balance at the end of each sample [J].
 
     References
     ----------
-    Skiba et al. (2012), Med Sci Sports Exerc 44:1526 (equation from memory).
+    Skiba, P.F., Chidnok, W., Vanhatalo, A. & Jones, A.M. (2012). Modeling the expenditure and
+    reconstitution of work capacity above critical power. Med Sci Sports Exerc 44(8):1526-1532.
+    doi:10.1249/MSS.0b013e3182517a80 (equation from memory). docs/references.md, "Critical
+    power and W′ balance".
+
+    Examples
+    --------
+    CP 250 W, W′ 20 kJ, 60 s at 400 W then 60 s at 150 W: τ = 546·e^(−1) + 316 = 516.86 s and
+    W′ − 150·τ·(1 − e^(−60/τ))·e^(−60/τ) = 12434.0 J at the end (scipy's quad on the integral
+    agrees):
+
+    >>> w_prime_balance_integral([400.0, 150.0], [60.0, 60.0], 250.0, 20000.0).round(1)
+    array([11502.7, 12434. ])
     """
     _check_critical_power(critical_power, w_prime)
     power, duration = _power_series(power, duration)
@@ -254,14 +375,48 @@ W_PRIME_BALANCE_MODELS: dict[str, Callable[..., np.ndarray]] = {
 
 
 def w_prime_balance(
-    power: np.ndarray,
-    duration: np.ndarray,
+    power: ArrayLike,
+    duration: ArrayLike,
     critical_power: float,
     w_prime: float,
     model: str = "differential",
     initial_balance: float | None = None,
 ) -> np.ndarray:
-    """W′ balance at the end of each sample with a model from W_PRIME_BALANCE_MODELS [J]."""
+    """W′ balance at the end of each sample with a model from W_PRIME_BALANCE_MODELS [J].
+
+    Parameters
+    ----------
+    power : array_like
+        Power of each sample [W].
+    duration : array_like
+        Length of each sample [s], ≥ 0.
+    critical_power : float
+        CP, > 0 [W].
+    w_prime : float
+        W′, > 0 [J].
+    model : {"differential", "integral"}, optional
+        Key of W_PRIME_BALANCE_MODELS [-].
+    initial_balance : float, optional
+        Balance at the start (default W′) [J].
+
+    Returns
+    -------
+    numpy.ndarray
+        W′ balance at the end of each sample [J].
+
+    References
+    ----------
+    Skiba et al. (2015), Eur J Appl Physiol 115(4):703-713 (differential); Skiba et al.
+    (2012), Med Sci Sports Exerc 44(8):1526-1532 (integral). docs/references.md, "Critical
+    power and W′ balance".
+
+    Examples
+    --------
+    The differential form's check value (see `w_prime_balance_differential`): 13332.6 J.
+
+    >>> float(w_prime_balance([400.0, 150.0], [60.0, 60.0], 250.0, 20000.0)[-1])
+    13332.6
+    """
     try:
         function = W_PRIME_BALANCE_MODELS[model]
     except KeyError:
@@ -271,7 +426,7 @@ def w_prime_balance(
 
 
 def resample_power(
-    power: np.ndarray, duration: np.ndarray, step: float = RESAMPLE_STEP
+    power: ArrayLike, duration: ArrayLike, step: float = RESAMPLE_STEP
 ) -> np.ndarray:
     """Mean power over consecutive time steps of equal length [W].
 
@@ -280,7 +435,24 @@ def resample_power(
 
     Parameters
     ----------
-    power : power of each sample [W]; duration : length of each sample [s]; step : [s].
+    power : array_like
+        Power of each sample [W].
+    duration : array_like
+        Length of each sample [s], ≥ 0.
+    step : float, optional
+        Length of the new steps, > 0 [s].
+
+    Returns
+    -------
+    numpy.ndarray
+        Mean power of each whole step [W].
+
+    Examples
+    --------
+    100 W for 1.5 s then 300 W for 1.5 s: the middle second holds half of each.
+
+    >>> resample_power([100.0, 300.0], [1.5, 1.5]).tolist()
+    [100.0, 200.0, 300.0]
     """
     power, duration = _power_series(power, duration)
     if not step > 0:
@@ -292,8 +464,8 @@ def resample_power(
 
 
 def effort_weighted_power(
-    power: np.ndarray,
-    duration: np.ndarray,
+    power: ArrayLike,
+    duration: ArrayLike,
     window: float = EFFORT_WINDOW,
     exponent: float = EFFORT_EXPONENT,
     step: float = RESAMPLE_STEP,
@@ -309,8 +481,31 @@ def effort_weighted_power(
 
     Parameters
     ----------
-    power : power of each sample [W], ≥ 0; duration : length of each sample [s].
-    window : rolling window [s]; exponent : [-]; step : resampling step [s].
+    power : array_like
+        Power of each sample, ≥ 0 [W].
+    duration : array_like
+        Length of each sample [s], ≥ 0.
+    window : float, optional
+        Length of the rolling mean [s].
+    exponent : float, optional
+        Exponent of the mean [-].
+    step : float, optional
+        Resampling step [s].
+
+    Returns
+    -------
+    float
+        P_ew [W].
+
+    Examples
+    --------
+    A steady ride weighs as its power; 30 s surges to 400 W between 30 s at 100 W weigh more
+    than their 250 W mean:
+
+    >>> effort_weighted_power([250.0], [600.0])
+    250.0
+    >>> effort_weighted_power([400.0, 100.0] * 10, [30.0] * 20) > 250.0
+    True
     """
     power, duration = _power_series(power, duration)
     if np.any(power < 0):

@@ -16,22 +16,32 @@ Per piece (length N-1, see pacing.course.geometry):
 - wind: reduced from its measurement height to the rider's height by the log wind profile
   (pacing.physics.wind.wind_at_height), split by the piece's heading
   (pacing.physics.wind.wind_components).
+
+References
+----------
+ICAO (1993), Doc 7488/3; Picard et al. (2008), Metrologia 45:149-155; Wieringa (1992), J Wind
+Eng Ind Aerodyn 41:357-368. Check values: docs/references.md, "Air" and "Wind".
 """
 
 from __future__ import annotations
 
 from dataclasses import dataclass
+from typing import TYPE_CHECKING
 
 import numpy as np
 
 from pacing.errors import InputError
 from pacing.physics.air import (
     AIR_DENSITY_MODELS,
+    DEFAULT_AIR_DENSITY_MODEL,
     TEMPERATURE_RANGE,
     standard_pressure,
     temperature_at_elevation,
 )
 from pacing.physics.wind import wind_at_height, wind_components
+
+if TYPE_CHECKING:
+    from pacing.course.geometry import Course
 
 SEA_LEVEL_PRESSURE_RANGE = (85000.0, 110000.0)
 """Sea-level pressures accepted [Pa]. Recorded extremes lie near 87 and 108.4 kPa (common
@@ -50,22 +60,35 @@ ROUGHNESS_LENGTH_RANGE = (0.0001, 2.0)
 ("chaotic", z0 ≥ 2 m; Wieringa 1992)."""
 
 
+NUMBER_FIELDS = ("temperature", "relative_humidity", "sea_level_pressure", "wind_speed",
+                 "wind_from", "wind_height", "roughness_length", "rider_height")
+"""The fields of Conditions, all numbers."""
+
+
 @dataclass(frozen=True)
 class Conditions:
     """The air on race day.
 
     Attributes
     ----------
-    temperature : air temperature at the start's elevation [°C], -60..60.
-    relative_humidity : relative humidity as a fraction 0..1 [-] (50 % = 0.5).
-    sea_level_pressure : air pressure reduced to sea level [Pa] (forecasts give it in hPa:
-        1013.25 hPa = 101325 Pa).
-    wind_speed : mean wind speed at wind_height [m/s], ≥ 0.
-    wind_from : direction the wind blows FROM [deg clockwise from north].
-    wind_height : height of the wind measurement [m] (10 m for weather reports).
-    roughness_length : terrain roughness length z0 [m] (pacing.physics.wind.ROUGHNESS_LENGTHS;
-        0.03 m = open grassland).
-    rider_height : height where the wind acts on the rider [m], about the middle of the body.
+    temperature : float
+        Air temperature at the start's elevation, -60..60 [°C].
+    relative_humidity : float
+        Relative humidity as a fraction 0..1 (50 % = 0.5) [-].
+    sea_level_pressure : float
+        Air pressure reduced to sea level (forecasts give it in hPa: 1013.25 hPa = 101325 Pa)
+        [Pa].
+    wind_speed : float
+        Mean wind speed at wind_height, ≥ 0 [m/s].
+    wind_from : float
+        Direction the wind blows FROM [deg clockwise from north].
+    wind_height : float
+        Height of the wind measurement (10 m for weather reports) [m].
+    roughness_length : float
+        Terrain roughness length z0 (pacing.physics.wind.ROUGHNESS_LENGTHS; 0.03 m = open
+        grassland) [m].
+    rider_height : float
+        Height where the wind acts on the rider, about the middle of the body [m].
     """
 
     temperature: float = 20.0
@@ -78,16 +101,12 @@ class Conditions:
     rider_height: float = 1.0
 
     def __post_init__(self) -> None:
-        for name in (
-            "temperature",
-            "relative_humidity",
-            "sea_level_pressure",
-            "wind_speed",
-            "wind_from",
-            "wind_height",
-            "roughness_length",
-            "rider_height",
-        ):
+        self._check_numbers()
+        self._check_air()
+        self._check_wind()
+
+    def _check_numbers(self) -> None:
+        for name in NUMBER_FIELDS:
             value = getattr(self, name)
             try:
                 number = float(value)
@@ -96,6 +115,8 @@ class Conditions:
                     from None
             if not np.isfinite(number):
                 raise InputError(f"{name.replace('_', ' ')} must be a finite number")
+
+    def _check_air(self) -> None:
         low, high = TEMPERATURE_RANGE
         _require(low <= self.temperature <= high,
                  f"temperature must be between {low:g} and {high:g} °C, got {self.temperature:g}")
@@ -106,6 +127,8 @@ class Conditions:
         _require(low <= self.sea_level_pressure <= high,
                  f"sea-level pressure must be between {low:g} and {high:g} Pa "
                  f"(1013 hPa = 101300 Pa), got {self.sea_level_pressure:g}")
+
+    def _check_wind(self) -> None:
         _require(0.0 <= self.wind_speed <= WIND_SPEED_LIMIT,
                  f"wind speed must be between 0 and {WIND_SPEED_LIMIT:g} m/s, "
                  f"got {self.wind_speed:g}")
@@ -127,7 +150,15 @@ class Conditions:
 
     @property
     def wind_at_rider(self) -> float:
-        """Wind speed reduced to rider_height by the log wind profile [m/s]."""
+        """Wind speed reduced to rider_height by the log wind profile [m/s].
+
+        Examples
+        --------
+        5 m/s at 10 m over open grassland is 5·ln(1/0.03)/ln(10/0.03) = 3.018 m/s at 1 m:
+
+        >>> Conditions(wind_speed=5.0).wind_at_rider
+        3.018
+        """
         return float(
             wind_at_height(self.wind_speed, self.wind_height, self.rider_height,
                            self.roughness_length)
@@ -145,10 +176,13 @@ class CourseAir:
 
     Attributes
     ----------
-    density : air density [kg/m³].
-    headwind : wind component against the direction of travel [m/s] (negative = tailwind).
-    crosswind : wind component across the direction of travel [m/s] (positive = from the
-        rider's right).
+    density : numpy.ndarray
+        Air density [kg/m³].
+    headwind : numpy.ndarray
+        Wind component against the direction of travel (negative = tailwind) [m/s].
+    crosswind : numpy.ndarray
+        Wind component across the direction of travel (positive = from the rider's right)
+        [m/s].
     """
 
     density: np.ndarray
@@ -161,39 +195,77 @@ class CourseAir:
             raise ValueError(f"density, headwind and crosswind differ in shape: {shapes}")
 
 
-def piece_elevation(course) -> np.ndarray:
-    """Elevation of each piece: the mean of its end points [m], length N-1."""
+def piece_elevation(course: Course) -> np.ndarray:
+    """Elevation of each piece: the mean of its end points [m].
+
+    Parameters
+    ----------
+    course : pacing.course.geometry.Course
+        The course (elevation per point [m]).
+
+    Returns
+    -------
+    numpy.ndarray
+        Elevation of each piece, length N-1 [m].
+
+    Examples
+    --------
+    >>> from pacing.course.geometry import synthetic_course
+    >>> piece_elevation(synthetic_course([0.0, 500.0, 1000.0], [100.0, 125.0, 120.0])).tolist()
+    [112.5, 122.5]
+    """
     elevation = np.asarray(course.elevation, dtype=float)
     return 0.5 * (elevation[:-1] + elevation[1:])
 
 
-def air_along_course(course, conditions: Conditions, density_model: str = "cipm_2007"):
+def air_along_course(course: Course, conditions: Conditions,
+                     density_model: str = DEFAULT_AIR_DENSITY_MODEL) -> CourseAir:
     """Air density and wind components on every piece of a course.
 
     Parameters
     ----------
-    course : a pacing.course.geometry.Course (elevation per point [m], heading per piece [deg]).
-    conditions : the weather (Conditions).
-    density_model : a key of pacing.physics.air.AIR_DENSITY_MODELS ("cipm_2007" or "ideal_gas").
+    course : pacing.course.geometry.Course
+        The course (elevation per point [m], heading per piece [deg]).
+    conditions : Conditions
+        The weather.
+    density_model : str, optional
+        A key of pacing.physics.air.AIR_DENSITY_MODELS: "cipm-2007" (default) or "ideal-gas";
+        the old spellings "cipm_2007" and "ideal_gas" are accepted [-].
 
     Returns
     -------
-    CourseAir with density [kg/m³], headwind and crosswind [m/s], each of length N-1.
+    CourseAir
+        Density [kg/m³], headwind and crosswind [m/s], each of length N-1.
 
-    Raises InputError where the air is out of the models' range (e.g. a point above the
-    troposphere, or the lapse rate taking the temperature below -60 °C).
+    Raises
+    ------
+    pacing.errors.InputError
+        Where the air is out of the models' range (e.g. a point above the troposphere, or the
+        lapse rate taking the temperature below -60 °C), or for an unknown density model.
+
+    References
+    ----------
+    ICAO (1993), Doc 7488/3; Picard et al. (2008), Metrologia 45:149-155; Stull (1988), ch. 9.
+
+    Examples
+    --------
+    At sea level with the default weather (20 °C, 50 %, 101 325 Pa) every piece has the
+    CIPM-2007 density 1.19931 kg/m³; a 5 m/s north wind at 10 m blows 3.018 m/s against a rider
+    heading north 1 m above open grassland:
+
+    >>> from pacing.course.geometry import synthetic_course
+    >>> course = synthetic_course([0.0, 500.0, 1000.0], [0.0, 0.0, 0.0], heading=0.0)
+    >>> air = air_along_course(course, Conditions(wind_speed=5.0, wind_from=0.0))
+    >>> air.density.round(5).tolist(), air.headwind.round(3).tolist()
+    ([1.19931, 1.19931], [3.018, 3.018])
     """
-    if density_model not in AIR_DENSITY_MODELS:
-        raise InputError(f"unknown air density model {density_model!r}; choose one of "
-                         f"{', '.join(AIR_DENSITY_MODELS)}")
+    model = AIR_DENSITY_MODELS.resolve(density_model)
     elevation = piece_elevation(course)
     pressure = standard_pressure(elevation, conditions.sea_level_pressure)
     temperature = temperature_at_elevation(
         elevation, conditions.temperature, float(course.elevation[0])
     )
-    density = AIR_DENSITY_MODELS[density_model](
-        temperature, pressure, conditions.relative_humidity
-    )
+    density = model(temperature, pressure, conditions.relative_humidity)
     headwind, crosswind = wind_components(
         np.asarray(course.heading, dtype=float), conditions.wind_from, conditions.wind_at_rider
     )
@@ -204,14 +276,28 @@ def air_along_course(course, conditions: Conditions, density_model: str = "cipm_
     )
 
 
-def still_air(course, density: float | None = None) -> CourseAir:
+def still_air(course: Course, density: float | None = None) -> CourseAir:
     """No wind on any piece, and a given density or that of the default Conditions.
 
     Parameters
     ----------
-    course : a pacing.course.geometry.Course.
-    density : air density on every piece [kg/m³]; None means the density of `Conditions()`
-        (20 °C at the start, 50 % humidity, standard pressure) along the course's elevations.
+    course : pacing.course.geometry.Course
+        The course.
+    density : float, optional
+        Air density on every piece; None means the density of `Conditions()` (20 °C at the
+        start, 50 % humidity, standard pressure) along the course's elevations [kg/m³].
+
+    Returns
+    -------
+    CourseAir
+        Density [kg/m³] and zero wind [m/s] on every piece.
+
+    Examples
+    --------
+    >>> from pacing.course.geometry import synthetic_course
+    >>> air = still_air(synthetic_course([0.0, 500.0, 1000.0], [0.0, 0.0, 0.0]), 1.2)
+    >>> air.density.tolist(), air.headwind.tolist()
+    ([1.2, 1.2], [0.0, 0.0])
     """
     pieces = np.asarray(course.elevation).size - 1
     if density is None:
