@@ -21,6 +21,7 @@ from pacing.compare.setups import RiderSetup, break_even, compare_setups, mixed_
 from pacing.course.segments import split_by_grade
 from pacing.io.gpx import demo_route_paths, load_course
 from pacing.physics.cycling import Rider
+from pacing.plan.race import RaceRequest
 from pacing.plan.request import PlanRequest
 from pacing.plan.simulate import simulate
 from pacing.weather.conditions import Conditions, air_along_course
@@ -44,17 +45,18 @@ def main() -> None:
               RiderSetup("aero", Rider(mass=80.0, drag_area=0.25), 0.95),
               RiderSetup("light", Rider(mass=78.0, drag_area=0.33))]
     for strategy in ("constant", "fastest"):
-        request = PlanRequest(strategy=strategy, mean_power=250.0)
-        comparison, took = timed(lambda r=request: compare_setups(course, bounds, setups, air, r))
+        race = RaceRequest(course=course, bounds=bounds, conditions=conditions,
+                           strategy=strategy, rider=rider,
+                           cycling=PlanRequest(strategy=strategy, mean_power=250.0))
+        comparison, took = timed(lambda r=race: compare_setups(r, setups, air=air))
         print(f"{strategy:>8}: 3 setups {took:5.2f} s = {took / one:5.0f} simulations; "
               + ", ".join(f"{r.name} {r.delta:+.1f} s" for r in comparison.results))
-        base = comparison.baseline_result
         for result in comparison.results[1:]:
-            figures, took = timed(lambda r=result, b=base: break_even(course, r, b, air))
+            figures, took = timed(lambda r=result, c=comparison: break_even(c, r))
             print(f"          break-even {result.name}: {took:5.2f} s = {took / one:4.0f} "
                   f"simulations; margin {figures.power_margin:+.1f} W, "
                   f"{figures.drag_area_margin:+.4f} m², {figures.mass_margin:+.2f} kg")
-        mixed, took = timed(lambda c=comparison: mixed_plan(course, c, air))
+        mixed, took = timed(lambda c=comparison: mixed_plan(c))
         if mixed is not None:
             print(f"          mixed plan: {took:5.2f} s; gain {mixed.gain:+.1f} s over "
                   f"{mixed.best_single}")

@@ -2,7 +2,8 @@
 
 JSON: per setup finish_time_s and delta_s (setup − baseline, positive = slower), a
 `sensitivity` object in seconds per step (positive = slower), `break_even` and `uncertainty`
-objects. Bad input: one line on stderr, exit code 2.
+objects, and the analysis's `notices`. Bad input: one line on stderr, exit code 2. The numbers
+are those of the page's view for the same inputs (one analysis, pacing.compare.analysis).
 """
 
 from __future__ import annotations
@@ -23,7 +24,7 @@ SETUP_KEYS = {"name", "cda_m2", "power_share", "mass_kg", "crr", "mean_power_w",
               "finish_time_s", "delta_s", "finish_time_sd_s", "delta_sd_s", "segment_delta_s",
               "sensitivity"}
 TOP_KEYS = {"strategy", "baseline", "distance_m", "setups", "segments", "sensitivity",
-            "break_even", "uncertainty", "mixed"}
+            "break_even", "uncertainty", "mixed", "notices"}
 
 
 @pytest.fixture(scope="module")
@@ -141,3 +142,70 @@ def test_other_bad_input_gives_one_line_and_exit_2(capsys, route, argv, message)
     code = main(["compare", route, *argv, *FAST])
     err = capsys.readouterr().err
     assert code == 2 and message in err and err.count("\n") == 1
+
+
+def test_a_setup_that_overdraws_w_prime_is_told_in_json_and_on_stderr(capsys, route):
+    code = main(["compare", route, "--setup", "hoods:cda=0.32", "--setup",
+                 "aero:cda=0.25,power=0.95", "--power", "320", "--cp", "250", "--w-prime",
+                 "8000", "--no-break-even", *FAST, "--json"])
+    captured = capsys.readouterr()
+    assert code == 0
+    notices = json.loads(captured.out)["notices"]
+    assert [(n["code"], n["level"], n["values"]["label"]) for n in notices] == [
+        ("setup-w-prime-exhausted", "warning", "hoods"),
+        ("setup-w-prime-exhausted", "warning", "aero")]
+    assert notices[0]["text"].startswith("setup hoods: W′ runs out at")
+    warned = [line for line in captured.err.splitlines() if line.startswith("pacing: warning:")]
+    assert len(warned) == 2 and "setup aero" in warned[1]
+
+
+def test_notes_are_printed_under_the_table(capsys, route):
+    code = main(["compare", route, *TWO, "--power", "250", "--samples", "2",
+                 "--no-break-even", *FAST])
+    out = capsys.readouterr().out
+    assert code == 0
+    # calm forecast, wind ± 1 m/s: half the draws would blow from behind, so they are cut
+    assert "note: about 50% of the 2 Monte Carlo draws of the wind speed" in out
+
+
+def test_the_command_line_and_the_page_give_the_same_numbers(capsys, route):
+    """The same course, athlete, weather, plan and setups, once through the command line and
+    once as the page builds them (ui.comparison), give the same numbers to the last bit."""
+    import sys
+    from pathlib import Path
+
+    sys.path.insert(0, str(Path(__file__).resolve().parents[1]))  # the app's ui/ package
+    from pacing.compare.analysis import analyse_setups
+    from pacing.course.segments import split_by_grade
+    from pacing.io.gpx import load_course
+    from ui import comparison
+
+    data = run_json(capsys, route, "--step", "100", "--mass", "80", "--cda", "0.30",
+                    "--crr", "0.004", "--cp", "280", "--w-prime", "20000", "--power", "220",
+                    "--strategy", "fastest", "--max-power-ratio", "1.15",
+                    "--w-prime-reserve", "2000", "--wind-speed", "3", "--wind-from", "270",
+                    "--setup", "as entered:cda=0.3",
+                    "--setup", "lower position:cda=0.264,power=0.95",
+                    "--setup", "lighter bike:cda=0.305,mass=78.5", "--no-break-even")
+    course = load_course(route, step=100.0)
+    athlete = {"sport": "cycling", "body_mass": 72.0, "bike_mass": 8.0,
+               "critical_power": 280.0, "w_prime": 20000.0, "drag_area": 0.30,
+               "rolling_coefficient": 0.004, "drivetrain_efficiency": 0.976}
+    approach = {"strategy": "constant", "mean_power": 220.0, "max_power_ratio": 1.15,
+                "w_prime_reserve": 2000.0}
+    race = comparison.page_race(course, split_by_grade(course), athlete,
+                                {"wind_speed": 3.0, "wind_from": 270.0}, approach)
+    rows = comparison.default_setup_rows(race.rider, 72.0, "metric")
+    setups = comparison.setups_from_rows(rows, race.rider, 72.0, "metric")
+    page = analyse_setups(comparison.comparison_race(race, "fastest", 220.0), setups,
+                          break_even_figures=False)
+    assert [s["name"] for s in data["setups"]] == [r.name for r in page.comparison.results]
+    for shown, result in zip(data["setups"], page.comparison.results, strict=True):
+        assert shown["finish_time_s"] == result.finish_time
+        assert shown["delta_s"] == result.delta
+        assert shown["segment_delta_s"] == list(result.segment_delta)
+        assert shown["finish_time_sd_s"] == page.finish_time_spreads[result.name].standard_deviation
+        assert shown["sensitivity"]["s_per_0_01_cda"] == page.sensitivities[result.name].drag_area
+    assert (data["mixed"] is None) == (page.mixed is None)
+    if page.mixed is not None:
+        assert data["mixed"]["finish_time_s"] == page.mixed.finish_time

@@ -1,6 +1,6 @@
-"""Specification of pacing.compare.setups (setups side by side, break-even, mixed positions) and
-pacing.compare.sensitivity (finite-difference sensitivities, uncertainty of times and
-differences)."""
+"""Specification of pacing.compare.setups (setups side by side through the planning chain,
+break-even, mixed positions) and pacing.compare.sensitivity (finite-difference sensitivities,
+uncertainty of times and differences)."""
 
 from __future__ import annotations
 
@@ -29,17 +29,27 @@ from pacing.compare.setups import (
     from_athlete,
     mix_candidates,
     mixed_plan,
+    setup_race,
 )
 from pacing.constants import STANDARD_GRAVITY
 from pacing.course.geometry import synthetic_course
 from pacing.errors import InputError
 from pacing.physics.cycling import MARTIN_1998, Rider
 from pacing.plan.prediction import SimulationOptions, speed_limits
+from pacing.plan.race import RaceRequest, plan_race_in_air
 from pacing.plan.request import PlanRequest
 from pacing.plan.simulate import simulate
 from pacing.weather.conditions import Conditions, air_along_course, still_air
 
 CONSTANT_250 = PlanRequest(strategy="constant", mean_power=250.0)
+
+
+def race_on(course, bounds, request: PlanRequest = CONSTANT_250, conditions=None,
+            options=None) -> RaceRequest:
+    """The race request every setup rides (its rider is replaced by each setup's)."""
+    return RaceRequest(course=course, bounds=np.asarray(bounds),
+                       conditions=conditions or Conditions(), strategy=request.strategy,
+                       rider=Rider(), cycling=request, options=options or SimulationOptions())
 
 
 def flat_course(length: float = 10_000.0, step: float = 10.0):
@@ -60,7 +70,7 @@ HILL_BOUNDS = np.array([0, 200, 400, 600])
 def steady_speed(power, drag_area, mass, density, rolling=MARTIN_1998["rolling_coefficient"]):
     """Independent steady speed on flat ground in still air: scipy brentq on
     η·P = v·(½ρ(CdA + F_w)v² + Crr·m·g + a + b·v) (Martin et al. 1998, constants of its
-    Table / REFERENCES.md)."""
+    Table; docs/references.md, "Cycling power balance (Martin et al. 1998)")."""
     m = MARTIN_1998
 
     def balance(v):
@@ -78,7 +88,7 @@ def test_every_setup_rides_the_same_request_scaled_by_its_power_share():
     air = still_air(course, 1.2)
     setups = [RiderSetup("hoods", Rider(mass=80, drag_area=0.32)),
               RiderSetup("aero", Rider(mass=80, drag_area=0.25), power_share=0.9)]
-    comparison = compare_setups(course, HILL_BOUNDS, setups, air, CONSTANT_250)
+    comparison = compare_setups(race_on(course, HILL_BOUNDS), setups, air=air)
     hoods, aero = comparison.results
     assert hoods.plan.piece_power == pytest.approx(250.0)
     assert aero.plan.piece_power == pytest.approx(225.0)
@@ -98,7 +108,7 @@ def test_the_fastest_strategy_is_planned_for_each_setup_at_its_own_power():
     setups = [RiderSetup("hoods", Rider(mass=80, drag_area=0.32)),
               RiderSetup("aero", Rider(mass=80, drag_area=0.25), power_share=0.9)]
     request = PlanRequest(strategy="fastest", mean_power=250.0, max_power_ratio=1.5)
-    comparison = compare_setups(course, np.array([0, 40, 80, 120]), setups, air, request)
+    comparison = compare_setups(race_on(course, [0, 40, 80, 120], request), setups, air=air)
     hoods, aero = comparison.results
     # the plan's verified time-weighted mean power is matched to the scaled request
     assert hoods.mean_power == pytest.approx(250.0, rel=1e-3)
@@ -111,7 +121,7 @@ def test_baseline_can_be_chosen_by_name_and_the_fastest_is_found():
     course = hill_course()
     air = still_air(course, 1.2)
     setups = [RiderSetup(f"s{i}", Rider(mass=80, drag_area=0.20 + 0.02 * i)) for i in range(6)]
-    comparison = compare_setups(course, HILL_BOUNDS, setups, air, CONSTANT_250, baseline="s3")
+    comparison = compare_setups(race_on(course, HILL_BOUNDS), setups, "s3", air=air)
     assert comparison.baseline_result.name == "s3"
     assert comparison.fastest.name == "s0"
     deltas = [r.delta for r in comparison.results]
@@ -141,8 +151,61 @@ def test_setups_from_the_athlete_and_setup_records():
 def test_bad_comparisons_are_refused_with_one_line(setups, baseline, request_, message):
     course = hill_course()
     with pytest.raises(InputError, match=message) as error:
-        compare_setups(course, HILL_BOUNDS, setups, still_air(course, 1.2), request_, baseline)
+        compare_setups(race_on(course, HILL_BOUNDS, request_), setups, baseline,
+                       air=still_air(course, 1.2))
     assert "\n" not in str(error.value)
+
+
+def test_each_setup_rides_the_planning_chain_with_its_own_rider_and_power_share():
+    """The setup's request is the race's with its rider, and mean power and CP times its
+    power share (W′ is the athlete's whatever the position); its result is the chain's."""
+    course = hill_course()
+    air = still_air(course, 1.2)
+    request = PlanRequest(strategy="constant", mean_power=250.0, critical_power=260.0,
+                          w_prime=20000.0)
+    race = race_on(course, HILL_BOUNDS, request)
+    aero = RiderSetup("aero", Rider(mass=78, drag_area=0.25), power_share=0.9)
+    own = setup_race(race, aero)
+    assert own.rider is aero.rider and own.course is course
+    assert own.cycling.mean_power == pytest.approx(225.0)
+    assert own.cycling.critical_power == pytest.approx(234.0)
+    assert own.cycling.w_prime == 20000.0
+    comparison = compare_setups(race, [RiderSetup("hoods", Rider(mass=78, drag_area=0.32)),
+                                       aero], air=air)
+    chained = plan_race_in_air(own, air)
+    assert comparison.result("aero").finish_time == chained.finish_time
+    assert comparison.result("aero").plan.piece_power == pytest.approx(chained.plan.piece_power)
+    assert comparison.strategy == "constant" and comparison.air is air
+
+
+def test_every_setup_result_carries_the_chain_notices():
+    """300 W against a CP of 250 W and a W′ of 5 kJ on 6 km: W′ runs out for every setup
+    (the power share scales power and CP alike); at 240 W it never does."""
+    course = hill_course()
+    air = still_air(course, 1.2)
+    setups = [RiderSetup("hoods", Rider(mass=80, drag_area=0.32)),
+              RiderSetup("aero", Rider(mass=80, drag_area=0.25), power_share=0.95)]
+    over = PlanRequest(strategy="constant", mean_power=300.0, critical_power=250.0,
+                       w_prime=5000.0)
+    comparison = compare_setups(race_on(course, HILL_BOUNDS, over), setups, air=air)
+    for result in comparison.results:
+        exhausted = [n for n in result.notices if n.code == "w-prime-exhausted"]
+        assert len(exhausted) == 1 and exhausted[0].level == "warning"
+        assert 0.0 < exhausted[0].values["distance_m"] < 6000.0
+    within = dataclasses.replace(over, mean_power=240.0)
+    comparison = compare_setups(race_on(course, HILL_BOUNDS, within), setups, air=air)
+    assert all(not r.notices for r in comparison.results)
+
+
+def test_only_cycling_requests_are_compared():
+    from pacing.physics.running import Runner
+
+    course = hill_course()
+    race = RaceRequest(course=course, bounds=HILL_BOUNDS, conditions=Conditions(),
+                       sport="running", strategy="equal-effort",
+                       runner=Runner.from_body(64.0, height=1.75))
+    with pytest.raises(InputError, match="cycling"):
+        compare_setups(race, [RiderSetup("a", Rider())])
 
 
 def test_a_power_share_out_of_range_is_refused():
@@ -154,7 +217,8 @@ def test_defraeye_positions_over_40_km_match_a_hand_calculation():
     """Published position CdAs turned into time over 40 km at 250 W, flat, still air.
 
     CdA upright 0.270, dropped 0.243, time-trial 0.216 m²: Defraeye et al. 2010, J Biomech
-    43:1262 — values FROM MEMORY (REFERENCES.md marks them [mem]; the abstract we could find
+    43:1262 — values FROM MEMORY (docs/references.md, "Typical CdA, Crr, drafting" marks them
+    [mem]; the abstract we could find
     does not print them), so this checks our arithmetic on the cited positions, not the paper.
     Hand calculation: steady speed by scipy brentq on the Martin et al. 1998 cubic, T = L/v.
     The simulation starts from rest; the start costs each setup slightly different time, so
@@ -164,7 +228,7 @@ def test_defraeye_positions_over_40_km_match_a_hand_calculation():
     air = still_air(course, 1.2)
     positions = {"upright": 0.270, "dropped": 0.243, "time-trial": 0.216}
     setups = [RiderSetup(name, Rider(mass=80, drag_area=cda)) for name, cda in positions.items()]
-    comparison = compare_setups(course, np.array([0, 4000]), setups, air, CONSTANT_250)
+    comparison = compare_setups(race_on(course, [0, 4000]), setups, air=air)
     hand = {name: 40_000.0 / steady_speed(250.0, cda, 80.0, 1.2)
             for name, cda in positions.items()}
     for result in comparison.results[1:]:
@@ -248,9 +312,9 @@ def test_break_even_power_agrees_with_a_direct_search_on_the_simulation():
     air = still_air(course, 1.2)
     setups = [RiderSetup("hoods", Rider(mass=80, drag_area=0.32)),
               RiderSetup("aero", Rider(mass=80, drag_area=0.26), power_share=0.95)]
-    comparison = compare_setups(course, HILL_BOUNDS, setups, air, CONSTANT_250)
+    comparison = compare_setups(race_on(course, HILL_BOUNDS), setups, air=air)
     hoods, aero = comparison.results
-    result = break_even(course, aero, hoods, air)
+    result = break_even(comparison, aero)
     # direct search: bisection on the constant power of the aero setup until it ties
     aero_rider = setups[1].rider
 
@@ -272,9 +336,9 @@ def test_a_heavier_setup_must_save_cda_to_pay_for_its_mass():
     air = still_air(course, 1.2)
     setups = [RiderSetup("light", Rider(mass=78, drag_area=0.30)),
               RiderSetup("heavy", Rider(mass=80, drag_area=0.30))]
-    comparison = compare_setups(course, HILL_BOUNDS, setups, air, CONSTANT_250)
+    comparison = compare_setups(race_on(course, HILL_BOUNDS), setups, air=air)
     light, heavy = comparison.results
-    result = break_even(course, heavy, light, air)
+    result = break_even(comparison, heavy)
     assert result.drag_area_margin < 0
     assert result.mass == pytest.approx(78.0, abs=0.01)
     tied = simulate(course, 250.0, dataclasses.replace(heavy.setup.rider,
@@ -296,7 +360,7 @@ def test_lower_cda_at_the_same_power_stays_faster_whatever_wind_and_mass(
     air = air_along_course(course, Conditions(wind_speed=wind_speed, wind_from=wind_from))
     setups = [RiderSetup("base", Rider(mass=mass, drag_area=cda)),
               RiderSetup("lower", Rider(mass=mass, drag_area=cda - saving))]
-    comparison = compare_setups(course, HILL_BOUNDS, setups, air, CONSTANT_250)
+    comparison = compare_setups(race_on(course, HILL_BOUNDS), setups, air=air)
     lower = comparison.result("lower")
     assert lower.delta < 0
     assert np.all(lower.segment_delta < 1e-9)
@@ -309,7 +373,7 @@ def test_more_power_share_is_never_slower(share, wind_speed):
     air = air_along_course(course, Conditions(wind_speed=wind_speed, wind_from=270.0))
     setups = [RiderSetup("full", Rider(drag_area=0.3)),
               RiderSetup("less", Rider(drag_area=0.3), power_share=share)]
-    comparison = compare_setups(course, HILL_BOUNDS, setups, air, CONSTANT_250)
+    comparison = compare_setups(race_on(course, HILL_BOUNDS), setups, air=air)
     assert comparison.result("less").delta > 0
 
 
@@ -379,8 +443,8 @@ def test_the_mixed_plan_rides_upright_on_the_climb_and_is_verified_faster():
     bounds = np.array([0, 400, 600, 900])
     setups = [RiderSetup("upright", Rider(mass=78, drag_area=0.33)),
               RiderSetup("aero", Rider(mass=78, drag_area=0.24), power_share=0.88)]
-    comparison = compare_setups(course, bounds, setups, air, CONSTANT_250)
-    mixed = mixed_plan(course, comparison, air)
+    comparison = compare_setups(race_on(course, bounds), setups, air=air)
+    mixed = mixed_plan(comparison)
     assert mixed.names == ("aero", "upright", "aero")
     assert mixed.faster and mixed.gain > 0
     assert mixed.finish_time < min(r.finish_time for r in comparison.results)
@@ -393,8 +457,8 @@ def test_no_mixed_plan_without_two_positions_of_one_bike():
     air = still_air(course, 1.2)
     setups = [RiderSetup("a", Rider(mass=78, drag_area=0.3)),
               RiderSetup("b", Rider(mass=82, drag_area=0.25))]
-    comparison = compare_setups(course, HILL_BOUNDS, setups, air, CONSTANT_250)
-    assert mixed_plan(course, comparison, air) is None
+    comparison = compare_setups(race_on(course, HILL_BOUNDS), setups, air=air)
+    assert mixed_plan(comparison) is None
 
 
 def test_per_piece_drag_area_in_simulate_matches_riding_by_segments():
@@ -419,8 +483,8 @@ def test_the_mixed_ride_equals_each_segment_ridden_by_its_own_setup():
     setups = [RiderSetup("upright", Rider(mass=78, drag_area=0.33, yaw_drag_table=table)),
               RiderSetup("aero", Rider(mass=78, drag_area=0.24, yaw_drag_table=table),
                          power_share=0.88)]
-    comparison = compare_setups(course, bounds, setups, air, CONSTANT_250)
-    mixed = mixed_plan(course, comparison, air)
+    comparison = compare_setups(race_on(course, bounds), setups, air=air)
+    mixed = mixed_plan(comparison)
     assert set(mixed.names) == {"upright", "aero"}  # both positions are used
     riders = [comparison.result(name).setup.rider for name in mixed.names]
     time, speed, braking = ride_by_segments(course, bounds, riders, mixed.piece_power, air)
@@ -442,14 +506,14 @@ def test_only_setups_that_differ_in_drag_area_alone_are_mixed():
                          power_share=0.95),
               RiderSetup("slick", Rider(mass=80, drag_area=0.25, rolling_coefficient=0.0025),
                          power_share=0.95)]
-    comparison = compare_setups(course, HILL_BOUNDS, setups, air, CONSTANT_250)
+    comparison = compare_setups(race_on(course, HILL_BOUNDS), setups, air=air)
     assert comparison.fastest.name == "slick"  # same CdA as aero, less rolling resistance
     assert [r.name for r in mix_candidates(comparison)] == ["slick"]
-    assert mixed_plan(course, comparison, air) is None
-    mixed = mixed_plan(course, comparison, air, candidates=["hoods", "aero"])
+    assert mixed_plan(comparison) is None
+    mixed = mixed_plan(comparison, candidates=["hoods", "aero"])
     assert mixed.candidates == ("hoods", "aero")
     with pytest.raises(InputError, match="differ in more than CdA") as error:
-        mixed_plan(course, comparison, air, candidates=["aero", "deep"])
+        mixed_plan(comparison, candidates=["aero", "deep"])
     assert "\n" not in str(error.value)
 
 

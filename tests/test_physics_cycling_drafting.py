@@ -3,7 +3,7 @@
 pacing.physics.cycling.Rider(drafting_reduction=d) removes the share d of the rider's own drag area
 (CdA of rider and bike) and leaves Martin's rotating-wheel term F_w as it is::
 
-    F_aero = ½·ρ·(CdA·k(β)·(1 − d) + F_w)·V·v_a        (pacing/cycling.py, aerodynamic_force)
+    F_aero = ½·ρ·(CdA·k(β)·(1 − d) + F_w)·V·v_a        (pacing.physics.cycling.aerodynamic_force)
 
 So the CdA part of the air drag falls by exactly d, and the whole air drag by d·CdA/(CdA + F_w)
 (26.7 % instead of 27.1 % for an upright CdA of 0.270 m²): the model does not apply the
@@ -46,13 +46,15 @@ from pacing.course.geometry import synthetic_course
 from pacing.errors import InputError
 from pacing.physics.cycling import MARTIN_1998, Rider, aerodynamic_force, power_for_speed
 from pacing.plan.prediction import REAR_WHEEL_LOAD_SHARE, TYRE_ROAD_FRICTION, SimulationOptions
+from pacing.plan.race import RaceRequest
 from pacing.plan.request import PlanRequest
 from pacing.plan.simulate import simulate
 from pacing.weather.conditions import Conditions, air_along_course, still_air
 
 # Trailing rider at 0.01 m spacing: Blocken et al. 2013, Computers & Fluids 71:435 (abstract).
 # Each reduction is paired with a drag area of that position, Defraeye et al. 2010
-# (J Biomech 43:1262) via REFERENCES.md, FROM MEMORY: they only set a plausible scale; no check
+# (J Biomech 43:1262) via docs/references.md, "Typical CdA, Crr", FROM MEMORY: they only set a
+# plausible scale; no check
 # below depends on their exact values.
 BLOCKEN_2013_TRAILING = {
     "upright": (0.270, 0.271),
@@ -88,7 +90,7 @@ def wheel_force(speed, density, apparent, along):
 def steady_speed(power, drag_area, drafting, mass=MASS, density=DENSITY):
     """Steady speed on flat ground in still air [m/s]: brentq on the cubic of Martin et al.
     (1998), η·P = v·(½ρ(CdA·(1 − d) + F_w)·v² + Crr·m·g + a + b·v), with the constants of
-    Martin et al. (1998) (REFERENCES.md)."""
+    Martin et al. (1998) (docs/references.md, "Cycling power balance (Martin et al. 1998)")."""
     area = drag_area * (1.0 - drafting) + M["wheel_drag_area"]
 
     def balance(v):
@@ -249,6 +251,15 @@ def test_time_value_from_a_standing_start_matches_the_equation_of_motion(positio
 
 # ------------------------------------------------------------------ (c) compare_setups
 
+def constant_power_race(course, options=None):
+    """The race every setup rides: constant POWER on the whole course as one segment (the
+    rider is replaced by each setup's)."""
+    return RaceRequest(course=course, bounds=np.array([0, len(course.distance) - 1]),
+                       conditions=Conditions(), strategy="constant", rider=Rider(mass=MASS),
+                       cycling=PlanRequest(strategy="constant", mean_power=POWER),
+                       options=options or SimulationOptions())
+
+
 def test_compare_ranks_the_drafting_setup_faster_by_the_expected_seconds():
     """compare_setups, constant 400 W on 4 km from rest: the trailing rider of Blocken et al.
     2013 (upright, −27.1 %) is the fastest setup, and its delta is the time saved from the
@@ -259,8 +270,7 @@ def test_compare_ranks_the_drafting_setup_faster_by_the_expected_seconds():
     setups = [RiderSetup("alone", Rider(mass=MASS, drag_area=drag_area)),
               RiderSetup("behind", Rider(mass=MASS, drag_area=drag_area,
                                          drafting_reduction=reduction))]
-    comparison = compare_setups(course, [0, len(course.distance) - 1], setups, air,
-                                PlanRequest(strategy="constant", mean_power=POWER))
+    comparison = compare_setups(constant_power_race(course), setups, air=air)
     assert comparison.fastest.name == "behind"
     behind = comparison.result("behind")
     expected = (standing_start_time(POWER, drag_area, reduction)
@@ -282,9 +292,9 @@ def test_compare_with_a_flying_start_gives_the_steady_time_value():
     setups = [RiderSetup("alone", Rider(mass=MASS, drag_area=drag_area)),
               RiderSetup("behind", Rider(mass=MASS, drag_area=drag_area,
                                          drafting_reduction=reduction))]
-    comparison = compare_setups(course, [0, len(course.distance) - 1], setups, air,
-                                PlanRequest(strategy="constant", mean_power=POWER),
-                                options=SimulationOptions(start_speed=alone_speed))
+    comparison = compare_setups(
+        constant_power_race(course, SimulationOptions(start_speed=alone_speed)), setups,
+        air=air)
     steady_saving = DISTANCE / alone_speed - DISTANCE / steady_speed(POWER, drag_area,
                                                                      reduction)
     assert comparison.result("alone").finish_time == pytest.approx(DISTANCE / alone_speed,
@@ -305,9 +315,8 @@ def test_compare_orders_team_pursuit_positions_as_their_published_reductions():
     setups = [RiderSetup(name, Rider(mass=MASS, drag_area=drag_area,
                                      drafting_reduction=reduction))
               for name, reduction in FITTON_2018_TEAM_PURSUIT.items()]
-    comparison = compare_setups(course, [0, len(course.distance) - 1], setups, air,
-                                PlanRequest(strategy="constant", mean_power=POWER),
-                                baseline="position 1")
+    comparison = compare_setups(constant_power_race(course), setups, baseline="position 1",
+                                air=air)
     by_time = [result.name for result in sorted(comparison.results,
                                                 key=lambda r: r.finish_time)]
     by_reduction = sorted(FITTON_2018_TEAM_PURSUIT, key=lambda name: -FITTON_2018_TEAM_PURSUIT[

@@ -61,15 +61,20 @@ BODY_MASS = 72.0
 
 @pytest.fixture(scope="module")
 def report(hill_road):
+    """The comparison the view shows (pacing.compare.analysis.analyse_setups) of its default
+    setups at an even 220 W."""
+    from pacing.compare.analysis import analyse_setups
     from pacing.compare.sensitivity import Uncertainty
+    from pacing.plan.race import RaceRequest
     from pacing.plan.request import PlanRequest
 
     course, bounds, air, conditions = hill_road
     rows = comparison.default_setup_rows(BASE_RIDER, BODY_MASS, "metric")
     setups = comparison.setups_from_rows(rows, BASE_RIDER, BODY_MASS, "metric")
-    return comparison.analyse_setups(
-        course, bounds, air, setups, PlanRequest(strategy="constant", mean_power=220.0),
-        conditions, Uncertainty(drag_area=0.005, rolling_coefficient=0.0003, mass=0.5, wind=1.0))
+    race = RaceRequest(course=course, bounds=bounds, conditions=conditions, rider=BASE_RIDER,
+                       cycling=PlanRequest(strategy="constant", mean_power=220.0))
+    return analyse_setups(race, setups, uncertainty=Uncertainty(
+        drag_area=0.005, rolling_coefficient=0.0003, mass=0.5, wind=1.0), air=air)
 
 
 def no_failure(app: AppTest) -> None:
@@ -248,8 +253,46 @@ class TestComparisonHelpers:
         assert comparison_tables.verdict(5.0, 3.0) == "within the uncertainty"
 
 
+PAGE_ATHLETE = {"sport": "cycling", "body_mass": 72.0, "bike_mass": 8.0, "critical_power": 280.0,
+                "w_prime": 20000.0, "drag_area": 0.30, "rolling_coefficient": 0.004,
+                "drivetrain_efficiency": 0.976}
+PAGE_LIMITS = {"max_power_ratio": 1.15, "w_prime_reserve": 2000.0,
+               "allow_zero_on_descents": False}
+
+
+def test_the_setups_ride_the_same_limits_whatever_the_page_plan(hill_road):
+    """The setups ride the page's own race request (ui.pipeline.race_request): whether the
+    page plans even power, the quickest race or a target time, "quickest within the limits"
+    uses the athlete's CP and W′ and the page's power ratio and W′ reserve, and only the
+    strategy, the mean power and the target time change."""
+    import dataclasses
+
+    course, bounds, _, _ = hill_road
+    weather = {"wind_speed": 3.0, "wind_from": 270.0}
+    approaches = [{"strategy": "constant", "mean_power": 240.0, **PAGE_LIMITS},
+                  {"strategy": "fastest", "mean_power": 240.0, **PAGE_LIMITS},
+                  {"strategy": "target-time", "target_time": 4000.0, **PAGE_LIMITS}]
+    rides = [comparison.comparison_race(
+        comparison.page_race(course, bounds, PAGE_ATHLETE, weather, approach), "fastest", 240.0)
+        for approach in approaches]
+    for ride in rides:
+        assert ride.strategy == ride.cycling.strategy == "fastest"
+        assert ride.cycling == rides[0].cycling
+        assert repr(ride.rider) == repr(rides[0].rider)
+        assert ride.conditions == rides[0].conditions
+    asked = rides[0].cycling
+    assert (asked.critical_power, asked.w_prime) == (280.0, 20000.0)
+    assert (asked.max_power_ratio, asked.w_prime_reserve) == (1.15, 2000.0)
+    assert asked.mean_power == 240.0 and asked.target_time is None
+    page = comparison.page_race(course, bounds, PAGE_ATHLETE, weather, approaches[0])
+    without_cp = dataclasses.replace(page, cycling=dataclasses.replace(
+        page.cycling, critical_power=None, w_prime=None))
+    with pytest.raises(InputError, match="critical power"):
+        comparison.comparison_race(without_cp, "fastest", 240.0)
+
+
 def comparison_page(sport: str = "cycling", strategy: str = "constant",
-                    system: str = "metric"):
+                    system: str = "metric", mean_power: float = 240.0):
     import sys
     from pathlib import Path
 
@@ -275,7 +318,7 @@ def comparison_page(sport: str = "cycling", strategy: str = "constant",
     athlete = {"sport": sport, "body_mass": 72.0, "bike_mass": 8.0, "critical_power": 280.0,
                "w_prime": 20000.0, "drag_area": 0.30, "rolling_coefficient": 0.004,
                "drivetrain_efficiency": 0.976}
-    approach = ({"strategy": strategy, "mean_power": 240.0} if strategy != "target-time"
+    approach = ({"strategy": strategy, "mean_power": mean_power} if strategy != "target-time"
                 else {"strategy": strategy, "target_time": 4000.0})
     render_comparison_for_page(course, bounds, athlete, {"wind_speed": 3.0, "wind_from": 270.0},
                                approach, system)
@@ -303,6 +346,19 @@ def test_comparison_view_handles_running_and_target_time(sport, strategy, shows)
     app.run()
     no_failure(app)
     assert getattr(app, shows)
+
+
+def test_comparison_view_says_which_setups_overdraw_w_prime():
+    """330 W against the athlete's CP of 280 W: every setup's plan runs W′ dry, and the view
+    says so per setup, beside the numbers (the analysis's notices, in words)."""
+    app = AppTest.from_function(comparison_page, default_timeout=180,
+                                kwargs={"mean_power": 330.0})
+    app.session_state["cmp_break_even"] = False
+    app.run()
+    no_failure(app)
+    warned = [w.value for w in app.warning]
+    for name in ("as entered", "lower position", "lighter bike"):
+        assert any(text.startswith(f"setup {name}: W′ runs out at") for text in warned)
 
 
 def test_comparison_view_in_imperial_units():
@@ -344,6 +400,20 @@ def test_page_values_use_the_page_keys():
     assert values["body_mass"] == 61.0 and values["drag_area"] == 0.23
     assert values["bike_mass"] == 9.0 and "flat_pace" not in values  # unknowns left out
     assert set(values) <= set(library_data.PAGE_WIDGETS) | {"power_share", "flat_pace"}
+
+
+def test_a_saved_plan_says_which_pacing_made_it(monkeypatch):
+    import types
+
+    import pacing
+
+    monkeypatch.setattr(pacing, "__version__", "0.2.0")
+    same = types.SimpleNamespace(library_version="0.2.0")
+    older = types.SimpleNamespace(library_version="0.1.0")
+    assert library_data.version_caption(same) == "made with pacing 0.2.0"
+    caption = library_data.version_caption(older)
+    assert caption.startswith("made with pacing 0.1.0; this is pacing 0.2.0")
+    assert "other numbers" in caption
 
 
 def library_page(location: str):
@@ -395,6 +465,8 @@ def library_state(path) -> dict:
 
 
 def test_library_saves_lists_reopens_and_deletes_only_when_confirmed(tmp_path):
+    import pacing
+
     path = str(tmp_path / "library.sqlite3")
     app = AppTest.from_function(library_page, default_timeout=180, args=(path,))
     app.run()
@@ -409,6 +481,8 @@ def test_library_saves_lists_reopens_and_deletes_only_when_confirmed(tmp_path):
     no_failure(app)
     plans = next(f.value for f in app.dataframe if "Plan" in f.value.columns)
     assert list(plans["Plan"]) == ["race day"]
+    assert list(plans["Made with pacing"]) == [pacing.__version__]
+    assert any(c.value == f"made with pacing {pacing.__version__}" for c in app.caption)
     state = library_state(path)
     assert len(state["plans"]) == 1 and len(state["courses"]) == 1
     assert state["plans"][0]["inputs"]["athlete_id"] == state["athletes"][0]["id"]
@@ -574,6 +648,24 @@ def test_two_positions_differ_significantly():
     assert len(lines) == 1 and "a real difference" in lines[0]
 
 
+def test_notes_of_reading_a_ride_are_notices_shown_with_its_label():
+    from pacing.display.notices import describe
+    from pacing.weather.conditions import Conditions
+
+    frame = pd.read_csv(io.BytesIO(loop_ride_csv()))
+    frame.loc[300:304, "speed_mps"] = 0.0  # a stop of 5 samples
+    files = [("stop.csv", frame.to_csv(index=False).encode(), "hoods")]
+    run = fieldtest_panel.run_fieldtest(files, 80.0, Conditions(), "loop", bootstrap=0)
+    ((label, notice),) = run.notes
+    assert label == "hoods" and notice.code == "test-ride-stops-dropped"
+    assert fieldtest_panel.note_lines(run.notes, "metric") == [
+        "hoods: dropped 5 samples slower than 1 m/s (stops); the energy balance restarts "
+        "after each"]
+    # 1 mph = 0.44704 m/s exactly (NIST SP 811 (2008), App. B.8): 1 m/s = 2.2 mph
+    assert "slower than 2.2 mph" in fieldtest_panel.note_lines(run.notes, "imperial")[0]
+    assert all(describe(w) for w in run.result.warnings)
+
+
 @pytest.mark.parametrize("files, words", [
     ([], "upload at least one"),
     ([("ride.csv", b"time_s,speed_mps\n1,2\n", "x")], "missing column"),
@@ -615,6 +707,12 @@ def test_fieldtest_panel_measures_an_uploaded_ride_and_makes_a_setup():
     cda = next(m.value for m in app.metric if m.label.startswith("CdA"))
     assert cda.endswith(" m²") and float(cda.split()[0]) == pytest.approx(0.30, abs=0.006)
     assert len(app.get("plotly_chart")) == 1
+    # the method menu is the registry of pacing.fieldtest.methods, in its words
+    from pacing.fieldtest.methods import FIELD_TEST_METHODS
+
+    menu = app.radio(key="ft_method")
+    assert list(menu.options) == [m.label for m in FIELD_TEST_METHODS.values()]
+    assert menu.value == "loop"
     app.button(key="ft_make_setup").click().run()
     made = app.session_state["made"]
     assert made.drag_area == pytest.approx(0.30, rel=0.02) and made.name == "hoods"
@@ -776,7 +874,7 @@ def test_running_notes_show_paces_per_mile_in_imperial():
 
 def test_the_road_test_says_its_cda_leaves_out_the_wheel_and_bearing_terms():
     # Review 2, finding 9. F_w = 0.0044 m² is Martin et al. (1998)'s rotating-wheel term
-    # (REFERENCES.md, cycling power balance).
+    # (docs/references.md, "Cycling power balance (Martin et al. 1998)").
     note = fieldtest_panel.road_test_cda_note()
     assert "F_w = 0.0044 m²" in note and "bearing" in note and "Martin et al." in note
     assert "wind-tunnel" in note

@@ -1,7 +1,7 @@
 """Plotly figures of the "setups side by side" view (ui.comparison): ranked differences, the
 gap along the course, the position chosen on each segment.
 
-Pure helpers over a ui.comparison.SetupsReport (no Streamlit).
+Pure helpers over a pacing.compare.analysis.SetupsAnalysis (no Streamlit).
 """
 
 from __future__ import annotations
@@ -15,7 +15,7 @@ from pacing.display.units import to_display, unit_label
 from ui.comparison_tables import signed_time
 
 if TYPE_CHECKING:
-    from ui.comparison import SetupsReport
+    from pacing.compare.analysis import SetupsAnalysis
 
 FASTER_COLOR = "#1b7f79"
 SLOWER_COLOR = "#b5542c"
@@ -36,16 +36,26 @@ def _layout(figure: go.Figure, height: int, legend: bool = False) -> go.Figure:
     return figure
 
 
-def difference_figure(report: SetupsReport) -> go.Figure:
+def difference_figure(report: SetupsAnalysis) -> go.Figure:
     """Ranked horizontal bars of each setup's finish-time difference to the baseline [s],
-    fastest on top, with ± 1σ whiskers (difference_spread); teal = faster, rust = slower."""
+    fastest on top, with ± 1σ whiskers (difference_spread); teal = faster, rust = slower.
+
+    Parameters
+    ----------
+    report : SetupsAnalysis
+        The comparison's analysis.
+
+    Returns
+    -------
+    plotly.graph_objects.Figure
+    """
     comparison = report.comparison
     base = comparison.baseline_result
     ranked = sorted(comparison.results, key=lambda r: r.finish_time)
     names = [f"{r.name} · baseline" if r is base else f"{r.name} · {signed_time(r.delta)}"
              for r in ranked]
     deltas = np.array([r.delta for r in ranked])
-    errors = np.array([0.0 if r is base else report.spreads[r.name].standard_deviation
+    errors = np.array([0.0 if r is base else report.spread(r.name).standard_deviation
                        for r in ranked])
     colors = [BASELINE_COLOR if r is base else FASTER_COLOR if r.delta < 0 else SLOWER_COLOR
               for r in ranked]
@@ -60,9 +70,23 @@ def difference_figure(report: SetupsReport) -> go.Figure:
     return _layout(figure, 90 + 46 * len(ranked))
 
 
-def gap_along_figure(report: SetupsReport, course, system: str) -> go.Figure:
+def gap_along_figure(report: SetupsAnalysis, course, system: str) -> go.Figure:
     """Cumulative time won (−) or lost (+) against the baseline along the course [s], one
-    line per setup, over the elevation profile (shaded, right axis)."""
+    line per setup, over the elevation profile (shaded, right axis).
+
+    Parameters
+    ----------
+    report : SetupsAnalysis
+        The comparison's analysis.
+    course : pacing.course.geometry.Course
+        The course (elevation per point [m]).
+    system : str
+        "metric" or "imperial" [-].
+
+    Returns
+    -------
+    plotly.graph_objects.Figure
+    """
     from plotly.subplots import make_subplots
 
     comparison = report.comparison
@@ -92,8 +116,23 @@ def gap_along_figure(report: SetupsReport, course, system: str) -> go.Figure:
     return _layout(figure, 340, legend=True)
 
 
-def mixed_figure(report: SetupsReport, course, system: str) -> go.Figure | None:
-    """The position chosen on each segment as coloured bands over the elevation profile."""
+def mixed_figure(report: SetupsAnalysis, course, system: str) -> go.Figure | None:
+    """The position chosen on each segment as coloured bands over the elevation profile.
+
+    Parameters
+    ----------
+    report : SetupsAnalysis
+        The comparison's analysis.
+    course : pacing.course.geometry.Course
+        The course (distance and elevation per point [m]).
+    system : str
+        "metric" or "imperial" [-].
+
+    Returns
+    -------
+    plotly.graph_objects.Figure or None
+        None without a mixed plan.
+    """
     mixed = report.mixed
     if mixed is None:
         return None

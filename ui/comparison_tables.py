@@ -1,9 +1,9 @@
-"""Words and tables of the "setups side by side" view (ui.comparison): finish times and differences,
-sensitivities, break-even figures, per-segment gaps, the position-by-segment plan.
+"""Words and tables of the "setups side by side" view (ui.comparison): finish times and
+differences, sensitivities, break-even figures, per-segment gaps, the position-by-segment plan.
 
-Pure helpers over a ui.comparison.SetupsReport (no Streamlit), testable on their own. Sign
-convention (as in pacing.compare.setups): a time difference is setup − baseline [s]; positive =
-slower.
+Pure helpers over a pacing.compare.analysis.SetupsAnalysis (no Streamlit), testable on their
+own. Sign convention (as in pacing.compare.setups): a time difference is setup − baseline [s];
+positive = slower.
 """
 
 from __future__ import annotations
@@ -17,11 +17,22 @@ import pandas as pd
 from pacing.display.units import MILE_PER_HOUR, POUND, format_duration, to_display, unit_label
 
 if TYPE_CHECKING:
-    from ui.comparison import SetupsReport
+    from pacing.compare.analysis import SetupsAnalysis
 
 
 def signed_time(seconds: float) -> str:
-    """+12.3 s / −1:05.2 style text of a time difference (− = faster)."""
+    """+12.3 s / −1:05.2 min style text of a time difference (− = faster).
+
+    Parameters
+    ----------
+    seconds : float
+        The difference [s].
+
+    Returns
+    -------
+    str
+        Signed text; "–" for a number that is not finite.
+    """
     if not math.isfinite(seconds):
         return "–"
     sign = "+" if seconds > 0.05 else "−" if seconds < -0.05 else "±"
@@ -34,19 +45,43 @@ def signed_time(seconds: float) -> str:
 
 def verdict(delta: float, spread: float) -> str:
     """Whether a difference stands out from its 1 σ spread: beyond 2σ "clear", else "within
-    the uncertainty" (a two-sided ≈95 % rule, common practice)."""
+    the uncertainty" (a two-sided ≈95 % rule, common practice).
+
+    Parameters
+    ----------
+    delta : float
+        The difference [s].
+    spread : float
+        Its 1 σ [s]; 0 when no uncertainty was given.
+
+    Returns
+    -------
+    str
+    """
     if spread <= 0:
         return "no uncertainty given"
     return "clear" if abs(delta) > 2.0 * spread else "within the uncertainty"
 
 
-def results_table(report: SetupsReport, system: str) -> pd.DataFrame:
-    """One row per setup, fastest first: finish time, difference, ± 1σ, mean power, speed."""
+def results_table(report: SetupsAnalysis, system: str) -> pd.DataFrame:
+    """One row per setup, fastest first: finish time, difference, ± 1σ, mean power, speed.
+
+    Parameters
+    ----------
+    report : SetupsAnalysis
+        The comparison's analysis.
+    system : str
+        "metric" or "imperial" [-].
+
+    Returns
+    -------
+    pandas.DataFrame
+    """
     comparison = report.comparison
     base = comparison.baseline_result
     rows = []
     for r in sorted(comparison.results, key=lambda result: result.finish_time):
-        spread = report.spreads[r.name].standard_deviation
+        spread = report.spread(r.name).standard_deviation
         distance = float(comparison.distance[-1] - comparison.distance[0])
         rows.append({
             "Setup": r.name + (" (baseline)" if r is base else ""),
@@ -64,12 +99,24 @@ def results_table(report: SetupsReport, system: str) -> pd.DataFrame:
 SENSITIVITY_ROWS = ("drag_area", "mass", "power", "rolling_coefficient", "wind")
 
 
-def sensitivity_table(report: SetupsReport, system: str) -> pd.DataFrame:
+def sensitivity_table(report: SetupsAnalysis, system: str) -> pd.DataFrame:
     """Seconds of finish time per step of each parameter, one column per setup (+ = slower).
 
     Steps: +0.01 m² CdA, +1 kg (imperial: +1 lb), +10 W, +0.001 Crr, +1 m/s wind from the
     forecast direction (imperial: +1 mph). The per-lb and per-mph figures are the per-kg and
     per-m/s ones times 0.45359237 and 0.44704 (the sensitivity is linear at this scale).
+
+    Parameters
+    ----------
+    report : SetupsAnalysis
+        The comparison's analysis.
+    system : str
+        "metric" or "imperial" [-].
+
+    Returns
+    -------
+    pandas.DataFrame
+        A "Change" column and one column per setup [s].
     """
     first = next(iter(report.sensitivities.values()))
     labels = {
@@ -82,16 +129,30 @@ def sensitivity_table(report: SetupsReport, system: str) -> pd.DataFrame:
     }
     scale = {"mass": POUND if system == "imperial" else 1.0,
              "wind": MILE_PER_HOUR if system == "imperial" else 1.0}
-    frame = {"Change": [labels[name] for name in SENSITIVITY_ROWS]}
+    frame: dict[str, list[str] | list[float]] = {
+        "Change": [labels[name] for name in SENSITIVITY_ROWS]}
     for name, sens in report.sensitivities.items():
         frame[f"{name} [s]"] = [round(float(getattr(sens, key)) * scale.get(key, 1.0), 1)
                                 for key in SENSITIVITY_ROWS]
     return pd.DataFrame(frame)
 
 
-def break_even_sentences(report: SetupsReport, system: str) -> list[str]:
+def break_even_sentences(report: SetupsAnalysis, system: str) -> list[str]:
     """Break-even figures in words, one sentence per setup (each figure alone, the rest of
-    the setup held)."""
+    the setup held).
+
+    Parameters
+    ----------
+    report : SetupsAnalysis
+        The comparison's analysis.
+    system : str
+        "metric" or "imperial" (the mass unit) [-].
+
+    Returns
+    -------
+    list of str
+        Markdown sentences.
+    """
     comparison = report.comparison
     base = comparison.baseline_result.name
     lines = []
@@ -128,9 +189,23 @@ def break_even_sentences(report: SetupsReport, system: str) -> list[str]:
     return lines
 
 
-def segment_table(report: SetupsReport, course, system: str) -> pd.DataFrame:
+def segment_table(report: SetupsAnalysis, course, system: str) -> pd.DataFrame:
     """Time won (−) or lost (+) on each segment against the baseline [s], one column per
-    other setup."""
+    other setup.
+
+    Parameters
+    ----------
+    report : SetupsAnalysis
+        The comparison's analysis.
+    course : pacing.course.geometry.Course
+        The course (distance and elevation per point [m]).
+    system : str
+        "metric" or "imperial" [-].
+
+    Returns
+    -------
+    pandas.DataFrame
+    """
     comparison = report.comparison
     bounds = comparison.bounds
     distance = np.asarray(course.distance, dtype=float)
@@ -151,8 +226,18 @@ def segment_table(report: SetupsReport, course, system: str) -> pd.DataFrame:
     return pd.DataFrame(frame)
 
 
-def mixed_summary(report: SetupsReport) -> str:
-    """The position-by-segment plan in one sentence."""
+def mixed_summary(report: SetupsAnalysis) -> str:
+    """The position-by-segment plan in one sentence.
+
+    Parameters
+    ----------
+    report : SetupsAnalysis
+        The comparison's analysis.
+
+    Returns
+    -------
+    str
+    """
     mixed = report.mixed
     if mixed is None:
         return ("Changing position by segment needs at least two setups of the same bike "

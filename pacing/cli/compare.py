@@ -7,6 +7,11 @@ A setup is ``NAME:key=value,key=value`` with the keys
 DEG/FACTOR pairs joined by '+', e.g. ``yaw=0/1+10/0.96+20/0.93``). Keys left out take the
 values of --cda, --mass and --crr; power defaults to 1.
 
+Steps: the flags → a RaceRequest (pacing.cli.plan_cycling.race_request_from_args, as the plan
+command) and the setups → pacing.compare.analysis.analyse_setups (the one analysis the page
+calls too) → table or JSON, with the analysis's notices (JSON "notices"; warnings on stderr,
+notes under the table).
+
 Time differences are setup − baseline in seconds: positive = slower. Sensitivities are seconds
 per step (+0.01 m² CdA, +1 kg, +10 W, +0.001 Crr, +1 m/s wind), positive = slower.
 """
@@ -14,9 +19,11 @@ per step (+0.01 m² CdA, +1 kg, +10 W, +0.001 Crr, +1 m/s wind), positive = slow
 from __future__ import annotations
 
 import argparse
+import itertools
 import json
 import math
 import sys
+from typing import TYPE_CHECKING, Any
 
 import numpy as np
 
@@ -26,19 +33,35 @@ from pacing.cli.common import (
     add_course_flags,
     add_rider_flags,
     add_simulation_flags,
+    notices_as_json,
+    report_notices,
 )
+from pacing.compare.analysis import DEFAULT_UNCERTAINTY, MAX_SAMPLES
 from pacing.display import units
 from pacing.errors import InputError
 
+if TYPE_CHECKING:
+    from pacing.compare.analysis import SetupsAnalysis
+    from pacing.compare.sensitivity import Sensitivity, Uncertainty
+    from pacing.compare.setups import RiderSetup
+
 SETUP_KEYS = ("cda", "power", "mass", "crr", "yaw")
 
-DEFAULT_SD = {"cda": 0.005, "crr": 0.0003, "mass": 0.5, "wind": 1.0}
-"""Default 1 σ of the inputs: CdA 0.005 m² (≈ 2 % of a road CdA; wind-tunnel repeatability
-CV < 2 %, García-López et al. 2008, J Sports Sci 26:277); Crr 0.0003, mass 0.5 kg and forecast
-wind 1 m/s are our own round defaults (judgment, from memory), meant to be replaced."""
+DEFAULT_SD = {"cda": DEFAULT_UNCERTAINTY.drag_area,
+              "crr": DEFAULT_UNCERTAINTY.rolling_coefficient,
+              "mass": DEFAULT_UNCERTAINTY.mass, "wind": DEFAULT_UNCERTAINTY.wind}
+"""Default 1 σ of the --sd-* flags: pacing.compare.analysis.DEFAULT_UNCERTAINTY (its sources
+are given there)."""
 
 
 def add_parser(subparsers: argparse._SubParsersAction) -> None:
+    """Register ``pacing compare``.
+
+    Parameters
+    ----------
+    subparsers : argparse._SubParsersAction
+        The subcommands of ``pacing``.
+    """
     parser = subparsers.add_parser(
         "compare",
         help="compare setups (positions, equipment) on a course",
@@ -52,7 +75,13 @@ def add_parser(subparsers: argparse._SubParsersAction) -> None:
 
 
 def add_compare_flags(parser: argparse.ArgumentParser) -> None:
-    """Every flag of the compare command."""
+    """Every flag of the compare command.
+
+    Parameters
+    ----------
+    parser : argparse.ArgumentParser
+        The command's parser.
+    """
     add_course_flags(parser)
     parser.add_argument("--setup", action="append", default=[], metavar="NAME:KEY=VALUE,...",
                         help="a setup, e.g. aero:cda=0.25,power=0.95 (keys: cda [m²], power "
@@ -62,6 +91,13 @@ def add_compare_flags(parser: argparse.ArgumentParser) -> None:
                         help="name of the setup the others are compared to (default: first)")
     add_rider_flags(parser)
     add_air_flags(parser)
+    _add_pacing_flags(parser)
+    _add_uncertainty_flags(parser)
+    parser.add_argument("--no-break-even", action="store_true",
+                        help="skip the break-even search (faster)")
+
+
+def _add_pacing_flags(parser: argparse.ArgumentParser) -> None:
     plan = parser.add_argument_group("pacing (the same for every setup)")
     plan.add_argument("--power", type=float, default=None,
                       help="the athlete's constant or mean crank power at power share 1 [W]")
@@ -74,6 +110,9 @@ def add_compare_flags(parser: argparse.ArgumentParser) -> None:
                       help="segment power at most this multiple of CP (or of the mean power)")
     plan.add_argument("--target-time", default=None, help=argparse.SUPPRESS)  # not compared
     add_simulation_flags(plan)
+
+
+def _add_uncertainty_flags(parser: argparse.ArgumentParser) -> None:
     spread = parser.add_argument_group("uncertainty (1 standard deviation)")
     spread.add_argument("--sd-cda", type=float, default=DEFAULT_SD["cda"],
                         help=f"of each setup's CdA [m²] (default {DEFAULT_SD['cda']})")
@@ -86,9 +125,9 @@ def add_compare_flags(parser: argparse.ArgumentParser) -> None:
     spread.add_argument("--samples", type=int, default=0,
                         help="Monte Carlo draws on top of the linearized spread (default 0)")
     spread.add_argument("--seed", type=int, default=0, help="seed of the draws (default 0)")
-    parser.add_argument("--no-break-even", action="store_true",
-                        help="skip the break-even search (faster)")
 
+
+# ------------------------------------------------------------------------------ the setups
 
 def _value(text: str, key: str, name: str) -> float:
     try:
@@ -115,16 +154,32 @@ def _yaw_table(text: str, name: str) -> tuple[tuple[float, float], ...]:
     return tuple(sorted(pairs))
 
 
-def parse_setup(text: str) -> tuple[str, dict]:
-    """'NAME:cda=0.25,power=0.95' → ('NAME', {'cda': 0.25, 'power': 0.95}); InputError if
-    malformed."""
+def parse_setup(text: str) -> tuple[str, dict[str, Any]]:
+    """One --setup flag in parts.
+
+    Parameters
+    ----------
+    text : str
+        'NAME:cda=0.25,power=0.95' (keys of SETUP_KEYS: cda [m²], power [-], mass [kg],
+        crr [-], yaw DEG/FACTOR pairs).
+
+    Returns
+    -------
+    tuple of (str, dict)
+        ('NAME', {'cda': 0.25, 'power': 0.95}).
+
+    Raises
+    ------
+    InputError
+        When malformed (one line naming the setup).
+    """
     if ":" not in text:
         raise InputError(f"--setup must look like NAME:cda=0.25,power=0.95, got {text!r}")
     name, _, body = text.partition(":")
     name = name.strip()
     if not name:
         raise InputError(f"--setup needs a name before ':', got {text!r}")
-    values: dict = {}
+    values: dict[str, Any] = {}
     for item in filter(None, (part.strip() for part in body.split(","))):
         key, equals, raw = item.partition("=")
         key = key.strip().lower()
@@ -137,8 +192,27 @@ def parse_setup(text: str) -> tuple[str, dict]:
     return name, values
 
 
-def setups_from_args(args: argparse.Namespace) -> list:
-    """The RiderSetups of the --setup flags (defaults from --cda, --mass, --crr)."""
+def _checked(name: str, what: str, value: float, low: float, high: float,
+             unit: str = "") -> float:
+    if not low <= value <= high:
+        raise InputError(f"--setup {name}: {what} must be {low:g}-{high:g}{unit}, "
+                         f"got {value:g}")
+    return value
+
+
+def setups_from_args(args: argparse.Namespace) -> list[RiderSetup]:
+    """The RiderSetups of the --setup flags (defaults from --cda, --mass, --crr).
+
+    Parameters
+    ----------
+    args : argparse.Namespace
+        The parsed flags.
+
+    Returns
+    -------
+    list of RiderSetup
+        One per --setup, in the order given.
+    """
     from pacing.cli.plan_cycling import MASS_RANGE, rider_from_args
     from pacing.compare.setups import MAX_SETUPS, RiderSetup
 
@@ -150,17 +224,10 @@ def setups_from_args(args: argparse.Namespace) -> list:
     setups = []
     for text in args.setup:
         name, values = parse_setup(text)
-        cda = values.get("cda", base.drag_area)
-        if not 0.05 <= cda <= 2.0:
-            raise InputError(f"--setup {name}: cda must be 0.05-2 m², got {cda:g}")
-        mass = values.get("mass", base.mass)
-        low, high = MASS_RANGE
-        if not low <= mass <= high:
-            raise InputError(f"--setup {name}: mass (rider + bike) must be {low:g}-{high:g} kg, "
-                             f"got {mass:g}")
-        crr = values.get("crr", base.rolling_coefficient)
-        if not 0.0 <= crr <= 0.1:
-            raise InputError(f"--setup {name}: crr must be 0-0.1, got {crr:g}")
+        cda = _checked(name, "cda", values.get("cda", base.drag_area), 0.05, 2.0, " m²")
+        mass = _checked(name, "mass (rider + bike)", values.get("mass", base.mass),
+                        *MASS_RANGE, " kg")
+        crr = _checked(name, "crr", values.get("crr", base.rolling_coefficient), 0.0, 0.1)
         rider = type(base)(mass=mass, drag_area=cda, rolling_coefficient=crr,
                            drivetrain_efficiency=base.drivetrain_efficiency,
                            drafting_reduction=base.drafting_reduction,
@@ -169,96 +236,62 @@ def setups_from_args(args: argparse.Namespace) -> list:
     return setups
 
 
-def _request(args: argparse.Namespace):
-    """The PlanRequest of the pacing flags (through the plan command's own checks when
-    pacing.cli.plan_cycling provides them)."""
-    from pacing.cli import plan_cycling
-    from pacing.plan.request import PlanRequest
-
-    if hasattr(plan_cycling, "request_from_args"):
-        return plan_cycling.request_from_args(args)
-    if args.power is None:
-        raise InputError("compare needs --power W (the athlete's power at power share 1)")
-    return PlanRequest(strategy=args.strategy, mean_power=args.power,
-                       critical_power=args.cp, w_prime=args.w_prime,
-                       w_prime_reserve=args.w_prime_reserve,
-                       max_power_ratio=args.max_power_ratio)
-
-
-def _uncertainty(args: argparse.Namespace):
+def _uncertainty(args: argparse.Namespace) -> Uncertainty:
     from pacing.compare.sensitivity import Uncertainty
 
     return Uncertainty(drag_area=args.sd_cda, rolling_coefficient=args.sd_crr,
                        mass=args.sd_mass, wind=args.sd_wind)
 
 
-def analyse(args: argparse.Namespace) -> dict:
-    """Validate, load, compare, and compute sensitivities, break-even figures and spreads.
+def analyse(args: argparse.Namespace) -> SetupsAnalysis:
+    """Validate, load and analyse: the flags' race request and setups through
+    pacing.compare.analysis.analyse_setups (the one analysis the page calls too).
 
-    Returns a dict of library results (keys: course, comparison, sensitivity (per setup),
-    spread, difference, sampled, sampled_difference, break_even, mixed, uncertainty).
+    Parameters
+    ----------
+    args : argparse.Namespace
+        The parsed flags.
+
+    Returns
+    -------
+    SetupsAnalysis
+        The comparison, sensitivities, spreads, break-even figures, mixed plan and notices.
     """
-    from pacing.cli.common import conditions_from_args, load_course_and_bounds
-    from pacing.cli.plan_cycling import simulation_options_from_args, validate_args
-    from pacing.compare.sensitivity import (
-        difference_spread,
-        finish_time_spread,
-        sampled_difference,
-        sampled_finish_time,
-        sensitivity,
-    )
-    from pacing.compare.setups import break_even, compare_setups, mixed_plan
-    from pacing.weather.conditions import air_along_course
+    from pacing.cli.plan_cycling import race_request_from_args, validate_args
+    from pacing.compare.analysis import analyse_setups
 
     validate_args(args)
-    if args.samples and not 2 <= args.samples <= 10_000:
-        raise InputError(f"--samples must be 0 or 2-10000, got {args.samples}")
+    if args.samples and not 2 <= args.samples <= MAX_SAMPLES:
+        raise InputError(f"--samples must be 0 or 2-{MAX_SAMPLES}, got {args.samples}")
     setups = setups_from_args(args)
-    request = _request(args)
-    uncertainty = _uncertainty(args)
-    conditions = conditions_from_args(args)
-    course, bounds = load_course_and_bounds(args)
-    air = air_along_course(course, conditions)
-    options = simulation_options_from_args(args)
-    comparison = compare_setups(course, bounds, setups, air, request, args.baseline, options)
-    base = comparison.baseline_result
-    sens = {r.name: sensitivity(course, r.plan.piece_power, r.setup.rider, conditions, options)
-            for r in comparison.results}
-    spread = {name: finish_time_spread(s, uncertainty) for name, s in sens.items()}
-    difference = {r.name: difference_spread(sens[base.name], sens[r.name], uncertainty)
-                  for r in comparison.results if r is not base}
-    sampled, sampled_diff = {}, {}
-    if args.samples:
-        for r in comparison.results:
-            sampled[r.name] = sampled_finish_time(course, r.plan.piece_power, r.setup.rider,
-                                                  conditions, uncertainty, args.samples,
-                                                  args.seed, options)
-            if r is not base:
-                sampled_diff[r.name] = sampled_difference(
-                    course, (base.setup.rider, base.plan.piece_power),
-                    (r.setup.rider, r.plan.piece_power), conditions, uncertainty,
-                    args.samples, args.seed, options)
-    breaks = {}
-    if not args.no_break_even:
-        breaks = {r.name: break_even(course, r, base, air, options)
-                  for r in comparison.results if r is not base}
-    return {
-        "course": course, "comparison": comparison, "sensitivity": sens, "spread": spread,
-        "difference": difference, "sampled": sampled, "sampled_difference": sampled_diff,
-        "break_even": breaks, "mixed": mixed_plan(course, comparison, air, options),
-        "uncertainty": uncertainty,
-    }
+    race = race_request_from_args(args)
+    return analyse_setups(race, setups, args.baseline, _uncertainty(args), args.samples,
+                          args.seed, not args.no_break_even)
 
 
-def _finite(value):
+# ------------------------------------------------------------------------------ JSON
+
+def _finite(value: float | None) -> float | None:
     if value is None:
         return None
     value = float(value)
     return value if math.isfinite(value) else None
 
 
-def sensitivity_as_dict(sens) -> dict:
-    """JSON keys of a Sensitivity (seconds per step, positive = slower)."""
+def sensitivity_as_dict(sens: Sensitivity) -> dict[str, float]:
+    """JSON keys of a Sensitivity (seconds per step, positive = slower).
+
+    Parameters
+    ----------
+    sens : Sensitivity
+        Seconds of finish time per step of each parameter [s].
+
+    Returns
+    -------
+    dict
+        s_per_0_01_cda, s_per_kg, s_per_10_w, s_per_0_001_crr, s_per_1_mps_wind [s] and
+        wind_from_deg [deg].
+    """
     return {
         "s_per_0_01_cda": sens.drag_area,
         "s_per_kg": sens.mass,
@@ -269,18 +302,9 @@ def sensitivity_as_dict(sens) -> dict:
     }
 
 
-def _sd(samples) -> float | None:
-    return None if samples is None else float(np.std(samples, ddof=1))
-
-
-def as_dict(result: dict) -> dict:
-    """JSON-ready numbers, SI units named in each key."""
-    comparison = result["comparison"]
-    course = result["course"]
+def _setups_as_list(analysis: SetupsAnalysis) -> list[dict[str, Any]]:
+    comparison = analysis.comparison
     base = comparison.baseline_result
-    bounds = comparison.bounds
-    distance = np.asarray(course.distance, dtype=float)
-    elevation = np.asarray(course.elevation, dtype=float)
     setups = []
     for r in comparison.results:
         rider = r.setup.rider
@@ -293,39 +317,74 @@ def as_dict(result: dict) -> dict:
             "mean_power_w": r.mean_power,
             "finish_time_s": r.finish_time,
             "delta_s": r.delta,
-            "finish_time_sd_s": result["spread"][r.name].standard_deviation,
-            "delta_sd_s": (result["difference"][r.name].standard_deviation
+            "finish_time_sd_s": analysis.finish_time_spreads[r.name].standard_deviation,
+            "delta_sd_s": (analysis.difference_spreads[r.name].standard_deviation
                            if r is not base else 0.0),
             "segment_delta_s": [float(v) for v in r.segment_delta],
-            "sensitivity": sensitivity_as_dict(result["sensitivity"][r.name]),
+            "sensitivity": sensitivity_as_dict(analysis.sensitivities[r.name]),
         })
-    uncertainty = result["uncertainty"]
-    sampled = result["sampled"]
-    mixed = result["mixed"]
+    return setups
+
+
+def _segments_as_list(analysis: SetupsAnalysis) -> list[dict[str, float]]:
+    course = analysis.comparison.race.course
+    bounds = analysis.comparison.bounds
+    distance = np.asarray(course.distance, dtype=np.float64)
+    elevation = np.asarray(course.elevation, dtype=np.float64)
+    return [{"start_m": float(distance[a]), "end_m": float(distance[b]),
+             "grade": float((elevation[b] - elevation[a]) / (distance[b] - distance[a]))}
+            for a, b in zip(bounds[:-1], bounds[1:], strict=True)]
+
+
+def _uncertainty_as_dict(analysis: SetupsAnalysis) -> dict[str, Any]:
+    u = analysis.uncertainty
+    sampled = bool(analysis.samples)
     return {
-        "strategy": comparison.request.strategy,
-        "baseline": base.name,
+        "sd_cda_m2": u.drag_area, "sd_crr": u.rolling_coefficient,
+        "sd_mass_kg": u.mass, "sd_wind_mps": u.wind,
+        "finish_time_sd_s": {k: v.standard_deviation
+                             for k, v in analysis.finish_time_spreads.items()},
+        "delta_sd_s": {k: v.standard_deviation for k, v in analysis.difference_spreads.items()},
+        "samples": analysis.samples,
+        "sampled_finish_time_sd_s": {k: v.sampled_standard_deviation for k, v in
+                                     analysis.finish_time_spreads.items()} if sampled else {},
+        "sampled_delta_sd_s": {k: v.sampled_standard_deviation for k, v in
+                               analysis.difference_spreads.items()} if sampled else {},
+    }
+
+
+def as_dict(analysis: SetupsAnalysis) -> dict[str, Any]:
+    """JSON-ready numbers, SI units named in each key.
+
+    Parameters
+    ----------
+    analysis : SetupsAnalysis
+        What `analyse` returns.
+
+    Returns
+    -------
+    dict
+        strategy, baseline, distance_m [m], setups, segments, sensitivity (of the baseline),
+        break_even, uncertainty, mixed, and notices (code, level, values, text).
+    """
+    comparison = analysis.comparison
+    distance = comparison.distance
+    mixed = analysis.mixed
+    return {
+        "strategy": comparison.strategy,
+        "baseline": comparison.baseline_result.name,
         "distance_m": float(distance[-1] - distance[0]),
-        "setups": setups,
-        "segments": [{"start_m": float(distance[a]), "end_m": float(distance[b]),
-                      "grade": float((elevation[b] - elevation[a]) / (distance[b] - distance[a]))}
-                     for a, b in zip(bounds[:-1], bounds[1:], strict=True)],
-        "sensitivity": sensitivity_as_dict(result["sensitivity"][base.name]),
+        "setups": _setups_as_list(analysis),
+        "segments": _segments_as_list(analysis),
+        "sensitivity": sensitivity_as_dict(
+            analysis.sensitivities[comparison.baseline_result.name]),
         "break_even": {name: {
             "baseline": be.baseline,
             "power_w": _finite(be.power), "power_margin_w": _finite(be.power_margin),
             "cda_m2": _finite(be.drag_area), "cda_margin_m2": _finite(be.drag_area_margin),
             "mass_kg": _finite(be.mass), "mass_margin_kg": _finite(be.mass_margin),
-        } for name, be in result["break_even"].items()},
-        "uncertainty": {
-            "sd_cda_m2": uncertainty.drag_area, "sd_crr": uncertainty.rolling_coefficient,
-            "sd_mass_kg": uncertainty.mass, "sd_wind_mps": uncertainty.wind,
-            "finish_time_sd_s": {k: v.standard_deviation for k, v in result["spread"].items()},
-            "delta_sd_s": {k: v.standard_deviation for k, v in result["difference"].items()},
-            "samples": len(next(iter(sampled.values()))) if sampled else 0,
-            "sampled_finish_time_sd_s": {k: _sd(v) for k, v in sampled.items()},
-            "sampled_delta_sd_s": {k: _sd(v) for k, v in result["sampled_difference"].items()},
-        },
+        } for name, be in analysis.break_evens.items()},
+        "uncertainty": _uncertainty_as_dict(analysis),
         "mixed": None if mixed is None else {
             "positions": list(mixed.names),
             "finish_time_s": mixed.finish_time,
@@ -333,17 +392,13 @@ def as_dict(result: dict) -> dict:
             "gain_s": mixed.gain,
             "faster": bool(mixed.faster),
         },
+        "notices": notices_as_json(analysis.notices),
     }
 
 
-def _signed(seconds: float) -> str:
-    sign = "+" if seconds > 0 else "−" if seconds < 0 else " "
-    return f"{sign}{units.format_duration(abs(seconds))}"
+# ------------------------------------------------------------------------------ table
 
-
-def as_table(result: dict) -> str:
-    """Readable tables: setups, where time is won or lost, what each parameter is worth."""
-    data = as_dict(result)
+def _setup_lines(data: dict[str, Any]) -> list[str]:
     lines = [f"{'setup':<16} {'CdA m²':>7} {'power':>6} {'mass kg':>8} {'Crr':>7} "
              f"{'mean W':>7} {'finish':>9} {'vs ' + data['baseline']:>12} {'± 1σ':>7}"]
     for s in data["setups"]:
@@ -356,80 +411,123 @@ def as_table(result: dict) -> str:
                      f"{sd:6.1f}s")
     lines.append("(* baseline; differences are setup − baseline, + = slower; ± is 1σ of the "
                  "difference, of the finish time for the baseline)")
-    others = [s for s in data["setups"] if s["name"] != data["baseline"]]
-    if others:
-        lines.append("")
-        lines.append("time won (−) or lost (+) per segment against the baseline [s]")
-        header = f"{'#':>3} {'from km':>8} {'to km':>7} {'grade %':>8}"
-        header += "".join(f" {s['name'][:10]:>10}" for s in others)
-        lines.append(header)
-        for k, segment in enumerate(data["segments"]):
-            row = (f"{k + 1:>3} {segment['start_m'] / 1000:8.2f} {segment['end_m'] / 1000:7.2f} "
-                   f"{100 * segment['grade']:8.1f}")
-            row += "".join(f" {s['segment_delta_s'][k]:10.1f}" for s in others)
-            lines.append(row)
+    return lines
+
+
+def _segment_lines(data: dict[str, Any], others: list[dict[str, Any]]) -> list[str]:
+    if not others:
+        return []
+    lines = ["", "time won (−) or lost (+) per segment against the baseline [s]"]
+    header = f"{'#':>3} {'from km':>8} {'to km':>7} {'grade %':>8}"
+    header += "".join(f" {s['name'][:10]:>10}" for s in others)
+    lines.append(header)
+    for k, segment in enumerate(data["segments"]):
+        row = (f"{k + 1:>3} {segment['start_m'] / 1000:8.2f} {segment['end_m'] / 1000:7.2f} "
+               f"{100 * segment['grade']:8.1f}")
+        row += "".join(f" {s['segment_delta_s'][k]:10.1f}" for s in others)
+        lines.append(row)
+    return lines
+
+
+def _sensitivity_lines(data: dict[str, Any]) -> list[str]:
     sens = data["sensitivity"]
-    lines += [
+    return [
         "",
         f"what each change is worth for {data['baseline']} (seconds, + = slower)",
         f"  +0.01 m² CdA {sens['s_per_0_01_cda']:+8.1f}    +1 kg {sens['s_per_kg']:+8.1f}    "
         f"+10 W {sens['s_per_10_w']:+8.1f}    +0.001 Crr {sens['s_per_0_001_crr']:+8.1f}    "
         f"+1 m/s wind from {sens['wind_from_deg']:.0f}° {sens['s_per_1_mps_wind']:+8.1f}",
     ]
-    for name, be in data["break_even"].items():
-        parts = []
-        missing = [what for what, key in (("power", "power_margin_w"), ("CdA", "cda_margin_m2"),
-                                          ("mass", "mass_margin_kg")) if be[key] is None]
-        if be["power_margin_w"] is not None:
-            parts.append(f"may lose {be['power_margin_w']:.1f} W" if be["power_margin_w"] >= 0
-                         else f"needs {-be['power_margin_w']:.1f} W more")
-        if be["cda_margin_m2"] is not None:
-            parts.append(f"may add {be['cda_margin_m2']:.4f} m² CdA" if be["cda_margin_m2"] >= 0
-                         else f"must save {-be['cda_margin_m2']:.4f} m² CdA")
-        if be["mass_margin_kg"] is not None:
-            parts.append(f"may add {be['mass_margin_kg']:.2f} kg" if be["mass_margin_kg"] >= 0
-                         else f"must shed {-be['mass_margin_kg']:.2f} kg")
-        if missing:
-            parts.append(f"no {' or '.join(missing)} in range ties")
-        lines.append(f"break-even {name} vs {be['baseline']}: " + ", ".join(parts)
-                     + " (each alone)")
+
+
+def _break_even_line(name: str, be: dict[str, Any]) -> str:
+    parts = []
+    missing = [what for what, key in (("power", "power_margin_w"), ("CdA", "cda_margin_m2"),
+                                      ("mass", "mass_margin_kg")) if be[key] is None]
+    if be["power_margin_w"] is not None:
+        parts.append(f"may lose {be['power_margin_w']:.1f} W" if be["power_margin_w"] >= 0
+                     else f"needs {-be['power_margin_w']:.1f} W more")
+    if be["cda_margin_m2"] is not None:
+        parts.append(f"may add {be['cda_margin_m2']:.4f} m² CdA" if be["cda_margin_m2"] >= 0
+                     else f"must save {-be['cda_margin_m2']:.4f} m² CdA")
+    if be["mass_margin_kg"] is not None:
+        parts.append(f"may add {be['mass_margin_kg']:.2f} kg" if be["mass_margin_kg"] >= 0
+                     else f"must shed {-be['mass_margin_kg']:.2f} kg")
+    if missing:
+        parts.append(f"no {' or '.join(missing)} in range ties")
+    return f"break-even {name} vs {be['baseline']}: " + ", ".join(parts) + " (each alone)"
+
+
+def _uncertainty_lines(data: dict[str, Any], others: list[dict[str, Any]]) -> list[str]:
     u = data["uncertainty"]
-    lines.append(f"uncertainty (1σ): CdA {u['sd_cda_m2']:g} m², Crr {u['sd_crr']:g}, mass "
-                 f"{u['sd_mass_kg']:g} kg, wind {u['sd_wind_mps']:g} m/s"
-                 + (f"; {u['samples']} Monte Carlo draws" if u["samples"] else ""))
+    lines = [f"uncertainty (1σ): CdA {u['sd_cda_m2']:g} m², Crr {u['sd_crr']:g}, mass "
+             f"{u['sd_mass_kg']:g} kg, wind {u['sd_wind_mps']:g} m/s"
+             + (f"; {u['samples']} Monte Carlo draws" if u["samples"] else "")]
     for s in others:
         sd = s["delta_sd_s"]
         verdict = ("real (beyond 2σ)" if sd > 0 and abs(s["delta_s"]) > 2 * sd
                    else "not clear (within 2σ)" if sd > 0 else "(no uncertainty given)")
         lines.append(f"  {s['name']}: {s['delta_s']:+.1f} ± {sd:.1f} s, difference {verdict}")
-    mixed = data["mixed"]
-    if mixed is not None:
-        runs = []
-        for name in mixed["positions"]:
-            if runs and runs[-1][0] == name:
-                runs[-1][1] += 1
-            else:
-                runs.append([name, 1])
-        plan = ", ".join(f"{name}×{count}" for name, count in runs)
-        if len(runs) == 1:
-            lines.append(f"position by segment: {runs[0][0]} on every segment "
-                         "(no change of position pays on this course)")
-            return "\n".join(lines)
-        outcome = (f"{mixed['gain_s']:.1f} s faster than {mixed['best_single']} alone"
-                   if mixed["faster"] else
-                   f"not faster than {mixed['best_single']} alone ({mixed['gain_s']:+.1f} s)")
-        lines.append(f"position by segment: {units.format_duration(mixed['finish_time_s'])}, "
-                     f"{outcome}; segments: {plan}")
+    return lines
+
+
+def _mixed_lines(mixed: dict[str, Any] | None) -> list[str]:
+    if mixed is None:
+        return []
+    runs = [(name, len(list(group))) for name, group in itertools.groupby(mixed["positions"])]
+    if len(runs) == 1:
+        return [f"position by segment: {runs[0][0]} on every segment "
+                "(no change of position pays on this course)"]
+    plan = ", ".join(f"{name}×{count}" for name, count in runs)
+    outcome = (f"{mixed['gain_s']:.1f} s faster than {mixed['best_single']} alone"
+               if mixed["faster"] else
+               f"not faster than {mixed['best_single']} alone ({mixed['gain_s']:+.1f} s)")
+    return [f"position by segment: {units.format_duration(mixed['finish_time_s'])}, "
+            f"{outcome}; segments: {plan}"]
+
+
+def as_table(analysis: SetupsAnalysis) -> str:
+    """Readable tables: setups, where time is won or lost, what each parameter is worth.
+
+    Parameters
+    ----------
+    analysis : SetupsAnalysis
+        What `analyse` returns.
+
+    Returns
+    -------
+    str
+        Lines in km, %, W, H:MM:SS and seconds (notices are printed by `run`).
+    """
+    data = as_dict(analysis)
+    others = [s for s in data["setups"] if s["name"] != data["baseline"]]
+    lines = _setup_lines(data) + _segment_lines(data, others) + _sensitivity_lines(data)
+    lines += [_break_even_line(name, be) for name, be in data["break_even"].items()]
+    lines += _uncertainty_lines(data, others) + _mixed_lines(data["mixed"])
     return "\n".join(lines)
 
 
 def run(args: argparse.Namespace) -> int:
-    """Run ``pacing compare``; returns the exit code."""
-    result = analyse(args)
+    """Run ``pacing compare``.
+
+    Parameters
+    ----------
+    args : argparse.Namespace
+        The parsed flags.
+
+    Returns
+    -------
+    int
+        The exit code (0).
+    """
+    analysis = analyse(args)
     if args.json:
-        json.dump(as_dict(result), sys.stdout, indent=2, allow_nan=False)
+        report_notices(analysis.notices, table=False)
+        json.dump(as_dict(analysis), sys.stdout, indent=2, allow_nan=False)
         sys.stdout.write("\n")
     else:
-        print(as_table(result))
+        print(as_table(analysis))
+        for line in report_notices(analysis.notices, table=True):
+            print(line)
         print(CAUTION)
     return 0
