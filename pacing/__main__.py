@@ -1,3 +1,5 @@
+"""``python -m pacing COMMAND …``: the command line (pacing.cli.main); exits with its code."""
+
 import sys
 
 from pacing.cli import main

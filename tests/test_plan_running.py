@@ -1,8 +1,9 @@
 """Running plans (pacing.plan.running): equal effort, even pace, fastest under critical speed
 and D′, and their target rows.
 
-Each check names its source. REFERENCES.md is ../shared/REFERENCES.md ("Running"). The
-courses and runners are those of tests/test_physics_running.py.
+Each check names its source; check values are in docs/references.md, "Running". The courses
+and runners are those of tests/test_physics_running.py. The even paces and the D′ balance the
+plans share are tested in tests/test_plan_even_pace.py.
 """
 
 from __future__ import annotations
@@ -42,7 +43,8 @@ from pacing.plan.running import (
 
 @pytest.mark.parametrize(
     "grade, pace",
-    # REFERENCES.md [calc]: flat 5:00/km → +5 % 6:30, +10 % 8:17, −5 % 3:49, −10 % 2:59.
+    # docs/references.md, "Running" [calc]: flat 5:00/km → +5 % 6:30, +10 % 8:17, −5 % 3:49,
+    # −10 % 2:59.
     [(0.05, "6:30"), (0.10, "8:17"), (-0.05, "3:49"), (-0.10, "2:59")],
 )
 def test_equal_effort_paces_on_grades_without_air(grade, pace):
@@ -104,6 +106,14 @@ def test_even_pace_matches_the_mean_effort_and_shows_its_cost():
 def test_even_pace_can_be_given():
     plan = plan_even_pace(straight_course(1000.0), NO_AIR, FIVE_MINUTES_PER_KM, speed=3.0)
     assert plan.finish_time == pytest.approx(1000.0 / 3.0)
+    assert plan.even_pace_speed == 3.0 and plan.even_pace_time == plan.finish_time
+
+
+@pytest.mark.parametrize("speed", [0.49, 12.01, 0.0, -3.0, float("nan"), float("inf")])
+def test_a_given_even_pace_must_be_a_running_speed(speed):
+    # 0.5-12 m/s, 33:20 to 1:24 per km, as the flat pace (pacing.physics.running.flat_effort)
+    with pytest.raises(InputError, match="0.5-12 m/s"):
+        plan_even_pace(straight_course(1000.0), NO_AIR, FIVE_MINUTES_PER_KM, speed=speed)
 
 # --------------------------------------------------------------------------- fastest
 
@@ -298,13 +308,12 @@ def test_fastest_gains_over_the_fastest_even_pace_within_d_prime_on_hills():
     assert same.values["later_s"] < 0 and same.values["overdrawn_balance_m"] < 0
 
 
-def test_fastest_even_pace_on_a_flat_course_is_the_closed_form():
-    # flat, still air: t = (d − D′)/CS (Poole et al. 2016), as for the fastest plan
+def test_on_a_flat_course_the_fastest_even_pace_is_the_fastest_plan():
+    # flat, still air: both are t = (d − D′)/CS (Poole et al. 2016)
     course = straight_course(5000.0)
-    speed = even_pace_within_limits(course, NO_AIR, 4.94, 123.0)
-    assert 5000.0 / speed == pytest.approx(987.247, abs=0.01)
     plan = plan_fastest(course, NO_AIR, 4.94, 123.0)
     assert plan.limited_even_pace_time == pytest.approx(plan.finish_time, abs=0.01)
+    assert plan.limited_even_pace_time == pytest.approx(987.247, abs=0.01)
 
 
 def test_any_plan_shows_its_d_prime_balance_when_critical_speed_is_given():

@@ -26,6 +26,7 @@ MAX_LINE_POINTS = 2500
 """Lines along the course are thinned to at most this many points (display only)."""
 
 INK = "#1d2b3a"
+"""Text and the course's line; the other colours mark one quantity each."""
 SPEED_COLOR = "#0f6e8c"
 POWER_COLOR = "#b5542c"
 WIND_COLOR = "#5a6b2f"
@@ -34,6 +35,7 @@ BOUNDARY_COLOR = "rgba(29,43,58,0.35)"
 
 
 def _layout(figure: go.Figure, height: int) -> go.Figure:
+    """The figure on white with light grid lines and no legend, `height` tall [px]."""
     figure.update_layout(
         height=height,
         margin=dict(l=10, r=10, t=30, b=10),
@@ -57,7 +59,8 @@ def _thin(count: int, limit: int = MAX_LINE_POINTS) -> np.ndarray:
 
 def profile_figure(course, system: str, bounds=None, height: int = 300) -> go.Figure:
     """Elevation along the course shaded by grade, the raw profile as a thin line, and the
-    segment boundaries as dotted lines."""
+    segment boundaries (point indices) as dotted lines; distance in km or mi, elevation in m
+    or ft, grade colours in %, `height` [px]."""
     distance = np.asarray(course.distance, dtype=float)
     elevation = np.asarray(course.elevation, dtype=float)
     edges = np.unique(np.linspace(0, distance.size - 1, min(MAX_PROFILE_BARS, distance.size - 1)

@@ -28,6 +28,8 @@ def demo_routes() -> dict[str, Path]:
 
 
 def _default_demo_name(paths: dict[str, Path], default) -> str | None:
+    """The name of the default demo course among `paths` (by name, path or file name), else
+    the first one; None when there is none."""
     if default in paths:
         return default
     for name, path in paths.items():
@@ -42,7 +44,7 @@ def load_course_from_bytes(data: bytes, name: str, smoothing_window: float,
 
     Parameters
     ----------
-    data : the file's content.
+    data : the file's content (GPX bytes).
     name : label of the course.
     smoothing_window : width of the elevation smoothing window [m].
     max_grade : steepest grade kept after smoothing [-].
@@ -194,6 +196,8 @@ def race_request(course, bounds, athlete: dict, weather: dict, approach: dict):
 
 
 def _running_request(course, bounds, athlete: dict, weather: dict, approach: dict):
+    """The running RaceRequest: flat pace [s/km] → flat speed [m/s]; the fastest plan takes
+    critical speed [m/s] and D′ [m] instead."""
     from pacing.physics.running import Runner
     from pacing.plan.race import RaceRequest, RunningRequest
 
@@ -221,6 +225,7 @@ def race_outcome(course, bounds, athlete: dict, weather: dict, approach: dict) -
 
 
 def _running_outcome(result) -> Outcome:
+    """The Outcome of a running RaceResult: speed per piece [m/s], D′ balance [m]."""
     plan = result.plan
     return check_finite(Outcome(
         sport="running", finish_time=plan.finish_time, average_speed=plan.average_speed,
@@ -233,6 +238,7 @@ def _running_outcome(result) -> Outcome:
 
 
 def _cycling_outcome(result) -> Outcome:
+    """The Outcome of a cycling RaceResult: its verified prediction per point, W′ balance [J]."""
     plan = result.plan
     prediction = plan.prediction
     return check_finite(Outcome(

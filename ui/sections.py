@@ -12,6 +12,7 @@ from pacing.display.units import (
     format_duration,
     format_pace,
     from_display,
+    pace_per_km_to_display,
     parse_clock,
     to_display,
     unit_label,
@@ -23,7 +24,8 @@ from ui.widgets import unit_number
 # ------------------------------------------------------------------------------------ route
 
 def route_facts(course, system: str) -> None:
-    """Distance, climbing (as recorded and cleaned), descent, highest and lowest point."""
+    """Show distance [km or mi], climbing as recorded and cleaned, lowest and highest point
+    [m or ft] of the course (SI inside)."""
     cols = st.columns(4)
     cols[0].metric("Distance", f"{to_display(course.total_distance, 'distance', system):.2f} "
                    f"{unit_label('distance', system)}")
@@ -39,7 +41,8 @@ def route_facts(course, system: str) -> None:
 
 
 def segment_overview(course, bounds, system: str) -> None:
-    """The segments as a small table (kind, where, how long, how steep), folded away."""
+    """Show the segments as a small table, folded away: kind, start and length [km or mi],
+    mean and steepest grade [%], climbing [m or ft]."""
     import pandas as pd
 
     from pacing.course.segments import describe_segments
@@ -62,7 +65,9 @@ def segment_overview(course, bounds, system: str) -> None:
 
 
 def split_inputs(system: str, total_distance: float | None = None) -> dict:
-    """How to cut the course into segments; returns {"mode", "length" [m], "marks" [m]}."""
+    """How to cut the course into segments; returns {"mode", "length" [m], "marks" [m]}.
+
+    `total_distance` [m], when given, refuses marks beyond the course (InputError)."""
     from ui.pipeline import SPLIT_MODES, parse_marks
 
     cols = st.columns([2, 2, 3])
@@ -118,15 +123,15 @@ FLAT_PACE_RANGE = (120.0, 900.0)
 def flat_pace_range_message(system: str) -> str:
     """The flat-pace refusal in the unit system's own words: "… between 2:00 and 15:00 per
     km" in metric, "… between 3:13 and 24:08 per mile" in imperial (1 mi = 1.609344 km)."""
-    from pacing.display.units import pace_per_km_to_display
-
     low, high = (format_pace(float(pace_per_km_to_display(v, system))) for v in FLAT_PACE_RANGE)
     per = "per mile" if system == "imperial" else "per km"
     return f"flat pace must be between {low} and {high} {per}"
 
 
 def athlete_inputs(system: str) -> dict:
-    """Sport, athlete and equipment; returns a dict of SI values (keys by pacing.athlete)."""
+    """Sport, athlete and equipment; returns a dict of SI values (keys by pacing.athlete):
+    body_mass [kg], then the rider's or the runner's own (see `_rider_inputs`,
+    `_runner_inputs`)."""
     sport = st.radio("Sport", ("cycling", "running"), key="sport", horizontal=True)
     values: dict = {"sport": sport}
     cols = st.columns(3)
@@ -142,7 +147,8 @@ def athlete_inputs(system: str) -> dict:
 
 def _rider_inputs(cols, system: str) -> dict:
     """Bike, physiology and position of a rider (the first row's last two columns, then a row
-    of their own); SI values."""
+    of their own): bike_mass [kg], critical_power [W], w_prime [J], drag_area [m²],
+    rolling_coefficient [-], drivetrain_efficiency [-]."""
     values: dict = {}
     with cols[1]:
         values["bike_mass"] = unit_number("Bike and kit", "mass", system, "bike_mass", 8.0,
@@ -187,7 +193,9 @@ def _rider_inputs(cols, system: str) -> dict:
 
 
 def _runner_inputs(cols, system: str) -> dict:
-    """Height, flat pace, critical speed and D′ of a runner; SI values."""
+    """Height [m], flat pace [s/km], critical speed [m/s] and D′ [m] of a runner.
+
+    The flat pace is typed as M:SS per km or per mile; InputError outside FLAT_PACE_RANGE."""
     values: dict = {}
     with cols[1]:
         values["height"] = unit_number("Height", "elevation", system, "height", 1.78,
@@ -195,12 +203,12 @@ def _runner_inputs(cols, system: str) -> dict:
     with cols[2]:
         pace_label = unit_label("pace", system)
         default = st.session_state.get("si:flat_pace", 300.0)
-        shown = default * (1609.344 / 1000.0 if system == "imperial" else 1.0)
+        shown = float(pace_per_km_to_display(default, system))
         typed = st.text_input(f"Flat pace, still air [{pace_label}, M:SS]",
                               value=format_pace(shown), key=f"flat_pace:{system}",
                               help="the pace you would hold for this race on flat ground")
         seconds = parse_clock(typed, "flat pace")
-        per_km = seconds / (1609.344 / 1000.0) if system == "imperial" else seconds
+        per_km = seconds / float(pace_per_km_to_display(1.0, system))
         if not FLAT_PACE_RANGE[0] <= per_km <= FLAT_PACE_RANGE[1]:
             raise InputError(flat_pace_range_message(system))
         st.session_state["si:flat_pace"] = per_km
@@ -220,7 +228,9 @@ def _runner_inputs(cols, system: str) -> dict:
 # -------------------------------------------------------------------------------- weather
 
 def weather_inputs(system: str, roughness_classes: dict[str, float] | None) -> dict:
-    """Conditions on the day; returns pacing.weather.conditions.Conditions fields in SI."""
+    """Conditions on the day; returns pacing.weather.conditions.Conditions fields in SI:
+    temperature [°C], relative_humidity [-], sea_level_pressure [Pa], wind_speed [m/s],
+    wind_from [deg], wind_height [m], roughness_length [m] (from the terrain classes [m])."""
     values: dict = {}
     cols = st.columns(3)
     with cols[0]:
@@ -257,7 +267,9 @@ def weather_inputs(system: str, roughness_classes: dict[str, float] | None) -> d
 # ------------------------------------------------------------------------------ approach
 
 def approach_inputs(sport: str, athlete: dict) -> dict:
-    """The pacing plan and its limits; returns SI values."""
+    """The pacing plan and its limits; returns SI values: strategy (a key of
+    pacing.plan.strategies.STRATEGIES[sport]); cycling: mean_power [W] or target_time [s],
+    max_power_ratio [-], w_prime_reserve [J], allow_zero_on_descents."""
     values: dict = {}
     if sport == "cycling":
         label = st.radio("Plan", list(text.APPROACHES), key="approach", horizontal=True)
@@ -296,7 +308,8 @@ def approach_inputs(sport: str, athlete: dict) -> dict:
 # ------------------------------------------------------------------------------ results
 
 def outcome_headline(outcome, system: str) -> None:
-    """Finish time and average speed front and centre, then power, top speed, time gained."""
+    """Show finish time [h:mm:ss] and average speed [km/h or mph] front and centre, then
+    average power [W], top speed and the time gained on even power [s]."""
     speed_unit = unit_label("speed", system)
     cols = st.columns(5)
     cols[0].metric("Finish time", format_duration(outcome.finish_time))
@@ -314,7 +327,8 @@ def outcome_headline(outcome, system: str) -> None:
 def downloads(outcome, course, table, system: str, title: str) -> None:
     """CSV, XLSX, GPX with waypoints, and the printable card, as download buttons.
 
-    CSV is made now (cheap); the others only when their button is pressed.
+    CSV is made now (cheap); the others only when their button is pressed. Every file says
+    the outcome's notices in the page's unit system; the card prints its warnings.
     """
     from pacing.display.notices import describe, labelled
     from pacing.io import exports

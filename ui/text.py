@@ -9,16 +9,19 @@ SECTION_TAKEAWAY = "6 · Take it with you"
 SECTION_SETUPS = "7 · Setups side by side"
 SECTION_LIBRARY = "8 · Coach's library"
 SECTION_ROAD_TEST = "9 · Measure drag area on the road"
+"""Titles of the page's sections, in order."""
 
 SPEED_CAUTION = (
     "Predicted speeds, above all on descents, are model estimates, not safe limits. "
     "Ride within your skills, the road and its traffic, traffic law and the race rules."
 )
+"""Shown beside predicted cycling speeds."""
 RUNNING_SPEED_CAUTION = (
     "Predicted paces, above all on descents, are model estimates, not safe limits. "
     "Run within your fitness, the footing, the road and its traffic, traffic law and the "
     "race rules."
 )
+"""Shown beside predicted running speeds and paces."""
 
 
 def speed_caution(sport: str) -> str:
@@ -31,6 +34,7 @@ EXERTION_CAUTION = (
     "Hard efforts strain the heart and body: consult a physician before racing or training "
     "hard. Local rules and licensed medical and coaching practice come first."
 )
+"""Shown in the sidebar and under the predicted race."""
 
 DRAG_AREA_GUIDE = (
     "Typical CdA (m²) by riding position, wind-tunnel studies:\n\n"
@@ -43,11 +47,13 @@ DRAG_AREA_GUIDE = (
     "(García-López et al. 2008). Values quoted from memory of Defraeye et al., J Biomech "
     "43:1262 (2010) and Grappe et al., Ergonomics 40:1299 (1997)."
 )
+"""Help beside the CdA inputs [m²]."""
 ROLLING_GUIDE = (
     "Typical Crr by surface (common practice, from memory): race tyre on smooth asphalt "
     "0.0025-0.004 · ordinary asphalt 0.004-0.006 · rough chip-seal 0.006-0.010 · hard gravel "
     "0.008-0.015 · loose gravel or grass 0.02-0.05."
 )
+"""Help beside the Crr inputs [-]."""
 
 DRAG_AREA_PRESETS = {
     "upright (≈ 0.30)": 0.30,
@@ -71,14 +77,14 @@ APPROACHES = {
     "Quickest within my limits": "fastest",
     "Reach a finish time": "target-time",
 }
-"""Cycling plan choices (label → pacing.plan.cycling name)."""
+"""Cycling plan choices (label → key of pacing.plan.strategies.STRATEGIES["cycling"])."""
 
 RUNNING_APPROACHES = {
     "Equal effort on every grade": "equal-effort",
     "Even pace (for comparison)": "even-pace",
     "Quickest within my limits": "fastest",
 }
-"""Running plan choices (label → pacing.physics.running name)."""
+"""Running plan choices (label → key of pacing.plan.strategies.STRATEGIES["running"])."""
 
 ROAD_TEST_CDA_NOTE = (
     "The CdA shown is the rider and bike without the rotating-wheel term (F_w = {wheel:g} m²) "

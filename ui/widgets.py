@@ -15,6 +15,7 @@ from pacing.display.units import from_display, to_display, unit_label
 
 
 def _decimals(step: float) -> int:
+    """Decimals to show for an input's step in display units (0.05 → 2, 5 → 0)."""
     return max(0, -int(math.floor(math.log10(step)))) if step < 1 else 0
 
 

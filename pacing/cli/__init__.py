@@ -11,6 +11,7 @@ import argparse
 import os
 import sys
 import warnings
+from typing import NoReturn, TextIO
 
 from pacing import __version__
 from pacing.errors import InputError
@@ -21,11 +22,25 @@ COMMAND_MODULES = ("course", "plan", "compare", "fieldtest", "library")
 class OneLineParser(argparse.ArgumentParser):
     """An ArgumentParser whose usage errors are one line (and exit code 2)."""
 
-    def error(self, message: str):  # noqa: D102 (argparse API)
+    def error(self, message: str) -> NoReturn:
+        """Print "pacing: error: MESSAGE (see pacing --help)" and exit with code 2.
+
+        Parameters
+        ----------
+        message : str
+            argparse's description of the usage error [-].
+        """
         self.exit(2, f"{self.prog}: error: {message} (see {self.prog} --help)\n")
 
 
 def build_parser() -> argparse.ArgumentParser:
+    """The parser of ``pacing``: --version and one subcommand per module of COMMAND_MODULES.
+
+    Returns
+    -------
+    argparse.ArgumentParser
+        A OneLineParser; each subcommand sets ``run`` to its module's run function [-].
+    """
     import importlib
 
     parser = OneLineParser(
@@ -46,11 +61,29 @@ def build_parser() -> argparse.ArgumentParser:
     return parser
 
 
-def _one_line_warning(message, category, filename, lineno, file=None, line=None) -> None:
+def _one_line_warning(message: Warning | str, category: type[Warning], filename: str,
+                      lineno: int, file: TextIO | None = None, line: str | None = None) -> None:
+    """warnings.showwarning that prints "pacing: warning: …", the message's first line."""
     print(f"pacing: warning: {str(message).splitlines()[0]}", file=sys.stderr)
 
 
 def main(argv: list[str] | None = None) -> int:
+    """Run the command line.
+
+    Bad input (InputError, ValueError, OSError) gives one line on stderr and exit code 2;
+    warnings are printed as one line each; a reader that goes away (`| head`) ends it
+    quietly.
+
+    Parameters
+    ----------
+    argv : list of str or None, optional
+        The arguments after the program's name; None for sys.argv [-].
+
+    Returns
+    -------
+    int
+        Exit code: 0 done, 2 bad input, 1 broken pipe, 130 interrupted [-].
+    """
     parser = build_parser()
     args = parser.parse_args(argv)
     with warnings.catch_warnings():

@@ -7,8 +7,17 @@ Units on the command line are SI unless a flag says otherwise (`--humidity` in p
 from __future__ import annotations
 
 import argparse
+from collections.abc import Iterable, Sequence
+from typing import TYPE_CHECKING, Any
+
+import numpy as np
 
 from pacing.errors import InputError
+
+if TYPE_CHECKING:
+    from pacing.course.geometry import Course
+    from pacing.notices import Notice
+    from pacing.weather.conditions import Conditions
 
 CAUTION = (
     "Caution: predicted speeds, above all on descents, are model estimates, not safe limits. "
@@ -26,7 +35,14 @@ RUNNING_CAUTION = (
 
 
 def add_course_flags(parser: argparse.ArgumentParser) -> None:
-    """The GPX file and how it becomes a course and segments (course, plan, compare)."""
+    """Add the GPX file and how it becomes a course and segments (course, plan, compare).
+
+    Parameters
+    ----------
+    parser : argparse.ArgumentParser
+        The command's parser: gets ROUTE, --step [m], --segment-length [m], --flat and
+        --json [-].
+    """
     parser.add_argument("route", help="GPX file of the course")
     parser.add_argument("--step", type=float, default=None,
                         help="resampling step of the course [m] (default 10)")
@@ -38,8 +54,14 @@ def add_course_flags(parser: argparse.ArgumentParser) -> None:
     parser.add_argument("--json", action="store_true", help="print JSON instead of a table")
 
 
-def add_simulation_flags(group) -> None:
-    """Start speed, descent speed limit and coasting speed of the inertial simulation."""
+def add_simulation_flags(group: argparse._ActionsContainer) -> None:
+    """Add the start speed, descent speed limit and coasting speed of the inertial simulation.
+
+    Parameters
+    ----------
+    group : argparse parser or argument group
+        Gets --start-speed, --max-descent-speed and --coasting-speed, all in [m/s].
+    """
     group.add_argument("--start-speed", type=float, default=0.0,
                        help="speed at the start line [m/s] (default 0, standing start)")
     group.add_argument("--max-descent-speed", type=float, default=None,
@@ -51,7 +73,15 @@ def add_simulation_flags(group) -> None:
 
 
 def add_air_flags(parser: argparse.ArgumentParser) -> None:
-    """Air and wind flags (issue: cycling physics), shared by plan, compare and fieldtest."""
+    """Add the air and wind flags, shared by plan, compare and fieldtest.
+
+    Parameters
+    ----------
+    parser : argparse.ArgumentParser
+        Gets a group "air and wind": --temperature [°C], --humidity [%],
+        --sea-level-pressure [Pa], --wind-speed [m/s], --wind-from [deg], --wind-height [m]
+        and --roughness [m].
+    """
     group = parser.add_argument_group("air and wind")
     group.add_argument("--temperature", type=float, default=20.0,
                        help="air temperature at the start [°C] (default 20)")
@@ -71,11 +101,21 @@ def add_air_flags(parser: argparse.ArgumentParser) -> None:
 
 
 def check_shared_flags(args: argparse.Namespace) -> None:
-    """Checks of the shared air and wind flags, for every command that has them.
+    """Check the shared air and wind flags, for every command that has them.
 
     A wind speed without its direction is refused (silently taking "from the north" would
-    mislead); a humidity of 1 % or less is taken as typed, with a warning that the flag is in
-    percent.
+    mislead); without wind, --wind-from is set to 0 deg. A humidity of 1 % or less is taken as
+    typed, with a warning that the flag is in percent.
+
+    Parameters
+    ----------
+    args : argparse.Namespace
+        The parsed flags; --wind-from may be filled in [deg].
+
+    Raises
+    ------
+    InputError
+        When --wind-speed is above 0 m/s without --wind-from.
     """
     import warnings
 
@@ -92,7 +132,14 @@ def check_shared_flags(args: argparse.Namespace) -> None:
 
 
 def add_rider_flags(parser: argparse.ArgumentParser) -> None:
-    """Cycling rider flags."""
+    """Add the rider and bike flags (--cda and --drafting serve running too).
+
+    Parameters
+    ----------
+    parser : argparse.ArgumentParser
+        Gets a group "rider and bike": --mass [kg], --cda [m²], --crr [-], --efficiency [-]
+        and --drafting [%].
+    """
     group = parser.add_argument_group("rider and bike")
     group.add_argument("--mass", type=float, default=80.0,
                        help="rider + bike + kit [kg] (default 80)")
@@ -108,13 +155,38 @@ def add_rider_flags(parser: argparse.ArgumentParser) -> None:
 
 
 def require(condition: bool, message: str) -> None:
-    """Raise InputError(message) unless condition holds."""
+    """Refuse bad input in one line.
+
+    Parameters
+    ----------
+    condition : bool
+        What must hold [-].
+    message : str
+        The one-line refusal when it does not [-].
+
+    Raises
+    ------
+    InputError
+        With `message`, unless `condition` holds.
+    """
     if not condition:
         raise InputError(message)
 
 
-def conditions_from_args(args: argparse.Namespace):
-    """The race-day air of the air and wind flags (humidity given in percent)."""
+def conditions_from_args(args: argparse.Namespace) -> Conditions:
+    """The race-day air of the air and wind flags.
+
+    Parameters
+    ----------
+    args : argparse.Namespace
+        The flags of `add_air_flags`, humidity in percent [%].
+
+    Returns
+    -------
+    pacing.weather.conditions.Conditions
+        Temperature [°C], relative humidity as a fraction [-], sea-level pressure [Pa], wind
+        speed [m/s], direction [deg], height [m] and roughness length [m].
+    """
     from pacing.weather.conditions import Conditions
 
     return Conditions(
@@ -128,8 +200,24 @@ def conditions_from_args(args: argparse.Namespace):
     )
 
 
-def load_course_and_bounds(args: argparse.Namespace):
-    """The course of the GPX file and its segment bounds (by grade, or every N metres)."""
+def load_course_and_bounds(args: argparse.Namespace) -> tuple[Course, np.ndarray]:
+    """The course of the GPX file and its segment bounds (by grade, or every N metres).
+
+    Parameters
+    ----------
+    args : argparse.Namespace
+        The flags of `add_course_flags`: route, step [m], segment_length [m], flat [-].
+
+    Returns
+    -------
+    tuple of (Course, numpy.ndarray)
+        The course and its segment boundary point indices [-].
+
+    Raises
+    ------
+    InputError
+        When the file cannot be read as a course.
+    """
     from pacing.course.segments import split_by_grade, split_every
     from pacing.io.gpx import load_course
 
@@ -139,17 +227,44 @@ def load_course_and_bounds(args: argparse.Namespace):
     return course, bounds
 
 
-def notices_as_json(notices) -> list[dict]:
-    """The planning chain's notices for JSON output: code, level, values (SI) and text."""
+def notices_as_json(notices: Iterable[Notice]) -> list[dict[str, Any]]:
+    """The planning chain's notices for JSON output.
+
+    Parameters
+    ----------
+    notices : iterable of pacing.notices.Notice
+        What the chain says beside the numbers [-].
+
+    Returns
+    -------
+    list of dict
+        One {"code", "level", "values", "text"} per notice: values in SI, text in metric
+        words [-].
+    """
     from pacing.display.notices import describe
 
     return [{**n.as_dict(), "text": describe(n, "metric")} for n in notices]
 
 
-def report_notices(notices, table: bool) -> list[str]:
-    """Warnings go to stderr, one line each ("pacing: warning: …", as every warning of the
-    command line); returns the notes as lines to print under a table ("note: …"), none for
-    JSON (the JSON carries every notice under "notices")."""
+def report_notices(notices: Sequence[Notice], table: bool) -> list[str]:
+    """Send the warnings to stderr and give the notes as lines for a table.
+
+    Warnings go to stderr, one line each ("pacing: warning: …", as every warning of the
+    command line); notes come back as lines to print under a table ("note: …"), none for
+    JSON (the JSON carries every notice under "notices").
+
+    Parameters
+    ----------
+    notices : sequence of pacing.notices.Notice
+        What the chain says beside the numbers [-].
+    table : bool
+        True for a readable table, False for JSON output [-].
+
+    Returns
+    -------
+    list of str
+        The notes in metric words, "note: …" (empty for JSON) [-].
+    """
     import warnings
 
     from pacing.display.notices import describe, labelled

@@ -7,6 +7,7 @@ import argparse
 import json
 import sys
 import warnings
+from typing import Any
 
 import numpy as np
 
@@ -16,6 +17,13 @@ from pacing.course.segments import describe_segments, split_by_grade, split_ever
 
 
 def add_parser(subparsers: argparse._SubParsersAction) -> None:
+    """Add the ``course`` command.
+
+    Parameters
+    ----------
+    subparsers : argparse._SubParsersAction
+        The subcommands of ``pacing`` (pacing.cli.build_parser) [-].
+    """
     parser = subparsers.add_parser(
         "course",
         help="summarise a GPX course: distance, ascent, high and low points, segments",
@@ -26,8 +34,25 @@ def add_parser(subparsers: argparse._SubParsersAction) -> None:
     parser.set_defaults(run=run)
 
 
-def course_summary(course: Course, bounds) -> dict:
-    """The course and its segments as plain numbers (SI units; keys name their unit)."""
+def course_summary(course: Course, bounds: np.ndarray) -> dict[str, Any]:
+    """The course and its segments as plain numbers (SI units; keys name their unit).
+
+    Parameters
+    ----------
+    course : Course
+        The course [-].
+    bounds : numpy.ndarray
+        Segment boundary point indices [-].
+
+    Returns
+    -------
+    dict
+        name; distance_m, ascent_m, raw_ascent_m, descent_m, highest_m, highest_at_m,
+        lowest_m, lowest_at_m [m] (0.1 m); step_m [m]; points [-]; smoothing (method,
+        window_m [m], max_grade [-]) or None; segments, one dict each (index, start_m, end_m,
+        length_m, ascent_m, descent_m [m], grade, max_grade [-], heading_deg [deg], kind)
+        [SI].
+    """
     smoothing = course.smoothing
     return {
         "name": course.name,
@@ -55,8 +80,21 @@ def course_summary(course: Course, bounds) -> dict:
     }
 
 
-def format_summary(summary: dict, by_grade: bool) -> str:
-    """A readable summary in km, m and % (one table of segments)."""
+def format_summary(summary: dict[str, Any], by_grade: bool) -> str:
+    """A readable summary in km, m and % (one table of segments).
+
+    Parameters
+    ----------
+    summary : dict
+        As made by `course_summary` (SI) [-].
+    by_grade : bool
+        Whether the segments were cut by terrain (else every so many metres) [-].
+
+    Returns
+    -------
+    str
+        The summary, one line per fact and per segment [-].
+    """
     smoothing = summary["smoothing"]
     lines = [
         f"Course: {summary['name']}",
@@ -87,6 +125,23 @@ def format_summary(summary: dict, by_grade: bool) -> str:
 
 
 def run(args: argparse.Namespace) -> int:
+    """Run ``pacing course``: print the summary as a table or JSON (--json).
+
+    Parameters
+    ----------
+    args : argparse.Namespace
+        The flags of pacing.cli.common.add_course_flags [-].
+
+    Returns
+    -------
+    int
+        The exit code, 0 [-].
+
+    Raises
+    ------
+    InputError
+        When the file cannot be read as a course.
+    """
     from pacing.io.gpx import load_course
 
     with warnings.catch_warnings(record=True) as caught:

@@ -9,12 +9,23 @@ from __future__ import annotations
 import argparse
 
 from pacing.cli.common import add_air_flags, add_course_flags, add_rider_flags, add_simulation_flags
+from pacing.plan.strategies import STRATEGIES
 
-CYCLING_STRATEGIES = ("constant", "fastest", "target-time")
-RUNNING_STRATEGIES = ("equal-effort", "even-pace", "fastest")
+CYCLING_STRATEGIES = tuple(STRATEGIES["cycling"])
+"""The --strategy values for cycling, from the strategy registry (pacing.plan.strategies)."""
+
+RUNNING_STRATEGIES = tuple(STRATEGIES["running"])
+"""The --strategy values for running, from the strategy registry (pacing.plan.strategies)."""
 
 
 def add_parser(subparsers: argparse._SubParsersAction) -> None:
+    """Add the ``plan`` command.
+
+    Parameters
+    ----------
+    subparsers : argparse._SubParsersAction
+        The subcommands of ``pacing`` (pacing.cli.build_parser) [-].
+    """
     parser = subparsers.add_parser(
         "plan",
         help="predict finish time and segment targets for a power or pace plan",
@@ -25,7 +36,17 @@ def add_parser(subparsers: argparse._SubParsersAction) -> None:
 
 
 def add_plan_flags(parser: argparse.ArgumentParser) -> None:
-    """Every flag of the plan command (compare reuses them)."""
+    """Add every flag of the plan command (compare reuses them).
+
+    Parameters
+    ----------
+    parser : argparse.ArgumentParser
+        Gets the course, rider, air and wind flags, --sport, and the groups "cycling plan"
+        (--power [W], --strategy, --target-time [H:MM:SS], --cp [W], --w-prime [J],
+        --w-prime-reserve [J], --max-power-ratio [-] and the simulation flags [m/s]) and
+        "running plan" (--flat-pace [M:SS per km], --body-mass [kg], --height [m],
+        --critical-speed [m/s], --d-prime [m], --downhill-cap [-]).
+    """
     add_course_flags(parser)
     parser.add_argument("--sport", choices=("cycling", "running"), default="cycling")
     add_rider_flags(parser)
@@ -34,8 +55,8 @@ def add_plan_flags(parser: argparse.ArgumentParser) -> None:
     cyc.add_argument("--power", type=float, default=None,
                      help="constant crank power, or the mean power to match [W]")
     cyc.add_argument("--strategy", default=None,
-                     help="cycling: constant|fastest|target-time; "
-                          "running: equal-effort|even-pace|fastest")
+                     help=f"cycling: {'|'.join(CYCLING_STRATEGIES)}; "
+                          f"running: {'|'.join(RUNNING_STRATEGIES)}")
     cyc.add_argument("--target-time", default=None, help="finish time to reach, H:MM:SS")
     cyc.add_argument("--cp", type=float, default=None, help="critical power [W]")
     cyc.add_argument("--w-prime", type=float, default=None, help="W′ [J]")
@@ -58,6 +79,23 @@ def add_plan_flags(parser: argparse.ArgumentParser) -> None:
 
 
 def run(args: argparse.Namespace) -> int:
+    """Run ``pacing plan`` for the sport of --sport.
+
+    Parameters
+    ----------
+    args : argparse.Namespace
+        The flags of `add_plan_flags` [-].
+
+    Returns
+    -------
+    int
+        The exit code, 0 [-].
+
+    Raises
+    ------
+    InputError
+        When the flags, the course or the plan cannot be used (one line for the user).
+    """
     if args.sport == "running":
         from pacing.cli import plan_running
 

@@ -18,8 +18,10 @@ import argparse
 import json
 import math
 import sys
+from typing import TYPE_CHECKING, Any
 
 import numpy as np
+from numpy.typing import ArrayLike
 
 from pacing.cli.common import (
     CAUTION,
@@ -36,6 +38,10 @@ from pacing.plan.prediction import Prediction, SegmentResult, SimulationOptions,
 from pacing.plan.strategies import walking_distance
 from pacing.plan.targets import DEFAULT_BAND, power_band
 
+if TYPE_CHECKING:
+    from pacing.plan.race import RaceRequest, RaceResult
+    from pacing.plan.request import PlanRequest
+
 MASS_RANGE = (20.0, 300.0)
 """Accepted rider + bike mass [kg]."""
 
@@ -49,6 +55,7 @@ Sports Med 26(9):739-746, doi:10.1055/s-2004-830493); 2000 W is above all of the
 
 
 def _number(value: float | None, flag: str) -> float | None:
+    """The flag's value as a float, None when absent; InputError when not finite."""
     if value is None:
         return None
     if not math.isfinite(value):
@@ -57,12 +64,25 @@ def _number(value: float | None, flag: str) -> float | None:
 
 
 def _check(condition: bool, message: str) -> None:
+    """InputError(message) unless condition holds."""
     if not condition:
         raise InputError(message)
 
 
 def validate_args(args: argparse.Namespace) -> None:
-    """One-line InputError for any flag out of range (before any file is read)."""
+    """Check the cycling flags before any file is read.
+
+    Parameters
+    ----------
+    args : argparse.Namespace
+        The parsed flags: --mass [kg], --cda [m²], --crr [-], --efficiency [-],
+        --drafting [%], --power [W], --humidity [%], speeds [m/s], heights and lengths [m].
+
+    Raises
+    ------
+    InputError
+        For the first flag that is not finite or out of its range, in one line.
+    """
     for flag in ("mass", "cda", "crr", "efficiency", "drafting", "power", "start_speed",
                  "temperature", "humidity", "sea_level_pressure", "wind_speed", "wind_from",
                  "wind_height", "roughness", "step", "segment_length", "max_descent_speed",
@@ -94,7 +114,19 @@ def validate_args(args: argparse.Namespace) -> None:
 
 
 def rider_from_args(args: argparse.Namespace) -> Rider:
-    """The Rider of the flags (--mass is rider + bike; --drafting in percent)."""
+    """The Rider of the flags.
+
+    Parameters
+    ----------
+    args : argparse.Namespace
+        --mass, rider + bike [kg]; --cda [m²] (default 0.30); --crr [-]; --efficiency [-];
+        --drafting [%].
+
+    Returns
+    -------
+    pacing.physics.cycling.Rider
+        The power-balance parameters, drafting as a fraction [-].
+    """
     return Rider(
         mass=args.mass,
         drag_area=0.30 if args.cda is None else args.cda,
@@ -104,9 +136,29 @@ def rider_from_args(args: argparse.Namespace) -> Rider:
     )
 
 
-def race_request_from_args(args: argparse.Namespace):
-    """The pacing.plan.race.RaceRequest of the flags: without --strategy a constant plan at
-    --power (CP and W′ checked when given), else the strategy's request."""
+def race_request_from_args(args: argparse.Namespace) -> RaceRequest:
+    """The request for the one planning chain from the cycling flags (after checking them).
+
+    Without --strategy a constant plan at --power (CP and W′ checked when both are given),
+    else the strategy's request (`request_from_args`).
+
+    Parameters
+    ----------
+    args : argparse.Namespace
+        The flags of pacing.cli.plan.add_plan_flags with --sport cycling [-].
+
+    Returns
+    -------
+    pacing.plan.race.RaceRequest
+        Course, segment bounds, conditions, rider, plan request and simulation options
+        (SI) [-].
+
+    Raises
+    ------
+    InputError
+        When a flag is out of range, a flag the plan needs is missing, or the course cannot
+        be read.
+    """
     from pacing.plan.race import RaceRequest
     from pacing.plan.request import PlanRequest
 
@@ -125,9 +177,26 @@ def race_request_from_args(args: argparse.Namespace):
                        cycling=request, options=simulation_options_from_args(args))
 
 
-def plan_from_args(args: argparse.Namespace):
-    """Validate, load and plan through the one chain (pacing.plan.race.plan_race): the
-    RaceResult and the segment summaries of its verified prediction."""
+def plan_from_args(args: argparse.Namespace) -> tuple[RaceResult, list[SegmentResult]]:
+    """Check the flags, load the course and plan through the one chain.
+
+    Parameters
+    ----------
+    args : argparse.Namespace
+        The flags of pacing.cli.plan.add_plan_flags with --sport cycling [-].
+
+    Returns
+    -------
+    tuple of (pacing.plan.race.RaceResult, list of SegmentResult)
+        The result of pacing.plan.race.plan_race and the segment summaries of its verified
+        prediction [-].
+
+    Raises
+    ------
+    InputError
+        When the flags or the course cannot be used, or a target time needs more than
+        HUMAN_POWER_CEILING [W].
+    """
     from pacing.plan.race import plan_race
 
     result = plan_race(race_request_from_args(args))
@@ -140,21 +209,49 @@ def plan_from_args(args: argparse.Namespace):
 
 
 def simulation_options_from_args(args: argparse.Namespace) -> SimulationOptions:
-    """The SimulationOptions of --start-speed, --max-descent-speed and --coasting-speed
-    (the last two optional on the namespace, for commands without them)."""
+    """The inertial simulation's options of the flags.
+
+    Parameters
+    ----------
+    args : argparse.Namespace
+        --start-speed [m/s]; --max-descent-speed and --coasting-speed [m/s], optional on the
+        namespace (for commands without them).
+
+    Returns
+    -------
+    pacing.plan.prediction.SimulationOptions
+        The options [-].
+    """
     return SimulationOptions(start_speed=args.start_speed,
                              max_descent_speed=getattr(args, "max_descent_speed", None),
                              coasting_speed=getattr(args, "coasting_speed", None))
 
 
 def prediction_as_dict(prediction: Prediction, segments: list[SegmentResult], *,
-                       target_power=None, band: float = DEFAULT_BAND) -> dict:
+                       target_power: ArrayLike | None = None,
+                       band: float = DEFAULT_BAND) -> dict[str, Any]:
     """JSON-ready numbers, SI units named in each key.
 
-    Per segment, power_low_w and power_high_w are the band (±`band`, a fraction) around the
-    target power: `target_power` per segment [W] (one number or one per segment), by default
-    the power ridden on the segment. walking_distance_m is the distance walked or ridden below
-    walking pace [m].
+    Parameters
+    ----------
+    prediction : pacing.plan.prediction.Prediction
+        The verified inertial prediction [-].
+    segments : list of SegmentResult
+        Its segment summaries [-].
+    target_power : float or array_like or None, optional
+        Target power, one number or one per segment; None for the power ridden on each
+        segment [W].
+    band : float, optional
+        Half-width of the band around the target, a fraction [-].
+
+    Returns
+    -------
+    dict
+        finish_time_s [s], distance_m [m], average_speed_mps and max_speed_mps [m/s],
+        average_power_w [W], work_kj [kJ], walking_distance_m (distance walked or ridden
+        below walking pace) [m], and per segment start_m, end_m [m], grade [-], power_w,
+        power_low_w, power_high_w (the band ±`band` around the target) [W], speed_mps,
+        max_speed_mps [m/s], time_s [s].
     """
     target = ([s.power for s in segments] if target_power is None
               else np.broadcast_to(np.asarray(target_power, dtype=float), (len(segments),)))
@@ -185,16 +282,36 @@ def prediction_as_dict(prediction: Prediction, segments: list[SegmentResult], *,
 
 
 def _band_text(low: float, high: float) -> str:
+    """"270-286" of a power band [W]."""
     return f"{low:.0f}-{high:.0f}"
 
 
 BAND_HEADER = f" {'band W':>11}"
+"""Heading of the power band column of the tables."""
 
 
 def prediction_as_table(prediction: Prediction, segments: list[SegmentResult], *,
-                        target_power=None, band: float = DEFAULT_BAND) -> str:
-    """A readable table: km, %, W, km/h, H:MM:SS; with `target_power` (per segment or one
-    number) [W], a last column with its band ±`band` (a fraction)."""
+                        target_power: ArrayLike | None = None,
+                        band: float = DEFAULT_BAND) -> str:
+    """A readable table: km, %, W, km/h, H:MM:SS, and a finish line.
+
+    Parameters
+    ----------
+    prediction : pacing.plan.prediction.Prediction
+        The verified inertial prediction [-].
+    segments : list of SegmentResult
+        Its segment summaries [-].
+    target_power : float or array_like or None, optional
+        Target power, one number or one per segment, for a last column with its band; None
+        for no band column [W].
+    band : float, optional
+        Half-width of the band around the target, a fraction [-].
+
+    Returns
+    -------
+    str
+        One line per segment, then the finish (and the band's width) [-].
+    """
     kmh = 3.6
     header = (f"{'#':>3} {'from km':>8} {'to km':>7} {'grade %':>8} {'power W':>8} "
               f"{'speed km/h':>11} {'time':>9} {'elapsed':>9} {'max km/h':>9}")
@@ -227,12 +344,29 @@ def prediction_as_table(prediction: Prediction, segments: list[SegmentResult], *
 
 
 def run(args: argparse.Namespace) -> int:
-    """Run ``pacing plan`` for cycling; returns the exit code."""
+    """Run ``pacing plan`` for cycling: print the table or JSON, notices on stderr.
+
+    Parameters
+    ----------
+    args : argparse.Namespace
+        The flags of pacing.cli.plan.add_plan_flags with --sport cycling [-].
+
+    Returns
+    -------
+    int
+        The exit code, 0 [-].
+
+    Raises
+    ------
+    InputError
+        When the flags, the course or the plan cannot be used.
+    """
     from pacing.cli.plan_running import warn_flags_of_other_sport
 
     warn_flags_of_other_sport(args, "cycling")
     result, segments = plan_from_args(args)
     plan = result.plan
+    assert isinstance(plan, RacePlan)  # a cycling request makes a cycling plan
     if args.json:
         output = (prediction_as_dict(plan.prediction, segments, target_power=args.power)
                   if args.strategy is None else plan_as_dict(plan, segments))
@@ -252,9 +386,25 @@ def run(args: argparse.Namespace) -> int:
 
 # ------------------------------------------------------------------ --strategy (issue 4)
 
-def request_from_args(args: argparse.Namespace):
-    """The pacing.plan.request.PlanRequest of --strategy, --power, --target-time, --cp, --w-prime,
-    --w-prime-reserve and --max-power-ratio."""
+def request_from_args(args: argparse.Namespace) -> PlanRequest:
+    """The cycling plan request of --strategy and its flags.
+
+    Parameters
+    ----------
+    args : argparse.Namespace
+        --strategy, --power [W], --target-time [H:MM:SS], --cp [W], --w-prime [J],
+        --w-prime-reserve [J] and --max-power-ratio [-].
+
+    Returns
+    -------
+    pacing.plan.request.PlanRequest
+        The strategy with its mean power [W] or target time [s] and limits [-].
+
+    Raises
+    ------
+    InputError
+        When the strategy is unknown, a flag it needs is missing, or a value is out of range.
+    """
     from pacing.cli.plan import CYCLING_STRATEGIES
     from pacing.display.units import parse_clock
     from pacing.plan.request import PlanRequest
@@ -289,9 +439,24 @@ def request_from_args(args: argparse.Namespace):
     )
 
 
-def check_target_time_plan(plan, clock: str) -> None:
-    """Refuse a target-time plan beyond what any rider holds (HUMAN_POWER_CEILING). (Without
-    CP and W′ the chain's notice "target-time-unchecked" says the power is not checked.)"""
+def check_target_time_plan(plan: RacePlan, clock: str) -> None:
+    """Refuse a target-time plan beyond what any rider holds (HUMAN_POWER_CEILING).
+
+    Without CP and W′ the chain's notice "target-time-unchecked" says the power is not
+    checked against the athlete.
+
+    Parameters
+    ----------
+    plan : pacing.plan.cycling.RacePlan
+        The target-time plan [-].
+    clock : str
+        The --target-time as typed, for the message [H:MM:SS].
+
+    Raises
+    ------
+    InputError
+        When a segment needs more than HUMAN_POWER_CEILING [W].
+    """
     power = float(np.max(plan.segment_power))
     if power > HUMAN_POWER_CEILING:
         raise InputError(f"--target-time {clock} is not reachable: it needs {power:.0f} W, "
@@ -299,10 +464,24 @@ def check_target_time_plan(plan, clock: str) -> None:
                          "give a longer time")
 
 
-def plan_as_dict(plan, segments: list[SegmentResult]) -> dict:
-    """The JSON of the plain prediction plus the plan: strategy, time_saved_s,
-    min_w_prime_balance_j, and per segment power_w (the target), its band power_low_w and
-    power_high_w (± the request's band) and w_prime_balance_j."""
+def plan_as_dict(plan: RacePlan, segments: list[SegmentResult]) -> dict[str, Any]:
+    """The JSON of the plain prediction plus the plan.
+
+    Parameters
+    ----------
+    plan : pacing.plan.cycling.RacePlan
+        The plan with its verified prediction [-].
+    segments : list of SegmentResult
+        The prediction's segment summaries [-].
+
+    Returns
+    -------
+    dict
+        `prediction_as_dict`'s keys plus strategy, time_saved_s [s], reference_power_w and
+        effort_weighted_power_w [W], min_w_prime_balance_j [J] and min_w_prime_distance_m
+        [m], binding; per segment power_w (the target), its band power_low_w and
+        power_high_w (± the request's band), ridden_power_w [W] and w_prime_balance_j [J].
+    """
     result = prediction_as_dict(plan.prediction, segments, target_power=plan.segment_power,
                                 band=plan.request.band)
     result["strategy"] = plan.strategy
@@ -320,8 +499,22 @@ def plan_as_dict(plan, segments: list[SegmentResult]) -> dict:
     return result
 
 
-def plan_as_table(plan, segments: list[SegmentResult]) -> str:
-    """The prediction table with the target power per segment and a summary of the plan."""
+def plan_as_table(plan: RacePlan, segments: list[SegmentResult]) -> str:
+    """The prediction table with the target power per segment and a summary of the plan.
+
+    Parameters
+    ----------
+    plan : pacing.plan.cycling.RacePlan
+        The plan with its verified prediction [-].
+    segments : list of SegmentResult
+        The prediction's segment summaries [-].
+
+    Returns
+    -------
+    str
+        `prediction_as_table` with target [W], band [W] and W′ balance [kJ] columns, and a
+        line on the time gained [s] and the lowest W′ balance [kJ] [-].
+    """
     lines = prediction_as_table(plan.prediction, segments).splitlines()
     header, rows, footer = lines[0], lines[1:1 + len(segments)], lines[1 + len(segments):]
     header += f" {'target W':>9}" + BAND_HEADER
@@ -340,8 +533,9 @@ def plan_as_table(plan, segments: list[SegmentResult]) -> str:
     summary = (f"strategy {plan.strategy}: {plan.time_saved:.1f} s faster than constant "
                f"{plan.reference_power:.0f} W; effort-weighted power "
                f"{plan.effort_weighted_power:.0f} W")
-    if plan.min_w_prime_balance is not None:
+    where = plan.min_w_prime_distance
+    if plan.min_w_prime_balance is not None and where is not None:
         summary += (f"; lowest W′ balance {plan.min_w_prime_balance / 1000:.1f} kJ at km "
-                    f"{plan.min_w_prime_distance / 1000:.2f}")
+                    f"{where / 1000:.2f}")
     out.append(summary)
     return "\n".join(out)

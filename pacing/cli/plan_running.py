@@ -12,6 +12,7 @@ import json
 import math
 import sys
 import warnings
+from typing import TYPE_CHECKING, Any
 
 from pacing.athlete import Athlete
 from pacing.cli.common import (
@@ -21,16 +22,18 @@ from pacing.cli.common import (
     notices_as_json,
     report_notices,
 )
+from pacing.cli.plan import RUNNING_STRATEGIES, add_plan_flags
 from pacing.display import units
 from pacing.display.notices import describe_all
 from pacing.errors import InputError
 from pacing.physics.running import Runner
 from pacing.physiology.critical_speed import critical_speed_flat_race_time
-from pacing.plan.running import (
-    DOWNHILL_SPEED_RATIO_CAP,
-    RUNNING_STRATEGIES,
-    RunningPlan,
-)
+from pacing.plan.even_pace import RUNNING_SPEED_RANGE
+from pacing.plan.running import DOWNHILL_SPEED_RATIO_CAP, RunningPlan
+
+if TYPE_CHECKING:
+    from pacing.course.geometry import Course
+    from pacing.plan.race import RaceRequest, RaceResult
 
 SHARED_FLAGS = frozenset({"strategy", "cda", "drafting"})
 """Destinations of the cycling and rider groups' flags that running uses too."""
@@ -38,18 +41,29 @@ SHARED_FLAGS = frozenset({"strategy", "cda", "drafting"})
 _GROUPS_OF_SPORT = {"cycling": ("cycling plan", "rider and bike"), "running": ("running plan",)}
 """Titles of the plan command's argument groups that belong to each sport."""
 
-FLAT_PACE_RANGE = (1000.0 / 12.0, 1000.0 / 0.5)
-"""Flat paces accepted, 1:24-33:20 per km [s/km] (as pacing.physics.running.flat_effort)."""
+FLAT_PACE_RANGE = (1000.0 / RUNNING_SPEED_RANGE[1], 1000.0 / RUNNING_SPEED_RANGE[0])
+"""Flat paces accepted, 1:24-33:20 per km [s/km] (pacing.plan.even_pace.RUNNING_SPEED_RANGE,
+as pacing.physics.running.flat_effort)."""
 
 
 def flags_of_other_sport(args: argparse.Namespace, sport: str) -> list[str]:
     """The flags given (not at their default) that only the other sport uses.
 
     Read from the plan command's own parser (pacing.cli.plan.add_plan_flags), so a flag added
-    to a sport's group is covered without a list here. `sport` is the sport being planned.
-    """
-    from pacing.cli.plan import add_plan_flags
+    to a sport's group is covered without a list here.
 
+    Parameters
+    ----------
+    args : argparse.Namespace
+        The parsed flags [-].
+    sport : str
+        The sport being planned, "cycling" or "running" [-].
+
+    Returns
+    -------
+    list of str
+        The flags as typed, e.g. ["--power", "--cp"] [-].
+    """
     parser = argparse.ArgumentParser(add_help=False)
     add_plan_flags(parser)
     other = "cycling" if sport == "running" else "running"
@@ -66,7 +80,15 @@ def flags_of_other_sport(args: argparse.Namespace, sport: str) -> list[str]:
 
 
 def warn_flags_of_other_sport(args: argparse.Namespace, sport: str) -> None:
-    """A one-line warning naming the given flags that the planned sport ignores."""
+    """Warn in one line about the given flags that the planned sport ignores.
+
+    Parameters
+    ----------
+    args : argparse.Namespace
+        The parsed flags [-].
+    sport : str
+        The sport being planned, "cycling" or "running" [-].
+    """
     given = flags_of_other_sport(args, sport)
     if not given:
         return
@@ -79,7 +101,24 @@ def warn_flags_of_other_sport(args: argparse.Namespace, sport: str) -> None:
 
 
 def downhill_cap_from_args(args: argparse.Namespace) -> float | None:
-    """--downhill-cap: a ratio to the flat speed (≥ 1), 'none' for no cap; default 1.2."""
+    """The descent cap of --downhill-cap.
+
+    Parameters
+    ----------
+    args : argparse.Namespace
+        The parsed flags; --downhill-cap as typed: a ratio, "none" or "off" [-].
+
+    Returns
+    -------
+    float or None
+        The highest descent speed over the flat speed, 1..3, default 1.2; None for no
+        cap [-].
+
+    Raises
+    ------
+    InputError
+        When the text is not a number 1-3, "none" or "off".
+    """
     text = getattr(args, "downhill_cap", None)
     if text is None:
         return DOWNHILL_SPEED_RATIO_CAP
@@ -96,7 +135,24 @@ def downhill_cap_from_args(args: argparse.Namespace) -> float | None:
 
 
 def flat_speed_from_pace(text: str) -> float:
-    """--flat-pace M:SS per km → speed [m/s]; out of range is refused as typed."""
+    """The speed of a --flat-pace.
+
+    Parameters
+    ----------
+    text : str
+        The pace as typed, M:SS per km [s/km].
+
+    Returns
+    -------
+    float
+        The flat-ground speed [m/s].
+
+    Raises
+    ------
+    InputError
+        When the text is not a clock time or the pace is outside 1:24-33:20 per km (said as
+        typed).
+    """
     pace = units.parse_clock(text, "--flat-pace")
     low, high = FLAT_PACE_RANGE
     if not low <= pace <= high:
@@ -105,7 +161,25 @@ def flat_speed_from_pace(text: str) -> float:
 
 
 def runner_from_args(args: argparse.Namespace) -> Runner:
-    """The Runner of the flags: --body-mass, --height or --cda, --drafting [%]."""
+    """The Runner of the flags.
+
+    Parameters
+    ----------
+    args : argparse.Namespace
+        --body-mass [kg], --height [m] or --cda [m²] (not both), --drafting [%]; absent
+        ones take pacing.athlete.Athlete's defaults [-].
+
+    Returns
+    -------
+    pacing.physics.running.Runner
+        Body mass [kg], drag area [m²] (from height and mass unless --cda) and drafting
+        reduction [-].
+
+    Raises
+    ------
+    InputError
+        When both --height and --cda are given, or a value is out of range.
+    """
     defaults = Athlete()
     body_mass = defaults.body_mass if args.body_mass is None else args.body_mass
     if args.height is not None and args.cda is not None:
@@ -119,7 +193,18 @@ def runner_from_args(args: argparse.Namespace) -> Runner:
 
 
 def validate_args(args: argparse.Namespace) -> None:
-    """One-line InputError for flags out of range, before any file is read."""
+    """Check the running flags before any file is read.
+
+    Parameters
+    ----------
+    args : argparse.Namespace
+        The parsed flags [-].
+
+    Raises
+    ------
+    InputError
+        When a number is not finite or --humidity is outside 0-100 %.
+    """
     for flag in ("body_mass", "height", "cda", "drafting", "critical_speed", "d_prime",
                  "temperature", "humidity", "sea_level_pressure", "wind_speed", "wind_from",
                  "wind_height", "roughness", "step", "segment_length"):
@@ -130,8 +215,25 @@ def validate_args(args: argparse.Namespace) -> None:
         raise InputError(f"--humidity must be 0-100 %, got {args.humidity:g}")
 
 
-def race_request_from_args(args: argparse.Namespace):
-    """The pacing.plan.race.RaceRequest of the running flags (after checking them)."""
+def race_request_from_args(args: argparse.Namespace) -> RaceRequest:
+    """The request for the one planning chain from the running flags (after checking them).
+
+    Parameters
+    ----------
+    args : argparse.Namespace
+        The flags of pacing.cli.plan.add_plan_flags with --sport running [-].
+
+    Returns
+    -------
+    pacing.plan.race.RaceRequest
+        Course, segment bounds, conditions, runner and running request (SI) [-].
+
+    Raises
+    ------
+    InputError
+        When a flag is out of range, a strategy unknown, the course unreadable, or critical
+        speed and D′ not given together.
+    """
     from pacing.plan.race import RaceRequest, RunningRequest
 
     validate_args(args)
@@ -159,7 +261,8 @@ def race_request_from_args(args: argparse.Namespace):
                        strategy=strategy, runner=runner, running=running)
 
 
-def _flat_speed(args: argparse.Namespace, strategy: str, course, has_critical: bool):
+def _flat_speed(args: argparse.Namespace, strategy: str, course: Course,
+                has_critical: bool) -> float | None:
     """The flat-ground speed of --flat-pace, or the pace that spends D′ exactly over the
     course's distance on flat ground (CS model) [m/s]; None for the fastest plan."""
     if strategy == "fastest":
@@ -178,9 +281,24 @@ def _flat_speed(args: argparse.Namespace, strategy: str, course, has_critical: b
                      "--d-prime")
 
 
-def make_plan(args: argparse.Namespace):
-    """Load the course and plan the run the flags ask for, through the one planning chain
-    (pacing.plan.race.plan_race): the RaceResult."""
+def make_plan(args: argparse.Namespace) -> RaceResult:
+    """Load the course and plan the run the flags ask for, through the one planning chain.
+
+    Parameters
+    ----------
+    args : argparse.Namespace
+        The flags of pacing.cli.plan.add_plan_flags with --sport running [-].
+
+    Returns
+    -------
+    pacing.plan.race.RaceResult
+        The plan (pacing.plan.running.RunningPlan), its target rows and notices [-].
+
+    Raises
+    ------
+    InputError
+        When the flags, the course or the plan cannot be used.
+    """
     from pacing.plan.race import plan_race
 
     return plan_race(race_request_from_args(args))
@@ -196,7 +314,7 @@ def _optional(value: float | None) -> float | None:
     return None if value is None else float(value)
 
 
-def plan_as_dict(plan: RunningPlan, runner: Runner | None = None) -> dict:
+def plan_as_dict(plan: RunningPlan, runner: Runner | None = None) -> dict[str, Any]:
     """JSON-ready numbers (SI units; paces in seconds per km).
 
     Besides the cycling keys (finish_time_s, distance_m, average_speed_mps, max_speed_mps,
@@ -206,6 +324,19 @@ def plan_as_dict(plan: RunningPlan, runner: Runner | None = None) -> dict:
     min_d_prime_balance_m and where (fastest, or with --critical-speed and --d-prime; else
     null); limited_even_pace_time_s, the fastest even pace within the same CS and D′ (fastest).
     Per segment: pace_s_per_km, max_speed_mps, d_prime_balance_m (null without CS and D′).
+
+    Parameters
+    ----------
+    plan : pacing.plan.running.RunningPlan
+        The plan [-].
+    runner : pacing.physics.running.Runner or None, optional
+        The runner, to add body_mass_kg [kg] and drag_area_m2 [m²] [-].
+
+    Returns
+    -------
+    dict
+        The keys above, each ending with its unit; "notes" holds the plan's notes in metric
+        words [-].
     """
     about_runner = {} if runner is None else {
         "body_mass_kg": runner.body_mass, "drag_area_m2": runner.drag_area}
@@ -251,6 +382,7 @@ def plan_as_dict(plan: RunningPlan, runner: Runner | None = None) -> dict:
 
 
 def _what_the_plan_holds(plan: RunningPlan) -> str:
+    """One line on what the plan's strategy holds to, for the table."""
     if plan.strategy == "even-pace":
         return ("even pace: one speed whose time-weighted mean effort equals the target; "
                 f"it runs up to {plan.peak_effort_ratio:.0%} of the target on the hardest piece")
@@ -262,8 +394,22 @@ def _what_the_plan_holds(plan: RunningPlan) -> str:
 
 
 def plan_as_table(plan: RunningPlan, runner: Runner | None = None) -> str:
-    """A readable target table: paces in min/km and min/mile, effort per segment as a share
-    of the target, D′ balance at each segment's end when known."""
+    """A readable target table.
+
+    Parameters
+    ----------
+    plan : pacing.plan.running.RunningPlan
+        The plan [-].
+    runner : pacing.physics.running.Runner or None, optional
+        The runner, to name body mass [kg] and CdA [m²] in the title [-].
+
+    Returns
+    -------
+    str
+        Km, grade [%], headwind [m/s], paces in min/km and min/mile, split and elapsed times,
+        effort per segment as a share of the target [%], D′ balance at each segment's end
+        when known [m], and a finish line [-].
+    """
     about_runner = "" if runner is None else (
         f"   runner {runner.body_mass:g} kg, CdA {runner.drag_area:.2f} m²")
     has_balance = plan.d_prime_balance is not None
@@ -300,17 +446,35 @@ def plan_as_table(plan: RunningPlan, runner: Runner | None = None) -> str:
 
 
 def run(args: argparse.Namespace) -> int:
-    """Run ``pacing plan --sport running``; returns the exit code."""
+    """Run ``pacing plan --sport running``: print the table or JSON, notices on stderr.
+
+    Parameters
+    ----------
+    args : argparse.Namespace
+        The flags of pacing.cli.plan.add_plan_flags with --sport running [-].
+
+    Returns
+    -------
+    int
+        The exit code, 0 [-].
+
+    Raises
+    ------
+    InputError
+        When the flags, the course or the plan cannot be used.
+    """
     result = make_plan(args)
+    plan = result.plan
+    assert isinstance(plan, RunningPlan)  # a running request makes a running plan
     runner = result.request.runner
     if args.json:
-        output = plan_as_dict(result.plan, runner)
+        output = plan_as_dict(plan, runner)
         output["notices"] = notices_as_json(result.notices)
         report_notices(result.notices, table=False)
         json.dump(output, sys.stdout, indent=2)
         sys.stdout.write("\n")
         return 0
-    print(plan_as_table(result.plan, runner))
+    print(plan_as_table(plan, runner))
     for line in report_notices(result.notices, table=True):
         print(line)
     print(RUNNING_CAUTION)

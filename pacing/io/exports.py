@@ -19,7 +19,7 @@ import csv
 import io
 import math
 from collections.abc import Iterable, Mapping, Sequence
-from typing import Any
+from typing import TYPE_CHECKING, Any
 
 import pandas as pd
 
@@ -32,6 +32,9 @@ from pacing.display.units import (
 )
 from pacing.errors import InputError
 from pacing.io.gpx import write_gpx
+
+if TYPE_CHECKING:
+    from matplotlib.figure import Figure
 
 CAUTION_LINE = (
     "Speeds are estimates, not safe limits. Ride within your skills, the road, "
@@ -54,12 +57,14 @@ CARD_DPI = 150
 
 
 def _field(row: Any, name: str) -> Any:
+    """The row's value of `name`, from a mapping or an attribute; None when absent."""
     if isinstance(row, Mapping):
         return row.get(name)
     return getattr(row, name, None)
 
 
 def _number(row: Any, name: str) -> float | None:
+    """The row's value of `name` as a float; None when absent or not finite."""
     value = _field(row, name)
     if value is None:
         return None
@@ -79,6 +84,7 @@ def _required(row: Any, name: str) -> float:
 
 
 def _rows(rows: Iterable[Any]) -> list[Any]:
+    """The rows as a list, refused when empty or missing start, end or times."""
     rows = list(rows)
     if not rows:
         raise InputError("there are no segments to export")
@@ -90,6 +96,7 @@ def _rows(rows: Iterable[Any]) -> list[Any]:
 
 
 def _has(rows: Sequence[Any], name: str) -> bool:
+    """Whether some row has a finite number for `name`."""
     return any(_number(row, name) is not None for row in rows)
 
 
@@ -105,8 +112,20 @@ def segment_table(rows: Iterable[Any], system: str = "metric") -> pd.DataFrame:
 
     Parameters
     ----------
-    rows : segment targets in SI units (see module docstring).
-    system : "metric" or "imperial".
+    rows : iterable of SegmentTarget or mapping
+        Segment targets in SI units (see the module docstring) [SI].
+    system : {"metric", "imperial"}, optional
+        The unit system of the table [-].
+
+    Returns
+    -------
+    pandas.DataFrame
+        One row per segment, the columns above [display units].
+
+    Raises
+    ------
+    InputError
+        When there are no rows, or a row lacks start, end, time or cumulative time.
     """
     rows = _rows(rows)
     dist = unit_label("distance", system)
@@ -137,11 +156,7 @@ def segment_table(rows: Iterable[Any], system: str = "metric") -> pd.DataFrame:
             table["Power low [W]"] = col("power_low", digits=0)
             table["Power high [W]"] = col("power_high", digits=0)
     if _has(rows, "target_pace"):
-        table[f"Target pace [{pace}]"] = [
-            None if _number(r, "target_pace") is None
-            else format_pace(float(pace_per_km_to_display(_number(r, "target_pace"), system)))
-            for r in rows
-        ]
+        table[f"Target pace [{pace}]"] = [_pace_text(r, system) for r in rows]
     table[f"Speed [{speed}]"] = col("speed", "speed", digits=1)
     if _has(rows, "headwind"):
         table[f"Headwind [{speed}]"] = col("headwind", "wind_speed", digits=1)
@@ -158,15 +173,16 @@ def table_to_csv(table: pd.DataFrame, notices: Sequence[str] = ()) -> bytes:
     Parameters
     ----------
     table : pandas.DataFrame
-        The segment table (`segment_table`).
-    notices : sequence of str
+        The segment table (`segment_table`) [display units].
+    notices : sequence of str, optional
         The plan's warnings and notes in words ("warning: …"), written first as comment lines
         starting with "# " (read back with ``pandas.read_csv(..., comment="#")``); none, and
-        the file is the bare table.
+        the file is the bare table [-].
 
     Returns
     -------
     bytes
+        The CSV file, UTF-8 [-].
     """
     buffer = io.StringIO()
     for line in notices:
@@ -183,6 +199,22 @@ def table_to_xlsx(table: pd.DataFrame, sheet_name: str = "segment targets",
     properties, not in a cell, so the sheet reads straight back into a table). The plan's
     warnings and notes in words (`notices`), if any, go on a second sheet, "warnings and
     notes", one per row.
+
+    Parameters
+    ----------
+    table : pandas.DataFrame
+        The segment table (`segment_table`) [display units].
+    sheet_name : str, optional
+        Name of the targets sheet, cut to Excel's 31 characters [-].
+    title : str or None, optional
+        The workbook's title property [-].
+    notices : sequence of str, optional
+        The plan's warnings and notes in words [-].
+
+    Returns
+    -------
+    bytes
+        The .xlsx file [-].
     """
     buffer = io.BytesIO()
     with pd.ExcelWriter(buffer, engine="openpyxl") as writer:
@@ -202,7 +234,16 @@ def table_to_xlsx(table: pd.DataFrame, sheet_name: str = "segment targets",
     return buffer.getvalue()
 
 
+def _pace_text(row: Any, system: str) -> str | None:
+    """"4:35" of the row's target pace in `system` (per km or per mile); None without one."""
+    pace = _number(row, "target_pace")
+    if pace is None:
+        return None
+    return format_pace(float(pace_per_km_to_display(pace, system)))
+
+
 def _target_text(row: Any, system: str) -> str:
+    """"285 W", "4:35 min/km", both joined by " · ", or "steady" without a target."""
     power = _number(row, "target_power")
     pace = _number(row, "target_pace")
     parts = []
@@ -215,10 +256,27 @@ def _target_text(row: Any, system: str) -> str:
 
 
 def segment_waypoints(rows: Iterable[Any], system: str = "metric") -> list[tuple[float, str, str]]:
-    """One waypoint per segment start: (distance [m], name, description) with its target.
+    """One waypoint per segment start, with its target.
 
     Name: "S3 285 W" (or "S3 4:35 min/km"); description: where it starts, the target, the
-    expected speed, split and elapsed time, in `system` units.
+    expected speed, grade, split and elapsed time, in `system` units.
+
+    Parameters
+    ----------
+    rows : iterable of SegmentTarget or mapping
+        Segment targets in SI units (see the module docstring) [SI].
+    system : {"metric", "imperial"}, optional
+        The unit system of the words [-].
+
+    Returns
+    -------
+    list of (float, str, str)
+        Distance of the segment's start from the first point, name, description [m, -, -].
+
+    Raises
+    ------
+    InputError
+        When there are no rows, or a row lacks start, end, time or cumulative time.
     """
     rows = _rows(rows)
     points = []
@@ -244,6 +302,25 @@ def course_with_targets_gpx(course: Any, rows: Iterable[Any], system: str = "met
     """The course as a GPX 1.1 track with a waypoint at each segment start carrying its target.
 
     Uses pacing.io.gpx.write_gpx(course, waypoints) (the project's GPX writer).
+
+    Parameters
+    ----------
+    course : Course
+        The course [-].
+    rows : iterable of SegmentTarget or mapping
+        Segment targets in SI units (see the module docstring) [SI].
+    system : {"metric", "imperial"}, optional
+        The unit system of the waypoints' words [-].
+
+    Returns
+    -------
+    str
+        The GPX document [-].
+
+    Raises
+    ------
+    InputError
+        When there are no rows, or a row lacks start, end, time or cumulative time.
     """
     return write_gpx(course, segment_waypoints(rows, system))
 
@@ -253,8 +330,25 @@ CARD_WARNING_HEIGHT = 0.45
 
 
 def card_size(segment_count: int, warning_count: int = 0) -> tuple[float, float]:
-    """Size of the printed card (width, height) [in] for a number of segments and of
-    warnings printed above the caution line."""
+    """Size of the printed card for a number of segments and of warnings.
+
+    Parameters
+    ----------
+    segment_count : int
+        Segments on the card, ≥ 1 [-].
+    warning_count : int, optional
+        Warnings printed above the caution line [-].
+
+    Returns
+    -------
+    tuple of float
+        (width, height) [in].
+
+    Raises
+    ------
+    InputError
+        When there is no segment.
+    """
     if segment_count < 1:
         raise InputError("there are no segments to put on the card")
     columns = math.ceil(segment_count / ROWS_PER_CARD_COLUMN)
@@ -264,7 +358,10 @@ def card_size(segment_count: int, warning_count: int = 0) -> tuple[float, float]
             + CARD_WARNING_HEIGHT * warning_count)
 
 
-def _card_figure(rows: Sequence[Any], system: str, title: str, warnings: Sequence[str] = ()):
+def _card_figure(rows: Sequence[Any], system: str, title: str,
+                 warnings: Sequence[str] = ()) -> Figure:
+    """The card as a matplotlib Figure, drawn in inches (y down): title and finish, one
+    column of segments per ROWS_PER_CARD_COLUMN, warnings, caution."""
     from matplotlib.backends.backend_agg import FigureCanvasAgg
     from matplotlib.figure import Figure
 
@@ -312,6 +409,7 @@ def _card_figure(rows: Sequence[Any], system: str, title: str, warnings: Sequenc
 
 
 def _wrap(text: str, width_inches: float) -> str:
+    """The text wrapped to about 15 characters per inch of width [in]."""
     import textwrap
 
     return "\n".join(textwrap.wrap(text, width=max(20, int(width_inches * 15))))
@@ -323,6 +421,29 @@ def target_card_png(rows: Iterable[Any], system: str = "metric", title: str = "r
 
     Large type: segment start (km or mi), target power or pace, expected split; the plan's
     warnings in words (e.g. where W′ runs out), then a caution line at the bottom.
+
+    Parameters
+    ----------
+    rows : iterable of SegmentTarget or mapping
+        Segment targets in SI units (see the module docstring) [SI].
+    system : {"metric", "imperial"}, optional
+        The unit system of the card [-].
+    title : str, optional
+        Printed at the top, cut to 40 characters [-].
+    dpi : int, optional
+        Resolution [dots per inch].
+    warnings : sequence of str, optional
+        The plan's warnings in words, printed above the caution [-].
+
+    Returns
+    -------
+    bytes
+        The PNG image [-].
+
+    Raises
+    ------
+    InputError
+        When there are no rows, or a row lacks start, end, time or cumulative time.
     """
     rows = _rows(rows)
     buffer = io.BytesIO()
@@ -332,7 +453,29 @@ def target_card_png(rows: Iterable[Any], system: str = "metric", title: str = "r
 
 def target_card_pdf(rows: Iterable[Any], system: str = "metric", title: str = "race plan",
                     warnings: Sequence[str] = ()) -> bytes:
-    """The printable target card as a one-page PDF (see target_card_png)."""
+    """The printable target card as a one-page PDF (see target_card_png).
+
+    Parameters
+    ----------
+    rows : iterable of SegmentTarget or mapping
+        Segment targets in SI units (see the module docstring) [SI].
+    system : {"metric", "imperial"}, optional
+        The unit system of the card [-].
+    title : str, optional
+        Printed at the top, cut to 40 characters [-].
+    warnings : sequence of str, optional
+        The plan's warnings in words, printed above the caution [-].
+
+    Returns
+    -------
+    bytes
+        The PDF document [-].
+
+    Raises
+    ------
+    InputError
+        When there are no rows, or a row lacks start, end, time or cumulative time.
+    """
     rows = _rows(rows)
     buffer = io.BytesIO()
     _card_figure(rows, system, title, warnings).savefig(buffer, format="pdf")

@@ -2,12 +2,12 @@
 speed and D′ allow, with their segment target rows.
 
 The athlete's *effort* is the metabolic power of the flat-ground pace in still air at the
-start's air density (pacing.physics.running: Minetti et al. 2002 cost of running on grades plus air
-resistance). An *equal-effort* plan runs every piece at the speed with that metabolic power; an
-*even-pace* plan runs one speed everywhere; the *fastest* plan is the highest equal effort that
-the runner's critical speed and D′ allow (D′ balance by Skiba's differential form, see
-`pacing.physiology.critical_speed.distance_capacity_balance`). The even-pace references and the D′
-balance of a plan are in pacing.plan.even_pace.
+start's air density (pacing.physics.running: the Minetti et al. 2002 cost of running on grades
+plus air resistance). An *equal-effort* plan runs every piece at the speed with that metabolic
+power; an *even-pace* plan runs one speed everywhere; the *fastest* plan is the highest equal
+effort that the runner's critical speed and D′ allow (D′ balance by Skiba's differential form,
+see `pacing.physiology.critical_speed.distance_capacity_balance`). The even-pace references and
+the D′ balance of a plan are in pacing.plan.even_pace.
 
 What each plan holds to, and which is faster
 --------------------------------------------
@@ -33,19 +33,22 @@ by a few seconds. That is the model's physics, not a flaw of either plan: the pr
 pace is the effort above the target on every climb, which an equal-effort runner never pays.
 With wind, e_j depends on the air speed v + w_j, and equal effort gains into a headwind and
 loses little with a tailwind, so on a flat out-and-back in wind it is at least as fast as even
-pace at the same mean effort (issue 5's property, tested). Each plan carries the even pace at
-its own mean effort (`even_pace_time`, `time_saved`) so the two can be compared fairly.
+pace at the same mean effort (a property tested in tests/test_plan_running.py). Each plan
+carries the even pace at its own mean effort (`even_pace_time`, `time_saved`) so the two can be
+compared fairly.
 
 References
 ----------
 Minetti, A.E., Moia, C., Roi, G.S., Susta, D. & Ferretti, G. (2002). Energy cost of walking and
 running at extreme uphill and downhill slopes. J Appl Physiol 93(3):1039-1046.
-Poole, D.C. et al. (2016). Critical power: an important fatigue threshold in exercise
-physiology. Med Sci Sports Exerc 48(11):2320-2334.
-Skiba, P.F. et al. (2015). Intramuscular determinants of the ability to recover work capacity
-above critical power. Eur J Appl Physiol 115(4):703-713.
+doi:10.1152/japplphysiol.01177.2001
+Poole, D.C., Burnley, M., Vanhatalo, A., Rossiter, H.B. & Jones, A.M. (2016). Critical power:
+an important fatigue threshold in exercise physiology. Med Sci Sports Exerc 48(11):2320-2334.
+doi:10.1249/MSS.0000000000000939
+Skiba, P.F., Fulford, J., Clarke, D.C., Vanhatalo, A. & Jones, A.M. (2015). Intramuscular
+determinants of the ability to recover work capacity above critical power. Eur J Appl Physiol
+115(4):703-713. doi:10.1007/s00421-014-3050-3
 """
-
 
 from __future__ import annotations
 
@@ -65,13 +68,14 @@ from pacing.physics.running import (
 )
 from pacing.physiology.critical_speed import check_critical_speed, distance_capacity_balance
 from pacing.plan.even_pace import (
+    RUNNING_SPEED_RANGE,
+    EvenPaceReference,
     check_limits,
     even_pace_reference,
     even_pace_speed,
     even_pace_within_limits,
     highest_feasible_speed,
     lowest_even_pace_balance,
-    pace_clock,
     piece_air,
     piece_metabolic_power,
     plan_d_prime_balance,
@@ -90,23 +94,34 @@ memory), so 1.2 leaves room for steeper descents without the model's excess."""
 DEFAULT_SPLIT = 1000.0
 """Segment length when no segment bounds are given [m]: kilometre splits."""
 
-
 @dataclass(frozen=True)
 class RunningSegment:
     """One row of a running plan's target table (numbers only; formatting at the edges).
 
     Attributes
     ----------
-    start, end : distance from the start [m].
-    grade : mean grade, rise/run [-].
-    headwind : length-weighted mean headwind component [m/s] (negative: tailwind).
-    speed : mean ground speed [m/s].
-    pace : target pace [s/km].
-    time : expected time on the segment [s].
-    cumulative_time : elapsed time at the segment's end [s].
-    effort_ratio : time-weighted mean metabolic power relative to the effort target [-].
-    max_speed : highest speed on a piece of the segment [m/s].
-    d_prime_balance : D′ balance at the segment's end [m] (None without critical speed and D′).
+    start : float
+        Distance of the segment's start from the course's first point [m].
+    end : float
+        Distance of the segment's end from the course's first point [m].
+    grade : float
+        Mean grade, rise/run [-].
+    headwind : float
+        Length-weighted mean headwind component (negative: tailwind) [m/s].
+    speed : float
+        Mean ground speed [m/s].
+    pace : float
+        Target pace [s/km].
+    time : float
+        Expected time on the segment [s].
+    cumulative_time : float
+        Elapsed time at the segment's end [s].
+    effort_ratio : float
+        Time-weighted mean metabolic power relative to the effort target [-].
+    max_speed : float
+        Highest speed on a piece of the segment [m/s].
+    d_prime_balance : float or None
+        D′ balance at the segment's end; None without critical speed and D′ [m].
     """
 
     start: float
@@ -128,21 +143,34 @@ class RunningPlan:
 
     Attributes
     ----------
-    strategy : "equal-effort", "even-pace" or "fastest".
-    speed : ground speed on each piece [m/s], length N-1.
-    time : time on each piece [s], length N-1.
-    metabolic_power : on each piece [W/kg], length N-1.
-    effort : the effort target, metabolic power of the flat speed in still air [W/kg].
-    flat_speed : the flat-ground, still-air speed of that effort [m/s].
-    segments : target rows.
-    d_prime_balance : D′ balance at the end of each piece [m] (fastest plan, or any plan given
-        critical speed and D′; else None).
-    notes : what the user must be told beside the numbers (pacing.notices.Notice).
-    even_pace_speed : the even pace with this plan's time-weighted mean metabolic power [m/s].
-    even_pace_time : finish time of that even pace [s] (the reference of `time_saved`).
-    even_pace_peak_effort_ratio : that even pace's highest piece effort / effort target [-].
-    limited_even_pace_time : finish time of the fastest even pace within critical speed and D′
-        [s] (fastest plan; else None).
+    strategy : str
+        "equal-effort", "even-pace" or "fastest" [-].
+    speed : numpy.ndarray
+        Ground speed on each piece, length N-1 [m/s].
+    time : numpy.ndarray
+        Time on each piece, length N-1 [s].
+    metabolic_power : numpy.ndarray
+        Metabolic power on each piece, length N-1 [W/kg].
+    effort : float
+        The effort target, metabolic power of the flat speed in still air [W/kg].
+    flat_speed : float
+        The flat-ground, still-air speed of that effort [m/s].
+    segments : tuple of RunningSegment
+        The target rows [-].
+    d_prime_balance : numpy.ndarray or None
+        D′ balance at the end of each piece (fastest plan, or any plan given critical speed
+        and D′; else None) [m].
+    notes : tuple of Notice
+        What the user must be told beside the numbers (pacing.notices) [-].
+    even_pace_speed : float or None
+        The even pace with this plan's time-weighted mean metabolic power [m/s].
+    even_pace_time : float or None
+        Finish time of that even pace, the reference of `time_saved` [s].
+    even_pace_peak_effort_ratio : float or None
+        That even pace's highest piece effort over the effort target [-].
+    limited_even_pace_time : float or None
+        Finish time of the fastest even pace within critical speed and D′ (fastest plan;
+        else None) [s].
     """
 
     strategy: str
@@ -161,17 +189,17 @@ class RunningPlan:
 
     @property
     def finish_time(self) -> float:
-        """[s]."""
+        """Time from start to finish [s]."""
         return float(self.time.sum())
 
     @property
     def distance(self) -> float:
-        """[m]."""
+        """Distance covered, the sum of speed × time over the pieces [m]."""
         return float((self.speed * self.time).sum())
 
     @property
     def average_speed(self) -> float:
-        """[m/s]."""
+        """Distance over finish time [m/s]."""
         return self.distance / self.finish_time
 
     @property
@@ -211,7 +239,8 @@ class RunningPlan:
         return float(np.cumsum(self.speed * self.time)[int(np.argmin(self.d_prime_balance))])
 
 
-def _check_bounds(course: Course, bounds) -> np.ndarray:
+def _check_bounds(course: Course, bounds: np.ndarray | None) -> np.ndarray:
+    """The segment bounds as given (checked), or kilometre splits when None [-]."""
     if bounds is None:
         return split_every(course, DEFAULT_SPLIT)
     bounds = np.asarray(bounds, dtype=int)
@@ -224,7 +253,9 @@ def _check_bounds(course: Course, bounds) -> np.ndarray:
 
 def _segments(course: Course, bounds: np.ndarray, speed: np.ndarray, time: np.ndarray,
               power: np.ndarray, effort: float, headwind: np.ndarray,
-              balance: np.ndarray | None = None) -> tuple:
+              balance: np.ndarray | None = None) -> tuple[RunningSegment, ...]:
+    """One RunningSegment per pair of bounds, from the per-piece speed [m/s], time [s],
+    metabolic power [W/kg], headwind [m/s] and D′ balance [m]."""
     length = course.piece_length
     cumulative = np.concatenate([[0.0], np.cumsum(time)])
     rows = []
@@ -260,8 +291,9 @@ def _grade_notices(course: Course, runner: Runner) -> list[Notice]:
 
 
 def _equal_effort_speeds(course: Course, runner: Runner, effort: float, flat_speed: float,
-                         air: CourseAir, downhill_speed_ratio_cap: float | None):
-    """Equal-effort speed per piece [m/s] and where the descent cap holds it back."""
+                         air: CourseAir, downhill_speed_ratio_cap: float | None,
+                         ) -> tuple[np.ndarray, np.ndarray]:
+    """Equal-effort speed per piece [m/s] and where the descent cap holds it back [-]."""
     speed = speed_for_metabolic_power(effort, course.grade, air.density, runner, air.headwind,
                                       air.crosswind)
     capped = np.zeros(speed.shape, dtype=bool)
@@ -277,20 +309,22 @@ def _equal_effort_speeds(course: Course, runner: Runner, effort: float, flat_spe
     return speed, capped
 
 
-def _flat_speed_inputs(course: Course, runner: Runner, flat_speed: float, air_density,
-                       headwind, crosswind, bounds, critical_speed: float | None,
+def _flat_speed_inputs(course: Course, runner: Runner, flat_speed: float,
+                       air_density: float | np.ndarray, headwind: float | np.ndarray,
+                       crosswind: float | np.ndarray, bounds: np.ndarray | None,
+                       critical_speed: float | None,
                        d_prime: float | None) -> tuple[CourseAir, np.ndarray, float]:
     """Checked inputs of a plan set by its flat speed: air per piece, segment bounds and the
     effort target, the metabolic power of flat_speed at the start's air density [W/kg]."""
     check_limits(critical_speed, d_prime)
     air = piece_air(course, air_density, headwind, crosswind)
-    bounds = _check_bounds(course, bounds)
-    return air, bounds, flat_effort(flat_speed, float(air.density[0]), runner)
+    checked_bounds = _check_bounds(course, bounds)
+    return air, checked_bounds, flat_effort(flat_speed, float(air.density[0]), runner)
 
 
 def _balance_if_given(power: np.ndarray, time: np.ndarray, runner: Runner, air: CourseAir,
                       critical_speed: float | None, d_prime: float | None) -> np.ndarray | None:
-    """`plan_d_prime_balance` at the start's air density, or None without critical speed."""
+    """`plan_d_prime_balance` at the start's air density [m], or None without critical speed."""
     if critical_speed is None or d_prime is None:
         return None
     return plan_d_prime_balance(power, time, runner, float(air.density[0]), critical_speed,
@@ -300,26 +334,29 @@ def _balance_if_given(power: np.ndarray, time: np.ndarray, runner: Runner, air: 
 def _running_plan(strategy: str, course: Course, bounds: np.ndarray, air: CourseAir,
                   speed: np.ndarray, time: np.ndarray, power: np.ndarray, effort: float,
                   flat_speed: float, balance: np.ndarray | None, notes: list[Notice],
-                  **fields) -> RunningPlan:
-    """The RunningPlan of per-piece speed, time and metabolic power, with its target rows;
-    `fields`: the even-pace references."""
+                  reference: EvenPaceReference,
+                  limited_even_pace_time: float | None = None) -> RunningPlan:
+    """The RunningPlan of per-piece speed [m/s], time [s] and metabolic power [W/kg], with
+    its target rows and the even pace it is compared with."""
     return RunningPlan(
         strategy=strategy, speed=speed, time=time, metabolic_power=power, effort=effort,
         flat_speed=float(flat_speed),
         segments=_segments(course, bounds, speed, time, power, effort, air.headwind, balance),
-        d_prime_balance=balance, notes=tuple(notes), **fields,
+        d_prime_balance=balance, notes=tuple(notes), even_pace_speed=reference.speed,
+        even_pace_time=reference.time, even_pace_peak_effort_ratio=reference.peak_effort_ratio,
+        limited_even_pace_time=limited_even_pace_time,
     )
 
 
-def _comparison_notice(finish_time: float, reference: dict,
+def _comparison_notice(finish_time: float, reference: EvenPaceReference,
                        overdrawn_balance: float | None = None) -> list[Notice]:
     """A note on the even pace at the same mean effort: how much later (or sooner) it
-    finishes, its peak effort and, when it overdraws D′, its lowest balance [m]."""
-    later = reference["even_pace_time"] - finish_time
+    finishes [s], its peak effort [-] and, when it overdraws D′, its lowest balance [m]."""
+    later = reference.time - finish_time
     if abs(later) < 0.5:
         return []
-    return [note("even-pace-at-same-effort", speed_mps=reference["even_pace_speed"],
-                 later_s=later, peak_effort_ratio=reference["even_pace_peak_effort_ratio"],
+    return [note("even-pace-at-same-effort", speed_mps=reference.speed,
+                 later_s=later, peak_effort_ratio=reference.peak_effort_ratio,
                  overdrawn_balance_m=overdrawn_balance)]
 
 
@@ -348,14 +385,63 @@ def plan_equal_effort(
 
     Parameters
     ----------
-    course : Course; runner : Runner; flat_speed : speed held on flat ground in still air
-    [m/s]; air_density : per piece or scalar [kg/m³]; headwind, crosswind : per piece or
-    scalar [m/s] at the runner; bounds : segment boundary point indices (default: every km);
-    downhill_speed_ratio_cap : highest speed on descents as a multiple of flat_speed [-], None
-    for no cap; critical_speed [m/s], d_prime [m] : optional, to show the D′ balance.
+    course : Course
+        The course [-].
+    runner : Runner
+        The runner's parameters [-].
+    flat_speed : float
+        Speed held on flat ground in still air, 0.5..12 [m/s].
+    air_density : float or numpy.ndarray, optional
+        ρ, one number or one per piece [kg/m³].
+    headwind : float or numpy.ndarray, optional
+        Wind component against the direction of travel at the runner, one number or one per
+        piece [m/s].
+    crosswind : float or numpy.ndarray, optional
+        Wind component across the direction of travel at the runner, one number or one per
+        piece [m/s].
+    bounds : numpy.ndarray or None, optional
+        Segment boundary point indices, increasing from 0 to N-1; None for every km [-].
+    downhill_speed_ratio_cap : float or None, optional
+        Highest speed on descents as a multiple of flat_speed, ≥ 1; None for no cap [-].
+    critical_speed : float or None, optional
+        CS, to show the D′ balance; give it with d_prime [m/s].
+    d_prime : float or None, optional
+        D′, to show the D′ balance; give it with critical_speed [m].
+
+    Returns
+    -------
+    RunningPlan
+        Speed, time and metabolic power per piece, target rows and notes [SI].
+
+    Raises
+    ------
+    InputError
+        When the flat speed, the air, the bounds, the cap or the limits are out of range, or
+        only one of critical speed and D′ is given.
+
+    References
+    ----------
+    Minetti et al. (2002), J Appl Physiol 93(3):1039-1046, doi:10.1152/japplphysiol.01177.2001
+    (cost on grades); Skiba et al. (2015), Eur J Appl Physiol 115(4):703-713,
+    doi:10.1007/s00421-014-3050-3 (D′ balance, by analogy).
+
+    Examples
+    --------
+    5:00 per km on the flat is 300·Cr(0.05)/Cr(0) = 300 × 4.6852/3.6 = 390.4 s per km (6:30)
+    up 5 % on a treadmill (Minetti et al. 2002 polynomial):
+
+    >>> import numpy as np
+    >>> from pacing.course.geometry import synthetic_course
+    >>> from pacing.physics.running import Runner
+    >>> distance = np.arange(0.0, 2001.0, 10.0)
+    >>> climb = synthetic_course(distance, 0.05 * distance)
+    >>> plan = plan_equal_effort(climb, Runner(70.0, drag_area=0.0), 1000 / 300)
+    >>> round(plan.segments[0].pace, 1)
+    390.4
     """
-    air, bounds, effort = _flat_speed_inputs(course, runner, flat_speed, air_density, headwind,
-                                             crosswind, bounds, critical_speed, d_prime)
+    air, checked_bounds, effort = _flat_speed_inputs(course, runner, flat_speed, air_density,
+                                                     headwind, crosswind, bounds,
+                                                     critical_speed, d_prime)
     speed, capped = _equal_effort_speeds(course, runner, effort, flat_speed, air,
                                          downhill_speed_ratio_cap)
     time = course.piece_length / speed
@@ -367,8 +453,16 @@ def plan_equal_effort(
         notes.append(note("running-descent-capped", ratio=downhill_speed_ratio_cap,
                           share=float(capped.mean())))
     notes.extend(_comparison_notice(float(time.sum()), reference))
-    return _running_plan("equal-effort", course, bounds, air, speed, time, power, effort,
-                         flat_speed, balance, notes, **reference)
+    return _running_plan("equal-effort", course, checked_bounds, air, speed, time, power,
+                         effort, flat_speed, balance, notes, reference)
+
+
+def _check_even_pace(speed: float) -> float:
+    """The given even pace, refused unless 0.5-12 m/s [m/s]."""
+    low, high = RUNNING_SPEED_RANGE
+    if not np.isfinite(speed) or not low <= speed <= high:
+        raise InputError(f"even pace must be 0.5-12 m/s (1:24-33:20 per km), got {speed:.3g} m/s")
+    return float(speed)
 
 
 def plan_even_pace(
@@ -386,29 +480,63 @@ def plan_even_pace(
     """Even pace, the naive plan: one speed everywhere, and what it costs.
 
     By default the speed is the one whose time-weighted mean metabolic power over the course
-    equals the flat effort (`even_pace_for_mean_power`): the effort target is met on average,
-    not on every piece. Each segment's `effort_ratio` and the plan's `peak_effort_ratio` show
-    what the even pace costs (above 1 on climbs and into the wind): the reason a runner does
-    not hold one pace up a hill. In still air it is the fastest plan of its mean effort
-    (module docstring), so it can finish sooner than equal effort, which never runs above the
-    target.
+    equals the flat effort (`pacing.plan.even_pace.even_pace_for_mean_power`): the effort
+    target is met on average, not on every piece. Each segment's `effort_ratio` and the plan's
+    `peak_effort_ratio` show what the even pace costs (above 1 on climbs and into the wind):
+    the reason a runner does not hold one pace up a hill. In still air it is the fastest plan
+    of its mean effort (module docstring), so it can finish sooner than equal effort, which
+    never runs above the target.
 
     Parameters
     ----------
-    as plan_equal_effort; speed : hold this speed instead [m/s].
+    course : Course
+        The course [-].
+    runner : Runner
+        The runner's parameters [-].
+    flat_speed : float
+        Speed held on flat ground in still air, which sets the effort target, 0.5..12 [m/s].
+    air_density : float or numpy.ndarray, optional
+        ρ, one number or one per piece [kg/m³].
+    headwind : float or numpy.ndarray, optional
+        Wind component against the direction of travel at the runner, one number or one per
+        piece [m/s].
+    crosswind : float or numpy.ndarray, optional
+        Wind component across the direction of travel at the runner, one number or one per
+        piece [m/s].
+    bounds : numpy.ndarray or None, optional
+        Segment boundary point indices, increasing from 0 to N-1; None for every km [-].
+    speed : float or None, optional
+        Hold this speed instead, 0.5..12 [m/s].
+    critical_speed : float or None, optional
+        CS, to show the D′ balance; give it with d_prime [m/s].
+    d_prime : float or None, optional
+        D′, to show the D′ balance; give it with critical_speed [m].
+
+    Returns
+    -------
+    RunningPlan
+        One speed on every piece, its time and metabolic power per piece, target rows and
+        notes [SI].
+
+    Raises
+    ------
+    InputError
+        When the flat speed, the given speed, the air, the bounds or the limits are out of
+        range, or only one of critical speed and D′ is given.
+
+    References
+    ----------
+    Minetti et al. (2002), J Appl Physiol 93(3):1039-1046, doi:10.1152/japplphysiol.01177.2001
+    (cost on grades); Skiba et al. (2015), Eur J Appl Physiol 115(4):703-713,
+    doi:10.1007/s00421-014-3050-3 (D′ balance, by analogy).
     """
-    air, bounds, effort = _flat_speed_inputs(course, runner, flat_speed, air_density, headwind,
-                                             crosswind, bounds, critical_speed, d_prime)
+    air, checked_bounds, effort = _flat_speed_inputs(course, runner, flat_speed, air_density,
+                                                     headwind, crosswind, bounds,
+                                                     critical_speed, d_prime)
     length = course.piece_length
-    if speed is None:
-        speed = even_pace_speed(course, runner, air, effort)
-    elif not np.isfinite(speed) or not 0.5 <= speed <= 12.0:
-        raise InputError(
-            f"even pace must be 1:24-33:20 per km (0.5-12 m/s), got "
-            f"{pace_clock(1000.0 / speed)} per km ({speed:.3g} m/s)"
-            if np.isfinite(speed) and speed > 0 else f"even pace must be 0.5-12 m/s, got {speed}"
-        )
-    speeds = np.full(length.shape, float(speed))
+    held = (even_pace_speed(course, runner, air, effort) if speed is None
+            else _check_even_pace(speed))
+    speeds = np.full(length.shape, held)
     time = length / speeds
     power = piece_metabolic_power(course, runner, air, speeds)
     balance = _balance_if_given(power, time, runner, air, critical_speed, d_prime)
@@ -417,9 +545,70 @@ def plan_even_pace(
     mean = float(np.sum(power * time) / time.sum() / effort)
     notes.append(note("even-pace-effort-on-average", mean_effort_ratio=mean,
                       peak_effort_ratio=peak))
-    return _running_plan("even-pace", course, bounds, air, speeds, time, power, effort,
-                         flat_speed, balance, notes, even_pace_speed=float(speed),
-                         even_pace_time=float(time.sum()), even_pace_peak_effort_ratio=peak)
+    reference = EvenPaceReference(speed=held, time=float(time.sum()), peak_effort_ratio=peak)
+    return _running_plan("even-pace", course, checked_bounds, air, speeds, time, power, effort,
+                         flat_speed, balance, notes, reference)
+
+
+@dataclass(frozen=True, eq=False)
+class _Attempt:
+    """An equal-effort plan at one flat-equivalent level, as the fastest plan tries it."""
+
+    effort: float
+    speed: np.ndarray
+    time: np.ndarray
+    power: np.ndarray
+    capped: np.ndarray
+    balance: np.ndarray
+
+
+def _attempt_level(level: float, course: Course, runner: Runner, air: CourseAir,
+                   critical_speed: float, d_prime: float,
+                   downhill_speed_ratio_cap: float | None) -> _Attempt:
+    """The equal-effort plan at the flat-equivalent speed `level` [m/s] and its D′ balance:
+    capped descents count at the flat speed of their lower metabolic power."""
+    start_density = float(air.density[0])
+    effort = flat_effort(level, start_density, runner)
+    speed, capped = _equal_effort_speeds(course, runner, effort, level, air,
+                                         downhill_speed_ratio_cap)
+    time = course.piece_length / speed
+    power = piece_metabolic_power(course, runner, air, speed)
+    equivalent = np.full(speed.shape, level)
+    if capped.any():
+        equivalent[capped] = speed_for_metabolic_power(power[capped], 0.0, start_density,
+                                                       runner)
+    balance = distance_capacity_balance(equivalent, time, critical_speed, d_prime)
+    return _Attempt(effort, speed, time, power, capped, balance)
+
+
+def _check_usable_d_prime(course: Course, d_prime: float, d_prime_reserve: float) -> None:
+    """Refuse a course not longer than the usable D′, D′ − reserve [m]."""
+    if course.total_distance <= d_prime - d_prime_reserve:
+        raise InputError(
+            f"course ({course.total_distance:.0f} m) must be longer than the usable D′ "
+            f"({d_prime - d_prime_reserve:.0f} m)"
+        )
+
+
+def _fastest_notes(course: Course, runner: Runner, air: CourseAir, best: _Attempt,
+                   reference: EvenPaceReference, limited_speed: float, limited_time: float,
+                   critical_speed: float, d_prime: float, d_prime_reserve: float,
+                   downhill_speed_ratio_cap: float | None) -> list[Notice]:
+    """The notes of the fastest plan: grades, the recovery analogy, capped descents, and the
+    two even paces it is compared with (speeds [m/s], times [s], balances [m])."""
+    notes = _grade_notices(course, runner)
+    notes.append(note("d-prime-recovery-by-analogy"))
+    if best.capped.any():
+        notes.append(note("running-descent-capped-at-level", ratio=downhill_speed_ratio_cap,
+                          share=float(best.capped.mean())))
+    even_lowest = lowest_even_pace_balance(course, runner, air, reference.speed,
+                                           critical_speed, d_prime)
+    finish = float(best.time.sum())
+    notes.extend(_comparison_notice(finish, reference,
+                                    even_lowest if even_lowest < d_prime_reserve else None))
+    notes.append(note("even-pace-within-limits", speed_mps=limited_speed,
+                      later_s=limited_time - finish))
+    return notes
 
 
 def plan_fastest(
@@ -454,66 +643,89 @@ def plan_fastest(
 
     Parameters
     ----------
-    as plan_equal_effort; critical_speed : CS [m/s]; d_prime : D′ [m]; d_prime_reserve :
-    balance never to go below [m]; tolerance : on u [m/s].
+    course : Course
+        The course [-].
+    runner : Runner
+        The runner's parameters [-].
+    critical_speed : float
+        CS, 0.5..10 [m/s].
+    d_prime : float
+        D′, 0..2000 [m].
+    air_density : float or numpy.ndarray, optional
+        ρ, one number or one per piece [kg/m³].
+    headwind : float or numpy.ndarray, optional
+        Wind component against the direction of travel at the runner, one number or one per
+        piece [m/s].
+    crosswind : float or numpy.ndarray, optional
+        Wind component across the direction of travel at the runner, one number or one per
+        piece [m/s].
+    bounds : numpy.ndarray or None, optional
+        Segment boundary point indices, increasing from 0 to N-1; None for every km [-].
+    downhill_speed_ratio_cap : float or None, optional
+        Highest speed on descents as a multiple of the level's flat speed, ≥ 1; None for no
+        cap [-].
+    d_prime_reserve : float, optional
+        Balance never to go below, 0 ≤ reserve < D′ [m].
+    tolerance : float, optional
+        On the flat-equivalent speed u [m/s].
+
+    Returns
+    -------
+    RunningPlan
+        The plan at the highest feasible level, its D′ balance, target rows and notes [SI].
+
+    Raises
+    ------
+    InputError
+        When critical speed, D′, the reserve, the air, the bounds or the cap are out of range,
+        the course is not longer than the usable D′, or the limits allow more than 12 m/s.
+
+    References
+    ----------
+    Poole et al. (2016), Med Sci Sports Exerc 48(11):2320-2334,
+    doi:10.1249/MSS.0000000000000939 (critical speed and D′); Skiba et al. (2015), Eur J Appl
+    Physiol 115(4):703-713, doi:10.1007/s00421-014-3050-3 (recovery, by analogy); Minetti et
+    al. (2002), J Appl Physiol 93(3):1039-1046, doi:10.1152/japplphysiol.01177.2001.
     """
     check_critical_speed(critical_speed, d_prime)
     if not 0.0 <= d_prime_reserve < d_prime:
         raise InputError(f"D′ reserve must be 0 to D′ ({d_prime:g} m), got {d_prime_reserve}")
     air = piece_air(course, air_density, headwind, crosswind)
-    bounds = _check_bounds(course, bounds)
-    start_density = float(air.density[0])
-    length = course.piece_length
-    if course.total_distance <= d_prime - d_prime_reserve:
-        raise InputError(
-            f"course ({course.total_distance:.0f} m) must be longer than the usable D′ "
-            f"({d_prime - d_prime_reserve:.0f} m)"
-        )
+    checked_bounds = _check_bounds(course, bounds)
+    _check_usable_d_prime(course, d_prime, d_prime_reserve)
 
-    def attempt(level: float):
-        effort = flat_effort(level, start_density, runner)
-        speed, capped = _equal_effort_speeds(course, runner, effort, level, air,
-                                             downhill_speed_ratio_cap)
-        time = length / speed
-        power = piece_metabolic_power(course, runner, air, speed)
-        equivalent = np.full(speed.shape, level)
-        if capped.any():
-            equivalent[capped] = speed_for_metabolic_power(power[capped], 0.0, start_density,
-                                                           runner)
-        balance = distance_capacity_balance(equivalent, time, critical_speed, d_prime)
-        return effort, speed, time, power, capped, balance
+    def attempt(level: float) -> _Attempt:
+        return _attempt_level(level, course, runner, air, critical_speed, d_prime,
+                              downhill_speed_ratio_cap)
 
-    low = highest_feasible_speed(lambda level: attempt(level)[-1].min() >= d_prime_reserve,
-                                 critical_speed, critical_speed * 1.05 + 0.1, tolerance)
-    effort, speed, time, power, capped, balance = attempt(low)
-    reference = even_pace_reference(course, runner, air, power, time, effort)
+    level = highest_feasible_speed(lambda u: attempt(u).balance.min() >= d_prime_reserve,
+                                   critical_speed, critical_speed * 1.05 + 0.1, tolerance)
+    best = attempt(level)
+    reference = even_pace_reference(course, runner, air, best.power, best.time, best.effort)
     limited_speed = even_pace_within_limits(course, runner, critical_speed, d_prime,
                                             air.density, air.headwind, air.crosswind,
                                             d_prime_reserve, tolerance)
-    limited_time = float(length.sum() / limited_speed)
-    notes = _grade_notices(course, runner)
-    notes.append(note("d-prime-recovery-by-analogy"))
-    if capped.any():
-        notes.append(note("running-descent-capped-at-level", ratio=downhill_speed_ratio_cap,
-                          share=float(capped.mean())))
-    even_lowest = lowest_even_pace_balance(course, runner, air, reference["even_pace_speed"],
-                                           critical_speed, d_prime)
-    notes.extend(_comparison_notice(float(time.sum()), reference,
-                                    even_lowest if even_lowest < d_prime_reserve else None))
-    notes.append(note("even-pace-within-limits", speed_mps=limited_speed,
-                      later_s=limited_time - float(time.sum())))
-    return _running_plan("fastest", course, bounds, air, speed, time, power, effort, low,
-                         balance, notes, limited_even_pace_time=limited_time, **reference)
-
-
-RUNNING_STRATEGIES = ("equal-effort", "even-pace", "fastest")
-"""Names of the running plans (the CLI's --strategy values)."""
+    limited_time = float(course.piece_length.sum() / limited_speed)
+    notes = _fastest_notes(course, runner, air, best, reference, limited_speed, limited_time,
+                           critical_speed, d_prime, d_prime_reserve, downhill_speed_ratio_cap)
+    return _running_plan("fastest", course, checked_bounds, air, best.speed, best.time,
+                         best.power, best.effort, level, best.balance, notes, reference,
+                         limited_even_pace_time=limited_time)
 
 
 def running_targets(plan: RunningPlan) -> list[SegmentTarget]:
-    """The plan's segments as pacing.plan.targets.SegmentTarget rows (for exports and the app).
+    """The plan's segments as segment target rows, for exports and the app.
 
-    Power fields and W′ balance are None; target_pace is the segment's pace [s/km].
+    Parameters
+    ----------
+    plan : RunningPlan
+        A running plan [-].
+
+    Returns
+    -------
+    list of pacing.plan.targets.SegmentTarget
+        One row per segment, SI; the power fields and the W′ balance are None, target_pace
+        is the segment's pace [s/km].
     """
     return [
         SegmentTarget(
