@@ -286,18 +286,20 @@ def approach_inputs(sport: str, athlete: dict) -> dict:
                 typed = st.text_input("Finish time to reach [H:MM:SS]", value="1:05:00",
                                       key="target_time")
                 values["target_time"] = parse_clock(typed, "finish time")
-        if values["strategy"] != "constant":
-            with cols[1]:
-                values["max_power_ratio"] = unit_number(
-                    "Highest segment power [× critical power]", None, "metric",
-                    "max_power_ratio", 1.15, 0.5, 2.0, 0.05)
-            with cols[2]:
-                values["w_prime_reserve"] = 1000.0 * unit_number(
-                    "W′ to keep in hand [kJ]", None, "metric", "w_prime_reserve", 2.0, 0.0,
-                    50.0, 0.5)
-            values["allow_zero_on_descents"] = st.checkbox(
-                "Freewheeling allowed on descents", value=False, key="coast_descents",
-                help="descending segments may go down to 0 W")
+        # the limits are asked whatever the plan: the fastest plan keeps to them, and so does
+        # the setups panel's quickest plan, which must not change with this page's approach
+        limits = "used by the fastest plan here and in the setups comparison"
+        with cols[1]:
+            values["max_power_ratio"] = unit_number(
+                "Highest segment power [× critical power]", None, "metric",
+                "max_power_ratio", 1.15, 0.5, 2.0, 0.05, help=limits)
+        with cols[2]:
+            values["w_prime_reserve"] = 1000.0 * unit_number(
+                "W′ to keep in hand [kJ]", None, "metric", "w_prime_reserve", 2.0, 0.0,
+                50.0, 0.5, help=limits)
+        values["allow_zero_on_descents"] = st.checkbox(
+            "Freewheeling allowed on descents", value=False, key="coast_descents",
+            help="descending segments may go down to 0 W (" + limits + ")")
     else:
         label = st.radio("Plan", list(text.RUNNING_APPROACHES), key="running_approach",
                          horizontal=True)
