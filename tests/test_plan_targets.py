@@ -68,6 +68,17 @@ def test_rows_follow_the_plan_and_add_up_to_the_finish_time():
     assert [row.grade for row in rows] == pytest.approx([0.0, 0.05, -0.04])
 
 
+def test_headwind_is_the_length_weighted_mean_over_each_segment():
+    # two 3 km segments, each with 1 km of the 3 m/s headwind: 3·1/3 = 1 m/s (definition); a
+    # bare prediction carries its own headwind, the same numbers without `air`
+    course, _, air = rolling()
+    bounds = np.array([0, 150, 300])
+    prediction = simulate(course, 250.0, RIDER, air, SimulationOptions(start_speed=8.0))
+    for rows in (target_table(course, bounds, prediction, air=air),
+                 target_table(course, bounds, prediction)):
+        assert [row.headwind for row in rows] == pytest.approx([1.0, 1.0], rel=1e-12)
+
+
 def test_a_bare_prediction_gives_the_power_it_rode_and_no_w_prime():
     course, bounds, air = rolling()
     prediction = simulate(course, 250.0, RIDER, air, SimulationOptions(start_speed=8.0))

@@ -26,9 +26,8 @@ from pacing.cli.plan import RUNNING_STRATEGIES, add_plan_flags
 from pacing.display import units
 from pacing.display.notices import describe_all
 from pacing.errors import InputError
-from pacing.physics.running import Runner
+from pacing.physics.running import RUNNING_SPEED_RANGE, Runner
 from pacing.physiology.critical_speed import critical_speed_flat_race_time
-from pacing.plan.even_pace import RUNNING_SPEED_RANGE
 from pacing.plan.running import DOWNHILL_SPEED_RATIO_CAP, RunningPlan
 
 if TYPE_CHECKING:
@@ -42,7 +41,7 @@ _GROUPS_OF_SPORT = {"cycling": ("cycling plan", "rider and bike"), "running": ("
 """Titles of the plan command's argument groups that belong to each sport."""
 
 FLAT_PACE_RANGE = (1000.0 / RUNNING_SPEED_RANGE[1], 1000.0 / RUNNING_SPEED_RANGE[0])
-"""Flat paces accepted, 1:24-33:20 per km [s/km] (pacing.plan.even_pace.RUNNING_SPEED_RANGE,
+"""Flat paces accepted, 1:24-33:20 per km [s/km] (pacing.physics.running.RUNNING_SPEED_RANGE,
 as pacing.physics.running.flat_effort)."""
 
 

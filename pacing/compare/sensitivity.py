@@ -30,19 +30,32 @@ they enter through the difference of the sensitivities and mostly cancel::
 
 A Monte Carlo estimate (normal draws with a seed, the full simulation for each draw) checks
 the linearization where the response is curved.
+
+References
+----------
+JCGM 100:2008. Evaluation of measurement data — Guide to the expression of uncertainty in
+measurement (GUM), section 5.1 (law of propagation of uncertainty) and Supplement 1,
+JCGM 101:2008 (propagation of distributions by a Monte Carlo method).
+Martin, J.C., Milliken, D.L., Cobb, J.E., McFadden, K.L. & Coggan, A.R. (1998). Validation of a
+mathematical model for road cycling power. J Appl Biomech 14(3):276-291.
+doi:10.1123/jab.14.3.276 (the model the finish times come from, pacing.plan.simulate).
 """
 
 from __future__ import annotations
 
 import math
+from collections.abc import Callable
 from dataclasses import dataclass, replace
 
 import numpy as np
+from numpy.typing import ArrayLike
 
+from pacing.course.geometry import Course
 from pacing.errors import InputError
+from pacing.physics.cycling import Rider
 from pacing.plan.prediction import SimulationOptions
 from pacing.plan.simulate import simulate
-from pacing.weather.conditions import air_along_course
+from pacing.weather.conditions import Conditions, CourseAir, air_along_course
 
 STEPS = {
     "drag_area": 0.01,
@@ -63,13 +76,20 @@ class Sensitivity:
 
     Attributes
     ----------
-    finish_time : finish time of the unchanged ride [s].
-    drag_area : s per +0.01 m² CdA.
-    mass : s per +1 kg (rider + bike + kit).
-    power : s per +10 W mean power (negative: more power is faster).
-    rolling_coefficient : s per +0.001 Crr.
-    wind : s per +1 m/s wind speed from the forecast direction.
-    wind_direction : the direction the wind blows from [deg] used for `wind`.
+    finish_time : float
+        Finish time of the unchanged ride [s].
+    drag_area : float
+        Change of finish time per +0.01 m² of CdA [s].
+    mass : float
+        Change per +1 kg of total mass (rider + bike + kit) [s].
+    power : float
+        Change per +10 W of mean power (negative: more power is faster) [s].
+    rolling_coefficient : float
+        Change per +0.001 of Crr [s].
+    wind : float
+        Change per +1 m/s of wind speed from the forecast direction [s].
+    wind_direction : float
+        The direction the wind blows from used for `wind`, clockwise from north [deg].
     """
 
     finish_time: float
@@ -81,57 +101,39 @@ class Sensitivity:
     wind_direction: float
 
     def per_step(self) -> dict[str, float]:
-        """{parameter: seconds per step} for the names of STEPS."""
+        """{parameter: seconds per step} for the names of STEPS [s]."""
         return {name: getattr(self, name) for name in STEPS}
 
 
-def sensitivity(course, piece_power, rider, conditions, options: SimulationOptions | None = None,
-                density_model: str = "cipm_2007") -> Sensitivity:
-    """Finish-time sensitivities of a ride by finite differences on the inertial simulation.
+def _central(make: Callable[[float], float]) -> float:
+    """Central difference (T(+h) − T(−h))/2 of a finish time given ±1 step [s]."""
+    h = 1.0
+    return 0.5 * (make(+h) - make(-h))
 
-    Parameters
-    ----------
-    course : pacing.course.geometry.Course; piece_power : the plan's crank power per piece [W]
-    (held;
-    scaled for the power step); rider : pacing.physics.cycling.Rider;
-    conditions : pacing.weather.conditions.Conditions (the forecast); options : SimulationOptions;
-    density_model : key of pacing.physics.air.AIR_DENSITY_MODELS.
 
-    Returns
-    -------
-    Sensitivity (see the module docstring for the steps and the sign convention).
-    """
-    power = np.asarray(piece_power, dtype=float)
-    air = air_along_course(course, conditions, density_model)
-
-    def finish(rider_now=rider, power_now=power, air_now=air) -> float:
-        return simulate(course, power_now, rider_now, air_now, options).finish_time
-
-    base_ride = simulate(course, power, rider, air, options)
-    base = base_ride.finish_time
-    mean = base_ride.average_power
-
-    def central(make) -> float:
-        h = 1.0
-        return 0.5 * (make(+h) - make(-h))
-
+def _rider_sensitivities(finish: Callable[..., float], rider: Rider, base: float
+                         ) -> tuple[float, float, float]:
+    """Seconds per step of CdA, mass and Crr [s]; Crr below one step by a forward
+    difference (Crr cannot go negative)."""
     cda_step, mass_step = STEPS["drag_area"], STEPS["mass"]
-    crr_step, power_step = STEPS["rolling_coefficient"], STEPS["power"]
+    crr_step = STEPS["rolling_coefficient"]
     if float(np.min(rider.drag_area)) <= cda_step:
         raise InputError(f"CdA must exceed {cda_step} m² for a sensitivity")
-    drag = central(lambda s: finish(replace(rider, drag_area=rider.drag_area + s * cda_step)))
-    mass = central(lambda s: finish(replace(rider, mass=rider.mass + s * mass_step)))
+    drag = _central(lambda s: finish(replace(rider, drag_area=rider.drag_area + s * cda_step)))
+    mass = _central(lambda s: finish(replace(rider, mass=rider.mass + s * mass_step)))
     rolling = np.asarray(rider.rolling_coefficient, dtype=float)
     if float(np.min(rolling)) >= crr_step:
-        crr = central(lambda s: finish(replace(
+        crr = _central(lambda s: finish(replace(
             rider, rolling_coefficient=rider.rolling_coefficient + s * crr_step)))
     else:  # Crr below one step: forward difference (Crr cannot go negative)
         crr = finish(replace(rider, rolling_coefficient=rider.rolling_coefficient
                              + crr_step)) - base
-    if not mean > power_step:
-        raise InputError(f"mean power must exceed {power_step:g} W for a sensitivity")
-    watts = central(lambda s: finish(power_now=power * (mean + s * power_step) / mean))
+    return drag, mass, crr
 
+
+def _wind_sensitivity(course: Course, conditions: Conditions, density_model: str,
+                      finish: Callable[..., float], base: float) -> float:
+    """Seconds per +1 m/s of forecast wind speed [s]; forward difference below one step."""
     wind_step = STEPS["wind"]
 
     def with_wind(speed: float) -> float:
@@ -139,10 +141,64 @@ def sensitivity(course, piece_power, rider, conditions, options: SimulationOptio
         return finish(air_now=air_along_course(course, changed, density_model))
 
     if conditions.wind_speed >= wind_step:
-        wind = 0.5 * (with_wind(conditions.wind_speed + wind_step)
+        return 0.5 * (with_wind(conditions.wind_speed + wind_step)
                       - with_wind(conditions.wind_speed - wind_step))
-    else:
-        wind = with_wind(conditions.wind_speed + wind_step) - base
+    return with_wind(conditions.wind_speed + wind_step) - base
+
+
+def sensitivity(course: Course, piece_power: ArrayLike, rider: Rider, conditions: Conditions,
+                options: SimulationOptions | None = None,
+                density_model: str = "cipm_2007") -> Sensitivity:
+    """Finish-time sensitivities of a ride by finite differences on the inertial simulation.
+
+    S_x = (T(x + h) − T(x − h)) / 2 with the steps h of STEPS (forward differences for Crr and
+    wind below one step); the power step scales the whole profile by (P̄ ± 10 W)/P̄.
+
+    Parameters
+    ----------
+    course : pacing.course.geometry.Course
+        The course, N points [-].
+    piece_power : array_like
+        The plan's crank power per piece, held (scaled for the power step), length N-1 [W].
+    rider : pacing.physics.cycling.Rider
+        The rider and bike; CdA must exceed one step (0.01 m²) [-].
+    conditions : pacing.weather.conditions.Conditions
+        The forecast [-].
+    options : SimulationOptions or None
+        Choices of the simulation; None for the defaults [-].
+    density_model : str
+        Key of pacing.physics.air.AIR_DENSITY_MODELS [-].
+
+    Returns
+    -------
+    Sensitivity
+        Seconds per step of each parameter (module docstring: steps, sign convention) [-].
+
+    Raises
+    ------
+    InputError
+        When CdA is not above 0.01 m² or the mean power not above 10 W.
+
+    References
+    ----------
+    JCGM 100:2008 (GUM), section 5.1: sensitivity coefficients.
+    """
+    power = np.asarray(piece_power, dtype=float)
+    air = air_along_course(course, conditions, density_model)
+
+    def finish(rider_now: Rider = rider, power_now: np.ndarray = power,
+               air_now: CourseAir = air) -> float:
+        return simulate(course, power_now, rider_now, air_now, options).finish_time
+
+    base_ride = simulate(course, power, rider, air, options)
+    base = base_ride.finish_time
+    mean = base_ride.average_power
+    drag, mass, crr = _rider_sensitivities(finish, rider, base)
+    power_step = STEPS["power"]
+    if not mean > power_step:
+        raise InputError(f"mean power must exceed {power_step:g} W for a sensitivity")
+    watts = _central(lambda s: finish(power_now=power * (mean + s * power_step) / mean))
+    wind = _wind_sensitivity(course, conditions, density_model, finish, base)
     return Sensitivity(finish_time=base, drag_area=drag, mass=mass, power=watts,
                        rolling_coefficient=crr, wind=wind,
                        wind_direction=float(conditions.wind_from))
@@ -152,9 +208,23 @@ def sensitivity(course, piece_power, rider, conditions, options: SimulationOptio
 
 @dataclass(frozen=True)
 class Uncertainty:
-    """One standard deviation (1 σ) of each uncertain input, in SI units.
+    """One standard deviation (1 σ) of each uncertain input.
 
-    drag_area [m²]; rolling_coefficient [-]; mass [kg]; wind : of the forecast wind speed [m/s].
+    Attributes
+    ----------
+    drag_area : float
+        σ of CdA [m²].
+    rolling_coefficient : float
+        σ of Crr [-].
+    mass : float
+        σ of the total mass [kg].
+    wind : float
+        σ of the forecast wind speed [m/s].
+
+    Raises
+    ------
+    InputError
+        When a σ is negative or not finite.
     """
 
     drag_area: float = 0.0
@@ -178,24 +248,38 @@ class Spread:
 
     Attributes
     ----------
-    standard_deviation : 1 σ [s] (linearized).
-    contributions : {parameter: its 1 σ contribution [s]}; they add in quadrature.
-    samples : Monte Carlo values [s] (None when not sampled).
+    standard_deviation : float
+        1 σ, linearized [s].
+    contributions : dict of str to float
+        {parameter: its 1 σ contribution}; they add in quadrature [s].
+    samples : numpy.ndarray or None
+        Monte Carlo values; None when not sampled [s].
     """
 
     standard_deviation: float
-    contributions: dict
+    contributions: dict[str, float]
     samples: np.ndarray | None = None
 
     @property
     def sampled_standard_deviation(self) -> float | None:
-        """Standard deviation of the samples [s] (ddof 1), or None."""
+        """Standard deviation of the samples (ddof 1), or None [s]."""
         if self.samples is None or self.samples.size < 2:
             return None
         return float(np.std(self.samples, ddof=1))
 
     def interval(self, coverage: float = 0.9) -> tuple[float, float] | None:
-        """Central interval of the samples holding `coverage` of them [s], or None."""
+        """Central interval of the samples holding `coverage` of them, or None.
+
+        Parameters
+        ----------
+        coverage : float
+            Share of the samples inside the interval [-].
+
+        Returns
+        -------
+        tuple of float or None
+            (low, high) percentiles of the samples [s].
+        """
         if self.samples is None or self.samples.size < 2:
             return None
         tail = 50.0 * (1.0 - coverage)
@@ -209,7 +293,24 @@ def _names() -> list[str]:
 
 
 def finish_time_spread(sens: Sensitivity, uncertainty: Uncertainty) -> Spread:
-    """Linearized 1 σ of a finish time: σ_T² = Σ (S_x·σ_x/h_x)² [s]."""
+    """Linearized 1 σ of a finish time, σ_T² = Σ (S_x·σ_x/h_x)².
+
+    Parameters
+    ----------
+    sens : Sensitivity
+        Seconds per step of each parameter [-].
+    uncertainty : Uncertainty
+        1 σ of each input [-].
+
+    Returns
+    -------
+    Spread
+        1 σ and each input's contribution; no samples [s].
+
+    References
+    ----------
+    JCGM 100:2008 (GUM), section 5.1: law of propagation of uncertainty, uncorrelated inputs.
+    """
     parts = {name: abs(getattr(sens, name) * getattr(uncertainty, name) / STEPS[name])
              for name in _names()}
     return Spread(math.sqrt(sum(v * v for v in parts.values())), parts)
@@ -217,12 +318,31 @@ def finish_time_spread(sens: Sensitivity, uncertainty: Uncertainty) -> Spread:
 
 def difference_spread(first: Sensitivity, second: Sensitivity, uncertainty: Uncertainty,
                       second_uncertainty: Uncertainty | None = None) -> Spread:
-    """Linearized 1 σ of T_second − T_first [s].
+    """Linearized 1 σ of T_second − T_first.
 
     CdA errors of the two setups are independent; Crr, mass and wind errors are shared and
-    enter through the difference of the sensitivities (module docstring). `uncertainty` is
-    the first setup's (and the shared σ); `second_uncertainty` the second's CdA σ (default:
-    the same as the first's).
+    enter through the difference of the sensitivities (module docstring).
+
+    Parameters
+    ----------
+    first : Sensitivity
+        The first setup's sensitivities [-].
+    second : Sensitivity
+        The second setup's [-].
+    uncertainty : Uncertainty
+        The first setup's CdA σ and the shared σ of Crr, mass and wind [-].
+    second_uncertainty : Uncertainty or None
+        The second setup's CdA σ (default: the same as the first's) [-].
+
+    Returns
+    -------
+    Spread
+        1 σ of the difference [s] and each input's contribution [s].
+
+    References
+    ----------
+    JCGM 100:2008 (GUM), section 5.1: propagation of uncertainty; shared inputs are fully
+    correlated between the two finish times.
     """
     other = second_uncertainty or uncertainty
     step = STEPS["drag_area"]
@@ -236,7 +356,8 @@ def difference_spread(first: Sensitivity, second: Sensitivity, uncertainty: Unce
     return Spread(math.sqrt(sum(v * v for v in parts.values())), parts)
 
 
-def _draws(uncertainty: Uncertainty, samples: int, generator, extra: int = 0) -> np.ndarray:
+def _draws(uncertainty: Uncertainty, samples: int, generator: np.random.Generator,
+           extra: int = 0) -> np.ndarray:
     """Normal errors, one row per draw: columns in the order of _names() scaled by their σ,
     then `extra` standard normal columns. Row by row, so the first draws do not depend on
     how many are taken."""
@@ -244,8 +365,11 @@ def _draws(uncertainty: Uncertainty, samples: int, generator, extra: int = 0) ->
     return generator.standard_normal((samples, scale.size)) * scale
 
 
-def _perturbed_time(course, power, rider, conditions, options, density_model,
-                    d_cda, d_crr, d_mass, d_wind) -> float:
+def _perturbed_time(course: Course, power: np.ndarray, rider: Rider, conditions: Conditions,
+                    options: SimulationOptions | None, density_model: str, d_cda: float,
+                    d_crr: float, d_mass: float, d_wind: float) -> float:
+    """Finish time [s] with the errors added, clipped at physical limits (CdA ≥ 0.01 m²,
+    Crr ≥ 0, mass ≥ 20 kg, wind speed ≥ 0)."""
     changed = replace(rider,
                       drag_area=np.maximum(rider.drag_area + d_cda, 0.01),
                       rolling_coefficient=np.maximum(
@@ -257,16 +381,56 @@ def _perturbed_time(course, power, rider, conditions, options, density_model,
 
 
 def _check_samples(samples: int) -> None:
+    """InputError unless `samples` is a whole number 2-100000."""
     if not (isinstance(samples, int | np.integer) and 2 <= samples <= 100_000):
         raise InputError(f"samples must be a whole number 2-100000, got {samples!r}")
 
 
-def sampled_finish_time(course, piece_power, rider, conditions, uncertainty: Uncertainty,
+def sampled_finish_time(course: Course, piece_power: ArrayLike, rider: Rider,
+                        conditions: Conditions, uncertainty: Uncertainty,
                         samples: int = 200, seed: int = 0,
                         options: SimulationOptions | None = None,
                         density_model: str = "cipm_2007") -> np.ndarray:
-    """Monte Carlo finish times [s]: normal errors of CdA, Crr, mass and wind speed (clipped
-    at physical limits), the full simulation for each draw, a seeded generator."""
+    """Monte Carlo finish times: normal errors of CdA, Crr, mass and wind speed.
+
+    Each draw is clipped at physical limits and ridden by the full simulation; the generator
+    is seeded, and the first draws do not depend on how many are taken.
+
+    Parameters
+    ----------
+    course : pacing.course.geometry.Course
+        The course, N points [-].
+    piece_power : array_like
+        The plan's crank power per piece, length N-1 [W].
+    rider : pacing.physics.cycling.Rider
+        The rider and bike [-].
+    conditions : pacing.weather.conditions.Conditions
+        The forecast [-].
+    uncertainty : Uncertainty
+        1 σ of each input [-].
+    samples : int
+        Number of draws, 2-100000 [-].
+    seed : int
+        Seed of numpy's default generator [-].
+    options : SimulationOptions or None
+        Choices of the simulation; None for the defaults [-].
+    density_model : str
+        Key of pacing.physics.air.AIR_DENSITY_MODELS [-].
+
+    Returns
+    -------
+    numpy.ndarray
+        Finish time of each draw [s].
+
+    Raises
+    ------
+    InputError
+        When `samples` is not a whole number 2-100000.
+
+    References
+    ----------
+    JCGM 101:2008 (GUM Supplement 1): propagation of distributions by a Monte Carlo method.
+    """
     _check_samples(samples)
     generator = np.random.default_rng(seed)
     draws = _draws(uncertainty, samples, generator)
@@ -277,12 +441,49 @@ def sampled_finish_time(course, piece_power, rider, conditions, uncertainty: Unc
     ])
 
 
-def sampled_difference(course, first, second, conditions, uncertainty: Uncertainty,
-                       samples: int = 200, seed: int = 0,
+def sampled_difference(course: Course, first: tuple[Rider, ArrayLike],
+                       second: tuple[Rider, ArrayLike], conditions: Conditions,
+                       uncertainty: Uncertainty, samples: int = 200, seed: int = 0,
                        options: SimulationOptions | None = None,
                        density_model: str = "cipm_2007") -> np.ndarray:
-    """Monte Carlo T_second − T_first [s]. `first`, `second` are (rider, piece_power) pairs;
-    shared draws of Crr, mass and wind, independent draws of each setup's CdA."""
+    """Monte Carlo T_second − T_first: shared draws of Crr, mass and wind, independent draws
+    of each setup's CdA (both with the σ of `uncertainty`).
+
+    Parameters
+    ----------
+    course : pacing.course.geometry.Course
+        The course, N points [-].
+    first : tuple of (Rider, array_like)
+        (rider, crank power per piece [W]) of the first setup [-].
+    second : tuple of (Rider, array_like)
+        (rider, crank power per piece [W]) of the second setup [-].
+    conditions : pacing.weather.conditions.Conditions
+        The forecast [-].
+    uncertainty : Uncertainty
+        1 σ of each input [-].
+    samples : int
+        Number of draws, 2-100000 [-].
+    seed : int
+        Seed of numpy's default generator [-].
+    options : SimulationOptions or None
+        Choices of the simulation; None for the defaults [-].
+    density_model : str
+        Key of pacing.physics.air.AIR_DENSITY_MODELS [-].
+
+    Returns
+    -------
+    numpy.ndarray
+        T_second − T_first of each draw [s].
+
+    Raises
+    ------
+    InputError
+        When `samples` is not a whole number 2-100000.
+
+    References
+    ----------
+    JCGM 101:2008 (GUM Supplement 1): propagation of distributions by a Monte Carlo method.
+    """
     _check_samples(samples)
     generator = np.random.default_rng(seed)
     draws = _draws(uncertainty, samples, generator, extra=2)

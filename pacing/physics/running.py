@@ -618,6 +618,11 @@ def speed_for_metabolic_power(
     return _newton_in_running_bracket(balance, speed, low, high, tolerance, max_iterations)
 
 
+RUNNING_SPEED_RANGE = (0.5, 12.0)
+"""Running speeds a plan accepts [m/s]: 33:20 to 1:24 per km, from a walk to beyond any
+sprint (the world record 100 m averages about 10.4 m/s; common practice bounds)."""
+
+
 def flat_effort(flat_speed: float, air_density: float, runner: Runner) -> float:
     """The effort of a flat-ground pace: metabolic power on level ground in still air [W/kg].
 
@@ -642,14 +647,10 @@ def flat_effort(flat_speed: float, air_density: float, runner: Runner) -> float:
     >>> flat_effort(1000 / 300, 1.2, Runner(70.0, drag_area=0.0))
     12.0
     """
-    if not np.isfinite(flat_speed) or not 0.5 <= flat_speed <= 12.0:
-        typed = ""
-        if np.isfinite(flat_speed) and flat_speed > 0:
-            minutes, seconds = divmod(round(1000.0 / flat_speed), 60)
-            typed = f"{minutes}:{seconds:02d} per km, "
-        raise InputError(
-            f"flat pace must be 1:24-33:20 per km (0.5-12 m/s), got {typed}{flat_speed:.3g} m/s"
-        )
+    low, high = RUNNING_SPEED_RANGE
+    if not np.isfinite(flat_speed) or not low <= flat_speed <= high:
+        raise InputError(f"flat pace must be {low:g}-{high:g} m/s (1:24-33:20 per km), got "
+                         f"{flat_speed:.3g} m/s")
     return float(metabolic_power(flat_speed, 0.0, air_density, runner))
 
 

@@ -16,28 +16,44 @@ half of _SLACK), since the ride drains W′ a little faster than the steady mode
 
 References
 ----------
-Those of the models: pacing.plan.steady_model (Martin et al. 1998), pacing.plan.fastest
-(Atkinson, Peacock & Passfield 2007; Bos et al. 2024; Kraft 1988), pacing.plan.simulate.
+Martin, J.C., Milliken, D.L., Cobb, J.E., McFadden, K.L. & Coggan, A.R. (1998). Validation of a
+mathematical model for road cycling power. J Appl Biomech 14(3):276-291.
+doi:10.1123/jab.14.3.276 (pacing.plan.steady_model, pacing.plan.simulate)
+Atkinson, G., Peacock, O. & Passfield, L. (2007). Variable versus constant power strategies
+during cycling time-trials: prediction of time savings using an up-to-date mathematical model.
+J Sports Sci 25(9):1001-1009. doi:10.1080/02640410600944709 (pacing.plan.fastest)
+Skiba, P.F., Chidnok, W., Vanhatalo, A. & Jones, A.M. (2012). Modeling the expenditure and
+reconstitution of work capacity above critical power. Med Sci Sports Exerc 44(8):1526-1532.
+doi:10.1249/MSS.0b013e3182517a80 (the W′ balance of the verified ride)
 """
 
 from __future__ import annotations
 
 import math
+from collections.abc import Callable
 from dataclasses import dataclass, field, replace
 
 import numpy as np
+from numpy.typing import ArrayLike
 from scipy import optimize
 
+from pacing.course.geometry import Course
 from pacing.errors import InputError
 from pacing.physics.cycling import Rider
 from pacing.physiology.critical_power import effort_weighted_power, w_prime_balance
 from pacing.plan.fastest import SolverReport, fastest_steady_plan
+from pacing.plan.prediction import Prediction, SimulationOptions
 from pacing.plan.request import (
     MAXIMUM_PLAN_POWER,
     PlanRequest,
     power_limits,
+    required_mean_power,
+    required_target_time,
+    w_prime_parameters,
 )
-from pacing.plan.steady_model import segment_model, steady_segment_times
+from pacing.plan.simulate import simulate
+from pacing.plan.steady_model import SegmentModel, segment_model, steady_segment_times
+from pacing.weather.conditions import CourseAir
 
 _CORRECTION_ROUNDS = 4
 _MATCH_TOLERANCE = 5e-5  # relative, verified mean power (or work) against its target
@@ -50,30 +66,52 @@ class RacePlan:
 
     Attributes
     ----------
-    strategy : the request's strategy.
-    request : the PlanRequest.
-    bounds : segment boundary point indices.
-    segment_power : target crank power of each segment [W], length K.
-    piece_power : planned power of each piece [W], length N-1.
-    prediction : inertial simulation of the plan (pacing.plan.prediction.Prediction).
-    reference : simulation of constant power at the same verified mean power (or work).
-    reference_power : that constant power [W].
-    time_saved : reference finish time − plan finish time [s].
-    w_prime_balance : W′ balance at every point [J], length N; None without CP and W′.
-    segment_w_prime_balance : W′ balance at the end of each segment [J]; None without CP/W′.
-    min_w_prime_balance : lowest W′ balance [J]; None without CP and W′.
-    min_w_prime_distance : distance where it happens [m]; None without CP and W′.
-    effort_weighted_power : effort-weighted power of the verified ride [W].
-    residuals : constraint residuals on the verified ride, by name ("mean_power_w" or "work_j":
-        verified − target; "w_prime_reserve_j": min balance − reserve, ≥ 0 when met;
-        "effort_cap_w": cap − effort-weighted power, ≥ 0 when met; "power_bounds_w": largest
-        excursion of a segment power outside its bounds, 0 when met).
-    binding : names of the constraints that bind ("mean-power", "work", "max-power on N
-        segments", "min-power on N segments", "w-prime-reserve", "effort-cap").
-    solver : SolverReport.
-    steady_time, steady_reference_time : finish times of plan and reference in the
-        steady-state segment model [s].
-    power_low, power_high : lower and upper bound of each segment power [W].
+    strategy : str
+        The request's strategy [-].
+    request : PlanRequest
+        The request the plan answers (for a target time: with the constant power found) [-].
+    bounds : numpy.ndarray
+        Segment boundary point indices [-].
+    segment_power : numpy.ndarray
+        Target crank power of each segment, length K [W].
+    piece_power : numpy.ndarray
+        Planned power of each piece, length N-1 [W].
+    prediction : Prediction
+        Inertial simulation of the plan [-].
+    reference : Prediction
+        Simulation of constant power at the same verified mean power (or work) [-].
+    reference_power : float
+        That constant power [W].
+    time_saved : float
+        Reference finish time − plan finish time [s].
+    w_prime_balance : numpy.ndarray or None
+        W′ balance at every point, length N; None without CP and W′ [J].
+    segment_w_prime_balance : numpy.ndarray or None
+        W′ balance at the end of each segment, length K; None without CP and W′ [J].
+    min_w_prime_balance : float or None
+        Lowest W′ balance; None without CP and W′ [J].
+    min_w_prime_distance : float or None
+        Distance where it happens; None without CP and W′ [m].
+    effort_weighted_power : float
+        Effort-weighted power of the verified ride [W].
+    residuals : dict of str to float
+        Constraint residuals on the verified ride, by name: "mean_power_w" [W] or "work_j"
+        [J], verified − target; "w_prime_reserve_j", min balance − reserve, ≥ 0 when met [J];
+        "effort_cap_w", cap − effort-weighted power, ≥ 0 when met [W]; "power_bounds_w",
+        largest excursion of a segment power outside its bounds, 0 when met [W].
+    binding : tuple of str
+        Names of the constraints that bind ("mean-power", "work", "max-power on N segments",
+        "min-power on N segments", "w-prime-reserve", "effort-cap") [-].
+    solver : SolverReport
+        How the segment powers were found [-].
+    steady_time : float
+        Finish time of the plan in the steady-state segment model [s].
+    steady_reference_time : float
+        Finish time of constant power at the request's mean power in that model [s].
+    power_low : numpy.ndarray or None
+        Lower bound of each segment power, length K [W].
+    power_high : numpy.ndarray or None
+        Upper bound of each segment power, length K [W].
     """
 
     strategy: str
@@ -81,8 +119,8 @@ class RacePlan:
     bounds: np.ndarray
     segment_power: np.ndarray
     piece_power: np.ndarray
-    prediction: object
-    reference: object
+    prediction: Prediction
+    reference: Prediction
     reference_power: float
     time_saved: float
     w_prime_balance: np.ndarray | None
@@ -90,8 +128,8 @@ class RacePlan:
     min_w_prime_balance: float | None
     min_w_prime_distance: float | None
     effort_weighted_power: float
-    residuals: dict = field(default_factory=dict)
-    binding: tuple = ()
+    residuals: dict[str, float] = field(default_factory=dict)
+    binding: tuple[str, ...] = ()
     solver: SolverReport = SolverReport("constant")
     steady_time: float = float("nan")
     steady_reference_time: float = float("nan")
@@ -114,26 +152,38 @@ class RacePlan:
         return float(self.prediction.work)
 
 
-# ------------------------------------------------------------------ verification and plans
+@dataclass(frozen=True, eq=False)
+class _Ride:
+    """What a plan is made on and verified with: the course, its segment bounds, the rider,
+    the air on each piece, the simulation options and the steady segment model."""
 
-def _simulate(course, piece_power, rider, air, options):
-    from pacing.plan import simulate as simulation
-    from pacing.plan.prediction import SimulationOptions
+    course: Course
+    bounds: np.ndarray
+    rider: Rider
+    air: CourseAir
+    options: SimulationOptions | None
+    model: SegmentModel
 
-    if options is None:
-        options = SimulationOptions()
-    return simulation.simulate(course, piece_power, rider, air, options)
+    def simulate(self, piece_power: np.ndarray) -> Prediction:
+        """The inertial simulation of piece powers [W] (default options when none)."""
+        options = self.options if self.options is not None else SimulationOptions()
+        return simulate(self.course, piece_power, self.rider, self.air, options)
 
 
-def _measure(prediction, request: PlanRequest) -> float:
+# ------------------------------------------------------------------ verification helpers
+
+def _measure(prediction: Prediction, request: PlanRequest) -> float:
+    """What the coupling constraint holds on a ride: its work [J] or mean power [W]."""
     if request.constraint == "work":
         return float(prediction.work)
     return float(prediction.average_power)
 
 
-def _matched(make_powers, course, rider, air, options, request, target, free_pieces=None,
-             first=None):
-    """Scale a plan so the simulated mean power (or work) equals target; (prediction, scale).
+def _matched(ride: _Ride, make_powers: Callable[[float], np.ndarray], request: PlanRequest,
+             target: float, free_pieces: np.ndarray | None = None,
+             first: Prediction | None = None) -> tuple[Prediction, float]:
+    """Scale a plan so the simulated mean power [W] (or work [J]) equals target; (prediction,
+    scale [-]).
 
     `make_powers(scale)` gives the piece powers; only the pieces in `free_pieces` (default
     all) scale with it. The first step assumes the measure changes by the scaled pieces' share
@@ -141,8 +191,7 @@ def _matched(make_powers, course, rider, air, options, request, target, free_pie
     make_powers(1.0) when already done.
     """
     scale = 1.0
-    prediction = first if first is not None else _simulate(course, make_powers(scale), rider,
-                                                           air, options)
+    prediction = first if first is not None else ride.simulate(make_powers(scale))
     value = _measure(prediction, request)
     tolerance = _MATCH_TOLERANCE * target
     previous = None
@@ -159,30 +208,121 @@ def _matched(make_powers, course, rider, air, options, request, target, free_pie
             new_scale = scale + (target - value) * (scale - previous[0]) / (value - previous[1])
         previous = (scale, value)
         scale = float(np.clip(new_scale, 0.5 * scale, 2.0 * scale))
-        prediction = _simulate(course, make_powers(scale), rider, air, options)
+        prediction = ride.simulate(make_powers(scale))
         value = _measure(prediction, request)
     return prediction, scale
 
 
-def _piece_durations(prediction) -> np.ndarray:
+def _piece_durations(prediction: Prediction) -> np.ndarray:
+    """Time on each piece [s]."""
     return np.diff(np.asarray(prediction.time, dtype=float))
 
 
-def _balance_along(prediction, request: PlanRequest) -> np.ndarray:
+def _balance_along(prediction: Prediction, request: PlanRequest) -> np.ndarray:
+    """W′ balance at every point of a ride [J], length N."""
+    critical_power, w_prime = w_prime_parameters(request)
     balance = w_prime_balance(np.asarray(prediction.power, dtype=float),
-                              _piece_durations(prediction), request.critical_power,
-                              request.w_prime, request.w_prime_model)
-    return np.concatenate([[float(request.w_prime)], balance])
+                              _piece_durations(prediction), critical_power, w_prime,
+                              request.w_prime_model)
+    return np.concatenate([[w_prime], balance])
 
 
-def _effort(prediction) -> float:
+def _effort(prediction: Prediction) -> float:
+    """Effort-weighted power of a ride [W]."""
     return effort_weighted_power(np.maximum(np.asarray(prediction.power, dtype=float), 0.0),
                                  _piece_durations(prediction))
 
 
-def _constant_target_time(course, rider, air, options, request, model) -> float:
-    """Constant power whose simulated finish time equals the target [W]."""
-    target = float(request.target_time)
+def _reference(ride: _Ride, request: PlanRequest) -> tuple[Prediction, float]:
+    """The constant plan at the request's mean power, verified; (prediction, power [W]).
+
+    With the mean-power constraint its power is scaled until the simulated time-weighted mean
+    equals the request's (they differ where the simulation eases off or brakes); with the work
+    constraint the constant power is kept and its simulated work is the target.
+    """
+    mean = required_mean_power(request)
+    pieces = np.asarray(ride.course.distance).size - 1
+
+    def constant_powers(scale: float) -> np.ndarray:
+        return np.full(pieces, mean * scale)
+
+    if request.constraint == "work":
+        return ride.simulate(constant_powers(1.0)), mean
+    prediction, scale = _matched(ride, constant_powers, request, mean)
+    return prediction, mean * scale
+
+
+# ------------------------------------------------------------------ plans
+
+def make_plan(course: Course, bounds: ArrayLike, rider: Rider, air: CourseAir,
+              request: PlanRequest, options: SimulationOptions | None = None) -> RacePlan:
+    """Make the plan a request asks for and verify it by the inertial simulation.
+
+    "constant": the request's mean power on every segment. "target-time": the constant power
+    whose simulated finish time is the target. "fastest": the fastest segment powers of the
+    steady-state segment model (pacing.plan.fastest), scaled so the verified ride meets the
+    mean power (or work), re-solved while the verified ride breaks the W′ reserve or the
+    effort cap (module docstring).
+
+    Parameters
+    ----------
+    course : pacing.course.geometry.Course
+        The course, N points [-].
+    bounds : array_like of int
+        Segment boundary point indices, increasing, first 0, last N-1 [-].
+    rider : pacing.physics.cycling.Rider
+        The rider and bike [-].
+    air : pacing.weather.conditions.CourseAir
+        Air density [kg/m³], headwind [m/s] and crosswind [m/s] on every piece [-].
+    request : PlanRequest
+        What the coach asks for [-].
+    options : SimulationOptions or None
+        Choices of the verifying simulation; None for the defaults [-].
+
+    Returns
+    -------
+    RacePlan
+        The plan with its verified prediction and constant-power reference [-].
+
+    Raises
+    ------
+    InputError
+        When the request cannot be met (e.g. a target time beyond what CP and W′ allow, or a
+        mean power that drains W′ below the reserve on every plan), or lacks its mean power
+        or target time.
+
+    References
+    ----------
+    Martin, J.C., Milliken, D.L., Cobb, J.E., McFadden, K.L. & Coggan, A.R. (1998).
+    Validation of a mathematical model for road cycling power. J Appl Biomech 14(3):276-291.
+    doi:10.1123/jab.14.3.276
+    Atkinson, G., Peacock, O. & Passfield, L. (2007). J Sports Sci 25(9):1001-1009.
+    doi:10.1080/02640410600944709
+    Skiba, P.F., Chidnok, W., Vanhatalo, A. & Jones, A.M. (2012). Med Sci Sports Exerc
+    44(8):1526-1532. doi:10.1249/MSS.0b013e3182517a80
+    """
+    if not isinstance(request, PlanRequest):
+        raise InputError("request must be a PlanRequest")
+    if request.strategy == "target-time":
+        required_target_time(request)
+    else:
+        required_mean_power(request)
+    model = segment_model(course, bounds, rider, air)
+    ride = _Ride(course, np.asarray(bounds, dtype=int), rider, air, options, model)
+    if request.strategy == "target-time":
+        return _target_time_plan(ride, request)
+    if request.strategy == "constant":
+        return _finish_plan(ride, request, np.full(model.count, required_mean_power(request)),
+                            None, SolverReport("constant"))
+    return _fastest_plan(ride, request)
+
+
+def _constant_target_time(ride: _Ride, request: PlanRequest, target: float) -> float:
+    """Constant power whose simulated finish time equals the target [s]; the power [W].
+
+    brentq on the steady finish time, then secant steps on the simulated one (to 0.01 s).
+    """
+    model = ride.model
 
     def steady(power: float) -> float:
         time, _, _ = steady_segment_times(model, np.full(model.count, power))
@@ -194,11 +334,10 @@ def _constant_target_time(course, rider, air, options, request, model) -> float:
     if steady(1.0) < 0:
         raise InputError(f"target time {target:.0f} s is slower than riding at 1 W")
     power = optimize.brentq(steady, 1.0, MAXIMUM_PLAN_POWER, xtol=1e-6)
-    pieces = np.asarray(course.distance).size - 1
+    pieces = np.asarray(ride.course.distance).size - 1
     previous = None
     for _ in range(8):
-        finish = float(_simulate(course, np.full(pieces, power), rider, air,
-                                 options).finish_time)
+        finish = float(ride.simulate(np.full(pieces, power)).finish_time)
         if abs(finish - target) <= 0.01:
             break
         if previous is None or previous[1] == finish:
@@ -213,118 +352,30 @@ def _constant_target_time(course, rider, air, options, request, model) -> float:
     return float(power)
 
 
-def make_plan(course, bounds, rider: Rider, air, request: PlanRequest,
-              options=None) -> RacePlan:
-    """Make the plan a request asks for and verify it by the inertial simulation.
-
-    Parameters
-    ----------
-    course : pacing.course.geometry.Course; bounds : segment boundary point indices (first 0,
-    last N-1);
-    rider : pacing.physics.cycling.Rider; air : pacing.weather.conditions.CourseAir (per piece);
-    request : PlanRequest; options : pacing.plan.prediction.SimulationOptions (default options).
-
-    Returns
-    -------
-    RacePlan. Raises InputError when the request cannot be met (e.g. a target time beyond
-    what CP and W′ allow, or a mean power that drains W′ below the reserve on every plan).
-    """
-    if not isinstance(request, PlanRequest):
-        raise InputError("request must be a PlanRequest")
-    if request.strategy in ("constant", "fastest") and request.mean_power is None:
-        raise InputError(f"the {request.strategy} plan needs a mean power (--power)")
-    if request.strategy == "target-time" and request.target_time is None:
-        raise InputError("the target-time plan needs a target time (--target-time)")
-    model = segment_model(course, bounds, rider, air)
-    bounds = np.asarray(bounds, dtype=int)
-    if request.strategy == "target-time":
-        power = _constant_target_time(course, rider, air, options, request, model)
-        request_for_plan = PlanRequest(
-            strategy="target-time", mean_power=power, target_time=request.target_time,
-            critical_power=request.critical_power, w_prime=request.w_prime,
-            w_prime_reserve=request.w_prime_reserve, max_power_ratio=request.max_power_ratio,
-            w_prime_model=request.w_prime_model, band=request.band)
-        plan = _finish_plan(course, bounds, rider, air, request_for_plan, options, model,
-                            np.full(model.count, power), None, SolverReport("constant"))
-        _check_reachable(plan, request)
-        return plan
-    mean = float(request.mean_power)
-    if request.strategy == "constant":
-        return _finish_plan(course, bounds, rider, air, request, options, model,
-                            np.full(model.count, mean), None, SolverReport("constant"))
-    lower, upper = power_limits(model, request)
-    target_reserve = request.w_prime_reserve if request.uses_w_prime else None
-    target_cap = request.effort_weighted_cap
-    # the solver aims at the middle of the band a verified W′ reserve is accepted in (kept,
-    # with less than _SLACK of slack): the ride drains W′ a little faster than the steady model
-    # (speed changes), and that no longer needs a new round. The effort cap is aimed at as
-    # asked: the verified 30 s rolling measure is never above the solver's bound of it.
-    reserve = None if target_reserve is None else max(target_reserve, min(
-        target_reserve + 0.5 * _SLACK * float(request.w_prime), 0.999 * float(request.w_prime)))
-    cap = target_cap
-    reference = _reference(course, rider, air, options, request)
-    best = None
-    tried_reserve: list[tuple[float, float]] = []
-    tried_cap: list[tuple[float, float]] = []
-    previous = None
-    for rounds in range(_CORRECTION_ROUNDS + 1):
-        # a correction round only moves the solver's reserve or cap a little: it starts from
-        # the previous round's plan (the full search runs again only if that start fails)
-        try:
-            power, report = fastest_steady_plan(model, request, lower, upper, reserve, cap,
-                                                start=previous)
-        except InputError:
-            if rounds > 0 or (reserve == target_reserve and cap == target_cap):
-                raise
-            # the aimed limits cannot be kept, the requested ones may: solve for those
-            reserve, cap = target_reserve, target_cap
-            power, report = fastest_steady_plan(model, request, lower, upper, reserve, cap)
-        previous = (power, report)
-        report = replace(report, correction_rounds=rounds)
-        plan = _finish_plan(course, bounds, rider, air, request, options, model, power,
-                            (lower, upper), report, reference)
-        w_gap = plan.residuals.get("w_prime_reserve_j", math.inf)
-        cap_gap = plan.residuals.get("effort_cap_w", math.inf)
-        feasible = (w_gap >= -1e-6 * float(request.w_prime or 1.0)
-                    and cap_gap >= -1e-6 * mean)
-        if feasible and (best is None or plan.finish_time < best.finish_time):
-            best = plan
-        # re-solve while a limit the solver held is broken, or kept with needless slack
-        w_off = w_gap < 0 or ("w-prime-reserve" in report.active
-                              and w_gap > _SLACK * float(request.w_prime))
-        cap_off = cap_gap < 0 or ("effort-cap" in report.active
-                                  and cap_gap > _SLACK * target_cap)
-        if not (w_off or cap_off) and feasible:
-            break
-        if w_off:
-            reserve = _next_limit(tried_reserve, reserve, plan.min_w_prime_balance,
-                                  target_reserve + 0.5 * _SLACK * float(request.w_prime))
-            reserve = min(max(reserve, 0.0), 0.999 * float(request.w_prime))
-        if cap_off:
-            cap = _next_limit(tried_cap, cap, -plan.effort_weighted_power,
-                              -(target_cap - 0.5 * _SLACK * target_cap))
-    if best is None:
-        what = "W′ reserve" if w_gap < 0 else "effort cap"
-        raise InputError(f"no plan at mean power {mean:g} W keeps the {what} on the simulated "
-                         "ride")
-    return best
-
-
-def _next_limit(history: list, limit: float, measured: float, wanted: float) -> float:
-    """Secant step on an internal limit so the verified value reaches `wanted`."""
-    history.append((limit, measured))
-    if len(history) >= 2:
-        (l0, m0), (l1, m1) = history[-2], history[-1]
-        if m1 != m0:
-            return l1 + (wanted - m1) * (l1 - l0) / (m1 - m0)
-    return limit + (wanted - measured)
+def _target_time_plan(ride: _Ride, request: PlanRequest) -> RacePlan:
+    """The constant plan that reaches the request's target time, checked against CP, W′ and
+    the power cap."""
+    target = required_target_time(request)
+    power = _constant_target_time(ride, request, target)
+    request_for_plan = PlanRequest(
+        strategy="target-time", mean_power=power, target_time=request.target_time,
+        critical_power=request.critical_power, w_prime=request.w_prime,
+        w_prime_reserve=request.w_prime_reserve, max_power_ratio=request.max_power_ratio,
+        w_prime_model=request.w_prime_model, band=request.band)
+    plan = _finish_plan(ride, request_for_plan, np.full(ride.model.count, power), None,
+                        SolverReport("constant"))
+    _check_reachable(plan, request)
+    return plan
 
 
 def _check_reachable(plan: RacePlan, request: PlanRequest) -> None:
+    """InputError when the target-time plan drains W′ below the reserve or needs more than
+    the power cap."""
     power = plan.reference_power
-    if request.uses_w_prime and plan.min_w_prime_balance < request.w_prime_reserve:
-        allowed = request.critical_power + (request.w_prime - request.w_prime_reserve) / \
-            plan.finish_time
+    if (request.uses_w_prime and plan.min_w_prime_balance is not None
+            and plan.min_w_prime_balance < request.w_prime_reserve):
+        critical_power, w_prime = w_prime_parameters(request)
+        allowed = critical_power + (w_prime - request.w_prime_reserve) / plan.finish_time
         raise InputError(f"target time {request.target_time:.0f} s is not reachable: it needs "
                          f"{power:.0f} W, more than the {allowed:.0f} W that CP and W′ allow")
     if request.max_power_ratio is not None:
@@ -334,87 +385,198 @@ def _check_reachable(plan: RacePlan, request: PlanRequest) -> None:
                              f"needs {power:.0f} W, above the power cap")
 
 
-def _reference(course, rider, air, options, request: PlanRequest):
-    """The constant plan at the request's mean power, verified; (prediction, power [W]).
+@dataclass
+class _Aim:
+    """The W′ reserve [J] and effort cap [W] the solver is asked to keep in a correction
+    round, and the (asked, verified) pairs tried so far for the secant steps."""
 
-    With the mean-power constraint its power is scaled until the simulated time-weighted mean
-    equals the request's (they differ where the simulation eases off or brakes); with the work
-    constraint the constant power is kept and its simulated work is the target.
+    reserve: float | None
+    cap: float | None
+    tried_reserve: list[tuple[float, float]] = field(default_factory=list)
+    tried_cap: list[tuple[float, float]] = field(default_factory=list)
+
+
+def _first_aim(request: PlanRequest) -> _Aim:
+    """The first round's aim.
+
+    The solver aims at the middle of the band a verified W′ reserve is accepted in (kept,
+    with less than _SLACK of slack): the ride drains W′ a little faster than the steady model
+    (speed changes), and that no longer needs a new round. The effort cap is aimed at as
+    asked: the verified 30 s rolling measure is never above the solver's bound of it.
     """
-    mean = float(request.mean_power)
-    pieces = np.asarray(course.distance).size - 1
-
-    def constant_powers(scale: float) -> np.ndarray:
-        return np.full(pieces, mean * scale)
-
-    if request.constraint == "work":
-        return _simulate(course, constant_powers(1.0), rider, air, options), mean
-    prediction, scale = _matched(constant_powers, course, rider, air, options, request, mean)
-    return prediction, mean * scale
+    if not request.uses_w_prime:
+        return _Aim(None, request.effort_weighted_cap)
+    w_prime = w_prime_parameters(request)[1]
+    target = request.w_prime_reserve
+    return _Aim(max(target, min(target + 0.5 * _SLACK * w_prime, 0.999 * w_prime)),
+                request.effort_weighted_cap)
 
 
-def _finish_plan(course, bounds, rider, air, request, options, model, segment_power, limits,
-                 report: SolverReport, reference=None) -> RacePlan:
-    """Verify, correct and package a plan."""
-    mean = float(request.mean_power)
-    pieces_segment = model.segment
+def _solve_round(ride: _Ride, request: PlanRequest, limits: tuple[np.ndarray, np.ndarray],
+                 aim: _Aim, rounds: int, previous: tuple[np.ndarray, SolverReport] | None
+                 ) -> tuple[np.ndarray, SolverReport]:
+    """One round's steady solve; a correction round starts from the previous round's plan
+    (the full search runs again only if that start fails). When the first round's aimed
+    limits cannot be kept, the requested ones may: it solves for those (and `aim` moves)."""
+    lower, upper = limits
+    try:
+        return fastest_steady_plan(ride.model, request, lower, upper, aim.reserve, aim.cap,
+                                   start=previous)
+    except InputError:
+        asked = _first_aim(request)
+        requested = request.w_prime_reserve if request.uses_w_prime else None
+        if rounds > 0 or (aim.reserve == requested and aim.cap == asked.cap):
+            raise
+        aim.reserve, aim.cap = requested, asked.cap
+        return fastest_steady_plan(ride.model, request, lower, upper, aim.reserve, aim.cap)
+
+
+def _fastest_plan(ride: _Ride, request: PlanRequest) -> RacePlan:
+    """The fastest plan, verified, with correction rounds while the verified ride breaks a
+    limit the solver held (or keeps it with needless slack); the fastest feasible one."""
+    mean = required_mean_power(request)
+    limits = power_limits(ride.model, request)
+    aim = _first_aim(request)
+    reference = _reference(ride, request)
+    best = None
+    previous = None
+    w_gap = math.inf
+    for rounds in range(_CORRECTION_ROUNDS + 1):
+        power, report = _solve_round(ride, request, limits, aim, rounds, previous)
+        previous = (power, report)
+        report = replace(report, correction_rounds=rounds)
+        plan = _finish_plan(ride, request, power, limits, report, reference)
+        w_gap = plan.residuals.get("w_prime_reserve_j", math.inf)
+        cap_gap = plan.residuals.get("effort_cap_w", math.inf)
+        feasible = (w_gap >= -1e-6 * float(request.w_prime or 1.0)
+                    and cap_gap >= -1e-6 * mean)
+        if feasible and (best is None or plan.finish_time < best.finish_time):
+            best = plan
+        if not _correct_aim(aim, plan, request, w_gap, cap_gap) and feasible:
+            break
+    if best is None:
+        what = "W′ reserve" if w_gap < 0 else "effort cap"
+        raise InputError(f"no plan at mean power {mean:g} W keeps the {what} on the simulated "
+                         "ride")
+    return best
+
+
+def _correct_aim(aim: _Aim, plan: RacePlan, request: PlanRequest, w_gap: float,
+                 cap_gap: float) -> bool:
+    """Move the aimed reserve or cap by a secant step while a limit the solver held is broken
+    on the verified ride, or kept with more than _SLACK of slack; whether one moved."""
+    active = plan.solver.active
+    w_prime = float(request.w_prime or 1.0)
+    w_off = w_gap < 0 or ("w-prime-reserve" in active and w_gap > _SLACK * w_prime)
+    cap_off = cap_gap < 0 or ("effort-cap" in active and cap_gap > _SLACK * float(
+        request.effort_weighted_cap or 0.0))
+    if (w_off and aim.reserve is not None and plan.min_w_prime_balance is not None):
+        moved = _next_limit(aim.tried_reserve, aim.reserve, plan.min_w_prime_balance,
+                            request.w_prime_reserve + 0.5 * _SLACK * w_prime)
+        aim.reserve = min(max(moved, 0.0), 0.999 * w_prime)
+    target_cap = request.effort_weighted_cap
+    if cap_off and aim.cap is not None and target_cap is not None:
+        aim.cap = _next_limit(aim.tried_cap, aim.cap, -plan.effort_weighted_power,
+                              -(target_cap - 0.5 * _SLACK * target_cap))
+    return w_off or cap_off
+
+
+def _next_limit(history: list[tuple[float, float]], limit: float, measured: float,
+                wanted: float) -> float:
+    """Secant step on an internal limit so the verified value reaches `wanted`."""
+    history.append((limit, measured))
+    if len(history) >= 2:
+        (l0, m0), (l1, m1) = history[-2], history[-1]
+        if m1 != m0:
+            return l1 + (wanted - m1) * (l1 - l0) / (m1 - m0)
+    return limit + (wanted - measured)
+
+
+# ------------------------------------------------------------------ verification
+
+def _scaled_to_target(ride: _Ride, request: PlanRequest, segment_power: np.ndarray,
+                      lower: np.ndarray, upper: np.ndarray, target: float
+                      ) -> tuple[np.ndarray, Prediction]:
+    """Scale the segment powers [W] until the verified mean power [W] (or work [J]) is the
+    target; (segment powers [W], prediction).
+
+    Only the segments not held at a bound are scaled, so bounds stay where they bind; when
+    that cannot reach the target (the free ones hit a bound first), the segments held at the
+    lower bound scale up with them, or else those at the upper bound down.
+    """
+    pieces_segment = ride.model.segment
+    at_low = segment_power <= lower * (1 + 1e-6) + 1e-9
+    at_high = segment_power >= upper * (1 - 1e-6)
+    choices = [c for c in (~at_low & ~at_high, ~at_high, ~at_low) if c.any()]
+    choices = choices or [np.ones_like(at_low)]
+    # every choice starts from the same plan (scale 1): it is simulated once
+    unscaled = ride.simulate(np.clip(segment_power, lower, upper)[pieces_segment])
+    for free in choices:
+        def corrected(scale: float, free: np.ndarray = free) -> np.ndarray:
+            return np.clip(np.where(free, segment_power * scale, segment_power), lower, upper)
+
+        prediction, scale = _matched(ride, lambda scale: corrected(scale)[pieces_segment],
+                                     request, target, free[pieces_segment], unscaled)
+        if abs(_measure(prediction, request) - target) <= _MATCH_TOLERANCE * target:
+            break
+    return corrected(scale), prediction
+
+
+def _bound_binding(segment_power: np.ndarray, lower: np.ndarray, upper: np.ndarray
+                   ) -> tuple[list[str], float]:
+    """Names of the power bounds that bind, and the largest excursion outside them [W]."""
+    binding = []
+    at_upper = int(np.sum(segment_power >= upper * (1 - 1e-6)))
+    at_lower = int(np.sum(segment_power <= lower * (1 + 1e-6) + 1e-9))
+    if at_upper:
+        binding.append(f"max-power on {at_upper} segments")
+    if at_lower:
+        binding.append(f"min-power on {at_lower} segments")
+    return binding, float(max(0.0, np.max(segment_power - upper),
+                              np.max(lower - segment_power)))
+
+
+def _w_prime_along(prediction: Prediction, request: PlanRequest, bounds: np.ndarray
+                   ) -> tuple[np.ndarray, np.ndarray, float, float]:
+    """W′ balance of a ride at every point and at each segment end [J], its lowest value [J]
+    and where it happens [m]."""
+    balance = _balance_along(prediction, request)
+    where = int(np.argmin(balance))
+    return (balance, balance[np.asarray(bounds)[1:]], float(balance[where]),
+            float(np.asarray(prediction.distance)[where]))
+
+
+def _finish_plan(ride: _Ride, request: PlanRequest, segment_power: np.ndarray,
+                 limits: tuple[np.ndarray, np.ndarray] | None, report: SolverReport,
+                 reference: tuple[Prediction, float] | None = None) -> RacePlan:
+    """Verify, correct and package a plan: the fastest plan is scaled to its target and its
+    bounds checked; constant plans are their own reference."""
+    mean = required_mean_power(request)
+    model = ride.model
     constant_time, _, _ = steady_segment_times(model, np.full(model.count, mean))
     steady_time, _, _ = steady_segment_times(model, segment_power)
     lower, upper = limits if limits is not None else (segment_power, segment_power)
-
-    if request.strategy == "fastest":
-        reference, reference_power = reference or _reference(course, rider, air, options,
-                                                             request)
-        target = mean if request.constraint == "mean-power" else float(reference.work)
-
-        # only the segments not held at a bound are scaled, so bounds stay where they bind;
-        # when that cannot reach the target (the free ones hit a bound first), the segments
-        # held at the lower bound scale up with them, or else those at the upper bound down
-        at_low = segment_power <= lower * (1 + 1e-6) + 1e-9
-        at_high = segment_power >= upper * (1 - 1e-6)
-        choices = [c for c in (~at_low & ~at_high, ~at_high, ~at_low) if c.any()]
-        choices = choices or [np.ones_like(at_low)]
-        # every choice starts from the same plan (scale 1): it is simulated once
-        unscaled = _simulate(course, np.clip(segment_power, lower, upper)[pieces_segment],
-                             rider, air, options)
-        for free in choices:
-            def corrected(scale: float, free=free) -> np.ndarray:
-                return np.clip(np.where(free, segment_power * scale, segment_power), lower,
-                               upper)
-
-            prediction, scale = _matched(lambda scale: corrected(scale)[pieces_segment], course,
-                                         rider, air, options, request, target,
-                                         free[pieces_segment], unscaled)
-            if abs(_measure(prediction, request) - target) <= _MATCH_TOLERANCE * target:
-                break
-        segment_power = corrected(scale)
-        piece_power = segment_power[pieces_segment]
-        measured = _measure(prediction, request)
-        residuals = {("work_j" if request.constraint == "work" else "mean_power_w"):
-                     measured - target}
-    else:
-        piece_power = np.full(pieces_segment.size, mean)
-        reference = prediction = _simulate(course, piece_power, rider, air, options)
-        reference_power = mean
-        residuals = {}
+    residuals: dict[str, float] = {}
     binding: list[str] = []
     if request.strategy == "fastest":
-        binding.append(request.constraint)
-        at_upper = int(np.sum(segment_power >= upper * (1 - 1e-6)))
-        at_lower = int(np.sum(segment_power <= lower * (1 + 1e-6) + 1e-9))
-        if at_upper:
-            binding.append(f"max-power on {at_upper} segments")
-        if at_lower:
-            binding.append(f"min-power on {at_lower} segments")
-        residuals["power_bounds_w"] = float(max(0.0, np.max(segment_power - upper),
-                                                np.max(lower - segment_power)))
+        reference_ride, reference_power = reference or _reference(ride, request)
+        target = mean if request.constraint == "mean-power" else float(reference_ride.work)
+        segment_power, prediction = _scaled_to_target(ride, request, segment_power, lower,
+                                                      upper, target)
+        piece_power = segment_power[model.segment]
+        name = "work_j" if request.constraint == "work" else "mean_power_w"
+        residuals[name] = _measure(prediction, request) - target
+        bound_names, excursion = _bound_binding(segment_power, lower, upper)
+        binding += [request.constraint, *bound_names]
+        residuals["power_bounds_w"] = excursion
+    else:
+        piece_power = np.full(model.segment.size, mean)
+        reference_ride = prediction = ride.simulate(piece_power)
+        reference_power = mean
     balance = segment_balance = min_balance = min_distance = None
     if request.uses_w_prime:
-        balance = _balance_along(prediction, request)
-        segment_balance = balance[np.asarray(bounds)[1:]]
-        where = int(np.argmin(balance))
-        min_balance = float(balance[where])
-        min_distance = float(np.asarray(prediction.distance)[where])
+        balance, segment_balance, min_balance, min_distance = _w_prime_along(
+            prediction, request, ride.bounds)
         residuals["w_prime_reserve_j"] = min_balance - request.w_prime_reserve
         if "w-prime-reserve" in report.active:
             binding.append("w-prime-reserve")
@@ -426,13 +588,13 @@ def _finish_plan(course, bounds, rider, air, request, options, model, segment_po
     return RacePlan(
         strategy=request.strategy,
         request=request,
-        bounds=np.asarray(bounds, dtype=int),
+        bounds=np.asarray(ride.bounds, dtype=int),
         segment_power=np.asarray(segment_power, dtype=float),
         piece_power=np.asarray(piece_power, dtype=float),
         prediction=prediction,
-        reference=reference,
+        reference=reference_ride,
         reference_power=reference_power,
-        time_saved=float(reference.finish_time) - float(prediction.finish_time),
+        time_saved=float(reference_ride.finish_time) - float(prediction.finish_time),
         w_prime_balance=balance,
         segment_w_prime_balance=segment_balance,
         min_w_prime_balance=min_balance,

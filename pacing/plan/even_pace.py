@@ -33,17 +33,17 @@ from scipy.optimize import brentq
 
 from pacing.course.geometry import Course
 from pacing.errors import InputError
-from pacing.physics.running import Runner, metabolic_power, speed_for_metabolic_power
+from pacing.physics.running import (
+    RUNNING_SPEED_RANGE,
+    Runner,
+    metabolic_power,
+    speed_for_metabolic_power,
+)
 from pacing.physiology.critical_speed import check_critical_speed, distance_capacity_balance
 from pacing.weather.conditions import CourseAir
 
 AIR_DENSITY_RANGE = (0.3, 1.6)
 """Air density a plan accepts, above the first and at most the second [kg/m³]."""
-
-RUNNING_SPEED_RANGE = (0.5, 12.0)
-"""Running speeds the plans accept and search [m/s]: 33:20 to 1:24 per km, the range of a flat
-pace in pacing.physics.running.flat_effort. The slowest is where `even_pace_within_limits`
-starts; past the fastest, which no runner holds over a race, a search gives up."""
 
 
 def piece_air(

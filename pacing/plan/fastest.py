@@ -45,7 +45,8 @@ Kraft, D. (1988). A software package for sequential quadratic programming. DFVLR
 
 from __future__ import annotations
 
-from dataclasses import dataclass, replace
+from dataclasses import dataclass, field, replace
+from typing import Any
 
 import numpy as np
 from scipy import optimize
@@ -55,16 +56,21 @@ from pacing.course.segments import CLIMB_GRADE
 from pacing.errors import InputError
 from pacing.physiology.critical_power import recovery_time_constant
 from pacing.plan.lagrange import (
-    _PRICE_TOLERANCE,
-    _coupling,
-    _lagrange_plan,
-    _on_coupling,
-    _priced_plan,
-    _raw_effort,
-    _segment_w_prime,
-    _stationarity,
+    PRICE_TOLERANCE,
+    coupling_constraint,
+    fourth_power_mean,
+    lagrange_plan,
+    onto_coupling,
+    priced_plan,
+    stationarity_residual,
+    steady_w_prime_balance,
 )
-from pacing.plan.request import PlanRequest, power_limits
+from pacing.plan.request import (
+    PlanRequest,
+    power_limits,
+    required_mean_power,
+    w_prime_parameters,
+)
 from pacing.plan.steady_model import SegmentModel, steady_segment_times
 
 _SLSQP_MAX_SEGMENTS = 120  # above this the dense SLSQP polish costs more than it gains
@@ -84,20 +90,28 @@ class SolverReport:
 
     Attributes
     ----------
-    method : "constant"; "lagrange" (coupling constraint and bounds only); "lagrange+price"
-        or "lagrange+ceiling" (a limit priced, or a common power ceiling), with "+slsqp" when
+    method : str
+        "constant"; "lagrange" (coupling constraint and bounds only); "lagrange+price" or
+        "lagrange+ceiling" (a limit priced, or a common power ceiling), with "+slsqp" when
         SLSQP improved that plan; "grouped+" in front when the plan started from the coarser
-        problem's (whose own method follows).
-    multiplier : λ, time saved per joule-equivalent of the coupling constraint [s/J]
-        (Lagrange stage); None when not used.
-    iterations : solver iterations (outer root finding + SLSQP iterations).
-    evaluations : steady-state evaluations of the whole course.
-    stationarity : largest relative KKT stationarity residual over free segments [-]
-        (≈ 0 at the optimum; every free segment has the same marginal time per joule).
-    message : the solver's own message.
-    correction_rounds : times the plan was re-solved because the verified ride broke a limit
-        the solver held (or kept it with slack).
-    active : limits held by the solver at its solution ("w-prime-reserve", "effort-cap").
+        problem's (whose own method follows) [-].
+    multiplier : float or None
+        λ, time saved per joule-equivalent of the coupling constraint (Lagrange stage); None
+        when not used [1/J].
+    iterations : int
+        Solver iterations (outer root finding + SLSQP iterations) [-].
+    evaluations : int
+        Steady-state evaluations of the whole course [-].
+    stationarity : float
+        Largest relative KKT stationarity residual over free segments (≈ 0 at the optimum:
+        every free segment has the same marginal time per joule); NaN when a limit binds [-].
+    message : str
+        The solver's own message [-].
+    correction_rounds : int
+        Times the plan was re-solved because the verified ride broke a limit the solver held
+        (or kept it with slack) [-].
+    active : tuple of str
+        Limits held by the solver at its solution ("w-prime-reserve", "effort-cap") [-].
     """
 
     method: str
@@ -107,20 +121,56 @@ class SolverReport:
     stationarity: float = 0.0
     message: str = ""
     correction_rounds: int = 0
-    active: tuple = ()
+    active: tuple[str, ...] = ()
 
 
-def _w_prime_jacobian(power, time, dtime, request: PlanRequest) -> np.ndarray:
+@dataclass(frozen=True)
+class _Limits:
+    """The W′ reserve [J] and effort cap [W] a plan must keep (None: not checked)."""
+
+    reserve: float | None = None
+    cap: float | None = None
+
+
+@dataclass(frozen=True, eq=False)
+class _Problem:
+    """One fastest-plan problem: the model, the request, the power bounds [W] and the count of
+    steady evaluations."""
+
+    model: SegmentModel
+    request: PlanRequest
+    lower: np.ndarray
+    upper: np.ndarray
+    counter: list[int] = field(default_factory=lambda: [0])
+
+    def keeps(self, power: np.ndarray, limits: _Limits, slack: float = 0.0) -> bool:
+        """Whether the plan keeps the limits, each within `slack` of W′ or the cap [-]."""
+        time, _, _ = steady_segment_times(self.model, power)
+        self.counter[0] += 1
+        request = self.request
+        return ((limits.reserve is None
+                 or steady_w_prime_balance(power, time, request).min()
+                 >= limits.reserve - slack * w_prime_parameters(request)[1])
+                and (limits.cap is None
+                     or fourth_power_mean(power, time) <= limits.cap * (1 + slack)))
+
+    def finish(self, power: np.ndarray) -> float:
+        """Steady finish time of a plan [s] (not counted)."""
+        return float(steady_segment_times(self.model, power)[0].sum())
+
+
+def _w_prime_jacobian(power: np.ndarray, time: np.ndarray, dtime: np.ndarray,
+                      request: PlanRequest) -> np.ndarray:
     """d(W′ balance at the end of segment j)/d(power of segment k) [J/W], shape (K, K).
 
     Both W′ models are affine steps on the deficit D = W′ − W′bal over a segment of constant
     power, D_{k+1} = a_k·D_k + b_k (differential: a = 1, b = (P − CP)·t above CP and
     a = e^{(P − CP)·t/W′}, b = 0 below; integral: a = e^{−t/τ}, b = (P − CP)⁺·τ·(1 − a)), and t_k
     depends on P_k through t_k′. Then dD_j/dP_k = (Π_{k<m<j} a_m)·(D_k·da_k/dP_k + db_k/dP_k)
-    for j > k. The integral form's τ is held fixed (its dependence on the mean recovery power is
-    neglected in the gradient only).
+    for j > k. The integral form's τ = 546·e^(−0.01·D_CP) + 316 s depends on every below-CP
+    segment through D_CP = CP − Σ_b P·t / Σ_b t (Skiba et al. 2012).
     """
-    critical, w_prime = float(request.critical_power), float(request.w_prime)
+    critical, w_prime = w_prime_parameters(request)
     excess = power - critical
     above = excess > 0
     if request.w_prime_model == "differential":
@@ -138,7 +188,7 @@ def _w_prime_jacobian(power, time, dtime, request: PlanRequest) -> np.ndarray:
         d_decay = -decay * dtime / tau
         d_increment = np.where(above, tau * (1.0 - decay), 0.0) + np.maximum(excess, 0.0) * \
             decay * dtime
-    deficit = w_prime - np.concatenate([[w_prime], _segment_w_prime(power, time, request)])
+    deficit = w_prime - np.concatenate([[w_prime], steady_w_prime_balance(power, time, request)])
     local = deficit[:-1] * d_decay + d_increment  # dD_{k+1}/dP_k
     log_decay = np.concatenate([[0.0], np.cumsum(np.log(np.maximum(decay, 1e-300)))])
     rows = np.arange(power.size)[:, None]
@@ -147,83 +197,125 @@ def _w_prime_jacobian(power, time, dtime, request: PlanRequest) -> np.ndarray:
     span = np.where(cols <= rows, log_decay[rows + 1] - log_decay[cols + 1], -np.inf)
     jacobian = -np.exp(span) * local[None, :]
     if request.w_prime_model == "integral" and below_time > 0:
-        # τ depends on every below-CP segment through D_CP = CP − Σ_b P·t / Σ_b t
-        d_gap = np.where(below, -(time + power * dtime) / below_time
-                         + float(np.sum(power[below] * time[below])) * dtime / below_time**2,
-                         0.0)
-        d_tau = -5.46 * np.exp(-0.01 * gap) * d_gap
-        by_tau = np.empty(power.size)  # dD_{r+1}/dτ
-        slope = 0.0
-        for r in range(power.size):
-            da = decay[r] * time[r] / tau**2
-            db = max(excess[r], 0.0) * ((1.0 - decay[r]) - decay[r] * time[r] / tau)
-            slope = decay[r] * slope + deficit[r] * da + db
-            by_tau[r] = slope
-        jacobian -= np.outer(by_tau, d_tau)
+        jacobian -= _recovery_constant_term(power, time, dtime, excess, decay, deficit, below,
+                                            below_time, gap, tau)
     return jacobian
 
 
-def _slsqp_plan(model, request, lower, upper, start, reserve, cap, counter):
-    """Fastest powers with W′ reserve and/or effort cap (SLSQP); returns (power, result)."""
-    centre, target = _coupling(request, model)
-    mean = float(request.mean_power)
-    time0, _, _ = steady_segment_times(model, np.full(model.count, mean))
-    total0 = float(time0.sum())
-    cache: dict = {}
+def _recovery_constant_term(power: np.ndarray, time: np.ndarray, dtime: np.ndarray,
+                            excess: np.ndarray, decay: np.ndarray, deficit: np.ndarray,
+                            below: np.ndarray, below_time: float, gap: float, tau: float
+                            ) -> np.ndarray:
+    """The integral model's dD_{r+1}/dτ · dτ/dP_k [J/W], shape (K, K): τ depends on every
+    below-CP segment through D_CP = CP − Σ_b P·t / Σ_b t."""
+    d_gap = np.where(below, -(time + power * dtime) / below_time
+                     + float(np.sum(power[below] * time[below])) * dtime / below_time**2,
+                     0.0)
+    d_tau = -5.46 * np.exp(-0.01 * gap) * d_gap
+    by_tau = np.empty(power.size)  # dD_{r+1}/dτ
+    slope = 0.0
+    for r in range(power.size):
+        da = decay[r] * time[r] / tau**2
+        db = max(excess[r], 0.0) * ((1.0 - decay[r]) - decay[r] * time[r] / tau)
+        slope = decay[r] * slope + deficit[r] * da + db
+        by_tau[r] = slope
+    return np.outer(by_tau, d_tau)
 
-    def evaluate(x):
+
+class _ScaledProblem:
+    """The fastest-plan problem in SLSQP's variables x = P/P̄ [-], with its objective (finish
+    time over the constant plan's) and constraints (coupling, W′ balance, effort) and their
+    analytic gradients; one steady evaluation per new x."""
+
+    def __init__(self, problem: _Problem) -> None:
+        self.model, self.request, self.counter = problem.model, problem.request, problem.counter
+        self.centre, self.target = coupling_constraint(self.request, self.model)
+        self.mean = required_mean_power(self.request)
+        time0, _, _ = steady_segment_times(self.model, np.full(self.model.count, self.mean))
+        self.total0 = float(time0.sum())
+        self.cache: dict[bytes, tuple[np.ndarray, np.ndarray, np.ndarray]] = {}
+
+    def evaluate(self, x: np.ndarray) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+        """steady_segment_times at powers x·P̄ (the last one kept)."""
         key = x.tobytes()
-        if key not in cache:
-            cache.clear()
-            counter[0] += 1
-            cache[key] = steady_segment_times(model, x * mean)
-        return cache[key]
+        if key not in self.cache:
+            self.cache.clear()
+            self.counter[0] += 1
+            self.cache[key] = steady_segment_times(self.model, x * self.mean)
+        return self.cache[key]
 
-    def objective(x):
-        return float(evaluate(x)[0].sum() / total0)
+    def objective(self, x: np.ndarray) -> float:
+        """Finish time over the constant plan's [-]."""
+        return float(self.evaluate(x)[0].sum() / self.total0)
 
-    def objective_gradient(x):
-        return evaluate(x)[1] * mean / total0
+    def objective_gradient(self, x: np.ndarray) -> np.ndarray:
+        """Its gradient in x [-]."""
+        return self.evaluate(x)[1] * self.mean / self.total0
 
-    def coupling(x):
-        time = evaluate(x)[0]
-        return np.array([(np.sum((x * mean - centre) * time) - target) / (mean * total0)])
+    def coupling(self, x: np.ndarray) -> np.ndarray:
+        """(Σ (P_k − c)·t_k − E₀) / (P̄·T₀) [-], zero on the constraint."""
+        time = self.evaluate(x)[0]
+        return np.array([(np.sum((x * self.mean - self.centre) * time) - self.target)
+                         / (self.mean * self.total0)])
 
-    def coupling_gradient(x):
-        time, dtime, _ = evaluate(x)
-        return ((time + (x * mean - centre) * dtime) * mean / (mean * total0))[None, :]
+    def coupling_gradient(self, x: np.ndarray) -> np.ndarray:
+        """Its gradient in x, shape (1, K) [-]."""
+        time, dtime, _ = self.evaluate(x)
+        mean = self.mean
+        return ((time + (x * mean - self.centre) * dtime) * mean / (mean * self.total0)
+                )[None, :]
 
-    constraints = [{"type": "eq", "fun": coupling, "jac": coupling_gradient}]
-    if reserve is not None:
-        w_prime = float(request.w_prime)
+    def balance_constraint(self, reserve: float) -> dict[str, Any]:
+        """(W′ balance at each segment end − reserve) / W′ ≥ 0, with its Jacobian."""
+        w_prime = w_prime_parameters(self.request)[1]
 
-        def balance(x):
-            return (_segment_w_prime(x * mean, evaluate(x)[0], request) - reserve) / w_prime
+        def balance(x: np.ndarray) -> np.ndarray:
+            power = x * self.mean
+            return (steady_w_prime_balance(power, self.evaluate(x)[0], self.request)
+                    - reserve) / w_prime
 
-        def balance_jacobian(x):
-            time, dtime, _ = evaluate(x)
-            return _w_prime_jacobian(x * mean, time, dtime, request) * mean / w_prime
+        def balance_jacobian(x: np.ndarray) -> np.ndarray:
+            time, dtime, _ = self.evaluate(x)
+            return _w_prime_jacobian(x * self.mean, time, dtime, self.request) * self.mean / \
+                w_prime
 
-        constraints.append({"type": "ineq", "fun": balance, "jac": balance_jacobian})
-    if cap is not None:
-        def effort(x):
-            time = evaluate(x)[0]
-            return np.array([1.0 - (_raw_effort(x * mean, time) / cap) ** 4])
+        return {"type": "ineq", "fun": balance, "jac": balance_jacobian}
 
-        def effort_gradient(x):
-            time, dtime, _ = evaluate(x)
-            power = x * mean
+    def effort_constraint(self, cap: float) -> dict[str, Any]:
+        """1 − (4th-power mean / cap)⁴ ≥ 0, with its gradient."""
+        def effort(x: np.ndarray) -> np.ndarray:
+            time = self.evaluate(x)[0]
+            return np.array([1.0 - (fourth_power_mean(x * self.mean, time) / cap) ** 4])
+
+        def effort_gradient(x: np.ndarray) -> np.ndarray:
+            time, dtime, _ = self.evaluate(x)
+            power = x * self.mean
             total = time.sum()
             fourth = np.sum(power**4 * time) / total
             grad = (4 * power**3 * time + power**4 * dtime) / total - fourth * dtime / total
-            return (-grad * mean / cap**4)[None, :]
+            return (-grad * self.mean / cap**4)[None, :]
 
-        constraints.append({"type": "ineq", "fun": effort, "jac": effort_gradient})
+        return {"type": "ineq", "fun": effort, "jac": effort_gradient}
+
+
+def _slsqp_plan(problem: _Problem, start: np.ndarray, limits: _Limits
+                ) -> tuple[np.ndarray, optimize.OptimizeResult]:
+    """Fastest powers with W′ reserve and/or effort cap by SLSQP (Kraft 1988) from `start`
+    [W]; (power [W], scipy's result)."""
+    scaled = _ScaledProblem(problem)
+    constraints: list[dict[str, Any]] = [
+        {"type": "eq", "fun": scaled.coupling, "jac": scaled.coupling_gradient}]
+    if limits.reserve is not None:
+        constraints.append(scaled.balance_constraint(limits.reserve))
+    if limits.cap is not None:
+        constraints.append(scaled.effort_constraint(limits.cap))
+    lower, upper, mean = problem.lower, problem.upper, scaled.mean
     # SLSQP's small dense linear algebra runs up to 50× slower on a multi-threaded BLAS when
     # the cores are busy (measured: 2.4 s against 0.045 s for 40 segments on 2 loaded cores)
     with threadpool_limits(limits=1, user_api="blas"):
         result = optimize.minimize(
-            objective, np.clip(start, lower, upper) / mean, jac=objective_gradient,
+            scaled.objective, np.clip(start, lower, upper) / mean,
+            jac=scaled.objective_gradient,
             bounds=list(zip(lower / mean, upper / mean, strict=True)), constraints=constraints,
             method="SLSQP", options={"maxiter": 100, "ftol": _SLSQP_FTOL},
         )
@@ -231,22 +323,44 @@ def _slsqp_plan(model, request, lower, upper, start, reserve, cap, counter):
     return power, result
 
 
-def _warm_plan(model, request, lower, upper, start, reserve, cap, reserve_used, cap_used,
-               meets, counter):
-    """SLSQP from a nearby problem's plan (`start`), with the limits that bind; (power, result)
-    when its answer keeps them and the coupling constraint, else None."""
-    polished, result = _slsqp_plan(
-        model, request, lower, upper, np.asarray(start[0], dtype=float),
-        None if reserve_used is None else reserve_used + _SLSQP_MARGIN * float(request.w_prime),
-        None if cap_used is None else cap_used * (1 - _SLSQP_MARGIN), counter)
-    polished = _on_coupling(model, request, polished, lower, upper, counter)
-    centre, target = _coupling(request, model)
+def _polished(problem: _Problem, start: np.ndarray, held: _Limits
+              ) -> tuple[np.ndarray, optimize.OptimizeResult, bool, float]:
+    """SLSQP from a feasible start [W], moved back onto the coupling constraint; (power [W],
+    scipy's result, whether it keeps the limits and the coupling constraint, its steady finish
+    time [s]).
+
+    SLSQP ends within its own tolerance of the limits, possibly just outside: it is given
+    limits a hair inside the real ones (a few joules, a hundredth of a watt), and its answer
+    is moved back onto the coupling constraint by scaling the free powers.
+    """
+    model, request = problem.model, problem.request
+    inside = _Limits(
+        None if held.reserve is None
+        else held.reserve + _SLSQP_MARGIN * w_prime_parameters(request)[1],
+        None if held.cap is None else held.cap * (1 - _SLSQP_MARGIN))
+    polished, result = _slsqp_plan(problem, start, inside)
+    polished = onto_coupling(model, request, polished, problem.lower, problem.upper,
+                             problem.counter)
+    centre, target = coupling_constraint(request, model)
     time, _, _ = steady_segment_times(model, polished)
     coupling_gap = abs(float(np.sum((polished - centre) * time)) - target)
-    if meets(polished, 1e-6) and coupling_gap <= 1e-7 * float(request.mean_power) * float(
-            time.sum()):
-        return polished, result
-    return None
+    feasible = (problem.keeps(polished, held, 1e-6)
+                and coupling_gap <= 1e-7 * required_mean_power(request) * float(time.sum()))
+    return polished, result, feasible, float(time.sum())
+
+
+def _active_limits(problem: _Problem, power: np.ndarray, held: _Limits) -> tuple[str, ...]:
+    """The held limits the plan sits on, within twice PRICE_TOLERANCE."""
+    time, _, _ = steady_segment_times(problem.model, power)
+    active = []
+    request = problem.request
+    if held.reserve is not None and steady_w_prime_balance(power, time, request).min() <= (
+            held.reserve + 2 * PRICE_TOLERANCE * w_prime_parameters(request)[1]):
+        active.append("w-prime-reserve")
+    if held.cap is not None and fourth_power_mean(power, time) >= held.cap * (
+            1 - 2 * PRICE_TOLERANCE):
+        active.append("effort-cap")
+    return tuple(active)
 
 
 # ------------------------------------------------------------------ coarse start for fine splits
@@ -263,7 +377,7 @@ def _grade_groups(model: SegmentModel) -> np.ndarray:
     run = np.bincount(model.segment, horizontal, model.count)
     rise = np.bincount(model.segment, horizontal * model.grade, model.count)
 
-    def klass(grade):
+    def klass(grade: np.ndarray) -> np.ndarray:
         return np.where(grade >= CLIMB_GRADE, 1, np.where(grade <= -CLIMB_GRADE, -1, 0))
 
     kind = klass(rise / np.maximum(run, 1e-12))
@@ -306,9 +420,11 @@ def _grade_groups(model: SegmentModel) -> np.ndarray:
     return np.cumsum(group)
 
 
-def _grouped_plan(model, request, lower, upper, reserve, cap):
+def _grouped_plan(problem: _Problem, reserve: float | None, cap: float | None
+                  ) -> tuple[np.ndarray, SolverReport] | None:
     """The fastest plan with one power per group of segments (`_grade_groups`), as segment
-    powers; None when grouping does not coarsen the split or the grouped problem has no plan.
+    powers [W] with the coarse problem's report; None when grouping does not coarsen the split
+    or the grouped problem has no plan.
 
     Every plan of the grouped problem is a plan of the fine one with the same pieces at the
     same powers, so its time, mean power and work carry over exactly, and its W′ balance only
@@ -316,6 +432,7 @@ def _grouped_plan(model, request, lower, upper, reserve, cap):
     monotone, so it is lowest at a group's ends): a fine split starts from the coarse optimum
     and can only improve on it.
     """
+    model = problem.model
     group = _grade_groups(model)
     if model.count > _SLSQP_MAX_SEGMENTS:
         # too many segments for SLSQP: cut the groups into runs of `size` segments, so the
@@ -336,16 +453,149 @@ def _grouped_plan(model, request, lower, upper, reserve, cap):
     rise = np.bincount(piece_group, horizontal * model.grade, count)
     coarse = replace(model, segment=piece_group, count=count,
                      mean_grade=rise / np.maximum(run, 1e-12), speed_guess={})
-    low = np.maximum.reduceat(lower, starts)
-    high = np.minimum.reduceat(upper, starts)
+    low = np.maximum.reduceat(problem.lower, starts)
+    high = np.minimum.reduceat(problem.upper, starts)
     if np.any(low > high):
         return None
     try:
-        power, report = fastest_steady_plan(coarse, request, low, high, reserve, cap,
+        power, report = fastest_steady_plan(coarse, problem.request, low, high, reserve, cap,
                                             coarse_start=model.count > _SLSQP_MAX_SEGMENTS)
     except InputError:
         return None
     return power[group], report
+
+
+# ------------------------------------------------------------------ the steps of the solve
+
+def _check_reserve_reachable(request: PlanRequest, time: np.ndarray, reserve: float) -> None:
+    """InputError when no plan of the request's mean power can keep the W′ reserve.
+
+    With the differential W′ balance dW′/dt ≤ CP − P at every power, so W′(T) ≤ W′ − (P̄ − CP)·T
+    for any plan of mean P̄, and no plan is faster than the unlimited Lagrange plan (whose
+    segment times are `time` [s]). Only for the mean-power constraint and that model.
+    """
+    if request.constraint != "mean-power" or request.w_prime_model != "differential":
+        return
+    critical_power, w_prime = w_prime_parameters(request)
+    mean = required_mean_power(request)
+    best_case = w_prime - (mean - critical_power) * time.sum()
+    if best_case < reserve:
+        raise InputError(f"no plan at mean power {request.mean_power:g} W keeps the W′ "
+                         f"reserve: {request.mean_power:g} W is above CP "
+                         f"{request.critical_power:g} W for too long")
+
+
+def _warm_plan(problem: _Problem, start: tuple[np.ndarray, SolverReport], held: _Limits,
+               multiplier: float, iterations: int) -> tuple[np.ndarray, SolverReport] | None:
+    """SLSQP from a nearby problem's plan (`start`), with the limits that bind; the plan and
+    its report when its answer keeps them and the coupling constraint, else None."""
+    power, result, feasible, _ = _polished(problem, np.asarray(start[0], dtype=float), held)
+    if not feasible:
+        return None
+    active = _active_limits(problem, power, held)
+    method = start[1].method if start[1].method.endswith("+slsqp") else (
+        start[1].method + "+slsqp")
+    return power, SolverReport(method, multiplier, iterations + int(result.nit),
+                               problem.counter[0], float("nan"), str(result.message),
+                               active=active)
+
+
+def _coarse_start(problem: _Problem, reserve: float | None, cap: float | None
+                  ) -> tuple[tuple[np.ndarray, SolverReport] | None, int]:
+    """The plan of the same problem with one power per climb, flat or descent (per run of
+    segments on a split too fine for SLSQP), when it keeps every limit; (plan and report or
+    None, its iterations). Its evaluations are added to the count."""
+    found = _grouped_plan(problem, reserve, cap)
+    if found is None:
+        return None, 0
+    problem.counter[0] += found[1].evaluations
+    if problem.keeps(found[0], _Limits(reserve, cap), 1e-6):
+        return found, found[1].iterations
+    return None, found[1].iterations
+
+
+def _ceiling_plan(problem: _Problem, held: _Limits, counts: list[int]
+                  ) -> tuple[np.ndarray, float]:
+    """The fastest plan under a common power ceiling U, U the highest ceiling that keeps the
+    limits (bisection to 1e-3 of P̄; U = P̄: constant power); (plan [W], U [W]). Lagrange
+    iterations are added to counts[0], bisection steps to counts[1]."""
+    mean = required_mean_power(problem.request)
+    low_ceiling, high_ceiling = mean, float(problem.upper.max())
+    capped = np.full(problem.model.count, mean)
+    steps = 0
+    while high_ceiling - low_ceiling > 1e-3 * mean:
+        steps += 1
+        ceiling = 0.5 * (low_ceiling + high_ceiling)
+        try:
+            trial, _, used = lagrange_plan(problem.model, problem.request,
+                                           np.minimum(problem.lower, ceiling),
+                                           np.minimum(problem.upper, ceiling), problem.counter)
+            counts[0] += used
+        except InputError:
+            trial = None
+        if trial is not None and problem.keeps(trial, held):
+            low_ceiling, capped = ceiling, trial
+        else:
+            high_ceiling = ceiling
+    counts[1] += steps
+    return capped, low_ceiling
+
+
+def _limited_plan(problem: _Problem, multiplier: float, iterations: int,
+                  every: _Limits, held: _Limits, coarse_start: bool
+                  ) -> tuple[np.ndarray, SolverReport]:
+    """The fastest plan when the Lagrange plan breaks a limit (`held`: the broken ones;
+    `every`: all the request's): a feasible start, then the SLSQP polish."""
+    mean = required_mean_power(problem.request)
+    if not problem.keeps(np.full(problem.model.count, mean), held):
+        what = "W′ reserve" if held.reserve is not None else "effort cap"
+        raise InputError(f"no plan at mean power {mean:g} W keeps the {what}: even constant "
+                         "power breaks it")
+    # 1. the same problem with one power per climb, flat or descent (per run of segments on a
+    #    split too fine for SLSQP): its plan is a plan of this split (same pieces, same
+    #    powers), so this split starts from it and can only improve on it
+    grouped, steps = _coarse_start(problem, every.reserve, every.cap) if coarse_start else (
+        None, 0)
+    # [iterations, ceiling steps]
+    counts = [iterations + steps, 0]
+    # with a plan of the coarser problem in hand, steps 2-3 (starts for the polish that lose
+    # to it in practice: 3891 s against 3843 s on the test's hill loop) are skipped
+    if grouped is not None:
+        power, method, message = grouped[0], "grouped+" + grouped[1].method, grouped[1].message
+    else:
+        power, method, message = _feasible_start(problem, multiplier, held, counts)
+    # 4. polish with SLSQP on the full problem from that feasible start; keep its answer only
+    #    if it is feasible, meets the coupling constraint and is faster
+    nit = 0
+    if problem.model.count <= _SLSQP_MAX_SEGMENTS:
+        polished, result, feasible, finish = _polished(problem, power, held)
+        nit = int(result.nit)
+        if feasible and finish < problem.finish(power):
+            power, method, message = polished, method + "+slsqp", str(result.message)
+    return power, SolverReport(method, multiplier, counts[0] + counts[1] + nit,
+                               problem.counter[0], float("nan"), message,
+                               active=_active_limits(problem, power, held))
+
+
+def _feasible_start(problem: _Problem, multiplier: float, held: _Limits, counts: list[int]
+                    ) -> tuple[np.ndarray, str, str]:
+    """A plan that keeps the broken limits, to polish from; (plan [W], method, message).
+
+    2. With one limit broken, its price in every segment's Lagrangian (W′ spent above CP, or
+       the effort measure): the lowest price that keeps it (Illinois false position).
+    3. Otherwise (or when no price works) the fastest plan under the highest common power
+       ceiling that keeps the limits.
+    """
+    if (held.reserve is None) != (held.cap is None):
+        priced, steps = priced_plan(problem.model, problem.request, problem.lower,
+                                    problem.upper, multiplier, held.reserve, held.cap,
+                                    problem.counter)
+        counts[0] += steps
+        if priced is not None:
+            return priced, "lagrange+price", "lowest price of the limit that keeps it"
+    capped, ceiling = _ceiling_plan(problem, held, counts)
+    return capped, "lagrange+ceiling", (
+        f"highest common power ceiling {ceiling:.1f} W that keeps the limits")
 
 
 def fastest_steady_plan(
@@ -361,26 +611,71 @@ def fastest_steady_plan(
 ) -> tuple[np.ndarray, SolverReport]:
     """Fastest segment powers in the steady-state segment model.
 
+    Minimises the steady finish time Σ t_k(P_k) under the request's coupling constraint
+    (equal time-weighted mean power, or equal work), the power bounds, and the W′ reserve and
+    effort cap: the Lagrange solve when no limit binds, else a feasible start (coarser
+    problem, priced limit or common power ceiling) polished by SLSQP (module docstring).
+
     Parameters
     ----------
-    model : SegmentModel; request : PlanRequest (mean power, constraint, limits).
-    lower, upper : power bounds per segment [W] (default `power_limits`).
-    reserve : W′ balance floor used by the solver [J] (default the request's reserve when CP
-        and W′ are known, else none).
-    cap : effort cap used by the solver [W] (default the request's cap).
-    coarse_start : when a limit binds, also solve the problem with one power per run of
-        climb, flat or descent segments and start from that plan when it is faster, so a finer
-        split is never slower than that coarser one (method then starts with "grouped+").
-    start : (segment power [W], SolverReport) of the same request solved with a nearby reserve
-        or cap (the verifying round's previous solve): when a limit binds, SLSQP polishes from
-        that plan instead of searching for a feasible start again; when its answer breaks a
-        limit or the coupling constraint, the full solve runs as without it.
+    model : SegmentModel
+        The course's segments [-].
+    request : PlanRequest
+        Mean power, constraint and the athlete's limits [-].
+    lower : numpy.ndarray or None
+        Lowest power of each segment, length K; default `power_limits` [W].
+    upper : numpy.ndarray or None
+        Highest power of each segment, length K; default `power_limits` [W].
+    reserve : float or None
+        W′ balance floor used by the solver; default the request's reserve when CP and W′ are
+        known, else none [J].
+    cap : float or None
+        Cap of the solver's effort measure (the time-weighted 4th-power mean power); default
+        the request's effort-weighted cap [W].
+    coarse_start : bool
+        When a limit binds, also solve the problem with one power per run of climb, flat or
+        descent segments and start from that plan when it keeps the limits, so a finer split
+        is never slower than that coarser one (method then starts with "grouped+") [-].
+    start : tuple of (numpy.ndarray, SolverReport) or None
+        (segment power [W], report) of the same request solved with a nearby reserve or cap
+        (the verifying round's previous solve): when a limit binds, SLSQP polishes from that
+        plan instead of searching for a feasible start again; when its answer breaks a limit
+        or the coupling constraint, the full solve runs as without it [-].
 
     Returns
     -------
-    (segment power [W], SolverReport). Raises InputError when no plan meets the mean power
-    within the bounds, or keeps the W′ reserve / effort cap (e.g. a mean power above CP for
-    longer than W′ allows).
+    power : numpy.ndarray
+        Segment powers, length K [W].
+    report : SolverReport
+        How the plan was found [-].
+
+    Raises
+    ------
+    InputError
+        When no plan meets the mean power within the bounds, or keeps the W′ reserve / effort
+        cap (e.g. a mean power above CP for longer than W′ allows).
+
+    Notes
+    -----
+    Above _SLSQP_MAX_SEGMENTS (120) segments the SLSQP polish is skipped, and the plan is the
+    coarser problem's (one power per run of a few segments, itself polished) or the priced /
+    ceiling plan.
+
+    References
+    ----------
+    Atkinson, G., Peacock, O. & Passfield, L. (2007). Variable versus constant power
+    strategies during cycling time-trials: prediction of time savings using an up-to-date
+    mathematical model. J Sports Sci 25(9):1001-1009. doi:10.1080/02640410600944709
+    Bos, L., Slawinski, M.A., Slawinski, R.A. & Stanoev, T. (2024). On minimizing cyclists'
+    ascent times. arXiv:2403.03363.
+    Kraft, D. (1988). A software package for sequential quadratic programming. DFVLR-FB 88-28
+    (scipy.optimize SLSQP).
+    Skiba, P.F., Chidnok, W., Vanhatalo, A. & Jones, A.M. (2012). Modeling the expenditure and
+    reconstitution of work capacity above critical power. Med Sci Sports Exerc
+    44(8):1526-1532. doi:10.1249/MSS.0b013e3182517a80 (integral W′ balance)
+    Skiba, P.F., Fulford, J., Clarke, D.C., Vanhatalo, A. & Jones, A.M. (2015). Intramuscular
+    determinants of the ability to recover work capacity above critical power. Eur J Appl
+    Physiol 115(4):703-713. doi:10.1007/s00421-014-3050-3 (differential W′ balance)
     """
     if lower is None or upper is None:
         lower, upper = power_limits(model, request)
@@ -388,142 +683,24 @@ def fastest_steady_plan(
         reserve = request.w_prime_reserve
     if cap is None:
         cap = request.effort_weighted_cap
-    counter = [0]
-    power, multiplier, iterations = _lagrange_plan(model, request, lower, upper, counter)
-    centre, _ = _coupling(request, model)
-    stationarity = _stationarity(model, power, multiplier, centre, lower, upper)
+    problem = _Problem(model, request, lower, upper)
+    power, multiplier, iterations = lagrange_plan(model, request, lower, upper, problem.counter)
+    centre, _ = coupling_constraint(request, model)
+    stationarity = stationarity_residual(model, power, multiplier, centre, lower, upper)
     time, _, _ = steady_segment_times(model, power)
     breaks_w_prime = (reserve is not None
-                      and _segment_w_prime(power, time, request).min() < reserve)
-    breaks_cap = cap is not None and _raw_effort(power, time) > cap
+                      and steady_w_prime_balance(power, time, request).min() < reserve)
+    breaks_cap = cap is not None and fourth_power_mean(power, time) > cap
     if not (breaks_w_prime or breaks_cap):
-        return power, SolverReport("lagrange", multiplier, iterations, counter[0], stationarity,
+        return power, SolverReport("lagrange", multiplier, iterations, problem.counter[0],
+                                   stationarity,
                                    "equal marginal time per joule on every free segment")
-    if (breaks_w_prime and request.constraint == "mean-power"
-            and request.w_prime_model == "differential"):
-        # dW′/dt ≤ CP − P at every power, so W′(T) ≤ W′ − (P̄ − CP)·T for any plan of mean P̄,
-        # and no plan is faster than this one (T ≥ its time)
-        best_case = float(request.w_prime) - (float(request.mean_power)
-                                              - float(request.critical_power)) * time.sum()
-        if best_case < reserve:
-            raise InputError(f"no plan at mean power {request.mean_power:g} W keeps the W′ "
-                             f"reserve: {request.mean_power:g} W is above CP "
-                             f"{request.critical_power:g} W for too long")
-    reserve_used = reserve if breaks_w_prime else None
-    cap_used = cap if breaks_cap else None
-
-    def meets(power: np.ndarray, slack: float = 0.0) -> bool:
-        time, _, _ = steady_segment_times(model, power)
-        counter[0] += 1
-        return ((reserve_used is None or _segment_w_prime(power, time, request).min()
-                 >= reserve_used - slack * float(request.w_prime))
-                and (cap_used is None or _raw_effort(power, time) <= cap_used * (1 + slack)))
-
-    def meets_all(power: np.ndarray, slack: float = 0.0) -> bool:
-        time, _, _ = steady_segment_times(model, power)
-        counter[0] += 1
-        return ((reserve is None or _segment_w_prime(power, time, request).min()
-                 >= reserve - slack * float(request.w_prime))
-                and (cap is None or _raw_effort(power, time) <= cap * (1 + slack)))
-
+    if breaks_w_prime and reserve is not None:
+        _check_reserve_reachable(request, time, reserve)
+    held = _Limits(reserve if breaks_w_prime else None, cap if breaks_cap else None)
     if start is not None and model.count <= _SLSQP_MAX_SEGMENTS:
-        warm = _warm_plan(model, request, lower, upper, start, reserve, cap, reserve_used,
-                          cap_used, meets, counter)
+        warm = _warm_plan(problem, start, held, multiplier, iterations)
         if warm is not None:
-            power, result = warm
-            time, _, _ = steady_segment_times(model, power)
-            active = []
-            if breaks_w_prime and _segment_w_prime(power, time, request).min() <= reserve + (
-                    2 * _PRICE_TOLERANCE * float(request.w_prime)):
-                active.append("w-prime-reserve")
-            if breaks_cap and _raw_effort(power, time) >= cap * (1 - 2 * _PRICE_TOLERANCE):
-                active.append("effort-cap")
-            method = start[1].method if start[1].method.endswith("+slsqp") else (
-                start[1].method + "+slsqp")
-            return power, SolverReport(method, multiplier, iterations + int(result.nit),
-                                       counter[0], float("nan"), str(result.message),
-                                       active=tuple(active))
-    mean = float(request.mean_power)
-    constant = np.full(model.count, mean)
-    if not meets(constant):
-        what = "W′ reserve" if breaks_w_prime else "effort cap"
-        raise InputError(f"no plan at mean power {mean:g} W keeps the {what}: even constant "
-                         "power breaks it")
-    # 1. the same problem with one power per climb, flat or descent (per run of segments on a
-    #    split too fine for SLSQP): its plan is a plan of this split (same pieces, same
-    #    powers), so this split starts from it and can only improve on it
-    grouped = None
-    if coarse_start:
-        found = _grouped_plan(model, request, lower, upper, reserve, cap)
-        if found is not None:
-            counter[0] += found[1].evaluations
-            iterations += found[1].iterations
-            if meets_all(found[0], 1e-6):
-                grouped = found
-    # with a plan of the coarser problem in hand, steps 2-3 (starts for the polish that lose
-    # to it in practice: 3891 s against 3843 s on the test's hill loop) are skipped
-    search = grouped is None
-    # 2. price the broken limit in every segment's Lagrangian (W′ spent above CP, or the
-    #    effort measure) and find the lowest price that keeps it (Illinois false position)
-    priced = None
-    if search and breaks_w_prime != breaks_cap:
-        priced, steps = _priced_plan(model, request, lower, upper, multiplier, reserve_used,
-                                     cap_used, counter)
-        iterations += steps
-    # 3. otherwise a feasible plan: the fastest plan under a common power ceiling U, with U the
-    #    highest ceiling that keeps the limits (bisection; U = mean power: constant power)
-    low_ceiling, high_ceiling = mean, float(upper.max())
-    capped, ceiling_steps = constant, 0
-    if priced is not None or not search:
-        capped, high_ceiling = (priced if priced is not None else grouped[0]), low_ceiling
-    while high_ceiling - low_ceiling > 1e-3 * mean:
-        ceiling_steps += 1
-        ceiling = 0.5 * (low_ceiling + high_ceiling)
-        try:
-            trial, _, used = _lagrange_plan(model, request, np.minimum(lower, ceiling),
-                                            np.minimum(upper, ceiling), counter)
-            iterations += used
-        except InputError:
-            trial = None
-        if trial is not None and meets(trial):
-            low_ceiling, capped = ceiling, trial
-        else:
-            high_ceiling = ceiling
-    if priced is not None:
-        power, method, message, nit = capped, "lagrange+price", (
-            "lowest price of the limit that keeps it"), 0
-    else:
-        power, method, message, nit = capped, "lagrange+ceiling", (
-            f"highest common power ceiling {low_ceiling:.1f} W that keeps the limits"), 0
-    if grouped is not None and (not search or steady_segment_times(model, grouped[0])[0].sum()
-                                < steady_segment_times(model, capped)[0].sum()):
-        capped = power = grouped[0]
-        method, message = "grouped+" + grouped[1].method, grouped[1].message
-    # 4. polish with SLSQP on the full problem from that feasible start; keep its answer only
-    #    if it is feasible, meets the coupling constraint and is faster
-    if model.count <= _SLSQP_MAX_SEGMENTS:
-        # SLSQP ends within its own tolerance of the limits, possibly just outside: it is given
-        # limits a hair inside the real ones (a few joules, a hundredth of a watt), and its
-        # answer is moved back onto the coupling constraint by scaling the free powers
-        polished, result = _slsqp_plan(
-            model, request, lower, upper, capped,
-            None if reserve_used is None else reserve_used + _SLSQP_MARGIN * float(
-                request.w_prime),
-            None if cap_used is None else cap_used * (1 - _SLSQP_MARGIN), counter)
-        polished = _on_coupling(model, request, polished, lower, upper, counter)
-        nit = int(result.nit)
-        centre, target = _coupling(request, model)
-        time, _, _ = steady_segment_times(model, polished)
-        coupling_gap = abs(float(np.sum((polished - centre) * time)) - target)
-        if (meets(polished, 1e-6) and coupling_gap <= 1e-7 * mean * float(time.sum())
-                and time.sum() < steady_segment_times(model, capped)[0].sum()):
-            power, method, message = polished, method + "+slsqp", str(result.message)
-    time, _, _ = steady_segment_times(model, power)
-    active = []
-    if breaks_w_prime and _segment_w_prime(power, time, request).min() <= reserve + (
-            2 * _PRICE_TOLERANCE * float(request.w_prime)):
-        active.append("w-prime-reserve")
-    if breaks_cap and _raw_effort(power, time) >= cap * (1 - 2 * _PRICE_TOLERANCE):
-        active.append("effort-cap")
-    return power, SolverReport(method, multiplier, iterations + ceiling_steps + nit,
-                               counter[0], float("nan"), message, active=tuple(active))
+            return warm
+    return _limited_plan(problem, multiplier, iterations, _Limits(reserve, cap), held,
+                         coarse_start)

@@ -2,17 +2,19 @@
 look-ahead speed limits, the steady-state prediction and per-segment summaries.
 
 The inertial integrator that fills a Prediction is pacing.plan.simulate. Speed caps (cornering
-√(a_lat·R), an optional maximum descent speed) are applied at the points with look-ahead: a backward
-pass on v² with the braking deceleration lowers each point's limit so the rider can slow down in
-time.
+√(a_lat·R), an optional maximum descent speed) are applied at the points with look-ahead: a
+backward pass on v² with the braking deceleration lowers each point's limit so the rider can
+slow down in time.
 
 References
 ----------
 Martin, J.C., Milliken, D.L., Cobb, J.E., McFadden, K.L. & Coggan, A.R. (1998). Validation of a
 mathematical model for road cycling power. J Appl Biomech 14(3):276-291.
 doi:10.1123/jab.14.3.276
-Federal Highway Administration report FHWA-HRT-04-103 (riders' accepted lateral acceleration
-in curves; values via REFERENCES.md "Cornering").
+Federal Highway Administration, report FHWA-HRT-04-103 (riders' accepted lateral acceleration
+in curves; values in docs/references.md, "Cornering").
+VTI (Swedish National Road and Transport Research Institute), rapport 952 (peak tyre-asphalt
+friction ≈ 1.0; docs/references.md, "Cornering").
 """
 
 from __future__ import annotations
@@ -21,7 +23,9 @@ import math
 from dataclasses import dataclass
 
 import numpy as np
+from numpy.typing import ArrayLike
 
+from pacing.course.geometry import Course
 from pacing.errors import InputError
 from pacing.physics.cycling import (
     WALKING_SPEED,
@@ -34,12 +38,14 @@ from pacing.physics.cycling import (
     rolling_force,
     speed_for_power,
 )
+from pacing.weather.conditions import CourseAir
 
 REAR_WHEEL_LOAD_SHARE = 0.6
 """Share of the weight on the rear wheel of a seated rider [-] (common practice)."""
 
 TYRE_ROAD_FRICTION = 1.0
-"""Peak tyre-asphalt friction coefficient [-] (VTI rapport 952, via REFERENCES.md)."""
+"""Peak tyre-asphalt friction coefficient [-] (VTI rapport 952; docs/references.md,
+"Cornering")."""
 
 
 @dataclass(frozen=True)
@@ -48,26 +54,45 @@ class SimulationOptions:
 
     Attributes
     ----------
-    start_speed : speed at the start line [m/s]; 0 is a standing start. Lowered to the first
-        point's speed limit if above it.
-    lateral_acceleration : the most sideways acceleration the rider accepts in a curve [m/s²];
-        the corner speed limit is √(a_lat·R). Default 2.5 m/s² (≈ 0.25 g): riders observed by
-        FHWA-HRT-04-103 accepted 0.26 g at R = 15.3 m and 0.18-0.20 g at R = 25-27.5 m (0.61 g
-        only in a 3 m turn), far below tyre grip (≈ 1.0 g).
-    braking_deceleration : deceleration used to slow down ahead of a limit [m/s²]. Default
-        3.0 m/s² (≈ 0.3 g), about half the pitch-over limit of a conventional bicycle on dry
-        level road (0.5-0.6 g, from memory).
-    max_descent_speed : speed the rider never exceeds [m/s] (applied everywhere; it only binds
-        on descents or in strong tailwinds); None for no such limit.
-    coasting_speed : above this speed the rider stops pedalling [m/s]; None to always pedal.
-    minimum_speed : walking speed [m/s]: pieces ridden slower than this are flagged as
-        walking pace; where the bike would stall, or drop below it on a piece whose power
-        cannot hold it (also from a standing start), the rider walks the bike at this speed
-        (that work counts as rider work, and the piece is flagged).
-    max_drive_force : cap of the driving force at the rear wheel [N]; None for rear-wheel
-        traction, REAR_WHEEL_LOAD_SHARE·TYRE_ROAD_FRICTION·m·g (470 N for 80 kg). It acts only
-        at low speed, below η·P/F_max (0.5 m/s at 250 W), where η·P/v would grow without
-        bound; it makes a standing start finite.
+    start_speed : float
+        Speed at the start line; 0 is a standing start. Lowered to the first point's speed
+        limit if above it [m/s].
+    lateral_acceleration : float
+        The most sideways acceleration the rider accepts in a curve; the corner speed limit
+        is √(a_lat·R). Default 2.5 m/s² (≈ 0.25 g): riders observed by FHWA-HRT-04-103
+        accepted 0.26 g at R = 15.3 m and 0.18-0.20 g at R = 25-27.5 m (0.61 g only in a 3 m
+        turn), far below tyre grip (μ ≈ 1.0, VTI rapport 952) [m/s²].
+    braking_deceleration : float
+        Deceleration used to slow down ahead of a limit. Default 3.0 m/s² (≈ 0.3 g), about
+        half the pitch-over limit of a conventional bicycle on dry level road (0.5-0.6 g,
+        from memory; docs/references.md, "Braking and coasting") [m/s²].
+    max_descent_speed : float or None
+        Speed the rider never exceeds (applied everywhere; it only binds on descents or in
+        strong tailwinds); None for no such limit [m/s].
+    coasting_speed : float or None
+        Above this speed the rider stops pedalling; None to always pedal [m/s].
+    minimum_speed : float
+        Walking speed: pieces ridden slower than this are flagged as walking pace; where the
+        bike would stall, or drop below it on a piece whose power cannot hold it (also from a
+        standing start), the rider walks the bike at this speed (that work counts as rider
+        work, and the piece is flagged) [m/s].
+    max_drive_force : float or None
+        Cap of the driving force at the rear wheel; None for rear-wheel traction,
+        REAR_WHEEL_LOAD_SHARE·TYRE_ROAD_FRICTION·m·g (470 N for 80 kg). It acts only at low
+        speed, below η·P/F_max (0.5 m/s at 250 W), where η·P/v would grow without bound; it
+        makes a standing start finite [N].
+
+    Raises
+    ------
+    InputError
+        When a number is not finite and positive (start speed: ≥ 0).
+
+    References
+    ----------
+    Federal Highway Administration, report FHWA-HRT-04-103 (accepted lateral acceleration in
+    curves; docs/references.md, "Cornering").
+    VTI (Swedish National Road and Transport Research Institute), rapport 952 (peak
+    tyre-asphalt friction; docs/references.md, "Cornering").
     """
 
     start_speed: float = 0.0
@@ -114,13 +139,42 @@ _OPTION_FIELDS = {
 class Prediction:
     """Speed, time, power and energy along a course.
 
-    Point arrays (length N): distance [m] (horizontal, as in the Course), time [s] (cumulative
-    from the start), speed [m/s] (along the road).
-    Piece arrays (length N-1): power [W] (crank power actually applied, after easing off,
-    coasting and braking), air_speed [m/s] (apparent wind at the piece's mean speed), yaw [deg],
-    headwind [m/s]; energy per piece [J]: aero, rolling, bearing, drivetrain_loss, potential
-    (m·g·Δh), kinetic (½·m_eff·Δ(v²)), braking; walking (bool): the rider walked the bike on
-    part of the piece, or its mean speed is below the walking speed.
+    Point arrays have length N, piece arrays length N-1.
+
+    Attributes
+    ----------
+    distance : numpy.ndarray
+        Course distance of each point, horizontal as in the Course [m].
+    time : numpy.ndarray
+        Time at each point, cumulative from the start [s].
+    speed : numpy.ndarray
+        Speed at each point, along the road [m/s].
+    power : numpy.ndarray
+        Crank power actually applied on each piece, after easing off, coasting and
+        braking [W].
+    air_speed : numpy.ndarray
+        Apparent wind speed on each piece at its mean speed [m/s].
+    yaw : numpy.ndarray
+        Yaw angle of the apparent wind on each piece [deg].
+    headwind : numpy.ndarray
+        Headwind component on each piece (negative: tailwind) [m/s].
+    aero : numpy.ndarray
+        Work against air resistance on each piece [J].
+    rolling : numpy.ndarray
+        Work against rolling resistance on each piece [J].
+    bearing : numpy.ndarray
+        Work against wheel-bearing friction on each piece [J].
+    drivetrain_loss : numpy.ndarray
+        Work lost in the drivetrain on each piece [J].
+    potential : numpy.ndarray
+        Change of potential energy m·g·Δh on each piece [J].
+    kinetic : numpy.ndarray
+        Change of kinetic energy ½·m_eff·Δ(v²) on each piece [J].
+    braking : numpy.ndarray
+        Work taken by the brakes on each piece [J].
+    walking : numpy.ndarray
+        The rider walked the bike on part of the piece, or its mean speed is below the
+        walking speed (bool) [-].
     """
 
     distance: np.ndarray
@@ -185,9 +239,26 @@ class Prediction:
 class SegmentResult:
     """Summary of one segment of a Prediction.
 
-    index [-]; start, end : course distance [m]; length [m] (horizontal); grade : mean grade,
-    rise/run [-]; power : time-weighted mean crank power [W]; speed : length/time [m/s];
-    time [s]; max_speed [m/s].
+    Attributes
+    ----------
+    index : int
+        Segment number, from 0 [-].
+    start : float
+        Course distance of its first point [m].
+    end : float
+        Course distance of its last point [m].
+    length : float
+        Horizontal length [m].
+    grade : float
+        Mean grade, rise/run [-].
+    power : float
+        Time-weighted mean crank power [W].
+    speed : float
+        Length over time [m/s].
+    time : float
+        Time on the segment [s].
+    max_speed : float
+        Highest speed at its points [m/s].
     """
 
     index: int
@@ -201,8 +272,36 @@ class SegmentResult:
     max_speed: float
 
 
-def _piece_inputs(course, power, air) -> tuple[np.ndarray, ...]:
-    """Validate and broadcast power and air to piece arrays."""
+def piece_inputs(course: Course, power: ArrayLike, air: CourseAir
+                 ) -> tuple[np.ndarray, np.ndarray, np.ndarray, np.ndarray]:
+    """Validate power and air and broadcast them to piece arrays (length N-1).
+
+    Parameters
+    ----------
+    course : pacing.course.geometry.Course
+        The course, N points [-].
+    power : array_like
+        Crank power, one number or one per piece [W].
+    air : pacing.weather.conditions.CourseAir
+        Air density [kg/m³], headwind [m/s] and crosswind [m/s], each one number or one per
+        piece [-].
+
+    Returns
+    -------
+    power : numpy.ndarray
+        Crank power of each piece [W].
+    density : numpy.ndarray
+        Air density on each piece [kg/m³].
+    headwind : numpy.ndarray
+        Headwind on each piece [m/s].
+    crosswind : numpy.ndarray
+        Crosswind on each piece [m/s].
+
+    Raises
+    ------
+    InputError
+        When a value is missing, not finite, a power negative or a density not positive.
+    """
     pieces = len(course.distance) - 1
     power = np.asarray(power, dtype=float)
     if power.ndim == 0:
@@ -226,9 +325,28 @@ def _piece_inputs(course, power, air) -> tuple[np.ndarray, ...]:
     return power, arrays[0], arrays[1], arrays[2]
 
 
-def _per_piece_rider(rider: Rider, pieces: int) -> tuple[np.ndarray, np.ndarray]:
-    """The rider's drag area [m²] and rolling coefficient [-] as piece arrays (length N-1);
-    InputError when a per-piece array has the wrong length."""
+def per_piece_rider(rider: Rider, pieces: int) -> tuple[np.ndarray, np.ndarray]:
+    """The rider's drag area and rolling coefficient as piece arrays.
+
+    Parameters
+    ----------
+    rider : pacing.physics.cycling.Rider
+        The rider; drag_area [m²] and rolling_coefficient [-] one value or one per piece [-].
+    pieces : int
+        Number of pieces N-1 [-].
+
+    Returns
+    -------
+    drag_area : numpy.ndarray
+        Drag area on each piece [m²].
+    rolling_coefficient : numpy.ndarray
+        Rolling coefficient on each piece [-].
+
+    Raises
+    ------
+    InputError
+        When a per-piece array has the wrong length.
+    """
     arrays = []
     for name, label in (("drag_area", "drag area (CdA)"), ("rolling_coefficient", "Crr")):
         value = np.asarray(getattr(rider, name), dtype=float)
@@ -239,11 +357,13 @@ def _per_piece_rider(rider: Rider, pieces: int) -> tuple[np.ndarray, np.ndarray]
     return arrays[0], arrays[1]
 
 
-def speed_limits(course, road_length: np.ndarray, options: SimulationOptions) -> np.ndarray:
-    """Highest speed at each point, with look-ahead braking [m/s], length N.
+def speed_limits(course: Course, road_length: np.ndarray, options: SimulationOptions
+                 ) -> np.ndarray:
+    """Highest speed at each point, with look-ahead braking.
 
-    The cap at a point is min(√(a_lat·R), max_descent_speed). Reaching point j at no more than
-    its cap from point i needs v_i² ≤ cap_j² + 2·a_brake·(x_j − x_i), so
+    The cap at a point is min(√(a_lat·R), max_descent_speed), R the corner radius: with
+    a_lat = μ·g it is the friction limit of a flat turn √(μ·g·R). Reaching point j at no more
+    than its cap from point i needs v_i² ≤ cap_j² + 2·a_brake·(x_j − x_i), so
 
         limit_i² = min over j ≥ i of (cap_j² + 2·a_brake·x_j) − 2·a_brake·x_i,
 
@@ -251,7 +371,23 @@ def speed_limits(course, road_length: np.ndarray, options: SimulationOptions) ->
 
     Parameters
     ----------
-    course : Course (corner_radius per point [m]); road_length : per piece [m].
+    course : pacing.course.geometry.Course
+        The course; its corner_radius at each point [m] is used [-].
+    road_length : numpy.ndarray
+        Road length of each piece, length N-1 [m].
+    options : SimulationOptions
+        lateral_acceleration [m/s²], braking_deceleration [m/s²] and max_descent_speed
+        [m/s] [-].
+
+    Returns
+    -------
+    numpy.ndarray
+        Speed limit at each point, length N [m/s].
+
+    References
+    ----------
+    Federal Highway Administration, report FHWA-HRT-04-103 (accepted lateral acceleration in
+    curves; docs/references.md, "Cornering").
     """
     cap = np.sqrt(options.lateral_acceleration * np.asarray(course.corner_radius, dtype=float))
     if options.max_descent_speed is not None:
@@ -262,23 +398,46 @@ def speed_limits(course, road_length: np.ndarray, options: SimulationOptions) ->
     return np.sqrt(np.maximum(running - 2.0 * options.braking_deceleration * position, 0.0))
 
 
-
-def steady_prediction(course, power, rider: Rider, air,
+def steady_prediction(course: Course, power: ArrayLike, rider: Rider, air: CourseAir,
                       minimum_speed: float = WALKING_SPEED) -> Prediction:
-    """Each piece ridden at its steady speed for the power (no inertia, no caps) [fast].
+    """Each piece ridden at its steady speed for the power (no inertia, no caps): fast.
 
-    Speeds come from pacing.physics.cycling.speed_for_power on every piece at once; time per piece
-    is road length / speed. Where a climb is too steep for the power the speed is floored at 0.05
-    m/s (speed_for_power) and the work to hold it counts as rider work. Point speeds are the mean of
-    the adjacent pieces'. Kinetic and braking energy are zero.
+    Speeds come from pacing.physics.cycling.speed_for_power on every piece at once; time per
+    piece is road length / speed. Where a climb is too steep for the power the speed is
+    floored at 0.05 m/s (speed_for_power) and the work to hold it counts as rider work. Point
+    speeds are the mean of the adjacent pieces'. Kinetic and braking energy are zero.
 
     Parameters
     ----------
-    As simulate (per-piece drag area and Crr included); minimum_speed : walking-pace flag
-    threshold [m/s].
+    course : pacing.course.geometry.Course
+        The course, N points [-].
+    power : array_like
+        Crank power per piece, length N-1, or one number [W].
+    rider : pacing.physics.cycling.Rider
+        The rider and bike (per-piece drag area and Crr allowed) [-].
+    air : pacing.weather.conditions.CourseAir
+        Air density [kg/m³], headwind [m/s] and crosswind [m/s] on every piece [-].
+    minimum_speed : float
+        Pieces slower than this are flagged as walking [m/s].
+
+    Returns
+    -------
+    Prediction
+        The steady ride [-].
+
+    Raises
+    ------
+    InputError
+        As `piece_inputs` and `per_piece_rider`.
+
+    References
+    ----------
+    Martin, J.C., Milliken, D.L., Cobb, J.E., McFadden, K.L. & Coggan, A.R. (1998).
+    Validation of a mathematical model for road cycling power. J Appl Biomech 14(3):276-291.
+    doi:10.1123/jab.14.3.276
     """
-    power, density, headwind, crosswind = _piece_inputs(course, power, air)
-    _per_piece_rider(rider, power.size)
+    power, density, headwind, crosswind = piece_inputs(course, power, air)
+    per_piece_rider(rider, power.size)
     grade = np.asarray(course.grade, dtype=float)
     road = np.diff(np.asarray(course.distance, dtype=float)) * np.sqrt(1.0 + grade**2)
     piece_speed = speed_for_power(power, grade, density, rider, headwind, crosswind)
@@ -289,7 +448,7 @@ def steady_prediction(course, power, rider: Rider, air,
     point_speed = np.empty(len(road) + 1)
     point_speed[0], point_speed[-1] = piece_speed[0], piece_speed[-1]
     point_speed[1:-1] = 0.5 * (piece_speed[:-1] + piece_speed[1:])
-    along, apparent, yaw = air_speed_components(piece_speed, headwind, crosswind)
+    _, apparent, yaw = air_speed_components(piece_speed, headwind, crosswind)
     eta = rider.drivetrain_efficiency
     return Prediction(
         distance=np.asarray(course.distance, dtype=float).copy(),
@@ -310,14 +469,28 @@ def steady_prediction(course, power, rider: Rider, air,
     )
 
 
-def segment_results(course, prediction: Prediction, bounds) -> list[SegmentResult]:
+def segment_results(course: Course, prediction: Prediction, bounds: ArrayLike
+                    ) -> list[SegmentResult]:
     """Per-segment summaries of a Prediction.
 
     Parameters
     ----------
-    course : the Course the prediction was made on.
-    prediction : Prediction.
-    bounds : boundary point indices, increasing, first 0, last N-1.
+    course : pacing.course.geometry.Course
+        The course the prediction was made on [-].
+    prediction : Prediction
+        The ride [-].
+    bounds : array_like of int
+        Segment boundary point indices, increasing, first 0, last N-1 [-].
+
+    Returns
+    -------
+    list of SegmentResult
+        One summary per segment, in course order [-].
+
+    Raises
+    ------
+    InputError
+        When the bounds are not increasing indices from 0 to N-1.
     """
     bounds = np.asarray(bounds, dtype=int)
     n = len(prediction.distance)

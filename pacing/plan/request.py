@@ -30,6 +30,14 @@ DESCENT_GRADE = -0.02
 MAXIMUM_PLAN_POWER = 3000.0
 """No plan asks for more crank power than this [W]."""
 
+_POSITIVE_FIELDS = ("mean_power", "target_time", "critical_power", "w_prime", "max_power_ratio",
+                    "effort_weighted_cap")
+
+
+def _positive(value: float | None) -> bool:
+    """Whether an optional number is unset or finite and above zero."""
+    return value is None or (math.isfinite(value) and value > 0)
+
 
 @dataclass(frozen=True)
 class PlanRequest:
@@ -37,22 +45,40 @@ class PlanRequest:
 
     Attributes
     ----------
-    strategy : "constant", "fastest" or "target-time".
-    mean_power : constant power, or the mean power the fastest plan must match [W].
-    target_time : finish time to reach ("target-time") [s].
-    constraint : "mean-power" (time-weighted mean equal to `mean_power`) or "work" (same
-        total work as the constant plan at `mean_power`).
-    critical_power : CP [W]; None if unknown.
-    w_prime : W′ [J]; None if unknown (both CP and W′ are needed for the W′ reserve).
-    w_prime_reserve : W′ balance never to go below [J].
-    max_power_ratio : segment power at most this multiple of CP (of the mean power without
-        CP) [-]; None means DEFAULT_MAX_POWER_RATIO times the mean power.
-    min_power_ratio : segment power at least this multiple of CP (of the mean power without
-        CP) [-].
-    allow_zero_on_descents : descents (mean grade ≤ DESCENT_GRADE) may go down to 0 W.
-    effort_weighted_cap : upper limit of the effort-weighted power [W]; None for none.
-    w_prime_model : key of pacing.physiology.critical_power.W_PRIME_BALANCE_MODELS.
-    band : half-width of the target band around each segment power, as a fraction [-].
+    strategy : str
+        "constant", "fastest" or "target-time" (one of STRATEGIES) [-].
+    mean_power : float or None
+        Constant power, or the mean power the fastest plan must match [W].
+    target_time : float or None
+        Finish time to reach (strategy "target-time") [s].
+    constraint : str
+        "mean-power" (time-weighted mean equal to `mean_power`) or "work" (same total work as
+        the constant plan at `mean_power`) [-].
+    critical_power : float or None
+        Critical power CP; None if unknown [W].
+    w_prime : float or None
+        W′, the work capacity above CP; None if unknown (CP and W′ are both needed for the W′
+        reserve) [J].
+    w_prime_reserve : float
+        W′ balance never to go below [J].
+    max_power_ratio : float or None
+        Segment power at most this multiple of CP (of the mean power without CP); None means
+        DEFAULT_MAX_POWER_RATIO times the mean power [-].
+    min_power_ratio : float
+        Segment power at least this multiple of CP (of the mean power without CP) [-].
+    allow_zero_on_descents : bool
+        Descents (mean grade ≤ DESCENT_GRADE) may go down to 0 W [-].
+    effort_weighted_cap : float or None
+        Upper limit of the effort-weighted power; None for none [W].
+    w_prime_model : str
+        Key of pacing.physiology.critical_power.W_PRIME_BALANCE_MODELS [-].
+    band : float
+        Half-width of the target band around each segment power, as a fraction [-].
+
+    Raises
+    ------
+    InputError
+        When a name is unknown or a number out of range (one line, the field named).
     """
 
     strategy: str = "constant"
@@ -70,9 +96,11 @@ class PlanRequest:
     band: float = 0.03
 
     def __post_init__(self) -> None:
-        def positive(value: float | None) -> bool:
-            return value is None or (math.isfinite(value) and value > 0)
+        self._check_names()
+        self._check_numbers()
 
+    def _check_names(self) -> None:
+        """InputError unless strategy, constraint and W′ model are known names."""
         if self.strategy not in STRATEGIES:
             raise InputError(f"unknown strategy {self.strategy!r}; choose one of "
                              f"{', '.join(STRATEGIES)}")
@@ -81,9 +109,11 @@ class PlanRequest:
                              f"{', '.join(CONSTRAINTS)}")
         if self.w_prime_model not in W_PRIME_BALANCE_MODELS:
             raise InputError(f"unknown W′ balance model {self.w_prime_model!r}")
-        for name in ("mean_power", "target_time", "critical_power", "w_prime",
-                     "max_power_ratio", "effort_weighted_cap"):
-            if not positive(getattr(self, name)):
+
+    def _check_numbers(self) -> None:
+        """InputError unless every number lies in its range."""
+        for name in _POSITIVE_FIELDS:
+            if not _positive(getattr(self, name)):
                 raise InputError(f"{name.replace('_', ' ')} must be positive, "
                                  f"got {getattr(self, name)}")
         if self.mean_power is not None and self.mean_power > MAXIMUM_PLAN_POWER:
@@ -108,14 +138,114 @@ class PlanRequest:
         return self.critical_power is not None and self.w_prime is not None
 
 
-def power_limits(model: SegmentModel, request: PlanRequest) -> tuple[np.ndarray, np.ndarray]:
-    """Lower and upper power bound of each segment [W].
+def required_mean_power(request: PlanRequest) -> float:
+    """The request's mean power, which constant and fastest plans need.
 
-    The reference is CP when known, else the mean power. The lower bound is at least the power
-    that keeps the rider moving at walking pace on the segment's steepest piece (below it the
-    steady model stalls), except on descents when zero is allowed.
+    Parameters
+    ----------
+    request : PlanRequest
+        The request [-].
+
+    Returns
+    -------
+    float
+        `request.mean_power` [W].
+
+    Raises
+    ------
+    InputError
+        When the request has no mean power.
     """
-    mean = float(request.mean_power)
+    if request.mean_power is None:
+        raise InputError(f"the {request.strategy} plan needs a mean power (--power)")
+    return float(request.mean_power)
+
+
+def required_target_time(request: PlanRequest) -> float:
+    """The request's target finish time, which the target-time plan needs.
+
+    Parameters
+    ----------
+    request : PlanRequest
+        The request [-].
+
+    Returns
+    -------
+    float
+        `request.target_time` [s].
+
+    Raises
+    ------
+    InputError
+        When the request has no target time.
+    """
+    if request.target_time is None:
+        raise InputError("the target-time plan needs a target time (--target-time)")
+    return float(request.target_time)
+
+
+def w_prime_parameters(request: PlanRequest) -> tuple[float, float]:
+    """The request's critical power and W′, which the W′ balance needs.
+
+    Parameters
+    ----------
+    request : PlanRequest
+        The request [-].
+
+    Returns
+    -------
+    critical_power : float
+        CP [W].
+    w_prime : float
+        W′ [J].
+
+    Raises
+    ------
+    InputError
+        When CP or W′ is unknown (`request.uses_w_prime` is false).
+    """
+    if request.critical_power is None or request.w_prime is None:
+        raise InputError("the W′ balance needs both critical power and W′")
+    return float(request.critical_power), float(request.w_prime)
+
+
+def power_limits(model: SegmentModel, request: PlanRequest) -> tuple[np.ndarray, np.ndarray]:
+    """Lower and upper power bound of each segment.
+
+    The reference is CP when known, else the mean power P̄. The upper bound is
+    min(max_power_ratio·reference, MAXIMUM_PLAN_POWER), or DEFAULT_MAX_POWER_RATIO·P̄ when the
+    request sets no ratio. The lower bound is min_power_ratio·reference (0 on descents when the
+    request allows it), raised to the power that keeps the rider moving at the walking speed
+    (pacing.physics.cycling.WALKING_SPEED) on the segment's steepest piece: below it the steady
+    model stalls.
+
+    Parameters
+    ----------
+    model : SegmentModel
+        The course's pieces grouped into segments, with the rider and the air [-].
+    request : PlanRequest
+        Mean power, CP and the power ratios [-].
+
+    Returns
+    -------
+    lower : numpy.ndarray
+        Lowest power of each segment, length K [W].
+    upper : numpy.ndarray
+        Highest power of each segment, length K [W].
+
+    Raises
+    ------
+    InputError
+        When a segment needs more than the cap just to keep riding, when the mean power lies
+        outside the bounds, or when the request has no mean power.
+
+    References
+    ----------
+    Martin, J.C., Milliken, D.L., Cobb, J.E., McFadden, K.L. & Coggan, A.R. (1998). Validation
+    of a mathematical model for road cycling power. J Appl Biomech 14(3):276-291.
+    doi:10.1123/jab.14.3.276 (the power to hold the walking speed).
+    """
+    mean = required_mean_power(request)
     reference = request.critical_power if request.critical_power is not None else mean
     upper = (request.max_power_ratio * reference if request.max_power_ratio is not None
              else DEFAULT_MAX_POWER_RATIO * mean)

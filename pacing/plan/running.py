@@ -62,13 +62,13 @@ from pacing.errors import InputError
 from pacing.notices import Notice, note, warning
 from pacing.physics.running import (
     RUNNING_COST_MODELS,
+    RUNNING_SPEED_RANGE,
     Runner,
     flat_effort,
     speed_for_metabolic_power,
 )
 from pacing.physiology.critical_speed import check_critical_speed, distance_capacity_balance
 from pacing.plan.even_pace import (
-    RUNNING_SPEED_RANGE,
     EvenPaceReference,
     check_limits,
     even_pace_reference,

@@ -14,13 +14,13 @@ implicitly (a trapezoidal rule on the forces, second order)::
 
 Δt is exact for a uniform acceleration and finite from rest, so a standing start has no
 singularity: F_max caps the drive force at low speed (traction of the rear wheel: about 60 % of
-the weight on it times a tyre-road friction of 1.0, VTI rapport 952 via REFERENCES.md; the 60 %
-rear share is common practice). Steps are halved until the speed changes by at most ~2 % (and
-0.02 m/s) per step, so the start and sharp changes of grade are resolved; a steady piece takes one
-step. Because the energy terms are evaluated with the same rule that moves the rider, the energy
-balance closes to the solver's tolerance on every piece. Against scipy's solve_ivp (DOP853,
-rtol 1e-10) on the same model the finish time agrees to about 1e-5 on a hilly course of 10 m
-pieces, and the closed-form coasting solution to 2e-5 (tests/test_plan_simulate.py).
+the weight on it times a tyre-road friction of 1.0, VTI rapport 952, see docs/references.md,
+"Cornering"; the 60 % rear share is common practice). Steps are halved until the speed changes
+by at most ~2 % (and 0.02 m/s) per step, so the start and sharp changes of grade are resolved; a
+steady piece takes one step. Because the energy terms are evaluated with the same rule that moves
+the rider, the energy balance closes to the solver's tolerance on every piece. Against scipy's
+solve_ivp (DOP853, rtol 1e-10) on the same model the finish time agrees to about 1e-5 on a hilly
+course of 10 m pieces, and the closed-form coasting solution to 2e-5 (tests/test_plan_simulate.py).
 
 Speed caps (cornering √(a_lat·R), an optional maximum descent speed) are applied at the points
 with look-ahead: a backward pass on v² with the braking deceleration lowers each point's limit
@@ -39,8 +39,10 @@ References
 Martin, J.C., Milliken, D.L., Cobb, J.E., McFadden, K.L. & Coggan, A.R. (1998). Validation of a
 mathematical model for road cycling power. J Appl Biomech 14(3):276-291.
 doi:10.1123/jab.14.3.276
-Federal Highway Administration report FHWA-HRT-04-103 (riders' accepted lateral acceleration
-in curves; values via REFERENCES.md "Cornering").
+Federal Highway Administration, report FHWA-HRT-04-103 (riders' accepted lateral acceleration
+in curves; values in docs/references.md, "Cornering").
+VTI (Swedish National Road and Transport Research Institute), rapport 952 (peak tyre-asphalt
+friction ≈ 1.0; docs/references.md, "Cornering").
 
 The options and result types, the speed limits, the steady prediction and the per-segment
 summaries live in pacing.plan.prediction.
@@ -49,10 +51,13 @@ summaries live in pacing.plan.prediction.
 from __future__ import annotations
 
 import math
+from dataclasses import dataclass
 
 import numpy as np
+from numpy.typing import ArrayLike
 
 from pacing.constants import STANDARD_GRAVITY
+from pacing.course.geometry import Course
 from pacing.physics.cycling import (
     Rider,
     air_speed_components,
@@ -65,14 +70,18 @@ from pacing.plan.prediction import (
     TYRE_ROAD_FRICTION,
     Prediction,
     SimulationOptions,
-    _per_piece_rider,
-    _piece_inputs,
+    per_piece_rider,
+    piece_inputs,
     speed_limits,
 )
+from pacing.weather.conditions import CourseAir
 
 _SPEED_CHANGE_RELATIVE = 0.02
 _SPEED_CHANGE_ABSOLUTE = 0.02
 _NEWTON_TOLERANCE = 1e-9
+
+_PieceRide = tuple[float, float, float, float, float, bool]
+"""(end speed [m/s], time [s], drive work [J], aero work [J], bearing work [J], walked)."""
 
 
 class _Piece:
@@ -173,12 +182,16 @@ def _step(piece: _Piece, v0: float, resist0: float, h: float, drive: float, driv
             v1 = newton
             break
         v1 = newton
-    total = v0 + v1
+    return v1, _drive_work(drive_work, cap_work, v0 + v1)
+
+
+def _drive_work(drive_work: float, cap_work: float, total: float) -> float:
+    """Drive work of a step [J]: `drive_work`/(v0 + v1), i.e. η·P·Δt with Δt = 2h/(v0 + v1)
+    (`drive_work` = η·P·2h), at most the traction cap's `cap_work` = F_max·h; from rest the
+    cap, or nothing without drive. `total` = v0 + v1 [m/s]."""
     if total > 0 and drive_work < cap_work * total:
-        work = drive_work / total
-    else:
-        work = cap_work if drive_work > 0 else 0.0
-    return v1, work
+        return drive_work / total
+    return cap_work if drive_work > 0 else 0.0
 
 
 def _holds_walking_pace(piece: _Piece, drive: float) -> bool:
@@ -189,8 +202,7 @@ def _holds_walking_pace(piece: _Piece, drive: float) -> bool:
     return min(drive / walk, piece.drive_cap) >= aero + piece.constant + piece.b * walk
 
 
-def _ride(piece: _Piece, v_start: float, drive: float
-          ) -> tuple[float, float, float, float, float, bool]:
+def _ride(piece: _Piece, v_start: float, drive: float) -> _PieceRide:
     """Ride one piece at wheel power `drive` [W] from v_start with adaptive steps.
 
     Returns (end speed [m/s], time [s], drive work [J], aero work [J], bearing work [J],
@@ -238,8 +250,7 @@ def _ride(piece: _Piece, v_start: float, drive: float
     return v_now, t_sum, work_sum, aero_sum, bearing_sum, walked
 
 
-def _held_at(piece: _Piece, v_start: float, v_end: float
-             ) -> tuple[float, float, float, float, float, bool]:
+def _held_at(piece: _Piece, v_start: float, v_end: float) -> _PieceRide:
     """One step over the piece ending exactly at v_end; the drive work it needs closes the
     energy balance (negative: the brakes must take that much). Same tuple as _ride (never
     walked)."""
@@ -253,105 +264,183 @@ def _held_at(piece: _Piece, v_start: float, v_end: float
     return v_end, 2.0 * length / (v_start + v_end), need, aero_work, bearing_work, False
 
 
-def simulate(course, power, rider: Rider, air, options: SimulationOptions | None = None
-             ) -> Prediction:
-    """Ride a power plan along a course with inertia, speed caps and braking.
+def _capped_ride(piece: _Piece, v_start: float, drive: float, coasting: float | None,
+                 limit_end: float) -> tuple[_PieceRide, float]:
+    """Ride one piece at wheel power `drive` [W] under the coasting speed and the end's speed
+    limit [m/s]; (the ride, brake work [J]).
 
-    Parameters
-    ----------
-    course : pacing.course.geometry.Course (N points).
-    power : planned crank power per piece [W], length N-1, or one number.
-    rider : pacing.physics.cycling.Rider; its drag_area [m²] and rolling_coefficient [-] may be one
-        value per piece (length N-1), e.g. a riding position chosen segment by segment.
-    air : per-piece air (e.g. pacing.weather.conditions.CourseAir): .density [kg/m³], .headwind
-    [m/s]
-        (positive against the direction of travel), .crosswind [m/s]; arrays of length N-1.
-    options : SimulationOptions.
-
-    Returns
-    -------
-    Prediction. See the module docstring for the equations and the step rule.
+    Above the coasting speed the rider stops pedalling, easing off to end the piece at it when
+    coasting alone would end slower. A ride that would end above the limit ends at it: easing
+    off first, braking (the work the brakes take) when even coasting is too fast.
     """
-    options = options or SimulationOptions()
-    power, density, headwind, crosswind = _piece_inputs(course, power, air)
-    grade = np.asarray(course.grade, dtype=float)
-    horizontal = np.diff(np.asarray(course.distance, dtype=float))
-    road = horizontal * np.sqrt(1.0 + grade**2)
-    pieces = len(road)
-    limit = np.maximum(speed_limits(course, road, options), 0.1)
+    result = _ride(piece, v_start, drive)
+    brake = 0.0
+    if coasting is not None and drive > 0 and result[0] > coasting:
+        coast = _ride(piece, v_start, 0.0)
+        result = coast
+        if coast[0] < coasting:  # ease off to end the piece at the coasting speed
+            eased = _held_at(piece, v_start, coasting)
+            result = eased if eased[2] >= 0 else coast
+    if result[0] > limit_end:
+        coast = result if result[2] == 0.0 else _ride(piece, v_start, 0.0)
+        result = _held_at(piece, v_start, limit_end)
+        if coast[0] > limit_end or result[2] < 0:
+            brake = max(-result[2], 0.0)
+            result = (result[0], result[1], 0.0, result[3], result[4], result[5])
+    return result, brake
 
-    drag_area, _ = _per_piece_rider(rider, pieces)
-    m_eff = rider.effective_mass
-    eta = rider.drivetrain_efficiency
-    rolling_per_piece = np.broadcast_to(rolling_force(grade, rider), grade.shape).astype(float)
-    gravity_per_piece = gravity_force(grade, rider)
-    drive_cap = (options.max_drive_force if options.max_drive_force is not None else
-                 REAR_WHEEL_LOAD_SHARE * TYRE_ROAD_FRICTION * rider.mass * STANDARD_GRAVITY)
-    coasting = options.coasting_speed
-    a_bearing = rider.bearing_force_constant
 
-    speed = np.empty(pieces + 1)
-    time = np.zeros(pieces + 1)
-    applied_work = np.zeros(pieces)
-    aero_energy = np.zeros(pieces)
-    bearing_energy = np.zeros(pieces)
-    braking_energy = np.zeros(pieces)
-    walked = np.zeros(pieces, dtype=bool)
-    v = min(float(options.start_speed), float(limit[0]))
+@dataclass(frozen=True, eq=False)
+class _Pieces:
+    """The course as the step solver sees it, one value per piece: road length [m], air
+    density [kg/m³], headwind and crosswind [m/s], speed-independent resistance [N], drag
+    area [m²], crank power [W]; and the speed limit at every point [m/s]."""
+
+    road: np.ndarray
+    density: np.ndarray
+    headwind: np.ndarray
+    crosswind: np.ndarray
+    constant: np.ndarray
+    drag_area: np.ndarray
+    power: np.ndarray
+    limit: np.ndarray
+
+
+@dataclass(frozen=True, eq=False)
+class _Trace:
+    """What the ride along the pieces gives: speed and time at the points [m/s], [s]; rider
+    work at the cranks, aero, bearing and braking work per piece [J]; walked pieces."""
+
+    speed: np.ndarray
+    time: np.ndarray
+    applied_work: np.ndarray
+    aero: np.ndarray
+    bearing: np.ndarray
+    braking: np.ndarray
+    walked: np.ndarray
+
+
+def _ride_pieces(piece: _Piece, pieces: _Pieces, efficiency: float,
+                 options: SimulationOptions) -> _Trace:
+    """Ride every piece in turn from the start speed (lowered to the first point's limit)."""
+    count = pieces.road.size
+    speed = np.empty(count + 1)
+    time = np.zeros(count + 1)
+    applied_work = np.zeros(count)
+    aero_energy = np.zeros(count)
+    bearing_energy = np.zeros(count)
+    braking_energy = np.zeros(count)
+    walked = np.zeros(count, dtype=bool)
+    v = min(float(options.start_speed), float(pieces.limit[0]))
     speed[0] = v
-
-    piece = _Piece(rider, m_eff, drive_cap, options.minimum_speed)
+    coasting = options.coasting_speed
     # plain Python floats for the scalar loop (indexing lists is faster than numpy scalars)
-    road_list, density_list = road.tolist(), density.tolist()
-    head_list, cross_list = headwind.tolist(), crosswind.tolist()
-    constant_list = ((rolling_per_piece + gravity_per_piece) + a_bearing).tolist()
-    area_list, power_list = drag_area.tolist(), power.tolist()
-    limit_list = limit.tolist()
-    for i in range(pieces):
+    road_list, density_list = pieces.road.tolist(), pieces.density.tolist()
+    head_list, cross_list = pieces.headwind.tolist(), pieces.crosswind.tolist()
+    constant_list = pieces.constant.tolist()
+    area_list, power_list = pieces.drag_area.tolist(), pieces.power.tolist()
+    limit_list = pieces.limit.tolist()
+    for i in range(count):
         piece.set(road_list[i], density_list[i], head_list[i], cross_list[i],
                   constant_list[i], area_list[i])
-        drive = eta * power_list[i]
-        v_start = v
-        result = _ride(piece, v_start, drive)
-        brake = 0.0
-        if coasting is not None and drive > 0 and result[0] > coasting:
-            coast = _ride(piece, v_start, 0.0)
-            result = coast
-            if coast[0] < coasting:  # ease off to end the piece at the coasting speed
-                eased = _held_at(piece, v_start, coasting)
-                result = eased if eased[2] >= 0 else coast
-        if result[0] > limit_list[i + 1]:
-            coast = result if result[2] == 0.0 else _ride(piece, v_start, 0.0)
-            result = _held_at(piece, v_start, limit_list[i + 1])
-            if coast[0] > limit_list[i + 1] or result[2] < 0:
-                brake = max(-result[2], 0.0)
-                result = (*result[:2], 0.0, *result[3:])
+        result, brake = _capped_ride(piece, v, efficiency * power_list[i], coasting,
+                                     limit_list[i + 1])
         v, t_piece, work, aero_work, bearing_work, walked_piece = result
         walked[i] = walked_piece
         speed[i + 1] = v
         time[i + 1] = time[i] + t_piece
-        applied_work[i] = work / eta
+        applied_work[i] = work / efficiency
         aero_energy[i] = aero_work
         bearing_energy[i] = bearing_work
         braking_energy[i] = brake
+    return _Trace(speed, time, applied_work, aero_energy, bearing_energy, braking_energy,
+                  walked)
 
-    piece_time = np.diff(time)
+
+def _drive_force_cap(rider: Rider, options: SimulationOptions) -> float:
+    """The options' drive force cap, or rear-wheel traction μ·share·m·g [N]."""
+    if options.max_drive_force is not None:
+        return options.max_drive_force
+    return REAR_WHEEL_LOAD_SHARE * TYRE_ROAD_FRICTION * rider.mass * STANDARD_GRAVITY
+
+
+def simulate(course: Course, power: ArrayLike, rider: Rider, air: CourseAir,
+             options: SimulationOptions | None = None) -> Prediction:
+    """Ride a power plan along a course with inertia, speed caps and braking.
+
+    Integrates m_eff·v·dv/dx = min(η·P/v, F_max) − F_resist(v) along the road, piece by piece,
+    with the trapezoidal energy step and the look-ahead speed limits of the module docstring.
+
+    Parameters
+    ----------
+    course : pacing.course.geometry.Course
+        The course, N points [-].
+    power : array_like
+        Planned crank power per piece, length N-1, or one number [W].
+    rider : pacing.physics.cycling.Rider
+        The rider and bike; its drag_area [m²] and rolling_coefficient [-] may be one value
+        per piece (length N-1), e.g. a riding position chosen segment by segment [-].
+    air : pacing.weather.conditions.CourseAir
+        Air on every piece: .density [kg/m³], .headwind (positive against the direction of
+        travel) [m/s], .crosswind [m/s]; arrays of length N-1 (any object with those arrays
+        will do) [-].
+    options : SimulationOptions or None
+        Start speed, cornering, braking, coasting and walking choices; None for the
+        defaults [-].
+
+    Returns
+    -------
+    Prediction
+        Time, speed, applied power and the energy terms along the course [-].
+
+    Raises
+    ------
+    InputError
+        When the power or the air is not one finite value (power ≥ 0, density > 0) per piece,
+        or a per-piece drag area or Crr has the wrong length.
+
+    References
+    ----------
+    Martin, J.C., Milliken, D.L., Cobb, J.E., McFadden, K.L. & Coggan, A.R. (1998).
+    Validation of a mathematical model for road cycling power. J Appl Biomech 14(3):276-291.
+    doi:10.1123/jab.14.3.276
+    Federal Highway Administration, report FHWA-HRT-04-103 (accepted lateral acceleration in
+    curves; the default of SimulationOptions.lateral_acceleration).
+    """
+    options = options or SimulationOptions()
+    power, density, headwind, crosswind = piece_inputs(course, power, air)
+    grade = np.asarray(course.grade, dtype=float)
+    horizontal = np.diff(np.asarray(course.distance, dtype=float))
+    road = horizontal * np.sqrt(1.0 + grade**2)
+    drag_area, _ = per_piece_rider(rider, len(road))
+    m_eff = rider.effective_mass
+    eta = rider.drivetrain_efficiency
+    rolling_per_piece = np.broadcast_to(rolling_force(grade, rider), grade.shape).astype(float)
+    gravity_per_piece = gravity_force(grade, rider)
+    pieces = _Pieces(
+        road=road, density=density, headwind=headwind, crosswind=crosswind,
+        constant=(rolling_per_piece + gravity_per_piece) + rider.bearing_force_constant,
+        drag_area=drag_area, power=power,
+        limit=np.maximum(speed_limits(course, road, options), 0.1))
+    piece = _Piece(rider, m_eff, _drive_force_cap(rider, options), options.minimum_speed)
+    trace = _ride_pieces(piece, pieces, eta, options)
+    piece_time = np.diff(trace.time)
     mean_speed = road / piece_time
-    along, apparent, yaw = air_speed_components(mean_speed, headwind, crosswind)
+    _, apparent, yaw = air_speed_components(mean_speed, headwind, crosswind)
     return Prediction(
         distance=np.asarray(course.distance, dtype=float).copy(),
-        time=time,
-        speed=speed,
-        power=applied_work / piece_time,
+        time=trace.time,
+        speed=trace.speed,
+        power=trace.applied_work / piece_time,
         air_speed=apparent,
         yaw=yaw,
         headwind=headwind.copy(),
-        aero=aero_energy,
+        aero=trace.aero,
         rolling=rolling_per_piece * road,
-        bearing=bearing_energy,
-        drivetrain_loss=applied_work * (1.0 - eta),
+        bearing=trace.bearing,
+        drivetrain_loss=trace.applied_work * (1.0 - eta),
         potential=gravity_per_piece * road,
-        kinetic=0.5 * m_eff * np.diff(speed**2),
-        braking=braking_energy,
-        walking=walked | (mean_speed < options.minimum_speed),
+        kinetic=0.5 * m_eff * np.diff(trace.speed**2),
+        braking=trace.braking,
+        walking=trace.walked | (mean_speed < options.minimum_speed),
     )

@@ -10,18 +10,24 @@ apparent-wind square root: one evaluation over 4,000 pieces takes about 0.1 ms.
 
 References
 ----------
-Martin, J.C. et al. (1998). J Appl Biomech 14(3):276-291. doi:10.1123/jab.14.3.276
+Martin, J.C., Milliken, D.L., Cobb, J.E., McFadden, K.L. & Coggan, A.R. (1998). Validation of a
+mathematical model for road cycling power. J Appl Biomech 14(3):276-291.
+doi:10.1123/jab.14.3.276
 """
 
 from __future__ import annotations
 
 from dataclasses import dataclass, field
+from typing import Any
 
 import numpy as np
+from numpy.typing import ArrayLike
 
+from pacing.course.geometry import Course
 from pacing.course.segments import piece_segment_index
 from pacing.errors import InputError
 from pacing.physics.cycling import Rider, gravity_force, rolling_force, speed_for_power
+from pacing.weather.conditions import CourseAir
 
 _MINIMUM_SPEED = 0.05  # speed_for_power's floor (a stalled rider) [m/s]
 
@@ -32,13 +38,29 @@ class SegmentModel:
 
     Attributes
     ----------
-    length : road length of each piece, horizontal length·√(1 + G²) (the speeds of the power
-        balance are along the road, as in pacing.plan.simulate) [m].
-    grade, density, headwind, crosswind : per piece [-], [kg/m³], [m/s], [m/s].
-    segment : segment number of each piece, length N-1.
-    count : number of segments K.
-    mean_grade : net rise over length of each segment [-], length K.
-    rider : the Rider.
+    length : numpy.ndarray
+        Road length of each piece, horizontal length·√(1 + G²) (the speeds of the power
+        balance are along the road, as in pacing.plan.simulate), length N-1 [m].
+    grade : numpy.ndarray
+        Grade of each piece, rise/run, length N-1 [-].
+    density : numpy.ndarray
+        Air density on each piece, length N-1 [kg/m³].
+    headwind : numpy.ndarray
+        Wind component against the direction of travel on each piece, length N-1 [m/s].
+    crosswind : numpy.ndarray
+        Wind component across the direction of travel on each piece, length N-1 [m/s].
+    segment : numpy.ndarray
+        Segment number of each piece, length N-1 [-].
+    count : int
+        Number of segments K [-].
+    mean_grade : numpy.ndarray
+        Net rise over horizontal length of each segment, length K [-].
+    rider : pacing.physics.cycling.Rider
+        The rider and bike [-].
+    speed_guess : dict
+        Cache of the last steady speeds found, to start the next solve from, and of the
+        per-piece constants of the balance; results do not depend on it beyond the solver's
+        tolerance [-].
     """
 
     length: np.ndarray
@@ -50,19 +72,35 @@ class SegmentModel:
     count: int
     mean_grade: np.ndarray
     rider: Rider
-    speed_guess: dict = field(default_factory=dict, repr=False)
-    """Last steady speeds found, to start the next solve from (a cache; results do not
-    depend on it beyond the solver's tolerance)."""
+    speed_guess: dict[str, Any] = field(default_factory=dict, repr=False)
 
 
-def segment_model(course, bounds, rider: Rider, air) -> SegmentModel:
-    """Build the SegmentModel of a course cut at `bounds` with the air on each piece.
+def segment_model(course: Course, bounds: ArrayLike, rider: Rider, air: CourseAir
+                  ) -> SegmentModel:
+    """Build the SegmentModel of a course cut at `bounds`, with the air on each piece.
 
     Parameters
     ----------
-    course : pacing.course.geometry.Course; bounds : boundary point indices (first 0, last N-1);
-    rider : pacing.physics.cycling.Rider; air : pacing.weather.conditions.CourseAir (arrays of
-    length N-1).
+    course : pacing.course.geometry.Course
+        The course, N points [-].
+    bounds : array_like of int
+        Segment boundary point indices, increasing, first 0, last N-1 [-].
+    rider : pacing.physics.cycling.Rider
+        The rider and bike [-].
+    air : pacing.weather.conditions.CourseAir
+        Air density [kg/m³], headwind [m/s] and crosswind [m/s] on every piece (arrays of
+        length N-1, or one value each) [-].
+
+    Returns
+    -------
+    SegmentModel
+        The pieces with their road length, grade and air, numbered by segment [-].
+
+    Raises
+    ------
+    InputError
+        When the bounds are not increasing indices from 0 to N-1, or a piece value is not
+        finite.
     """
     bounds = np.asarray(bounds)
     points = np.asarray(course.distance).size
@@ -72,7 +110,7 @@ def segment_model(course, bounds, rider: Rider, air) -> SegmentModel:
     bounds = bounds.astype(int)
     pieces = points - 1
 
-    def per_piece(values, name: str) -> np.ndarray:
+    def per_piece(values: ArrayLike, name: str) -> np.ndarray:
         array = np.broadcast_to(np.asarray(values, dtype=float), (pieces,)).copy()
         if not np.all(np.isfinite(array)):
             raise InputError(f"{name} must be finite on every piece")
@@ -95,38 +133,44 @@ def segment_model(course, bounds, rider: Rider, air) -> SegmentModel:
 
 
 def steady_segment_times(
-    model: SegmentModel, segment_power: np.ndarray
+    model: SegmentModel, segment_power: ArrayLike
 ) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
     """Steady-state time of each segment and its first two derivatives in power.
 
-    t_k = Σ L_i / v_i, t_k′ = −Σ L_i·v_i′ / v_i², t_k″ = Σ L_i·(2·v_i′²/v_i³ − v_i″/v_i²), with
-    v′ = η/(F + v·F′) and v″ = −(2F′ + v·F″)·v′³/η from the power balance η·P = v·F(v)
-    (Martin et al. 1998). The slope of a yaw-drag table is neglected in F′ and F″ only.
+    Every piece i is ridden at the steady speed v_i of the power balance η·P = v·F(v)
+    (Martin et al. 1998), F the resisting force; then
+
+        t_k = Σ L_i / v_i,   t_k′ = −Σ L_i·v_i′ / v_i²,   t_k″ = Σ L_i·(2·v_i′²/v_i³ − v_i″/v_i²)
+
+    with v′ = η/(F + v·F′) and v″ = −(2F′ + v·F″)·v′³/η, sums over the pieces of segment k.
+    The slope of a yaw-drag table is neglected in F′ and F″ only.
 
     Parameters
     ----------
-    model : SegmentModel; segment_power : crank power of each segment [W], length K.
+    model : SegmentModel
+        The course's pieces grouped into segments [-].
+    segment_power : array_like
+        Crank power of each segment, length K [W].
 
     Returns
     -------
-    (time [s], dtime/dpower [s/W], d²time/dpower² [s/W²]), each of length K.
+    time : numpy.ndarray
+        Time of each segment, length K [s].
+    dtime : numpy.ndarray
+        Its derivative in the segment's power, length K [s/W].
+    d2time : numpy.ndarray
+        Its second derivative in the segment's power, length K [s/W²].
+
+    References
+    ----------
+    Martin, J.C., Milliken, D.L., Cobb, J.E., McFadden, K.L. & Coggan, A.R. (1998). Validation
+    of a mathematical model for road cycling power. J Appl Biomech 14(3):276-291.
+    doi:10.1123/jab.14.3.276
     """
     power = np.asarray(segment_power, dtype=float)[model.segment]
     speed = _steady_speed(model, power)
     piece = _piece_constants(model)
-    drag = piece["drag"]
-    along = speed + model.headwind if piece["headwind"] else speed
-    if piece["calm_cross"]:
-        # no crosswind: apparent = |along|, so the slope is 2k·|along| and the curvature
-        # 2k·sign(along) (the general expressions below with w_c = 0)
-        pull = drag * np.abs(along)
-        slope = 2.0 * pull + piece["bearing"]
-        curvature = 2.0 * drag * np.sign(along)
-    else:
-        apparent = np.hypot(along, model.crosswind)
-        safe = np.where(apparent > 0, apparent, 1.0)
-        slope = drag * (apparent + along**2 / safe) + piece["bearing"]
-        curvature = drag * (3.0 * along / safe - along**3 / safe**3)
+    slope, curvature = _force_slopes(model, piece, speed)
     efficiency = model.rider.drivetrain_efficiency
     inverse = 1.0 / speed
     force = efficiency * np.maximum(power, 0.0) * inverse
@@ -138,50 +182,87 @@ def steady_segment_times(
     terms[0] = length_time
     terms[1] = -first_time
     terms[2] = first_time * (2.0 * first * inverse) - length_time * inverse * second
-    starts = piece["starts"]
-    if starts is None:
+    if piece.starts is None:
         count = model.count
-        return tuple(np.bincount(model.segment, row, count) for row in terms)
-    sums = np.add.reduceat(terms, starts, axis=1)
+        time, dtime, d2time = (np.bincount(model.segment, row, count) for row in terms)
+        return time, dtime, d2time
+    sums = np.add.reduceat(terms, piece.starts, axis=1)
     return sums[0], sums[1], sums[2]
 
 
-def _piece_constants(model: SegmentModel) -> dict:
-    """Per-piece quantities of the power balance that do not depend on power, computed once
-    per model and kept in its cache: drag factor k = ½ρ·(CdA·(1 − drafting) + wheel CdA)
-    [kg/m], the speed-independent resistance (rolling, gravity, bearings) [N], the bearing
-    force per speed [N·s/m], the first piece of each segment, and whether the wind has a
-    headwind or crosswind component at all."""
+def _force_slopes(model: SegmentModel, piece: _PieceConstants, speed: np.ndarray
+                  ) -> tuple[np.ndarray, np.ndarray]:
+    """F′ [N·s/m] and F″ [N·s²/m²] of the resisting force at the steady speeds [m/s]."""
+    drag = piece.drag
+    along = speed + model.headwind if piece.headwind else speed
+    if piece.calm_cross:
+        # no crosswind: apparent = |along|, so the slope is 2k·|along| and the curvature
+        # 2k·sign(along) (the general expressions below with w_c = 0)
+        pull = drag * np.abs(along)
+        return 2.0 * pull + piece.bearing, 2.0 * drag * np.sign(along)
+    apparent = np.hypot(along, model.crosswind)
+    safe = np.where(apparent > 0, apparent, 1.0)
+    slope = drag * (apparent + along**2 / safe) + piece.bearing
+    curvature = drag * (3.0 * along / safe - along**3 / safe**3)
+    return slope, curvature
+
+
+@dataclass(frozen=True, eq=False)
+class _PieceConstants:
+    """Per-piece quantities of the power balance that do not depend on power.
+
+    drag: drag factor k = ½ρ·(CdA·(1 − drafting) + wheel CdA) [kg/m]; constant: the
+    speed-independent resistance (rolling, gravity, bearings) [N]; bearing: the bearing force
+    per speed [N·s/m]; starts: the first piece of each segment (None when the segments are not
+    consecutive runs 0..K-1); headwind, calm_cross: whether the wind has a headwind component
+    at all, and whether it has no crosswind; sources: the model's inputs they were made from.
+    """
+
+    drag: np.ndarray
+    constant: np.ndarray
+    bearing: float
+    starts: np.ndarray | None
+    headwind: bool
+    calm_cross: bool
+    sources: tuple
+
+
+def _piece_constants(model: SegmentModel) -> _PieceConstants:
+    """The model's _PieceConstants, computed once per model and kept in its cache."""
     cache = model.speed_guess
     found = cache.get("piece")
     sources = (model.segment, model.grade, model.density, model.headwind, model.crosswind,
                model.rider)
     # a model copied with dataclasses.replace shares the cache: recompute if an input changed
-    if found is None or any(a is not b for a, b in zip(found["sources"], sources, strict=True)):
+    if found is None or any(a is not b for a, b in zip(found.sources, sources, strict=True)):
         rider = model.rider
         pieces = model.segment.size
         area = rider.drag_area * (1.0 - rider.drafting_reduction) + rider.wheel_drag_area
-        found = {
-            "drag": np.broadcast_to(0.5 * model.density * area, (pieces,)).copy(),
-            "constant": np.broadcast_to(
+        first = np.flatnonzero(np.diff(model.segment, prepend=-1))
+        # segments not in consecutive runs 0..K-1: sum with bincount (starts None)
+        consecutive = first.size == model.count and not np.any(np.diff(model.segment) < 0)
+        found = _PieceConstants(
+            drag=np.broadcast_to(0.5 * model.density * area, (pieces,)).copy(),
+            constant=np.broadcast_to(
                 rolling_force(model.grade, rider) + gravity_force(model.grade, rider)
                 + rider.bearing_force_constant, (pieces,)).copy(),
-            "bearing": rider.bearing_force_per_speed,
-            "starts": np.flatnonzero(np.diff(model.segment, prepend=-1)),
-            "headwind": bool(np.any(model.headwind)),
-            "calm_cross": not np.any(model.crosswind),
-            "sources": sources,
-        }
-        if found["starts"].size != model.count or np.any(np.diff(model.segment) < 0):
-            found["starts"] = None  # not consecutive runs 0..K-1: sum with bincount
+            bearing=rider.bearing_force_per_speed,
+            starts=first if consecutive else None,
+            headwind=bool(np.any(model.headwind)),
+            calm_cross=not np.any(model.crosswind),
+            sources=sources,
+        )
         cache["piece"] = found
     return found
 
 
 def _steady_speed(model: SegmentModel, power: np.ndarray) -> np.ndarray:
-    """Steady speed on every piece [m/s]: pacing.physics.cycling.speed_for_power, or, when the model
-    holds the speeds of a previous solve, Newton steps from them on the same balance
-    g(v) = F(v) − η·P/v (pieces that do not converge fast fall back to speed_for_power)."""
+    """Steady speed on every piece [m/s].
+
+    pacing.physics.cycling.speed_for_power, or, when the model holds the speeds of a previous
+    solve, Newton steps from them on the same balance g(v) = F(v) − η·P/v (pieces that do not
+    converge fast fall back to speed_for_power).
+    """
     rider = model.rider
     guess = model.speed_guess.get("speed")
     if guess is None or rider.yaw_drag_table is not None:
@@ -190,16 +271,15 @@ def _steady_speed(model: SegmentModel, power: np.ndarray) -> np.ndarray:
         model.speed_guess["speed"] = speed
         return speed
     piece = _piece_constants(model)
-    drag, constant, bearing = piece["drag"], piece["constant"], piece["bearing"]
-    calm_cross = piece["calm_cross"]
+    drag, constant, bearing = piece.drag, piece.constant, piece.bearing
     drive = rider.drivetrain_efficiency * np.maximum(power, 0.0)
     speed = guess.copy()
     step = np.full(speed.shape, np.inf)
     with np.errstate(all="ignore"):
         for _ in range(8):
-            along = speed + model.headwind if piece["headwind"] else speed
+            along = speed + model.headwind if piece.headwind else speed
             pushed = drive / speed  # η·P/v
-            if calm_cross:
+            if piece.calm_cross:
                 pull = drag * np.abs(along)  # k·|v_a|: drag k·|v_a|·v_a, slope 2k·|v_a|
                 value = pull * along + constant + bearing * speed - pushed
                 slope = 2.0 * pull + bearing + pushed / speed

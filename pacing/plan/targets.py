@@ -10,26 +10,48 @@ from __future__ import annotations
 
 import math
 from dataclasses import asdict, dataclass
+from typing import TYPE_CHECKING, cast
 
 import numpy as np
+from numpy.typing import ArrayLike
 
+from pacing.course.geometry import Course
 from pacing.errors import InputError
-from pacing.plan.prediction import segment_results
+from pacing.plan.prediction import Prediction, SegmentResult, segment_results
+from pacing.weather.conditions import CourseAir
+
+if TYPE_CHECKING:
+    from pacing.plan.cycling import RacePlan
 
 DEFAULT_BAND = 0.03
 """Half-width of the power band around a target power, as a fraction [-]: ±3 %, as the
 issue on pacing strategies asks (a target with a tolerance band is common practice)."""
 
 
-def power_band(target_power, band: float = DEFAULT_BAND) -> tuple[np.ndarray, np.ndarray]:
-    """Lower and upper edge of the band around target powers [W].
+def power_band(target_power: ArrayLike, band: float = DEFAULT_BAND
+               ) -> tuple[np.ndarray, np.ndarray]:
+    """Lower and upper edge of the band around target powers.
 
     low = P·(1 − band), high = P·(1 + band).
 
     Parameters
     ----------
-    target_power : target crank power, one number or an array [W] (finite, ≥ 0).
-    band : half-width as a fraction, 0 ≤ band < 1 [-].
+    target_power : array_like
+        Target crank power, one number or an array, finite and ≥ 0 [W].
+    band : float
+        Half-width as a fraction, 0 ≤ band < 1 [-].
+
+    Returns
+    -------
+    low : numpy.ndarray
+        Lower edge [W].
+    high : numpy.ndarray
+        Upper edge [W].
+
+    Raises
+    ------
+    InputError
+        When the band is not a fraction 0..1 or a power is negative or not finite.
     """
     try:
         band = float(band)
@@ -49,19 +71,35 @@ class SegmentTarget:
 
     Attributes
     ----------
-    index : segment number, from 0.
-    start, end : course distance of its first and last point [m].
-    length : horizontal length [m].
-    grade : mean grade, rise/run [-].
-    target_power : crank power to hold [W]; None when the plan has no power (running).
-    power_low, power_high : band around the target power [W]; None without a target power.
-    target_pace : pace to hold [s/km]; None unless pace is asked for (running).
-    speed : expected mean speed, length / time [m/s].
-    time : expected time on the segment [s].
-    cumulative_time : expected time from the start to its end [s].
-    w_prime_balance : W′ balance at its end [J]; None without CP and W′.
-    headwind : length-weighted mean headwind component [m/s] (negative = tailwind); 0 without
-        air data.
+    index : int
+        Segment number, from 0 [-].
+    start : float
+        Course distance of its first point [m].
+    end : float
+        Course distance of its last point [m].
+    length : float
+        Horizontal length [m].
+    grade : float
+        Mean grade, rise/run [-].
+    target_power : float or None
+        Crank power to hold; None when the plan has no power (running) [W].
+    power_low : float or None
+        Lower edge of the band around the target power; None without a target power [W].
+    power_high : float or None
+        Upper edge of that band; None without a target power [W].
+    target_pace : float or None
+        Pace to hold; None unless pace is asked for (running) [s/km].
+    speed : float
+        Expected mean speed, length / time [m/s].
+    time : float
+        Expected time on the segment [s].
+    cumulative_time : float
+        Expected time from the start to its end [s].
+    w_prime_balance : float or None
+        W′ balance at its end; None without CP and W′ [J].
+    headwind : float
+        Length-weighted mean headwind component (negative = tailwind); 0 without air
+        data [m/s].
     """
 
     index: int
@@ -80,7 +118,8 @@ class SegmentTarget:
     headwind: float
 
 
-def _optional(values, count: int, name: str) -> np.ndarray | None:
+def _optional(values: ArrayLike | None, count: int, name: str) -> np.ndarray | None:
+    """One value per segment as an array, or None; InputError on a wrong length."""
     if values is None:
         return None
     array = np.asarray(values, dtype=float)
@@ -89,14 +128,26 @@ def _optional(values, count: int, name: str) -> np.ndarray | None:
     return array
 
 
+def _segment_headwind(course: Course, bounds: np.ndarray, headwind: ArrayLike | None,
+                      count: int) -> np.ndarray:
+    """Length-weighted mean headwind of each segment [m/s] (zeros without wind data)."""
+    if headwind is None:
+        return np.zeros(count)
+    piece_length = np.diff(np.asarray(course.distance, dtype=float))
+    wind = np.broadcast_to(np.asarray(headwind, dtype=float), piece_length.shape)
+    segment = np.repeat(np.arange(count), np.diff(bounds.astype(int)))
+    return (np.bincount(segment, wind * piece_length, count)
+            / np.bincount(segment, piece_length, count))
+
+
 def target_table(
-    course,
-    bounds,
-    plan,
+    course: Course,
+    bounds: ArrayLike,
+    plan: RacePlan | Prediction,
     *,
-    segment_power=None,
-    segment_w_prime_balance=None,
-    air=None,
+    segment_power: ArrayLike | None = None,
+    segment_w_prime_balance: ArrayLike | None = None,
+    air: CourseAir | None = None,
     band: float | None = None,
     pace: bool = False,
 ) -> list[SegmentTarget]:
@@ -104,21 +155,40 @@ def target_table(
 
     Parameters
     ----------
-    course : pacing.course.geometry.Course; bounds : segment boundary point indices (first 0, last
-    N-1).
-    plan : a pacing.plan.cycling.RacePlan, or a pacing.plan.prediction.Prediction (anything with the
-        Prediction fields distance, time, speed, power).
-    segment_power : target power per segment [W] (default: the RacePlan's segment power; for a
-        bare Prediction, the time-weighted mean power it rode on each segment; none when
-        `pace` is set and no power is given).
-    segment_w_prime_balance : W′ balance at each segment end [J] (default: the RacePlan's).
-    air : per-piece air (pacing.weather.conditions.CourseAir) for the headwind column; default the
-        Prediction's headwind when it has one.
-    band : half-width of the power band as a fraction [-] (default the RacePlan request's band,
-        else DEFAULT_BAND, 0.03).
-    pace : also give the target pace [s/km] (running).
+    course : pacing.course.geometry.Course
+        The course, N points [-].
+    bounds : array_like of int
+        Segment boundary point indices, first 0, last N-1 [-].
+    plan : RacePlan or Prediction
+        A pacing.plan.cycling.RacePlan, or a pacing.plan.prediction.Prediction (anything with
+        the Prediction fields distance, time, speed, power) [-].
+    segment_power : array_like or None
+        Target power per segment (default: the RacePlan's segment power; for a bare
+        Prediction, the time-weighted mean power it rode on each segment; none when `pace` is
+        set and no power is given) [W].
+    segment_w_prime_balance : array_like or None
+        W′ balance at each segment end (default: the RacePlan's) [J].
+    air : pacing.weather.conditions.CourseAir or None
+        Per-piece air for the headwind column; default the Prediction's headwind when it has
+        one [-].
+    band : float or None
+        Half-width of the power band as a fraction (default the RacePlan request's band, else
+        DEFAULT_BAND, 0.03) [-].
+    pace : bool
+        Also give the target pace in s/km (running) [-].
+
+    Returns
+    -------
+    list of SegmentTarget
+        One row per segment, in course order [-].
+
+    Raises
+    ------
+    InputError
+        When the band is not a fraction 0..1, the bounds are not valid, or a per-segment
+        array has the wrong length.
     """
-    prediction = getattr(plan, "prediction", plan)
+    prediction = cast(Prediction, getattr(plan, "prediction", plan))
     bounds = np.asarray(bounds)
     if band is None:
         request = getattr(plan, "request", None)
@@ -135,15 +205,15 @@ def target_table(
     if segment_w_prime_balance is None:
         segment_w_prime_balance = getattr(plan, "segment_w_prime_balance", None)
     balance = _optional(segment_w_prime_balance, count, "W′ balance")
-    headwind_source = air.headwind if air is not None else getattr(prediction, "headwind", None)
-    piece_length = np.diff(np.asarray(course.distance, dtype=float))
-    if headwind_source is None:
-        headwind = np.zeros(count)
-    else:
-        wind = np.broadcast_to(np.asarray(headwind_source, dtype=float), piece_length.shape)
-        segment = np.repeat(np.arange(count), np.diff(bounds.astype(int)))
-        headwind = (np.bincount(segment, wind * piece_length, count)
-                    / np.bincount(segment, piece_length, count))
+    headwind = _segment_headwind(
+        course, bounds, air.headwind if air is not None else getattr(prediction, "headwind",
+                                                                     None), count)
+    return _rows(results, power, balance, headwind, band, pace)
+
+
+def _rows(results: list[SegmentResult], power: np.ndarray | None, balance: np.ndarray | None,
+          headwind: np.ndarray, band: float, pace: bool) -> list[SegmentTarget]:
+    """The SegmentTarget rows from the segments' results and the per-segment columns."""
     rows = []
     elapsed = 0.0
     for k, result in enumerate(results):
@@ -187,6 +257,17 @@ RECORD_KEYS = {
 """Field of SegmentTarget → key in exported records (SI units in the key's suffix)."""
 
 
-def targets_as_records(rows: list[SegmentTarget]) -> list[dict]:
-    """Rows as plain dicts with SI-suffixed keys (RECORD_KEYS), for JSON and CSV exports."""
+def targets_as_records(rows: list[SegmentTarget]) -> list[dict[str, float | int | None]]:
+    """Rows as plain dicts with SI-suffixed keys (RECORD_KEYS), for JSON and CSV exports.
+
+    Parameters
+    ----------
+    rows : list of SegmentTarget
+        The target table [-].
+
+    Returns
+    -------
+    list of dict
+        One dict per row, keys of RECORD_KEYS, values in SI units [-].
+    """
     return [{RECORD_KEYS[name]: value for name, value in asdict(row).items()} for row in rows]

@@ -1,0 +1,226 @@
+"""Specification of finish-time sensitivities and uncertainty (pacing.compare.sensitivity).
+
+Check values: the steady Martin et al. (1998) balance (J Appl Biomech 14(3):276-291,
+doi:10.1123/jab.14.3.276; constants as in docs/references.md, "Cycling power balance (Martin
+et al. 1998)" [mem]), differentiated by hand and solved by scipy brentq; the law of propagation
+of uncertainty (JCGM 100:2008, GUM section 5.1) worked by hand; numpy's percentiles.
+"""
+
+from __future__ import annotations
+
+import math
+from dataclasses import replace
+
+import numpy as np
+import pytest
+from scipy import optimize
+
+from pacing.compare.sensitivity import (
+    STEPS,
+    Sensitivity,
+    Spread,
+    Uncertainty,
+    difference_spread,
+    finish_time_spread,
+    sampled_difference,
+    sampled_finish_time,
+    sensitivity,
+)
+from pacing.course.geometry import synthetic_course
+from pacing.errors import InputError
+from pacing.physics.cycling import Rider
+from pacing.plan.prediction import SimulationOptions
+from pacing.plan.simulate import simulate
+from pacing.weather.conditions import Conditions, air_along_course
+
+G = 9.80665  # standard gravity [m/s²]
+LENGTH = 100_000.0
+
+
+def east_course(length=LENGTH, step=100.0):
+    """A flat straight road heading east (90°)."""
+    distance = np.arange(0.0, length + step / 2, step)
+    return synthetic_course(distance, np.zeros_like(distance), heading=90.0)
+
+
+def hill_course():
+    """6 km heading east: 2 km flat, 2 km at 5 %, 2 km down at 4 %, 50 m pieces."""
+    distance = np.arange(0.0, 6000.0 + 25.0, 50.0)
+    elevation = np.interp(distance, [0, 2000, 4000, 6000], [100, 100, 200, 120])
+    return synthetic_course(distance, elevation, heading=90.0)
+
+
+class Balance:
+    """The steady flat-road balance η·P = v·F(v) of Martin et al. (1998), written out:
+    F(v) = k·(v + w)² + Crr·m·g + 0.091 + 0.0087·v, k = ½ρ(CdA + 0.0044), w the headwind."""
+
+    def __init__(self, power=250.0, drag_area=0.28, mass=80.0, rolling=0.0032, density=1.2,
+                 headwind=0.0):
+        self.power, self.mass, self.rolling, self.headwind = power, mass, rolling, headwind
+        self.k = 0.5 * density * (drag_area + 0.0044)
+        self.speed = optimize.brentq(lambda v: v * self.force(v) - 0.976 * power, 0.5, 40.0,
+                                     xtol=1e-14)
+
+    def force(self, v):
+        return (self.k * (v + self.headwind) ** 2 + self.rolling * self.mass * G + 0.091
+                + 0.0087 * v)
+
+    def dtime(self, d_force):
+        """dT/dx on LENGTH for a change dF/dx of the force at fixed speed [s per unit of x]:
+        0 = v·∂F/∂x + (F + v·F′)·dv/dx, T = L/v (implicit differentiation)."""
+        v = self.speed
+        slope = 2 * self.k * (v + self.headwind) + 0.0087
+        dv = -v * d_force / (self.force(v) + v * slope)
+        return -LENGTH / v**2 * dv
+
+
+def test_crr_and_mass_sensitivities_match_the_derivative_of_the_steady_balance():
+    # On the flat Crr and mass enter through the rolling force Crr·m·g: ∂F/∂Crr = m·g,
+    # ∂F/∂m = Crr·g; per step (+0.001 Crr, +1 kg). The rides start at the unchanged steady
+    # speed; on 100 km the settling of the perturbed rides is diluted below 0.3 %.
+    conditions = Conditions()
+    course = east_course()
+    density = float(air_along_course(course, conditions).density[0])
+    balance = Balance(density=density)
+    sens = sensitivity(course, np.full(1000, 250.0), Rider(mass=80.0, drag_area=0.28),
+                       conditions, SimulationOptions(start_speed=balance.speed))
+    assert sens.rolling_coefficient == pytest.approx(
+        STEPS["rolling_coefficient"] * balance.dtime(80.0 * G), rel=0.003)
+    assert sens.mass == pytest.approx(STEPS["mass"] * balance.dtime(0.0032 * G), rel=0.003)
+
+
+def test_wind_sensitivity_matches_the_derivative_of_the_steady_balance():
+    # A 3 m/s forecast wind from the east on a road heading east: a pure headwind w = f·W at
+    # rider height, f the log-profile factor read off the air along the course (linear in W).
+    # ∂F/∂w = 2k·(v + w); dT/dW = f·dT/dw; central difference over ±1 m/s of W.
+    course = east_course()
+    conditions = Conditions(wind_speed=3.0, wind_from=90.0)
+    air = air_along_course(course, conditions)
+    factor = float(air_along_course(course, replace(conditions, wind_speed=1.0)).headwind[0])
+    assert float(air.headwind[0]) == pytest.approx(3.0 * factor, rel=1e-12)
+    assert np.allclose(air.crosswind, 0.0, atol=1e-12)
+    balance = Balance(density=float(air.density[0]), headwind=3.0 * factor)
+    sens = sensitivity(course, np.full(1000, 250.0), Rider(mass=80.0, drag_area=0.28),
+                       conditions, SimulationOptions(start_speed=balance.speed))
+    v, w = balance.speed, balance.headwind
+    assert sens.wind == pytest.approx(factor * balance.dtime(2 * balance.k * (v + w)), rel=0.003)
+    assert sens.wind_direction == 90.0
+
+
+def test_crr_below_one_step_takes_a_forward_difference():
+    # Crr cannot go below 0: with Crr 0.0005 < 0.001 the sensitivity is T(Crr + 0.001) − T
+    course = hill_course()
+    conditions = Conditions()
+    rider = Rider(mass=80.0, drag_area=0.30, rolling_coefficient=0.0005)
+    power = np.full(120, 250.0)
+    options = SimulationOptions(start_speed=8.0)
+    sens = sensitivity(course, power, rider, conditions, options)
+    air = air_along_course(course, conditions)
+    direct = (simulate(course, power, replace(rider, rolling_coefficient=0.0015), air,
+                       options).finish_time - sens.finish_time)
+    assert sens.rolling_coefficient == pytest.approx(direct, rel=1e-12)
+    assert sens.per_step()["rolling_coefficient"] == sens.rolling_coefficient
+
+
+@pytest.mark.parametrize("rider, power, message", [
+    (Rider(drag_area=0.01), 250.0, "CdA must exceed"),
+    (Rider(), 8.0, "mean power must exceed"),
+])
+def test_values_too_small_for_a_step_are_refused(rider, power, message):
+    # (8 W on the flat is ridden at 8 W: above the 2.8 W that holds the walking speed)
+    course = east_course(6000.0, 50.0)
+    with pytest.raises(InputError, match=message):
+        sensitivity(course, np.full(120, power), rider, Conditions(),
+                    SimulationOptions(start_speed=2.0))
+
+
+# ------------------------------------------------------------------------ linearized spread
+
+MADE_UP = Sensitivity(finish_time=3600.0, drag_area=10.0, mass=2.0, power=-30.0,
+                      rolling_coefficient=5.0, wind=8.0, wind_direction=0.0)
+"""Invented sensitivities [s per step] for worked examples."""
+
+
+def test_finish_time_spread_by_hand():
+    # GUM 5.1 with independent inputs: σ_T² = Σ (S_x·σ_x/h_x)². By hand: CdA 10·0.005/0.01 =
+    # 5 s, Crr 5·0.0005/0.001 = 2.5 s, mass 2·1/1 = 2 s, wind 8·0.5/1 = 4 s;
+    # σ_T = √(25 + 6.25 + 4 + 16) = √51.25 = 7.159 s
+    spread = finish_time_spread(MADE_UP, Uncertainty(drag_area=0.005, rolling_coefficient=0.0005,
+                                                     mass=1.0, wind=0.5))
+    assert spread.contributions == pytest.approx({"drag_area": 5.0, "rolling_coefficient": 2.5,
+                                                  "mass": 2.0, "wind": 4.0}, rel=1e-12)
+    assert spread.standard_deviation == pytest.approx(math.sqrt(51.25), rel=1e-12)
+    assert spread.samples is None and spread.interval() is None
+
+
+def test_difference_spread_by_hand():
+    # Shared inputs enter through S_B − S_A; the CdA errors are independent, each with its
+    # own σ: √((10·0.005/0.01)² + (12·0.002/0.01)²) = √(25 + 5.76) s; Crr (6 − 5)·0.0005/0.001
+    # = 0.5 s, mass (2.5 − 2)·1 = 0.5 s, wind (7 − 8)·0.5 = 0.5 s (absolute)
+    second = replace(MADE_UP, drag_area=12.0, rolling_coefficient=6.0, mass=2.5, wind=7.0)
+    spread = difference_spread(MADE_UP, second, Uncertainty(0.005, 0.0005, 1.0, 0.5),
+                               Uncertainty(drag_area=0.002))
+    assert spread.contributions["drag_area"] == pytest.approx(math.sqrt(25 + 5.76), rel=1e-12)
+    for name in ("rolling_coefficient", "mass", "wind"):
+        assert spread.contributions[name] == pytest.approx(0.5, rel=1e-12)
+    assert spread.standard_deviation == pytest.approx(math.sqrt(30.76 + 0.75), rel=1e-12)
+    # the same setup twice with only shared errors: no spread at all
+    assert difference_spread(MADE_UP, MADE_UP, Uncertainty(0.0, 0.001, 2.0, 1.0)
+                             ).standard_deviation == 0.0
+
+
+def test_interval_and_sample_spread_of_known_samples():
+    # numpy's linear percentiles of 1..100: the 5th at index 4.95 → 5.95, the 95th at 94.05
+    # → 95.05; the sample σ (ddof 1) of 1..n is √(n(n + 1)/12) = √(10100/12) = 29.011
+    spread = Spread(0.0, {}, np.arange(1.0, 101.0))
+    assert spread.interval(0.9) == pytest.approx((5.95, 95.05), rel=1e-12)
+    assert spread.sampled_standard_deviation == pytest.approx(math.sqrt(10100 / 12), rel=1e-12)
+    assert Spread(0.0, {}, np.array([1.0])).sampled_standard_deviation is None
+
+
+# ------------------------------------------------------------------------ Monte Carlo
+
+
+def test_without_uncertainty_every_draw_is_the_unchanged_ride():
+    course = hill_course()
+    conditions = Conditions(wind_speed=2.0, wind_from=45.0)
+    rider = Rider(mass=80.0, drag_area=0.30)
+    power = np.full(120, 250.0)
+    options = SimulationOptions(start_speed=8.0)
+    base = simulate(course, power, rider, air_along_course(course, conditions),
+                    options).finish_time
+    times = sampled_finish_time(course, power, rider, conditions, Uncertainty(), samples=3,
+                                options=options)
+    np.testing.assert_allclose(times, base, rtol=1e-12)
+    same = sampled_difference(course, (rider, power), (rider, power), conditions,
+                              Uncertainty(rolling_coefficient=0.0005, mass=1.0, wind=0.5),
+                              samples=3, seed=2, options=options)
+    np.testing.assert_allclose(same, 0.0, atol=1e-9)  # shared errors cancel exactly
+
+
+def test_the_first_draws_do_not_depend_on_how_many_are_taken():
+    course = hill_course()
+    pair = ((Rider(mass=80.0, drag_area=0.30), np.full(120, 250.0)),
+            (Rider(mass=80.0, drag_area=0.27), np.full(120, 240.0)))
+    options = SimulationOptions(start_speed=8.0)
+    uncertainty = Uncertainty(drag_area=0.005, wind=0.5)
+    few = sampled_difference(course, *pair, Conditions(), uncertainty, samples=2, seed=4,
+                             options=options)
+    more = sampled_difference(course, *pair, Conditions(), uncertainty, samples=4, seed=4,
+                              options=options)
+    np.testing.assert_array_equal(few, more[:2])
+    assert np.all(few != 0.0)
+
+
+@pytest.mark.parametrize("samples", [1, 2.5, 100_001])
+def test_a_bad_sample_count_is_refused(samples):
+    with pytest.raises(InputError, match="samples"):
+        sampled_finish_time(hill_course(), np.full(120, 250.0), Rider(), Conditions(),
+                            Uncertainty(), samples=samples)
+
+
+@pytest.mark.parametrize("field", ["drag_area", "rolling_coefficient", "mass", "wind"])
+def test_an_uncertainty_must_be_finite_and_not_negative(field):
+    for value in (-1e-3, math.nan, math.inf):
+        with pytest.raises(InputError, match="uncertainty"):
+            Uncertainty(**{field: value})
