@@ -97,6 +97,10 @@ def test_constant_power_laps_warn(capsys, tmp_path):
     path, _ = write_ride(tmp_path / "steady.csv", lap_powers=(250.0,) * 6)
     result = run_json(capsys, path, "--mass", 80)
     assert any("speed variety" in w for w in result["warnings"])
+    # the same warnings as data: code, level, SI values and the same text
+    warned = [n for n in result["notices"] if n["level"] == "warning"]
+    assert [n["text"] for n in warned] == result["warnings"]
+    assert all(n["code"].startswith("fieldtest-") for n in warned)
 
 
 @pytest.fixture(scope="module")

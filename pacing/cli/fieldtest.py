@@ -23,7 +23,7 @@ from typing import TYPE_CHECKING, Any
 
 import numpy as np
 
-from pacing.cli.common import add_air_flags, require
+from pacing.cli.common import add_air_flags, notices_as_json, require
 from pacing.display.notices import describe, describe_all, labelled
 from pacing.errors import InputError
 from pacing.fieldtest.methods import FIELD_TEST_METHODS
@@ -43,8 +43,9 @@ JSON keys: method; cda_m2 and cda_ci95 (first position, m²); crr and crr_ci95; 
 and crr_held (held because the laps lack speed variety); laps; estimate_correlation (of the
 CdA and Crr estimates, near 1 = inseparable); cda_change_per_0_001_crr_m2; air_density_kg_m3;
 positions (label, cda_m2, cda_ci95, laps, lap_cda_m2); differences (position - baseline,
-ci95, significant); warnings; notes. Intervals are 95 % bootstrap intervals over laps, null
-with fewer than 3 laps.
+ci95, significant); warnings; notes; notices (every warning and note as data: code, level,
+values in SI, text, and the ride for a ride's note). Intervals are 95 % bootstrap intervals
+over laps, null with fewer than 3 laps.
 
 example: python -m pacing fieldtest hoods.csv aero.csv --mass 82 --position hoods
          --position aero --temperature 14 --humidity 70
@@ -226,6 +227,10 @@ def _as_json(result: FieldTestResult, tests: Sequence[PositionTest],
         ],
         "warnings": describe_all(result.warnings),
         "notes": _note_lines(notes),
+        "notices": notices_as_json(result.warnings)
+        + [{**entry, "ride": label}
+           for label, entry in zip((label for label, _ in notes),
+                                   notices_as_json([n for _, n in notes]), strict=True)],
     }
 
 
