@@ -14,7 +14,7 @@ import numpy as np
 import streamlit as st
 
 from pacing.display.notices import describe
-from pacing.errors import InputError
+from pacing.errors import InputError, first_line
 from pacing.io.exports import segment_table
 from pacing.physics.wind import ROUGHNESS_LENGTHS
 from ui import (
@@ -59,7 +59,7 @@ def cached_outcome(course_key: str, _course, bounds: tuple, athlete: tuple, weat
     except InputError as error:
         return None, str(error).splitlines()[0] if str(error) else "bad input"
     except (ValueError, ArithmeticError, RuntimeError) as error:  # a model could not solve
-        first = str(error).splitlines()[0] if str(error) else type(error).__name__
+        first = first_line(error)
         return None, f"the model could not work out this race ({first}); check the inputs"
 
 
@@ -83,7 +83,7 @@ def cached_along(outcome_key: str, _outcome, system: str):
 
 def show_error(error: Exception, where: str = "") -> None:
     """One clear line in the page for a bad input."""
-    message = str(error).splitlines()[0] if str(error) else type(error).__name__
+    message = first_line(error)
     st.error(f"{where}: {message}" if where else message, icon="⚠️")
 
 

@@ -11,3 +11,17 @@ class ConflictError(RuntimeError):
     Someone else (another browser session, another process) changed the entry since it was
     read; nothing was written. Reload the entry and try again. The message is one line.
     """
+
+
+def first_line(error: BaseException) -> str:
+    """The first line of an error's message, or its class name when it has none.
+
+    Every surface shows one line per error (the page, the terminal); this is that line.
+
+    >>> first_line(InputError("the file is empty\\n(details)"))
+    'the file is empty'
+    >>> first_line(ZeroDivisionError())
+    'ZeroDivisionError'
+    """
+    text = str(error).strip()
+    return text.splitlines()[0] if text else type(error).__name__

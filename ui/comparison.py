@@ -31,7 +31,7 @@ import streamlit as st
 
 from pacing.compare.analysis import DEFAULT_UNCERTAINTY
 from pacing.display.units import format_duration, to_display, unit_label
-from pacing.errors import InputError
+from pacing.errors import InputError, first_line
 from ui.comparison_figures import (
     difference_figure,
     gap_along_figure,
@@ -322,14 +322,11 @@ def _cached_report(key: str, _race: RaceRequest, _setups: list[RiderSetup],
         return analyse_setups(_race, _setups, baseline, _uncertainty,
                               break_even_figures=break_even_figures), None
     except InputError as error:
-        return None, _first_line(error)
+        return None, first_line(error)
     except (ValueError, ArithmeticError, RuntimeError) as error:
-        return None, f"the comparison could not be worked out: {_first_line(error)}"
+        return None, f"the comparison could not be worked out: {first_line(error)}"
 
 
-def _first_line(error: Exception) -> str:
-    text = str(error).strip()
-    return text.splitlines()[0] if text else type(error).__name__
 
 
 def _uncertainty_inputs(system: str) -> Uncertainty:
@@ -476,13 +473,13 @@ def render_comparison(race: RaceRequest, system: str,
     try:
         ride = _ride_choice(race)
     except InputError as error:
-        st.error(_first_line(error), icon="⚠️")
+        st.error(first_line(error), icon="⚠️")
         return None
     rows = _setup_editor(base_rider, body_mass, system)
     try:
         setups = setups_from_rows(rows, base_rider, body_mass, system)
     except InputError as error:
-        st.error(_first_line(error), icon="⚠️")
+        st.error(first_line(error), icon="⚠️")
         return None
     cols = st.columns([2, 3])
     baseline = cols[0].selectbox("Measure against", [s.name for s in setups], key="cmp_baseline")
@@ -537,6 +534,6 @@ def render_comparison_for_page(course: Any, bounds: Any, athlete: dict | None,
         race = page_race(course, bounds, athlete, weather, approach)
         body_mass = _build(Athlete, athlete).body_mass
     except InputError as error:
-        st.error(_first_line(error), icon="⚠️")
+        st.error(first_line(error), icon="⚠️")
         return None
     return render_comparison(race, system, body_mass=body_mass)

@@ -25,7 +25,7 @@ from plotly.subplots import make_subplots
 
 from pacing.display.notices import describe
 from pacing.display.units import to_display, unit_label
-from pacing.errors import ConflictError, InputError
+from pacing.errors import ConflictError, InputError, first_line
 from pacing.fieldtest.methods import FIELD_TEST_METHODS
 from pacing.notices import Notice
 
@@ -114,7 +114,7 @@ def read_tests(files: Sequence[tuple[Any, ...]],
             ride = read_ride(bytes(data), name=Path(file_name).stem,
                              kind=suffix if suffix in ("csv", "gpx") else None)
         except InputError as error:
-            raise InputError(f"{file_name}: {_first_line(error)}") from None
+            raise InputError(f"{file_name}: {first_line(error)}") from None
         label = (label or "").strip() or ride.name
         if label in (t.label for t in tests):
             label = f"{label} ({index + 1})"
@@ -124,7 +124,7 @@ def read_tests(files: Sequence[tuple[Any, ...]],
                 laps = tuple(laps_from_bounds(indices_at_times(ride, lap_times),
                                               ride.time.size))
             except InputError as error:
-                raise InputError(f"{file_name}: {_first_line(error)}") from None
+                raise InputError(f"{file_name}: {first_line(error)}") from None
         air = ride_air(ride, conditions)
         tests.append(PositionTest(label, ride, air.density, laps, air.headwind, air.crosswind))
         notes.extend((label, notice) for notice in ride.notes)
@@ -344,10 +344,6 @@ def road_test_cda_note() -> str:
     return ROAD_TEST_CDA_NOTE.format(wheel=MARTIN_1998["wheel_drag_area"])
 
 
-def _first_line(error: Exception) -> str:
-    """The first line of an error's message (or its type's name)."""
-    text = str(error).strip()
-    return text.splitlines()[0] if text else type(error).__name__
 
 
 @st.cache_resource(max_entries=8, show_spinner="Fitting CdA and Crr…")
@@ -359,9 +355,9 @@ def _cached_run(key: str, _files: Sequence[tuple[Any, ...]], total_mass: float,
     try:
         return run_fieldtest(_files, total_mass, _conditions, method, rolling, efficiency), None
     except InputError as error:
-        return None, _first_line(error)
+        return None, first_line(error)
     except (ValueError, ArithmeticError, np.linalg.LinAlgError) as error:
-        return None, f"the rides could not be fitted: {_first_line(error)}"
+        return None, f"the rides could not be fitted: {first_line(error)}"
 
 
 def _conditions_inputs(system: str) -> Any:
@@ -409,7 +405,7 @@ def _uploaded_rides(uploads: Sequence[Any]) -> list[tuple[str, bytes, str, tuple
         try:
             lap_times = parse_marks(marks) if marks.strip() else ()
         except InputError as error:
-            st.error(f"{upload.name}: lap starts: {_first_line(error)}", icon="⚠️")
+            st.error(f"{upload.name}: lap starts: {first_line(error)}", icon="⚠️")
             return None
         files.append((upload.name, upload.getvalue(), label, lap_times))
     return files
@@ -512,7 +508,7 @@ def render_fieldtest(system: str, location: str | None = None,
         try:
             conditions = _conditions_inputs(system)
         except InputError as error:
-            st.error(_first_line(error), icon="⚠️")
+            st.error(first_line(error), icon="⚠️")
             return None
     if not files:
         st.info("Upload one or more test rides to measure CdA.")
@@ -546,7 +542,7 @@ def _setup_maker(result: Any, system: str, location: str | None,
         setup = result.setup(position, name=name.strip() or position, bike_mass=bike,
                              power_share=share / 100.0)
     except InputError as error:
-        st.error(_first_line(error), icon="⚠️")
+        st.error(first_line(error), icon="⚠️")
         return None
     made = None
     cols = st.columns(2)
@@ -564,7 +560,7 @@ def _setup_maker(result: Any, system: str, location: str | None,
 
                 stored = _library(location).add_setup(int(owner), setup)
             except (InputError, ConflictError) as error:
-                st.error(_first_line(error), icon="⚠️")
+                st.error(first_line(error), icon="⚠️")
             else:
                 made = setup
                 st.success(f"Stored setup {stored.setup.name!r} (#{stored.id}) in the library.")

@@ -14,7 +14,7 @@ from typing import Any
 import pandas as pd
 
 from pacing.display.units import format_duration, to_display, unit_label
-from pacing.errors import ConflictError, InputError
+from pacing.errors import ConflictError, InputError, first_line
 
 CONFLICT_MESSAGE = "changed in another window — reload"
 """What a stale save or delete says (pacing.errors.ConflictError), before the details."""
@@ -52,10 +52,6 @@ PAGE_WIDGETS = {
 the stored number)."""
 
 
-def _first_line(error: Exception) -> str:
-    """The first line of an error's message (its class name when it has none)."""
-    message = str(error).strip()
-    return message.splitlines()[0] if message else type(error).__name__
 
 
 def error_message(error: Exception) -> str:
@@ -72,8 +68,8 @@ def error_message(error: Exception) -> str:
         The first line of its message; for a ConflictError, CONFLICT_MESSAGE before it.
     """
     if isinstance(error, ConflictError):
-        return f"{CONFLICT_MESSAGE}: {_first_line(error)}"
-    return _first_line(error)
+        return f"{CONFLICT_MESSAGE}: {first_line(error)}"
+    return first_line(error)
 
 
 # ------------------------------------------------------------------------ plan inputs, result

@@ -14,7 +14,7 @@ import warnings
 from typing import NoReturn, TextIO
 
 from pacing import __version__
-from pacing.errors import InputError
+from pacing.errors import InputError, first_line
 
 COMMAND_MODULES = ("course", "plan", "compare", "fieldtest", "library")
 
@@ -97,7 +97,7 @@ def main(argv: list[str] | None = None) -> int:
         except (InputError, ValueError, OSError) as error:
             if isinstance(error, BrokenPipeError):
                 return _quiet_broken_pipe()
-            message = str(error).splitlines()[0] if str(error) else type(error).__name__
+            message = first_line(error)
             print(f"pacing {args.command}: error: {message}", file=sys.stderr)
             return 2
         except KeyboardInterrupt:

@@ -29,7 +29,7 @@ from numpy.typing import ArrayLike
 
 from pacing.course.elevation import ElevationSmoothing
 from pacing.course.geometry import DEFAULT_STEP, Course, build_course, validate_track
-from pacing.errors import InputError
+from pacing.errors import InputError, first_line
 from pacing.io.safe_xml import local_name, parse_xml
 
 MAX_GPX_BYTES = 50 * 1024 * 1024
@@ -232,7 +232,7 @@ def read_track(source: str | os.PathLike | bytes | bytearray | memoryview | Any)
     try:
         document = gpxpy.parse(text)
     except (gpxpy.gpx.GPXException, ValueError, TypeError, AttributeError, KeyError) as error:
-        message = str(error).splitlines()[0] if str(error) else type(error).__name__
+        message = first_line(error)
         raise InputError(f"not a valid GPX file: {message}") from None
 
     points, name = _points(document)

@@ -50,7 +50,7 @@ from typing import Any
 import numpy as np
 import pandas as pd
 
-from pacing.errors import InputError
+from pacing.errors import InputError, first_line
 from pacing.fieldtest.ride import Ride, local_position, make_ride
 from pacing.io.safe_xml import local_name, parse_xml
 from pacing.notices import Notice, note
@@ -161,7 +161,7 @@ def _csv_frame(data: bytes) -> pd.DataFrame:
     except pd.errors.EmptyDataError:
         raise InputError("the CSV file is empty") from None
     except (pd.errors.ParserError, UnicodeDecodeError) as error:
-        first = str(error).splitlines()[0] if str(error) else type(error).__name__
+        first = first_line(error)
         raise InputError(f"the CSV file does not parse: {first}") from None
 
 
