@@ -26,9 +26,10 @@ from pacing.compare.sensitivity import (
     sampled_finish_time,
     sensitivity,
 )
+from pacing.constants import STANDARD_GRAVITY
 from pacing.course.geometry import synthetic_course
 from pacing.errors import InputError
-from pacing.physics.cycling import Rider
+from pacing.physics.cycling import MARTIN_1998, Rider
 from pacing.plan.prediction import SimulationOptions
 from pacing.plan.simulate import simulate
 from pacing.weather.conditions import Conditions, air_along_course
@@ -224,3 +225,150 @@ def test_an_uncertainty_must_be_finite_and_not_negative(field):
     for value in (-1e-3, math.nan, math.inf):
         with pytest.raises(InputError, match="uncertainty"):
             Uncertainty(**{field: value})
+
+
+# ------------------------------------------------- moved from tests/test_compare_setups.py
+
+def flat_road(length: float = 10_000.0, step: float = 10.0):
+    """A flat road heading north, pieces of `step` m."""
+    distance = np.arange(0.0, length + step / 2, step)
+    return synthetic_course(distance, np.zeros_like(distance), heading=0.0)
+
+
+def six_km_hill(step: float = 10.0):
+    """6 km heading east: 2 km flat, 2 km at 5 %, 2 km down at 4 %, pieces of `step` m."""
+    distance = np.arange(0.0, 6000.0 + step / 2, step)
+    elevation = np.interp(distance, [0, 2000, 4000, 6000], [100, 100, 200, 120])
+    return synthetic_course(distance, elevation, heading=90.0)
+
+
+def steady_speed(power, drag_area, mass, density, rolling=MARTIN_1998["rolling_coefficient"]):
+    """Independent steady speed on flat ground in still air: scipy brentq on
+    η·P = v·(½ρ(CdA + F_w)v² + Crr·m·g + a + b·v) (Martin et al. 1998, constants of its
+    Table; docs/references.md, "Cycling power balance (Martin et al. 1998)")."""
+    m = MARTIN_1998
+
+    def balance(v):
+        return v * (0.5 * density * (drag_area + m["wheel_drag_area"]) * v**2
+                    + rolling * mass * STANDARD_GRAVITY + m["bearing_force_constant"]
+                    + m["bearing_force_per_speed"] * v) - m["drivetrain_efficiency"] * power
+
+    return optimize.brentq(balance, 0.5, 40.0, xtol=1e-14)
+
+
+def test_cda_sensitivity_matches_the_derivative_of_the_steady_cubic():
+    """Flat, windless course at constant power, started at the steady speed.
+
+    Steady balance (Martin et al. 1998): η·P = v·F(v), F(v) = ½ρ(CdA + F_w)v² + Crr·m·g + a + b·v.
+    Differentiate at constant P with respect to CdA:
+        0 = ½ρv³ + (F + v·F′)·dv/dCdA,  F′ = ρ(CdA + F_w)·v + b
+        ⇒ dv/dCdA = −½ρv³ / (F + v·F′).
+    Time T = L/v ⇒ dT/dCdA = −L/v²·dv/dCdA. Per 0.01 m²: S = 0.01·dT/dCdA.
+    The central difference is second order. The perturbed rides start at the baseline's
+    steady speed and settle to their own within a few hundred metres; that fixed cost (both
+    perturbations shorten the difference, measured 0.15 s on 20 km) is diluted on a 100 km
+    course: agreement within 0.3 %.
+    """
+    length = 100_000.0
+    course = flat_road(length, step=100.0)
+    conditions = Conditions()
+    density = float(air_along_course(course, conditions).density[0])
+    rider = Rider(mass=80.0, drag_area=0.28)
+    v = steady_speed(250.0, 0.28, 80.0, density)
+    m = MARTIN_1998
+    k = 0.5 * density * (0.28 + m["wheel_drag_area"])
+    force = (k * v**2 + m["rolling_coefficient"] * 80.0 * STANDARD_GRAVITY
+             + m["bearing_force_constant"] + m["bearing_force_per_speed"] * v)
+    slope = 2.0 * k * v + m["bearing_force_per_speed"]
+    dv = -0.5 * density * v**3 / (force + v * slope)
+    expected = 0.01 * (-length / v**2 * dv)
+    sens = sensitivity(course, np.full(1000, 250.0), rider, conditions,
+                       SimulationOptions(start_speed=v))
+    assert sens.finish_time == pytest.approx(length / v, rel=1e-5)
+    assert sens.drag_area == pytest.approx(expected, rel=0.003)
+
+
+def test_sensitivity_signs_and_the_wind_forward_difference():
+    course = six_km_hill()
+    conditions = Conditions(wind_speed=0.0, wind_from=90.0)  # forecast: calm; from the east
+    rider = Rider(mass=80.0, drag_area=0.30)
+    sens = sensitivity(course, np.full(600, 250.0), rider, conditions)
+    assert sens.drag_area > 0 and sens.mass > 0 and sens.rolling_coefficient > 0
+    assert sens.power < 0
+    assert sens.wind > 0  # the course heads east: wind from the east is a headwind
+    air_1 = air_along_course(course, Conditions(wind_speed=1.0, wind_from=90.0))
+    direct = simulate(course, 250.0, rider, air_1).finish_time - sens.finish_time
+    assert sens.wind == pytest.approx(direct, rel=1e-12)
+    assert set(sens.per_step()) == set(STEPS)
+
+
+def test_power_sensitivity_is_consistent_with_the_cubic():
+    """On the flat, dT/dP = −L/v²·η/(F + v·F′) (same implicit differentiation); per 10 W.
+    100 km course as in the CdA test, agreement within 0.3 %."""
+    length = 100_000.0
+    course = flat_road(length, step=100.0)
+    conditions = Conditions()
+    density = float(air_along_course(course, conditions).density[0])
+    v = steady_speed(250.0, 0.28, 80.0, density)
+    m = MARTIN_1998
+    k = 0.5 * density * (0.28 + m["wheel_drag_area"])
+    force = (k * v**2 + m["rolling_coefficient"] * 80.0 * STANDARD_GRAVITY
+             + m["bearing_force_constant"] + m["bearing_force_per_speed"] * v)
+    slope = 2.0 * k * v + m["bearing_force_per_speed"]
+    expected = 10.0 * (-length / v**2) * m["drivetrain_efficiency"] / (force + v * slope)
+    sens = sensitivity(course, np.full(1000, 250.0), Rider(mass=80.0, drag_area=0.28),
+                       conditions, SimulationOptions(start_speed=v))
+    assert sens.power == pytest.approx(expected, rel=0.003)
+
+
+def test_linearized_spread_adds_contributions_in_quadrature_and_matches_monte_carlo():
+    course = six_km_hill(step=50.0)  # 120 pieces: many simulations stay fast
+    conditions = Conditions(wind_speed=3.0, wind_from=90.0)
+    rider = Rider(mass=80.0, drag_area=0.30)
+    power = np.full(120, 250.0)
+    options = SimulationOptions(start_speed=8.0)  # rolling start: fewer steps, faster
+    sens = sensitivity(course, power, rider, conditions, options)
+    uncertainty = Uncertainty(drag_area=0.005, rolling_coefficient=0.0003, mass=0.5, wind=0.5)
+    spread = finish_time_spread(sens, uncertainty)
+    parts = spread.contributions
+    assert parts["drag_area"] == pytest.approx(sens.drag_area * 0.5)
+    assert spread.standard_deviation == pytest.approx(
+        np.sqrt(sum(v**2 for v in parts.values())))
+    samples = sampled_finish_time(course, power, rider, conditions, uncertainty, samples=200,
+                                  seed=1, options=options)
+    # 200 normal draws: the sample σ lies within ±10 % of σ about 95 % of the time (χ² with
+    # 199 degrees of freedom); 15 % leaves room for the curvature of the response. The seed
+    # is fixed, so the test is deterministic.
+    assert np.std(samples, ddof=1) == pytest.approx(spread.standard_deviation, rel=0.15)
+    again = sampled_finish_time(course, power, rider, conditions, uncertainty, samples=5,
+                                seed=1, options=options)
+    assert again == pytest.approx(samples[:5])
+
+
+def test_shared_errors_cancel_in_the_difference_of_two_setups():
+    course = six_km_hill(step=50.0)  # 120 pieces: many simulations stay fast
+    conditions = Conditions(wind_speed=3.0, wind_from=90.0)
+    a = Rider(mass=80.0, drag_area=0.30)
+    b = Rider(mass=80.0, drag_area=0.28)
+    power = np.full(120, 250.0)
+    options = SimulationOptions(start_speed=8.0)  # rolling start: fewer steps, faster
+    sens_a = sensitivity(course, power, a, conditions, options)
+    sens_b = sensitivity(course, power, b, conditions, options)
+    shared_only = Uncertainty(drag_area=0.0, rolling_coefficient=0.0005, mass=1.0, wind=1.0)
+    single = finish_time_spread(sens_a, shared_only).standard_deviation
+    difference = difference_spread(sens_a, sens_b, shared_only)
+    assert difference.standard_deviation < 0.15 * single
+    assert difference.contributions["drag_area"] == 0.0
+    sampled = sampled_difference(course, (a, power), (b, power), conditions, shared_only,
+                                 samples=40, seed=3, options=options)
+    assert np.std(sampled, ddof=1) < 0.15 * single
+    own = Uncertainty(drag_area=0.005)
+    both = difference_spread(sens_a, sens_b, own)
+    assert both.standard_deviation == pytest.approx(
+        np.hypot(sens_a.drag_area, sens_b.drag_area) * 0.5)
+
+
+def test_negative_uncertainty_is_refused():
+    with pytest.raises(InputError, match="uncertainty"):
+        Uncertainty(drag_area=-0.01)
+

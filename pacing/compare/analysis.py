@@ -27,6 +27,7 @@ from dataclasses import dataclass, replace
 import numpy as np
 
 from pacing.compare.sensitivity import (
+    DRAW_FLOORS,
     Sensitivity,
     Spread,
     Uncertainty,
@@ -60,10 +61,6 @@ wind 1 m/s are our own round defaults (judgement, from memory), meant to be repl
 
 MAX_SAMPLES = 10_000
 """Most Monte Carlo draws of one comparison (each draw is one simulation per setup)."""
-
-DRAW_FLOORS = {"drag_area": 0.01, "rolling_coefficient": 0.0, "mass": 20.0, "wind": 0.0}
-"""Where pacing.compare.sensitivity cuts a Monte Carlo draw (its _perturbed_time): CdA [m²],
-Crr [-], total mass [kg] and wind speed [m/s] never go below these."""
 
 CLIPPED_SHARE = 0.01
 """Share of the draws cut at a floor above which the user is told [-]."""

@@ -52,6 +52,7 @@ from numpy.typing import ArrayLike
 
 from pacing.course.geometry import Course
 from pacing.errors import InputError
+from pacing.physics.air import DEFAULT_AIR_DENSITY_MODEL
 from pacing.physics.cycling import Rider
 from pacing.plan.prediction import SimulationOptions
 from pacing.plan.simulate import simulate
@@ -148,7 +149,7 @@ def _wind_sensitivity(course: Course, conditions: Conditions, density_model: str
 
 def sensitivity(course: Course, piece_power: ArrayLike, rider: Rider, conditions: Conditions,
                 options: SimulationOptions | None = None,
-                density_model: str = "cipm_2007") -> Sensitivity:
+                density_model: str = DEFAULT_AIR_DENSITY_MODEL) -> Sensitivity:
     """Finish-time sensitivities of a ride by finite differences on the inertial simulation.
 
     S_x = (T(x + h) − T(x − h)) / 2 with the steps h of STEPS (forward differences for Crr and
@@ -365,17 +366,23 @@ def _draws(uncertainty: Uncertainty, samples: int, generator: np.random.Generato
     return generator.standard_normal((samples, scale.size)) * scale
 
 
+DRAW_FLOORS = {"drag_area": 0.01, "rolling_coefficient": 0.0, "mass": 20.0, "wind": 0.0}
+"""Where a Monte Carlo draw is cut (its physical limits): CdA [m²], Crr [-], total mass [kg]
+and wind speed [m/s] never go below these."""
+
+
 def _perturbed_time(course: Course, power: np.ndarray, rider: Rider, conditions: Conditions,
                     options: SimulationOptions | None, density_model: str, d_cda: float,
                     d_crr: float, d_mass: float, d_wind: float) -> float:
-    """Finish time [s] with the errors added, clipped at physical limits (CdA ≥ 0.01 m²,
-    Crr ≥ 0, mass ≥ 20 kg, wind speed ≥ 0)."""
+    """Finish time [s] with the errors added, clipped at physical limits (DRAW_FLOORS)."""
+    floor = DRAW_FLOORS
     changed = replace(rider,
-                      drag_area=np.maximum(rider.drag_area + d_cda, 0.01),
+                      drag_area=np.maximum(rider.drag_area + d_cda, floor["drag_area"]),
                       rolling_coefficient=np.maximum(
-                          np.asarray(rider.rolling_coefficient, dtype=float) + d_crr, 0.0),
-                      mass=max(rider.mass + d_mass, 20.0))
-    wind = replace(conditions, wind_speed=max(conditions.wind_speed + d_wind, 0.0))
+                          np.asarray(rider.rolling_coefficient, dtype=float) + d_crr,
+                          floor["rolling_coefficient"]),
+                      mass=max(rider.mass + d_mass, floor["mass"]))
+    wind = replace(conditions, wind_speed=max(conditions.wind_speed + d_wind, floor["wind"]))
     air = air_along_course(course, wind, density_model)
     return simulate(course, power, changed, air, options).finish_time
 
@@ -390,7 +397,7 @@ def sampled_finish_time(course: Course, piece_power: ArrayLike, rider: Rider,
                         conditions: Conditions, uncertainty: Uncertainty,
                         samples: int = 200, seed: int = 0,
                         options: SimulationOptions | None = None,
-                        density_model: str = "cipm_2007") -> np.ndarray:
+                        density_model: str = DEFAULT_AIR_DENSITY_MODEL) -> np.ndarray:
     """Monte Carlo finish times: normal errors of CdA, Crr, mass and wind speed.
 
     Each draw is clipped at physical limits and ridden by the full simulation; the generator
@@ -445,7 +452,7 @@ def sampled_difference(course: Course, first: tuple[Rider, ArrayLike],
                        second: tuple[Rider, ArrayLike], conditions: Conditions,
                        uncertainty: Uncertainty, samples: int = 200, seed: int = 0,
                        options: SimulationOptions | None = None,
-                       density_model: str = "cipm_2007") -> np.ndarray:
+                       density_model: str = DEFAULT_AIR_DENSITY_MODEL) -> np.ndarray:
     """Monte Carlo T_second − T_first: shared draws of Crr, mass and wind, independent draws
     of each setup's CdA (both with the σ of `uncertainty`).
 
