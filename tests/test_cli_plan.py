@@ -224,3 +224,30 @@ def test_target_time_beyond_any_rider_is_refused(capsys, route):
     assert code == 2 and captured.out == ""
     lines = captured.err.strip().splitlines()
     assert len(lines) == 1 and "2000 W" in lines[0] and "--target-time" in lines[0]
+
+
+# moved from tests/test_plan_cycling.py: the strategies through the command line
+
+def test_command_line_fastest_plan_json(capsys, route):
+    code = main(["plan", route, "--strategy", "fastest", "--power", "250", "--cp", "270",
+                 "--w-prime", "15000", "--w-prime-reserve", "1000", "--max-power-ratio", "1.3",
+                 "--json"])
+    captured = capsys.readouterr()
+    assert code == 0, captured.err
+    result = json.loads(captured.out)
+    assert result["strategy"] == "fastest"
+    assert result["time_saved_s"] > 0
+    assert result["min_w_prime_balance_j"] >= 1000.0 - 1e-6
+    assert result["average_power_w"] == pytest.approx(250.0, abs=0.02)
+    for segment in result["segments"]:
+        assert {"power_w", "w_prime_balance_j", "ridden_power_w"} <= set(segment)
+        assert segment["power_w"] <= 1.3 * 270.0 + 1e-6
+
+
+def test_command_line_unreachable_target_time_is_one_line(capsys, route):
+    code = main(["plan", route, "--strategy", "target-time", "--target-time", "0:06:00",
+                 "--cp", "270", "--w-prime", "15000"])
+    captured = capsys.readouterr()
+    assert code == 2 and captured.out == ""
+    lines = captured.err.strip().splitlines()
+    assert len(lines) == 1 and "not reachable" in lines[0]

@@ -276,59 +276,6 @@ def test_a_plan_without_its_mean_power_or_target_time_is_refused(fields):
         make_plan(course, bounds, RIDER, air, request, FLYING)
 
 
-# ------------------------------------------------------------- command line
-
-
-@pytest.fixture(scope="module")
-def hill_route(tmp_path_factory):
-    """A 6 km GPX course heading north: flat, a 5 % climb, a descent."""
-    pytest.importorskip("pacing.io.gpx")
-    metres_per_degree = 111_195.0
-    distance = np.arange(0.0, 6001.0, 25.0)
-    elevation = np.interp(distance, [0, 2000, 4000, 6000], [100, 100, 200, 120])
-    points = "\n".join(
-        f'<trkpt lat="{45.0 + d / metres_per_degree:.7f}" lon="6.0000000">'
-        f"<ele>{e:.2f}</ele></trkpt>"
-        for d, e in zip(distance, elevation, strict=True))
-    text = ('<?xml version="1.0" encoding="UTF-8"?>\n'
-            '<gpx version="1.1" creator="tests" xmlns="http://www.topografix.com/GPX/1/1">'
-            f"<trk><name>hill</name><trkseg>\n{points}\n</trkseg></trk></gpx>\n")
-    path = tmp_path_factory.mktemp("routes") / "hill.gpx"
-    path.write_text(text, encoding="utf-8")
-    return str(path)
-
-
-def test_command_line_fastest_plan_json(capsys, hill_route):
-    import json
-
-    from pacing.cli import main
-
-    code = main(["plan", hill_route, "--strategy", "fastest", "--power", "250", "--cp", "270",
-                 "--w-prime", "15000", "--w-prime-reserve", "1000", "--max-power-ratio", "1.3",
-                 "--json"])
-    captured = capsys.readouterr()
-    assert code == 0, captured.err
-    result = json.loads(captured.out)
-    assert result["strategy"] == "fastest"
-    assert result["time_saved_s"] > 0
-    assert result["min_w_prime_balance_j"] >= 1000.0 - 1e-6
-    assert result["average_power_w"] == pytest.approx(250.0, abs=0.02)
-    for segment in result["segments"]:
-        assert {"power_w", "w_prime_balance_j", "ridden_power_w"} <= set(segment)
-        assert segment["power_w"] <= 1.3 * 270.0 + 1e-6
-
-
-def test_command_line_unreachable_target_time_is_one_line(capsys, hill_route):
-    from pacing.cli import main
-
-    code = main(["plan", hill_route, "--strategy", "target-time", "--target-time", "0:06:00",
-                 "--cp", "270", "--w-prime", "15000"])
-    captured = capsys.readouterr()
-    assert code == 2 and captured.out == ""
-    lines = captured.err.strip().splitlines()
-    assert len(lines) == 1 and "not reachable" in lines[0]
-
-
 # ------------------------------------------------------------- finer segments are never slower
 
 

@@ -4,8 +4,9 @@ and the app read, each entry with its published basis, what it needs and where i
 from __future__ import annotations
 
 import pytest
+from samples import north_hill_gpx
 
-from pacing.cli.plan import CYCLING_STRATEGIES, RUNNING_STRATEGIES
+from pacing.cli import main
 from pacing.errors import InputError
 from pacing.plan.strategies import SPORTS, STRATEGIES, strategy_for
 
@@ -26,9 +27,15 @@ def test_every_strategy_says_what_it_is_and_what_it_needs(strategy):
     assert callable(strategy.make) and callable(strategy.targets) and callable(strategy.notices)
 
 
-def test_the_command_line_offers_exactly_the_registered_strategies():
-    assert tuple(STRATEGIES["cycling"]) == CYCLING_STRATEGIES
-    assert tuple(STRATEGIES["running"]) == RUNNING_STRATEGIES
+@pytest.mark.parametrize("sport", SPORTS)
+def test_the_command_line_names_every_registered_strategy_when_refusing_one(
+        sport, capsys, tmp_path):
+    route = tmp_path / "hill.gpx"
+    route.write_text(north_hill_gpx(), encoding="utf-8")
+    flags = ["--power", "200"] if sport == "cycling" else ["--flat-pace", "5:00"]
+    assert main(["plan", str(route), "--sport", sport, "--strategy", "sprint", *flags]) == 2
+    refusal = capsys.readouterr().err
+    assert all(key in refusal for key in STRATEGIES[sport]), refusal
 
 
 def test_an_unknown_strategy_names_the_choices():
