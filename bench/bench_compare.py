@@ -11,13 +11,15 @@ import time
 
 import numpy as np
 
+from pacing.compare.break_even import break_even
+from pacing.compare.mixed import mixed_plan
 from pacing.compare.sensitivity import (
     Uncertainty,
     finish_time_spread,
     sampled_finish_time,
     sensitivity,
 )
-from pacing.compare.setups import RiderSetup, break_even, compare_setups, mixed_plan
+from pacing.compare.setups import RiderSetup, compare_setups
 from pacing.course.segments import split_by_grade
 from pacing.io.gpx import demo_route_paths, load_course
 from pacing.physics.cycling import Rider

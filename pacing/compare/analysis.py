@@ -26,6 +26,8 @@ from dataclasses import dataclass, replace
 
 import numpy as np
 
+from pacing.compare.break_even import BreakEven, break_even
+from pacing.compare.mixed import MixedPlan, mixed_plan
 from pacing.compare.sensitivity import (
     DRAW_FLOORS,
     Sensitivity,
@@ -37,16 +39,7 @@ from pacing.compare.sensitivity import (
     sampled_finish_time,
     sensitivity,
 )
-from pacing.compare.setups import (
-    BreakEven,
-    Comparison,
-    MixedPlan,
-    RiderSetup,
-    SetupResult,
-    break_even,
-    compare_setups,
-    mixed_plan,
-)
+from pacing.compare.setups import Comparison, RiderSetup, SetupResult, compare_setups
 from pacing.errors import InputError
 from pacing.notices import Notice, note
 from pacing.plan.race import RaceRequest
