@@ -24,4 +24,4 @@ def first_line(error: BaseException) -> str:
     'ZeroDivisionError'
     """
     text = str(error).strip()
-    return text.splitlines()[0] if text else type(error).__name__
+    return text.splitlines()[0].strip() if text else type(error).__name__

@@ -9,7 +9,7 @@ from pathlib import Path
 import pytest
 
 from pacing.display.notices import WORDS, describe, labelled
-from pacing.notices import Notice, note, warning
+from pacing.notices import Notice, note
 
 ROOT = Path(__file__).resolve().parents[1]
 CODE = re.compile(r"\b(?:warning|note|Notice)\(\s*\"([a-z0-9-]+)\"")
@@ -28,16 +28,6 @@ def codes_made_by_the_core() -> set[str]:
 @pytest.mark.parametrize("code", sorted(codes_made_by_the_core()))
 def test_every_code_of_the_core_has_words(code):
     assert code in WORDS
-
-
-def test_a_notice_is_data_with_a_level():
-    made = warning("w-prime-exhausted", distance_m=3800.0)
-    assert made == Notice("w-prime-exhausted", {"distance_m": 3800.0}, "warning")
-    assert note("x").level == "note"
-    assert made.as_dict() == {"code": "w-prime-exhausted", "level": "warning",
-                              "values": {"distance_m": 3800.0}}
-    with pytest.raises(ValueError):
-        Notice("x", {}, "shout")
 
 
 def test_an_unknown_code_still_reaches_the_user_with_its_values():
