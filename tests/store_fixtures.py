@@ -1,4 +1,5 @@
-"""Shared fixtures and sample entries of the store tests (tests/test_store_*.py).
+"""Shared fixtures and sample entries of the store tests (tests/test_store_*.py): a GPX file
+and a format version 1 library file (VERSION_1_FILE) among them.
 
 `database` is the location of an empty library database: an SQLite file in tmp_path and, with
 the `postgres` marker, the PostgreSQL server named by PACING_TEST_POSTGRES_URL
@@ -30,6 +31,32 @@ GPX = ("\ufeff<?xml version=\"1.0\" encoding=\"UTF-8\"?>\r\n"
        "  <trkpt lat=\"45.1\" lon=\"6.1\"><ele>700.0</ele></trkpt>\r\n"
        "  <trkpt lat=\"45.2\" lon=\"6.2\"><ele>1710.5</ele></trkpt>\r\n"
        " </trkseg></trk>\r\n</gpx>").encode("utf-8")
+
+
+# A library file exactly as format version 1 defines it (pacing/store/library_file.py). Later
+# versions of pacing must keep importing it.
+VERSION_1_FILE = """{
+ "format": "pacing library", "format_version": 1,
+ "exported_at": "2026-12-01T22:30:00+00:00", "exported_by": "pacing 0.1.0",
+ "athletes": [{"id": 3, "name": "Ann", "body_mass": 61.0, "critical_power": 250.0,
+   "w_prime": 18000.0, "height": 1.68, "flat_pace": null, "critical_speed": null,
+   "d_prime": null, "created_at": "2026-11-30T08:00:00+00:00",
+   "updated_at": "2026-11-30T09:00:00+01:00",
+   "setups": [{"id": 8, "name": "TT bike", "bike_mass": 8.9, "drag_area": 0.23,
+     "power_share": 0.95, "rolling_coefficient": 0.003, "drivetrain_efficiency": 0.976,
+     "yaw_drag_table": [[0.0, 1.0], [10.0, 0.93]],
+     "created_at": "2026-11-30T08:00:00+00:00", "updated_at": "2026-11-30T08:00:00+00:00"}]}],
+ "courses": [{"id": 5, "name": "Tiny", "distance_m": 1000.0, "ascent_m": 12.5,
+   "gpx_sha256": "b53b9a7e7640220fe6efaa08ad97e8d5db0deef003a7335b8b44666137b08906",
+   "gpx_base64": "PGdweC8+",
+   "created_at": "2026-11-30T08:00:00+00:00", "updated_at": "2026-11-30T08:00:00+00:00"}],
+ "plans": [{"id": 9, "name": "Race day",
+   "inputs": {"athlete_id": 3, "setup_id": 8, "course_id": 5, "power": 230.0},
+   "strategy": "constant", "weather": null,
+   "targets": [{"segment": 1, "power": 230.0, "time": 95.5}],
+   "time_saved": null, "finish_time": 95.5, "library_version": "0.1.0", "notes": "",
+   "created_at": "2026-11-30T08:00:00+00:00", "updated_at": "2026-11-30T08:00:00+00:00"}]
+}"""
 
 
 # ---------------------------------------------------------------------------------------------

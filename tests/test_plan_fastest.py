@@ -7,6 +7,7 @@ docs/references.md, "Cycling power balance (Martin et al. 1998)" [calc]); Bos, S
 Slawinski & Stanoev (2024), arXiv:2403.03363 (abstract [read]: constant ground speed is the
 fastest ascent under a mean-power constraint). Reference optimisers: scipy.optimize.minimize
 (SLSQP on the full problem, COBYLA) on the balance and W′ balance written out again here.
+The coarse start (a finer split is never slower) is specified in tests/test_plan_coarse_start.py.
 """
 
 from __future__ import annotations
@@ -70,19 +71,6 @@ def random_course(seed: int):
     air = CourseAir(np.full(pieces, 1.15), rng.uniform(-5.0, 5.0, 12)[section],
                     rng.uniform(-3.0, 3.0, 12)[section])
     return course, np.arange(0, distance.size, 25), air
-
-
-@lru_cache
-def hill_loop():
-    """A 40 km loop of six Gaussian hills of 35-150 m, straight, still air, 10 m steps."""
-    distance = np.arange(0.0, 40000.0 + 5.0, 10.0)
-    hills = [(4_500, 55, 800), (11_000, 120, 1_400), (17_500, 40, 500), (24_000, 150, 1_900),
-             (31_000, 70, 800), (36_500, 35, 450)]
-    elevation = np.full_like(distance, 85.0)
-    for centre, height, width in hills:
-        elevation += height * np.exp(-0.5 * ((distance - centre) / width) ** 2)
-    course = synthetic_course(distance, elevation)
-    return course, still_air(course, 1.2)
 
 
 def model_of(course_maker):
@@ -355,32 +343,7 @@ def test_a_mean_power_that_drains_w_prime_on_every_plan_is_refused():
         fastest_steady_plan(model, request)
 
 
-# ------------------------------------------------------------- finer splits and warm starts
-
-HILL_LOOP_RIDER = Rider(mass=80.0, drag_area=0.30, rolling_coefficient=0.0032)
-HILL_LOOP_REQUEST = PlanRequest(strategy="fastest", mean_power=250.0, critical_power=270.0,
-                                w_prime=20000.0)
-
-
-def test_steady_fastest_plan_on_a_split_is_not_slower_than_on_a_coarser_split_inside_it():
-    # Any plan on a coarser split is also a plan on a finer one whose ends include the coarse
-    # ends (each fine segment at its coarse segment's power), so the fastest plan can only get
-    # faster as the segments get finer (mathematical fact): every 1 km, 500 m, 100 m.
-    from pacing.course.segments import split_every
-
-    course, air = hill_loop()
-    times = []
-    for length in (1000.0, 500.0, 100.0):
-        model = segment_model(course, split_every(course, length), HILL_LOOP_RIDER, air)
-        power, report = fastest_steady_plan(model, HILL_LOOP_REQUEST)
-        balance = w_prime_balance(power, steady_segment_times(model, power)[0], 270.0, 20000.0)
-        assert balance.min() >= -1e-6 * 20000.0 * 5  # the solver's slack
-        assert time_weighted_mean(model, power) == pytest.approx(250.0, rel=1e-6)
-        assert report.method.startswith("grouped+")  # it started from the coarser problem
-        times.append(steady_total(model, power))
-    assert times[1] <= times[0] * 1.0005
-    assert times[2] <= times[1] * 1.0005
-
+# ------------------------------------------------------------- warm starts
 
 def test_a_correction_round_started_from_the_previous_plan_is_as_good_as_a_fresh_solve():
     # The verifying rounds move the solver's W′ reserve a little and start from the previous

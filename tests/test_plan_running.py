@@ -1,5 +1,5 @@
 """Running plans (pacing.plan.running): equal effort, even pace, fastest under critical speed
-and D′, and their target rows.
+and D′. Their segment and target rows are tested in tests/test_plan_running_plan.py.
 
 Each check names its source; check values are in docs/references.md, "Running". The courses
 and runners are those of tests/test_physics_running.py. The even paces and the D′ balance the
@@ -23,7 +23,8 @@ from test_physics_running import (
 
 from pacing.course.geometry import synthetic_course
 from pacing.errors import InputError
-from pacing.physics.running import metabolic_power, running_cost_minetti
+from pacing.physics.running import metabolic_power
+from pacing.physics.running_cost import running_cost_minetti
 from pacing.physiology.critical_speed import critical_speed_flat_race_time
 from pacing.plan.even_pace import (
     even_pace_for_mean_power,
@@ -35,7 +36,6 @@ from pacing.plan.running import (
     plan_equal_effort,
     plan_even_pace,
     plan_fastest,
-    running_targets,
 )
 
 # --------------------------------------------------------------------------- equal effort, grades
@@ -174,16 +174,6 @@ def test_plan_time_is_the_sum_of_length_over_speed(amplitude, pace):
     assert plan.finish_time == pytest.approx(np.sum(course.piece_length / plan.speed))
     assert sum(row.time for row in plan.segments) == pytest.approx(plan.finish_time)
     assert plan.distance == pytest.approx(course.total_distance)
-
-
-def test_plan_rows_convert_to_segment_targets():
-    course = straight_course(3000.0, grade=0.02)
-    plan = plan_equal_effort(course, average_runner(), FIVE_MINUTES_PER_KM)
-    rows = running_targets(plan)
-    assert [row.index for row in rows] == [0, 1, 2]
-    assert rows[-1].cumulative_time == pytest.approx(plan.finish_time)
-    assert all(row.target_power is None for row in rows)
-    assert rows[0].target_pace == pytest.approx(1000.0 / plan.speed[0])
 
 
 def test_capped_descents_lower_the_mean_effort():
@@ -333,11 +323,3 @@ def test_any_plan_shows_its_d_prime_balance_when_critical_speed_is_given():
     assert plan_equal_effort(course, NO_AIR, flat_speed).d_prime_balance is None
     with pytest.raises(InputError):
         plan_equal_effort(course, NO_AIR, flat_speed, critical_speed=4.94)
-
-
-def test_segment_rows_carry_their_fastest_piece():
-    course = hill_course(40.0)
-    plan = plan_equal_effort(course, average_runner(), FIVE_MINUTES_PER_KM)
-    assert max(row.max_speed for row in plan.segments) == pytest.approx(plan.max_speed)
-    assert all(row.max_speed >= row.speed for row in plan.segments)
-    assert plan.max_speed == pytest.approx(DOWNHILL_SPEED_RATIO_CAP * FIVE_MINUTES_PER_KM)

@@ -41,7 +41,7 @@ from pacing.store.database import (
     schema_revision,
 )
 from pacing.store.library import open_library
-from pacing.store.library_file import export_library
+from pacing.store.library_export import export_library
 
 
 def test_postgres_runs_fail_rather_than_skip_under_ci(monkeypatch):

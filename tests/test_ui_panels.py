@@ -394,26 +394,13 @@ def test_conflicts_read_as_changed_in_another_window(tmp_path):
 
 def test_page_values_use_the_page_keys():
     from pacing.athlete import Athlete, Setup
+    from ui.library_page_state import PAGE_WIDGETS
 
     values = library_data.page_values(Athlete(name="Ann", body_mass=61.0, critical_power=250.0),
                                        Setup(name="TT", drag_area=0.23, bike_mass=9.0))
     assert values["body_mass"] == 61.0 and values["drag_area"] == 0.23
     assert values["bike_mass"] == 9.0 and "flat_pace" not in values  # unknowns left out
-    assert set(values) <= set(library_data.PAGE_WIDGETS) | {"power_share", "flat_pace"}
-
-
-def test_a_saved_plan_says_which_pacing_made_it(monkeypatch):
-    import types
-
-    import pacing
-
-    monkeypatch.setattr(pacing, "__version__", "0.2.0")
-    same = types.SimpleNamespace(library_version="0.2.0")
-    older = types.SimpleNamespace(library_version="0.1.0")
-    assert library_data.version_caption(same) == "made with pacing 0.2.0"
-    caption = library_data.version_caption(older)
-    assert caption.startswith("made with pacing 0.1.0; this is pacing 0.2.0")
-    assert "other numbers" in caption
+    assert set(values) <= set(PAGE_WIDGETS) | {"power_share", "flat_pace"}
 
 
 def library_page(location: str):
@@ -456,7 +443,7 @@ def library_page(location: str):
 def library_state(path) -> dict:
     """Everything in the library file but the export stamp (to see that nothing changed)."""
     from pacing.store.library import open_library
-    from pacing.store.library_file import export_library
+    from pacing.store.library_export import export_library
 
     with open_library(path) as library:
         data = export_library(library)
@@ -538,7 +525,7 @@ def test_a_bad_library_file_is_refused_and_changes_nothing(tmp_path, content):
 def test_a_good_library_file_is_brought_in(tmp_path):
     from pacing.athlete import Athlete, Setup
     from pacing.store.library import open_library
-    from pacing.store.library_file import dump_library_file
+    from pacing.store.library_export import dump_library_file
 
     with open_library(tmp_path / "other.sqlite3") as other:
         bea = other.add_athlete(Athlete(name="Bea", body_mass=58.0))
@@ -612,7 +599,8 @@ def loop_ride_csv(drag_area: float = 0.30, rolling: float = 0.005,
 
 
 def test_the_synthetic_ride_uses_the_panels_air_density():
-    from pacing.physics.air import AIR_DENSITY_MODELS, standard_pressure
+    from pacing.physics.air import AIR_DENSITY_MODELS
+    from pacing.physics.atmosphere import standard_pressure
 
     density = float(AIR_DENSITY_MODELS["cipm_2007"](20.0, standard_pressure(0.0), 0.5))
     assert density == pytest.approx(AIR_DENSITY, rel=1e-5)
@@ -806,51 +794,6 @@ def test_library_mount_without_a_course_still_offers_the_library(tmp_path):
     no_failure(app)
     assert not app.error
     assert any("no plan to save" in c.value for c in app.caption)
-
-
-# ------------------------------------------------------------ a saved plan back in the page
-
-def test_a_plan_saved_without_its_segment_choice_reopens_on_the_same_bounds():
-    # Plans saved before the segment choice was kept carry only their bounds: the page gets
-    # them back as "my own marks" at those points' distances, in the page's units.
-    import numpy as np
-
-    from pacing.course.geometry import synthetic_course
-    from ui.pipeline import segment_bounds
-
-    distance = np.linspace(0.0, 12340.0, 1235)
-    course = synthetic_course(distance, 100 + 30 * np.sin(distance / 900.0))
-    bounds = [0, 137, 640, 1001, 1234]
-    for system in ("metric", "imperial"):
-        state = library_data.plan_page_state({"bounds": bounds}, system, course)
-        assert state["split_mode"] == "my own marks"
-        from pacing.display.units import from_display
-        from ui.pipeline import parse_marks
-
-        marks = tuple(from_display(v, "distance", system)
-                      for v in parse_marks(state["split_marks"]))
-        assert segment_bounds(course, "my own marks", None, marks).tolist() == bounds
-
-
-def test_plan_page_state_sets_the_approach_terrain_and_smoothing():
-    inputs = {"athlete": {"sport": "cycling", "body_mass": 65.0, "drag_area": 0.25},
-              "weather": {"wind_speed": 5.0, "roughness_length": 0.03},
-              "approach": {"strategy": "target-time", "target_time": 3725.0,
-                           "allow_zero_on_descents": True},
-              "smoothing": {"window": 150.0, "max_grade": 0.2, "allow_flat": True},
-              "split": {"mode": "fixed length", "length": 2000.0, "marks": []}}
-    state = library_data.plan_page_state(inputs, "metric")
-    assert state["approach"] == "Reach a finish time"
-    assert state["target_time"] == "1:02:05"
-    assert state["coast_descents"] is True
-    assert state["si:body_mass"] == 65.0 and state["si:wind_speed"] == 5.0
-    assert state["si:smooth_window"] == 150.0 and state["si:max_grade_pct"] == pytest.approx(20)
-    assert state["allow_flat"] is True
-    assert state["split_mode"] == "fixed length" and state["si:split_length"] == 2000.0
-    assert state["cda_preset"] == "my own value"
-    from pacing.physics.wind import ROUGHNESS_LENGTHS
-
-    assert ROUGHNESS_LENGTHS[state["terrain"]] == 0.03
 
 
 def test_running_notes_show_paces_per_mile_in_imperial():

@@ -10,7 +10,8 @@ from hypothesis import strategies as st
 
 from pacing.course.geometry import synthetic_course
 from pacing.errors import InputError
-from pacing.physics.air import air_density, air_density_ideal_gas, standard_pressure
+from pacing.physics.air import air_density, air_density_ideal_gas
+from pacing.physics.atmosphere import standard_pressure
 from pacing.weather.conditions import (
     Conditions,
     CourseAir,

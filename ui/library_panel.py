@@ -3,8 +3,9 @@ plan saved with its course, saved plans reopened and worked out again, deletes t
 and the whole library as a JSON file to take away or bring in.
 
 All storage goes through pacing.store (SQLAlchemy; SQLite file by default, any URL through
-PACING_DATABASE_URL). Pure helpers build the plan inputs and results, the tables and the page
-values (ui.library_data); `render_library` draws the panel with Streamlit.
+PACING_DATABASE_URL). Pure helpers build the plan inputs and results (ui.library_data), the
+page's widget states of a saved plan (ui.library_page_state) and the tables
+(ui.library_tables); `render_library` draws the panel with Streamlit.
 
 Plan inputs saved by this panel (`page_plan_inputs`, all SI)::
 
@@ -32,21 +33,17 @@ from pacing.display.units import format_duration
 from pacing.errors import ConflictError, InputError
 from ui.library_data import (
     LIBRARY_COURSE,
-    PAGE_WIDGETS,
     athlete_from_page,
     error_message,
-    inputs_summary,
     library_compute,
     page_plan_inputs,
     page_values,
-    plan_page_state,
     plan_result,
-    plans_table,
     save_current_plan,
     setup_from_page,
-    targets_frame,
-    version_caption,
 )
+from ui.library_page_state import PAGE_WIDGETS, plan_page_state
+from ui.library_tables import inputs_summary, plans_table, targets_frame, version_caption
 
 # ------------------------------------------------------------------------ page inputs
 
@@ -411,7 +408,8 @@ def _delete_plan(library, record) -> None:
 
 def _backup_tab(library) -> None:
     """The "Backup" tab: download the library file, or bring one in (all or nothing)."""
-    from pacing.store.library_file import dump_library_file, import_library
+    from pacing.store.library_export import dump_library_file
+    from pacing.store.library_import import import_library
 
     st.download_button("Download the library (JSON)",
                        functools.partial(dump_library_file, library),

@@ -305,7 +305,7 @@ def _cell(value: Any) -> str:
 
 def _export(library: Library, args: argparse.Namespace) -> int:
     """``library export``: the library file to standard output or to -o FILE."""
-    from pacing.store.library_file import dump_library_file
+    from pacing.store.library_export import dump_library_file
 
     text = dump_library_file(library, args.athlete)
     if args.output is None or args.output == "-":
@@ -318,7 +318,7 @@ def _export(library: Library, args: argparse.Namespace) -> int:
 
 def _import(library: Library, args: argparse.Namespace) -> int:
     """``library import FILE``: add a library file's entries ('-' reads standard input)."""
-    from pacing.store.library_file import import_library
+    from pacing.store.library_import import import_library
 
     if args.file == "-":
         data = sys.stdin.buffer.read()

@@ -28,7 +28,8 @@ from pacing.display.notices import describe_all
 from pacing.errors import InputError
 from pacing.physics.running import RUNNING_SPEED_RANGE, Runner
 from pacing.physiology.critical_speed import critical_speed_flat_race_time
-from pacing.plan.running import DOWNHILL_SPEED_RATIO_CAP, RunningPlan
+from pacing.plan.running import DOWNHILL_SPEED_RATIO_CAP
+from pacing.plan.running_plan import RunningPlan
 
 if TYPE_CHECKING:
     from pacing.course.geometry import Course
@@ -291,7 +292,7 @@ def make_plan(args: argparse.Namespace) -> RaceResult:
     Returns
     -------
     pacing.plan.race.RaceResult
-        The plan (pacing.plan.running.RunningPlan), its target rows and notices [-].
+        The plan (pacing.plan.running_plan.RunningPlan), its target rows and notices [-].
 
     Raises
     ------
@@ -326,7 +327,7 @@ def plan_as_dict(plan: RunningPlan, runner: Runner | None = None) -> dict[str, A
 
     Parameters
     ----------
-    plan : pacing.plan.running.RunningPlan
+    plan : pacing.plan.running_plan.RunningPlan
         The plan [-].
     runner : pacing.physics.running.Runner or None, optional
         The runner, to add body_mass_kg [kg] and drag_area_m2 [m²] [-].
@@ -397,7 +398,7 @@ def plan_as_table(plan: RunningPlan, runner: Runner | None = None) -> str:
 
     Parameters
     ----------
-    plan : pacing.plan.running.RunningPlan
+    plan : pacing.plan.running_plan.RunningPlan
         The plan [-].
     runner : pacing.physics.running.Runner or None, optional
         The runner, to name body mass [kg] and CdA [m²] in the title [-].

@@ -23,12 +23,8 @@ from numpy.typing import ArrayLike
 
 from pacing.errors import InputError
 from pacing.notices import Notice, note
-from pacing.physics.air import (
-    AIR_DENSITY_MODELS,
-    DEFAULT_AIR_DENSITY_MODEL,
-    standard_pressure,
-    temperature_at_elevation,
-)
+from pacing.physics.air import AIR_DENSITY_MODELS, DEFAULT_AIR_DENSITY_MODEL
+from pacing.physics.atmosphere import standard_pressure, temperature_at_elevation
 from pacing.physics.wind import wind_components
 from pacing.weather.conditions import Conditions, CourseAir
 
@@ -477,9 +473,10 @@ def ride_air(ride: Ride, conditions: Conditions,
              density_model: str = DEFAULT_AIR_DENSITY_MODEL) -> CourseAir:
     """Air density, headwind and crosswind on each piece of a ride.
 
-    Pressure from the sea-level pressure and the ride's elevation (ICAO standard atmosphere;
-    sea level when the ride has no elevation), temperature given at the first piece's elevation
-    with the standard lapse rate, humid-air density by CIPM-2007 (pacing.physics.air); wind
+    Pressure from the sea-level pressure and the ride's elevation (ICAO standard atmosphere,
+    pacing.physics.atmosphere; sea level when the ride has no elevation), temperature given at
+    the first piece's elevation with the standard lapse rate, humid-air density by CIPM-2007
+    (pacing.physics.air); wind
     reduced to rider height by the log profile and split by the direction of travel
     (pacing.physics.wind).
 

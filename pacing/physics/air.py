@@ -1,17 +1,13 @@
-"""Air density along a course: standard atmosphere, lapse rate and humid air.
+"""Density of humid air: saturation vapour pressure, CIPM-2007 and an ideal-gas mixture.
 
-Units (see DEVELOPERS.md): elevation [m] above mean sea level (geometric, as in a GPX file),
-pressure [Pa], temperature [°C], relative humidity as a fraction 0..1, density [kg/m³].
+Units (see DEVELOPERS.md): pressure [Pa], temperature [°C], relative humidity as a fraction 0..1,
+density [kg/m³].
 
-The chain used for a course (pacing.weather.conditions):
-
-1. pressure at each elevation from the ICAO standard atmosphere, scaled by the day's
-   sea-level pressure (`standard_pressure`);
-2. temperature given at the start, following the standard lapse rate elsewhere
-   (`temperature_at_elevation`);
-3. density of humid air by CIPM-2007 (`air_density`) or an ideal-gas mixture
-   (`air_density_ideal_gas`); both are listed in `AIR_DENSITY_MODELS` ("cipm-2007", the
-   default, and "ideal-gas"; the old keys "cipm_2007" and "ideal_gas" are still accepted).
+The last step of the chain used for a course (pacing.weather.conditions), after pressure and
+temperature at each elevation (pacing.physics.atmosphere): density of humid air by CIPM-2007
+(`air_density`) or an ideal-gas mixture (`air_density_ideal_gas`); both are listed in
+`AIR_DENSITY_MODELS` ("cipm-2007", the default, and "ideal-gas"; the old keys "cipm_2007" and
+"ideal_gas" are still accepted).
 
 Check values for every formula here are in docs/references.md, "Air".
 
@@ -20,8 +16,6 @@ convention, also below 0 °C).
 
 References
 ----------
-ICAO (1993). Manual of the ICAO Standard Atmosphere, Doc 7488/3; ISO 2533:1975 Standard
-Atmosphere.
 Picard, A., Davis, R.S., Gläser, M. & Fujii, K. (2008). Revised formula for the density of moist
 air (CIPM-2007). Metrologia 45(2):149-155. doi:10.1088/0026-1394/45/2/004
 Davis, R.S. (1992). Equation for the determination of the density of moist air (1981/91).
@@ -31,6 +25,7 @@ temperature, and enhancement factors in the range -100 to +100 °C. Proc. 3rd In
 Symposium on Humidity & Moisture, NPL, London, pp. 214-221.
 Alduchov, O.A. & Eskridge, R.E. (1996). Improved Magnus form approximation of saturation vapor
 pressure. J Appl Meteorol 35(4):601-609.
+ICAO (1993). Manual of the ICAO Standard Atmosphere, Doc 7488/3 (R_d of dry air).
 """
 
 from __future__ import annotations
@@ -41,27 +36,13 @@ import numpy as np
 from numpy.typing import ArrayLike
 
 from pacing.constants import (
-    EARTH_RADIUS_GEOPOTENTIAL,
     SPECIFIC_GAS_CONSTANT_DRY_AIR,
     SPECIFIC_GAS_CONSTANT_WATER_VAPOUR,
-    STANDARD_GRAVITY,
-    STANDARD_LAPSE_RATE,
-    STANDARD_SEA_LEVEL_PRESSURE,
-    STANDARD_SEA_LEVEL_TEMPERATURE,
     ZERO_CELSIUS,
 )
 from pacing.errors import InputError
+from pacing.physics.inputs import check_humidity, check_pressure, check_temperature, finite_array
 from pacing.physics.registry import ModelRegistry
-
-TEMPERATURE_RANGE = (-60.0, 60.0)
-"""Air temperatures accepted [°C]; outside them the input is almost surely a mistake."""
-
-GEOPOTENTIAL_HEIGHT_RANGE = (-2000.0, 11000.0)
-"""Geopotential heights where the troposphere formula holds [m] (ISO 2533 tabulates the
-troposphere from -2000 m to the tropopause at 11000 m)."""
-
-PRESSURE_EXPONENT = STANDARD_GRAVITY / (STANDARD_LAPSE_RATE * SPECIFIC_GAS_CONSTANT_DRY_AIR)
-"""g0 / (L·R) of the ICAO troposphere, 5.25588 [-]."""
 
 CIPM_2007 = {
     "molar_gas_constant": 8.314472,
@@ -111,195 +92,6 @@ DEFAULT_CO2_MOLE_FRACTION = 0.0004
 """CO2 mole fraction assumed by CIPM-2007 unless measured [-]."""
 
 
-# --- input checks -----------------------------------------------------------------------------
-
-
-def finite_array(value: ArrayLike, name: str) -> np.ndarray:
-    """`value` as a float array, or InputError naming `name` when it is not a finite number.
-
-    The one input check of pacing.physics.air and pacing.physics.wind.
-
-    Parameters
-    ----------
-    value : float or array_like
-        The number or numbers to check [any unit].
-    name : str
-        How the value is named in the one-line error message [-].
-
-    Returns
-    -------
-    numpy.ndarray
-        `value` as floats, 0-d for a scalar [unit of `value`].
-    """
-    try:
-        array = np.asarray(value, dtype=float)
-    except (TypeError, ValueError):
-        raise InputError(f"{name} must be a number, got {value!r}") from None
-    if not np.all(np.isfinite(array)):
-        raise InputError(f"{name} must be a finite number, got {_first_bad(array)}")
-    return array
-
-
-def _first_bad(array: np.ndarray, ok: np.ndarray | None = None) -> float:
-    flat = np.ravel(array)
-    bad = ~np.isfinite(flat) if ok is None else ~np.ravel(np.broadcast_to(ok, array.shape))
-    return float(flat[np.argmax(bad)])
-
-
-def _check_range(array: np.ndarray, low: float, high: float, message: str) -> None:
-    ok = (array >= low) & (array <= high)
-    if not np.all(ok):
-        raise InputError(f"{message}, got {_first_bad(array, ok):g}")
-
-
-def _check_temperature(temperature: ArrayLike, name: str = "temperature") -> np.ndarray:
-    array = finite_array(temperature, name)
-    low, high = TEMPERATURE_RANGE
-    _check_range(array, low, high, f"{name} must be between {low:g} and {high:g} °C")
-    return array
-
-
-def _check_pressure(pressure: ArrayLike, name: str = "pressure") -> np.ndarray:
-    array = finite_array(pressure, name)
-    if not np.all(array > 0):
-        raise InputError(f"{name} must be positive [Pa], got {_first_bad(array, array > 0):g}")
-    return array
-
-
-def _check_humidity(relative_humidity: ArrayLike) -> np.ndarray:
-    array = finite_array(relative_humidity, "relative humidity")
-    ok = (array >= 0.0) & (array <= 1.0)
-    if not np.all(ok):
-        bad = _first_bad(array, ok)
-        raise InputError(f"relative humidity must be 0-100 %, got {100 * bad:g} % "
-                         f"(fraction {bad:g})")
-    return array
-
-
-# --- standard atmosphere ----------------------------------------------------------------------
-
-
-def geopotential_height(elevation: ArrayLike) -> np.ndarray:
-    """Geopotential height of a geometric elevation [m].
-
-    H = r0·z / (r0 + z),  r0 = 6 356 766 m.
-
-    Parameters
-    ----------
-    elevation : float or array_like
-        Geometric height above mean sea level z [m].
-
-    Returns
-    -------
-    numpy.ndarray
-        Geopotential height H [m], the shape of `elevation`.
-
-    References
-    ----------
-    ICAO (1993), Manual of the ICAO Standard Atmosphere, Doc 7488/3; ISO 2533:1975.
-
-    Examples
-    --------
-    From the formula: 3000 m geometric is 3000·6356766/6359766 = 2998.585 m geopotential.
-
-    >>> float(geopotential_height(3000.0))
-    2998.585
-    """
-    elevation = finite_array(elevation, "elevation")
-    return EARTH_RADIUS_GEOPOTENTIAL * elevation / (EARTH_RADIUS_GEOPOTENTIAL + elevation)
-
-
-def _troposphere_height(elevation: ArrayLike) -> np.ndarray:
-    height = geopotential_height(elevation)
-    low, high = GEOPOTENTIAL_HEIGHT_RANGE
-    _check_range(height, low, high, f"elevation must be between {low:g} and {high:g} m")
-    return height
-
-
-def standard_pressure(elevation: ArrayLike,
-                      sea_level_pressure: ArrayLike = STANDARD_SEA_LEVEL_PRESSURE) -> np.ndarray:
-    """Air pressure at an elevation by the ICAO standard atmosphere, troposphere [Pa].
-
-    p = p_sl · (T(H) / T0)^(g0 / (L·R)),  T(H) = T0 − L·H
-
-    with H the geopotential height, T0 = 288.15 K, L = 0.0065 K/m, R = 287.05287 J/(kg·K),
-    g0 = 9.80665 m/s² (exponent 5.25588). With the standard p_sl = 101325 Pa this is the ICAO
-    table; another sea-level pressure (the day's QFF-style reading) scales it in proportion.
-
-    Parameters
-    ----------
-    elevation : float or array_like
-        Geometric height above mean sea level [m]; its geopotential height must lie in
-        -2000..11000 m.
-    sea_level_pressure : float or array_like, optional
-        Pressure reduced to sea level [Pa] (default 101325 Pa).
-
-    Returns
-    -------
-    numpy.ndarray
-        Pressure [Pa], broadcast from the inputs.
-
-    References
-    ----------
-    ICAO (1993), Manual of the ICAO Standard Atmosphere, Doc 7488/3; ISO 2533:1975.
-    docs/references.md, "Air".
-
-    Examples
-    --------
-    The ICAO table gives 89 874.6 Pa at 1000 m geopotential height, which is 1000.157 m
-    geometric:
-
-    >>> float(standard_pressure(1000.157))
-    89874.6
-    """
-    height = _troposphere_height(elevation)
-    sea_level_pressure = _check_pressure(sea_level_pressure, "sea-level pressure")
-    temperature = STANDARD_SEA_LEVEL_TEMPERATURE - STANDARD_LAPSE_RATE * height
-    return sea_level_pressure * (temperature / STANDARD_SEA_LEVEL_TEMPERATURE) ** PRESSURE_EXPONENT
-
-
-def temperature_at_elevation(elevation: ArrayLike, start_temperature: ArrayLike,
-                             start_elevation: ArrayLike) -> np.ndarray:
-    """Air temperature at an elevation, from the temperature at the start [°C].
-
-    T(z) = T_start − L·(H(z) − H(z_start)),  L = 0.0065 K/m (ICAO troposphere lapse rate),
-
-    H the geopotential height (so that 15 °C at 0 m gives the ICAO standard temperature at
-    every elevation). A real day's lapse rate varies (inversions, sun on the road); this is the
-    neutral assumption.
-
-    Parameters
-    ----------
-    elevation : float or array_like
-        Geometric height above mean sea level [m].
-    start_temperature : float or array_like
-        Air temperature at `start_elevation` [°C], -60..60.
-    start_elevation : float or array_like
-        Elevation where `start_temperature` holds [m].
-
-    Returns
-    -------
-    numpy.ndarray
-        Temperature [°C], broadcast from the inputs.
-
-    References
-    ----------
-    ICAO (1993), Manual of the ICAO Standard Atmosphere, Doc 7488/3; ISO 2533:1975.
-
-    Examples
-    --------
-    The ICAO table gives 8.50 °C (281.65 K) at 1000 m geopotential height, 1000.157 m
-    geometric:
-
-    >>> float(temperature_at_elevation(1000.157, 15.0, 0.0))
-    8.50
-    """
-    start_temperature = _check_temperature(start_temperature, "start temperature")
-    height = _troposphere_height(elevation)
-    start_height = _troposphere_height(start_elevation)
-    return start_temperature - STANDARD_LAPSE_RATE * (height - start_height)
-
-
 # --- saturation vapour pressure ---------------------------------------------------------------
 
 
@@ -334,7 +126,7 @@ def saturation_vapour_pressure_hardy_1998(temperature: ArrayLike) -> np.ndarray:
     >>> float(saturation_vapour_pressure_hardy_1998(20.0))
     2339.26
     """
-    kelvin = _check_temperature(temperature) + ZERO_CELSIUS
+    kelvin = check_temperature(temperature) + ZERO_CELSIUS
     g = HARDY_1998
     exponent: np.ndarray = g[7] * np.log(kelvin)
     for i in range(7):
@@ -371,7 +163,7 @@ def saturation_vapour_pressure_cipm_2007(temperature: ArrayLike) -> np.ndarray:
     >>> float(saturation_vapour_pressure_cipm_2007(20.0))
     2339.16
     """
-    kelvin = _check_temperature(temperature) + ZERO_CELSIUS
+    kelvin = check_temperature(temperature) + ZERO_CELSIUS
     c = CIPM_2007
     return np.exp(
         c["saturation_a"] * kelvin**2
@@ -408,7 +200,7 @@ def saturation_vapour_pressure_magnus(temperature: ArrayLike) -> np.ndarray:
     >>> float(saturation_vapour_pressure_magnus(20.0))
     2333.44
     """
-    celsius = _check_temperature(temperature)
+    celsius = check_temperature(temperature)
     scale, slope, offset = ALDUCHOV_ESKRIDGE_1996
     return scale * np.exp(slope * celsius / (offset + celsius))
 
@@ -493,8 +285,8 @@ def enhancement_factor(temperature: ArrayLike, pressure: ArrayLike) -> np.ndarra
     >>> float(enhancement_factor(20.0, 101325.0))
     1.00403
     """
-    celsius = _check_temperature(temperature)
-    pressure = _check_pressure(pressure)
+    celsius = check_temperature(temperature)
+    pressure = check_pressure(pressure)
     c = CIPM_2007
     return c["enhancement_alpha"] + c["enhancement_beta"] * pressure + c["enhancement_gamma"] * (
         celsius**2
@@ -533,7 +325,7 @@ def vapour_mole_fraction(temperature: ArrayLike, pressure: ArrayLike,
     >>> float(vapour_mole_fraction(20.0, 101325.0, 0.5))
     0.011589
     """
-    humidity = _check_humidity(relative_humidity)
+    humidity = check_humidity(relative_humidity)
     fraction = (
         humidity
         * enhancement_factor(temperature, pressure)
@@ -580,8 +372,8 @@ def compressibility_factor(temperature: ArrayLike, pressure: ArrayLike,
     >>> float(compressibility_factor(20.0, 101325.0, 0.0))
     0.999643
     """
-    celsius = _check_temperature(temperature)
-    pressure = _check_pressure(pressure)
+    celsius = check_temperature(temperature)
+    pressure = check_pressure(pressure)
     fraction = finite_array(vapour_fraction, "vapour mole fraction")
     kelvin = celsius + ZERO_CELSIUS
     c = CIPM_2007
@@ -644,8 +436,8 @@ def air_density(
     >>> float(air_density(20.0, 101325.0, 0.5))
     1.19931
     """
-    celsius = _check_temperature(temperature)
-    pressure = _check_pressure(pressure)
+    celsius = check_temperature(temperature)
+    pressure = check_pressure(pressure)
     fraction = vapour_mole_fraction(celsius, pressure, relative_humidity)
     c = CIPM_2007
     dry_molar_mass = c["molar_mass_dry_air"] + c["molar_mass_co2_slope"] * (
@@ -694,14 +486,15 @@ def air_density_ideal_gas(temperature: ArrayLike, pressure: ArrayLike,
     Dry air on the standard atmosphere at 2000 m geopotential height (2000.629 m geometric),
     where the ICAO table gives 1.00649 kg/m³:
 
+    >>> from pacing.physics.atmosphere import standard_pressure, temperature_at_elevation
     >>> elevation = 2000.629
     >>> air = temperature_at_elevation(elevation, 15.0, 0.0), standard_pressure(elevation)
     >>> float(air_density_ideal_gas(*air, 0.0))
     1.00649
     """
-    celsius = _check_temperature(temperature)
-    pressure = _check_pressure(pressure)
-    humidity = _check_humidity(relative_humidity)
+    celsius = check_temperature(temperature)
+    pressure = check_pressure(pressure)
+    humidity = check_humidity(relative_humidity)
     vapour = humidity * saturation_vapour_pressure(celsius)
     if not np.all(vapour < pressure):
         raise InputError("water vapour pressure exceeds the air pressure: check temperature "

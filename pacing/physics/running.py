@@ -5,10 +5,11 @@ The runner's metabolic power per kilogram at ground speed v [m/s] on a piece of 
     P_met(v) = Cr(i)·v + ½·ρ·CdA·(1 − d)·V·v_a·v / (η_air·m)          [W/kg]
 
 Cr(i) is the energy cost of running on the grade from treadmill measurements (Minetti et al.
-2002), which has no air resistance in it. The second term is the mechanical power against the
-air (as in cycling: v_a = v + w_h the air speed along the track, V = √(v_a² + w_c²) the apparent
-wind speed, d the share of drag removed by drafting) converted to metabolic power with the
-efficiency of running against a horizontal impeding force, η_air = 0.361 (Lloyd & Zacks 1972).
+2002; the models are in pacing.physics.running_cost), which has no air resistance in it. The
+second term is the mechanical power against the air (as in cycling: v_a = v + w_h the air speed
+along the track, V = √(v_a² + w_c²) the apparent wind speed, d the share of drag removed by
+drafting) converted to metabolic power with the efficiency of running against a horizontal
+impeding force, η_air = 0.361 (Lloyd & Zacks 1972).
 With the runner's drag area CdA = 0.9 × 0.266 × BSA and ρ = 1.2 kg/m³ this gives
 0.3979·BSA·v³/m W/kg in still air, the di Prampero term 0.4·BSA·v³/m used by Péronnet &
 Thibault (1989) (see `air_metabolic_power_di_prampero`). This module uses the first form
@@ -46,116 +47,7 @@ from numpy.typing import ArrayLike
 
 from pacing.errors import InputError
 from pacing.physics.cycling import air_speed_components
-
-# ---------------------------------------------------------------------------------------------
-# Energy cost of running on a grade
-# ---------------------------------------------------------------------------------------------
-
-MINETTI_2002_COEFFICIENTS = (155.4, -30.4, -43.3, 46.3, 19.5, 3.6)
-"""Cr(i) = 155.4i⁵ − 30.4i⁴ − 43.3i³ + 46.3i² + 19.5i + 3.6 [J/(kg·m)], highest power first
-(Minetti et al. 2002, running, fitted on −0.45 ≤ i ≤ +0.45)."""
-
-MINETTI_2002_GRADE_RANGE = (-0.45, 0.45)
-"""Grades the Minetti et al. (2002) running polynomial was fitted on [-]."""
-
-
-def _polynomial_cost(
-    grade: ArrayLike,
-    coefficients: tuple[float, ...],
-    grade_range: tuple[float, float],
-    outside_range: str,
-) -> np.ndarray:
-    values = np.asarray(grade, dtype=float)
-    if not np.all(np.isfinite(values)):
-        raise InputError("grade must be a finite number")
-    low, high = grade_range
-    if outside_range == "raise":
-        if np.any((values < low) | (values > high)):
-            raise InputError(
-                f"grade outside the running cost model's range {low:+.0%}..{high:+.0%}"
-            )
-    elif outside_range != "clip":
-        raise InputError(f"outside_range must be 'clip' or 'raise', got {outside_range!r}")
-    return np.polyval(np.asarray(coefficients), np.clip(values, low, high))
-
-
-def running_cost_minetti(grade: ArrayLike, outside_range: str = "clip") -> np.ndarray:
-    """Energy cost of running on a grade, Minetti et al. (2002) [J/(kg·m)].
-
-    Cr(i) = 155.4·i⁵ − 30.4·i⁴ − 43.3·i³ + 46.3·i² + 19.5·i + 3.6
-
-    Metabolic energy per kilogram of body mass per metre travelled (along the ground), from
-    treadmill running (no air resistance), independent of speed. The fit covers
-    −0.45 ≤ i ≤ +0.45; its cost is lowest near i = −0.18 (1.78 J/(kg·m)).
-
-    Parameters
-    ----------
-    grade : float or array_like
-        i, rise over run [-] (0.05 = 5 %).
-    outside_range : {"clip", "raise"}, optional
-        "clip" (default) evaluates grades beyond ±0.45 at the nearest end of the range;
-        "raise" raises InputError instead [-].
-
-    Returns
-    -------
-    numpy.ndarray
-        Cr [J/(kg·m)], the shape of `grade`.
-
-    References
-    ----------
-    Minetti, A.E., Moia, C., Roi, G.S., Susta, D. & Ferretti, G. (2002). Energy cost of walking
-    and running at extreme uphill and downhill slopes. J Appl Physiol 93(3):1039-1046.
-    doi:10.1152/japplphysiol.01177.2001
-    docs/references.md, "Running".
-
-    Examples
-    --------
-    The polynomial's constant term on the flat, and 155.4·0.2⁵ − 30.4·0.2⁴ − 43.3·0.2³ +
-    46.3·0.2² + 19.5·0.2 + 3.6 = 9.007 at +20 % (the paper measured 3.40 ± 0.24 J/(kg·m) on
-    the level):
-
-    >>> running_cost_minetti([0.0, 0.2]).round(3).tolist()
-    [3.6, 9.007]
-    """
-    return _polynomial_cost(grade, MINETTI_2002_COEFFICIENTS, MINETTI_2002_GRADE_RANGE,
-                            outside_range)
-
-
-@dataclass(frozen=True)
-class GradeCostModel:
-    """One published model of the energy cost of running on a grade.
-
-    Attributes
-    ----------
-    name : str
-        Registry key [-].
-    cost : callable
-        Function grade [-] → Cr [J/(kg·m)], with an ``outside_range`` keyword.
-    grade_range : tuple of float
-        (lowest, highest) grade it is used on [-].
-    label : str
-        Short description for menus [-].
-    reference : str
-        The source [-].
-    """
-
-    name: str
-    cost: Callable[..., np.ndarray]
-    grade_range: tuple[float, float]
-    label: str
-    reference: str
-
-
-RUNNING_COST_MODELS: dict[str, GradeCostModel] = {
-    "minetti-2002": GradeCostModel(
-        "minetti-2002", running_cost_minetti, MINETTI_2002_GRADE_RANGE,
-        "Minetti et al. 2002 (treadmill metabolic cost)",
-        "Minetti et al. (2002), J Appl Physiol 93:1039",
-    ),
-}
-"""Grade-cost models by name; "minetti-2002" is the default. A gentler shallow-grade model from
-race data would belong here too; none is included until its coefficients can be checked
-against the published paper itself."""
+from pacing.physics.running_cost import RUNNING_COST_MODELS
 
 # ---------------------------------------------------------------------------------------------
 # Air resistance of a runner
@@ -361,7 +253,7 @@ class Runner:
     efficiency_against_air : float
         Metabolic-to-mechanical efficiency of work against the air, 0.05..1 [-].
     cost_model : str
-        Key of RUNNING_COST_MODELS [-].
+        Key of pacing.physics.running_cost.RUNNING_COST_MODELS [-].
 
     References
     ----------
@@ -462,7 +354,8 @@ def metabolic_power(
     crosswind : float or array_like, optional
         Wind component across the direction of travel [m/s].
     outside_range : {"clip", "raise"}, optional
-        What to do with grades outside the cost model's range (see running_cost_minetti) [-].
+        What to do with grades outside the cost model's range (see
+        pacing.physics.running_cost.running_cost_minetti) [-].
 
     Returns
     -------

@@ -23,7 +23,7 @@ import numpy as np
 from numpy.typing import ArrayLike
 
 from pacing.errors import InputError
-from pacing.physics.air import finite_array
+from pacing.physics.inputs import finite_array
 
 ROUGHNESS_LENGTHS: dict[str, float] = {
     "open water or pavement": 0.0002,

@@ -7,10 +7,11 @@ Plans are made on the coach's segments in the steady-state segment model
 implies are in pacing.plan.request.
 
 The plan is then verified by the inertial simulation (pacing.plan.simulate) and corrected so the
-verified ride meets the constraints: the free segments' powers are scaled until the simulated
-mean power (or work) hits its target; the W′ reserve and the effort cap are re-checked on the
-simulated ride and, when broken (or held with needless slack), the solver runs again with the
-solver-side limit moved by secant steps, starting from the previous round's plan. The first
+verified ride meets the constraints (pacing.plan.verify): the free segments' powers are scaled
+until the simulated mean power (or work) hits its target; the W′ reserve and the effort cap are
+re-checked on the simulated ride and, when broken (or held with needless slack), the solver
+runs again with the solver-side limit moved by secant steps, starting from the previous
+round's plan. The first
 round already asks the solver for a reserve in the middle of the accepted band (reserve plus
 half of _SLACK), since the ride drains W′ a little faster than the steady model.
 
@@ -30,7 +31,6 @@ doi:10.1249/MSS.0b013e3182517a80 (the W′ balance of the verified ride)
 from __future__ import annotations
 
 import math
-from collections.abc import Callable
 from dataclasses import dataclass, field, replace
 
 import numpy as np
@@ -40,8 +40,8 @@ from scipy import optimize
 from pacing.course.geometry import Course
 from pacing.errors import InputError
 from pacing.physics.cycling import Rider
-from pacing.physiology.critical_power import effort_weighted_power, w_prime_balance
-from pacing.plan.fastest import SolverReport, fastest_steady_plan
+from pacing.plan.fastest import fastest_steady_plan
+from pacing.plan.fastest_problem import SolverReport
 from pacing.plan.prediction import Prediction, SimulationOptions
 from pacing.plan.request import (
     MAXIMUM_PLAN_POWER,
@@ -51,12 +51,19 @@ from pacing.plan.request import (
     required_target_time,
     w_prime_parameters,
 )
-from pacing.plan.simulate import simulate
-from pacing.plan.steady_model import SegmentModel, segment_model, steady_segment_times
+from pacing.plan.steady_model import segment_model, steady_segment_times
+from pacing.plan.verify import (
+    VerifyingRide,
+    bound_binding,
+    constant_reference,
+    ride_effort,
+    ride_measure,
+    ride_w_prime_balance,
+    scaled_to_target,
+)
 from pacing.weather.conditions import CourseAir
 
 _CORRECTION_ROUNDS = 4
-_MATCH_TOLERANCE = 5e-5  # relative, verified mean power (or work) against its target
 _SLACK = 0.01  # verified slack of a held limit worth a re-solve, relative to W′ or the cap
 
 
@@ -152,106 +159,6 @@ class RacePlan:
         return float(self.prediction.work)
 
 
-@dataclass(frozen=True, eq=False)
-class _Ride:
-    """What a plan is made on and verified with: the course, its segment bounds, the rider,
-    the air on each piece, the simulation options and the steady segment model."""
-
-    course: Course
-    bounds: np.ndarray
-    rider: Rider
-    air: CourseAir
-    options: SimulationOptions | None
-    model: SegmentModel
-
-    def simulate(self, piece_power: np.ndarray) -> Prediction:
-        """The inertial simulation of piece powers [W] (default options when none)."""
-        options = self.options if self.options is not None else SimulationOptions()
-        return simulate(self.course, piece_power, self.rider, self.air, options)
-
-
-# ------------------------------------------------------------------ verification helpers
-
-def _measure(prediction: Prediction, request: PlanRequest) -> float:
-    """What the coupling constraint holds on a ride: its work [J] or mean power [W]."""
-    if request.constraint == "work":
-        return float(prediction.work)
-    return float(prediction.average_power)
-
-
-def _matched(ride: _Ride, make_powers: Callable[[float], np.ndarray], request: PlanRequest,
-             target: float, free_pieces: np.ndarray | None = None,
-             first: Prediction | None = None) -> tuple[Prediction, float]:
-    """Scale a plan so the simulated mean power [W] (or work [J]) equals target; (prediction,
-    scale [-]).
-
-    `make_powers(scale)` gives the piece powers; only the pieces in `free_pieces` (default
-    all) scale with it. The first step assumes the measure changes by the scaled pieces' share
-    of it (piece times held); later steps are secant steps. `first`: the simulation of
-    make_powers(1.0) when already done.
-    """
-    scale = 1.0
-    prediction = first if first is not None else ride.simulate(make_powers(scale))
-    value = _measure(prediction, request)
-    tolerance = _MATCH_TOLERANCE * target
-    previous = None
-    for _ in range(6):
-        if abs(value - target) <= tolerance:
-            break
-        if previous is None or previous[1] == value:
-            work = np.asarray(prediction.power, dtype=float) * _piece_durations(prediction)
-            share = float(work.sum() if free_pieces is None else work[free_pieces].sum())
-            if request.constraint == "mean-power":
-                share /= float(prediction.finish_time)
-            new_scale = scale + (target - value) * scale / share if share > 0 else 2.0 * scale
-        else:
-            new_scale = scale + (target - value) * (scale - previous[0]) / (value - previous[1])
-        previous = (scale, value)
-        scale = float(np.clip(new_scale, 0.5 * scale, 2.0 * scale))
-        prediction = ride.simulate(make_powers(scale))
-        value = _measure(prediction, request)
-    return prediction, scale
-
-
-def _piece_durations(prediction: Prediction) -> np.ndarray:
-    """Time on each piece [s]."""
-    return np.diff(np.asarray(prediction.time, dtype=float))
-
-
-def _balance_along(prediction: Prediction, request: PlanRequest) -> np.ndarray:
-    """W′ balance at every point of a ride [J], length N."""
-    critical_power, w_prime = w_prime_parameters(request)
-    balance = w_prime_balance(np.asarray(prediction.power, dtype=float),
-                              _piece_durations(prediction), critical_power, w_prime,
-                              request.w_prime_model)
-    return np.concatenate([[w_prime], balance])
-
-
-def _effort(prediction: Prediction) -> float:
-    """Effort-weighted power of a ride [W]."""
-    return effort_weighted_power(np.maximum(np.asarray(prediction.power, dtype=float), 0.0),
-                                 _piece_durations(prediction))
-
-
-def _reference(ride: _Ride, request: PlanRequest) -> tuple[Prediction, float]:
-    """The constant plan at the request's mean power, verified; (prediction, power [W]).
-
-    With the mean-power constraint its power is scaled until the simulated time-weighted mean
-    equals the request's (they differ where the simulation eases off or brakes); with the work
-    constraint the constant power is kept and its simulated work is the target.
-    """
-    mean = required_mean_power(request)
-    pieces = np.asarray(ride.course.distance).size - 1
-
-    def constant_powers(scale: float) -> np.ndarray:
-        return np.full(pieces, mean * scale)
-
-    if request.constraint == "work":
-        return ride.simulate(constant_powers(1.0)), mean
-    prediction, scale = _matched(ride, constant_powers, request, mean)
-    return prediction, mean * scale
-
-
 # ------------------------------------------------------------------ plans
 
 def make_plan(course: Course, bounds: ArrayLike, rider: Rider, air: CourseAir,
@@ -308,7 +215,7 @@ def make_plan(course: Course, bounds: ArrayLike, rider: Rider, air: CourseAir,
     else:
         required_mean_power(request)
     model = segment_model(course, bounds, rider, air)
-    ride = _Ride(course, np.asarray(bounds, dtype=int), rider, air, options, model)
+    ride = VerifyingRide(course, np.asarray(bounds, dtype=int), rider, air, options, model)
     if request.strategy == "target-time":
         return _target_time_plan(ride, request)
     if request.strategy == "constant":
@@ -317,7 +224,7 @@ def make_plan(course: Course, bounds: ArrayLike, rider: Rider, air: CourseAir,
     return _fastest_plan(ride, request)
 
 
-def _constant_target_time(ride: _Ride, request: PlanRequest, target: float) -> float:
+def _constant_target_time(ride: VerifyingRide, request: PlanRequest, target: float) -> float:
     """Constant power whose simulated finish time equals the target [s]; the power [W].
 
     brentq on the steady finish time, then secant steps on the simulated one (to 0.01 s).
@@ -352,7 +259,7 @@ def _constant_target_time(ride: _Ride, request: PlanRequest, target: float) -> f
     return float(power)
 
 
-def _target_time_plan(ride: _Ride, request: PlanRequest) -> RacePlan:
+def _target_time_plan(ride: VerifyingRide, request: PlanRequest) -> RacePlan:
     """The constant plan that reaches the request's target time, checked against CP, W′ and
     the power cap."""
     target = required_target_time(request)
@@ -412,7 +319,7 @@ def _first_aim(request: PlanRequest) -> _Aim:
                 request.effort_weighted_cap)
 
 
-def _solve_round(ride: _Ride, request: PlanRequest, limits: tuple[np.ndarray, np.ndarray],
+def _solve_round(ride: VerifyingRide, request: PlanRequest, limits: tuple[np.ndarray, np.ndarray],
                  aim: _Aim, rounds: int, previous: tuple[np.ndarray, SolverReport] | None
                  ) -> tuple[np.ndarray, SolverReport]:
     """One round's steady solve; a correction round starts from the previous round's plan
@@ -431,13 +338,13 @@ def _solve_round(ride: _Ride, request: PlanRequest, limits: tuple[np.ndarray, np
         return fastest_steady_plan(ride.model, request, lower, upper, aim.reserve, aim.cap)
 
 
-def _fastest_plan(ride: _Ride, request: PlanRequest) -> RacePlan:
+def _fastest_plan(ride: VerifyingRide, request: PlanRequest) -> RacePlan:
     """The fastest plan, verified, with correction rounds while the verified ride breaks a
     limit the solver held (or keeps it with needless slack); the fastest feasible one."""
     mean = required_mean_power(request)
     limits = power_limits(ride.model, request)
     aim = _first_aim(request)
-    reference = _reference(ride, request)
+    reference = constant_reference(ride, request)
     best = None
     previous = None
     w_gap = math.inf
@@ -492,61 +399,7 @@ def _next_limit(history: list[tuple[float, float]], limit: float, measured: floa
     return limit + (wanted - measured)
 
 
-# ------------------------------------------------------------------ verification
-
-def _scaled_to_target(ride: _Ride, request: PlanRequest, segment_power: np.ndarray,
-                      lower: np.ndarray, upper: np.ndarray, target: float
-                      ) -> tuple[np.ndarray, Prediction]:
-    """Scale the segment powers [W] until the verified mean power [W] (or work [J]) is the
-    target; (segment powers [W], prediction).
-
-    Only the segments not held at a bound are scaled, so bounds stay where they bind; when
-    that cannot reach the target (the free ones hit a bound first), the segments held at the
-    lower bound scale up with them, or else those at the upper bound down.
-    """
-    pieces_segment = ride.model.segment
-    at_low = segment_power <= lower * (1 + 1e-6) + 1e-9
-    at_high = segment_power >= upper * (1 - 1e-6)
-    choices = [c for c in (~at_low & ~at_high, ~at_high, ~at_low) if c.any()]
-    choices = choices or [np.ones_like(at_low)]
-    # every choice starts from the same plan (scale 1): it is simulated once
-    unscaled = ride.simulate(np.clip(segment_power, lower, upper)[pieces_segment])
-    for free in choices:
-        def corrected(scale: float, free: np.ndarray = free) -> np.ndarray:
-            return np.clip(np.where(free, segment_power * scale, segment_power), lower, upper)
-
-        prediction, scale = _matched(ride, lambda scale: corrected(scale)[pieces_segment],
-                                     request, target, free[pieces_segment], unscaled)
-        if abs(_measure(prediction, request) - target) <= _MATCH_TOLERANCE * target:
-            break
-    return corrected(scale), prediction
-
-
-def _bound_binding(segment_power: np.ndarray, lower: np.ndarray, upper: np.ndarray
-                   ) -> tuple[list[str], float]:
-    """Names of the power bounds that bind, and the largest excursion outside them [W]."""
-    binding = []
-    at_upper = int(np.sum(segment_power >= upper * (1 - 1e-6)))
-    at_lower = int(np.sum(segment_power <= lower * (1 + 1e-6) + 1e-9))
-    if at_upper:
-        binding.append(f"max-power on {at_upper} segments")
-    if at_lower:
-        binding.append(f"min-power on {at_lower} segments")
-    return binding, float(max(0.0, np.max(segment_power - upper),
-                              np.max(lower - segment_power)))
-
-
-def _w_prime_along(prediction: Prediction, request: PlanRequest, bounds: np.ndarray
-                   ) -> tuple[np.ndarray, np.ndarray, float, float]:
-    """W′ balance of a ride at every point and at each segment end [J], its lowest value [J]
-    and where it happens [m]."""
-    balance = _balance_along(prediction, request)
-    where = int(np.argmin(balance))
-    return (balance, balance[np.asarray(bounds)[1:]], float(balance[where]),
-            float(np.asarray(prediction.distance)[where]))
-
-
-def _finish_plan(ride: _Ride, request: PlanRequest, segment_power: np.ndarray,
+def _finish_plan(ride: VerifyingRide, request: PlanRequest, segment_power: np.ndarray,
                  limits: tuple[np.ndarray, np.ndarray] | None, report: SolverReport,
                  reference: tuple[Prediction, float] | None = None) -> RacePlan:
     """Verify, correct and package a plan: the fastest plan is scaled to its target and its
@@ -559,14 +412,14 @@ def _finish_plan(ride: _Ride, request: PlanRequest, segment_power: np.ndarray,
     residuals: dict[str, float] = {}
     binding: list[str] = []
     if request.strategy == "fastest":
-        reference_ride, reference_power = reference or _reference(ride, request)
+        reference_ride, reference_power = reference or constant_reference(ride, request)
         target = mean if request.constraint == "mean-power" else float(reference_ride.work)
-        segment_power, prediction = _scaled_to_target(ride, request, segment_power, lower,
+        segment_power, prediction = scaled_to_target(ride, request, segment_power, lower,
                                                       upper, target)
         piece_power = segment_power[model.segment]
         name = "work_j" if request.constraint == "work" else "mean_power_w"
-        residuals[name] = _measure(prediction, request) - target
-        bound_names, excursion = _bound_binding(segment_power, lower, upper)
+        residuals[name] = ride_measure(prediction, request) - target
+        bound_names, excursion = bound_binding(segment_power, lower, upper)
         binding += [request.constraint, *bound_names]
         residuals["power_bounds_w"] = excursion
     else:
@@ -575,12 +428,12 @@ def _finish_plan(ride: _Ride, request: PlanRequest, segment_power: np.ndarray,
         reference_power = mean
     balance = segment_balance = min_balance = min_distance = None
     if request.uses_w_prime:
-        balance, segment_balance, min_balance, min_distance = _w_prime_along(
+        balance, segment_balance, min_balance, min_distance = ride_w_prime_balance(
             prediction, request, ride.bounds)
         residuals["w_prime_reserve_j"] = min_balance - request.w_prime_reserve
         if "w-prime-reserve" in report.active:
             binding.append("w-prime-reserve")
-    effort = _effort(prediction)
+    effort = ride_effort(prediction)
     if request.effort_weighted_cap is not None:
         residuals["effort_cap_w"] = request.effort_weighted_cap - effort
         if "effort-cap" in report.active:

@@ -8,7 +8,8 @@ the even pace whose time-weighted mean metabolic power equals a given effort
 (`even_pace_within_limits`). The D′ balance of a plan counts each piece's effort as its flat,
 still-air speed (`plan_d_prime_balance`, Skiba's differential form through
 `pacing.physiology.critical_speed.distance_capacity_balance`). Costs are those of
-pacing.physics.running (Minetti et al. 2002 on grades plus air resistance).
+pacing.physics.running_cost (Minetti et al. 2002 on grades) plus air resistance
+(pacing.physics.running).
 
 References
 ----------

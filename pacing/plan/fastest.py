@@ -24,12 +24,13 @@ recovery), so on its own it can be far from the optimum. A finer split can hold 
 coarser one, so the solver first solves the coarser problem with one power per run of climb,
 flat or descent segments (or, on a split too fine for SLSQP, per run of a few segments, which
 itself starts from the climbs, flats and descents) and starts from that plan: the fastest plan
-then does not get slower as the segments get finer.
+then does not get slower as the segments get finer (pacing.plan.coarse_start).
 The solver's effort measure is the time-weighted 4th-power mean of the segment powers, an upper
 bound of the effort-weighted power (a 30 s rolling mean can only lower it).
 
-Called by pacing.plan.cycling.make_plan. The Lagrange solve and the priced limits (step 1) are
-in pacing.plan.lagrange.
+Called by pacing.plan.cycling.make_plan. The Lagrange solve is in pacing.plan.lagrange, the
+priced limits (step 1) in pacing.plan.priced_limits, the problem, its limits and the solver's
+report in pacing.plan.fastest_problem.
 
 References
 ----------
@@ -45,26 +46,25 @@ Kraft, D. (1988). A software package for sequential quadratic programming. DFVLR
 
 from __future__ import annotations
 
-from dataclasses import dataclass, field, replace
 from typing import Any
 
 import numpy as np
 from scipy import optimize
 from threadpoolctl import threadpool_limits
 
-from pacing.course.segments import CLIMB_GRADE
 from pacing.errors import InputError
 from pacing.physiology.critical_power import recovery_time_constant
+from pacing.plan.coarse_start import coarse_start_plan
+from pacing.plan.fastest_problem import FastestProblem, SolverLimits, SolverReport
 from pacing.plan.lagrange import (
-    PRICE_TOLERANCE,
     coupling_constraint,
     fourth_power_mean,
     lagrange_plan,
     onto_coupling,
-    priced_plan,
     stationarity_residual,
     steady_w_prime_balance,
 )
+from pacing.plan.priced_limits import PRICE_TOLERANCE, priced_plan
 from pacing.plan.request import (
     PlanRequest,
     power_limits,
@@ -79,84 +79,6 @@ _SLSQP_MARGIN = 5e-4  # limits given to SLSQP, inside the real ones, relative to
 # 4 µs of a one-hour ride; at 1e-10 its steps zigzag along the W′ kink at CP until the
 # iteration limit (100 iterations against 65 on the demo course, same finish time to 1 ms)
 _SLSQP_FTOL = 1e-9
-_GROUP_MIN_LENGTH = 300.0  # shortest stretch of the grouped (coarse) problem [m]
-_GROUP_MAX_COUNT = 60  # most stretches in the grouped problem (its SLSQP stays cheap)
-_CHUNK_COUNT = 80  # about this many runs of segments stand for a split too fine for SLSQP
-
-
-@dataclass(frozen=True)
-class SolverReport:
-    """How the fastest plan was found, and evidence that it is optimal.
-
-    Attributes
-    ----------
-    method : str
-        "constant"; "lagrange" (coupling constraint and bounds only); "lagrange+price" or
-        "lagrange+ceiling" (a limit priced, or a common power ceiling), with "+slsqp" when
-        SLSQP improved that plan; "grouped+" in front when the plan started from the coarser
-        problem's (whose own method follows) [-].
-    multiplier : float or None
-        λ, time saved per joule-equivalent of the coupling constraint (Lagrange stage); None
-        when not used [1/J].
-    iterations : int
-        Solver iterations (outer root finding + SLSQP iterations) [-].
-    evaluations : int
-        Steady-state evaluations of the whole course [-].
-    stationarity : float
-        Largest relative KKT stationarity residual over free segments (≈ 0 at the optimum:
-        every free segment has the same marginal time per joule); NaN when a limit binds [-].
-    message : str
-        The solver's own message [-].
-    correction_rounds : int
-        Times the plan was re-solved because the verified ride broke a limit the solver held
-        (or kept it with slack) [-].
-    active : tuple of str
-        Limits held by the solver at its solution ("w-prime-reserve", "effort-cap") [-].
-    """
-
-    method: str
-    multiplier: float | None = None
-    iterations: int = 0
-    evaluations: int = 0
-    stationarity: float = 0.0
-    message: str = ""
-    correction_rounds: int = 0
-    active: tuple[str, ...] = ()
-
-
-@dataclass(frozen=True)
-class _Limits:
-    """The W′ reserve [J] and effort cap [W] a plan must keep (None: not checked)."""
-
-    reserve: float | None = None
-    cap: float | None = None
-
-
-@dataclass(frozen=True, eq=False)
-class _Problem:
-    """One fastest-plan problem: the model, the request, the power bounds [W] and the count of
-    steady evaluations."""
-
-    model: SegmentModel
-    request: PlanRequest
-    lower: np.ndarray
-    upper: np.ndarray
-    counter: list[int] = field(default_factory=lambda: [0])
-
-    def keeps(self, power: np.ndarray, limits: _Limits, slack: float = 0.0) -> bool:
-        """Whether the plan keeps the limits, each within `slack` of W′ or the cap [-]."""
-        time, _, _ = steady_segment_times(self.model, power)
-        self.counter[0] += 1
-        request = self.request
-        return ((limits.reserve is None
-                 or steady_w_prime_balance(power, time, request).min()
-                 >= limits.reserve - slack * w_prime_parameters(request)[1])
-                and (limits.cap is None
-                     or fourth_power_mean(power, time) <= limits.cap * (1 + slack)))
-
-    def finish(self, power: np.ndarray) -> float:
-        """Steady finish time of a plan [s] (not counted)."""
-        return float(steady_segment_times(self.model, power)[0].sum())
 
 
 def _w_prime_jacobian(power: np.ndarray, time: np.ndarray, dtime: np.ndarray,
@@ -227,7 +149,7 @@ class _ScaledProblem:
     time over the constant plan's) and constraints (coupling, W′ balance, effort) and their
     analytic gradients; one steady evaluation per new x."""
 
-    def __init__(self, problem: _Problem) -> None:
+    def __init__(self, problem: FastestProblem) -> None:
         self.model, self.request, self.counter = problem.model, problem.request, problem.counter
         self.centre, self.target = coupling_constraint(self.request, self.model)
         self.mean = required_mean_power(self.request)
@@ -298,7 +220,7 @@ class _ScaledProblem:
         return {"type": "ineq", "fun": effort, "jac": effort_gradient}
 
 
-def _slsqp_plan(problem: _Problem, start: np.ndarray, limits: _Limits
+def _slsqp_plan(problem: FastestProblem, start: np.ndarray, limits: SolverLimits
                 ) -> tuple[np.ndarray, optimize.OptimizeResult]:
     """Fastest powers with W′ reserve and/or effort cap by SLSQP (Kraft 1988) from `start`
     [W]; (power [W], scipy's result)."""
@@ -323,7 +245,7 @@ def _slsqp_plan(problem: _Problem, start: np.ndarray, limits: _Limits
     return power, result
 
 
-def _polished(problem: _Problem, start: np.ndarray, held: _Limits
+def _polished(problem: FastestProblem, start: np.ndarray, held: SolverLimits
               ) -> tuple[np.ndarray, optimize.OptimizeResult, bool, float]:
     """SLSQP from a feasible start [W], moved back onto the coupling constraint; (power [W],
     scipy's result, whether it keeps the limits and the coupling constraint, its steady finish
@@ -334,7 +256,7 @@ def _polished(problem: _Problem, start: np.ndarray, held: _Limits
     is moved back onto the coupling constraint by scaling the free powers.
     """
     model, request = problem.model, problem.request
-    inside = _Limits(
+    inside = SolverLimits(
         None if held.reserve is None
         else held.reserve + _SLSQP_MARGIN * w_prime_parameters(request)[1],
         None if held.cap is None else held.cap * (1 - _SLSQP_MARGIN))
@@ -349,7 +271,8 @@ def _polished(problem: _Problem, start: np.ndarray, held: _Limits
     return polished, result, feasible, float(time.sum())
 
 
-def _active_limits(problem: _Problem, power: np.ndarray, held: _Limits) -> tuple[str, ...]:
+def _active_limits(problem: FastestProblem, power: np.ndarray, held: SolverLimits
+                   ) -> tuple[str, ...]:
     """The held limits the plan sits on, within twice PRICE_TOLERANCE."""
     time, _, _ = steady_segment_times(problem.model, power)
     active = []
@@ -361,108 +284,6 @@ def _active_limits(problem: _Problem, power: np.ndarray, held: _Limits) -> tuple
             1 - 2 * PRICE_TOLERANCE):
         active.append("effort-cap")
     return tuple(active)
-
-
-# ------------------------------------------------------------------ coarse start for fine splits
-
-def _grade_groups(model: SegmentModel) -> np.ndarray:
-    """Group consecutive segments into climbs, flats and descents: group number per segment.
-
-    Each segment is classed by its mean grade (climb ≥ CLIMB_GRADE, descent ≤ −CLIMB_GRADE,
-    else flat) and runs of one class form a group; then, while a group is shorter than
-    _GROUP_MIN_LENGTH (doubled until at most _GROUP_MAX_COUNT groups remain), the shortest is
-    merged into the neighbour whose mean grade is nearer its own, and reclassed.
-    """
-    horizontal = model.length / np.sqrt(1.0 + model.grade**2)
-    run = np.bincount(model.segment, horizontal, model.count)
-    rise = np.bincount(model.segment, horizontal * model.grade, model.count)
-
-    def klass(grade: np.ndarray) -> np.ndarray:
-        return np.where(grade >= CLIMB_GRADE, 1, np.where(grade <= -CLIMB_GRADE, -1, 0))
-
-    kind = klass(rise / np.maximum(run, 1e-12))
-    starts = np.concatenate([[0], np.flatnonzero(np.diff(kind)) + 1])
-    group_run = list(np.add.reduceat(run, starts))
-    group_rise = list(np.add.reduceat(rise, starts))
-    first = list(starts)
-    minimum = _GROUP_MIN_LENGTH
-    while len(first) > 1:
-        lengths = np.asarray(group_run)
-        short = int(np.argmin(lengths))
-        if lengths[short] >= minimum:
-            if len(first) <= _GROUP_MAX_COUNT:
-                break
-            minimum *= 2.0
-            continue
-        grades = np.asarray(group_rise) / np.maximum(lengths, 1e-12)
-        if short == 0:
-            into = 1
-        elif short == len(first) - 1:
-            into = short - 1
-        else:
-            into = min(short - 1, short + 1,
-                       key=lambda other: abs(grades[other] - grades[short]))
-        keep, drop = min(short, into), max(short, into)
-        group_run[keep] += group_run[drop]
-        group_rise[keep] += group_rise[drop]
-        del group_run[drop], group_rise[drop], first[drop]
-        # join neighbours of one class after the merge
-        grades = np.asarray(group_rise) / np.maximum(np.asarray(group_run), 1e-12)
-        kinds = klass(grades)
-        for other in (keep + 1, keep):
-            if 0 < other < len(first) and kinds[other] == kinds[other - 1]:
-                group_run[other - 1] += group_run[other]
-                group_rise[other - 1] += group_rise[other]
-                del group_run[other], group_rise[other], first[other]
-                kinds = np.delete(kinds, other)
-    group = np.zeros(model.count, dtype=int)
-    group[np.asarray(first[1:], dtype=int)] = 1
-    return np.cumsum(group)
-
-
-def _grouped_plan(problem: _Problem, reserve: float | None, cap: float | None
-                  ) -> tuple[np.ndarray, SolverReport] | None:
-    """The fastest plan with one power per group of segments (`_grade_groups`), as segment
-    powers [W] with the coarse problem's report; None when grouping does not coarsen the split
-    or the grouped problem has no plan.
-
-    Every plan of the grouped problem is a plan of the fine one with the same pieces at the
-    same powers, so its time, mean power and work carry over exactly, and its W′ balance only
-    gains checks at the inner ends (within a stretch of constant power the balance is
-    monotone, so it is lowest at a group's ends): a fine split starts from the coarse optimum
-    and can only improve on it.
-    """
-    model = problem.model
-    group = _grade_groups(model)
-    if model.count > _SLSQP_MAX_SEGMENTS:
-        # too many segments for SLSQP: cut the groups into runs of `size` segments, so the
-        # coarser problem (≤ _SLSQP_MAX_SEGMENTS) is polished and itself starts from the groups
-        size = -(-model.count // _CHUNK_COUNT)
-        first = np.flatnonzero(np.diff(group, prepend=-1))
-        within = np.arange(model.count) - np.repeat(first, np.diff(np.r_[first, model.count]))
-        new = np.zeros(model.count, dtype=int)
-        new[1:] = (np.diff(group) > 0) | (np.diff(within // size) != 0)
-        group = np.cumsum(new)
-    count = int(group[-1]) + 1
-    if 2 * count > model.count:  # hardly coarser: not worth a second solve
-        return None
-    starts = np.flatnonzero(np.diff(group, prepend=-1))
-    horizontal = model.length / np.sqrt(1.0 + model.grade**2)
-    piece_group = group[model.segment]
-    run = np.bincount(piece_group, horizontal, count)
-    rise = np.bincount(piece_group, horizontal * model.grade, count)
-    coarse = replace(model, segment=piece_group, count=count,
-                     mean_grade=rise / np.maximum(run, 1e-12), speed_guess={})
-    low = np.maximum.reduceat(problem.lower, starts)
-    high = np.minimum.reduceat(problem.upper, starts)
-    if np.any(low > high):
-        return None
-    try:
-        power, report = fastest_steady_plan(coarse, problem.request, low, high, reserve, cap,
-                                            coarse_start=model.count > _SLSQP_MAX_SEGMENTS)
-    except InputError:
-        return None
-    return power[group], report
 
 
 # ------------------------------------------------------------------ the steps of the solve
@@ -485,7 +306,7 @@ def _check_reserve_reachable(request: PlanRequest, time: np.ndarray, reserve: fl
                          f"{request.critical_power:g} W for too long")
 
 
-def _warm_plan(problem: _Problem, start: tuple[np.ndarray, SolverReport], held: _Limits,
+def _warm_plan(problem: FastestProblem, start: tuple[np.ndarray, SolverReport], held: SolverLimits,
                multiplier: float, iterations: int) -> tuple[np.ndarray, SolverReport] | None:
     """SLSQP from a nearby problem's plan (`start`), with the limits that bind; the plan and
     its report when its answer keeps them and the coupling constraint, else None."""
@@ -500,21 +321,7 @@ def _warm_plan(problem: _Problem, start: tuple[np.ndarray, SolverReport], held: 
                                active=active)
 
 
-def _coarse_start(problem: _Problem, reserve: float | None, cap: float | None
-                  ) -> tuple[tuple[np.ndarray, SolverReport] | None, int]:
-    """The plan of the same problem with one power per climb, flat or descent (per run of
-    segments on a split too fine for SLSQP), when it keeps every limit; (plan and report or
-    None, its iterations). Its evaluations are added to the count."""
-    found = _grouped_plan(problem, reserve, cap)
-    if found is None:
-        return None, 0
-    problem.counter[0] += found[1].evaluations
-    if problem.keeps(found[0], _Limits(reserve, cap), 1e-6):
-        return found, found[1].iterations
-    return None, found[1].iterations
-
-
-def _ceiling_plan(problem: _Problem, held: _Limits, counts: list[int]
+def _ceiling_plan(problem: FastestProblem, held: SolverLimits, counts: list[int]
                   ) -> tuple[np.ndarray, float]:
     """The fastest plan under a common power ceiling U, U the highest ceiling that keeps the
     limits (bisection to 1e-3 of P̄; U = P̄: constant power); (plan [W], U [W]). Lagrange
@@ -541,8 +348,8 @@ def _ceiling_plan(problem: _Problem, held: _Limits, counts: list[int]
     return capped, low_ceiling
 
 
-def _limited_plan(problem: _Problem, multiplier: float, iterations: int,
-                  every: _Limits, held: _Limits, coarse_start: bool
+def _limited_plan(problem: FastestProblem, multiplier: float, iterations: int,
+                  every: SolverLimits, held: SolverLimits, coarse_start: bool
                   ) -> tuple[np.ndarray, SolverReport]:
     """The fastest plan when the Lagrange plan breaks a limit (`held`: the broken ones;
     `every`: all the request's): a feasible start, then the SLSQP polish."""
@@ -554,8 +361,8 @@ def _limited_plan(problem: _Problem, multiplier: float, iterations: int,
     # 1. the same problem with one power per climb, flat or descent (per run of segments on a
     #    split too fine for SLSQP): its plan is a plan of this split (same pieces, same
     #    powers), so this split starts from it and can only improve on it
-    grouped, steps = _coarse_start(problem, every.reserve, every.cap) if coarse_start else (
-        None, 0)
+    grouped, steps = coarse_start_plan(problem, every.reserve, every.cap, fastest_steady_plan,
+                                       _SLSQP_MAX_SEGMENTS) if coarse_start else (None, 0)
     # [iterations, ceiling steps]
     counts = [iterations + steps, 0]
     # with a plan of the coarser problem in hand, steps 2-3 (starts for the polish that lose
@@ -577,8 +384,8 @@ def _limited_plan(problem: _Problem, multiplier: float, iterations: int,
                                active=_active_limits(problem, power, held))
 
 
-def _feasible_start(problem: _Problem, multiplier: float, held: _Limits, counts: list[int]
-                    ) -> tuple[np.ndarray, str, str]:
+def _feasible_start(problem: FastestProblem, multiplier: float, held: SolverLimits,
+                    counts: list[int]) -> tuple[np.ndarray, str, str]:
     """A plan that keeps the broken limits, to polish from; (plan [W], method, message).
 
     2. With one limit broken, its price in every segment's Lagrangian (W′ spent above CP, or
@@ -683,7 +490,7 @@ def fastest_steady_plan(
         reserve = request.w_prime_reserve
     if cap is None:
         cap = request.effort_weighted_cap
-    problem = _Problem(model, request, lower, upper)
+    problem = FastestProblem(model, request, lower, upper)
     power, multiplier, iterations = lagrange_plan(model, request, lower, upper, problem.counter)
     centre, _ = coupling_constraint(request, model)
     stationarity = stationarity_residual(model, power, multiplier, centre, lower, upper)
@@ -697,10 +504,10 @@ def fastest_steady_plan(
                                    "equal marginal time per joule on every free segment")
     if breaks_w_prime and reserve is not None:
         _check_reserve_reachable(request, time, reserve)
-    held = _Limits(reserve if breaks_w_prime else None, cap if breaks_cap else None)
+    held = SolverLimits(reserve if breaks_w_prime else None, cap if breaks_cap else None)
     if start is not None and model.count <= _SLSQP_MAX_SEGMENTS:
         warm = _warm_plan(problem, start, held, multiplier, iterations)
         if warm is not None:
             return warm
-    return _limited_plan(problem, multiplier, iterations, _Limits(reserve, cap), held,
+    return _limited_plan(problem, multiplier, iterations, SolverLimits(reserve, cap), held,
                          coarse_start)

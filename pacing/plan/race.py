@@ -29,7 +29,8 @@ from pacing.physics.running import Runner
 from pacing.plan.cycling import RacePlan
 from pacing.plan.prediction import SimulationOptions
 from pacing.plan.request import PlanRequest
-from pacing.plan.running import DOWNHILL_SPEED_RATIO_CAP, RunningPlan
+from pacing.plan.running import DOWNHILL_SPEED_RATIO_CAP
+from pacing.plan.running_plan import RunningPlan
 from pacing.plan.strategies import SPORTS, strategy_for
 from pacing.plan.targets import SegmentTarget
 from pacing.weather.conditions import Conditions, CourseAir, air_along_course

@@ -1,13 +1,14 @@
 """Running race plans on a course: equal effort, even pace, and the fastest that critical
-speed and D′ allow, with their segment target rows.
+speed and D′ allow.
 
-The athlete's *effort* is the metabolic power of the flat-ground pace in still air at the
-start's air density (pacing.physics.running: the Minetti et al. 2002 cost of running on grades
-plus air resistance). An *equal-effort* plan runs every piece at the speed with that metabolic
-power; an *even-pace* plan runs one speed everywhere; the *fastest* plan is the highest equal
-effort that the runner's critical speed and D′ allow (D′ balance by Skiba's differential form,
-see `pacing.physiology.critical_speed.distance_capacity_balance`). The even-pace references and
-the D′ balance of a plan are in pacing.plan.even_pace.
+The athlete's *effort* is the metabolic power of the flat-ground pace in still air at the start's
+air density (pacing.physics.running_cost: the Minetti et al. 2002 cost of running on grades;
+pacing.physics.running: plus air resistance). An *equal-effort* plan runs every piece at the speed
+with that metabolic power; an *even-pace* plan runs one speed everywhere; the *fastest* plan is the
+highest equal effort that the runner's critical speed and D′ allow (D′ balance by Skiba's
+differential form, see `pacing.physiology.critical_speed.distance_capacity_balance`). The even-pace
+references and the D′ balance of a plan are in pacing.plan.even_pace; the plan as data
+(RunningPlan), its segment rows and target rows in pacing.plan.running_plan.
 
 What each plan holds to, and which is faster
 --------------------------------------------
@@ -57,16 +58,15 @@ from dataclasses import dataclass
 import numpy as np
 
 from pacing.course.geometry import Course
-from pacing.course.segments import split_every
 from pacing.errors import InputError
 from pacing.notices import Notice, note, warning
 from pacing.physics.running import (
-    RUNNING_COST_MODELS,
     RUNNING_SPEED_RANGE,
     Runner,
     flat_effort,
     speed_for_metabolic_power,
 )
+from pacing.physics.running_cost import RUNNING_COST_MODELS
 from pacing.physiology.critical_speed import check_critical_speed, distance_capacity_balance
 from pacing.plan.even_pace import (
     EvenPaceReference,
@@ -80,7 +80,7 @@ from pacing.plan.even_pace import (
     piece_metabolic_power,
     plan_d_prime_balance,
 )
-from pacing.plan.targets import SegmentTarget
+from pacing.plan.running_plan import RunningPlan, assemble_running_plan, running_segment_bounds
 from pacing.weather.conditions import CourseAir
 
 DOWNHILL_SPEED_RATIO_CAP = 1.2
@@ -90,194 +90,6 @@ say so): ×1.27 at −5 %, ×1.67 at −10 %. Runners in a self-paced hilly time
 faster on descents than on level sections (Med Sci Sports Exerc 42(1):160-169, 2010,
 "Spontaneous pacing during overground hill running"; authors Townshend et al. from
 memory), so 1.2 leaves room for steeper descents without the model's excess."""
-
-DEFAULT_SPLIT = 1000.0
-"""Segment length when no segment bounds are given [m]: kilometre splits."""
-
-@dataclass(frozen=True)
-class RunningSegment:
-    """One row of a running plan's target table (numbers only; formatting at the edges).
-
-    Attributes
-    ----------
-    start : float
-        Distance of the segment's start from the course's first point [m].
-    end : float
-        Distance of the segment's end from the course's first point [m].
-    grade : float
-        Mean grade, rise/run [-].
-    headwind : float
-        Length-weighted mean headwind component (negative: tailwind) [m/s].
-    speed : float
-        Mean ground speed [m/s].
-    pace : float
-        Target pace [s/km].
-    time : float
-        Expected time on the segment [s].
-    cumulative_time : float
-        Elapsed time at the segment's end [s].
-    effort_ratio : float
-        Time-weighted mean metabolic power relative to the effort target [-].
-    max_speed : float
-        Highest speed on a piece of the segment [m/s].
-    d_prime_balance : float or None
-        D′ balance at the segment's end; None without critical speed and D′ [m].
-    """
-
-    start: float
-    end: float
-    grade: float
-    headwind: float
-    speed: float
-    pace: float
-    time: float
-    cumulative_time: float
-    effort_ratio: float
-    max_speed: float
-    d_prime_balance: float | None = None
-
-
-@dataclass(frozen=True, eq=False)
-class RunningPlan:
-    """A running plan on a course and its prediction.
-
-    Attributes
-    ----------
-    strategy : str
-        "equal-effort", "even-pace" or "fastest" [-].
-    speed : numpy.ndarray
-        Ground speed on each piece, length N-1 [m/s].
-    time : numpy.ndarray
-        Time on each piece, length N-1 [s].
-    metabolic_power : numpy.ndarray
-        Metabolic power on each piece, length N-1 [W/kg].
-    effort : float
-        The effort target, metabolic power of the flat speed in still air [W/kg].
-    flat_speed : float
-        The flat-ground, still-air speed of that effort [m/s].
-    segments : tuple of RunningSegment
-        The target rows [-].
-    d_prime_balance : numpy.ndarray or None
-        D′ balance at the end of each piece (fastest plan, or any plan given critical speed
-        and D′; else None) [m].
-    notes : tuple of Notice
-        What the user must be told beside the numbers (pacing.notices) [-].
-    even_pace_speed : float or None
-        The even pace with this plan's time-weighted mean metabolic power [m/s].
-    even_pace_time : float or None
-        Finish time of that even pace, the reference of `time_saved` [s].
-    even_pace_peak_effort_ratio : float or None
-        That even pace's highest piece effort over the effort target [-].
-    limited_even_pace_time : float or None
-        Finish time of the fastest even pace within critical speed and D′ (fastest plan;
-        else None) [s].
-    """
-
-    strategy: str
-    speed: np.ndarray
-    time: np.ndarray
-    metabolic_power: np.ndarray
-    effort: float
-    flat_speed: float
-    segments: tuple[RunningSegment, ...]
-    d_prime_balance: np.ndarray | None = None
-    notes: tuple[Notice, ...] = ()
-    even_pace_speed: float | None = None
-    even_pace_time: float | None = None
-    even_pace_peak_effort_ratio: float | None = None
-    limited_even_pace_time: float | None = None
-
-    @property
-    def finish_time(self) -> float:
-        """Time from start to finish [s]."""
-        return float(self.time.sum())
-
-    @property
-    def distance(self) -> float:
-        """Distance covered, the sum of speed × time over the pieces [m]."""
-        return float((self.speed * self.time).sum())
-
-    @property
-    def average_speed(self) -> float:
-        """Distance over finish time [m/s]."""
-        return self.distance / self.finish_time
-
-    @property
-    def mean_effort_ratio(self) -> float:
-        """Time-weighted mean metabolic power relative to the effort target [-] (below 1 for
-        an equal-effort plan where the descent cap holds the runner back)."""
-        return float(np.sum(self.metabolic_power * self.time) / self.finish_time / self.effort)
-
-    @property
-    def peak_effort_ratio(self) -> float:
-        """Highest metabolic power on a piece relative to the effort target [-] (1 for an
-        equal-effort plan; above 1 on the climbs of an even pace)."""
-        return float(self.metabolic_power.max() / self.effort)
-
-    @property
-    def max_speed(self) -> float:
-        """Highest speed on a piece [m/s]."""
-        return float(self.speed.max())
-
-    @property
-    def time_saved(self) -> float | None:
-        """Seconds this plan finishes before the even pace at the same time-weighted mean
-        metabolic power [s] (negative: that even pace is faster, at the price of efforts
-        above the target on climbs; see the module docstring). None without a reference."""
-        return None if self.even_pace_time is None else self.even_pace_time - self.finish_time
-
-    @property
-    def min_d_prime_balance(self) -> float | None:
-        """Lowest D′ balance along the course [m] (None without critical speed and D′)."""
-        return None if self.d_prime_balance is None else float(self.d_prime_balance.min())
-
-    @property
-    def min_d_prime_distance(self) -> float | None:
-        """Distance from the start where the D′ balance is lowest [m] (None without it)."""
-        if self.d_prime_balance is None:
-            return None
-        return float(np.cumsum(self.speed * self.time)[int(np.argmin(self.d_prime_balance))])
-
-
-def _check_bounds(course: Course, bounds: np.ndarray | None) -> np.ndarray:
-    """The segment bounds as given (checked), or kilometre splits when None [-]."""
-    if bounds is None:
-        return split_every(course, DEFAULT_SPLIT)
-    bounds = np.asarray(bounds, dtype=int)
-    n = course.distance.size
-    if bounds.ndim != 1 or bounds.size < 2 or bounds[0] != 0 or bounds[-1] != n - 1 \
-            or np.any(np.diff(bounds) <= 0):
-        raise InputError("segment bounds must increase from 0 to the last point of the course")
-    return bounds
-
-
-def _segments(course: Course, bounds: np.ndarray, speed: np.ndarray, time: np.ndarray,
-              power: np.ndarray, effort: float, headwind: np.ndarray,
-              balance: np.ndarray | None = None) -> tuple[RunningSegment, ...]:
-    """One RunningSegment per pair of bounds, from the per-piece speed [m/s], time [s],
-    metabolic power [W/kg], headwind [m/s] and D′ balance [m]."""
-    length = course.piece_length
-    cumulative = np.concatenate([[0.0], np.cumsum(time)])
-    rows = []
-    for first, last in zip(bounds[:-1], bounds[1:], strict=True):
-        pieces = slice(first, last)
-        run = float(course.distance[last] - course.distance[first])
-        seg_time = float(time[pieces].sum())
-        seg_speed = run / seg_time
-        rows.append(RunningSegment(
-            start=float(course.distance[first] - course.distance[0]),
-            end=float(course.distance[last] - course.distance[0]),
-            grade=float((course.elevation[last] - course.elevation[first]) / run),
-            headwind=float(np.average(headwind[pieces], weights=length[pieces])),
-            speed=seg_speed,
-            pace=1000.0 / seg_speed,
-            time=seg_time,
-            cumulative_time=float(cumulative[last]),
-            effort_ratio=float(np.average(power[pieces], weights=time[pieces]) / effort),
-            max_speed=float(speed[pieces].max()),
-            d_prime_balance=None if balance is None else float(balance[last - 1]),
-        ))
-    return tuple(rows)
 
 
 def _grade_notices(course: Course, runner: Runner) -> list[Notice]:
@@ -318,7 +130,7 @@ def _flat_speed_inputs(course: Course, runner: Runner, flat_speed: float,
     effort target, the metabolic power of flat_speed at the start's air density [W/kg]."""
     check_limits(critical_speed, d_prime)
     air = piece_air(course, air_density, headwind, crosswind)
-    checked_bounds = _check_bounds(course, bounds)
+    checked_bounds = running_segment_bounds(course, bounds)
     return air, checked_bounds, flat_effort(flat_speed, float(air.density[0]), runner)
 
 
@@ -329,23 +141,6 @@ def _balance_if_given(power: np.ndarray, time: np.ndarray, runner: Runner, air: 
         return None
     return plan_d_prime_balance(power, time, runner, float(air.density[0]), critical_speed,
                                 d_prime)
-
-
-def _running_plan(strategy: str, course: Course, bounds: np.ndarray, air: CourseAir,
-                  speed: np.ndarray, time: np.ndarray, power: np.ndarray, effort: float,
-                  flat_speed: float, balance: np.ndarray | None, notes: list[Notice],
-                  reference: EvenPaceReference,
-                  limited_even_pace_time: float | None = None) -> RunningPlan:
-    """The RunningPlan of per-piece speed [m/s], time [s] and metabolic power [W/kg], with
-    its target rows and the even pace it is compared with."""
-    return RunningPlan(
-        strategy=strategy, speed=speed, time=time, metabolic_power=power, effort=effort,
-        flat_speed=float(flat_speed),
-        segments=_segments(course, bounds, speed, time, power, effort, air.headwind, balance),
-        d_prime_balance=balance, notes=tuple(notes), even_pace_speed=reference.speed,
-        even_pace_time=reference.time, even_pace_peak_effort_ratio=reference.peak_effort_ratio,
-        limited_even_pace_time=limited_even_pace_time,
-    )
 
 
 def _comparison_notice(finish_time: float, reference: EvenPaceReference,
@@ -453,8 +248,8 @@ def plan_equal_effort(
         notes.append(note("running-descent-capped", ratio=downhill_speed_ratio_cap,
                           share=float(capped.mean())))
     notes.extend(_comparison_notice(float(time.sum()), reference))
-    return _running_plan("equal-effort", course, checked_bounds, air, speed, time, power,
-                         effort, flat_speed, balance, notes, reference)
+    return assemble_running_plan("equal-effort", course, checked_bounds, air, speed, time,
+                                 power, effort, flat_speed, balance, notes, reference)
 
 
 def _check_even_pace(speed: float) -> float:
@@ -546,8 +341,8 @@ def plan_even_pace(
     notes.append(note("even-pace-effort-on-average", mean_effort_ratio=mean,
                       peak_effort_ratio=peak))
     reference = EvenPaceReference(speed=held, time=float(time.sum()), peak_effort_ratio=peak)
-    return _running_plan("even-pace", course, checked_bounds, air, speeds, time, power, effort,
-                         flat_speed, balance, notes, reference)
+    return assemble_running_plan("even-pace", course, checked_bounds, air, speeds, time, power,
+                                 effort, flat_speed, balance, notes, reference)
 
 
 @dataclass(frozen=True, eq=False)
@@ -691,7 +486,7 @@ def plan_fastest(
     if not 0.0 <= d_prime_reserve < d_prime:
         raise InputError(f"D′ reserve must be 0 to D′ ({d_prime:g} m), got {d_prime_reserve}")
     air = piece_air(course, air_density, headwind, crosswind)
-    checked_bounds = _check_bounds(course, bounds)
+    checked_bounds = running_segment_bounds(course, bounds)
     _check_usable_d_prime(course, d_prime, d_prime_reserve)
 
     def attempt(level: float) -> _Attempt:
@@ -708,31 +503,6 @@ def plan_fastest(
     limited_time = float(course.piece_length.sum() / limited_speed)
     notes = _fastest_notes(course, runner, air, best, reference, limited_speed, limited_time,
                            critical_speed, d_prime, d_prime_reserve, downhill_speed_ratio_cap)
-    return _running_plan("fastest", course, checked_bounds, air, best.speed, best.time,
-                         best.power, best.effort, level, best.balance, notes, reference,
-                         limited_even_pace_time=limited_time)
-
-
-def running_targets(plan: RunningPlan) -> list[SegmentTarget]:
-    """The plan's segments as segment target rows, for exports and the app.
-
-    Parameters
-    ----------
-    plan : RunningPlan
-        A running plan [-].
-
-    Returns
-    -------
-    list of pacing.plan.targets.SegmentTarget
-        One row per segment, SI; the power fields and the W′ balance are None, target_pace
-        is the segment's pace [s/km].
-    """
-    return [
-        SegmentTarget(
-            index=index, start=row.start, end=row.end, length=row.end - row.start,
-            grade=row.grade, target_power=None, power_low=None, power_high=None,
-            target_pace=row.pace, speed=row.speed, time=row.time,
-            cumulative_time=row.cumulative_time, w_prime_balance=None, headwind=row.headwind,
-        )
-        for index, row in enumerate(plan.segments)
-    ]
+    return assemble_running_plan("fastest", course, checked_bounds, air, best.speed,
+                                 best.time, best.power, best.effort, level, best.balance, notes,
+                                 reference, limited_even_pace_time=limited_time)

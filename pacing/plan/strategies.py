@@ -18,13 +18,8 @@ from pacing.errors import InputError
 from pacing.notices import Notice, note, warning
 from pacing.plan.cycling import RacePlan, make_plan
 from pacing.plan.prediction import Prediction
-from pacing.plan.running import (
-    RunningPlan,
-    plan_equal_effort,
-    plan_even_pace,
-    plan_fastest,
-    running_targets,
-)
+from pacing.plan.running import plan_equal_effort, plan_even_pace, plan_fastest
+from pacing.plan.running_plan import RunningPlan, running_targets
 from pacing.plan.targets import SegmentTarget, target_table
 
 if TYPE_CHECKING:

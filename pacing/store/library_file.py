@@ -1,5 +1,7 @@
 """The library file: the whole library, or one athlete's part of it, as one JSON document, for
-backup and for moving between machines. A format of our own design:
+backup and for moving between machines. This module defines the format and reads and checks a
+file (read_library_file); pacing.store.library_export writes one and
+pacing.store.library_import adds one to a library. A format of our own design:
 
 ```
 {
@@ -48,31 +50,20 @@ from collections.abc import Callable, Mapping
 from dataclasses import dataclass
 from typing import Any
 
-import sqlalchemy as sa
-from sqlalchemy.engine import Connection
-
-import pacing
 from pacing.athlete import Athlete, Setup
 from pacing.errors import InputError
-from pacing.store import jsontext
-from pacing.store.database import as_utc
-from pacing.store.library import Library, insert_row, resolve_plan_links
 from pacing.store.records import PLAN_LINK_KEYS, PLAN_RESULT_KEYS
 from pacing.store.rows import (
     ATHLETE_NUMBERS,
     SETUP_NUMBERS,
-    athlete_from_row,
     athlete_row,
     check_id,
     check_name,
     course_row,
     plan_inputs_text,
     plan_result_values,
-    plural,
-    setup_from_row,
     setup_row,
 )
-from pacing.store.schema import athletes, courses, plans, setups
 
 #: Value of the file's "format" field.
 FORMAT_NAME = "pacing library"
@@ -231,172 +222,9 @@ class LibraryFile:
     plans: tuple[FilePlan, ...]
 
 
-@dataclass(frozen=True)
-class ImportSummary:
-    """What an import added.
-
-    Attributes
-    ----------
-    athletes : int
-        New athletes [-].
-    setups : int
-        New setups [-].
-    courses : int
-        New courses [-].
-    courses_already_stored : int
-        Courses of the file whose GPX file and name were already stored, reused [-].
-    plans : int
-        New saved plans [-].
-    """
-
-    athletes: int
-    setups: int
-    courses: int
-    courses_already_stored: int
-    plans: int
-
-    def message(self) -> str:
-        """One line for the user, e.g. "imported 1 athlete, 2 setups, 1 course and 3 saved
-        plans"."""
-        reused = (f" ({self.courses_already_stored} already in the library)"
-                  if self.courses_already_stored else "")
-        return (f"imported {plural(self.athletes, 'athlete')}, {plural(self.setups, 'setup')}, "
-                f"{plural(self.courses, 'course')}{reused} and "
-                f"{plural(self.plans, 'saved plan')}")
-
-
-# ---------------------------------------------------------------------------------------------
-# export
-
-def _stamp(value: datetime.datetime) -> str:
-    """A stored time as ISO 8601 text with its UTC offset."""
-    return as_utc(value).isoformat()
-
-
-def _export_rows(connection: Connection, athlete_id: int | None
-                 ) -> tuple[list[Any], list[Any], list[Any], list[Any]]:
-    """The rows an export holds, by id: athletes, their setups, courses and plans (of one
-    athlete: their plans and only the courses those use)."""
-    athlete_query = sa.select(athletes).order_by(athletes.c.id)
-    plan_query = sa.select(plans).order_by(plans.c.id)
-    if athlete_id is not None:
-        check_id(athlete_id, "athlete id")
-        athlete_query = athlete_query.where(athletes.c.id == athlete_id)
-        plan_query = plan_query.where(plans.c.athlete_id == athlete_id)
-    athlete_rows = list(connection.execute(athlete_query))
-    if athlete_id is not None and not athlete_rows:
-        raise InputError(f"no athlete with id {athlete_id}")
-    setup_rows = list(connection.execute(
-        sa.select(setups).where(setups.c.athlete_id.in_([r.id for r in athlete_rows]))
-        .order_by(setups.c.id)))
-    plan_rows = list(connection.execute(plan_query))
-    course_query = sa.select(courses).order_by(courses.c.id)
-    if athlete_id is not None:
-        used = sorted({r.course_id for r in plan_rows if r.course_id is not None})
-        course_query = course_query.where(courses.c.id.in_(used))
-    course_rows = list(connection.execute(course_query))
-    return athlete_rows, setup_rows, course_rows, plan_rows
-
-
-def _setup_entry(row: Any) -> dict[str, Any]:
-    """A setup as the file holds it."""
-    setup = setup_from_row(row)
-    return {"id": row.id, "name": setup.name,
-            **{field: getattr(setup, field) for field in SETUP_NUMBERS},
-            "yaw_drag_table": (None if setup.yaw_drag_table is None
-                               else [list(pair) for pair in setup.yaw_drag_table]),
-            "created_at": _stamp(row.created_at), "updated_at": _stamp(row.updated_at)}
-
-
-def _athlete_entry(row: Any, setup_rows: list[Any]) -> dict[str, Any]:
-    """An athlete as the file holds it, with their setups among `setup_rows`."""
-    athlete = athlete_from_row(row)
-    return {
-        "id": row.id, "name": athlete.name,
-        **{field: getattr(athlete, field) for field in ATHLETE_NUMBERS},
-        "created_at": _stamp(row.created_at), "updated_at": _stamp(row.updated_at),
-        "setups": [_setup_entry(s) for s in setup_rows if s.athlete_id == row.id],
-    }
-
-
-def _course_entry(row: Any) -> dict[str, Any]:
-    """A course as the file holds it, the GPX file in base64 (RFC 4648 section 4)."""
-    return {
-        "id": row.id, "name": row.name, "distance_m": row.distance_m, "ascent_m": row.ascent_m,
-        "gpx_sha256": row.gpx_sha256,
-        "gpx_base64": base64.b64encode(bytes(row.gpx)).decode("ascii"),
-        "created_at": _stamp(row.created_at), "updated_at": _stamp(row.updated_at),
-    }
-
-
-def _plan_entry(row: Any) -> dict[str, Any]:
-    """A saved plan as the file holds it."""
-    return {
-        "id": row.id, "name": row.name, "inputs": jsontext.loads(row.inputs),
-        "strategy": jsontext.loads(row.strategy), "weather": jsontext.loads(row.weather),
-        "targets": jsontext.loads(row.targets), "time_saved": row.time_saved,
-        "finish_time": row.finish_time, "library_version": row.library_version,
-        "notes": row.notes,
-        "created_at": _stamp(row.created_at), "updated_at": _stamp(row.updated_at),
-    }
-
-
-def export_library(library: Library, athlete_id: int | None = None) -> dict[str, Any]:
-    """The library, or one athlete's part of it, in the library file format.
-
-    Parameters
-    ----------
-    library : Library
-        The open library; everything is read in one transaction.
-    athlete_id : int or None
-        Only this athlete, their setups, their saved plans and the courses those plans use;
-        None for the whole library.
-
-    Returns
-    -------
-    dict
-        The JSON-ready document described at the top of this module (SI numbers, times as
-        ISO 8601 text in UTC).
-
-    Raises
-    ------
-    InputError
-        No athlete with `athlete_id`.
-    """
-    with library.transaction() as connection:
-        athlete_rows, setup_rows, course_rows, plan_rows = _export_rows(connection, athlete_id)
-    return {
-        "format": FORMAT_NAME,
-        "format_version": FORMAT_VERSION,
-        "exported_at": datetime.datetime.now(datetime.UTC).isoformat(),
-        "exported_by": f"pacing {pacing.__version__}",
-        "athletes": [_athlete_entry(row, setup_rows) for row in athlete_rows],
-        "courses": [_course_entry(row) for row in course_rows],
-        "plans": [_plan_entry(row) for row in plan_rows],
-    }
-
-
-def dump_library_file(library: Library, athlete_id: int | None = None) -> str:
-    """The library file as text.
-
-    Parameters
-    ----------
-    library : Library
-        The open library.
-    athlete_id : int or None
-        Only this athlete's part (see export_library); None for the whole library.
-
-    Returns
-    -------
-    str
-        UTF-8 JSON, indented, ending with a newline.
-    """
-    return json.dumps(export_library(library, athlete_id), ensure_ascii=False, indent=1,
-                      allow_nan=False) + "\n"
-
-
 # ---------------------------------------------------------------------------------------------
 # reading and checking: small checks
+
 
 def _object(value: Any, where: str, allowed: set[str], required: set[str]
             ) -> Mapping[str, Any]:
@@ -474,6 +302,7 @@ def _refuse_constant(name: str) -> Any:
 
 # ---------------------------------------------------------------------------------------------
 # reading and checking: the document, entry by entry
+
 
 def _parse_document(source: str | bytes) -> Mapping[str, Any]:
     """The file's JSON object, marked as a pacing library file (UTF-8, a BOM allowed)."""
@@ -680,83 +509,3 @@ def read_library_file(source: str | bytes) -> LibraryFile:
                              {c.id for c in file_courses})
     return LibraryFile(version, exported_at, exported_by, tuple(file_athletes),
                        tuple(file_setups), tuple(file_courses), tuple(file_plans))
-
-
-# ---------------------------------------------------------------------------------------------
-# import
-
-def _import_course(connection: Connection, course: FileCourse) -> tuple[int, bool]:
-    """The library id of a file's course, and whether it was stored already (same GPX file
-    and name: that course is reused, not stored twice)."""
-    values = course_row(course.name, course.gpx, course.distance_m, course.ascent_m)
-    existing = connection.execute(
-        sa.select(courses.c.id).where(courses.c.gpx_sha256 == values["gpx_sha256"],
-                                      courses.c.name == values["name"])
-        .order_by(courses.c.id)).scalar()
-    if existing is not None:
-        return existing, True
-    return insert_row(connection, courses, values, course.created_at, course.updated_at), False
-
-
-def _import_plan(connection: Connection, plan: FilePlan,
-                 maps: Mapping[str, Mapping[int, int]]) -> None:
-    """Store a file's saved plan, its link keys rewritten from file ids to library ids."""
-    inputs = dict(plan.inputs)
-    for key, mapping in maps.items():
-        if inputs.get(key) is not None:
-            inputs[key] = mapping[inputs[key]]
-    inputs_text, links = plan_inputs_text(inputs)
-    insert_row(connection, plans, dict(
-        plan_result_values(plan.result), **resolve_plan_links(connection, links),
-        name=plan.name, inputs=inputs_text, notes=plan.notes,
-        library_version=plan.library_version), plan.created_at, plan.updated_at)
-
-
-def import_library(library: Library, source: str | bytes | LibraryFile) -> ImportSummary:
-    """Add everything in a library file to the library, in one transaction.
-
-    The file is checked completely first; a bad file raises InputError and the database is
-    left as it was. Every entry gets a new id; plan inputs' link keys are rewritten to them.
-    Saved plans keep the pacing version that made them.
-
-    Parameters
-    ----------
-    library : Library
-        The open library to add to.
-    source : str or bytes or LibraryFile
-        The file's text or bytes, or a file already read by read_library_file.
-
-    Returns
-    -------
-    ImportSummary
-        How many entries were added, and how many courses were already stored.
-
-    Raises
-    ------
-    InputError
-        A bad file (nothing written), or a database failure (everything rolled back).
-    """
-    data = source if isinstance(source, LibraryFile) else read_library_file(source)
-    athlete_map: dict[int, int] = {}
-    setup_map: dict[int, int] = {}
-    course_map: dict[int, int] = {}
-    reused = 0
-    with library.transaction() as connection:
-        for athlete in data.athletes:
-            athlete_map[athlete.id] = insert_row(connection, athletes,
-                                                 athlete_row(athlete.athlete),
-                                                 athlete.created_at, athlete.updated_at)
-        for setup in data.setups:
-            setup_map[setup.id] = insert_row(
-                connection, setups,
-                dict(setup_row(setup.setup), athlete_id=athlete_map[setup.athlete_id]),
-                setup.created_at, setup.updated_at)
-        for course in data.courses:
-            course_map[course.id], stored = _import_course(connection, course)
-            reused += int(stored)
-        maps = {"athlete_id": athlete_map, "setup_id": setup_map, "course_id": course_map}
-        for plan in data.plans:
-            _import_plan(connection, plan, maps)
-    return ImportSummary(athletes=len(data.athletes), setups=len(data.setups),
-                         courses=len(data.courses) - reused, courses_already_stored=reused,
-                         plans=len(data.plans))

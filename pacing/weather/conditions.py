@@ -9,9 +9,9 @@ Per piece (length N-1, see pacing.course.geometry):
 
 - elevation: mean of the piece's two end points;
 - pressure: ICAO standard atmosphere from the sea-level pressure
-(pacing.physics.air.standard_pressure);
+(pacing.physics.atmosphere.standard_pressure);
 - temperature: given at the start's elevation (course.elevation[0]), following the standard
-  lapse rate 6.5 K/km elsewhere (pacing.physics.air.temperature_at_elevation);
+  lapse rate 6.5 K/km elsewhere (pacing.physics.atmosphere.temperature_at_elevation);
 - density: humid air by CIPM-2007 (or another model of pacing.physics.air.AIR_DENSITY_MODELS);
 - wind: reduced from its measurement height to the rider's height by the log wind profile
   (pacing.physics.wind.wind_at_height), split by the piece's heading
@@ -31,13 +31,9 @@ from typing import TYPE_CHECKING
 import numpy as np
 
 from pacing.errors import InputError
-from pacing.physics.air import (
-    AIR_DENSITY_MODELS,
-    DEFAULT_AIR_DENSITY_MODEL,
-    TEMPERATURE_RANGE,
-    standard_pressure,
-    temperature_at_elevation,
-)
+from pacing.physics.air import AIR_DENSITY_MODELS, DEFAULT_AIR_DENSITY_MODEL
+from pacing.physics.atmosphere import standard_pressure, temperature_at_elevation
+from pacing.physics.inputs import TEMPERATURE_RANGE
 from pacing.physics.wind import wind_at_height, wind_components
 
 if TYPE_CHECKING:

@@ -1,0 +1,234 @@
+"""The library's athletes and their setups: add, read, list, change at a revision, delete
+with confirmation (an athlete goes with their setups and saved plans; a setup in use by saved
+plans is kept).
+"""
+
+from __future__ import annotations
+
+import sqlalchemy as sa
+
+from pacing.athlete import Athlete, Setup
+from pacing.errors import InputError
+from pacing.store.library_base import LibraryBase
+from pacing.store.records import AthleteRecord, SetupRecord
+from pacing.store.rows import athlete_record, athlete_row, plural, setup_record, setup_row
+from pacing.store.schema import athletes, plans, setups
+from pacing.store.statements import count_rows, delete_row, insert_row, update_row
+
+
+class AthleteMethods(LibraryBase):
+    """The methods of pacing.store.library.Library on athletes and their setups.
+
+    Parameters
+    ----------
+    engine : sqlalchemy.engine.Engine
+        An engine on a migrated library database (pacing.store.database.open_engine).
+    """
+
+    # ---- athletes ---------------------------------------------------------------------------
+
+    def add_athlete(self, athlete: Athlete) -> AthleteRecord:
+        """Store a new athlete.
+
+        Parameters
+        ----------
+        athlete : pacing.athlete.Athlete
+            The athlete's values (SI).
+
+        Returns
+        -------
+        AthleteRecord
+            As stored: new id, revision 1.
+        """
+        values = athlete_row(athlete)
+        with self.transaction() as connection:
+            new_id = insert_row(connection, athletes, values)
+        return self.athlete(new_id)
+
+    def athlete(self, athlete_id: int) -> AthleteRecord:
+        """The athlete with this id.
+
+        Parameters
+        ----------
+        athlete_id : int
+            Library id.
+
+        Returns
+        -------
+        AthleteRecord
+            The stored athlete (InputError if there is none).
+        """
+        return athlete_record(self._one(athletes, "athlete", athlete_id))
+
+    def athletes(self) -> tuple[AthleteRecord, ...]:
+        """All athletes.
+
+        Returns
+        -------
+        tuple of AthleteRecord
+            Ordered by name, then id.
+        """
+        return tuple(athlete_record(row) for row in
+                     self._rows(sa.select(athletes).order_by(athletes.c.name, athletes.c.id)))
+
+    def update_athlete(self, athlete_id: int, athlete: Athlete, *, revision: int
+                       ) -> AthleteRecord:
+        """Replace an athlete's values.
+
+        Parameters
+        ----------
+        athlete_id : int
+            Library id.
+        athlete : pacing.athlete.Athlete
+            The new values (SI).
+        revision : int
+            The revision of the copy the change is based on (the record's `revision`).
+
+        Returns
+        -------
+        AthleteRecord
+            As stored now (revision one higher).
+
+        Raises
+        ------
+        ConflictError
+            Someone changed the athlete since `revision`.
+        """
+        values = athlete_row(athlete)
+        with self.transaction() as connection:
+            update_row(connection, athletes, "athlete", athlete_id, revision, values)
+        return self.athlete(athlete_id)
+
+    def delete_athlete(self, athlete_id: int, *, confirm: bool = False,
+                       revision: int | None = None) -> None:
+        """Delete an athlete with their setups and saved plans.
+
+        Parameters
+        ----------
+        athlete_id : int
+            Library id.
+        confirm : bool
+            Must be True; otherwise nothing is deleted and the InputError says what would go.
+        revision : int or None
+            The revision the deletion is based on (ConflictError if stale); None deletes
+            whatever is stored.
+        """
+        with self.transaction() as connection:
+            row = self._one(athletes, "athlete", athlete_id, connection)
+            n_setups = count_rows(connection, setups, setups.c.athlete_id == athlete_id)
+            n_plans = count_rows(connection, plans, plans.c.athlete_id == athlete_id)
+            if not confirm:
+                raise InputError(
+                    f"deleting athlete {row.name!r} also deletes {plural(n_setups, 'setup')} "
+                    f"and {plural(n_plans, 'saved plan')}; confirm to go ahead")
+            connection.execute(plans.delete().where(plans.c.athlete_id == athlete_id))
+            connection.execute(setups.delete().where(setups.c.athlete_id == athlete_id))
+            delete_row(connection, athletes, "athlete", athlete_id, revision)
+
+    # ---- setups -----------------------------------------------------------------------------
+
+    def add_setup(self, athlete_id: int, setup: Setup) -> SetupRecord:
+        """Store a new setup of an athlete.
+
+        Parameters
+        ----------
+        athlete_id : int
+            Library id of the athlete who rides it.
+        setup : pacing.athlete.Setup
+            The setup's values (SI).
+
+        Returns
+        -------
+        SetupRecord
+            As stored: new id, revision 1.
+        """
+        values = setup_row(setup)
+        with self.transaction() as connection:
+            self._one(athletes, "athlete", athlete_id, connection)
+            new_id = insert_row(connection, setups, dict(values, athlete_id=athlete_id))
+        return self.setup(new_id)
+
+    def setup(self, setup_id: int) -> SetupRecord:
+        """The setup with this id.
+
+        Parameters
+        ----------
+        setup_id : int
+            Library id.
+
+        Returns
+        -------
+        SetupRecord
+            The stored setup (InputError if there is none).
+        """
+        return setup_record(self._one(setups, "setup", setup_id))
+
+    def setups(self, athlete_id: int | None = None) -> tuple[SetupRecord, ...]:
+        """All setups, or those of one athlete.
+
+        Parameters
+        ----------
+        athlete_id : int or None
+            Library id of the athlete; None for every setup.
+
+        Returns
+        -------
+        tuple of SetupRecord
+            Ordered by athlete id, name, then id.
+        """
+        query = sa.select(setups).order_by(setups.c.athlete_id, setups.c.name, setups.c.id)
+        if athlete_id is not None:
+            query = query.where(setups.c.athlete_id == athlete_id)
+        return tuple(setup_record(row) for row in self._rows(query))
+
+    def update_setup(self, setup_id: int, setup: Setup, *, revision: int) -> SetupRecord:
+        """Replace a setup's values.
+
+        Parameters
+        ----------
+        setup_id : int
+            Library id.
+        setup : pacing.athlete.Setup
+            The new values (SI).
+        revision : int
+            The revision of the copy the change is based on (the record's `revision`).
+
+        Returns
+        -------
+        SetupRecord
+            As stored now (revision one higher).
+
+        Raises
+        ------
+        ConflictError
+            Someone changed the setup since `revision`.
+        """
+        values = setup_row(setup)
+        with self.transaction() as connection:
+            update_row(connection, setups, "setup", setup_id, revision, values)
+        return self.setup(setup_id)
+
+    def delete_setup(self, setup_id: int, *, confirm: bool = False,
+                     revision: int | None = None) -> None:
+        """Delete a setup (refused while saved plans use it).
+
+        Parameters
+        ----------
+        setup_id : int
+            Library id.
+        confirm : bool
+            Must be True; otherwise nothing is deleted (InputError).
+        revision : int or None
+            The revision the deletion is based on (ConflictError if stale); None deletes
+            whatever is stored.
+        """
+        with self.transaction() as connection:
+            row = self._one(setups, "setup", setup_id, connection)
+            n_plans = count_rows(connection, plans, plans.c.setup_id == setup_id)
+            if n_plans:
+                raise InputError(f"setup {row.name!r} is used by "
+                                 f"{plural(n_plans, 'saved plan')}; delete them first")
+            if not confirm:
+                raise InputError(f"deleting setup {row.name!r} cannot be undone; confirm to "
+                                 "go ahead")
+            delete_row(connection, setups, "setup", setup_id, revision)

@@ -1,0 +1,69 @@
+"""Athletes and their setups in the library (pacing.store.library_athletes): they round trip, a
+setup belongs to a stored athlete, deleting an athlete needs confirmation and says what goes
+with them.
+
+Every test that takes `library` or `database` runs on SQLite and, with the `postgres` marker,
+on PostgreSQL (tests/store_fixtures.py).
+"""
+
+from __future__ import annotations
+
+import datetime
+
+import pytest
+
+# database_fixture and library_fixture are the `database` and `library` fixtures (pytest finds
+# them by those names)
+from store_fixtures import (  # noqa: F401
+    database_fixture,
+    dump,
+    fill,
+    library_fixture,
+)
+
+from pacing.athlete import Athlete, Setup
+from pacing.errors import InputError
+
+
+def test_athletes_round_trip(library):
+    cyclist = Athlete(name="Ann", body_mass=61.0, critical_power=250.0, w_prime=18000.0,
+                      height=1.68)
+    runner = Athlete(name="Bo Ångström", body_mass=0.1 + 70.2, critical_power=None,
+                     w_prime=None, height=None, flat_pace=245.0, critical_speed=4.3,
+                     d_prime=210.0)
+    stored = [library.add_athlete(cyclist), library.add_athlete(runner)]
+    assert [library.athlete(r.id).athlete for r in stored] == [cyclist, runner]
+    assert [r.athlete for r in library.athletes()] == [cyclist, runner]
+    assert stored[0].revision == 1
+    assert stored[0].created_at.tzinfo == datetime.UTC
+    assert stored[0].created_at == stored[0].updated_at
+
+
+def test_setups_round_trip_and_belong_to_an_athlete(library):
+    ann = library.add_athlete(Athlete(name="Ann"))
+    bo = library.add_athlete(Athlete(name="Bo"))
+    tt = Setup(name="TT", bike_mass=8.9, drag_area=0.2345678901234567, power_share=0.95,
+               rolling_coefficient=0.0029, drivetrain_efficiency=0.975,
+               yaw_drag_table=((0.0, 1.0), (5.0, 0.97), (10.0, 0.93)))
+    stored = library.add_setup(ann.id, tt)
+    library.add_setup(bo.id, Setup(name="road"))
+    assert library.setup(stored.id).setup == tt
+    assert library.setup(stored.id).athlete_id == ann.id
+    assert [r.setup for r in library.setups(ann.id)] == [tt]
+    assert len(library.setups()) == 2
+    with pytest.raises(InputError, match="no athlete with id 99"):
+        library.add_setup(99, tt)
+
+
+def test_deleting_needs_confirmation_and_says_what_goes(library):
+    ids = fill(library)
+    before = dump(library)
+    with pytest.raises(InputError, match="also deletes 2 setups and 2 saved plans; confirm"):
+        library.delete_athlete(ids["ann"])
+    with pytest.raises(InputError, match="confirm"):
+        library.delete_plan(ids["race"])
+    assert dump(library) == before
+    library.delete_athlete(ids["ann"], confirm=True)
+    assert [a.id for a in library.athletes()] == [ids["bo"]]
+    assert library.setups() == ()
+    assert [p.id for p in library.plans()] == [ids["run"]]
