@@ -11,9 +11,11 @@ import hashlib
 from pathlib import Path
 
 import numpy as np
+import pandas as pd
 import streamlit as st
 
 from pacing.display.notices import describe
+from pacing.display.units import format_duration, to_display, unit_label
 from pacing.errors import InputError, first_line
 from pacing.io.exports import segment_table
 from pacing.physics.wind import ROUGHNESS_LENGTHS
@@ -39,8 +41,50 @@ def read_demo(path: str) -> bytes:
 
 
 @st.cache_resource(max_entries=12, show_spinner="Reading the course…")
-def cached_course(data: bytes, name: str, window: float, max_grade: float, allow_flat: bool):
-    return pipeline.load_course_from_bytes(data, name, window, max_grade, allow_flat)
+def cached_course(data: bytes, name: str, window: float, max_grade: float, allow_flat: bool,
+                  tracks: tuple[int, ...] | None = None, gaps: str = "join"):
+    """(course, None) or (None, the refusal in one line): a refused file is not read again on
+    every rerun."""
+    try:
+        return pipeline.load_course_from_bytes(data, name, window, max_grade, allow_flat,
+                                               tracks, gaps), None
+    except (InputError, ValueError, OSError) as error:
+        return None, first_line(error)
+
+
+def recording_choices(course, system: str) -> tuple[tuple[int, ...] | None, str]:
+    """The tracks that make the course and what to do with gaps, asked only when the file has
+    more than one track or gaps; shows the tracks and the gaps found."""
+    tracks, gaps = None, "join"
+    if len(course.tracks) > 1 or course.gaps:
+        with st.expander("What the file holds: tracks and gaps", expanded=bool(course.gaps)):
+            st.dataframe(pd.DataFrame([{
+                "Track": t.index, "Name": t.name or "–", "Points": t.points,
+                f"Length [{unit_label('distance', system)}]":
+                    round(float(to_display(t.distance, "distance", system)), 2),
+                "Time span [h:mm:ss]": "–" if t.duration is None else format_duration(
+                    t.duration)} for t in course.tracks]), hide_index=True)
+            if len(course.tracks) > 1:
+                chosen = st.multiselect("Tracks that make the course",
+                                        [t.index for t in course.tracks],
+                                        default=[t.index for t in course.tracks],
+                                        key="course_tracks")
+                if chosen and len(chosen) < len(course.tracks):
+                    tracks = tuple(sorted(chosen))
+            gaps = st.radio("Gaps in the recording", ("join", "drop", "refuse"),
+                            key="course_gaps", horizontal=True,
+                            help="join: a straight line across (flagged); drop: the gap's "
+                                 "distance is not counted; refuse: do not use this file")
+    return tracks, gaps
+
+
+def course_notices(course, system: str) -> None:
+    """What reading the course found, beside its facts: warnings boxed, notes as captions."""
+    for notice in course.notices:
+        if notice.level == "warning":
+            st.warning(f"⚠ {describe(notice, system)}")
+        else:
+            st.caption(f"Note: {describe(notice, system)}")
 
 
 @st.cache_data(max_entries=64, show_spinner=False)
@@ -140,15 +184,21 @@ elif demos:
 if source_bytes is None:
     st.warning("No course yet: upload a GPX file.")
 else:
-    try:
-        course = cached_course(source_bytes, source_name, smoothing["window"],
-                               smoothing["max_grade"], allow_flat)
+    reading = (source_bytes, source_name, smoothing["window"], smoothing["max_grade"],
+               allow_flat)
+    course, refusal = cached_course(*reading)
+    if course is not None:
+        tracks, gaps = recording_choices(course, system)
+        if tracks is not None or gaps != "join":
+            course, refusal = cached_course(*reading, tracks, gaps)
         course_key = (hashlib.sha1(source_bytes).hexdigest()
-                      + f":{smoothing['window']}:{smoothing['max_grade']}:{allow_flat}")
-    except (InputError, ValueError, OSError) as error:
-        show_error(error, "Course file")
+                      + f":{smoothing['window']}:{smoothing['max_grade']}:{allow_flat}"
+                      + f":{tracks}:{gaps}")
+    if refusal:
+        show_error(InputError(refusal), "Course file")
 if course is not None:
     sections.route_facts(course, system)
+    course_notices(course, system)
     try:
         split = sections.split_inputs(system, course.total_distance)
         bounds = cached_bounds(course_key, course, split["mode"], split["length"],

@@ -5,4 +5,4 @@ strategies) works on numpy arrays in SI units; file formats, the database, the c
 the web app live at the edges and only call the core.
 """
 
-__version__ = "0.2.0"
+__version__ = "0.3.0"

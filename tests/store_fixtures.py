@@ -10,6 +10,9 @@ importing `database_fixture` and `library_fixture` (pytest finds them by their f
 
 from __future__ import annotations
 
+import base64
+import hashlib
+import json
 import os
 
 import pytest
@@ -160,3 +163,35 @@ def plan_result(scale: float = 1.0) -> dict:
         "time_saved": 41.5 * scale,
         "finish_time": 3725.0 / scale,
     }
+
+
+def big_library_file(n_athletes: int, plans_per_athlete: int = 2) -> str:
+    """A valid library file of many entries: `n_athletes` athletes with one setup each, one
+    course, and `plans_per_athlete` saved plans per athlete (invented SI numbers)."""
+    stamp = "2026-11-30T08:00:00+00:00"
+    gpx = b"<gpx/>"  # SHA-256 below from hashlib (FIPS 180-4)
+    athletes, plans = [], []
+    for i in range(1, n_athletes + 1):
+        athletes.append({"id": i, "name": f"athlete {i}", "body_mass": 60.0 + i % 30,
+                         "critical_power": 250.0, "w_prime": 18000.0, "height": 1.7,
+                         "flat_pace": None, "critical_speed": None, "d_prime": None,
+                         "created_at": stamp, "updated_at": stamp,
+                         "setups": [{"id": i, "name": "road", "bike_mass": 8.0,
+                                     "drag_area": 0.3, "power_share": 1.0,
+                                     "rolling_coefficient": 0.004,
+                                     "drivetrain_efficiency": 0.976, "yaw_drag_table": None,
+                                     "created_at": stamp, "updated_at": stamp}]})
+        for k in range(plans_per_athlete):
+            plan_id = (i - 1) * plans_per_athlete + k + 1
+            plans.append({"id": plan_id, "name": f"plan {plan_id}",
+                          "inputs": {"athlete_id": i, "setup_id": i, "course_id": 1},
+                          "strategy": "constant", "weather": None,
+                          "targets": [{"segment": 1, "power": 230.0, "time": 95.5}],
+                          "time_saved": None, "finish_time": 95.5, "library_version": "0.1.0",
+                          "notes": "", "created_at": stamp, "updated_at": stamp})
+    courses = [{"id": 1, "name": "Tiny", "distance_m": 1000.0, "ascent_m": 12.5,
+                "gpx_sha256": hashlib.sha256(gpx).hexdigest(),
+                "gpx_base64": base64.b64encode(gpx).decode(),
+                "created_at": stamp, "updated_at": stamp}]
+    return json.dumps({"format": "pacing library", "format_version": 1, "athletes": athletes,
+                       "courses": courses, "plans": plans})

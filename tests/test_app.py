@@ -451,3 +451,37 @@ def test_a_number_outside_its_range_is_said_not_dropped(typed):
     assert any(e.startswith("Average power [W]:") and "is outside 30 to 800" in e
                and "the page keeps 240" in e for e in errors), errors
     assert metric(app, "Finish time") == finish
+
+
+def test_a_recording_with_a_jump_names_the_gap_and_can_drop_it():
+    # issue 13: two tracks 12.7 km apart (tests/recording_samples.py, built with geographiclib)
+    from recording_samples import two_tracks_with_a_jump
+
+    app = started()
+    app.file_uploader(key="upload_gpx").set_value(
+        ("two.gpx", two_tracks_with_a_jump().encode(), "application/gpx+xml")).run()
+    no_failure(app)
+    assert any("gap" in w.value for w in app.warning), [w.value for w in app.warning]
+    joined = metric(app, "Distance")
+    app.radio(key="course_gaps").set_value("drop").run()
+    no_failure(app)
+    assert metric(app, "Distance") != joined
+    app.multiselect(key="course_tracks").set_value([2]).run()
+    no_failure(app)
+
+
+def test_a_refused_file_is_read_once():
+    # the refusal is cached with the file's bytes: a rerun does not parse it again
+    from ui import pipeline
+
+    app = started()
+    app.file_uploader(key="upload_gpx").set_value(
+        ("broken.gpx", b"<gpx><trk><trkseg>", "application/gpx+xml")).run()
+    calls = []
+    real = pipeline.load_course_from_bytes
+    pipeline.load_course_from_bytes = lambda *a, **k: calls.append(1) or real(*a, **k)
+    try:
+        app.run()
+    finally:
+        pipeline.load_course_from_bytes = real
+    assert calls == [] and app.error

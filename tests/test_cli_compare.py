@@ -209,3 +209,48 @@ def test_the_command_line_and_the_page_give_the_same_numbers(capsys, route):
     assert (data["mixed"] is None) == (page.mixed is None)
     if page.mixed is not None:
         assert data["mixed"]["finish_time_s"] == page.mixed.finish_time
+
+
+# ------------------------------------------------------------------ issue 14: fuzzing the flags
+
+COMPARE_FLAGS = ("--power", "--mass", "--crr", "--cp", "--w-prime", "--sd-cda", "--sd-crr",
+                 "--sd-mass", "--sd-wind", "--temperature", "--wind-speed")
+
+
+@pytest.fixture(scope="module")
+def small_course(tmp_path_factory):
+    """A 3 km road with one 30 m hill (tests/samples.py)."""
+    from samples import hill_road_gpx
+
+    path = tmp_path_factory.mktemp("fuzz") / "hill.gpx"
+    path.write_bytes(hill_road_gpx(3.0, 30.0))
+    return str(path)
+
+
+def _fuzz_compare():
+    from hypothesis import HealthCheck, given, settings
+    from hypothesis import strategies as st
+    from test_cli_plan import FUZZ_VALUES, check_the_outcome, run_quietly
+
+    @settings(max_examples=25, deadline=None,
+              suppress_health_check=[HealthCheck.function_scoped_fixture])
+    @given(flags=st.dictionaries(st.sampled_from(COMPARE_FLAGS), FUZZ_VALUES, max_size=3),
+           cda=FUZZ_VALUES, samples=st.sampled_from(["0", "2", "20", "-3", "1e9", "x"]),
+           strategy=st.sampled_from([[], ["--strategy", "fastest", "--cp", "280",
+                                          "--w-prime", "20000"]]))
+    def check(small_course, flags, cda, samples, strategy):
+        argv = ["compare", small_course, "--json", "--wind-from", "250", "--setup",
+                "hoods:cda=0.32", "--setup", f"aero:cda={cda}", "--samples", samples,
+                *strategy]
+        argv += ["--power", "250"] if "--power" not in flags else []
+        for flag, value in flags.items():
+            argv += [f"{flag}={value}"]
+        check_the_outcome(*run_quietly(argv))
+
+    return check
+
+
+def test_any_numbers_give_exit_0_or_2_one_line_or_strict_json(small_course):
+    # issue 14: `--sd-cda 1e308` printed "± inf" and cut JSON; exit 0 or 2, one line on error,
+    # strictly valid JSON (RFC 8259: no NaN or Infinity) on success
+    _fuzz_compare()(small_course)

@@ -8,9 +8,10 @@ import sys
 from pathlib import Path
 
 import pytest
+from recording_samples import two_tracks_with_a_jump
 
 from pacing.cli import main
-from pacing.io.gpx import DEFAULT_DEMO_ROUTE, load_course
+from pacing.io.gpx import DEFAULT_DEMO_ROUTE, load_course, read_track
 
 DATA = Path(__file__).parent / "data"
 
@@ -132,3 +133,73 @@ def test_points_without_elevation_are_interpolated_with_a_one_line_warning(capsy
     assert code == 0 and json.loads(out)["raw_ascent_m"] == pytest.approx(3.0)
     assert err == ("pacing course: warning: 2 of 4 track points had no elevation; their "
                    "heights were interpolated from the neighbouring points\n")
+
+
+# ------------------------------------------------------- what the file holds: tracks, gaps
+
+def test_json_of_a_demo_course_has_no_gaps_one_track_and_no_warnings(capsys):
+    code, out, err = run(capsys, DEFAULT_DEMO_ROUTE, "--json")
+    summary = json.loads(out)
+    assert code == 0 and err == ""
+    assert summary["gaps"] == [] and summary["warnings"] == []
+    assert [t["points"] for t in summary["tracks"]] == [len(read_track(DEFAULT_DEMO_ROUTE)
+                                                            .latitude)]
+    assert {n["code"] for n in summary["notices"]} == {"elevation-cleaned"}
+
+
+@pytest.fixture
+def merged_recording(tmp_path):
+    path = tmp_path / "merged.gpx"
+    path.write_text(two_tracks_with_a_jump())
+    return path
+
+
+def test_json_lists_tracks_gaps_and_warnings_of_a_merged_recording(capsys, merged_recording):
+    code, out, err = run(capsys, merged_recording, "--json")
+    assert code == 0
+    summary = json.loads(out)
+    assert summary["distance_m"] == pytest.approx(27_700.0, abs=5.0)
+    assert [(t["name"], t["points"]) for t in summary["tracks"]] == [
+        ("Morning part", 751), ("After the restart", 751)]
+    assert all(t["distance_m"] == pytest.approx(7_500.0, abs=0.1) for t in summary["tracks"])
+    assert [(round(g["at_m"]), round(g["length_m"])) for g in summary["gaps"]] == [
+        (7500, 12700)]
+    assert len(summary["warnings"]) == 1 and "12.7 km with no points" in summary["warnings"][0]
+    assert "course-gap-joined" in [n["code"] for n in summary["notices"]]
+    assert err == f"pacing course: warning: {summary['warnings'][0]}\n"
+
+
+def test_gaps_drop_and_refuse_and_the_track_choice(capsys, merged_recording):
+    code, out, _ = run(capsys, merged_recording, "--json", "--gaps", "drop")
+    assert code == 0 and json.loads(out)["distance_m"] == pytest.approx(15_000.0, abs=1.0)
+    code, out, err = run(capsys, merged_recording, "--gaps", "refuse")
+    assert code == 2 and out == "" and err.count("\n") == 1 and "1 gap" in err
+    code, out, err = run(capsys, merged_recording, "--json", "--track", "2")
+    summary = json.loads(out)
+    assert code == 0 and err == "" and summary["gaps"] == []
+    assert summary["distance_m"] == pytest.approx(7_500.0, abs=1.0)
+    assert [t["used"] for t in summary["tracks"]] == [False, True]
+    code, _, err = run(capsys, merged_recording, "--track", "3")
+    assert code == 2 and "there is no track 3" in err
+    code, _, err = run(capsys, merged_recording, "--track", "x")
+    assert code == 2 and err.count("\n") == 1
+
+
+def test_the_readable_summary_lists_tracks_and_gaps(capsys, merged_recording):
+    code, out, _ = run(capsys, merged_recording)
+    assert code == 0
+    assert "tracks                 2" in out
+    assert "Morning part: 7.50 km, 751 points, 1 segment(s), 0.26 h" in out
+    assert "gap             at km 7.50: 12.70 km without points (joined)" in out
+    assert "note: climbing" in out
+
+
+def test_plan_takes_the_course_flags_and_warns_of_gaps(capsys, merged_recording):
+    argv = ["plan", str(merged_recording), "--power", "250", "--json"]
+    assert main(argv + ["--track", "1"]) == 0
+    one = json.loads(capsys.readouterr().out)
+    assert one["distance_m"] == pytest.approx(7_500.0, abs=1.0)
+    assert main(argv) == 0
+    captured = capsys.readouterr()
+    assert json.loads(captured.out)["distance_m"] == pytest.approx(27_700.0, abs=5.0)
+    assert "warning: gap in the recording at 7.5 km" in captured.err

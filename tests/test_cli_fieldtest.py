@@ -203,11 +203,17 @@ def test_help_explains_the_flags_and_json_keys(capsys):
     (["{bad}", "--mass", "80"], "missing column(s) power"),
     (["{ride}", "--mass", "80", "--fallback-crr", "-0.01"], "--fallback-crr must be 0-0.1"),
     (["{ride}", "--mass", "80", "--crr", "nan"], "--crr must be 0-0.1"),
+    (["{ride}", "--mass", "80", "--bootstrap", "100000000"],
+     "--bootstrap must be a whole number from 0 to 10000"),
+    (["{ride}", "--mass", "80", "--bootstrap", "-1"], "--bootstrap must be a whole number"),
+    (["{header}", "--mass", "80"], "but no data rows"),
 ])
 def test_errors_are_one_line_with_exit_code_2(capsys, tmp_path, ride_file, args, message):
     bad = tmp_path / "bad.csv"
     bad.write_text("time_s,speed_mps\n0,9\n1,9\n")
-    args = [a.format(ride=ride_file, bad=bad) for a in args]
+    header = tmp_path / "header.csv"
+    header.write_text("time_s,speed_mps,power_w\n")
+    args = [a.format(ride=ride_file, bad=bad, header=header) for a in args]
     code = main(["fieldtest", *args])
     err = capsys.readouterr().err
     assert code == 2
@@ -248,8 +254,8 @@ def test_notes_of_cleaning_name_their_ride_in_json_and_text(capsys, tmp_path, ri
         lines[row] = ",".join(cells)
     stopped = tmp_path / "stopped.csv"
     stopped.write_text("\n".join(lines) + "\n")
-    expected = ("hoods: dropped 5 samples slower than 1 m/s (stops); the energy balance "
-                "restarts after each")
+    expected = ("hoods: dropped 5 samples slower than 1 m/s: 1 stop at t = 299 s (5 s long); "
+                "the energy balance restarts after each")
     result = run_json(capsys, stopped, "--mass", 80, "--position", "hoods")
     assert result["notes"] == [expected]
     assert isinstance(result["warnings"], list)
@@ -264,3 +270,30 @@ def test_warnings_in_text_carry_their_level(capsys, steady_file):
                 if line.startswith("warning: ")]
     assert any("laps lack speed variety" in line and "held at 0.0032" in line
                for line in warnings)
+
+
+def test_power_dropouts_are_left_out_and_warned_of_after_the_rides_label(capsys, tmp_path,
+                                                                         ride_file):
+    """0 W logged every fifth second of the simulated ride, written as a spreadsheet in a
+    decimal-comma locale writes CSV (";" between columns, common practice)."""
+    clean = run_json(capsys, ride_file, "--mass", 80)
+    lines = ride_file.read_text().splitlines()
+    for row in range(5, len(lines), 5):
+        cells = lines[row].split(",")
+        cells[2] = "0.0"
+        lines[row] = ",".join(cells)
+    lost = tmp_path / "lost.csv"
+    lost.write_text("\n".join(line.replace(",", ";").replace(".", ",") for line in lines))
+    result = run_json(capsys, lost, "--mass", 80, "--position", "hoods")
+    # left out, the dropouts move CdA by less than the clean ride's tolerance (2 %)
+    assert result["cda_m2"] == pytest.approx(TRUE_AREA, rel=0.02)
+    assert result["cda_m2"] == pytest.approx(clean["cda_m2"], abs=0.003)
+    (warned,) = [w for w in result["warnings"] if "power dropouts" in w]
+    assert warned.startswith("hoods: power dropouts: 23")
+    (notice,) = [n for n in result["notices"] if n["code"] == "test-ride-power-dropouts"]
+    assert notice["level"] == "warning" and notice["ride"] == "hoods"
+    assert notice["values"]["share"] == pytest.approx(0.2, abs=0.002)
+    assert main(["fieldtest", str(lost), "--mass", "80", "--position", "hoods",
+                 "--bootstrap", "0"]) == 0
+    assert any(line.startswith("warning: hoods: power dropouts: ")
+               for line in capsys.readouterr().out.splitlines())

@@ -9,6 +9,8 @@ import subprocess
 import sys
 
 import pytest
+from hypothesis import HealthCheck, given, settings
+from hypothesis import strategies as st
 
 import pacing
 from pacing.athlete import Athlete, Setup
@@ -117,6 +119,7 @@ def test_import_from_standard_input(capsys, database, tmp_path, monkeypatch):
     (["show", "plan", "1", "--gpx", "x.gpx"], "--gpx only goes with"),
     (["export", "--athlete", "5"], "no athlete with id 5"),
     (["import", "no-such-file.json"], "no such file"),
+    (["show", "plan", str(10**23)], "positive whole number up to"),  # OverflowError before
 ])
 def test_errors_are_one_line_with_exit_code_2(capsys, database, argv, words):
     code, out, err = run(capsys, "library", "--database", database, *argv)
@@ -149,3 +152,125 @@ def test_python_dash_m_entry_point(database):
          "1"], capture_output=True, text=True, timeout=60, check=False)
     assert completed.returncode == 0, completed.stderr
     assert "Hill loop" in completed.stdout
+
+
+def test_a_file_too_large_is_refused_before_it_is_read(capsys, database, tmp_path):
+    import tracemalloc
+
+    big = tmp_path / "big.json"
+    with big.open("wb") as stream:
+        stream.truncate(56_000_000)  # a sparse 56 MB file: 15 s and 1.2 GB before (issue 14)
+    tracemalloc.start()
+    code, out, err = run(capsys, "library", "--database", database, "import", str(big))
+    peak = tracemalloc.get_traced_memory()[1]
+    tracemalloc.stop()
+    assert code == 2 and out == "" and err.count("\n") == 1
+    assert "larger than 50 MiB (53.4 MiB)" in err
+    assert peak < 5_000_000  # [bytes]: the file was never read
+
+
+def test_a_deeply_nested_file_is_one_line(capsys, database, tmp_path):
+    deep = tmp_path / "deep.json"
+    deep.write_text("[" * 100_000, encoding="utf-8")  # RecursionError before (issue 14)
+    code, _, err = run(capsys, "library", "--database", database, "import", str(deep))
+    assert code == 2 and err.count("\n") == 1 and "deeper than 32 levels" in err
+
+
+def test_an_export_file_is_private_to_its_owner(capsys, database, tmp_path):
+    target = tmp_path / "backup.json"
+    assert run(capsys, "library", "--database", database, "export", "-o", str(target))[0] == 0
+    assert target.stat().st_mode & 0o777 == 0o600
+
+
+def test_import_never_merges_names_silently(capsys, database, tmp_path):
+    backup = tmp_path / "backup.json"
+    assert run(capsys, "library", "--database", database, "export", "-o", str(backup))[0] == 0
+    code, out, err = run(capsys, "library", "--database", database, "import", str(backup))
+    assert code == 2 and out == "" and err.count("\n") == 1
+    assert "nothing imported: athlete 'Ann' is already in the library" in err
+    assert "--on-existing keep-both" in err
+    code, out, _ = run(capsys, "library", "--database", database, "import", str(backup),
+                       "--on-existing", "keep-both")
+    assert code == 0 and "0 courses (1 already in the library)" in out
+    with open_library(database) as library:
+        assert [a.athlete.name for a in library.athletes()] == ["Ann", "Ann (2)"]
+        assert sorted(p.name for p in library.plans()) == ["Race day", "Race day (2)"]
+
+
+# ---------------------------------------------------------------------------------------------
+# fuzz: whatever the file, `library import` answers with exit 0 or one line and exit 2
+
+JSON = st.recursive(
+    st.none() | st.booleans() | st.integers() | st.floats(allow_nan=False)
+    | st.text(max_size=12),
+    lambda children: st.lists(children, max_size=4)
+    | st.dictionaries(st.text(max_size=8), children, max_size=4),
+    max_leaves=12)
+
+
+def _valid_backup() -> dict:
+    from store_fixtures import VERSION_1_FILE
+
+    return json.loads(VERSION_1_FILE)
+
+
+def _paths(value, prefix=()):
+    """Every path (keys and indices) into a JSON value."""
+    yield prefix
+    if isinstance(value, dict):
+        for key, item in value.items():
+            yield from _paths(item, (*prefix, key))
+    elif isinstance(value, list):
+        for index, item in enumerate(value):
+            yield from _paths(item, (*prefix, index))
+
+
+PATHS = [path for path in _paths(_valid_backup()) if path]
+
+
+@st.composite
+def mutated_backups(draw) -> bytes:
+    """A valid backup with one value replaced or removed, or its text cut or spliced."""
+    document = _valid_backup()
+    how = draw(st.sampled_from(["replace", "remove", "cut", "splice"]))
+    if how in ("replace", "remove"):
+        *parents, last = draw(st.sampled_from(PATHS))
+        holder = document
+        for key in parents:
+            holder = holder[key]
+        if how == "replace":
+            holder[last] = draw(JSON | st.sampled_from(
+                [1e300, -1.0, 0, 10**30, "0001-01-01T00:00:00+01:00", "\u202eX", "", []]))
+        else:
+            del holder[last]
+        return json.dumps(document).encode()
+    text = json.dumps(document).encode()
+    at = draw(st.integers(0, len(text)))
+    if how == "cut":
+        return text[:at]
+    return text[:at] + draw(st.binary(max_size=8)) + text[at:]
+
+
+@settings(max_examples=150, deadline=None,
+          suppress_health_check=[HealthCheck.function_scoped_fixture, HealthCheck.too_slow])
+@given(content=mutated_backups() | JSON.map(lambda v: json.dumps(v).encode())
+       | st.dictionaries(st.sampled_from(["format", "format_version", "athletes", "courses",
+                                          "plans", "exported_at"]), JSON)
+       .map(lambda d: json.dumps({"format": "pacing library", **d}).encode()))
+def test_library_import_fuzz_exit_0_or_one_line_and_2(capsys, tmp_path, content):
+    from pacing.errors import InputError
+    from pacing.store.library_file import read_library_file
+
+    try:
+        read_library_file(content)  # only ever a one-line InputError, nothing else
+    except InputError as error:
+        assert "\n" not in str(error)
+    source = tmp_path / "fuzz.json"
+    source.write_bytes(content)
+    code, out, err = run(capsys, "library", "--database", str(tmp_path / "fuzz.sqlite3"),
+                         "import", str(source), "--on-existing", "keep-both")
+    assert code in (0, 2)
+    if code == 2:
+        assert out == "" and err.count("\n") == 1 and err.startswith("pacing library: error:")
+    else:
+        assert out.startswith("imported ") and err == ""

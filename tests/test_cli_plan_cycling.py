@@ -17,9 +17,12 @@ from pacing.cli import main
 pytest.importorskip("pacing.io.gpx")
 
 JSON_KEYS = {"finish_time_s", "distance_m", "average_speed_mps", "average_power_w",
-             "max_speed_mps", "work_kj", "walking_distance_m", "segments", "notices"}
+             "max_speed_mps", "work_kj", "walking_distance_m", "segments", "notices",
+             "min_w_prime_balance_j", "w_prime_exhausted_at_m", "warnings"}
+LIMIT_KEYS = {"min_w_prime_balance_j", "w_prime_exhausted_at_m", "warnings"}
+"""Issue 14: every cycling plan says where W′ runs out, whatever its strategy."""
 SEGMENT_KEYS = {"start_m", "end_m", "grade", "power_w", "power_low_w", "power_high_w",
-                "speed_mps", "time_s", "max_speed_mps"}
+                "speed_mps", "time_s", "max_speed_mps", "walking_distance_m"}
 
 
 @pytest.fixture(scope="module")
@@ -46,8 +49,11 @@ def test_json_has_exactly_the_contract_keys(capsys, route):
     assert set(result) == JSON_KEYS
     assert result["segments"] and all(set(s) == SEGMENT_KEYS for s in result["segments"])
     assert all(isinstance(v, float) and math.isfinite(v)
-               for k, v in result.items() if k not in ("segments", "notices"))
+               for k, v in result.items() if k not in ("segments", "notices", *LIMIT_KEYS))
     assert result["notices"] == []  # 250 W on a 6 km hill: nothing to warn about
+    # without CP and W′ there is no balance to tell
+    assert result["min_w_prime_balance_j"] is None and result["w_prime_exhausted_at_m"] is None
+    assert result["warnings"] == []
 
 
 def test_json_numbers_are_consistent(capsys, route):
@@ -251,3 +257,87 @@ def test_command_line_unreachable_target_time_is_one_line(capsys, route):
     assert code == 2 and captured.out == ""
     lines = captured.err.strip().splitlines()
     assert len(lines) == 1 and "not reachable" in lines[0]
+
+
+# ------------------------------------------------------------------ issue 14: honest outputs
+
+@pytest.fixture(scope="module")
+def flat_route(tmp_path_factory):
+    """A flat 10 km course heading east."""
+    import numpy as np
+
+    from pacing.course.geometry import synthetic_course
+    from pacing.io.gpx import write_gpx
+
+    distance = np.arange(0.0, 10000.1, 10.0)
+    path = tmp_path_factory.mktemp("routes") / "flat.gpx"
+    # at 100 m with a 1 cm ripple (smoothed away): a file whose heights are all the same reads
+    # as one without heights
+    ripple = 100.0 + 0.01 * (np.arange(distance.size) % 2)
+    path.write_text(write_gpx(synthetic_course(distance, ripple, heading=90.0)))
+    return str(path)
+
+
+@pytest.mark.parametrize("strategy", [[], ["--strategy", "constant"]])
+def test_a_constant_plan_above_cp_says_where_w_prime_runs_out(capsys, flat_route, strategy):
+    # Issue 14: `--power 250 --cp 200 --w-prime 20000` finished with no word. At a constant
+    # power P above CP the critical power model runs out of W′ after W′/(P − CP) = 400 s
+    # (Monod & Scherrer 1965, Ergonomics 8(3):329-338; the depletion rate of Skiba et al.
+    # 2015's differential balance above CP): the point named lies where the clock passes 400 s.
+    result = run_json(capsys, flat_route, "--power", "250", "--cp", "200", "--w-prime", "20000",
+                      "--segment-length", "100", *strategy)
+    where = result["w_prime_exhausted_at_m"]
+    assert where is not None
+    elapsed = 0.0
+    for segment in result["segments"]:
+        if segment["start_m"] <= where < segment["end_m"]:
+            assert elapsed - 1.0 <= 400.0 <= elapsed + segment["time_s"] + 1.0
+            break
+        elapsed += segment["time_s"]
+    else:
+        raise AssertionError(f"{where} m lies in no segment")
+    # spent beyond W′: (P − CP)·T − W′, T the finish time, within the standing start's
+    # first seconds (less than 250 W while the traction caps the drive force)
+    spent = 50.0 * result["finish_time_s"] - 20000.0
+    assert -result["min_w_prime_balance_j"] == pytest.approx(spent, rel=0.02)
+    assert len(result["warnings"]) == 1 and "W′ runs out" in result["warnings"][0]
+    assert result["warnings"] == [n["text"] for n in result["notices"]
+                                  if n["level"] == "warning"]
+
+
+def test_a_constant_plan_within_cp_runs_out_nowhere(capsys, flat_route):
+    result = run_json(capsys, flat_route, "--power", "180", "--cp", "200", "--w-prime", "20000")
+    assert result["w_prime_exhausted_at_m"] is None
+    assert result["min_w_prime_balance_j"] == pytest.approx(20000.0)  # never below CP
+    assert result["warnings"] == []
+
+
+def test_walked_climbs_carry_no_crank_power(capsys, tmp_path):
+    # issue 14: `--power 100` up a 25 % climb walks, yet showed 197 W in the segment and the
+    # mean. A 1 km flat then a 25 % wall of 500 m (horizontal): the wall is walked, its segment
+    # carries no crank power and says how far was walked; the flat holds the plan's 100 W.
+    import numpy as np
+
+    from pacing.course.geometry import synthetic_course
+    from pacing.io.gpx import write_gpx
+
+    x = np.arange(0.0, 1500.1, 10.0)
+    course = synthetic_course(x, np.where(x <= 1000.0, 0.0, 0.25 * (x - 1000.0)))
+    path = tmp_path / "wall.gpx"
+    path.write_text(write_gpx(course))
+    result = run_json(capsys, str(path), "--power", "100", "--segment-length", "500")
+    flat, wall = result["segments"][1], result["segments"][2]
+    assert flat["power_w"] == pytest.approx(100.0, rel=1e-6)  # the ridden pieces only
+    assert wall["power_w"] == 0.0
+    assert wall["walking_distance_m"] == pytest.approx(wall["end_m"] - wall["start_m"])
+    assert result["walking_distance_m"] >= 500.0
+    assert result["average_power_w"] < 100.0  # the wall's minutes on foot count as 0 W
+    assert result["work_kj"] * 1000 == pytest.approx(
+        result["average_power_w"] * result["finish_time_s"])
+
+
+def test_an_efficiency_below_one_half_is_refused_in_one_line(capsys, route):
+    # issue 14: `--efficiency 0.01` reported a mean of 1878 W
+    assert main(["plan", route, "--power", "250", "--efficiency", "0.01"]) == 2
+    err = capsys.readouterr().err.strip().splitlines()
+    assert len(err) == 1 and "--efficiency must be 0.5-1" in err[0]

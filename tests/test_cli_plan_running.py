@@ -114,8 +114,9 @@ def test_table_shows_min_per_km_and_min_per_mile(capsys, flat_route):
         (["--flat-pace", "5:00", "--humidity", "150"], "humidity"),
     ],
 )
-def test_bad_input_gives_one_line_and_exit_code_2(capsys, flat_route, argv, message):
-    assert main(["plan", str(flat_route), "--sport", "running", *argv]) == 2
+def test_bad_input_gives_one_line_and_exit_code_2(capsys, hilly_route, argv, message):
+    # (a course with heights: a flat file of all-equal heights is warned about on its own line)
+    assert main(["plan", str(hilly_route), "--sport", "running", *argv]) == 2
     err = capsys.readouterr().err
     assert err.count("\n") == 1 and "Traceback" not in err
     assert message in err
@@ -198,8 +199,8 @@ def test_downhill_cap_flag(capsys, descent_route):
         assert err.count("\n") == 1 and "--downhill-cap" in err
 
 
-def test_cycling_flags_are_ignored_with_a_one_line_warning(capsys, flat_route):
-    assert main(["plan", str(flat_route), "--sport", "running", "--flat-pace", "4:30",
+def test_cycling_flags_are_ignored_with_a_one_line_warning(capsys, hilly_route):
+    assert main(["plan", str(hilly_route), "--sport", "running", "--flat-pace", "4:30",
                  "--mass", "90", "--power", "250", "--json"]) == 0
     captured = capsys.readouterr()
     assert json.loads(captured.out)["body_mass_kg"] == 72.0
@@ -207,7 +208,7 @@ def test_cycling_flags_are_ignored_with_a_one_line_warning(capsys, flat_route):
     assert len(warning) == 1
     assert "--mass" in warning[0] and "--power" in warning[0] and "--body-mass" in warning[0]
     # --cda and --drafting belong to running too: no warning
-    assert main(["plan", str(flat_route), "--sport", "running", "--flat-pace", "4:30",
+    assert main(["plan", str(hilly_route), "--sport", "running", "--flat-pace", "4:30",
                  "--cda", "0.4", "--drafting", "50", "--json"]) == 0
     assert "warning" not in capsys.readouterr().err
 
@@ -226,3 +227,31 @@ def test_out_of_range_flat_pace_is_reported_as_typed(capsys, flat_route):
     assert main(["plan", str(flat_route), "--sport", "running", "--flat-pace", "0:30"]) == 2
     err = capsys.readouterr().err
     assert "got 0:30" in err and "m/s" not in err.split("got")[-1]
+
+
+def test_json_says_where_d_prime_runs_out(capsys, flat_route):
+    # Issue 14: every plan says where D′ runs out. On the flat in still air the equal-effort
+    # pace is the flat pace v; above CS the critical speed model spends D′ at v − CS
+    # (Poole et al. 2016, Med Sci Sports Exerc 48(11):2320-2334), so it is gone after
+    # D′/(v − CS) seconds, v·D′/(v − CS) metres from the start.
+    result = run_json(capsys, flat_route, "--flat-pace", "3:40", "--critical-speed", "4.2",
+                      "--d-prime", "200")
+    speed = 1000.0 / 220.0
+    assert result["d_prime_exhausted_at_m"] == pytest.approx(
+        speed * 200.0 / (speed - 4.2), abs=10.0)  # within one 10 m piece
+    assert len(result["warnings"]) == 1 and "D′ runs out" in result["warnings"][0]
+    within = run_json(capsys, flat_route, "--flat-pace", "5:00", "--critical-speed", "4.2",
+                      "--d-prime", "200")
+    assert within["d_prime_exhausted_at_m"] is None and within["warnings"] == []
+    without = run_json(capsys, flat_route, "--flat-pace", "3:40")
+    assert without["d_prime_exhausted_at_m"] is None
+
+
+@pytest.mark.parametrize("wind", ["40", "60"])
+def test_a_gale_is_refused_in_one_line(capsys, hilly_route, wind):
+    # issue 14: 40-60 m/s gave efforts of −221 % and a pace of 1:00/km, with no warning
+    assert main(["plan", str(hilly_route), "--sport", "running", "--flat-pace", "4:30",
+                 "--wind-speed", wind, "--wind-from", "250"]) == 2
+    captured = capsys.readouterr()
+    assert captured.out == "" and captured.err.count("\n") == 1
+    assert "cannot be run in" in captured.err

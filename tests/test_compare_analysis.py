@@ -198,3 +198,15 @@ def test_draws_cut_at_calm_are_told_with_the_share_of_a_normal_tail():
     heavy_doubt = Uncertainty(mass=70.0, drag_area=0.3)  # 80 kg ± 70 kg, 0.32 m² ± 0.3 m²
     labels = [n.values["label"] for n in clipped_draw_notices(comparison, heavy_doubt, 5)]
     assert labels == ["drag_area", "mass"]
+
+
+def test_draws_too_many_for_the_course_are_refused_with_what_is_allowed():
+    # issue 14: `compare --samples 10000` on a long course ran for minutes
+    from pacing.compare.analysis import MAX_DRAWN_PIECES, check_draw_work
+
+    check_draw_work(20, 2, 2000)  # the golden case: 8·10⁴ simulated pieces
+    with pytest.raises(InputError) as error:
+        check_draw_work(10_000, 2, 20_000)
+    message = str(error.value)
+    assert "\n" not in message
+    assert f"at most {MAX_DRAWN_PIECES // 40_000} samples" in message

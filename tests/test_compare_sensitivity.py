@@ -372,3 +372,11 @@ def test_negative_uncertainty_is_refused():
     with pytest.raises(InputError, match="uncertainty"):
         Uncertainty(drag_area=-0.01)
 
+
+
+@pytest.mark.parametrize("name", ["drag_area", "rolling_coefficient", "mass", "wind"])
+def test_an_uncertainty_wider_than_its_input_s_range_is_refused(name):
+    # issue 14: `compare --sd-cda 1e308` printed "± inf" and cut JSON
+    with pytest.raises(InputError) as error:
+        Uncertainty(**{name: 1e308})
+    assert "\n" not in str(error.value) and "at most" in str(error.value)

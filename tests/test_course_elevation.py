@@ -21,12 +21,17 @@ from pacing.course.elevation import (
     ElevationSmoothing,
     check_elevation_jumps,
     clean_elevation,
+    cleaning_notices,
     fill_missing_elevation,
     limit_grade,
+    missing_elevation_notice,
     smooth_elevation,
+    sustained_length,
+    sustained_steep_pieces,
     total_ascent,
 )
 from pacing.errors import InputError
+from pacing.notices import warning
 
 
 def hill(distance):
@@ -165,8 +170,9 @@ def test_elevation_smoothing_refuses_non_finite_or_out_of_range_values(changes):
 def test_missing_heights_are_interpolated_and_held_at_the_ends():
     distance = np.array([0.0, 100.0, 300.0, 400.0, 500.0])
     elevation = np.array([np.nan, 10.0, np.nan, 40.0, np.nan])
-    with pytest.warns(UserWarning, match="3 of 5 track points had no elevation"):
-        filled = fill_missing_elevation(distance, elevation)
+    filled = fill_missing_elevation(distance, elevation)
+    assert missing_elevation_notice(elevation) == warning("elevation-points-missing", count=3,
+                                                          total=5)
     # by hand: 300 m lies two thirds of the way from 100 m (10 m) to 400 m (40 m)
     np.testing.assert_allclose(filled, [10.0, 10.0, 30.0, 40.0, 40.0])
 
@@ -176,6 +182,7 @@ def test_complete_heights_are_returned_as_they_are_without_a_warning():
     with warnings.catch_warnings():
         warnings.simplefilter("error")
         assert fill_missing_elevation(np.array([0.0, 1.0, 2.0]), elevation) is elevation
+    assert missing_elevation_notice(elevation) is None
 
 
 def test_no_height_at_all_is_refused():
@@ -192,3 +199,34 @@ def test_elevation_jumps_are_absurd_beyond_the_slack_plus_a_100_percent_grade():
     with pytest.raises(InputError, match="absurd elevation jump of 151 m over 100 m between "
                                          "points 2 and 3"):
         check_elevation_jumps(np.array([10.0, 100.0]), np.array([0.0, 5.0, -146.0]))
+
+
+# ------------------------------------------------- sustained steep stretches are real climbing
+
+def test_a_stretch_steeper_than_the_limit_for_long_enough_is_kept():
+    # by hand: 300 m at 30 % between flat road, a point every 10 m
+    distance = np.arange(0.0, 1001.0, 10.0)
+    elevation = 0.30 * np.clip(distance - 300.0, 0.0, 300.0)
+    kept = sustained_steep_pieces(distance, elevation, 0.25, 200.0)
+    assert kept.sum() == 30 and kept[30:60].all()
+    np.testing.assert_allclose(limit_grade(distance, elevation, 0.25, 200.0), elevation)
+    # shorter than the stretch asked for: flattened to 25 %, the summit 15 m lower
+    cut = limit_grade(distance, elevation, 0.25, 400.0)
+    assert cut[-1] == pytest.approx(0.25 * 300.0)
+    assert sustained_length(ElevationSmoothing(window=50.0)) == 100.0
+
+
+def test_cleaning_notices_tell_what_was_removed_kept_and_cut():
+    distance = np.arange(0.0, 1001.0, 10.0)
+    ramp = 0.30 * np.clip(distance - 300.0, 0.0, 300.0)
+    smoothed = ramp.copy()
+    notices = cleaning_notices(distance, ramp, smoothed, limit_grade(distance, ramp, 0.25,
+                                                                   200.0), 0.25, 200.0)
+    assert [n.code for n in notices] == ["elevation-cleaned", "steep-grade-kept"]
+    assert notices[1].values["at_m"] == 300.0
+    assert notices[1].values["length_m"] == pytest.approx(300.0)
+    cut = cleaning_notices(distance, ramp, smoothed, limit_grade(distance, ramp, 0.25), 0.25)
+    assert [n.code for n in cut] == ["elevation-cleaned", "grade-limit-cut"]
+    assert cut[1].values["at_m"] == 300.0
+    assert cut[1].values["height_m"] == pytest.approx(15.0)
+    assert cut[0].values["limit_removed_m"] == pytest.approx(15.0)

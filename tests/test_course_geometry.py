@@ -13,7 +13,11 @@ from geographiclib.geodesic import Geodesic
 from hypothesis import HealthCheck, given, settings
 from hypothesis import strategies as st
 
-from pacing.course.elevation import ElevationSmoothing
+from pacing.course.elevation import (
+    ElevationSmoothing,
+    sustained_length,
+    sustained_steep_pieces,
+)
 from pacing.course.geometry import (
     DEFAULT_STEP,
     STRAIGHT_ROAD_RADIUS,
@@ -25,6 +29,7 @@ from pacing.course.geometry import (
 )
 from pacing.course.segments import split_by_grade
 from pacing.errors import InputError
+from pacing.notices import warning
 
 GEODESIC = Geodesic.WGS84  # reference library: Karney (2013), J Geodesy 87:43, geographiclib
 
@@ -143,17 +148,18 @@ def test_repeated_consecutive_points_are_dropped_silently():
 
 def test_missing_elevations_at_some_points_are_interpolated_along_the_distance():
     latitude, longitude = meridian_track([0.0, 100.0, 300.0])
-    with pytest.warns(UserWarning, match="1 of 3 track points had no elevation"):
-        course = build_course(latitude, longitude, [10.0, np.nan, 40.0],
-                              smoothing=ElevationSmoothing(method="none"))
+    course = build_course(latitude, longitude, [10.0, np.nan, 40.0],
+                          smoothing=ElevationSmoothing(method="none"))
     assert course.raw_elevation[10] == pytest.approx(20.0)  # 100 m of 300 m → 10 + 30/3
+    assert course.notices[0] == warning("elevation-points-missing", count=1, total=3)
 
 
 def test_a_track_with_every_elevation_gives_no_warning():
     latitude, longitude = meridian_track([0.0, 100.0, 300.0])
     with warnings.catch_warnings():
         warnings.simplefilter("error")
-        build_course(latitude, longitude, [10.0, 20.0, 40.0])
+        course = build_course(latitude, longitude, [10.0, 20.0, 40.0])
+    assert [n.code for n in course.notices] == ["elevation-cleaned"]
 
 
 # ------------------------------------------------------------------- a known profile
@@ -327,7 +333,11 @@ def test_random_valid_tracks_give_sound_courses(track, window, max_grade, method
                  "corner_radius"):
         assert np.all(np.isfinite(getattr(course, name))), name
     assert np.all(course.piece_length > 0)
-    assert np.all(np.abs(course.grade) <= max_grade + 1e-12)
+    # beyond the grade limit only over stretches steep for at least the sustained length
+    beyond = np.abs(course.grade) > max_grade + 1e-12
+    kept = sustained_steep_pieces(course.distance, course.elevation, max_grade,
+                                  sustained_length(smoothing))
+    assert not np.any(beyond & ~kept)
     assert course.ascent <= course.raw_ascent + 1e-6
     assert np.all((course.heading >= 0) & (course.heading < 360))
     assert np.all((course.corner_radius > 0) & (course.corner_radius <= STRAIGHT_ROAD_RADIUS))

@@ -22,3 +22,39 @@ def test_every_code_speaks_one_line_in_both_systems(code, system):
 
 def test_there_is_something_to_say():
     assert WORDS
+
+
+class TestRideWords:
+    """The sentences of reading and cleaning a ride (pacing.fieldtest.ride)."""
+
+    DROPOUTS = {"count": 240, "zero_count": 238, "share": 0.2017, "longest_s": 3.0,
+                "speed_mps": 4.0}
+
+    def test_power_dropouts_give_count_share_longest_gap_and_speed(self):
+        words = WORDS["test-ride-power-dropouts"]
+        assert words(self.DROPOUTS, "metric") == (
+            "power dropouts: 240 samples without a real power reading (20 % of the ride, 238 "
+            "of them logged as 0 W while pedalling faster than 4 m/s), the longest gap "
+            "between readings 3 s; left out of the energy balance and bridged from the "
+            "readings on either side: check the power meter's battery and pairing")
+        # 1 mph = 0.44704 m/s exactly (NIST SP 811 (2008), App. B.8): 4 m/s = 8.9 mph
+        assert "faster than 8.9 mph" in words(self.DROPOUTS, "imperial")
+
+    def test_blank_readings_alone_say_nothing_of_0_w(self):
+        values = {**self.DROPOUTS, "count": 2, "zero_count": 0, "share": 0.01}
+        sentence = WORDS["test-ride-power-dropouts"](values, "imperial")
+        assert "(1 % of the ride)" in sentence and "0 W" not in sentence
+
+    def test_stops_name_where_and_how_long(self):
+        words = WORDS["test-ride-stops-dropped"]
+        one = {"count": 5, "speed_mps": 1.0, "stretch_count": 1, "duration_s": 5.0,
+               "longest_s": 5.0, "times_s": (300.0,)}
+        assert words(one, "metric") == ("dropped 5 samples slower than 1 m/s: 1 stop at "
+                                        "t = 300 s (5 s long); the energy balance restarts "
+                                        "after each")
+        many = {"count": 90, "speed_mps": 1.0, "stretch_count": 7, "duration_s": 95.0,
+                "longest_s": 40.0, "times_s": (10.0, 20.0, 30.0, 40.0, 50.0)}
+        assert ("7 stops at t = 10, 20, 30, 40, 50, … s (95 s in all, the longest 40 s)"
+                in words(many, "imperial"))
+        # 1 m/s = 2.2 mph (NIST SP 811 (2008), App. B.8)
+        assert "slower than 2.2 mph" in words(many, "imperial")

@@ -143,6 +143,13 @@ class TestClockText:
         with pytest.raises(InputError):
             parse_clock(bad)
 
+    def test_a_flood_of_digits_is_refused_without_being_echoed(self):
+        # issue 14: a 300-digit --target-time was echoed back whole
+        with pytest.raises(InputError) as error:
+            parse_clock("9" * 300, "--target-time")
+        assert len(str(error.value)) < 100 and "1000 hours" in str(error.value)
+        assert parse_clock("999:59:59") == 999 * 3600 + 3599  # the longest kept
+
     @pytest.mark.parametrize("bad", [float("nan"), -1.0, float("inf"), "x"])
     def test_bad_duration_is_an_input_error_not_nan_text(self, bad):
         with pytest.raises(InputError):

@@ -9,12 +9,15 @@ import numpy as np
 import pytest
 
 from pacing.display.notices import describe
+from pacing.errors import InputError
 from pacing.fieldtest.checks import (
     BRAKING_DECELERATION,
+    MAX_BOOTSTRAP_DRAWS,
     PLAUSIBLE_ROLLING,
     USUAL_DRAG_AREA,
     USUAL_ROLLING,
     braking_times,
+    check_bootstrap_draws,
     conditions_notices,
     drag_area_notices,
     interval_notices,
@@ -115,3 +118,26 @@ def test_why_there_is_no_interval():
     assert codes(interval_notices([], 3, 1000, False)) == ["fieldtest-bootstrap-failed"]
     assert interval_notices(["aero"], 3, 0, False) == []  # no interval was asked for
     assert interval_notices([], 3, 1000, True) == []
+
+
+class TestBootstrapDraws:
+    """The work a user can ask for is bounded. Percentile intervals want about 1000 draws
+    (Efron & Tibshirani 1993, An Introduction to the Bootstrap, ch. 13 and 19): the bound
+    leaves ten times that."""
+
+    @pytest.mark.parametrize("draws", [0, 1, 1000, MAX_BOOTSTRAP_DRAWS, np.int64(300)])
+    def test_up_to_the_bound_is_accepted(self, draws):
+        assert check_bootstrap_draws(draws) == int(draws)
+        assert isinstance(check_bootstrap_draws(draws), int)
+
+    @pytest.mark.parametrize("draws", [-1, MAX_BOOTSTRAP_DRAWS + 1, 100_000_000, 2.5, True,
+                                       "1000", float("nan")])
+    def test_outside_it_is_one_line_naming_the_bound(self, draws):
+        with pytest.raises(InputError) as caught:
+            check_bootstrap_draws(draws, "--bootstrap")
+        message = str(caught.value)
+        assert message.startswith("--bootstrap must be a whole number from 0 to 10000")
+        assert "\n" not in message
+
+    def test_the_bound_leaves_ten_times_what_percentile_intervals_want(self):
+        assert MAX_BOOTSTRAP_DRAWS == 10 * 1000

@@ -17,6 +17,7 @@ import pytest
 from PIL import Image
 
 from pacing.course.geometry import synthetic_course
+from pacing.display.notices import describe
 from pacing.display.units import format_duration
 from pacing.errors import InputError
 from pacing.io.exports import (
@@ -24,6 +25,7 @@ from pacing.io.exports import (
     CAUTION_LINE,
     card_size,
     course_with_targets_gpx,
+    located_warnings,
     segment_table,
     segment_waypoints,
     table_to_csv,
@@ -31,6 +33,7 @@ from pacing.io.exports import (
     target_card_pdf,
     target_card_png,
 )
+from pacing.notices import note, warning
 
 
 def make_rows(count=6, running=False, wprime=True):
@@ -58,6 +61,14 @@ class TestTable:
         table = segment_table(make_rows())
         for column in table.columns:
             assert column == "Segment" or ("[" in column and column.endswith("]")), column
+
+    def test_the_walked_distance_has_a_column_only_when_some_segment_walks(self):
+        # issue 14: segment rows say how far the bike was pushed on foot
+        rows = make_rows(3)
+        assert not any(c.startswith("Walked") for c in segment_table(rows).columns)
+        rows[1]["walking_distance"] = 1609.344  # one international mile (NIST SP 811, B.8)
+        assert list(segment_table(rows)["Walked [km]"]) == [0.0, 1.61, 0.0]
+        assert list(segment_table(rows, "imperial")["Walked [mi]"]) == [0.0, 1.0, 0.0]
 
     def test_metric_numbers(self):
         row = make_rows()[1]
@@ -165,6 +176,23 @@ class TestGpx:
     def test_running_waypoints_carry_pace(self):
         _, name, _ = segment_waypoints(make_rows(running=True))[0]
         assert "min/km" in name
+
+    def test_the_segment_where_w_prime_runs_out_carries_the_warning(self):
+        # issue 14: GPX waypoint notes say where W′ runs out; make_rows' third segment spans
+        # 10 250 m to 15 750 m
+        notice = warning("w-prime-exhausted", distance_m=12000.0, lowest_balance_j=-4000.0)
+        located = located_warnings([notice, note("limits-reached", limits=["cp"])])
+        assert located == [(12000.0, describe(notice, "metric"))]
+        course = self.course()
+        parsed = gpxpy.parse(course_with_targets_gpx(course, make_rows(), "metric", located))
+        told = [w.description for w in parsed.waypoints]
+        assert "W′ runs out" in told[2] and "12.0 km" in told[2]
+        assert not any("W′ runs out" in text for k, text in enumerate(told) if k != 2)
+
+    def test_a_warning_past_the_last_segment_goes_on_the_last_waypoint(self):
+        rows = make_rows(3)
+        points = segment_waypoints(rows, warnings=[(rows[-1]["end"], "D′ runs out")])
+        assert points[-1][2].endswith("Warning: D′ runs out")
 
 
 class TestCard:

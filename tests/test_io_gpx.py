@@ -6,6 +6,7 @@ from __future__ import annotations
 import importlib.util
 import io
 import math
+import re
 import warnings
 from pathlib import Path
 
@@ -14,6 +15,7 @@ import numpy as np
 import pytest
 from geographiclib.geodesic import Geodesic
 
+from pacing.display.notices import describe
 from pacing.errors import InputError
 from pacing.io import gpx as gpx_module
 from pacing.io.gpx import (
@@ -25,6 +27,7 @@ from pacing.io.gpx import (
     read_track,
     write_gpx,
 )
+from pacing.notices import warning
 
 DATA = Path(__file__).parent / "data"
 GEODESIC = Geodesic.WGS84  # reference library: Karney (2013), geographiclib
@@ -79,9 +82,9 @@ def test_missing_elevation_is_refused_unless_a_flat_course_is_allowed():
     with pytest.raises(InputError, match="no elevation.*use --flat \\(command line\\) or "
                        "'A file without heights is a flat course' \\(app\\)"):
         load_course(DATA / "route_gpx11.gpx")
-    with pytest.warns(UserWarning, match="flat"):
-        course = load_course(DATA / "route_gpx11.gpx", allow_missing_elevation=True)
+    course = load_course(DATA / "route_gpx11.gpx", allow_missing_elevation=True)
     assert course.ascent == 0.0 and np.all(course.grade == 0.0)
+    assert [n.code for n in course.notices] == ["elevation-missing"]
 
 
 @pytest.mark.parametrize("missing", ["", "<ele>nan</ele>", "<ele></ele>"])
@@ -89,9 +92,9 @@ def test_points_missing_some_elevations_are_filled_in_with_a_warning(missing):
     text = gpx_text(NORTHWARD).replace("<ele>102.0</ele>", missing)
     track = read_track(text.encode())
     assert np.isnan(track.elevation[2])
-    with pytest.warns(UserWarning, match="1 of 6 track points had no elevation") as caught:
-        course = load_course(text.encode())
-    assert "\n" not in str(caught[0].message)
+    course = load_course(text.encode())
+    assert warning("elevation-points-missing", count=1, total=6) in course.notices
+    assert describe(course.notices[0]).startswith("1 of 6 track points had no elevation")
     assert np.all(np.isfinite(course.elevation))
 
 
@@ -294,3 +297,170 @@ def test_waypoints_on_a_course_over_the_antimeridian_stay_on_it():
     assert abs(middle.longitude) > 179.99  # not at 0 deg, the far side of the earth
     from_start = GEODESIC.Inverse(-16.0, 179.998, middle.latitude, middle.longitude)["s12"]
     assert from_start == pytest.approx(course.total_distance / 2, rel=1e-3)  # geographiclib
+
+
+# ------------------------------------------------------------- limits before the work
+
+def test_waypoints_and_route_points_count_towards_the_point_limit(monkeypatch):
+    monkeypatch.setattr(gpx_module, "MAX_GPX_POINTS", 8)
+    waypoints = "".join(f'<wpt lat="45.0" lon="7.{k}"/>' for k in range(3))
+    route = '<rte><rtept lat="45.0" lon="7.0"/></rte>'
+    with pytest.raises(InputError, match="more than 8 track, route and waypoints"):
+        read_track(gpx_text(NORTHWARD).replace("<trk>", waypoints + route + "<trk>").encode())
+    one = '<wpt lat="45.0" lon="7.0"/>'
+    assert read_track(gpx_text(NORTHWARD).replace("<trk>", one + "<trk>").encode())
+
+
+def test_the_point_count_comes_before_any_parser(monkeypatch):
+    def no_parsing(*args, **kwargs):
+        raise AssertionError("parsed before the point count")
+
+    monkeypatch.setattr(gpx_module, "MAX_GPX_POINTS", 5)
+    monkeypatch.setattr(gpx_module, "walk_xml", no_parsing)
+    monkeypatch.setattr(gpx_module.gpxpy, "parse", no_parsing)
+    prefixed = gpx_text(NORTHWARD).replace("<trkpt", "<g:trkpt").replace(
+        "</trkpt>", "</g:trkpt>")
+    for text in (gpx_text(NORTHWARD), prefixed):
+        with pytest.raises(InputError, match="too many points"):
+            read_track(text.encode())
+
+
+@pytest.mark.parametrize("kind", ["/dev/zero", "fifo"])
+def test_only_regular_files_are_read(tmp_path, kind):
+    # /dev/zero never ends and a FIFO waits for a writer: both are refused by their type,
+    # before they are opened; through the real command line, with a timeout.
+    import os
+    import subprocess
+    import sys
+
+    if kind == "fifo":
+        path = tmp_path / "course.gpx"
+        os.mkfifo(path)
+    else:
+        path = Path("/dev/zero")
+        if not path.exists():
+            pytest.skip("no /dev/zero here")
+    with pytest.raises(InputError, match="not a regular file"):
+        read_track(path)
+    result = subprocess.run([sys.executable, "-m", "pacing", "course", str(path)],
+                            capture_output=True, text=True, timeout=60)
+    assert result.returncode == 2 and result.stderr.count("\n") == 1
+    assert "not a regular file" in result.stderr
+
+
+MEASURE = """
+import resource, sys, time
+from pacing.errors import InputError
+from pacing.io.gpx import read_track
+start = time.perf_counter()
+try:
+    read_track(sys.argv[1])
+    outcome = "accepted"
+except InputError as error:
+    outcome = str(error)
+print(time.perf_counter() - start)
+try:  # the peak of this process alone: Linux keeps ru_maxrss across fork and exec
+    status = open("/proc/self/status").read()
+    print(int(status.split("VmHWM:")[1].split()[0]) * 1024)
+except (OSError, IndexError):
+    print(resource.getrusage(resource.RUSAGE_SELF).ru_maxrss * 1024)
+print(outcome)
+"""
+
+
+def _measured(path):
+    """Seconds, peak resident memory [bytes] and outcome of read_track in a fresh process."""
+    import subprocess
+    import sys
+
+    result = subprocess.run([sys.executable, "-c", MEASURE, str(path)], capture_output=True,
+                            text=True, timeout=120, check=True)
+    seconds, peak, outcome = result.stdout.splitlines()[:3]
+    return float(seconds), int(peak), outcome
+
+
+def test_a_50_mb_file_of_too_many_points_is_refused_in_under_2_s_with_bounded_memory(tmp_path):
+    # 1.5 million compact points in 48 MB (under the size limit), as in the issue "Real
+    # recorded files": refused by the early count, not after a parse of 24 s and 1.4 GB
+    row = b'<trkpt lat="45.1234" lon="7.123"/>'
+    path = tmp_path / "huge.gpx"
+    with open(path, "wb") as file:
+        file.write(gpx_text([]).split("<trkseg>")[0].encode() + b"<trkseg>")
+        file.write(row * 1_500_000)
+        file.write(b"</trkseg></trk></gpx>")
+    assert 45e6 < path.stat().st_size < gpx_module.MAX_GPX_BYTES
+    seconds, peak, outcome = _measured(path)
+    assert "too many points" in outcome
+    assert seconds < 2.0
+    assert peak < 300 * 2**20
+
+
+def test_a_file_over_the_size_limit_is_refused_by_its_size_at_once(tmp_path):
+    path = tmp_path / "larger.gpx"
+    with open(path, "wb") as file:  # sparse: no 51 MiB written to disk
+        file.write(b"<gpx>")
+        file.truncate(gpx_module.MAX_GPX_BYTES + 2**20)
+    seconds, peak, outcome = _measured(path)
+    assert outcome == "GPX file is too large: 51 MiB (limit 50 MiB)"
+    assert seconds < 2.0 and peak < 300 * 2**20
+
+
+# ------------------------------------------------------------------------------ encodings
+
+@pytest.mark.parametrize("encoding", ["utf-16", "utf-16-le", "utf-16-be", "utf-32"])
+def test_utf_16_and_utf_32_files_that_declare_their_encoding_are_read(encoding):
+    name = encoding.upper() if encoding in ("utf-16", "utf-32") else encoding.upper()[:6]
+    text = gpx_text(NORTHWARD).replace("Test track", "Côte à Zéphyr").replace(
+        'encoding="UTF-8"', f'encoding="{name}"')
+    data = text.encode(encoding)
+    if encoding in ("utf-16-le", "utf-16-be"):  # with the byte-order mark written out
+        data = ("\ufeff" + text).encode(encoding)
+    track = read_track(data)
+    assert track.name == "Côte à Zéphyr"
+    np.testing.assert_allclose(track.elevation, [p[2] for p in NORTHWARD])
+
+
+def test_a_utf_8_file_with_a_byte_order_mark_is_read():
+    data = b"\xef\xbb\xbf" + gpx_text(NORTHWARD).encode()
+    assert read_track(data).name == "Test track"
+
+
+# ------------------------------------------------------------------------ hostile files
+
+HOSTILE = Path(__file__).parent / "data" / "hostile"
+
+HOSTILE_FILES = {  # file: what the one-line refusal says
+    "truncated.gpx": "the XML does not parse",
+    "huge_latitude.gpx": "latitude out of range -90..90 deg at point 2: inf",
+    "huge_elevation.gpx": "outside the plausible range",
+    "long_digits.gpx": "longitude out of range",
+    "nan_latitude.gpx": "latitude out of range -90..90 deg at point 2: nan",
+    "infinite_longitude.gpx": "longitude out of range -180..180 deg at point 1: inf",
+    "billion_laughs.gpx": "declares a DTD or entities",
+    "parameter_entity.gpx": "declares a DTD or entities",
+    "external_dtd.gpx": "declares a DTD or entities",
+    "xinclude.gpx": "only one point",  # XInclude is not processed: one point is left
+    "bad_time.gpx": "track point 1 has time 'yesterday at noon', not a date and time",
+    "utf16_declared_but_utf8.gpx": "encoding specified in XML declaration is incorrect",
+    "unknown_encoding.gpx": "unknown encoding",
+    "binary.gpx": "not valid UTF-8",
+}
+
+
+def test_every_hostile_file_is_listed():
+    assert sorted(p.name for p in HOSTILE.glob("*.gpx")) == sorted(HOSTILE_FILES)
+
+
+@pytest.mark.parametrize("name", sorted(HOSTILE_FILES))
+def test_hostile_files_end_in_one_line_errors(name):
+    with pytest.raises(InputError, match=re.escape(HOSTILE_FILES[name])) as error:
+        load_course(HOSTILE / name)
+    assert "\n" not in str(error.value)
+
+
+@pytest.mark.parametrize("depth", [100, 100_000])
+def test_deep_nesting_is_refused_in_one_line(depth):
+    inner = "<extensions>" * depth + "</extensions>" * depth
+    text = gpx_text(NORTHWARD).replace("<trkseg>", f"<trkseg>{inner}")
+    with pytest.raises(InputError, match="nested more than 64 deep"):
+        read_track(text.encode())

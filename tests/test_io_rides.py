@@ -11,11 +11,13 @@ import io
 import numpy as np
 import pytest
 import scipy.constants as sc
+from hypothesis import given, settings
+from hypothesis import strategies as st
 
 from pacing.display.notices import describe_all
 from pacing.errors import InputError
 from pacing.fieldtest.ride import Ride
-from pacing.io.rides import CSV_COLUMNS, read_ride, read_ride_csv, read_ride_gpx
+from pacing.io.rides import CSV_COLUMNS, read_ride, read_ride_csv, read_ride_gpx, sniff_csv
 
 N = 40
 
@@ -128,8 +130,8 @@ class TestCsv:
         ride = read_ride_csv(csv_text(base))
         assert ride.time.size == N - 10
         assert describe_all(ride.notes) == [
-            "dropped 10 samples slower than 1 m/s (stops); the energy balance restarts after "
-            "each"]
+            "dropped 10 samples slower than 1 m/s: 1 stop at t = 15 s (10 s long); the energy "
+            "balance restarts after each"]
 
     def test_empty_and_missing_files(self, tmp_path):
         with pytest.raises(InputError, match="empty"):
@@ -138,6 +140,170 @@ class TestCsv:
             read_ride(tmp_path / "nope.csv")
         with pytest.raises(InputError, match="folder"):
             read_ride(tmp_path)
+
+    def test_only_regular_files_are_read(self, tmp_path):
+        import os
+
+        fifo = tmp_path / "ride.csv"
+        os.mkfifo(fifo)  # reading it would wait forever for a writer
+        with pytest.raises(InputError, match="not a regular file"):
+            read_ride(fifo)
+        if os.path.exists("/dev/zero"):  # endless zeros
+            with pytest.raises(InputError, match="not a regular file"):
+                read_ride("/dev/zero", kind="csv")
+
+
+def spreadsheet_text(columns: dict[str, list], separator: str = ";", decimal: str = ",") -> str:
+    """The columns as a spreadsheet in a decimal-comma locale writes them (common practice:
+    the list separator becomes ";" where "," is the decimal mark)."""
+    lines = [separator.join(columns)]
+    for row in zip(*columns.values(), strict=True):
+        lines.append(separator.join(repr(float(v)).replace(".", decimal) for v in row))
+    return "\r\n".join(lines) + "\r\n"
+
+
+def assert_same_ride(ride: Ride, columns: dict[str, list]) -> None:
+    np.testing.assert_allclose(ride.time, columns["time_s"])
+    np.testing.assert_allclose(ride.speed, columns["speed_mps"])
+    np.testing.assert_allclose(ride.power, columns["power_w"])
+    np.testing.assert_allclose(ride.elevation, columns["elevation_m"])
+
+
+def one_line_refusal(data: bytes, words: str) -> str:
+    with pytest.raises(InputError, match=words) as caught:
+        read_ride_csv(data)
+    message = str(caught.value)
+    assert "\n" not in message
+    return message
+
+
+class TestCsvDialect:
+    """Separator, decimal mark and encoding are sniffed; what cannot be read is refused in
+    one line naming what was found. Byte-order marks: The Unicode Standard, section 23.8."""
+
+    @pytest.mark.parametrize("separator, decimal, words", [
+        (";", ",", "semicolon-separated, decimal comma"),
+        ("\t", ",", "tab-separated, decimal comma"),
+        ("\t", ".", "tab-separated, decimal point"),
+        ("|", ".", "vertical bar-separated, decimal point"),
+        (",", ".", "comma-separated, decimal point"),
+    ])
+    def test_separator_and_decimal_mark(self, separator, decimal, words):
+        data = spreadsheet_text(canonical(), separator, decimal).encode()
+        assert_same_ride(read_ride_csv(data), canonical())
+        assert sniff_csv(data)[1].describe.startswith(words)
+
+    def test_quoted_decimal_commas_in_a_comma_separated_file(self):
+        columns = canonical()
+        lines = [",".join(columns)] + [",".join(f'"{float(v)!r}"'.replace(".", ",")
+                                                for v in row)
+                                       for row in zip(*columns.values(), strict=True)]
+        assert_same_ride(read_ride_csv(("\n".join(lines) + "\n").encode()), columns)
+
+    def test_a_first_line_naming_the_separator(self):
+        # "sep=;" on the first line: what spreadsheets read as the separator (common practice)
+        data = ("sep=;\r\n" + spreadsheet_text(canonical(), ";", ".")).encode()
+        assert_same_ride(read_ride_csv(data), canonical())
+        assert sniff_csv(data)[1].separator == ";"
+
+    def test_columns_separated_by_runs_of_spaces(self):
+        text = spreadsheet_text(canonical(), " ", ".").replace(" ", "   ")
+        assert_same_ride(read_ride_csv(text.encode()), canonical())
+
+    @pytest.mark.parametrize("encoding, mark", [
+        ("utf-8", b"\xef\xbb\xbf"),
+        ("utf-16-le", b"\xff\xfe"),
+        ("utf-16-be", b"\xfe\xff"),
+        ("utf-32-le", b"\xff\xfe\x00\x00"),
+    ])
+    def test_byte_order_marks(self, encoding, mark):
+        data = mark + spreadsheet_text(canonical()).encode(encoding)
+        ride = read_ride_csv(data)
+        assert_same_ride(ride, canonical())
+        # a byte-order mark does not stick to the first column's name
+        assert read_ride(io.BytesIO(data)).time.size == N
+
+    def test_windows_1252_text(self):
+        columns = {**canonical(), "temperature °C": [18.5] * N}
+        data = spreadsheet_text(columns).encode("cp1252")
+        with pytest.raises(UnicodeDecodeError):
+            data.decode("utf-8")
+        assert_same_ride(read_ride_csv(data), canonical())
+
+    def test_header_only_and_a_single_row_are_one_line(self, tmp_path):
+        one_line_refusal(b"time_s,speed_mps,power_w\n",
+                         r"has a header \(time_s, speed_mps, power_w\) but no data rows")
+        one_line_refusal(b"timestamp;speed;power\r\n", "but no data rows")
+        one_line_refusal(b"time_s,speed_mps,power_w\n0,9,200\n",
+                         "a single data row: a test ride needs at least 10 samples")
+        path = tmp_path / "header.csv"
+        path.write_bytes(b"\xef\xbb\xbftime_s;speed_mps;power_w\r\n")
+        with pytest.raises(InputError, match="no data rows"):
+            read_ride(path)
+
+    def test_what_cannot_be_read_is_named(self):
+        one_line_refusal(b"time\n1\n2\n", "cannot tell the columns apart: the header 'time'")
+        one_line_refusal(b"a;b\n1,5;2.5\n" * 3, "mixes decimal commas and points "
+                                                 r"\(e.g. '1,5' and '2.5'\)")
+        # a FIT file (binary; its header carries ".FIT" at bytes 8-11, FIT protocol from memory)
+        one_line_refusal(bytes([14, 16, 0, 0, 0, 0, 0, 0]) + b".FIT" + bytes(20), "FIT file")
+        one_line_refusal(b"time_s,speed\x00\x00,power", "binary data")
+        one_line_refusal(b"\xff\xfe" + b"\x00\xd8" * 8, "UTF-16 byte-order mark but does not "
+                                                          "decode")
+        one_line_refusal(b"\n\n  \n", "empty")
+
+    def test_a_missing_column_names_the_dialect_read(self):
+        data = spreadsheet_text({"time_s": [0.0, 1.0], "speed_mps": [9.0, 9.0]}).encode()
+        one_line_refusal(data, r"the file has: time_s, speed_mps \(semicolon-separated, "
+                               r"decimal comma, UTF-8\)")
+
+
+CELLS = ("0", "9", "9,5", "9.5", "", " ", "-1", "nan", "inf", "1e400", "x", '"', '"1,5"',
+         "200", "2026-05-01T10:00:00Z", "1.2.3", "\t")
+NAMES = ("time_s", "speed_mps", "power_w", "timestamp", "distance_km", "elevation_m", "lat",
+         "x", "", "sep=;")
+
+
+@st.composite
+def broken_csv(draw) -> bytes:
+    """CSV-like text from cells that break readers: stray quotes, blanks, mixed decimal marks,
+    odd separators and line ends, in the encodings spreadsheets write."""
+    separator = draw(st.sampled_from([",", ";", "\t", "|", " ", ""]))
+    header = draw(st.lists(st.sampled_from(NAMES), max_size=6))
+    rows = draw(st.lists(st.lists(st.sampled_from(CELLS), max_size=7), max_size=25))
+    newline = draw(st.sampled_from(["\n", "\r\n", "\r"]))
+    text = newline.join([separator.join(header)] + [separator.join(row) for row in rows])
+    return text.encode(draw(st.sampled_from(["utf-8", "utf-8-sig", "utf-16", "cp1252"])))
+
+
+class TestHostileCsv:
+    """Whatever the bytes, reading ends with a ride or a one-line InputError, never a
+    traceback."""
+
+    @settings(max_examples=300, deadline=None)
+    @given(broken_csv())
+    def test_broken_csv_is_a_ride_or_one_line(self, data):
+        try:
+            read_ride_csv(data)
+        except InputError as error:
+            assert "\n" not in str(error)
+
+    @settings(max_examples=200, deadline=None)
+    @given(st.binary(max_size=300))
+    def test_any_bytes_are_a_ride_or_one_line(self, data):
+        try:
+            read_ride(data)
+        except InputError as error:
+            assert "\n" not in str(error)
+
+    @pytest.mark.parametrize("data, words", [
+        (b"\r0", "cannot tell the columns apart"),                 # old Mac line ends
+        (b'\n"\n"1,5"', "missing column"),                         # a name across lines
+        (b'time_s,"speed\n', "does not parse"),                     # an unclosed quote
+        (b"time_s,speed_mps,power_w\n0,9\n1,9,200,7\n", "does not parse"),  # ragged rows
+    ])
+    def test_found_by_the_properties(self, data, words):
+        one_line_refusal(data, words)
 
 
 def gpx_text(n: int = N, speed: bool = True, power: bool = True, version: str = "1.1",

@@ -261,7 +261,7 @@ def test_energy_balance_residual_of_a_hand_made_prediction():
                           air_speed=10 * one, yaw=0 * one, headwind=0 * one, aero=aero * one,
                           rolling=50 * one, bearing=10 * one, drivetrain_loss=40 * one,
                           potential=300 * one, kinetic=0 * one, braking=0 * one,
-                          walking=np.array([False]))
+                          walking=np.array([False]), walking_work=0 * one)
     assert ride(600.0).energy_balance_residual == pytest.approx(0.0, abs=1e-15)
     assert ride(700.0).energy_balance_residual == pytest.approx(0.1, rel=1e-12)
     assert ride(600.0).average_speed == 10.0 and ride(600.0).work == 1000.0

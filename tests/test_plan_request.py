@@ -124,6 +124,11 @@ def test_a_mean_power_outside_the_bounds_is_refused():
     {"strategy": "fastest", "mean_power": 250.0, "w_prime_reserve": -1.0},
     {"strategy": "fastest", "mean_power": 250.0, "min_power_ratio": math.nan},
     {"strategy": "target-time", "target_time": math.inf},
+    # issue 14: numbers whose consequences overflow are refused, not planned
+    {"strategy": "fastest", "mean_power": 250.0, "critical_power": 1e308, "w_prime": 2e4},
+    {"strategy": "fastest", "mean_power": 250.0, "critical_power": 250.0, "w_prime": 1e308},
+    {"strategy": "target-time", "target_time": 1e299},
+    {"strategy": "fastest", "mean_power": 250.0, "max_power_ratio": 1e300},
 ])
 def test_bad_requests_raise_input_error(fields):
     with pytest.raises(InputError) as error:
@@ -147,3 +152,15 @@ def test_a_bare_request_can_be_completed_later_but_not_planned():
         required_mean_power(PlanRequest("fastest"))
     with pytest.raises(InputError, match="needs a target time"):
         required_target_time(PlanRequest("target-time"))
+
+
+def test_a_plan_too_big_to_work_through_is_refused_in_one_line():
+    # issue 14: `plan --step 1` on 2000 km took 17.7 s and 1.31 GB; 2·10⁶ points × 1000
+    # segments is refused, the same course at the default 10 m step is planned
+    from pacing.plan.request import MAX_POINTS_TIMES_SEGMENTS, check_plan_size
+
+    check_plan_size(200_001, 1000)
+    with pytest.raises(InputError, match="longer step") as error:
+        check_plan_size(2_000_001, 1000)
+    assert "\n" not in str(error.value)
+    assert 200_001 * 1000 < MAX_POINTS_TIMES_SEGMENTS < 2_000_001 * 1000

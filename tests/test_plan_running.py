@@ -323,3 +323,34 @@ def test_any_plan_shows_its_d_prime_balance_when_critical_speed_is_given():
     assert plan_equal_effort(course, NO_AIR, flat_speed).d_prime_balance is None
     with pytest.raises(InputError):
         plan_equal_effort(course, NO_AIR, flat_speed, critical_speed=4.94)
+
+
+@pytest.mark.parametrize("plan", ["equal-effort", "even-pace", "fastest"])
+def test_a_gale_at_the_runner_cannot_be_run_in(plan):
+    # issue 14: 40-60 m/s of wind gave efforts of −221 % and a pace of 1:00/km. From Beaufort
+    # force 8 (gale, 17.2 m/s: "generally impedes progress"; WMO / UK Met Office Beaufort
+    # scale, from memory) every plan refuses in one line; just below it the efforts and paces
+    # stay physical.
+    from pacing.physics.running import Runner
+    from pacing.plan.even_pace import RUNNABLE_WIND_LIMIT
+    from pacing.plan.running import plan_equal_effort, plan_even_pace, plan_fastest
+
+    distance = np.arange(0.0, 3001.0, 10.0)
+    course = synthetic_course(distance, np.zeros_like(distance))
+    tail = -np.where(distance[:-1] < 1500.0, 1.0, -1.0)  # out with the wind, back against it
+    runner = Runner(64.0)
+
+    def make(wind):
+        if plan == "equal-effort":
+            return plan_equal_effort(course, runner, 1000 / 270, headwind=wind * tail)
+        if plan == "even-pace":
+            return plan_even_pace(course, runner, 1000 / 270, headwind=wind * tail)
+        return plan_fastest(course, runner, 4.2, 200.0, headwind=wind * tail)
+
+    with pytest.raises(InputError, match="cannot be run in") as error:
+        make(1.01 * RUNNABLE_WIND_LIMIT)
+    assert "\n" not in str(error.value)
+    held = make(0.99 * RUNNABLE_WIND_LIMIT)
+    assert all(row.effort_ratio > 0 for row in held.segments)
+    # no faster than the fastest sprint ever timed, 12.4 m/s (Bolt, Berlin 2009; from memory)
+    assert held.max_speed < 12.4

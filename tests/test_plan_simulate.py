@@ -193,15 +193,16 @@ def _cases():
 
 @pytest.mark.parametrize("name", list(_cases()))
 def test_energy_balance_closes_on_every_course(name):
-    # rider work = aero + rolling + bearings + drivetrain loss + Δpotential + Δkinetic + braking,
-    # to 0.1 % (issue 3)
+    # rider work (at the cranks, plus pushing the bike on foot) = aero + rolling + bearings +
+    # drivetrain loss + Δpotential + Δkinetic + braking, to 0.1 % (issue 3)
     course, power, air, options = _cases()[name]
     rider = Rider()
     prediction = simulate(course, power, rider, air, options)
     terms = (prediction.aero + prediction.rolling + prediction.bearing
              + prediction.drivetrain_loss + prediction.potential + prediction.kinetic
              + prediction.braking)
-    assert prediction.work == pytest.approx(float(terms.sum()), rel=1e-3)
+    assert prediction.work + prediction.walking_work.sum() == pytest.approx(
+        float(terms.sum()), rel=1e-3)
     assert prediction.energy_balance_residual < 1e-3
     # Δpotential is m·g·Δh and Δkinetic is ½·m_eff·Δ(v²), course-wide
     assert prediction.potential.sum() == pytest.approx(
@@ -236,10 +237,46 @@ def test_no_or_tiny_power_from_a_standing_start_walks_the_bike(power):
     assert prediction.finish_time == pytest.approx(2000.0 + 10.0, rel=1e-9)
     for field in ("time", "speed", "power", "air_speed", "yaw", "aero"):
         assert np.all(np.isfinite(getattr(prediction, field))), field
-    assert np.isfinite(prediction.average_power) and prediction.average_power > 0
+    # issue 14: pushing the bike does not go through the pedals: no crank power, no crank
+    # work; the work of pushing is the rider's walking work (the energy still closes)
+    assert prediction.average_power == 0.0 and prediction.work == 0.0
+    assert np.all(prediction.walking_work[1:] > 0)
     assert prediction.energy_balance_residual < 1e-9
     results = segment_results(course, prediction, [0, 100, x.size - 1])
-    assert all(math.isfinite(r.power) and r.time > 0 for r in results)
+    assert all(r.power == 0.0 and r.time > 0 for r in results)
+    assert [r.walking_distance for r in results] == pytest.approx([1000.0, 1000.0])
+
+
+def test_walking_work_does_not_go_through_the_drivetrain():
+    # issue 14: with --efficiency 0.01 the walked work was divided by the efficiency (a mean of
+    # 1878 W). Walking a bike at 1 m/s on the flat takes the resistive force times the
+    # distance, the same whatever the drivetrain (docs/references.md, "Cycling power balance
+    # (Martin et al. 1998)": rolling + bearing + air at 1 m/s)
+    x = np.arange(0.0, 2001.0, 10.0)
+    course = synthetic_course(x, 0.0 * x)
+    options = SimulationOptions(start_speed=1.0)
+    lossy = Rider(drivetrain_efficiency=0.5)
+    walked = simulate(course, 0.5, lossy, still(course), options)
+    assert walked.walking.all() and walked.work == 0.0
+    force = float(resistive_force(1.0, 0.0, 1.2, lossy))
+    assert walked.walking_work.sum() == pytest.approx(force * 2000.0, rel=1e-9)
+    same = simulate(course, 0.5, Rider(), still(course), options)
+    assert same.walking_work.sum() == pytest.approx(walked.walking_work.sum(), rel=1e-12)
+
+
+def test_a_segment_s_power_counts_only_the_pieces_ridden():
+    # issue 14: 100 W up a 25 % wall walks; the segment showed 197 W (band 97-103 W). The
+    # ridden flat before the wall holds the plan's 100 W; the wall carries no crank power.
+    x = np.arange(0.0, 2001.0, 10.0)
+    elevation = np.where(x <= 1000.0, 0.0, 0.25 * (x - 1000.0))
+    course = synthetic_course(x, elevation)
+    prediction = simulate(course, 100.0, Rider(), still(course), SimulationOptions(start_speed=8))
+    # the first piece of the wall is climbed on momentum, then the bike is pushed
+    assert prediction.walking[101:].all() and not prediction.walking[:101].any()
+    assert np.all(prediction.power[101:] == 0.0)
+    whole, = segment_results(course, prediction, [0, x.size - 1])
+    assert whole.power == pytest.approx(100.0, rel=0.02)
+    assert whole.walking_distance == pytest.approx(1000.0, abs=30.0)
 
 
 def test_zero_power_on_a_descent_rolls_from_rest_without_walking():

@@ -12,6 +12,7 @@ from __future__ import annotations
 import datetime
 import hashlib
 import json
+import os
 import sys
 import threading
 
@@ -195,3 +196,41 @@ def test_two_programs_creating_the_library_at_once(database):
     assert errors == [] and schemas == [head_revision()] * 3
     with open_library(database) as library:
         assert sorted(a.athlete.name for a in library.athletes()) == ["a0", "a1", "a2"]
+
+
+# ---------------------------------------------------------------------------------------------
+# privacy: a library holds athletes' body mass and physiology
+
+def test_a_new_library_and_its_folder_are_private_to_the_user(tmp_path, monkeypatch):
+    if not sys.platform.startswith("linux"):
+        pytest.skip("POSIX permissions, XDG data folder")
+    monkeypatch.delenv("PACING_DATABASE_URL", raising=False)
+    monkeypatch.setenv("XDG_DATA_HOME", str(tmp_path / "data"))
+    previous = os.umask(0o022)
+    try:
+        with open_library() as library:
+            library.add_athlete(Athlete(name="Ann"))
+            folder = tmp_path / "data" / "pacing"
+            assert folder.stat().st_mode & 0o777 == 0o700
+            files = sorted(folder.iterdir())  # the file, its WAL log and shared memory
+            assert [f.name for f in files] == ["library.sqlite3", "library.sqlite3-shm",
+                                               "library.sqlite3-wal"]
+            assert all(f.stat().st_mode & 0o777 == 0o600 for f in files)
+    finally:
+        os.umask(previous)
+
+
+def test_an_existing_library_keeps_its_permissions(tmp_path):
+    path = tmp_path / "shared.sqlite3"
+    with open_library(path):
+        pass
+    path.chmod(0o640)  # a coach's own choice, e.g. for a group
+    with open_library(path) as library:
+        library.add_athlete(Athlete(name="Ann"))
+    assert path.stat().st_mode & 0o777 == 0o640
+
+
+def test_sqlite_libraries_run_in_wal_mode(tmp_path):
+    # sqlite.org/wal.html: readers do not block writers and a writer does not block readers
+    with open_library(tmp_path / "l.sqlite3") as library, library.engine.connect() as connection:
+        assert connection.exec_driver_sql("PRAGMA journal_mode").scalar() == "wal"

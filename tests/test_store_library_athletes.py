@@ -67,3 +67,50 @@ def test_deleting_needs_confirmation_and_says_what_goes(library):
     assert [a.id for a in library.athletes()] == [ids["bo"]]
     assert library.setups() == ()
     assert [p.id for p in library.plans()] == [ids["run"]]
+
+
+# ---------------------------------------------------------------------------------------------
+# a name already stored is never overwritten silently
+
+def test_an_athlete_under_a_taken_name_is_refused_unless_told(library):
+    from pacing.store.statements import NameTaken
+
+    ann = library.add_athlete(Athlete(name="Ann", body_mass=61.0))
+    with pytest.raises(NameTaken, match="an athlete named 'Ann' is already in the library") \
+            as error:
+        library.add_athlete(Athlete(name=" Ann ", body_mass=70.0))  # the same once trimmed
+    assert error.value.entry_id == ann.id and "\n" not in str(error.value)
+    assert [a.athlete.body_mass for a in library.athletes()] == [61.0]
+
+    both = library.add_athlete(Athlete(name="Ann", body_mass=70.0), on_existing="keep-both")
+    third = library.add_athlete(Athlete(name="Ann", body_mass=72.0), on_existing="keep-both")
+    assert (both.athlete.name, third.athlete.name) == ("Ann (2)", "Ann (3)")
+
+    replaced = library.add_athlete(Athlete(name="Ann", body_mass=62.5), on_existing="replace")
+    assert replaced.id == ann.id and replaced.revision == ann.revision + 1
+    assert library.athlete(ann.id).athlete.body_mass == 62.5
+    with pytest.raises(InputError, match="on_existing must be one of"):
+        library.add_athlete(Athlete(name="Ann"), on_existing="overwrite")
+
+
+def test_setup_names_are_unique_per_athlete(library):
+    from pacing.store.statements import NameTaken
+
+    ann = library.add_athlete(Athlete(name="Ann"))
+    bo = library.add_athlete(Athlete(name="Bo"))
+    road = library.add_setup(ann.id, Setup(name="road", drag_area=0.30))
+    library.add_setup(bo.id, Setup(name="road", drag_area=0.32))  # another athlete's: fine
+    with pytest.raises(NameTaken, match="a setup named 'road'"):
+        library.add_setup(ann.id, Setup(name="road", drag_area=0.25))
+    kept = library.add_setup(ann.id, Setup(name="road", drag_area=0.25), on_existing="keep-both")
+    assert kept.setup.name == "road (2)"
+    replaced = library.add_setup(ann.id, Setup(name="road", drag_area=0.27),
+                                 on_existing="replace")
+    assert replaced.id == road.id and replaced.setup.drag_area == 0.27
+
+
+def test_keep_both_fits_the_name_length(library):
+    long_name = "x" * 200
+    library.add_athlete(Athlete(name=long_name))
+    kept = library.add_athlete(Athlete(name=long_name), on_existing="keep-both")
+    assert kept.athlete.name.endswith(" (2)") and len(kept.athlete.name) <= 200

@@ -54,3 +54,21 @@ def test_courses_and_setups_in_use_are_kept(library):
     library.delete_course(ids["hill"], confirm=True, revision=1)
     with pytest.raises(InputError, match="no course with id"):
         library.course(ids["hill"])
+
+
+def test_a_course_under_a_taken_name_is_refused_unless_told(library):
+    from store_fixtures import plan_result
+
+    from pacing.store.statements import NameTaken
+
+    loop = library.add_course("Loop", b"<gpx>1</gpx>", 1000.0, 10.0)
+    with pytest.raises(NameTaken, match="a course named 'Loop'"):
+        library.add_course("Loop", b"<gpx>2</gpx>", 2000.0, 20.0)
+    assert library.add_course("Loop", b"<gpx>2</gpx>", 2000.0, 20.0,
+                              on_existing="keep-both").name == "Loop (2)"
+    replaced = library.add_course("Loop", b"<gpx>3</gpx>", 3000.0, 30.0, on_existing="replace")
+    assert replaced.id == loop.id and replaced.gpx == b"<gpx>3</gpx>"
+    library.save_plan("p", {"course_id": loop.id}, plan_result())
+    with pytest.raises(InputError, match="used by 1 saved plan"):  # plans keep their file
+        library.add_course("Loop", b"<gpx>4</gpx>", 4000.0, 40.0, on_existing="replace")
+    assert library.course(loop.id).gpx == b"<gpx>3</gpx>"

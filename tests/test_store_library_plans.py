@@ -68,7 +68,7 @@ json_values = st.recursive(
        strategy=json_values, finish=st.floats(1e-3, 1e7))
 def test_any_json_plan_round_trips_exactly(library, inputs, strategy, finish):
     result = {"strategy": strategy, "targets": [{"x": strategy}], "finish_time": finish}
-    plan = library.plan(library.save_plan("p", inputs, result).id)
+    plan = library.plan(library.save_plan("p", inputs, result, on_existing="keep-both").id)
     assert plan.inputs == inputs
     assert plan.strategy == strategy and plan.summary.finish_time == finish
 
@@ -96,3 +96,21 @@ def test_a_plan_records_the_version_of_pacing_that_computed_its_numbers(library,
                                      result=plan_result(1.1))
     assert recomputed.summary.library_version == "0.2.0"
     assert [p.library_version for p in library.plans()] == ["0.2.0"]
+
+
+def test_a_plan_under_a_taken_name_is_refused_unless_told(library):
+    from store_fixtures import plan_result
+
+    from pacing.store.statements import NameTaken
+
+    first = library.save_plan("race day", {}, plan_result())
+    with pytest.raises(NameTaken, match="a saved plan named 'race day'"):
+        library.save_plan("race day", {}, plan_result(0.9), notes="second look")
+    assert [p.id for p in library.plans()] == [first.id]
+    kept = library.save_plan("race day", {}, plan_result(0.9), on_existing="keep-both")
+    assert kept.name == "race day (2)"
+    replaced = library.save_plan("race day", {"power": 1.0}, plan_result(1.1),
+                                 notes="new", on_existing="replace")
+    assert replaced.id == first.id and replaced.revision == 2
+    assert replaced.inputs == {"power": 1.0} and replaced.summary.notes == "new"
+    assert replaced.summary.finish_time == plan_result(1.1)["finish_time"]

@@ -373,6 +373,23 @@ def test_comparison_view_in_imperial_units():
     assert any("Average speed [mph]" in t.columns for t in tables)
 
 
+# ------------------------------------------------------------------------------ plan figures
+
+def test_the_w_prime_chart_stops_at_zero_and_marks_where_it_runs_out():
+    # issue 14: the chart plotted W′ down to −120 kJ; a reserve is never below zero
+    from ui.figures import EXHAUSTED_COLOR, along_course_figure
+
+    distance = np.linspace(0.0, 10000.0, 11)
+    balance = np.array([20e3, 15e3, 8e3, 1e3, -6e3, -13e3, -20e3, -27e3, -34e3, -41e3, -48e3])
+    figure = along_course_figure(distance, np.full(11, 10.0), w_prime_balance=balance)
+    line, marker = figure.data[-2], figure.data[-1]
+    assert min(line.y) == 0.0 and max(line.y) == 20.0  # kJ
+    assert list(marker.x) == [4.0] and list(marker.y) == [0.0]  # km, where it first is < 0
+    assert marker.marker.color == EXHAUSTED_COLOR and "W′ runs out" in marker.text[0]
+    kept = along_course_figure(distance, np.full(11, 10.0), w_prime_balance=np.abs(balance))
+    assert len(kept.data) == 2  # speed and W′, no marker
+
+
 # ------------------------------------------------------------------------------ library
 
 def test_conflicts_read_as_changed_in_another_window(tmp_path):
@@ -500,6 +517,29 @@ def test_library_saves_lists_reopens_and_deletes_only_when_confirmed(tmp_path):
     assert len(library_state(path)["plans"]) == 1
 
 
+def test_saving_under_a_taken_name_asks_to_replace_or_keep_both(tmp_path):
+    path = str(tmp_path / "library.sqlite3")
+    app = AppTest.from_function(library_page, default_timeout=180, args=(path,))
+    app.run()
+    app.text_input(key="library_plan_name").input("race day")
+    app.button(key="library_save").click().run()
+    first = library_state(path)["plans"]
+    app.button(key="library_save").click().run()  # the same name again: asked, not saved
+    no_failure(app)
+    assert any("already in the library" in w.value for w in app.warning)
+    assert library_state(path)["plans"] == first
+    app.button(key="plan:keep-both").click().run()
+    no_failure(app)
+    assert sorted(p["name"] for p in library_state(path)["plans"]) == ["race day",
+                                                                       "race day (2)"]
+    app.button(key="library_save").click().run()
+    app.button(key="plan:replace").click().run()
+    no_failure(app)
+    plans = library_state(path)["plans"]
+    assert len(plans) == 2 and plans[0]["id"] == first[0]["id"]
+    assert plans[0]["updated_at"] != first[0]["updated_at"]  # replaced in place, same id
+
+
 @pytest.mark.parametrize("content", [
     b"not json at all",
     json.dumps({"format": "pacing library", "format_version": 1, "athletes": [
@@ -540,6 +580,38 @@ def test_a_good_library_file_is_brought_in(tmp_path):
     no_failure(app)
     assert any("imported 1 athlete" in s.value.lower() for s in app.success)
     assert [a["name"] for a in library_state(path)["athletes"]] == ["Bea"]
+
+
+def test_a_file_whose_names_are_taken_is_brought_in_only_keeping_both(tmp_path):
+    from pacing.athlete import Athlete
+    from pacing.store.library import open_library
+    from pacing.store.library_export import dump_library_file
+
+    path = str(tmp_path / "library.sqlite3")
+    with open_library(path) as library:
+        library.add_athlete(Athlete(name="Bea", body_mass=58.0))
+        text = dump_library_file(library)
+    app = AppTest.from_function(library_page, default_timeout=180, args=(path,))
+    app.run()
+    app.file_uploader(key="library_import_file").set_value(
+        ("library.json", text.encode(), "application/json")).run()
+    app.button(key="library_import").click().run()
+    no_failure(app)
+    assert any("already in the library" in w.value for w in app.warning)
+    assert [a["name"] for a in library_state(path)["athletes"]] == ["Bea"]
+    app.button(key="library_import_keep_both").click().run()
+    no_failure(app)
+    assert [a["name"] for a in library_state(path)["athletes"]] == ["Bea", "Bea (2)"]
+
+
+def test_a_library_file_too_large_is_refused_before_it_is_read(tmp_path):
+    path = str(tmp_path / "library.sqlite3")
+    app = AppTest.from_function(library_page, default_timeout=180, args=(path,))
+    app.run()
+    app.file_uploader(key="library_import_file").set_value(
+        ("library.json", b" " * (50 * 2**20 + 1), "application/json")).run()
+    no_failure(app)
+    assert app.error and "larger than 50 MiB" in app.error[0].value
 
 
 # ------------------------------------------------------------------------------ field test
@@ -647,17 +719,49 @@ def test_notes_of_reading_a_ride_are_notices_shown_with_its_label():
     ((label, notice),) = run.notes
     assert label == "hoods" and notice.code == "test-ride-stops-dropped"
     assert fieldtest_panel.note_lines(run.notes, "metric") == [
-        "hoods: dropped 5 samples slower than 1 m/s (stops); the energy balance restarts "
-        "after each"]
+        "hoods: dropped 5 samples slower than 1 m/s: 1 stop at t = 300 s (5 s long); the "
+        "energy balance restarts after each"]
+    assert fieldtest_panel.note_lines(run.notes, "metric", "warning") == []
     # 1 mph = 0.44704 m/s exactly (NIST SP 811 (2008), App. B.8): 1 m/s = 2.2 mph
     assert "slower than 2.2 mph" in fieldtest_panel.note_lines(run.notes, "imperial")[0]
     assert all(describe(w) for w in run.result.warnings)
+
+
+def test_power_dropouts_are_left_out_and_warned_of_with_the_rides_label():
+    from pacing.weather.conditions import Conditions
+
+    frame = pd.read_csv(io.BytesIO(loop_ride_csv()))
+    frame.loc[frame.index % 5 == 4, "power_w"] = 0.0  # the head unit logs 0 W every 5th s
+    files = [("lost.csv", frame.to_csv(index=False).encode(), "hoods")]
+    run = fieldtest_panel.run_fieldtest(files, 80.0, Conditions(), "loop", bootstrap=0)
+    # left out, the dropouts leave CdA where the clean ride puts it (within 2 %, issue 9)
+    assert run.result.drag_area == pytest.approx(0.30, rel=0.02)
+    (line,) = fieldtest_panel.note_lines(run.notes, "metric", "warning")
+    assert line.startswith("hoods: power dropouts: ") and "20 % of the ride" in line
+    # 4 m/s = 8.9 mph (1 mph = 0.44704 m/s exactly, NIST SP 811 (2008), App. B.8)
+    assert "faster than 8.9 mph" in fieldtest_panel.note_lines(run.notes, "imperial",
+                                                                "warning")[0]
+
+
+@pytest.mark.parametrize("draws", [-1, 10_001, 100_000_000, 2.5])
+def test_bootstrap_draws_are_bounded(draws):
+    from pacing.fieldtest.checks import MAX_BOOTSTRAP_DRAWS
+    from pacing.weather.conditions import Conditions
+
+    assert MAX_BOOTSTRAP_DRAWS == 10_000
+    with pytest.raises(InputError, match="bootstrap draws must be a whole number from 0 to "
+                                         "10000") as caught:
+        fieldtest_panel.run_fieldtest([("ride.csv", loop_ride_csv(), "hoods")], 80.0,
+                                      Conditions(), bootstrap=draws)
+    assert "\n" not in str(caught.value)
 
 
 @pytest.mark.parametrize("files, words", [
     ([], "upload at least one"),
     ([("ride.csv", b"time_s,speed_mps\n1,2\n", "x")], "missing column"),
     ([("ride.csv", b"", "x")], "empty"),
+    ([("ride.csv", b"time_s,speed_mps,power_w\n", "x")], "ride.csv: .* but no data rows"),
+    ([("ride.csv", b"time_s;speed_mps;power_w\n0;9,5;200\n", "x")], "a single data row"),
 ])
 def test_bad_rides_are_one_line_errors(files, words):
     from pacing.weather.conditions import Conditions
@@ -704,6 +808,21 @@ def test_fieldtest_panel_measures_an_uploaded_ride_and_makes_a_setup():
     app.button(key="ft_make_setup").click().run()
     made = app.session_state["made"]
     assert made.drag_area == pytest.approx(0.30, rel=0.02) and made.name == "hoods"
+
+
+def test_fieldtest_panel_warns_of_power_dropouts_beside_the_fit():
+    frame = pd.read_csv(io.BytesIO(loop_ride_csv()))
+    frame.loc[frame.index % 5 == 4, "power_w"] = 0.0
+    app = AppTest.from_function(fieldtest_page, default_timeout=120)
+    app.run()
+    app.file_uploader(key="ft_files").set_value(
+        [("lost.csv", frame.to_csv(index=False, sep=";", decimal=",").encode(),
+          "text/csv")]).run()
+    no_failure(app)
+    assert not app.error, [e.value for e in app.error]
+    assert any(w.value.startswith("lost: power dropouts: ") for w in app.warning)
+    cda = next(m.value for m in app.metric if m.label.startswith("CdA"))
+    assert float(cda.split()[0]) == pytest.approx(0.30, abs=0.006)
 
 
 def test_fieldtest_panel_shows_a_bad_file_as_one_line():

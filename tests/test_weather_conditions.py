@@ -206,3 +206,12 @@ def test_course_air_is_finite_and_keeps_the_wind_speed(
     # higher pieces have thinner air
     order = np.argsort(piece_elevation(course))
     assert np.all(np.diff(air.density[order]) <= 1e-12)
+
+
+def test_the_documented_hottest_start_is_accepted_on_a_course_that_descends():
+    # 60 °C is the top of the accepted range: the lapse rate (6.5 K/km) warms the pieces below
+    # the start by a fraction of a kelvin, which must not turn the user's 60 °C into a refusal
+    distance = np.arange(0.0, 2001.0, 10.0)
+    course = synthetic_course(distance, 100.0 - 0.05 * distance, heading=0.0)
+    air = air_along_course(course, Conditions(temperature=60.0))
+    assert np.all(np.isfinite(air.density)) and air.density.size == distance.size - 1

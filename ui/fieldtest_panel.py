@@ -25,7 +25,7 @@ from plotly.subplots import make_subplots
 
 from pacing.display.notices import describe
 from pacing.display.units import to_display, unit_label
-from pacing.errors import ConflictError, InputError, first_line
+from pacing.errors import InputError, first_line
 from pacing.fieldtest.methods import FIELD_TEST_METHODS
 from pacing.notices import Notice
 
@@ -52,7 +52,7 @@ class FieldTestRun:
     air_density : float
         Mean air density over the rides [kg/m³].
     notes : tuple of (str, pacing.notices.Notice)
-        Notes of reading and cleaning each ride, after the position's label.
+        Notes and warnings of reading and cleaning each ride, after the position's label.
     """
 
     result: Any
@@ -61,22 +61,28 @@ class FieldTestRun:
     notes: tuple[tuple[str, Notice], ...]
 
 
-def note_lines(notes: Sequence[tuple[str, Notice]], system: str) -> list[str]:
-    """Each ride's notes in words after its label ("hoods: dropped 3 samples …").
+def note_lines(notes: Sequence[tuple[str, Notice]], system: str,
+               level: str = "note") -> list[str]:
+    """Each ride's notices of one level in words after its label ("hoods: dropped 3 samples
+    …").
 
     Parameters
     ----------
     notes : sequence of (str, pacing.notices.Notice)
-        Position label and note.
+        Position label and notice of reading and cleaning its ride.
     system : str
         "metric" or "imperial".
+    level : str
+        "note" (what was filled or dropped) or "warning" (what may mislead, e.g. power
+        dropouts).
 
     Returns
     -------
     list of str
-        One line per note.
+        One line per notice of that level.
     """
-    return [f"{label}: {describe(notice, system)}" for label, notice in notes]
+    return [f"{label}: {describe(notice, system)}" for label, notice in notes
+            if notice.level == level]
 
 
 def read_tests(files: Sequence[tuple[Any, ...]],
@@ -152,16 +158,18 @@ def run_fieldtest(files: Sequence[tuple[Any, ...]], total_mass: float, condition
     drivetrain_efficiency : float
         Drivetrain efficiency [-], 0.5-1.
     bootstrap : int
-        Draws for the intervals [-].
+        Draws for the intervals [-], 0 to pacing.fieldtest.checks.MAX_BOOTSTRAP_DRAWS.
 
     Returns
     -------
     FieldTestRun
         The result, the tests, the mean air density [kg/m³] and the rides' notes.
     """
+    from pacing.fieldtest.checks import check_bootstrap_draws
     from pacing.fieldtest.estimate import estimate_drag
     from pacing.physics.cycling import Rider
 
+    check_bootstrap_draws(bootstrap)
     if not (np.isfinite(total_mass) and 20.0 <= total_mass <= 300.0):
         raise InputError(f"rider + bike mass must be 20-300 kg, got {total_mass:g}")
     if not 0.5 <= drivetrain_efficiency <= 1.0:
@@ -467,6 +475,8 @@ def _show_run(run: FieldTestRun, system: str) -> None:
         st.markdown(f"- {line}")
     for notice in result.warnings:
         st.warning(describe(notice, system))
+    for line in note_lines(run.notes, system, "warning"):
+        st.warning(line)
     for line in note_lines(run.notes, system):
         st.caption(f"Note: {line}")
     for index, position in enumerate(result.positions):
@@ -496,8 +506,9 @@ def render_fieldtest(system: str, location: str | None = None,
     st.subheader("Measure CdA on the road")
     st.caption("Ride laps of a quiet loop with a power meter, one file per riding position "
                "(CSV with time_s, speed_mps, power_w and optional elevation_m, latitude, "
-               "longitude; or GPX with power in the track-point extensions). Laps at clearly "
-               "different speeds let CdA and Crr be told apart.")
+               "longitude, separated by commas, semicolons or tabs, decimal commas welcome; "
+               "or GPX with power in the track-point extensions). Laps at clearly different "
+               "speeds let CdA and Crr be told apart.")
     uploads = st.file_uploader("Test rides", type=["csv", "gpx"], accept_multiple_files=True,
                                key="ft_files") or []
     files = _uploaded_rides(uploads)
@@ -554,16 +565,15 @@ def _setup_maker(result: Any, system: str, location: str | None,
         location = st.session_state.get("library:location")
     owner = athlete_id if athlete_id is not None else st.session_state.get("library:athlete_id")
     if owner is not None and (location is not None or "library:location" in st.session_state):
-        if cols[1].button("Save it to the library", key="ft_save_setup"):
-            try:
-                from ui.library_panel import _library
+        from ui.library_panel import _library, save_asking
 
-                stored = _library(location).add_setup(int(owner), setup)
-            except (InputError, ConflictError) as error:
-                st.error(first_line(error), icon="⚠️")
-            else:
-                made = setup
-                st.success(f"Stored setup {stored.setup.name!r} (#{stored.id}) in the library.")
+        pressed = cols[1].button("Save it to the library", key="ft_save_setup")
+        # a name already stored is never overwritten silently: replace, keep both or cancel
+        save_asking("ft_setup", pressed,
+                    lambda on_existing: _library(location).add_setup(
+                        int(owner), setup, on_existing=on_existing),
+                    lambda stored: f"Stored setup {stored.setup.name!r} (#{stored.id}) in the "
+                                   "library.")
     else:
         cols[1].caption("Open the library and choose an athlete to save it there.")
     return made

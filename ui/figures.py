@@ -149,6 +149,24 @@ def route_map_figure(course, system: str, wind_speed: float = 0.0, wind_from: fl
     return _layout(figure, height)
 
 
+EXHAUSTED_COLOR = "#c0392b"
+"""The marker where a reserve (W′, D′) runs out."""
+
+
+def _mark_exhausted(figure: go.Figure, row: int, x: np.ndarray, balance: np.ndarray,
+                    reserve: str, system: str) -> None:
+    """A marker at zero where the reserve first falls below zero, if it does (display only)."""
+    below = np.flatnonzero(np.asarray(balance) < 0)
+    if below.size == 0:
+        return
+    where = float(to_display(float(x[below[0]]), "distance", system))
+    figure.add_trace(go.Scatter(
+        x=[where], y=[0.0], mode="markers+text", text=[f"{reserve} runs out"],
+        textposition="top right", marker=dict(color=EXHAUSTED_COLOR, size=10, symbol="x"),
+        textfont=dict(color=EXHAUSTED_COLOR),
+        hovertemplate=f"{reserve} runs out at %{{x:.2f}}<extra></extra>"), row=row, col=1)
+
+
 def along_course_figure(distance, speed, power=None, headwind=None, w_prime_balance=None,
                         system: str = "metric", height_per_panel: int = 170,
                         reserve: str = "W′") -> go.Figure:
@@ -177,11 +195,11 @@ def along_course_figure(distance, speed, power=None, headwind=None, w_prime_bala
     if w_prime_balance is not None:
         w_prime_balance = np.asarray(w_prime_balance, dtype=float)
         x = distance if w_prime_balance.size == distance.size else middle
-        if reserve == "D′":
-            panels.append(("reserve", "D′ left [m]", x, w_prime_balance, RESERVE_COLOR))
-        else:
-            panels.append(("reserve", "W′ left [kJ]", x, w_prime_balance / 1000.0,
-                           RESERVE_COLOR))
+        shown_reserve = w_prime_balance if reserve == "D′" else w_prime_balance / 1000.0
+        title = "D′ left [m]" if reserve == "D′" else "W′ left [kJ]"
+        # a reserve is never below zero: the line stops at zero and a marker says where it
+        # runs out (the warning says by how much)
+        panels.append(("reserve", title, x, np.maximum(shown_reserve, 0.0), RESERVE_COLOR))
     figure = make_subplots(rows=len(panels), cols=1, shared_xaxes=True, vertical_spacing=0.04)
     for row, (_, title, x, y, color) in enumerate(panels, start=1):
         shown = _thin(len(x))
@@ -191,6 +209,8 @@ def along_course_figure(distance, speed, power=None, headwind=None, w_prime_bala
             fill="tozeroy" if title.startswith("headwind") else None,
             fillcolor="rgba(90,107,47,0.15)"), row=row, col=1)
         figure.update_yaxes(title_text=title, row=row, col=1)
+    if w_prime_balance is not None:
+        _mark_exhausted(figure, len(panels), panels[-1][2], w_prime_balance, reserve, system)
     figure.update_xaxes(title_text=f"distance [{unit_label('distance', system)}]",
                         row=len(panels), col=1)
     return _layout(figure, height_per_panel * len(panels) + 40)

@@ -216,12 +216,13 @@ def store_course(library, name: str, gpx: bytes, distance: float, ascent: float)
     found = library.find_courses(gpx)
     if found:
         return found[0].id
-    return library.add_course(name, gpx, distance, ascent).id
+    # another file under this name: both are kept ("name (2)"); saved plans name it by id
+    return library.add_course(name, gpx, distance, ascent, on_existing="keep-both").id
 
 
 def save_current_plan(library, name: str, notes: str, current_inputs: Mapping[str, Any],
                       current_result: Mapping[str, Any], athlete_id: int | None = None,
-                      setup_id: int | None = None):
+                      setup_id: int | None = None, on_existing: str = "refuse"):
     """Save the page's plan, its course file stored once (store_course).
 
     The library records the version of pacing that made the plan.
@@ -243,6 +244,9 @@ def save_current_plan(library, name: str, notes: str, current_inputs: Mapping[st
         Library id of the athlete to file it under, or None.
     setup_id : int or None
         Library id of the setup to file it under, or None.
+    on_existing : str
+        When a saved plan of that name is stored: "refuse"
+        (pacing.store.statements.NameTaken), "replace" or "keep-both" [-].
 
     Returns
     -------
@@ -260,7 +264,8 @@ def save_current_plan(library, name: str, notes: str, current_inputs: Mapping[st
         inputs["athlete_id"] = int(athlete_id)
     if setup_id is not None:
         inputs["setup_id"] = int(setup_id)
-    return library.save_plan(name, inputs, dict(current_result), notes=notes)
+    return library.save_plan(name, inputs, dict(current_result), notes=notes,
+                             on_existing=on_existing)
 
 
 # ------------------------------------------------------------------------ page values

@@ -31,6 +31,7 @@ import streamlit as st
 
 from pacing.display.units import format_duration
 from pacing.errors import ConflictError, InputError
+from pacing.store.statements import NameTaken
 from ui.library_data import (
     LIBRARY_COURSE,
     athlete_from_page,
@@ -141,16 +142,62 @@ def _library(location):
     return _open(key, location)
 
 
-def _report(action: Callable[[], Any], success: str | Callable[[Any], str]) -> None:
-    """Run a library write. A refusal shows one clear line (a conflict: reload); success is
-    noted and the panel drawn again, so every list shows the change."""
+def _report(action: Callable[[], Any], success: str | Callable[[Any], str],
+            asking: str | None = None) -> None:
+    """Run a library write. A refusal shows one clear line (a conflict: reload); a name
+    already stored, with `asking` (a session key), is kept there for _ask_on_existing to
+    ask about; success is noted and the panel drawn again, so every list shows the change."""
     try:
         value = action()
+    except NameTaken as taken:
+        if asking is None:
+            st.error(error_message(taken), icon="⚠️")
+        else:
+            st.session_state[asking] = f"{taken.kind.capitalize()} {taken.name!r} is already " \
+                                       "in the library."
+        return
     except (InputError, ConflictError) as error:
         st.error(error_message(error), icon="⚠️")
         return
     st.session_state["library:message"] = success(value) if callable(success) else success
     st.rerun()
+
+
+def save_asking(key: str, pressed: bool, action: Callable[[str], Any],
+                 success: str | Callable[[Any], str]) -> None:
+    """Run a save when its button was `pressed`, refusing a name already stored; then ask:
+    "Replace it", "Keep both" (saved as "name (2)") or "Cancel", and save again with the
+    answer. Nothing is ever overwritten without the coach's say.
+
+    Parameters
+    ----------
+    key : str
+        The save's own key, for its question and buttons [-].
+    pressed : bool
+        The save's button was pressed in this run [-].
+    action : callable
+        ``action(on_existing)`` saves with "refuse", "replace" or "keep-both" [-].
+    success : str or callable
+        The message after saving, or a function of what the save returned [-].
+    """
+    asking = f"library:asking:{key}"
+    if pressed:
+        st.session_state.pop(asking, None)
+        _report(lambda: action("refuse"), success, asking)
+    question = st.session_state.get(asking)
+    if question is None:
+        return
+    st.warning(f"{question} Replace it, or keep both (the new one gets a number)?")
+    cols = st.columns(3)
+    if cols[0].button("Replace it", key=f"{key}:replace"):
+        st.session_state.pop(asking, None)
+        _report(lambda: action("replace"), success)
+    if cols[1].button("Keep both", key=f"{key}:keep-both"):
+        st.session_state.pop(asking, None)
+        _report(lambda: action("keep-both"), success)
+    if cols[2].button("Cancel", key=f"{key}:cancel"):
+        st.session_state.pop(asking, None)
+        st.rerun()
 
 
 def render_library(current_inputs: dict | None, current_result: dict | None, system: str,
@@ -286,19 +333,25 @@ def _store_page_athlete(library, page_athlete: dict, record, expanded: bool) -> 
         setup_name = cols[1].text_input("Setup name", value="race bike",
                                         key="library_new_setup")
         cols = st.columns(2)
-        if cols[0].button("Store as a new athlete", key="library_add_athlete",
-                          disabled=not page_athlete):
-            def add():
-                added = library.add_athlete(athlete_from_page(name, page_athlete))
-                if page_athlete.get("sport", "cycling") == "cycling":
-                    library.add_setup(added.id, setup_from_page(setup_name, page_athlete))
-                return added
-            _report(add, f"Stored {name!r}.")
-        if cols[1].button("Add the setup to the chosen athlete", key="library_add_setup",
-                          disabled=record is None or not page_athlete):
-            _report(lambda: library.add_setup(record.id,
-                                              setup_from_page(setup_name, page_athlete)),
-                    f"Stored setup {setup_name!r}.")
+        pressed = cols[0].button("Store as a new athlete", key="library_add_athlete",
+                                 disabled=not page_athlete)
+
+        def add(on_existing: str):
+            added = library.add_athlete(athlete_from_page(name, page_athlete),
+                                        on_existing=on_existing)
+            if page_athlete.get("sport", "cycling") == "cycling":
+                library.add_setup(added.id, setup_from_page(setup_name, page_athlete),
+                                  on_existing="replace" if on_existing == "replace"
+                                  else "keep-both")
+            return added
+        save_asking("athlete", pressed, add, lambda added: f"Stored {added.athlete.name!r}.")
+        pressed = cols[1].button("Add the setup to the chosen athlete", key="library_add_setup",
+                                 disabled=record is None or not page_athlete)
+        save_asking("setup", pressed and record is not None,
+                     lambda on_existing: library.add_setup(
+                         record.id, setup_from_page(setup_name, page_athlete),
+                         on_existing=on_existing),
+                     lambda added: f"Stored setup {added.setup.name!r}.")
 
 
 def _save_tab(library, current_inputs, current_result) -> None:
@@ -314,13 +367,13 @@ def _save_tab(library, current_inputs, current_result) -> None:
     if athlete_id is not None:
         link = st.checkbox("File it under the chosen athlete and setup", value=True,
                            key="library_plan_link")
-    if st.button("Save this plan", key="library_save", type="primary"):
-        _report(lambda: save_current_plan(
-            library, name, notes, current_inputs, current_result,
-            athlete_id if link else None,
-            st.session_state.get("library:setup_id") if link else None),
-            lambda saved: f"Saved {saved.name!r} "
-                          f"({format_duration(saved.summary.finish_time)}).")
+    pressed = st.button("Save this plan", key="library_save", type="primary")
+    save_asking("plan", pressed, lambda on_existing: save_current_plan(
+        library, name, notes, current_inputs, current_result,
+        athlete_id if link else None,
+        st.session_state.get("library:setup_id") if link else None, on_existing),
+        lambda saved: f"Saved {saved.name!r} "
+                      f"({format_duration(saved.summary.finish_time)}).")
 
 
 def _plans_tab(library, system: str, compute) -> dict | None:
@@ -409,6 +462,7 @@ def _delete_plan(library, record) -> None:
 def _backup_tab(library) -> None:
     """The "Backup" tab: download the library file, or bring one in (all or nothing)."""
     from pacing.store.library_export import dump_library_file
+    from pacing.store.library_file import check_file_size
     from pacing.store.library_import import import_library
 
     st.download_button("Download the library (JSON)",
@@ -419,14 +473,29 @@ def _backup_tab(library) -> None:
                               key="library_import_file")
     if upload is None:
         return
+    try:
+        check_file_size(upload.size)
+    except InputError as error:
+        st.error(f"The file was refused, nothing changed: {error_message(error)}", icon="⚠️")
+        return
     data = upload.getvalue()
     digest = hashlib.sha256(data).hexdigest()
     if st.session_state.get("library:imported") == digest:
         st.caption("This file has been brought in.")
         return
-    if st.button("Bring it in", key="library_import"):
+    pressed = st.button("Bring it in", key="library_import")
+    on_existing = "refuse"
+    if st.session_state.get("library:import_asking") == digest:
+        st.warning("Some names of the file are already in the library. Bring it in keeping "
+                   "both (the file's entries get a number, e.g. \"Ann (2)\")?")
+        if st.button("Bring it in, keeping both", key="library_import_keep_both"):
+            pressed, on_existing = True, "keep-both"
+    if pressed:
         try:
-            summary = import_library(library, data)
+            summary = import_library(library, data, on_existing=on_existing)
+        except NameTaken:
+            st.session_state["library:import_asking"] = digest
+            st.rerun()
         except (InputError, ConflictError) as error:
             st.error(f"The file was refused, nothing changed: {error_message(error)}",
                      icon="⚠️")
@@ -436,6 +505,7 @@ def _backup_tab(library) -> None:
                      icon="⚠️")
             return
         st.session_state["library:imported"] = digest
+        st.session_state.pop("library:import_asking", None)
         st.session_state["library:message"] = summary.message().capitalize() + "."
         st.rerun()
 

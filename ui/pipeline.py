@@ -6,7 +6,6 @@ tests call them directly. No physics here: every number comes from `pacing`.
 
 from __future__ import annotations
 
-import warnings
 from dataclasses import dataclass, fields, replace
 from pathlib import Path
 
@@ -39,7 +38,8 @@ def _default_demo_name(paths: dict[str, Path], default) -> str | None:
 
 
 def load_course_from_bytes(data: bytes, name: str, smoothing_window: float,
-                           max_grade: float, allow_flat: bool = False):
+                           max_grade: float, allow_flat: bool = False,
+                           tracks: tuple[int, ...] | None = None, gaps: str = "join"):
     """Parse a GPX file's bytes into a Course with the given elevation cleaning.
 
     Parameters
@@ -49,6 +49,11 @@ def load_course_from_bytes(data: bytes, name: str, smoothing_window: float,
     smoothing_window : width of the elevation smoothing window [m].
     max_grade : steepest grade kept after smoothing [-].
     allow_flat : a file without heights becomes a flat course instead of an error.
+    tracks : the tracks (numbered from 1) that make the course; None for all, in order.
+    gaps : what to do with gaps in the recording: "join", "drop" or "refuse".
+
+    What reading found (gaps, missing or constant heights, what cleaning removed) is on the
+    course's `notices`; the page shows them beside the course facts.
     """
     from pacing.course.elevation import ElevationSmoothing
     from pacing.io.gpx import load_course
@@ -56,10 +61,8 @@ def load_course_from_bytes(data: bytes, name: str, smoothing_window: float,
     if not data:
         raise InputError("the file is empty")
     smoothing = ElevationSmoothing(window=float(smoothing_window), max_grade=float(max_grade))
-    with warnings.catch_warnings():
-        warnings.simplefilter("ignore", UserWarning)  # the page says it itself
-        return load_course(data, smoothing=smoothing, name=name,
-                           allow_missing_elevation=allow_flat)
+    return load_course(data, smoothing=smoothing, name=name, allow_missing_elevation=allow_flat,
+                       tracks=None if tracks is None else list(tracks), gaps=gaps)
 
 
 SPLIT_MODES = ("by terrain", "fixed length", "my own marks")

@@ -40,9 +40,11 @@ def add_course_flags(parser: argparse.ArgumentParser) -> None:
     Parameters
     ----------
     parser : argparse.ArgumentParser
-        The command's parser: gets ROUTE, --step [m], --segment-length [m], --flat and
-        --json [-].
+        The command's parser: gets ROUTE, --step [m], --segment-length [m], --flat,
+        --track N[,N], --gaps join|drop|refuse and --json [-].
     """
+    from pacing.course.recording import GAP_CHOICES
+
     parser.add_argument("route", help="GPX file of the course")
     parser.add_argument("--step", type=float, default=None,
                         help="resampling step of the course [m] (default 10)")
@@ -51,6 +53,13 @@ def add_course_flags(parser: argparse.ArgumentParser) -> None:
                              "(grade, turnarounds, at most 2 km)")
     parser.add_argument("--flat", action="store_true",
                         help="treat a course without elevation as flat (with a warning)")
+    parser.add_argument("--track", default=None, metavar="N[,N]",
+                        help="the tracks of the file that make the course, numbered from 1, "
+                             "in this order (default: all, in file order)")
+    parser.add_argument("--gaps", choices=GAP_CHOICES, default="join",
+                        help="gaps in the recording: join them with a straight line "
+                             "(default, with a warning), drop their distance, or refuse "
+                             "the file")
     parser.add_argument("--json", action="store_true", help="print JSON instead of a table")
 
 
@@ -206,22 +215,34 @@ def load_course_and_bounds(args: argparse.Namespace) -> tuple[Course, np.ndarray
     Parameters
     ----------
     args : argparse.Namespace
-        The flags of `add_course_flags`: route, step [m], segment_length [m], flat [-].
+        The flags of `add_course_flags`: route, step [m], segment_length [m], flat, track,
+        gaps [-].
 
     Returns
     -------
     tuple of (Course, numpy.ndarray)
-        The course and its segment boundary point indices [-].
+        The course and its segment boundary point indices [-]. The course's warnings
+        (gaps, elevations) are given as UserWarnings, one line each; all its notices stay
+        on `course.notices`.
 
     Raises
     ------
     InputError
         When the file cannot be read as a course.
     """
+    import warnings
+
+    from pacing.course.recording import parse_track_choice
     from pacing.course.segments import split_by_grade, split_every
+    from pacing.display.notices import describe
     from pacing.io.gpx import load_course
 
-    course = load_course(args.route, step=args.step, allow_missing_elevation=args.flat)
+    course = load_course(args.route, step=args.step, allow_missing_elevation=args.flat,
+                         tracks=parse_track_choice(getattr(args, "track", None)),
+                         gaps=getattr(args, "gaps", "join"))
+    for notice in course.notices:
+        if notice.level == "warning":
+            warnings.warn(describe(notice, "metric"), UserWarning, stacklevel=2)
     bounds = (split_every(course, args.segment_length) if args.segment_length is not None
               else split_by_grade(course))
     return course, bounds
@@ -244,6 +265,24 @@ def notices_as_json(notices: Iterable[Notice]) -> list[dict[str, Any]]:
     from pacing.display.notices import describe
 
     return [{**n.as_dict(), "text": describe(n, "metric")} for n in notices]
+
+
+def warnings_as_text(notices: Iterable[Notice]) -> list[str]:
+    """The text of the warning-level notices, for the JSON's "warnings".
+
+    Parameters
+    ----------
+    notices : iterable of pacing.notices.Notice
+        What the chain says beside the numbers [-].
+
+    Returns
+    -------
+    list of str
+        One sentence in metric words per warning, in order (notes left out) [-].
+    """
+    from pacing.display.notices import describe
+
+    return [describe(n, "metric") for n in notices if n.level == "warning"]
 
 
 def report_notices(notices: Sequence[Notice], table: bool) -> list[str]:

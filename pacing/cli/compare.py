@@ -523,8 +523,8 @@ def run(args: argparse.Namespace) -> int:
     analysis = analyse(args)
     if args.json:
         report_notices(analysis.notices, table=False)
-        json.dump(as_dict(analysis), sys.stdout, indent=2, allow_nan=False)
-        sys.stdout.write("\n")
+        # whole or not at all: a value JSON cannot hold never leaves half a document
+        sys.stdout.write(json.dumps(as_dict(analysis), indent=2, allow_nan=False) + "\n")
     else:
         print(as_table(analysis))
         for line in report_notices(analysis.notices, table=True):

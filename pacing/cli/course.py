@@ -1,17 +1,17 @@
 """``pacing course ROUTE.gpx``: summary of a course (distance, ascent, high and low points,
-segments), as a readable table or as JSON (--json)."""
+segments) and what the file holds (tracks, gaps, warnings), as a readable table or as JSON
+(--json)."""
 
 from __future__ import annotations
 
 import argparse
 import json
 import sys
-import warnings
 from typing import Any
 
 import numpy as np
 
-from pacing.cli.common import add_course_flags
+from pacing.cli.common import add_course_flags, notices_as_json
 from pacing.course.geometry import Course
 from pacing.course.segments import describe_segments, split_by_grade, split_every
 
@@ -28,7 +28,8 @@ def add_parser(subparsers: argparse._SubParsersAction) -> None:
         "course",
         help="summarise a GPX course: distance, ascent, high and low points, segments",
         description="Summarise a GPX course: distance, ascent (cleaned and raw), descent, "
-                    "highest and lowest point, and its segments.",
+                    "highest and lowest point, its segments, the tracks of the file and the "
+                    "gaps in the recording.",
     )
     add_course_flags(parser)
     parser.set_defaults(run=run)
@@ -51,8 +52,12 @@ def course_summary(course: Course, bounds: np.ndarray) -> dict[str, Any]:
         lowest_m, lowest_at_m [m] (0.1 m); step_m [m]; points [-]; smoothing (method,
         window_m [m], max_grade [-]) or None; segments, one dict each (index, start_m, end_m,
         length_m, ascent_m, descent_m [m], grade, max_grade [-], heading_deg [deg], kind)
-        [SI].
+        [SI]; warnings (the course's warnings in metric words), notices (code, level, values,
+        text), tracks (index, name, points, segments, distance_m [m], duration_s [s], used)
+        and gaps (at_m, length_m [m], duration_s [s], handling).
     """
+    from pacing.display.notices import describe
+
     smoothing = course.smoothing
     return {
         "name": course.name,
@@ -77,6 +82,10 @@ def course_summary(course: Course, bounds: np.ndarray) -> dict[str, Any]:
              "kind": s.kind}
             for s in describe_segments(course, bounds)
         ],
+        "warnings": [describe(n, "metric") for n in course.notices if n.level == "warning"],
+        "notices": notices_as_json(course.notices),
+        "tracks": [track.as_dict() for track in course.tracks],
+        "gaps": [gap.as_dict() for gap in course.gaps],
     }
 
 
@@ -111,6 +120,7 @@ def format_summary(summary: dict[str, Any], by_grade: bool) -> str:
     if smoothing:
         lines.append(f"  elevation       {smoothing['method']} smoothing over "
                      f"{smoothing['window_m']:g} m, grade limit {smoothing['max_grade']:.0%}")
+    lines += _file_lines(summary)
     lines.append("")
     lines.append(f"Segments ({'by terrain and turns' if by_grade else 'fixed length'}):")
     lines.append("    #  from km    to km  length km  grade %  steepest %  ascent m  "
@@ -122,6 +132,30 @@ def format_summary(summary: dict[str, Any], by_grade: bool) -> str:
             f"  {s['ascent_m']:8.0f}  {s['descent_m']:9.0f}  {s['heading_deg']:11.0f}  "
             f"{s['kind']}")
     return "\n".join(lines)
+
+
+HANDLED = {"join": "joined", "drop": "dropped"}
+"""How a gap's handling reads in the summary."""
+
+
+def _file_lines(summary: dict[str, Any]) -> list[str]:
+    """The tracks of the file (when more than one) and the gaps, as lines of the summary."""
+    lines = []
+    tracks = summary.get("tracks", [])
+    if len(tracks) > 1:
+        lines.append(f"  tracks          {len(tracks):8d}")
+        for track in tracks:
+            duration = track["duration_s"]
+            lasting = "" if duration is None else f", {duration / 3600:.2f} h"
+            lines.append(f"    {track['index']:3d}  {track['name'] or '(no name)'}: "
+                         f"{track['distance_m'] / 1000:.2f} km, {track['points']} points, "
+                         f"{track['segments']} segment(s){lasting}"
+                         f"{'' if track['used'] else ' (not used)'}")
+    for gap in summary.get("gaps", []):
+        lines.append(f"  gap             at km {gap['at_m'] / 1000:.2f}: "
+                     f"{gap['length_m'] / 1000:.2f} km without points "
+                     f"({HANDLED.get(gap['handling'], gap['handling'])})")
+    return lines
 
 
 def run(args: argparse.Namespace) -> int:
@@ -142,20 +176,25 @@ def run(args: argparse.Namespace) -> int:
     InputError
         When the file cannot be read as a course.
     """
+    from pacing.course.recording import parse_track_choice
+    from pacing.display.notices import describe
     from pacing.io.gpx import load_course
 
-    with warnings.catch_warnings(record=True) as caught:
-        warnings.simplefilter("always")
-        course = load_course(args.route, step=args.step, allow_missing_elevation=args.flat)
-    for warning in caught:
-        print(f"pacing course: warning: {warning.message}", file=sys.stderr)
+    course = load_course(args.route, step=args.step, allow_missing_elevation=args.flat,
+                         tracks=parse_track_choice(args.track), gaps=args.gaps)
+    for notice in course.notices:
+        if notice.level == "warning":
+            print(f"pacing course: warning: {describe(notice, 'metric')}", file=sys.stderr)
     if args.segment_length is None:
         bounds = split_by_grade(course)
     else:
         bounds = split_every(course, args.segment_length)
     summary = course_summary(course, bounds)
     if args.json:
-        print(json.dumps(summary, indent=2))
+        print(json.dumps(summary, indent=2, allow_nan=False))
     else:
         print(format_summary(summary, by_grade=args.segment_length is None))
+        for notice in course.notices:
+            if notice.level == "note":
+                print(f"note: {describe(notice, 'metric')}")
     return 0

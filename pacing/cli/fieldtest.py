@@ -26,6 +26,7 @@ import numpy as np
 from pacing.cli.common import add_air_flags, notices_as_json, require
 from pacing.display.notices import describe, describe_all, labelled
 from pacing.errors import InputError
+from pacing.fieldtest.checks import MAX_BOOTSTRAP_DRAWS, check_bootstrap_draws
 from pacing.fieldtest.methods import FIELD_TEST_METHODS
 
 if TYPE_CHECKING:
@@ -43,9 +44,10 @@ JSON keys: method; cda_m2 and cda_ci95 (first position, m²); crr and crr_ci95; 
 and crr_held (held because the laps lack speed variety); laps; estimate_correlation (of the
 CdA and Crr estimates, near 1 = inseparable); cda_change_per_0_001_crr_m2; air_density_kg_m3;
 positions (label, cda_m2, cda_ci95, laps, lap_cda_m2); differences (position - baseline,
-ci95, significant); warnings; notes; notices (every warning and note as data: code, level,
-values in SI, text, and the ride for a ride's note). Intervals are 95 % bootstrap intervals
-over laps, null with fewer than 3 laps.
+ci95, significant); warnings (of the fit, then of each ride after its label, e.g. power
+dropouts); notes (of reading each ride, after its label, e.g. stops dropped); notices (every
+warning and note as data: code, level, values in SI, text, and the ride for a ride's notice).
+Intervals are 95 % bootstrap intervals over laps, null with fewer than 3 laps.
 
 example: python -m pacing fieldtest hoods.csv aero.csv --mass 82 --position hoods
          --position aero --temperature 14 --humidity 70
@@ -94,7 +96,8 @@ def add_parser(subparsers: argparse._SubParsersAction) -> None:
     parser.add_argument("--efficiency", type=float, default=0.976, metavar="FRACTION",
                         help="drivetrain efficiency, 0.5-1 (default 0.976, Martin et al. 1998)")
     parser.add_argument("--bootstrap", type=int, default=1000, metavar="DRAWS",
-                        help="bootstrap draws for the intervals (default 1000, 0 for none)")
+                        help="bootstrap draws for the intervals (default 1000, 0 for none, "
+                             f"at most {MAX_BOOTSTRAP_DRAWS})")
     parser.add_argument("--json", action="store_true", help="print JSON instead of a table")
     add_air_flags(parser)
     parser.set_defaults(run=run)
@@ -111,7 +114,7 @@ def _check_flags(args: argparse.Namespace) -> None:
             f"--mass must be 20-300 kg (rider + bike), got {args.mass:g}")
     require(0.5 <= args.efficiency <= 1.0, f"--efficiency must be 0.5-1, got {args.efficiency:g}")
     require(0.0 <= args.humidity <= 100.0, f"--humidity must be 0-100 %, got {args.humidity:g}")
-    require(args.bootstrap >= 0, "--bootstrap must not be negative")
+    check_bootstrap_draws(args.bootstrap, "--bootstrap")
     for flag, value in (("--crr", args.crr), ("--fallback-crr", args.fallback_crr)):
         require(value is None or (np.isfinite(value) and 0.0 <= value <= 0.1),
                 f"{flag} must be 0-0.1 (road tyres are about 0.002-0.01), got {value}")
@@ -187,15 +190,16 @@ def run(args: argparse.Namespace) -> int:
                            lap_radius=args.lap_radius, bootstrap=args.bootstrap,
                            fallback_rolling_coefficient=fallback)
     if args.json:
-        print(json.dumps(_as_json(result, tests, notes), indent=2))
+        print(json.dumps(_as_json(result, tests, notes), indent=2, allow_nan=False))
     else:
         print(_as_text(result, tests, notes))
     return 0
 
 
-def _note_lines(notes: Sequence[tuple[str, Notice]]) -> list[str]:
-    """Each ride's notes in words, after the ride's label: "hoods: dropped 3 samples …"."""
-    return [f"{label}: {describe(notice)}" for label, notice in notes]
+def _note_lines(notes: Sequence[tuple[str, Notice]], level: str = "note") -> list[str]:
+    """Each ride's notices of one level in words, after the ride's label: "hoods: dropped 3
+    samples …"."""
+    return [f"{label}: {describe(notice)}" for label, notice in notes if notice.level == level]
 
 
 def _as_json(result: FieldTestResult, tests: Sequence[PositionTest],
@@ -225,7 +229,7 @@ def _as_json(result: FieldTestResult, tests: Sequence[PositionTest],
              round(d.difference, 5), "ci95": _pair(d.ci95), "significant": d.significant}
             for d in result.differences
         ],
-        "warnings": describe_all(result.warnings),
+        "warnings": describe_all(result.warnings) + _note_lines(notes, "warning"),
         "notes": _note_lines(notes),
         "notices": notices_as_json(result.warnings)
         + [{**entry, "ride": label}
@@ -283,6 +287,7 @@ def _as_text(result: FieldTestResult, tests: Sequence[PositionTest],
         lines.append(f"{d.label} - {d.baseline}: {d.difference:+.4f} m² "
                      f"{_interval(d.ci95, 4)}, {verdict}")
     lines.extend(labelled(w) for w in result.warnings)
+    lines.extend(f"warning: {line}" for line in _note_lines(notes, "warning"))
     lines.extend(f"note: {line}" for line in _note_lines(notes))
     return "\n".join(lines)
 

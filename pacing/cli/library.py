@@ -3,7 +3,7 @@
     pacing library [--database URL_OR_PATH] list
     pacing library [--database URL_OR_PATH] show athlete|setup|course|plan ID [--gpx FILE]
     pacing library [--database URL_OR_PATH] export [--athlete ID] [-o FILE]
-    pacing library [--database URL_OR_PATH] import FILE
+    pacing library [--database URL_OR_PATH] import FILE [--on-existing refuse|keep-both]
 
 The library is the SQLite file in the user's data directory unless --database or the
 environment variable PACING_DATABASE_URL names another (a file path or an SQLAlchemy URL).
@@ -15,6 +15,7 @@ from __future__ import annotations
 
 import argparse
 import json
+import os
 import sys
 from collections.abc import Callable
 from pathlib import Path
@@ -61,6 +62,10 @@ def add_parser(subparsers: argparse._SubParsersAction) -> None:
                         help="write to FILE instead of standard output")
     import_ = actions.add_parser("import", help="add the entries of a library file")
     import_.add_argument("file", help="library file (JSON); '-' reads standard input")
+    import_.add_argument("--on-existing", choices=("refuse", "keep-both"), default="refuse",
+                         help="when a name of the file is already in the library: refuse the "
+                              "file (default) or keep both, the file's entry named "
+                              "'NAME (2)'")
     parser.set_defaults(run=run)
 
 
@@ -280,9 +285,9 @@ def _show_plan(plan: PlanRecord) -> None:
         ("notes", summary.notes or "-"),
         *_stamps(summary),
     ]))
-    print("\ninputs\n" + json.dumps(plan.inputs, indent=2, ensure_ascii=False))
-    print("\nstrategy\n" + json.dumps(plan.strategy, indent=2, ensure_ascii=False))
-    print("\nweather\n" + json.dumps(plan.weather, indent=2, ensure_ascii=False))
+    print("\ninputs\n" + json.dumps(plan.inputs, indent=2, ensure_ascii=False, allow_nan=False))
+    print("\nstrategy\n" + json.dumps(plan.strategy, indent=2, ensure_ascii=False, allow_nan=False))
+    print("\nweather\n" + json.dumps(plan.weather, indent=2, ensure_ascii=False, allow_nan=False))
     print(f"\ntargets ({len(plan.targets)} segments)")
     if plan.targets:
         headers: list[str] = []
@@ -299,7 +304,7 @@ def _cell(value: Any) -> str:
     if isinstance(value, float):
         return f"{value:.6g}"
     if isinstance(value, (dict, list)):
-        return json.dumps(value, ensure_ascii=False)
+        return json.dumps(value, ensure_ascii=False, allow_nan=False)
     return str(value)
 
 
@@ -311,23 +316,65 @@ def _export(library: Library, args: argparse.Namespace) -> int:
     if args.output is None or args.output == "-":
         sys.stdout.write(text)
     else:
-        Path(args.output).write_text(text, encoding="utf-8")
+        write_private(Path(args.output), text.encode("utf-8"))
         print(f"wrote {args.output}")
     return 0
 
 
+def write_private(path: Path, data: bytes) -> None:
+    """Write `data` to `path`; a new file is readable by its owner only (0600: a library
+    file holds athletes' body mass and physiology), an existing one keeps its permissions.
+
+    Parameters
+    ----------
+    path : pathlib.Path
+        Where to write [-].
+    data : bytes
+        What to write [bytes].
+
+    Raises
+    ------
+    InputError
+        The file cannot be written, in one line.
+    """
+    try:
+        descriptor = os.open(path, os.O_WRONLY | os.O_CREAT | os.O_TRUNC, 0o600)
+        with os.fdopen(descriptor, "wb") as stream:
+            stream.write(data)
+    except OSError as error:
+        raise InputError(f"cannot write {path}: {error.strerror}") from None
+
+
 def _import(library: Library, args: argparse.Namespace) -> int:
-    """``library import FILE``: add a library file's entries ('-' reads standard input)."""
+    """``library import FILE``: add a library file's entries ('-' reads standard input).
+
+    The size is checked before the file is read whole (FILE_SIZE_LIMIT), so a file too large
+    is refused at once with little memory."""
+    from pacing.store.library_file import FILE_SIZE_LIMIT, check_file_size
     from pacing.store.library_import import import_library
+    from pacing.store.statements import NameTaken
 
     if args.file == "-":
-        data = sys.stdin.buffer.read()
+        data = sys.stdin.buffer.read(FILE_SIZE_LIMIT + 1)
+        check_file_size(len(data), exact=False)
     else:
         path = Path(args.file)
         if not path.is_file():
             raise InputError(f"no such file: {args.file}")
-        data = path.read_bytes()
-    print(import_library(library, data).message())
+        try:
+            with path.open("rb") as stream:
+                check_file_size(os.fstat(stream.fileno()).st_size)
+                data = stream.read(FILE_SIZE_LIMIT + 1)
+        except OSError as error:
+            raise InputError(f"cannot read {args.file}: {error.strerror}") from None
+        check_file_size(len(data))
+    try:
+        summary = import_library(library, data, on_existing=args.on_existing)
+    except NameTaken as taken:
+        raise InputError(f"nothing imported: {taken.kind} {taken.name!r} is already in the "
+                         "library; import with --on-existing keep-both to add the file's "
+                         f"entry as {taken.name + ' (2)'!r}") from None
+    print(summary.message())
     return 0
 
 

@@ -29,6 +29,7 @@ from pacing.cli.common import (
     load_course_and_bounds,
     notices_as_json,
     report_notices,
+    warnings_as_text,
 )
 from pacing.display import units
 from pacing.errors import InputError
@@ -47,6 +48,11 @@ MASS_RANGE = (20.0, 300.0)
 
 POWER_RANGE = (0.0, 3000.0)
 """Accepted crank power [W]: above the first, at most the second."""
+
+EFFICIENCY_RANGE = (0.5, 1.0)
+"""Accepted drivetrain efficiency [-], as pacing.athlete.Setup accepts it: chain drives
+measured 81-99 % (Spicer et al. 2001, J Mech Des 123(4):598-605, doi:10.1115/1.1412848);
+below one half the plan's crank power would mostly heat the chain."""
 
 HUMAN_POWER_CEILING = 2000.0
 """No rider holds more crank power than this over a race [W]. World-class track sprinters'
@@ -94,8 +100,9 @@ def validate_args(args: argparse.Namespace) -> None:
     cda = 0.30 if args.cda is None else args.cda
     _check(0.0 < cda <= 2.0, f"--cda must be above 0 and at most 2 m², got {cda:g}")
     _check(0.0 <= args.crr <= 0.1, f"--crr must be 0-0.1, got {args.crr:g}")
-    _check(0.0 < args.efficiency <= 1.0,
-           f"--efficiency must be above 0 and at most 1, got {args.efficiency:g}")
+    low, high = EFFICIENCY_RANGE
+    _check(low <= args.efficiency <= high,
+           f"--efficiency must be {low:g}-{high:g}, got {args.efficiency:g}")
     _check(0.0 <= args.drafting <= 99.0, f"--drafting must be 0-99 %, got {args.drafting:g}")
     _check(0.0 <= args.humidity <= 100.0,
            f"--humidity must be 0-100 %, got {args.humidity:g}")
@@ -249,9 +256,10 @@ def prediction_as_dict(prediction: Prediction, segments: list[SegmentResult], *,
     dict
         finish_time_s [s], distance_m [m], average_speed_mps and max_speed_mps [m/s],
         average_power_w [W], work_kj [kJ], walking_distance_m (distance walked or ridden
-        below walking pace) [m], and per segment start_m, end_m [m], grade [-], power_w,
+        below walking pace) [m], and per segment start_m, end_m [m], grade [-], power_w
+        (the mean crank power of the pieces ridden: walking goes not through the pedals),
         power_low_w, power_high_w (the band ±`band` around the target) [W], speed_mps,
-        max_speed_mps [m/s], time_s [s].
+        max_speed_mps [m/s], time_s [s], walking_distance_m [m].
     """
     target = ([s.power for s in segments] if target_power is None
               else np.broadcast_to(np.asarray(target_power, dtype=float), (len(segments),)))
@@ -275,10 +283,33 @@ def prediction_as_dict(prediction: Prediction, segments: list[SegmentResult], *,
                 "speed_mps": s.speed,
                 "time_s": s.time,
                 "max_speed_mps": s.max_speed,
+                "walking_distance_m": s.walking_distance,
             }
             for k, s in enumerate(segments)
         ],
     }
+
+
+def limits_as_dict(result: RaceResult) -> dict[str, Any]:
+    """What every cycling plan's JSON says about the athlete's limits, whatever its strategy.
+
+    Parameters
+    ----------
+    result : pacing.plan.race.RaceResult
+        A cycling plan of the one planning chain [-].
+
+    Returns
+    -------
+    dict
+        min_w_prime_balance_j, the lowest W′ balance (null without CP and W′) [J];
+        w_prime_exhausted_at_m, where the balance first falls below zero (null when it never
+        does) [m]; warnings, the text of the warning-level notices in metric words [-].
+    """
+    plan = result.plan
+    assert isinstance(plan, RacePlan)  # a cycling result holds a cycling plan
+    return {"min_w_prime_balance_j": plan.min_w_prime_balance,
+            "w_prime_exhausted_at_m": result.exhausted_at,
+            "warnings": warnings_as_text(result.notices)}
 
 
 def _band_text(low: float, high: float) -> str:
@@ -370,10 +401,11 @@ def run(args: argparse.Namespace) -> int:
     if args.json:
         output = (prediction_as_dict(plan.prediction, segments, target_power=args.power)
                   if args.strategy is None else plan_as_dict(plan, segments))
+        output.update(limits_as_dict(result))
         output["notices"] = notices_as_json(result.notices)
         report_notices(result.notices, table=False)
-        json.dump(output, sys.stdout, indent=2)
-        sys.stdout.write("\n")
+        # whole or not at all: a value JSON cannot hold never leaves half a document
+        sys.stdout.write(json.dumps(output, indent=2, allow_nan=False) + "\n")
         return 0
     table = (prediction_as_table(plan.prediction, segments, target_power=args.power)
              if args.strategy is None else plan_as_table(plan, segments))

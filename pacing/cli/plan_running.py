@@ -21,6 +21,7 @@ from pacing.cli.common import (
     load_course_and_bounds,
     notices_as_json,
     report_notices,
+    warnings_as_text,
 )
 from pacing.cli.plan import RUNNING_STRATEGIES, add_plan_flags
 from pacing.display import units
@@ -469,10 +470,12 @@ def run(args: argparse.Namespace) -> int:
     runner = result.request.runner
     if args.json:
         output = plan_as_dict(plan, runner)
+        output["d_prime_exhausted_at_m"] = result.exhausted_at
+        output["warnings"] = warnings_as_text(result.notices)
         output["notices"] = notices_as_json(result.notices)
         report_notices(result.notices, table=False)
-        json.dump(output, sys.stdout, indent=2)
-        sys.stdout.write("\n")
+        # whole or not at all: a value JSON cannot hold never leaves half a document
+        sys.stdout.write(json.dumps(output, indent=2, allow_nan=False) + "\n")
         return 0
     print(plan_as_table(plan, runner))
     for line in report_notices(result.notices, table=True):

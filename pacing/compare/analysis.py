@@ -55,6 +55,39 @@ wind 1 m/s are our own round defaults (judgement, from memory), meant to be repl
 MAX_SAMPLES = 10_000
 """Most Monte Carlo draws of one comparison (each draw is one simulation per setup)."""
 
+MAX_DRAWN_PIECES = 4_000_000
+"""Most course pieces the Monte Carlo draws of one comparison simulate (draws × setups ×
+pieces): the inertial simulation takes about 9 µs a piece on one core (17.7 s for 2 million
+pieces, measured for issue 14), so this is about half a minute."""
+
+
+def check_draw_work(samples: int, setups: int, pieces: int) -> None:
+    """Refuse Monte Carlo draws whose simulations would take minutes, in one line.
+
+    Parameters
+    ----------
+    samples : int
+        Monte Carlo draws asked for [-].
+    setups : int
+        Setups compared (each draw simulates every one) [-].
+    pieces : int
+        Pieces of the course [-].
+
+    Raises
+    ------
+    InputError
+        When samples × setups × pieces is above MAX_DRAWN_PIECES, with the most samples
+        this course allows.
+    """
+    work = samples * max(setups, 1) * pieces
+    if work > MAX_DRAWN_PIECES:
+        allowed = MAX_DRAWN_PIECES // (max(setups, 1) * max(pieces, 1))
+        raise InputError(f"{samples} samples × {setups} setups × {pieces} course pieces is "
+                         f"more than this comparison works through "
+                         f"({MAX_DRAWN_PIECES:.0e} simulated pieces); give at most "
+                         f"{allowed} samples, or a longer resampling step")
+
+
 CLIPPED_SHARE = 0.01
 """Share of the draws cut at a floor above which the user is told [-]."""
 
@@ -170,6 +203,8 @@ def analyse_setups(race: RaceRequest, setups: Iterable[RiderSetup],
     """
     if samples and not 2 <= samples <= MAX_SAMPLES:
         raise InputError(f"samples must be 0 or 2-{MAX_SAMPLES}, got {samples}")
+    setups = list(setups)
+    check_draw_work(samples, len(setups), int(np.asarray(race.course.distance).size) - 1)
     comparison = compare_setups(race, setups, baseline, air)
     sensitivities = _sensitivities(comparison)
     finish, difference = _linear_spreads(comparison, sensitivities, uncertainty)

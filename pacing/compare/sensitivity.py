@@ -207,6 +207,13 @@ def sensitivity(course: Course, piece_power: ArrayLike, rider: Rider, conditions
 
 # ------------------------------------------------------------------------ uncertainty
 
+LARGEST_UNCERTAINTY = {"drag_area": (0.5, " m²"), "rolling_coefficient": (0.05, ""),
+                       "mass": (100.0, " kg"), "wind": (20.0, " m/s")}
+"""Largest 1 σ accepted per input, [m²], [-], [kg], [m/s]: each is already wider than the
+input's whole plausible range (CdA 0.15-0.5 m², Crr 0.002-0.01; common practice), so a larger
+σ is a typing mistake and would only overflow the spread."""
+
+
 @dataclass(frozen=True)
 class Uncertainty:
     """One standard deviation (1 σ) of each uncertain input.
@@ -241,6 +248,10 @@ class Uncertainty:
             if not (math.isfinite(value) and value >= 0):
                 raise InputError(f"uncertainty of {name.replace('_', ' ')} must be ≥ 0, "
                                  f"got {value!r}")
+            high, unit = LARGEST_UNCERTAINTY[name]
+            if value > high:
+                raise InputError(f"uncertainty of {name.replace('_', ' ')} must be at most "
+                                 f"{high:g}{unit}, got {value:.4g}")
 
 
 @dataclass(frozen=True, eq=False)

@@ -1,5 +1,6 @@
 """Elevation of a course: the cleaning settings (ElevationSmoothing), smoothing over a distance
-window, the grade limit, filling points without a height, the absurd-jump check, ascent.
+window, the grade limit, filling points without a height, the absurd-jump check, ascent, and
+what the cleaning changed (as notices).
 
 The profile is smoothed with a positive, symmetric kernel from scipy.signal.windows (the ends
 padded by odd reflection, so start and finish heights and a linear profile are kept and the
@@ -10,13 +11,13 @@ pacing.course.geometry builds courses with these.
 from __future__ import annotations
 
 import math
-import warnings
 from dataclasses import dataclass
 
 import numpy as np
 from numpy.typing import ArrayLike
 
 from pacing.errors import InputError
+from pacing.notices import Notice, note, warning
 
 ELEVATION_JUMP_SLACK = 50.0
 """Elevation change between two track points is absurd beyond this height [m] plus
@@ -24,6 +25,14 @@ ELEVATION_JUMP_GRADE times their horizontal distance."""
 
 ELEVATION_JUMP_GRADE = 1.0
 """Grade no road or path keeps between two track points (100 %) [-]."""
+
+SUSTAINED_GRADE_LENGTH = 100.0
+"""Shortest stretch beyond the grade limit kept as real climbing when there is no smoothing
+window [m]; with one, the window itself (sustained_length)."""
+
+GRADE_LIMIT_REPORT_HEIGHT = 5.0
+"""The grade limit moving the profile by more than this is reported [m] (common practice: a
+few metres, about what a consumer GNSS receiver's barometric altitude drifts)."""
 
 
 @dataclass(frozen=True)
@@ -43,7 +52,8 @@ class ElevationSmoothing:
         "moving-average" it is a flat window of this width; 0 turns smoothing off [m].
     max_grade : float
         Steepest grade kept after smoothing, up or down, 0..1; steeper pieces are flattened
-        to this grade [-].
+        to this grade, unless they make a stretch at least `sustained_length` long (real
+        climbing, kept with a note) [-].
     method : {"gaussian", "moving-average", "none"}
         A key of SMOOTHING_METHODS [-].
     """
@@ -61,6 +71,31 @@ class ElevationSmoothing:
         if self.method not in SMOOTHING_METHODS:
             raise InputError(f"unknown smoothing method {self.method!r}; choose one of "
                              f"{', '.join(SMOOTHING_METHODS)}")
+
+
+def sustained_length(smoothing: ElevationSmoothing) -> float:
+    """Shortest stretch steeper than the grade limit that the cleaning keeps as real [m]:
+    the smoothing window, at least SUSTAINED_GRADE_LENGTH.
+
+    A spike or a step in recorded heights, smoothed over the window, is steep over less than
+    the window; a real ramp stays steep over its length.
+
+    Parameters
+    ----------
+    smoothing : ElevationSmoothing
+        The cleaning settings.
+
+    Returns
+    -------
+    float
+        The length [m].
+
+    Examples
+    --------
+    >>> sustained_length(ElevationSmoothing()), sustained_length(ElevationSmoothing(window=0))
+    (200.0, 100.0)
+    """
+    return max(float(smoothing.window), SUSTAINED_GRADE_LENGTH)
 
 
 def total_ascent(elevation: ArrayLike) -> float:
@@ -111,8 +146,8 @@ def check_elevation_jumps(length: np.ndarray, elevation: np.ndarray) -> None:
 def fill_missing_elevation(distance: np.ndarray, elevation: np.ndarray) -> np.ndarray:
     """Elevation with NaN points filled by linear interpolation along the distance [m].
 
-    Points before the first (after the last) known height take that height. Warns
-    (UserWarning, one line) how many points had no elevation; raises InputError when none has.
+    Points before the first (after the last) known height take that height; raises InputError
+    when none has one (missing_elevation_notice says how many were filled).
 
     Parameters
     ----------
@@ -131,10 +166,87 @@ def fill_missing_elevation(distance: np.ndarray, elevation: np.ndarray) -> np.nd
         return elevation
     if not known.any():
         raise InputError("the course has no elevation at any point")
-    missing = int(np.count_nonzero(~known))
-    warnings.warn(f"{missing} of {known.size} track points had no elevation; their heights "
-                  "were interpolated from the neighbouring points", UserWarning, stacklevel=3)
     return np.interp(distance, distance[known], elevation[known])
+
+
+def missing_elevation_notice(elevation: np.ndarray) -> Notice | None:
+    """A warning saying how many points have no elevation (NaN), or None when all have one.
+
+    Parameters
+    ----------
+    elevation : numpy.ndarray
+        Elevation of each track point, NaN where missing [m].
+
+    Returns
+    -------
+    pacing.notices.Notice or None
+        "elevation-points-missing" with count and total [-].
+
+    Examples
+    --------
+    >>> missing_elevation_notice(np.array([1.0, np.nan, 3.0])).values
+    {'count': 1, 'total': 3}
+    """
+    missing = int(np.count_nonzero(~np.isfinite(elevation)))
+    if missing == 0 or missing == elevation.size:
+        return None
+    return warning("elevation-points-missing", count=missing, total=int(elevation.size))
+
+
+def cleaning_notices(distance: np.ndarray, raw: np.ndarray, smoothed: np.ndarray,
+                     cleaned: np.ndarray, max_grade: float,
+                     sustained: float = math.inf) -> list[Notice]:
+    """What the cleaning did to the profile: the ascent it removed (a note), the stretches
+    steeper than the limit it kept as real (a note), and a warning when the grade limit moved
+    the profile by more than GRADE_LIMIT_REPORT_HEIGHT.
+
+    Parameters
+    ----------
+    distance : numpy.ndarray
+        Distance of each resampled point [m].
+    raw : numpy.ndarray
+        Elevation of the track points before resampling [m].
+    smoothed : numpy.ndarray
+        Resampled elevation after smoothing, before the grade limit [m].
+    cleaned : numpy.ndarray
+        Resampled elevation after the grade limit [m].
+    max_grade : float
+        The grade limit [-].
+    sustained : float, optional
+        Shortest steep stretch the limit kept (limit_grade) [m].
+
+    Returns
+    -------
+    list of pacing.notices.Notice
+        "elevation-cleaned" (note: raw_ascent_m, ascent_m, smoothing_removed_m,
+        limit_removed_m [m]) when the raw track climbs; "steep-grade-kept" (note: at_m,
+        length_m [m], steepest_grade, max_grade [-]) when a sustained stretch beyond the
+        limit was kept; "grade-limit-cut" (warning: at_m, height_m [m], max_grade,
+        steepest_grade [-]) when the limit moved the profile.
+    """
+    raw_ascent = total_ascent(raw)
+    smoothed_ascent = total_ascent(smoothed)
+    ascent = total_ascent(cleaned)
+    notices = []
+    if raw_ascent > 0.0:
+        notices.append(note("elevation-cleaned", raw_ascent_m=raw_ascent, ascent_m=ascent,
+                            smoothing_removed_m=max(raw_ascent - smoothed_ascent, 0.0),
+                            limit_removed_m=max(smoothed_ascent - ascent, 0.0)))
+    grade = np.diff(smoothed) / np.diff(distance)
+    kept = sustained_steep_pieces(distance, smoothed, max_grade, sustained)
+    if kept.any():
+        first = int(np.argmax(kept))
+        notices.append(note("steep-grade-kept", at_m=float(distance[first]),
+                            length_m=float(np.diff(distance)[kept].sum()),
+                            steepest_grade=float(np.max(np.abs(grade[kept]))),
+                            max_grade=float(max_grade)))
+    moved = np.abs(smoothed - cleaned)
+    if moved.size and float(moved.max()) > GRADE_LIMIT_REPORT_HEIGHT:
+        first = int(np.argmax((np.abs(grade) > max_grade) & ~kept))
+        notices.append(warning("grade-limit-cut", at_m=float(distance[first]),
+                               height_m=float(moved.max()), max_grade=float(max_grade),
+                               steepest_grade=float(np.max(np.abs(grade)))))
+    return notices
 
 
 # scipy.signal is imported inside the functions that use it: it takes a second or more to
@@ -241,11 +353,60 @@ def _convolve_padded(elevation: np.ndarray, kernel: np.ndarray, half: int,
     return signal.convolve(padded, kernel, mode="valid", method="auto")
 
 
-def limit_grade(distance: np.ndarray, elevation: np.ndarray, max_grade: float) -> np.ndarray:
-    """Elevation re-integrated with every piece's grade clipped to ±max_grade [m].
+def sustained_steep_pieces(distance: np.ndarray, elevation: np.ndarray, max_grade: float,
+                           sustained: float) -> np.ndarray:
+    """Which pieces belong to a stretch steeper than ±max_grade, one way, for at least
+    `sustained` metres: real climbing (or descending) that a grade limit must keep.
+
+    Parameters
+    ----------
+    distance : numpy.ndarray
+        Distance of each point, increasing [m].
+    elevation : numpy.ndarray
+        Elevation of each point [m].
+    max_grade : float
+        The grade limit g [-].
+    sustained : float
+        Shortest stretch kept [m]; infinite keeps none.
+
+    Returns
+    -------
+    numpy.ndarray
+        One flag per piece [-].
+
+    Examples
+    --------
+    Three 10 m pieces at 30 % then one at 5 %: a 30 m stretch is kept when 30 m is enough.
+
+    >>> d = np.array([0.0, 10.0, 20.0, 30.0, 40.0]); z = np.array([0.0, 3.0, 6.0, 9.0, 9.5])
+    >>> sustained_steep_pieces(d, z, 0.25, 30.0).tolist()
+    [True, True, True, False]
+    """
+    length = np.diff(distance)
+    rise = np.diff(elevation)
+    sign = np.where(rise > max_grade * length, 1, np.where(rise < -max_grade * length, -1, 0))
+    keep = np.zeros(length.size, dtype=bool)
+    if not math.isfinite(sustained) or not sign.any():
+        return keep
+    change = np.flatnonzero(np.diff(sign)) + 1
+    starts = np.concatenate([[0], change])
+    stops = np.concatenate([change, [sign.size]])
+    reach = np.concatenate([[0.0], np.cumsum(length)])
+    for start, stop in zip(starts.tolist(), stops.tolist(), strict=True):
+        if sign[start] != 0 and reach[stop] - reach[start] >= sustained:
+            keep[start:stop] = True
+    return keep
+
+
+def limit_grade(distance: np.ndarray, elevation: np.ndarray, max_grade: float,
+                sustained: float = math.inf) -> np.ndarray:
+    """Elevation re-integrated with every piece's grade clipped to ±max_grade [m], except
+    stretches steeper than that for at least `sustained` metres (sustained_steep_pieces).
 
     z'[0] = z[0]; z'[i+1] = z'[i] + clip(z[i+1] − z[i], −g·Δs, +g·Δs). Clipping only shrinks
-    rises, so ascent never grows.
+    rises, so ascent never grows. A spike or a step in the recorded heights, smoothed, is steep
+    over a short stretch and is flattened; a real ramp stays steep over its whole length and,
+    given `sustained`, is kept.
 
     Parameters
     ----------
@@ -255,11 +416,14 @@ def limit_grade(distance: np.ndarray, elevation: np.ndarray, max_grade: float) -
         Elevation of each point [m].
     max_grade : float
         g, the steepest grade kept [-].
+    sustained : float, optional
+        Stretches steeper than g for at least this long are kept; infinite (the default)
+        keeps none [m].
 
     Returns
     -------
     numpy.ndarray
-        Elevation with no piece steeper than g [m].
+        Elevation with no piece steeper than g outside the sustained stretches [m].
 
     Examples
     --------
@@ -270,12 +434,16 @@ def limit_grade(distance: np.ndarray, elevation: np.ndarray, max_grade: float) -
     """
     length = np.diff(distance)
     rise = np.clip(np.diff(elevation), -max_grade * length, max_grade * length)
+    if math.isfinite(sustained):
+        kept = sustained_steep_pieces(distance, elevation, max_grade, sustained)
+        rise = np.where(kept, np.diff(elevation), rise)
     return elevation[0] + np.concatenate([[0.0], np.cumsum(rise)])
 
 
 def clean_elevation(distance: ArrayLike, elevation: ArrayLike,
                     smoothing: ElevationSmoothing = ElevationSmoothing()) -> np.ndarray:
-    """Smooth the elevation over `smoothing.window`, then limit the grade [m].
+    """Smooth the elevation over `smoothing.window`, then limit the grade, keeping stretches
+    steeper than the limit for at least sustained_length(smoothing) [m].
 
     Parameters
     ----------
@@ -302,4 +470,4 @@ def clean_elevation(distance: ArrayLike, elevation: ArrayLike,
     distance = np.asarray(distance, dtype=float)
     step = float(distance[1] - distance[0]) if distance.size > 1 else 1.0
     smoothed = smooth_elevation(elevation, step, smoothing)
-    return limit_grade(distance, smoothed, smoothing.max_grade)
+    return limit_grade(distance, smoothed, smoothing.max_grade, sustained_length(smoothing))

@@ -15,7 +15,9 @@ Building a course from a track (`build_course`):
    tracks that cross the antimeridian;
 3. resample along the track at a uniform step, moving along each raw piece's geodesic;
 4. clean the elevation: smooth over a distance window (`ElevationSmoothing`, scipy.signal
-   windows), then limit the grade (pacing.course.elevation); the raw ascent is kept for comparison;
+   windows), then limit the grade except over stretches steep for at least the window (real
+   climbing; pacing.course.elevation); the raw ascent is kept for comparison, and what the
+   cleaning changed is told in notices;
 5. heading of each piece (geodesic azimuth) and corner radius at each point (circumradius of
    points a few tens of metres apart, in an azimuthal equidistant projection around the point).
 
@@ -30,6 +32,7 @@ from __future__ import annotations
 
 import math
 from dataclasses import dataclass
+from typing import TYPE_CHECKING
 
 import numpy as np
 from numpy.typing import ArrayLike
@@ -38,11 +41,20 @@ from pyproj import Geod
 from pacing.course.elevation import (
     ElevationSmoothing,
     check_elevation_jumps,
-    clean_elevation,
+    cleaning_notices,
     fill_missing_elevation,
+    limit_grade,
+    missing_elevation_notice,
+    smooth_elevation,
+    sustained_length,
+    sustained_steep_pieces,
     total_ascent,
 )
 from pacing.errors import InputError
+from pacing.notices import Notice
+
+if TYPE_CHECKING:
+    from pacing.course.recording import Gap, TrackFacts
 
 STRAIGHT_ROAD_RADIUS = 1000.0
 """Corner radius reported for straight road [m]: larger radii never limit speed."""
@@ -112,6 +124,13 @@ class Course:
         Total ascent of the raw track, before resampling and cleaning [m].
     smoothing : ElevationSmoothing or None
         The elevation cleaning used (None for a course made from numbers).
+    notices : tuple of pacing.notices.Notice
+        What reading and building the course found: gaps, missing or constant elevations,
+        ascent removed by the cleaning, profile changed by the grade limit.
+    tracks : tuple of pacing.course.recording.TrackFacts
+        The tracks of the file it was read from (empty for a course made from numbers).
+    gaps : tuple of pacing.course.recording.Gap
+        The gaps found in the recording, joined or dropped.
     """
 
     distance: np.ndarray
@@ -125,6 +144,9 @@ class Course:
     name: str = "course"
     raw_ascent: float = float("nan")
     smoothing: ElevationSmoothing | None = None
+    notices: tuple[Notice, ...] = ()
+    tracks: tuple[TrackFacts, ...] = ()
+    gaps: tuple[Gap, ...] = ()
 
     @property
     def piece_length(self) -> np.ndarray:
@@ -453,14 +475,36 @@ def _checked_step(step: float) -> float:
 
 
 def _without_repeated_points(latitude: np.ndarray, longitude: np.ndarray,
-                             elevation: np.ndarray) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
-    """The track without points closer than REPEATED_POINT_DISTANCE to the one before."""
+                             elevation: np.ndarray, skip: np.ndarray
+                             ) -> tuple[np.ndarray, np.ndarray, np.ndarray, np.ndarray]:
+    """The track without points closer than REPEATED_POINT_DISTANCE to the one before; a piece
+    that replaces several is left out when any of them was."""
     length, _ = geodesic_pieces(latitude, longitude)
     keep = np.concatenate([[True], length > REPEATED_POINT_DISTANCE])
     latitude, longitude, elevation = latitude[keep], longitude[keep], elevation[keep]
     if latitude.size < 2:
         raise InputError("all points of the course are at the same place")
-    return latitude, longitude, elevation
+    skipped_before = np.concatenate([[0], np.cumsum(skip)])[np.flatnonzero(keep)]
+    return latitude, longitude, elevation, np.diff(skipped_before) > 0
+
+
+def _checked_skip(skip: ArrayLike | None, pieces: int) -> np.ndarray:
+    """The pieces left out as a boolean array of length `pieces` (none when None)."""
+    if skip is None:
+        return np.zeros(pieces, dtype=bool)
+    mask = np.asarray(skip, dtype=bool).ravel()
+    if mask.size != pieces:
+        raise InputError("skip must have one flag per piece between track points")
+    return mask
+
+
+def _level_across(heights: np.ndarray, skip: np.ndarray) -> np.ndarray:
+    """Heights shifted after each left-out piece so that the piece has no rise [m]: the
+    climbing across a stretch that was not ridden is not counted."""
+    if not skip.any():
+        return heights
+    rise = np.where(skip, 0.0, np.diff(heights))
+    return heights[0] + np.concatenate([[0.0], np.cumsum(rise)])
 
 
 def _positions_at(distance: np.ndarray, latitude: np.ndarray, longitude: np.ndarray,
@@ -483,7 +527,7 @@ def _positions_at(distance: np.ndarray, latitude: np.ndarray, longitude: np.ndar
 def build_course(latitude: ArrayLike, longitude: ArrayLike, elevation: ArrayLike | None,
                  step: float = DEFAULT_STEP,
                  smoothing: ElevationSmoothing = ElevationSmoothing(),  # noqa: B008 (frozen)
-                 name: str = "course") -> Course:
+                 name: str = "course", skip: ArrayLike | None = None) -> Course:
     """Build a Course from a raw track (positions in order along the course).
 
     Raises InputError (one-line message) for bad positions, elevations, step, a track whose
@@ -498,19 +542,24 @@ def build_course(latitude: ArrayLike, longitude: ArrayLike, elevation: ArrayLike
         WGS84 longitude of the track points, length M [deg].
     elevation : array_like
         Elevation of each track point, length M; NaN where a point has none (filled by
-        interpolation along the distance, with a UserWarning saying how many) [m].
+        interpolation along the distance, with a notice saying how many) [m].
     step : float, optional
         Resampling step, MINIMUM_STEP..MAXIMUM_STEP [m].
     smoothing : ElevationSmoothing, optional
         Elevation cleaning.
     name : str, optional
         Label of the course [-].
+    skip : array_like of bool, optional
+        Pieces between track points left out of the course (a gap not ridden), length M-1:
+        each counts 0 m and no rise; None for none [-].
 
     Returns
     -------
     Course
         `distance` along the track (sum of geodesic piece lengths), elevation cleaned, grade
-        from the cleaned elevation, heading and corner radius from the resampled positions.
+        from the cleaned elevation, heading and corner radius from the resampled positions;
+        `notices`: points without elevation, the ascent the cleaning removed, a profile
+        changed by the grade limit (pacing.course.elevation.cleaning_notices).
 
     References
     ----------
@@ -534,11 +583,16 @@ def build_course(latitude: ArrayLike, longitude: ArrayLike, elevation: ArrayLike
     latitude, longitude, heights = validate_track(latitude, longitude, elevation)
     if heights is None:  # never: an elevation was given (narrows the type)
         raise InputError("the course has no elevation")
-    latitude, longitude, heights = _without_repeated_points(latitude, longitude, heights)
+    skipped = _checked_skip(skip, latitude.size - 1)
+    latitude, longitude, heights, skipped = _without_repeated_points(latitude, longitude,
+                                                                     heights, skipped)
+    missing = missing_elevation_notice(heights)
     length, azimuth = geodesic_pieces(latitude, longitude)
-    track_distance = np.concatenate([[0.0], np.cumsum(length)])
+    counted = np.where(skipped, 0.0, length)
+    track_distance = np.concatenate([[0.0], np.cumsum(counted)])
     heights = fill_missing_elevation(track_distance, heights)
     check_elevation_jumps(length, heights)
+    heights = _level_across(heights, skipped)
     total = float(track_distance[-1])
     if total / step > MAXIMUM_COURSE_POINTS:
         raise InputError(f"course of {total / 1000:.0f} km is too long for a {step:g} m step "
@@ -548,9 +602,17 @@ def build_course(latitude: ArrayLike, longitude: ArrayLike, elevation: ArrayLike
     new_latitude, new_longitude = _positions_at(distance, latitude, longitude, track_distance,
                                                 length, azimuth)
     raw_elevation = np.interp(distance, track_distance, heights)
-    cleaned = clean_elevation(distance, raw_elevation, smoothing)
+    smoothed = smooth_elevation(raw_elevation, float(distance[1] - distance[0])
+                                if distance.size > 1 else 1.0, smoothing)
+    sustained = sustained_length(smoothing)
+    cleaned = limit_grade(distance, smoothed, smoothing.max_grade, sustained)
+    notices = ([] if missing is None else [missing]) + cleaning_notices(
+        distance, heights, smoothed, cleaned, smoothing.max_grade, sustained)
     piece_length = np.diff(distance)
-    grade = np.clip(np.diff(cleaned) / piece_length, -smoothing.max_grade, smoothing.max_grade)
+    grade = np.diff(cleaned) / piece_length
+    if not sustained_steep_pieces(distance, smoothed, smoothing.max_grade, sustained).any():
+        # the limit holds everywhere: clip the rounding of limit_grade's re-integration
+        grade = np.clip(grade, -smoothing.max_grade, smoothing.max_grade)
     _, heading = geodesic_pieces(new_latitude, new_longitude)
     return Course(
         distance=distance,
@@ -564,4 +626,5 @@ def build_course(latitude: ArrayLike, longitude: ArrayLike, elevation: ArrayLike
         name=str(name),
         raw_ascent=total_ascent(heights),
         smoothing=smoothing,
+        notices=tuple(notices),
     )

@@ -129,8 +129,14 @@ def _speed_filled(values: Values, system: str) -> str:
     return "filled short gaps in speed by interpolation"
 
 
-def _power_filled(values: Values, system: str) -> str:
-    return f"filled power dropouts up to {values['duration_s']:g} s by interpolation"
+def _power_dropouts(values: Values, system: str) -> str:
+    zeros = values["zero_count"]
+    logged = (f", {zeros:g} of them logged as 0 W while pedalling faster than "
+              f"{_speed(values['speed_mps'], system, 'g')}" if zeros else "")
+    return (f"power dropouts: {values['count']} samples without a real power reading "
+            f"({100 * values['share']:.0f} % of the ride{logged}), the longest gap between "
+            f"readings {values['longest_s']:g} s; left out of the energy balance and bridged "
+            "from the readings on either side: check the power meter's battery and pairing")
 
 
 def _zero_power(values: Values, system: str) -> str:
@@ -147,9 +153,14 @@ def _column_filled(values: Values, system: str) -> str:
 
 
 def _stops_dropped(values: Values, system: str) -> str:
+    stops, times = values["stretch_count"], values["times_s"]
+    at = ", ".join(f"{t:.0f}" for t in times) + (", …" if stops > len(times) else "")
+    how_long = (f"{values['duration_s']:.0f} s long" if stops == 1 else
+                f"{values['duration_s']:.0f} s in all, the longest {values['longest_s']:.0f} s")
     return (f"dropped {values['count']} samples slower than "
-            f"{_speed(values['speed_mps'], system, 'g')} (stops); the energy balance restarts "
-            "after each")
+            f"{_speed(values['speed_mps'], system, 'g')}: {stops:g} "
+            f"stop{'' if stops == 1 else 's'} at t = {at} s ({how_long}); the energy balance "
+            "restarts after each")
 
 
 def _speed_from_distance(values: Values, system: str) -> str:
@@ -176,7 +187,7 @@ WORDS: dict[str, Callable[[Mapping[str, Any], str], str]] = {
     "fieldtest-crr-unusual": _crr_unusual,
     "fieldtest-crr-interval-below-zero": _crr_interval_below_zero,
     "test-ride-speed-filled": _speed_filled,
-    "test-ride-power-filled": _power_filled,
+    "test-ride-power-dropouts": _power_dropouts,
     "test-ride-zero-power": _zero_power,
     "test-ride-column-empty": _column_empty,
     "test-ride-column-filled": _column_filled,

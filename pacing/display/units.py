@@ -354,6 +354,10 @@ def format_pace(seconds_per_unit: float) -> str:
     return f"{minutes}:{secs:02d}"
 
 
+LONGEST_CLOCK = 1000 * 3600.0
+"""Longest clock time `parse_clock` accepts [s]: 1000 hours, beyond any race or pace."""
+
+
 def parse_clock(text: str, what: str = "time") -> float:
     """"H:MM:SS", "M:SS" or plain seconds → seconds (> 0); InputError otherwise [s].
 
@@ -375,23 +379,26 @@ def parse_clock(text: str, what: str = "time") -> float:
     (3725.0, 270.0, 90.0)
     """
     raw = str(text).strip()
+    shown = repr(raw if len(raw) <= 24 else raw[:20] + "…")  # never echo a flood of digits
     fields = raw.split(":")
     if any(len(field.strip().split(".")[0]) != 2 for field in fields[1:]):
         raise InputError(f"{what} must look like H:MM:SS or M:SS (two digits after each "
-                         f"colon), got {text!r}")
+                         f"colon), got {shown}")
     try:
         parts = [float(part) for part in fields]
     except ValueError:
-        raise InputError(f"{what} must look like H:MM:SS or M:SS, got {text!r}") from None
+        raise InputError(f"{what} must look like H:MM:SS or M:SS, got {shown}") from None
     if not 1 <= len(parts) <= 3 or any(not math.isfinite(p) or p < 0 for p in parts):
-        raise InputError(f"{what} must look like H:MM:SS or M:SS, got {text!r}")
+        raise InputError(f"{what} must look like H:MM:SS or M:SS, got {shown}")
     if len(parts) > 1 and any(p >= 60 for p in parts[1:]):
-        raise InputError(f"{what}: minutes and seconds must be below 60, got {text!r}")
+        raise InputError(f"{what}: minutes and seconds must be below 60, got {shown}")
     seconds = 0.0
     for part in parts:
         seconds = seconds * 60.0 + part
     if seconds <= 0:
-        raise InputError(f"{what} must be positive, got {text!r}")
+        raise InputError(f"{what} must be positive, got {shown}")
+    if seconds > LONGEST_CLOCK:
+        raise InputError(f"{what} must be at most {LONGEST_CLOCK / 3600:g} hours, got {shown}")
     return seconds
 
 

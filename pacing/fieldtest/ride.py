@@ -6,8 +6,9 @@ components on each piece (a pacing.weather.conditions.CourseAir), `ride_wind` th
 Its laps are marked by pacing.fieldtest.laps; the estimation of CdA and Crr from rides is in
 pacing.fieldtest.estimate.
 
-What cleaning did comes back as `Ride.notes`, notices (pacing.notices, codes "test-ride-…")
-whose sentences are in pacing.display.fieldtest_words.
+What cleaning did comes back as `Ride.notes`, notices (pacing.notices, codes "test-ride-…";
+sentences in pacing.display.fieldtest_words): notes of what was filled or dropped (stops),
+warnings of power dropouts (left out of the energy balance and counted) and long 0 W stretches.
 
 Conventions: point arrays (one value per sample) have length N, piece arrays (between samples
 i and i+1) length N-1. Laps are (start, end) pairs of sample indices.
@@ -22,9 +23,10 @@ import numpy as np
 from numpy.typing import ArrayLike
 
 from pacing.errors import InputError
-from pacing.notices import Notice, note
+from pacing.notices import Notice, note, warning
 from pacing.physics.air import AIR_DENSITY_MODELS, DEFAULT_AIR_DENSITY_MODEL
 from pacing.physics.atmosphere import standard_pressure, temperature_at_elevation
+from pacing.physics.inputs import TEMPERATURE_RANGE
 from pacing.physics.wind import wind_components
 from pacing.weather.conditions import Conditions, CourseAir
 
@@ -38,7 +40,17 @@ MAX_POWER_FILL = 3.0
 """Missing power readings up to this long are filled by interpolation [s]."""
 
 ZERO_POWER_DROPOUT = 10.0
-"""Shortest stretch of 0 W with the speed holding that is noted as a possible dropout [s]."""
+"""Shortest stretch of 0 W with the speed holding that is warned of as a possible dropout [s]."""
+
+DROPOUT_SPEED = 4.0
+"""Speed from which a short run of 0 W between pedalling readings is a lost power signal, not
+coasting [m/s] (our choice: well above walking pace, below the laps of any test ride)."""
+
+DROPOUT_PEDALLING = 50.0
+"""Power of the readings on either side of such a run that shows the rider pedalling [W]."""
+
+STOPS_SHOWN = 5
+"""Stopped stretches whose start the stops note gives; more are counted."""
 
 EARTH_RADIUS = 6371008.8
 """Mean Earth radius (IUGG) for local positions [m]."""
@@ -75,7 +87,8 @@ class Ride:
     pause : numpy.ndarray or None
         True for a piece that bridges a dropped stop, length N-1.
     notes : tuple of pacing.notices.Notice
-        What reading and cleaning did (codes "test-ride-…", level "note").
+        What reading and cleaning did (codes "test-ride-…"): notes, and warnings where the
+        data may mislead (power dropouts).
     name : str
         Label.
     """
@@ -116,24 +129,26 @@ def _array(values: ArrayLike, name: str, length: int | None = None) -> np.ndarra
     return array
 
 
-def _fill_short(values: np.ndarray, time: np.ndarray, longest: float) -> tuple[np.ndarray, float]:
-    """Interpolate missing (NaN) runs no longer than `longest` seconds; return the filled array
-    and the duration of the longest missing run [s] (inf if a run is longer than `longest`)."""
+def _runs(mask: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+    """(first index, index after the last) of each run of True in `mask`."""
+    edges = np.flatnonzero(np.diff(np.concatenate(([0], mask.astype(np.int8), [0]))))
+    return edges[::2], edges[1::2]
+
+
+def _fill_short(values: np.ndarray, time: np.ndarray,
+                longest: float) -> tuple[np.ndarray, float, float]:
+    """(values with missing (NaN) runs interpolated, start [s] and span [s] of the longest
+    run): the span runs from the reading before to the reading after; nothing is filled when
+    it exceeds `longest` [s]. Some values must be present and some missing."""
     missing = np.isnan(values)
-    if not missing.any():
-        return values, 0.0
-    if missing.all():
-        return values, np.inf
-    worst = 0.0
-    edges = np.flatnonzero(np.diff(np.concatenate(([0], missing.astype(int), [0]))))
-    for start, stop in zip(edges[::2], edges[1::2], strict=True):
-        before = time[start - 1] if start > 0 else time[start]
-        after = time[stop] if stop < time.size else time[stop - 1]
-        worst = max(worst, after - before)
-    if worst > longest:
-        return values, worst
+    starts, stops = _runs(missing)
+    spans = time[np.minimum(stops, time.size - 1)] - time[np.maximum(starts - 1, 0)]
+    worst = int(np.argmax(spans))
+    at, span = float(time[starts[worst]]), float(spans[worst])
+    if span > longest:
+        return values, at, span
     good = ~missing
-    return np.interp(time, time[good], values[good]), worst
+    return np.interp(time, time[good], values[good]), at, span
 
 
 def _first_bad_sample(values: np.ndarray, time: np.ndarray, name: str, unit: str) -> str | None:
@@ -151,29 +166,62 @@ def _first_bad_sample(values: np.ndarray, time: np.ndarray, name: str, unit: str
             "and not negative")
 
 
-def _first_missing_run(values: np.ndarray, time: np.ndarray) -> tuple[float, float]:
-    """(start [s], duration [s]) of the first run of missing (NaN) values."""
-    missing = np.isnan(values)
-    start = int(np.argmax(missing))
-    stop = start
-    while stop < values.size and missing[stop]:
-        stop += 1
-    return float(time[start]), float(time[min(stop, time.size - 1)] - time[start])
-
-
 def _zero_power_holding_speed(time: np.ndarray, speed: np.ndarray, power: np.ndarray,
                               shortest: float = ZERO_POWER_DROPOUT) -> tuple[float, float] | None:
     """(start [s], duration [s]) of the first stretch of exactly 0 W lasting at least
     `shortest` seconds over which the speed does not fall, else None. Coasting slows a rider
     on level road; holding speed at 0 W for that long suggests a lost power signal (or a
     descent)."""
-    zero = (power == 0).astype(int)
-    edges = np.flatnonzero(np.diff(np.concatenate(([0], zero, [0]))))
-    for start, stop in zip(edges[::2], edges[1::2], strict=True):
+    for start, stop in zip(*_runs(power == 0), strict=True):
         last = stop - 1
         if time[last] - time[start] >= shortest and speed[last] >= speed[start] > 0:
             return float(time[start]), float(time[last] - time[start])
     return None
+
+
+def zero_power_dropouts(time: np.ndarray, speed: np.ndarray, power: np.ndarray,
+                        longest: float = MAX_POWER_FILL,
+                        dropout_speed: float = DROPOUT_SPEED) -> np.ndarray:
+    """Which 0 W readings are a lost power signal rather than the rider coasting.
+
+    A run of 0 W readings (blanks within it included) is a dropout when the readings on
+    either side both reach DROPOUT_PEDALLING and lie at most `longest` seconds apart, and the
+    speed stays at least `dropout_speed` from the one to the other: a rider pedalling at speed
+    who reads 0 W for a second or two between pedal strokes has lost the signal (head units
+    log a missed reading as 0 W). Longer stretches of 0 W may be coasting.
+
+    Parameters
+    ----------
+    time : numpy.ndarray
+        Time of each sample [s], increasing, length N.
+    speed : numpy.ndarray
+        Ground speed [m/s], length N, finite.
+    power : numpy.ndarray
+        Power readings [W], length N (NaN for blanks).
+    longest : float
+        Longest span from the reading before to the reading after a run that counts [s].
+    dropout_speed : float
+        Slowest speed at which 0 W is taken for a dropout [m/s]; inf turns the test off.
+
+    Returns
+    -------
+    numpy.ndarray
+        True for each 0 W reading taken for a dropout (bool, length N).
+    """
+    n = power.size
+    lost = (power == 0) | np.isnan(power)
+    starts, stops = _runs(lost)
+    inside = (starts > 0) & (stops < n)
+    starts, stops = starts[inside], stops[inside]
+    before, after = starts - 1, stops
+    slow = np.concatenate(([0], np.cumsum(speed < dropout_speed)))
+    dropout = ((time[after] - time[before] <= longest)
+               & (np.minimum(power[before], power[after]) >= DROPOUT_PEDALLING)
+               & (slow[after + 1] - slow[before] == 0))
+    marks = np.zeros(n + 1, dtype=int)
+    np.add.at(marks, starts[dropout], 1)
+    np.add.at(marks, stops[dropout], -1)
+    return (np.cumsum(marks[:n]) > 0) & (power == 0)
 
 
 def _checked_time(values: ArrayLike) -> np.ndarray:
@@ -197,10 +245,11 @@ def _cleaned_speed(speed: np.ndarray, time: np.ndarray, longest: float,
                    notes: list[Notice]) -> np.ndarray:
     """Speed [m/s] with gaps up to `longest` [s] filled (noted); refuses longer gaps and
     negative or non-finite values."""
+    if np.isnan(speed).all():
+        raise InputError("speed has no readings: every value is blank")
     if np.isnan(speed).any():
-        speed, worst = _fill_short(speed, time, longest)
+        speed, at, worst = _fill_short(speed, time, longest)
         if np.isnan(speed).any():
-            at, _ = _first_missing_run(speed, time)
             raise InputError(f"speed is missing for {worst:g} s from t = {at:g} s")
         notes.append(note("test-ride-speed-filled", duration_s=float(worst)))
     problem = _first_bad_sample(speed, time, "speed", "m/s")
@@ -209,19 +258,26 @@ def _cleaned_speed(speed: np.ndarray, time: np.ndarray, longest: float,
     return speed
 
 
-def _cleaned_power(power: np.ndarray, time: np.ndarray, longest: float,
-                   notes: list[Notice]) -> np.ndarray:
-    """Power [W] with dropouts up to `longest` [s] filled (noted); refuses longer dropouts and
+def _cleaned_power(power: np.ndarray, time: np.ndarray, longest: float, zeros: np.ndarray,
+                   dropout_speed: float, notes: list[Notice]) -> np.ndarray:
+    """Power [W] with dropouts (blank readings, and the 0 W readings marked in `zeros`) up to
+    `longest` [s] bridged by interpolation between the real readings on either side (a
+    warning counts them, `dropout_speed` [m/s] for its words); refuses longer gaps and
     negative or non-finite values."""
+    power = np.where(zeros, np.nan, power)
+    if np.isnan(power).all():
+        raise InputError("power has no readings: every value is blank")
     if np.isnan(power).any():
-        filled, worst = _fill_short(power, time, longest)
+        filled, at, worst = _fill_short(power, time, longest)
         if np.isnan(filled).any():
-            at, _ = _first_missing_run(power, time)
             raise InputError(
                 f"power is missing for {worst:g} s from t = {at:g} s (power-meter dropout): "
                 "cut that part out or mark laps around it"
             )
-        notes.append(note("test-ride-power-filled", duration_s=float(worst)))
+        count = int(np.isnan(power).sum())
+        notes.append(warning("test-ride-power-dropouts", count=count,
+                             zero_count=int(zeros.sum()), share=count / power.size,
+                             longest_s=float(worst), speed_mps=float(dropout_speed)))
         power = filled
     problem = _first_bad_sample(power, time, "power", "W")
     if problem:
@@ -256,6 +312,19 @@ def _check_positions(latitude: np.ndarray | None, longitude: np.ndarray | None) 
         raise InputError("latitude must be within ±90° and longitude within ±180°")
 
 
+def _stops_note(time: np.ndarray, moving: np.ndarray, stop_speed: float) -> Notice:
+    """The note of the stopped stretches: samples dropped, stretches, their total and longest
+    time [s] and the start of the first STOPS_SHOWN [s] (a stretch lasts from its first slow
+    sample to the next moving one, or to its last sample at the end of the ride)."""
+    starts, stops = _runs(~moving)
+    ends = time[np.minimum(stops, time.size - 1)]
+    lengths = ends - time[starts]
+    return note("test-ride-stops-dropped", count=int((~moving).sum()),
+                speed_mps=float(stop_speed), stretch_count=int(starts.size),
+                duration_s=float(lengths.sum()), longest_s=float(lengths.max()),
+                times_s=tuple(float(t) for t in time[starts[:STOPS_SHOWN]]))
+
+
 def _moving_samples(time: np.ndarray, speed: np.ndarray, stop_speed: float, max_gap: float,
                     notes: list[Notice]) -> tuple[np.ndarray, np.ndarray]:
     """(indices of the samples kept, pause flag of each kept piece): stops are dropped
@@ -265,8 +334,7 @@ def _moving_samples(time: np.ndarray, speed: np.ndarray, stop_speed: float, max_
         raise InputError(f"fewer than {MIN_SAMPLES} samples faster than {stop_speed:g} m/s: "
                          "nothing to fit")
     if not moving.all():
-        notes.append(note("test-ride-stops-dropped", count=int((~moving).sum()),
-                          speed_mps=float(stop_speed)))
+        notes.append(_stops_note(time, moving, stop_speed))
     index = np.flatnonzero(moving)
     pause = np.diff(index) > 1
     kept_steps = np.diff(time[index])
@@ -294,14 +362,20 @@ def make_ride(
     stop_speed: float = STOP_SPEED,
     max_gap: float = MAX_GAP,
     max_power_fill: float = MAX_POWER_FILL,
+    dropout_speed: float = DROPOUT_SPEED,
 ) -> Ride:
     """Check and clean the arrays of a test ride.
 
-    Missing speed or power readings (NaN) up to `max_power_fill` seconds are interpolated;
-    longer gaps in power are a power-meter dropout and an error. A stretch of 0 W over which
-    the speed holds is noted as a possible dropout. Samples slower than `stop_speed` are
-    dropped with a note (the pieces that bridge them become pauses). A time step longer than
-    `max_gap` while moving is an error (a recording gap breaks the energy balance).
+    Power dropouts are left out of the energy balance: blank power readings (NaN), and short
+    runs of 0 W while the rider pedals at speed (`zero_power_dropouts`), are not taken as
+    real readings; over up to `max_power_fill` seconds the power is bridged by interpolation
+    between the real readings on either side, and a warning counts them (count, share of the
+    samples, longest gap). Longer gaps in power are an error; a longer stretch of 0 W over
+    which the speed holds is warned of as a possible dropout. Missing speed readings up to
+    `max_power_fill` seconds are interpolated (noted). Samples slower than `stop_speed` are
+    dropped with a note giving the stopped stretches (the pieces that bridge them become
+    pauses). A time step longer than `max_gap` while moving is an error (a recording gap
+    breaks the energy balance).
 
     Parameters
     ----------
@@ -331,6 +405,9 @@ def make_ride(
         Largest time step accepted while moving [s].
     max_power_fill : float
         Longest gap in speed or power filled by interpolation [s].
+    dropout_speed : float
+        Slowest speed at which a short run of 0 W between pedalling readings is a dropout
+        [m/s] (inf: 0 W is always taken as a real reading).
 
     Returns
     -------
@@ -348,10 +425,14 @@ def make_ride(
     power_values = _array(power, "power", n)
     cleaning = list(notes)
     speed_values = _cleaned_speed(speed_values, seconds, max_power_fill, cleaning)
-    power_values = _cleaned_power(power_values, seconds, max_power_fill, cleaning)
+    zeros = zero_power_dropouts(seconds, speed_values, power_values, max_power_fill,
+                                dropout_speed)
+    power_values = _cleaned_power(power_values, seconds, max_power_fill, zeros, dropout_speed,
+                                  cleaning)
     suspect = _zero_power_holding_speed(seconds, speed_values, power_values)
     if suspect is not None:
-        cleaning.append(note("test-ride-zero-power", start_s=suspect[0], duration_s=suspect[1]))
+        cleaning.append(warning("test-ride-zero-power", start_s=suspect[0],
+                                duration_s=suspect[1]))
     given = dict(zip(OPTIONAL_COLUMNS, (elevation, latitude, longitude, heading, distance),
                      strict=True))
     columns = {label: _optional_column(given[label], label, seconds, cleaning)
@@ -505,8 +586,8 @@ def ride_air(ride: Ride, conditions: Conditions,
     else:
         elevation = 0.5 * (ride.elevation[1:] + ride.elevation[:-1])
     pressure = standard_pressure(elevation, conditions.sea_level_pressure)
-    temperature = temperature_at_elevation(elevation, conditions.temperature,
-                                           float(elevation[0]))
+    temperature = np.clip(temperature_at_elevation(elevation, conditions.temperature,
+                                                   float(elevation[0])), *TEMPERATURE_RANGE)
     density = np.asarray(model(temperature, pressure, conditions.relative_humidity), dtype=float)
     headwind, crosswind = ride_wind(ride, conditions.wind_at_rider, conditions.wind_from)
     return CourseAir(density=density, headwind=np.asarray(headwind, dtype=float),

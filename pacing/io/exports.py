@@ -6,7 +6,7 @@ attributes below, or dicts with the same keys), all in SI units:
 
     index, start, end, length [m], grade [-], target_power, power_low, power_high [W] or None,
     target_pace [s/km] or None, speed [m/s], time, cumulative_time [s],
-    w_prime_balance [J] or None, headwind [m/s]
+    w_prime_balance [J] or None, headwind [m/s], walking_distance [m] (optional)
 
 `segment_table` turns them into the one table the app shows; CSV and XLSX write that same
 table, so the numbers in a file are the numbers on the screen. Units are converted only here
@@ -35,6 +35,8 @@ from pacing.io.gpx import write_gpx
 
 if TYPE_CHECKING:
     from matplotlib.figure import Figure
+
+    from pacing.notices import Notice
 
 CAUTION_LINE = (
     "Speeds are estimates, not safe limits. Ride within your skills, the road, "
@@ -106,9 +108,10 @@ def segment_table(rows: Iterable[Any], system: str = "metric") -> pd.DataFrame:
     Columns (metric; imperial swaps km→mi, km/h→mph, min/km→min/mi): "Segment", "From [km]",
     "To [km]", "Length [km]", "Grade [%]", "Target power [W]", "Power low [W]",
     "Power high [W]", "Target pace [min/km]", "Speed [km/h]", "Headwind [km/h]",
-    "Split [h:mm:ss]", "Elapsed [h:mm:ss]", "W′ left [kJ]". Power, pace and W′ columns
-    appear only when some segment has them. Rounded for reading (distances 0.01, grade and
-    speeds 0.1, power 1 W, W′ 0.1 kJ); a missing value is an empty cell, never NaN text.
+    "Split [h:mm:ss]", "Elapsed [h:mm:ss]", "W′ left [kJ]", "Walked [km]" (bike pushed on
+    foot). Power, pace, W′ and walking columns appear only when some segment has them.
+    Rounded for reading (distances 0.01, grade and speeds 0.1, power 1 W, W′ 0.1 kJ); a
+    missing value is an empty cell, never NaN text.
 
     Parameters
     ----------
@@ -164,6 +167,10 @@ def segment_table(rows: Iterable[Any], system: str = "metric") -> pd.DataFrame:
     table["Elapsed [h:mm:ss]"] = [format_duration(_required(r, "cumulative_time")) for r in rows]
     if _has(rows, "w_prime_balance"):
         table["W′ left [kJ]"] = col("w_prime_balance", factor=1e-3, digits=1)
+    walked = [_number(row, "walking_distance") or 0.0 for row in rows]
+    if any(w > 0 for w in walked):
+        table[f"Walked [{dist}]"] = [round(float(to_display(w, "distance", system)), 2) + 0.0
+                                     for w in walked]
     return pd.DataFrame(table)
 
 
@@ -255,11 +262,48 @@ def _target_text(row: Any, system: str) -> str:
     return " · ".join(parts) if parts else "steady"
 
 
-def segment_waypoints(rows: Iterable[Any], system: str = "metric") -> list[tuple[float, str, str]]:
+LOCATED_CODES = ("w-prime-exhausted", "d-prime-exhausted")
+"""Notice codes whose ``distance_m`` says where on the course they happen."""
+
+
+def located_warnings(notices: Iterable[Notice], system: str = "metric"
+                     ) -> list[tuple[float, str]]:
+    """The warnings that happen at one place on the course, with their words.
+
+    Parameters
+    ----------
+    notices : iterable of pacing.notices.Notice
+        The plan's notices [-].
+    system : {"metric", "imperial"}, optional
+        The unit system of the words [-].
+
+    Returns
+    -------
+    list of (float, str)
+        Where (from the course's first point) and the warning in words [m, -].
+    """
+    from pacing.display.notices import describe
+
+    return [(float(n.values["distance_m"]), describe(n, system)) for n in notices
+            if n.level == "warning" and n.code in LOCATED_CODES and "distance_m" in n.values]
+
+
+def _segment_at(rows: Sequence[Any], distance: float) -> int:
+    """Index of the row whose [start, end) holds `distance` [m] (the last one past the end)."""
+    for index, row in enumerate(rows):
+        if distance < _required(row, "end"):
+            return index
+    return len(rows) - 1
+
+
+def segment_waypoints(rows: Iterable[Any], system: str = "metric",
+                      warnings: Sequence[tuple[float, str]] = ()
+                      ) -> list[tuple[float, str, str]]:
     """One waypoint per segment start, with its target.
 
     Name: "S3 285 W" (or "S3 4:35 min/km"); description: where it starts, the target, the
-    expected speed, grade, split and elapsed time, in `system` units.
+    expected speed, grade, split and elapsed time, in `system` units; then, on the segment
+    where they happen, the located warnings (e.g. where W′ runs out).
 
     Parameters
     ----------
@@ -267,6 +311,8 @@ def segment_waypoints(rows: Iterable[Any], system: str = "metric") -> list[tuple
         Segment targets in SI units (see the module docstring) [SI].
     system : {"metric", "imperial"}, optional
         The unit system of the words [-].
+    warnings : sequence of (float, str), optional
+        Where a warning happens and its words (`located_warnings`) [m, -].
 
     Returns
     -------
@@ -295,10 +341,15 @@ def segment_waypoints(rows: Iterable[Any], system: str = "metric") -> list[tuple
             f"elapsed {format_duration(_required(row, 'cumulative_time'))}"
         )
         points.append((start, f"S{number} {target}", description))
+    for where, words in warnings:
+        index = _segment_at(rows, where)
+        start, name, description = points[index]
+        points[index] = (start, name, f"{description}. Warning: {words}")
     return points
 
 
-def course_with_targets_gpx(course: Any, rows: Iterable[Any], system: str = "metric") -> str:
+def course_with_targets_gpx(course: Any, rows: Iterable[Any], system: str = "metric",
+                            warnings: Sequence[tuple[float, str]] = ()) -> str:
     """The course as a GPX 1.1 track with a waypoint at each segment start carrying its target.
 
     Uses pacing.io.gpx.write_gpx(course, waypoints) (the project's GPX writer).
@@ -311,6 +362,8 @@ def course_with_targets_gpx(course: Any, rows: Iterable[Any], system: str = "met
         Segment targets in SI units (see the module docstring) [SI].
     system : {"metric", "imperial"}, optional
         The unit system of the waypoints' words [-].
+    warnings : sequence of (float, str), optional
+        Located warnings (`located_warnings`), told on the waypoint of their segment [m, -].
 
     Returns
     -------
@@ -322,7 +375,7 @@ def course_with_targets_gpx(course: Any, rows: Iterable[Any], system: str = "met
     InputError
         When there are no rows, or a row lacks start, end, time or cumulative time.
     """
-    return write_gpx(course, segment_waypoints(rows, system))
+    return write_gpx(course, segment_waypoints(rows, system, warnings))
 
 
 CARD_WARNING_HEIGHT = 0.45

@@ -1,12 +1,16 @@
 """Read and write GPX courses (GPX 1.0 and 1.1; tracks and routes).
 
-Reading is hardened: the text is first parsed by defusedxml with DTDs, entities and external
-references forbidden, and only then handed to gpxpy. Files over MAX_GPX_BYTES or with more than
-MAX_GPX_POINTS points are refused. Every problem becomes pacing.errors.InputError with a
-one-line message.
+Reading is hardened, and limits come before the work: only regular files are opened (a
+device or a FIFO is refused before it is read), files over MAX_GPX_BYTES are refused by their
+size, and a scan of the bytes counts the point tags (track, route and waypoints) and refuses
+more than MAX_GPX_POINTS before any parser runs. The text is then walked by defusedxml (DTDs,
+entities and external references forbidden, nesting bounded) as a stream, and only then
+handed to gpxpy. Encodings the XML declares (with or without a byte-order mark, UTF-16
+included) are read. Every problem becomes pacing.errors.InputError with a one-line message.
 
-Points are taken from all tracks and their segments, joined in file order; a file without track
-points falls back to its routes. Waypoints are ignored.
+Points are taken from all tracks and their segments (or, without any, from the routes) with
+their times; `load_course` keeps the tracks asked for, finds the gaps between points and
+builds the course (pacing.course.recording). Waypoints are counted, not used.
 
 The demo courses (invented places) live in demo_routes/ beside the package; DEMO_ROUTES_DIR,
 demo_route_paths() and DEFAULT_DEMO_ROUTE find them.
@@ -14,11 +18,14 @@ demo_route_paths() and DEFAULT_DEMO_ROUTE find them.
 
 from __future__ import annotations
 
+import codecs
+import dataclasses
 import os
 import re
-import warnings
-from collections.abc import Iterable
+import stat
+from collections.abc import Iterable, Sequence
 from dataclasses import dataclass
+from datetime import UTC, datetime
 from pathlib import Path
 from typing import Any
 
@@ -28,15 +35,17 @@ import numpy as np
 from numpy.typing import ArrayLike
 
 from pacing.course.elevation import ElevationSmoothing
-from pacing.course.geometry import DEFAULT_STEP, Course, build_course, validate_track
+from pacing.course.geometry import DEFAULT_STEP, Course, validate_track
+from pacing.course.recording import Recording, RecordingPart, course_from_recording
 from pacing.errors import InputError, first_line
-from pacing.io.safe_xml import local_name, parse_xml
+from pacing.io.safe_xml import local_name, walk_xml
+from pacing.notices import warning
 
 MAX_GPX_BYTES = 50 * 1024 * 1024
 """Largest GPX file accepted [bytes] (50 MiB: a day-long 1 s recording is about 10 MiB)."""
 
 MAX_GPX_POINTS = 1_000_000
-"""Most track or route points accepted in one file."""
+"""Most points (track, route and waypoints together) accepted in one file."""
 
 MINIMUM_COURSE_LENGTH = 100.0
 """Shortest course accepted from a file [m]: anything shorter is a recording fault or a
@@ -64,12 +73,31 @@ class Track:
         has an elevation [m].
     name : str
         The track's (or route's, or file's) name; "" when the file names none [-].
+    time : numpy.ndarray or None
+        Time of each point, NaN where a point has none; None when no point has one
+        [s since 1970-01-01 UTC].
+    parts : tuple of pacing.course.recording.RecordingPart
+        The segments of each track (or the routes) as slices of the points, in file order.
     """
 
     latitude: np.ndarray
     longitude: np.ndarray
     elevation: np.ndarray | None
     name: str = ""
+    time: np.ndarray | None = None
+    parts: tuple[RecordingPart, ...] = ()
+
+    def recording(self) -> Recording:
+        """The points as a pacing.course.recording.Recording (one part when none is known).
+
+        Returns
+        -------
+        pacing.course.recording.Recording
+            Positions [deg], elevations [m], times [s] and parts.
+        """
+        parts = self.parts or (RecordingPart(0, 0, self.name, 0, self.latitude.size),)
+        return Recording(latitude=self.latitude, longitude=self.longitude,
+                         elevation=self.elevation, time=self.time, parts=parts)
 
 
 def _shown(path: Path) -> str:
@@ -88,21 +116,7 @@ def _read_bytes(source: Any) -> tuple[bytes, str]:
         fallback = ""
     elif isinstance(source, str | os.PathLike):
         path = Path(source)
-        try:
-            size = path.stat().st_size
-        except FileNotFoundError:
-            raise InputError(f"GPX file not found: {_shown(path)}") from None
-        except OSError as error:
-            raise InputError(f"cannot read {_shown(path)}: {error.strerror}") from None
-        if path.is_dir():
-            raise InputError(f"{_shown(path)} is a folder, not a GPX file")
-        if size > MAX_GPX_BYTES:
-            raise InputError(f"GPX file is too large: {size / 2**20:.0f} MiB "
-                             f"(limit {MAX_GPX_BYTES // 2**20} MiB)")
-        try:
-            data = path.read_bytes()
-        except OSError as error:
-            raise InputError(f"cannot read {_shown(path)}: {error.strerror}") from None
+        data = _read_regular_file(path)
         fallback = path.stem
     elif hasattr(source, "read"):
         data = source.read(MAX_GPX_BYTES + 1)
@@ -116,7 +130,69 @@ def _read_bytes(source: Any) -> tuple[bytes, str]:
     return data, fallback
 
 
+def _read_regular_file(path: Path) -> bytes:
+    """The bytes of a regular file of at most MAX_GPX_BYTES, refused before reading otherwise.
+
+    A device (/dev/zero), a FIFO or a socket is refused by its type, without opening it (a
+    FIFO would wait for a writer); a folder likewise. The size is checked again while
+    reading (a file that grows is cut at MAX_GPX_BYTES + 1 and refused).
+    """
+    try:
+        status = path.stat()
+    except FileNotFoundError:
+        raise InputError(f"GPX file not found: {_shown(path)}") from None
+    except OSError as error:
+        raise InputError(f"cannot read {_shown(path)}: {error.strerror}") from None
+    if stat.S_ISDIR(status.st_mode):
+        raise InputError(f"{_shown(path)} is a folder, not a GPX file")
+    if not stat.S_ISREG(status.st_mode):
+        raise InputError(f"{_shown(path)} is not a regular file (a device, pipe or socket); "
+                         "give a GPX file")
+    if status.st_size > MAX_GPX_BYTES:
+        raise InputError(f"GPX file is too large: {status.st_size / 2**20:.0f} MiB "
+                         f"(limit {MAX_GPX_BYTES // 2**20} MiB)")
+    try:
+        with open(path, "rb") as file:
+            return file.read(MAX_GPX_BYTES + 1)
+    except OSError as error:
+        raise InputError(f"cannot read {_shown(path)}: {error.strerror}") from None
+
+
+_BYTE_ORDER_MARKS = (
+    (codecs.BOM_UTF32_LE, "utf-32-le"), (codecs.BOM_UTF32_BE, "utf-32-be"),
+    (codecs.BOM_UTF8, "utf-8"),
+    (codecs.BOM_UTF16_LE, "utf-16-le"), (codecs.BOM_UTF16_BE, "utf-16-be"),
+)
+"""Byte-order marks and their encodings (UTF-32 first: its little-endian mark begins with
+UTF-16's)."""
+
+_WIDE_STARTS = ((b"<\x00?\x00", "utf-16-le"), (b"\x00<\x00?", "utf-16-be"))
+"""How "<?" begins in UTF-16 without a byte-order mark (XML 1.0, Appendix F.1)."""
+
+
+def _wide_encoding(data: bytes) -> str | None:
+    """The UTF-16/32 encoding of the text by its byte-order mark or first bytes, or None for
+    an encoding in which "<?xml" is ASCII (UTF-8, Latin-1, ...)."""
+    for mark, encoding in _BYTE_ORDER_MARKS:
+        if data.startswith(mark):
+            return None if encoding == "utf-8" else encoding
+    for start, encoding in _WIDE_STARTS:
+        if data.startswith(start):
+            return encoding
+    return None
+
+
 def _decode(data: bytes) -> str:
+    """The text of the file: by its byte-order mark, as UTF-8, or in the encoding it declares
+    (XML 1.0, Appendix F.1); InputError when none of them reads it."""
+    wide = _wide_encoding(data)
+    if wide is not None:
+        mark = next((m for m, e in _BYTE_ORDER_MARKS if e == wide), b"")
+        try:
+            return data[len(mark) if data.startswith(mark) else 0:].decode(wide)
+        except UnicodeDecodeError:
+            raise InputError(f"GPX file is not valid {wide.upper()[:6]} text, as its first "
+                             "bytes say it is") from None
     try:
         return data.decode("utf-8-sig")
     except UnicodeDecodeError:
@@ -130,6 +206,35 @@ def _decode(data: bytes) -> str:
     raise InputError("GPX file is not valid UTF-8 text (nor in the encoding it declares)")
 
 
+_DECLARATION = re.compile(r"""^\s*<\?xml[^>]*\?>""")
+
+
+def _as_utf8(text: str) -> bytes:
+    """The text as UTF-8 bytes with its XML declaration (if any) saying so, for the parsers."""
+    declared = _DECLARATION.match(text)
+    if declared:
+        text = '<?xml version="1.0" encoding="UTF-8"?>' + text[declared.end():]
+    return text.encode("utf-8")
+
+
+_POINT_TAG = re.compile(rb"<(?:[A-Za-z_][A-Za-z0-9_.-]*:)?(?:trkpt|rtept|wpt)[\s/>]")
+"""The start of a track point, route point or waypoint element, with or without a namespace
+prefix (XML allows no space between "<" and the name)."""
+
+
+def _count_points(data: bytes) -> None:
+    """Refuse, before parsing, a file with more than MAX_GPX_POINTS point tags.
+
+    A scan of the bytes (UTF-8 here): it may count a tag inside a comment, never misses one,
+    so it bounds the number of points a parser would find, in a fraction of a second for the
+    largest file accepted.
+    """
+    for count, _ in enumerate(_POINT_TAG.finditer(data), start=1):
+        if count > MAX_GPX_POINTS:
+            raise InputError(f"GPX file has too many points: more than {MAX_GPX_POINTS} "
+                             "track, route and waypoints")
+
+
 _POINT_KINDS = {"trkpt": "track point", "rtept": "route point", "wpt": "waypoint"}
 _COORDINATES = {"lat": "latitude", "lon": "longitude"}
 
@@ -141,33 +246,57 @@ def _shown_value(text: str) -> str:
 
 
 def _check_xml(data: bytes) -> None:
-    """Parse with defusedxml (no DTD, no entities, no external references) before gpxpy, and
-    check that every point's latitude, longitude and elevation are numbers.
+    """Walk the document with defusedxml (no DTD, no entities, no external references, nesting
+    bounded) before gpxpy, and check that every point's latitude, longitude and elevation are
+    numbers; each point is dropped once checked, so memory stays bounded.
 
     gpxpy's own messages for such values ("Invalid value for <None>...") name neither the
     point nor the coordinate; these name both. Points are numbered from 1 in file order, each
     kind (track points, route points, waypoints) separately.
     """
-    root = parse_xml(data, "GPX file")
-    tag = local_name(root.tag)
-    if tag != "gpx":
-        raise InputError(f"not a GPX file: the root element is <{tag}>, not <gpx>")
     counts = dict.fromkeys(_POINT_KINDS, 0)
-    for element in root.iter():
-        kind = local_name(element.tag) if isinstance(element.tag, str) else ""
-        if kind not in _POINT_KINDS:
+    open_elements: list[Any] = []
+    for event, element, depth in walk_xml(data, "GPX file"):
+        if event == "start":
+            if depth == 1 and local_name(element.tag) != "gpx":
+                raise InputError(f"not a GPX file: the root element is "
+                                 f"<{local_name(element.tag)}>, not <gpx>")
+            open_elements.append(element)
             continue
-        counts[kind] += 1
-        where = f"{_POINT_KINDS[kind]} {counts[kind]}"
-        for attribute, meaning in _COORDINATES.items():
-            value = element.get(attribute)
-            if value is None:
-                raise InputError(f"not a valid GPX file: {where} has no {meaning}")
-            _check_number(value, f"{where} has {meaning}")
-        for child in element:
-            if isinstance(child.tag, str) and local_name(child.tag) == "ele" and child.text:
-                if child.text.strip():
-                    _check_number(child.text, f"{where} has elevation")
+        open_elements.pop()
+        kind = local_name(element.tag) if isinstance(element.tag, str) else ""
+        if kind in _POINT_KINDS:
+            counts[kind] += 1
+            _check_point(element, f"{_POINT_KINDS[kind]} {counts[kind]}")
+        if open_elements and (kind in _POINT_KINDS or kind in _DONE_WITH):
+            parent = open_elements[-1]
+            if len(parent) and parent[-1] is element:
+                del parent[-1]  # checked: let it go, so memory stays bounded
+
+
+_DONE_WITH = {"trk", "trkseg", "rte", "metadata", "extensions"}
+"""Elements let go once complete while checking (their points are checked as they end)."""
+
+
+def _check_point(element: Any, where: str) -> None:
+    """Raise InputError unless the point has a numeric latitude, longitude and elevation."""
+    for attribute, meaning in _COORDINATES.items():
+        value = element.get(attribute)
+        if value is None:
+            raise InputError(f"not a valid GPX file: {where} has no {meaning}")
+        _check_number(value, f"{where} has {meaning}")
+    for child in element:
+        name = local_name(child.tag) if isinstance(child.tag, str) else ""
+        if name == "ele" and child.text and child.text.strip():
+            _check_number(child.text, f"{where} has elevation")
+        elif name == "time" and child.text and not _ISO_DATE.match(child.text):
+            raise InputError(f"not a valid GPX file: {where} has time "
+                             f"{_shown_value(child.text)}, not a date and time "
+                             "(ISO 8601, e.g. 2024-05-01T10:00:00Z)")
+
+
+_ISO_DATE = re.compile(r"\s*[+-]?\d{4}-\d{2}-\d{2}")
+"""How a GPX time begins: an ISO 8601 date (GPX 1.1 schema: xsd:dateTime)."""
 
 
 def _check_number(value: str, what: str) -> None:
@@ -179,24 +308,72 @@ def _check_number(value: str, what: str) -> None:
                          "not a number") from None
 
 
-def _points(document: gpxpy.gpx.GPX) -> tuple[list[gpxpy.gpx.GPXTrackPoint]
-                                               | list[gpxpy.gpx.GPXRoutePoint], str]:
-    """The points of all tracks and segments in order, or without any those of all routes, and
-    the first name found among them."""
-    track_points = [point for track in document.tracks for segment in track.segments
-                    for point in segment.points]
-    if track_points:
-        return track_points, next((t.name for t in document.tracks if t.name), "")
-    route_points = [point for route in document.routes for point in route.points]
-    return route_points, next((r.name for r in document.routes if r.name), "")
+def _seconds(moment: datetime | None) -> float:
+    """A point's time in seconds since 1970-01-01 UTC (a time without zone taken as UTC), NaN
+    for none."""
+    if moment is None:
+        return float("nan")
+    if moment.tzinfo is None:
+        moment = moment.replace(tzinfo=UTC)
+    return moment.timestamp()
+
+
+def _points(document: gpxpy.gpx.GPX) -> tuple[list[Any], list[RecordingPart], str]:
+    """The points of all tracks and segments in order, or without any those of all routes;
+    the parts (one per track segment, or per route) and the first name found among them."""
+    points: list[Any] = []
+    parts: list[RecordingPart] = []
+    for index, track in enumerate(document.tracks):
+        for number, segment in enumerate(track.segments):
+            if segment.points:
+                parts.append(RecordingPart(index, number, _one_line_name(track.name),
+                                           len(points), len(points) + len(segment.points)))
+                points.extend(segment.points)
+    if points:
+        return points, parts, next((t.name for t in document.tracks if t.name), "")
+    for index, route in enumerate(document.routes):
+        if route.points:
+            parts.append(RecordingPart(index, 0, _one_line_name(route.name), len(points),
+                                       len(points) + len(route.points)))
+            points.extend(route.points)
+    return points, parts, next((r.name for r in document.routes if r.name), "")
+
+
+def _one_line_name(name: str | None) -> str:
+    """A name from the file on one line ("" for none), at most 80 characters."""
+    text = " ".join((name or "").split())
+    return text if len(text) <= 80 else text[:77] + "..."
+
+
+def _parsed(data: bytes) -> tuple[str, gpxpy.gpx.GPX]:
+    """The file's text and its gpxpy document, limits and checks first."""
+    if not data.strip():
+        raise InputError("GPX file is empty")
+    if _wide_encoding(data) is None:
+        _count_points(data)
+        text = _decode(data)
+        checked = data
+    else:
+        text = _decode(data)
+        checked = _as_utf8(text)
+        _count_points(checked)
+    if not text.strip():
+        raise InputError("GPX file is empty")
+    _check_xml(checked)
+    try:
+        return text, gpxpy.parse(text)
+    except (gpxpy.gpx.GPXException, ValueError, TypeError, AttributeError, KeyError,
+            RecursionError, OverflowError) as error:
+        message = first_line(error)
+        raise InputError(f"not a valid GPX file: {message}") from None
 
 
 def read_track(source: str | os.PathLike | bytes | bytearray | memoryview | Any) -> Track:
     """Read the points of a GPX file.
 
-    Raises InputError: empty file, not XML or not GPX, DTD or entities, too large, no points,
-    bad coordinates, a latitude, longitude or elevation that is not a number (the message
-    names the point and the value).
+    Raises InputError: empty file, not a regular file, not XML or not GPX, DTD or entities,
+    nesting too deep, too large, too many points, no points, bad coordinates, a latitude,
+    longitude or elevation that is not a number (the message names the point and the value).
 
     Parameters
     ----------
@@ -208,11 +385,14 @@ def read_track(source: str | os.PathLike | bytes | bytearray | memoryview | Any)
     -------
     Track
         The points of all tracks and track segments in order (or, without any, of all routes),
-        validated for range (latitude -90..90 [deg], longitude -180..180 [deg]).
+        validated for range (latitude -90..90 [deg], longitude -180..180 [deg]), with their
+        times [s] and the parts they belong to.
 
     References
     ----------
     GPX 1.1 schema, https://www.topografix.com/GPX/1/1/ (tracks, routes, <ele> in metres).
+    Extensible Markup Language (XML) 1.0, Appendix F.1, https://www.w3.org/TR/xml/ (detecting
+    the encoding).
 
     Examples
     --------
@@ -225,17 +405,8 @@ def read_track(source: str | os.PathLike | bytes | bytearray | memoryview | Any)
     ('Loop', [45.0, 45.001], [210.0, 215.0])
     """
     data, fallback = _read_bytes(source)
-    if not data.strip():
-        raise InputError("GPX file is empty")
-    _check_xml(data)
-    text = _decode(data)
-    try:
-        document = gpxpy.parse(text)
-    except (gpxpy.gpx.GPXException, ValueError, TypeError, AttributeError, KeyError) as error:
-        message = first_line(error)
-        raise InputError(f"not a valid GPX file: {message}") from None
-
-    points, name = _points(document)
+    _, document = _parsed(data)
+    points, parts, name = _points(document)
     if not points:
         raise InputError("GPX file has no track or route points")
     if len(points) > MAX_GPX_POINTS:
@@ -246,21 +417,24 @@ def read_track(source: str | os.PathLike | bytes | bytearray | memoryview | Any)
     heights = [p.elevation for p in points]
     elevation = (None if all(h is None for h in heights)
                  else np.array([np.nan if h is None else h for h in heights], dtype=float))
+    times = np.array([_seconds(p.time) for p in points], dtype=float)
     if len(points) >= 2:
         latitude, longitude, elevation = validate_track(latitude, longitude, elevation)
     lines = (name or document.name or fallback or "").strip().splitlines()
     return Track(latitude=latitude, longitude=longitude, elevation=elevation,
-                 name=lines[0] if lines else "")
+                 name=lines[0] if lines else "",
+                 time=times if np.isfinite(times).any() else None, parts=tuple(parts))
 
 
 def load_course(source: str | os.PathLike | bytes | bytearray | memoryview | Any,
                 step: float | None = None,
                 smoothing: ElevationSmoothing | None = None,
-                allow_missing_elevation: bool = False, name: str | None = None) -> Course:
-    """Read a GPX file and build its Course (see pacing.course.geometry.build_course).
+                allow_missing_elevation: bool = False, name: str | None = None,
+                tracks: Sequence[int] | None = None, gaps: str = "join") -> Course:
+    """Read a GPX file and build its Course (pacing.course.recording.course_from_recording).
 
-    Raises InputError for everything read_track and build_course refuse, and for a course
-    shorter than MINIMUM_COURSE_LENGTH.
+    Raises InputError for everything read_track and course_from_recording refuse, and for a
+    course shorter than MINIMUM_COURSE_LENGTH.
 
     Parameters
     ----------
@@ -272,34 +446,44 @@ def load_course(source: str | os.PathLike | bytes | bytearray | memoryview | Any
         Elevation cleaning; None for the ElevationSmoothing() defaults.
     allow_missing_elevation : bool, optional
         Treat a file without any elevation as flat (elevation 0 m, so sea-level air unless
-        conditions say otherwise) with a UserWarning; otherwise it is refused. Points missing
-        some elevations are interpolated with a UserWarning either way [-].
+        conditions say otherwise) with a warning among the course's notices; otherwise it is
+        refused. Points missing some elevations are interpolated with a warning either way
+        [-].
     name : str, optional
         Label of the course; None for the file's own name [-].
+    tracks : sequence of int, optional
+        Track numbers (from 1) that make the course, in this order; None for all in file
+        order [-].
+    gaps : {"join", "drop", "refuse"}, optional
+        What to do with gaps between consecutive points: join them with a straight line
+        (default), drop their distance, or refuse the file [-].
 
     Returns
     -------
     Course
-        The course resampled every `step` metres.
+        The course resampled every `step` metres, with its notices (warnings and notes as
+        data), the file's tracks and the gaps found.
     """
     track = read_track(source)
-    elevation = track.elevation
-    if elevation is None:
+    recording = track.recording()
+    notices = []
+    if recording.elevation is None:
         if not allow_missing_elevation:
             raise InputError("GPX file has no elevation data; use --flat (command line) or "
                              "'A file without heights is a flat course' (app) to treat it "
                              "as flat")
-        warnings.warn("GPX file has no elevation data: the course is treated as flat",
-                      UserWarning, stacklevel=2)
-        elevation = np.zeros_like(track.latitude)
-    course = build_course(track.latitude, track.longitude, elevation,
-                          step=DEFAULT_STEP if step is None else step,
-                          smoothing=ElevationSmoothing() if smoothing is None else smoothing,
-                          name=name or track.name or "course")
+        notices.append(warning("elevation-missing"))
+        recording = dataclasses.replace(recording, elevation=np.zeros_like(track.latitude))
+    course = course_from_recording(recording, step=DEFAULT_STEP if step is None else step,
+                                   smoothing=smoothing, name=name or track.name or "course",
+                                   tracks=tracks, gaps=gaps)
     if course.total_distance < MINIMUM_COURSE_LENGTH:
         raise InputError(f"the course is only {course.total_distance:.1f} m long; a course "
                          f"must be at least {MINIMUM_COURSE_LENGTH:g} m")
-    return course
+    if not notices:
+        return course
+    return dataclasses.replace(course, notices=tuple(notices) + tuple(
+        n for n in course.notices if n.code != "elevation-constant"))
 
 
 def position_at(course: Course, distance: ArrayLike) -> tuple[np.ndarray, np.ndarray,

@@ -27,7 +27,18 @@ heading        heading_deg, heading, bearing, course                            
 
 Timestamps become seconds from the first sample. Without a speed column, speed is taken from
 the distance column (central differences). Empty cells are missing values: short gaps in power
-are interpolated, long ones are an error (see pacing.fieldtest.ride.make_ride).
+are interpolated, long ones are an error; 0 W logged for a second or two while the rider
+pedals at speed is a dropout, bridged the same way and counted in a warning (see
+pacing.fieldtest.ride.make_ride).
+
+The dialect is sniffed from the text (`sniff_csv`), as spreadsheets in many countries write it:
+the encoding from a byte-order mark (UTF-8, UTF-16 or UTF-32), else UTF-8, else Windows-1252;
+the separator (comma, semicolon, tab or vertical bar; runs of spaces as a last resort) as named
+by a first line "sep=;", else as the one that splits the header and the first rows into the
+same number of columns; the decimal mark (a comma, as in "12,5", when the numbers carry commas
+and no points). A file that cannot be read (binary data such as a FIT file, one column only,
+mixed decimal marks, a header without data rows) is refused with one line naming what was
+found.
 
 GPX
 ---
@@ -41,9 +52,12 @@ note says so). The XML is parsed by defusedxml (no DTDs, entities or external re
 
 from __future__ import annotations
 
+import codecs
+import csv
 import io
 import os
 import re
+from dataclasses import dataclass
 from pathlib import Path
 from typing import Any
 
@@ -51,7 +65,7 @@ import numpy as np
 import pandas as pd
 
 from pacing.errors import InputError, first_line
-from pacing.fieldtest.ride import Ride, local_position, make_ride
+from pacing.fieldtest.ride import MIN_SAMPLES, Ride, local_position, make_ride
 from pacing.io.safe_xml import local_name, parse_xml
 from pacing.notices import Notice, note
 
@@ -89,6 +103,9 @@ def _read_bytes(source: Any) -> tuple[bytes, str]:
             raise InputError(f"ride file not found: {path}")
         if path.is_dir():
             raise InputError(f"{path} is a folder, not a ride file")
+        if not path.is_file():
+            # a FIFO would block the read and a device such as /dev/zero never end it
+            raise InputError(f"{path} is not a regular file (a pipe or a device?)")
         if path.stat().st_size > MAX_RIDE_BYTES:
             raise InputError(f"ride file is too large (limit {MAX_RIDE_BYTES // 2**20} MiB)")
         try:
@@ -103,6 +120,17 @@ def _read_bytes(source: Any) -> tuple[bytes, str]:
             raise InputError(f"ride file is too large (limit {MAX_RIDE_BYTES // 2**20} MiB)")
         return data, Path(str(getattr(source, "name", ""))).stem
     raise InputError(f"cannot read a ride from {type(source).__name__}")
+
+
+def _looks_like_xml(data: bytes) -> bool:
+    """True when the text starts with an XML declaration or a <gpx> element (read through a
+    byte-order mark when there is one)."""
+    head = data[:400]
+    for mark, codec in BYTE_ORDER_MARKS:
+        if head.startswith(mark):
+            head = head.decode(codec, errors="ignore").encode("ascii", errors="ignore")
+            break
+    return head.lstrip().lower().startswith((b"<?xml", b"<gpx"))
 
 
 def read_ride(source: Any, name: str | None = None, kind: str | None = None,
@@ -131,7 +159,7 @@ def read_ride(source: Any, name: str | None = None, kind: str | None = None,
         kind = suffix if suffix in ("csv", "gpx") else None
     data, stem = _read_bytes(source)
     if kind is None:
-        kind = "gpx" if data.lstrip()[:200].lower().startswith((b"<?xml", b"<gpx")) else "csv"
+        kind = "gpx" if _looks_like_xml(data) else "csv"
     if kind not in ("csv", "gpx"):
         raise InputError(f"unknown ride file type {kind!r}: use CSV or GPX")
     reader = read_ride_csv if kind == "csv" else read_ride_gpx
@@ -154,15 +182,217 @@ def _seconds(values: pd.Series, label: str) -> np.ndarray:
     return (stamps - stamps.iloc[0]).dt.total_seconds().to_numpy(dtype=float)
 
 
-def _csv_frame(data: bytes) -> pd.DataFrame:
-    """The CSV text as a table, or a one-line InputError."""
+# ---------------------------------------------------------------------------------------------
+# CSV dialect: encoding, separator, decimal mark
+# ---------------------------------------------------------------------------------------------
+
+SEPARATORS = {",": "comma", ";": "semicolon", "\t": "tab", "|": "vertical bar"}
+"""Column separators tried, with their names for messages (spaces are a last resort)."""
+
+SNIFF_LINES = 50
+"""Lines (the header and the first data rows) read to sniff the dialect."""
+
+BYTE_ORDER_MARKS = ((codecs.BOM_UTF32_LE, "utf-32"), (codecs.BOM_UTF32_BE, "utf-32"),
+                    (codecs.BOM_UTF8, "utf-8-sig"), (codecs.BOM_UTF16_LE, "utf-16"),
+                    (codecs.BOM_UTF16_BE, "utf-16"))
+"""Byte-order marks and their codecs (UTF-32 first: its little-endian mark starts like
+UTF-16's). Unicode Standard, section 23.8 "Specials: byte order mark"."""
+
+_SEPARATOR_HINT = re.compile(r"^\s*sep=([,;\t|])\s*$")
+_DECIMAL_COMMA = re.compile(r"^[+-]?\d*,\d+$")
+_DECIMAL_POINT = re.compile(r"^[+-]?\d*\.\d+(?:[eE][+-]?\d+)?$")
+
+
+@dataclass(frozen=True)
+class CsvDialect:
+    """How a CSV file is written.
+
+    Attributes
+    ----------
+    encoding : str
+        Codec the text was decoded with ("utf-8", "utf-8-sig", "utf-16", "utf-32",
+        "cp1252").
+    separator : str
+        Column separator ("," ";" tab "|", or the regular expression ``\\s+`` for runs of
+        spaces).
+    decimal : str
+        Decimal mark, "." or ",".
+    """
+
+    encoding: str
+    separator: str
+    decimal: str
+
+    @property
+    def describe(self) -> str:
+        """The dialect in words, e.g. "semicolon-separated, decimal comma, UTF-16"."""
+        separator = SEPARATORS.get(self.separator, "space")
+        mark = "decimal comma" if self.decimal == "," else "decimal point"
+        return f"{separator}-separated, {mark}, {self.encoding.upper().replace('-SIG', '')}"
+
+
+def _decode(data: bytes) -> tuple[str, str]:
+    """(text, codec): by byte-order mark, else UTF-8, else Windows-1252; a one-line
+    InputError for binary data (a FIT file named)."""
+    for mark, codec in BYTE_ORDER_MARKS:
+        if data.startswith(mark):
+            try:
+                return data.decode(codec), codec
+            except UnicodeDecodeError as error:
+                raise InputError(f"the CSV file starts with a {codec.upper()} byte-order mark "
+                                 f"but does not decode as {codec.upper()}: "
+                                 f"{first_line(error)}") from None
+    if len(data) >= 12 and data[8:12] == b".FIT":
+        raise InputError("this is a FIT file (binary), not CSV text: export the ride as CSV or "
+                         "GPX from the device's software")
+    head = data[:4096]
+    if b"\0" in head:
+        raise InputError("the file holds binary data (NUL bytes), not CSV text; UTF-16 text "
+                         "needs a byte-order mark")
     try:
-        return pd.read_csv(io.BytesIO(data), skipinitialspace=True)
+        return data.decode("utf-8"), "utf-8"
+    except UnicodeDecodeError:
+        return data.decode("cp1252", errors="replace"), "cp1252"
+
+
+def _sniff_lines(text: str) -> list[str]:
+    """The first SNIFF_LINES non-empty lines of the text."""
+    lines = []
+    for line in io.StringIO(text, newline=None):
+        if line.strip():
+            lines.append(line.rstrip("\r\n"))
+            if len(lines) == SNIFF_LINES:
+                break
+    return lines
+
+
+def _split(lines: list[str], separator: str) -> list[list[str]]:
+    """The lines split into cells (quotes honoured; runs of spaces for ``\\s+``)."""
+    if separator == r"\s+":
+        return [line.split() for line in lines]
+    return [[cell.strip() for cell in row]
+            for row in csv.reader(lines, delimiter=separator, skipinitialspace=True)]
+
+
+def _separator(lines: list[str]) -> str:
+    """The separator that splits the header into the most columns (at least two) with the
+    data rows agreeing; spaces only when no other separator splits the header."""
+    best: tuple[float, int, str] | None = None
+    for separator in (*SEPARATORS, r"\s+"):
+        if separator == r"\s+" and best is not None:
+            break
+        try:
+            rows = _split(lines, separator)
+        except csv.Error:  # quotes that do not close on their line
+            continue
+        columns = len(rows[0])
+        if columns < 2:
+            continue
+        data = rows[1:]
+        agree = sum(len(row) == columns for row in data) / len(data) if data else 1.0
+        score = (agree, columns, separator)
+        if best is None or score[:2] > best[:2]:
+            best = score
+    if best is None:
+        header = lines[0][:60]
+        raise InputError(f"cannot tell the columns apart: the header {header!r} has no comma, "
+                         "semicolon or tab; a test ride needs at least time, speed and power "
+                         "columns")
+    return best[2]
+
+
+def _decimal(rows: list[list[str]]) -> str:
+    """"," when the numbers are written with decimal commas ("12,5", quoted in a
+    comma-separated file) and none with points, else "."; refuses a mix of both."""
+    cells = [cell for row in rows[1:] for cell in row]
+    commas = [cell for cell in cells if _DECIMAL_COMMA.match(cell)]
+    points = [cell for cell in cells if _DECIMAL_POINT.match(cell)]
+    if commas and points:
+        raise InputError(f"the CSV file mixes decimal commas and points (e.g. {commas[0]!r} "
+                         f"and {points[0]!r}): save it with one decimal mark")
+    return "," if commas else "."
+
+
+def sniff_csv(data: bytes) -> tuple[str, CsvDialect]:
+    """The text of a CSV file and how it is written (module docstring).
+
+    Parameters
+    ----------
+    data : bytes
+        The file's bytes.
+
+    Returns
+    -------
+    tuple
+        (text without byte-order mark, CsvDialect).
+
+    Raises
+    ------
+    InputError
+        For an empty or binary file, or a header that no separator splits; one line naming
+        what was found.
+    """
+    text, codec = _decode(data)
+    text = text.lstrip("\ufeff")
+    lines = _sniff_lines(text)
+    hint = _SEPARATOR_HINT.match(lines[0]) if lines else None
+    if hint:
+        # a spreadsheet's first line "sep=;" names the separator (common practice)
+        text = text[text.index(lines[0]) + len(lines[0]):].lstrip("\r\n")
+        lines = lines[1:]
+    if not lines:
+        raise InputError("the CSV file is empty")
+    separator = hint.group(1) if hint else _separator(lines)
+    try:
+        decimal = _decimal(_split(lines, separator))
+    except csv.Error as error:
+        raise InputError(f"the CSV file does not parse: {first_line(error)}") from None
+    return text, CsvDialect(codec, separator, decimal)
+
+
+def _csv_frame(data: bytes) -> tuple[pd.DataFrame, CsvDialect]:
+    """The CSV text as a table with its dialect, or a one-line InputError."""
+    text, dialect = sniff_csv(data)
+    try:
+        frame = pd.read_csv(io.StringIO(text), sep=dialect.separator, decimal=dialect.decimal,
+                            skipinitialspace=True)
     except pd.errors.EmptyDataError:
         raise InputError("the CSV file is empty") from None
-    except (pd.errors.ParserError, UnicodeDecodeError) as error:
-        first = first_line(error)
-        raise InputError(f"the CSV file does not parse: {first}") from None
+    except pd.errors.ParserError as error:
+        raise InputError(f"the CSV file ({dialect.describe}) does not parse: "
+                         f"{first_line(error)}") from None
+    return frame, dialect
+
+
+def _shown_columns(frame: pd.DataFrame, most: int = 12) -> str:
+    """The table's column names for a one-line message: spaces for line breaks, the first
+    `most` of them."""
+    names = [" ".join(str(c).split()) for c in frame.columns[:most]]
+    more = len(frame.columns) - most
+    return ", ".join(names) + (f" and {more} more" if more > 0 else "")
+
+
+def _check_columns(frame: pd.DataFrame, columns: dict[str, str], dialect: CsvDialect,
+                   found: dict[str, np.ndarray] | None = None) -> None:
+    """Refuse a table without the REQUIRED quantities (by column name, or among `found`),
+    then one without data rows or with a single one; one line each."""
+    if found is None:
+        found = {q: np.empty(0) for q, aliases in CSV_COLUMNS.items()
+                 if any(a in columns for a in aliases)}
+        if "distance" in found and "time" in found:
+            found["speed"] = found["distance"]
+    missing = [q for q in REQUIRED if q not in found]
+    if missing:
+        wanted = ", ".join(f"{q} (e.g. {next(iter(CSV_COLUMNS[q]))})" for q in missing)
+        have = _shown_columns(frame) or "none"
+        raise InputError(f"missing column(s) {wanted}; the file has: {have} "
+                         f"({dialect.describe})")
+    if len(frame) == 0:
+        header = _shown_columns(frame)
+        raise InputError(f"the CSV file has a header ({header}) but no data rows")
+    if len(frame) == 1:
+        raise InputError(f"the CSV file has a single data row: a test ride needs at least "
+                         f"{MIN_SAMPLES} samples")
 
 
 def _csv_column(series: pd.Series, label: str, quantity: str,
@@ -212,17 +442,14 @@ def read_ride_csv(source: Any, name: str = "ride", **options: Any) -> Ride:
         The cleaned ride; a note says when the speed came from the distance column.
     """
     data = source if isinstance(source, bytes) else _read_bytes(source)[0]
-    frame = _csv_frame(data)
+    frame, dialect = _csv_frame(data)
     columns = {_normalise(c): c for c in frame.columns}
+    _check_columns(frame, columns, dialect)
     found = _csv_quantities(frame, columns)
     if "speed" not in found and "distance" in found and "time" in found:
         if np.all(np.isfinite(found["distance"])) and np.all(np.diff(found["time"]) > 0):
             found["speed"] = np.gradient(found["distance"], found["time"])
-    missing = [q for q in REQUIRED if q not in found]
-    if missing:
-        wanted = ", ".join(f"{q} (e.g. {next(iter(CSV_COLUMNS[q]))})" for q in missing)
-        have = ", ".join(str(c) for c in frame.columns) or "none"
-        raise InputError(f"missing column(s) {wanted}; the file has: {have}")
+    _check_columns(frame, columns, dialect, found)
     notes: list[Notice] = []
     if "speed" in found and not any(a in columns for a in CSV_COLUMNS["speed"]):
         notes.append(note("test-ride-speed-from-distance"))

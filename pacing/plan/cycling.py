@@ -46,6 +46,7 @@ from pacing.plan.prediction import Prediction, SimulationOptions
 from pacing.plan.request import (
     MAXIMUM_PLAN_POWER,
     PlanRequest,
+    check_plan_size,
     power_limits,
     required_mean_power,
     required_target_time,
@@ -214,6 +215,7 @@ def make_plan(course: Course, bounds: ArrayLike, rider: Rider, air: CourseAir,
         required_target_time(request)
     else:
         required_mean_power(request)
+    check_plan_size(int(np.asarray(course.distance).size), int(np.asarray(bounds).size) - 1)
     model = segment_model(course, bounds, rider, air)
     ride = VerifyingRide(course, np.asarray(bounds, dtype=int), rider, air, options, model)
     if request.strategy == "target-time":

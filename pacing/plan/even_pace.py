@@ -43,6 +43,15 @@ from pacing.physics.running import (
 from pacing.physiology.critical_speed import check_critical_speed, distance_capacity_balance
 from pacing.weather.conditions import CourseAir
 
+RUNNABLE_WIND_LIMIT = 17.2
+"""Strongest wind at the runner a running plan accepts [m/s]: the lower edge of Beaufort force
+8, "gale", whose land description is that it generally impedes progress on foot (Beaufort
+scale as tabled by the World Meteorological Organization and the UK Met Office; from memory).
+The scale is defined at 10 m, so at the runner (about 1 m) the limit is stricter than the
+weather report's gale: it allows some 28 m/s at 10 m over open terrain. Beyond it the
+running-cost model gives negative efforts (a tailwind pushing harder than running costs) and
+paces no runner holds."""
+
 AIR_DENSITY_RANGE = (0.3, 1.6)
 """Air density a plan accepts, above the first and at most the second [kg/m³]."""
 
@@ -76,8 +85,8 @@ def piece_air(
     Raises
     ------
     InputError
-        When an array has the wrong length, a value is not finite, or the density is out of
-        range.
+        When an array has the wrong length, a value is not finite, the density is out of
+        range, or the wind at the runner is above RUNNABLE_WIND_LIMIT.
     """
     shape = course.grade.shape
     arrays = []
@@ -93,6 +102,11 @@ def piece_air(
     low, high = AIR_DENSITY_RANGE
     if np.any(arrays[0] <= low) or np.any(arrays[0] > high):
         raise InputError("air density must be 0.3-1.6 kg/m³")
+    wind = float(np.max(np.hypot(arrays[1], arrays[2]), initial=0.0))
+    if wind > RUNNABLE_WIND_LIMIT:
+        raise InputError(f"a wind of {wind:.1f} m/s at the runner cannot be run in: from gale "
+                         f"force ({RUNNABLE_WIND_LIMIT:g} m/s, Beaufort 8) progress on foot is "
+                         "impeded, so no pace can be planned")
     return CourseAir(*arrays)
 
 

@@ -175,6 +175,9 @@ class Prediction:
     walking : numpy.ndarray
         The rider walked the bike on part of the piece, or its mean speed is below the
         walking speed (bool) [-].
+    walking_work : numpy.ndarray
+        Work the rider did pushing the bike on foot on each piece, not through the pedals
+        (not in `power` nor `work`) [J].
     """
 
     distance: np.ndarray
@@ -192,6 +195,7 @@ class Prediction:
     kinetic: np.ndarray
     braking: np.ndarray
     walking: np.ndarray
+    walking_work: np.ndarray
 
     @property
     def piece_time(self) -> np.ndarray:
@@ -210,7 +214,7 @@ class Prediction:
 
     @property
     def average_power(self) -> float:
-        """Time-weighted mean crank power [W]."""
+        """Time-weighted mean crank power over the finish time (walking counts as none) [W]."""
         return self.work / self.finish_time
 
     @property
@@ -220,19 +224,20 @@ class Prediction:
 
     @property
     def work(self) -> float:
-        """Work done by the rider at the cranks [J]."""
+        """Work done by the rider at the cranks [J] (walking work apart)."""
         return float(np.sum(self.power * self.piece_time))
 
     @property
     def energy_balance_residual(self) -> float:
-        """|rider work − (aero + rolling + bearing + drivetrain loss + Δpotential + Δkinetic +
-        braking)| relative to the rider work (or to the largest term when the rider did none)
-        [-]."""
+        """|rider work at the cranks + walking work − (aero + rolling + bearing + drivetrain
+        loss + Δpotential + Δkinetic + braking)| relative to the rider work (or to the largest
+        term when the rider did none) [-]."""
         terms = [self.aero, self.rolling, self.bearing, self.drivetrain_loss, self.potential,
                  self.kinetic, self.braking]
         sinks = sum(float(np.sum(term)) for term in terms)
-        scale = max(abs(self.work), max(abs(float(np.sum(term))) for term in terms), 1e-12)
-        return abs(self.work - sinks) / scale
+        done = self.work + float(np.sum(self.walking_work))
+        scale = max(abs(done), max(abs(float(np.sum(term))) for term in terms), 1e-12)
+        return abs(done - sinks) / scale
 
 
 @dataclass(frozen=True)
@@ -252,13 +257,16 @@ class SegmentResult:
     grade : float
         Mean grade, rise/run [-].
     power : float
-        Time-weighted mean crank power [W].
+        Time-weighted mean crank power on the pieces ridden (walked pieces left out; 0 when
+        all were walked) [W].
     speed : float
         Length over time [m/s].
     time : float
         Time on the segment [s].
     max_speed : float
         Highest speed at its points [m/s].
+    walking_distance : float
+        Length of its pieces walked or ridden below walking pace [m].
     """
 
     index: int
@@ -270,6 +278,7 @@ class SegmentResult:
     speed: float
     time: float
     max_speed: float
+    walking_distance: float = 0.0
 
 
 def piece_inputs(course: Course, power: ArrayLike, air: CourseAir
@@ -466,6 +475,7 @@ def steady_prediction(course: Course, power: ArrayLike, rider: Rider, air: Cours
         kinetic=np.zeros(len(road)),
         braking=np.zeros(len(road)),
         walking=piece_speed < minimum_speed,
+        walking_work=np.zeros(len(road)),
     )
 
 
@@ -499,8 +509,11 @@ def segment_results(course: Course, prediction: Prediction, bounds: ArrayLike
         raise InputError("segment bounds must be increasing point indices from 0 to N-1")
     distance = prediction.distance
     elevation = np.asarray(course.elevation, dtype=float)
-    piece_work = prediction.power * prediction.piece_time
-    cumulative_work = np.concatenate([[0.0], np.cumsum(piece_work)])
+    ridden = ~np.asarray(prediction.walking, dtype=bool)
+    piece_time = prediction.piece_time
+    cumulative_work = _cumulative(np.where(ridden, prediction.power * piece_time, 0.0))
+    cumulative_ridden = _cumulative(np.where(ridden, piece_time, 0.0))
+    cumulative_walked = _cumulative(np.where(ridden, 0.0, np.diff(distance)))
     results = []
     for index, (first, last) in enumerate(zip(bounds[:-1], bounds[1:], strict=True)):
         length = float(distance[last] - distance[first])
@@ -511,9 +524,22 @@ def segment_results(course: Course, prediction: Prediction, bounds: ArrayLike
             end=float(distance[last]),
             length=length,
             grade=float(elevation[last] - elevation[first]) / length,
-            power=float(cumulative_work[last] - cumulative_work[first]) / time,
+            power=_ratio(cumulative_work[last] - cumulative_work[first],
+                         cumulative_ridden[last] - cumulative_ridden[first]),
             speed=length / time,
             time=time,
             max_speed=float(np.max(prediction.speed[first:last + 1])),
+            walking_distance=float(cumulative_walked[last] - cumulative_walked[first]),
         ))
     return results
+
+
+def _cumulative(values: np.ndarray) -> np.ndarray:
+    """0 and the running sum of piece values: the sum over points first..last is
+    result[last] − result[first]."""
+    return np.concatenate([[0.0], np.cumsum(values)])
+
+
+def _ratio(work: float, time: float) -> float:
+    """Mean power of `work` [J] over `time` [s], 0 when nothing was ridden [W]."""
+    return float(work) / float(time) if time > 0 else 0.0

@@ -30,6 +30,45 @@ DESCENT_GRADE = -0.02
 MAXIMUM_PLAN_POWER = 3000.0
 """No plan asks for more crank power than this [W]."""
 
+UPPER_BOUNDS = {
+    "critical_power": (MAXIMUM_PLAN_POWER, "W"),
+    "w_prime": (200_000.0, "J"),
+    "target_time": (30 * 86_400.0, "s"),
+    "max_power_ratio": (10.0, ""),
+    "effort_weighted_cap": (MAXIMUM_PLAN_POWER, "W"),
+}
+"""Highest value accepted per field, so no plan overflows on an absurd number: CP at most the
+plan power cap; W′ at most 200 kJ, several times the 10-40 kJ measured in trained cyclists
+(Poole et al. 2016, Med Sci Sports Exerc 48(11):2320-2334; from memory); a target time of at
+most 30 days; a power cap of at most 10 × CP (common practice)."""
+
+MAX_POINTS_TIMES_SEGMENTS = 500_000_000
+"""Largest course points × segments a plan works through [-]: a 2000 km course at the
+default 10 m step with 2 km segments is 2·10⁵ × 1000 = 2·10⁸; resampled every metre (17.7 s
+and 1.3 GB for its simulation alone, measured for issue 14) it is ten times that."""
+
+
+def check_plan_size(points: int, segments: int) -> None:
+    """Refuse a plan too big to work through in reasonable time and memory, in one line.
+
+    Parameters
+    ----------
+    points : int
+        Points of the course [-].
+    segments : int
+        Segments of the plan [-].
+
+    Raises
+    ------
+    InputError
+        When points × segments is above MAX_POINTS_TIMES_SEGMENTS.
+    """
+    if points * segments > MAX_POINTS_TIMES_SEGMENTS:
+        raise InputError(f"{points} course points × {segments} segments is more than a plan "
+                         f"works through ({MAX_POINTS_TIMES_SEGMENTS:.0e}); resample the "
+                         "course with a longer step or use longer segments")
+
+
 _POSITIVE_FIELDS = ("mean_power", "target_time", "critical_power", "w_prime", "max_power_ratio",
                     "effort_weighted_cap")
 
@@ -116,6 +155,12 @@ class PlanRequest:
             if not _positive(getattr(self, name)):
                 raise InputError(f"{name.replace('_', ' ')} must be positive, "
                                  f"got {getattr(self, name)}")
+        for name, (high, unit) in UPPER_BOUNDS.items():
+            value = getattr(self, name)
+            if value is not None and value > high:
+                label = "W′" if name == "w_prime" else name.replace("_", " ")
+                raise InputError(f"{label} must be at most {high:g} {unit}, "
+                                 f"got {value:.4g}".replace(" ,", ","))
         if self.mean_power is not None and self.mean_power > MAXIMUM_PLAN_POWER:
             raise InputError(f"mean power {self.mean_power:g} W is beyond "
                              f"{MAXIMUM_PLAN_POWER:g} W")

@@ -19,6 +19,7 @@ from pacing.course.segments import split_every
 from pacing.errors import InputError
 from pacing.notices import Notice
 from pacing.plan.even_pace import EvenPaceReference
+from pacing.plan.request import check_plan_size
 from pacing.plan.targets import SegmentTarget
 from pacing.weather.conditions import CourseAir
 
@@ -191,7 +192,8 @@ def running_segment_bounds(course: Course, bounds: np.ndarray | None) -> np.ndar
     Raises
     ------
     InputError
-        When the given bounds do not increase from 0 to the last point of the course.
+        When the given bounds do not increase from 0 to the last point of the course, or
+        the plan is too big (pacing.plan.request.check_plan_size).
     """
     if bounds is None:
         return split_every(course, DEFAULT_SPLIT)
@@ -200,6 +202,7 @@ def running_segment_bounds(course: Course, bounds: np.ndarray | None) -> np.ndar
     if bounds.ndim != 1 or bounds.size < 2 or bounds[0] != 0 or bounds[-1] != n - 1 \
             or np.any(np.diff(bounds) <= 0):
         raise InputError("segment bounds must increase from 0 to the last point of the course")
+    check_plan_size(int(n), int(bounds.size) - 1)
     return bounds
 
 

@@ -29,7 +29,9 @@ eases off the pedals (down to coasting) and then brakes; the brakes' work is acc
 optional coasting speed the rider stops pedalling (no brakes). Where the planned power cannot
 hold the walking speed (SimulationOptions.minimum_speed) and the bike would stall or fall below
 it, also from a standing start, the rider walks the bike at the walking speed; the work to push
-it counts as rider work, so no power, however small, leaves the rider standing still.
+it is the rider's walking work (not crank work: it does not go through the pedals, so the
+drivetrain's efficiency does not divide it and the piece's crank power counts only the
+pedalled steps), so no power, however small, leaves the rider standing still.
 
 Distances in a Course are horizontal; the road along a piece is longer by √(1 + G²), and
 speeds here are along the road (what a wheel sensor reads).
@@ -80,8 +82,9 @@ _SPEED_CHANGE_RELATIVE = 0.02
 _SPEED_CHANGE_ABSOLUTE = 0.02
 _NEWTON_TOLERANCE = 1e-9
 
-_PieceRide = tuple[float, float, float, float, float, bool]
-"""(end speed [m/s], time [s], drive work [J], aero work [J], bearing work [J], walked)."""
+_PieceRide = tuple[float, float, float, float, float, bool, float]
+"""(end speed [m/s], time [s], drive work [J], aero work [J], bearing work [J], walked,
+walking work [J])."""
 
 
 class _Piece:
@@ -206,11 +209,12 @@ def _ride(piece: _Piece, v_start: float, drive: float) -> _PieceRide:
     """Ride one piece at wheel power `drive` [W] from v_start with adaptive steps.
 
     Returns (end speed [m/s], time [s], drive work [J], aero work [J], bearing work [J],
-    walked). A step is halved until the speed changes by at most ~2 % + 0.02 m/s; the next one
-    tries twice the length. The rider walks the bike at the walking speed, and the work to push
-    it counts as drive work, where the bike stalls, or where it would drop below the walking
-    speed on a piece whose power cannot hold the walking speed (so a standing start with no or
-    tiny power walks off instead of creeping, and more power is never slower).
+    walked, walking work [J]). A step is halved until the speed changes by at most ~2 % +
+    0.02 m/s; the next one tries twice the length. The rider walks the bike at the walking
+    speed where the bike stalls, or where it would drop below the walking speed on a piece
+    whose power cannot hold the walking speed (so a standing start with no or tiny power walks
+    off instead of creeping, and more power is never slower); the work to push it is walking
+    work, not drive work: it does not go through the pedals.
     """
     length, constant, a, b = piece.length, piece.constant, piece.a, piece.b
     m_eff, drive_cap, walking_speed = piece.m_eff, piece.drive_cap, piece.walking_speed
@@ -220,7 +224,7 @@ def _ride(piece: _Piece, v_start: float, drive: float) -> _PieceRide:
     aero_now, _ = piece.aero(v_now)
     done = 0.0
     h = length
-    t_sum = work_sum = aero_sum = bearing_sum = 0.0
+    t_sum = work_sum = aero_sum = bearing_sum = walk_sum = 0.0
     while done < length * (1.0 - 1e-12):
         h = min(h, length - done)
         resist_now = aero_now + constant + b * v_now
@@ -241,19 +245,22 @@ def _ride(piece: _Piece, v_start: float, drive: float) -> _PieceRide:
         else:
             aero_next, _ = piece.aero(v_next)
         t_sum += 2.0 * h / (v_now + v_next)
-        work_sum += work
+        if walk:
+            walk_sum += work
+        else:
+            work_sum += work
         aero_sum += 0.5 * h * (aero_now + aero_next)
         bearing_sum += h * (a + 0.5 * b * (v_now + v_next))
         done += h
         v_now, aero_now = v_next, aero_next
         h *= 2.0
-    return v_now, t_sum, work_sum, aero_sum, bearing_sum, walked
+    return v_now, t_sum, work_sum, aero_sum, bearing_sum, walked, walk_sum
 
 
 def _held_at(piece: _Piece, v_start: float, v_end: float) -> _PieceRide:
     """One step over the piece ending exactly at v_end; the drive work it needs closes the
     energy balance (negative: the brakes must take that much). Same tuple as _ride (never
-    walked)."""
+    walked, no walking work)."""
     length, a, b = piece.length, piece.a, piece.b
     aero0, _ = piece.aero(v_start)
     aero1, _ = piece.aero(v_end)
@@ -261,7 +268,7 @@ def _held_at(piece: _Piece, v_start: float, v_end: float) -> _PieceRide:
     bearing_work = length * (a + 0.5 * b * (v_start + v_end))
     need = (0.5 * piece.m_eff * (v_end**2 - v_start**2) + aero_work + bearing_work
             + length * (piece.constant - a))
-    return v_end, 2.0 * length / (v_start + v_end), need, aero_work, bearing_work, False
+    return v_end, 2.0 * length / (v_start + v_end), need, aero_work, bearing_work, False, 0.0
 
 
 def _capped_ride(piece: _Piece, v_start: float, drive: float, coasting: float | None,
@@ -286,7 +293,7 @@ def _capped_ride(piece: _Piece, v_start: float, drive: float, coasting: float | 
         result = _held_at(piece, v_start, limit_end)
         if coast[0] > limit_end or result[2] < 0:
             brake = max(-result[2], 0.0)
-            result = (result[0], result[1], 0.0, result[3], result[4], result[5])
+            result = (result[0], result[1], 0.0, result[3], result[4], result[5], result[6])
     return result, brake
 
 
@@ -309,7 +316,8 @@ class _Pieces:
 @dataclass(frozen=True, eq=False)
 class _Trace:
     """What the ride along the pieces gives: speed and time at the points [m/s], [s]; rider
-    work at the cranks, aero, bearing and braking work per piece [J]; walked pieces."""
+    work at the cranks, aero, bearing, braking and walking work per piece [J]; walked
+    pieces."""
 
     speed: np.ndarray
     time: np.ndarray
@@ -318,6 +326,7 @@ class _Trace:
     bearing: np.ndarray
     braking: np.ndarray
     walked: np.ndarray
+    walking_work: np.ndarray
 
 
 def _ride_pieces(piece: _Piece, pieces: _Pieces, efficiency: float,
@@ -331,6 +340,7 @@ def _ride_pieces(piece: _Piece, pieces: _Pieces, efficiency: float,
     bearing_energy = np.zeros(count)
     braking_energy = np.zeros(count)
     walked = np.zeros(count, dtype=bool)
+    walking_work = np.zeros(count)
     v = min(float(options.start_speed), float(pieces.limit[0]))
     speed[0] = v
     coasting = options.coasting_speed
@@ -345,8 +355,9 @@ def _ride_pieces(piece: _Piece, pieces: _Pieces, efficiency: float,
                   constant_list[i], area_list[i])
         result, brake = _capped_ride(piece, v, efficiency * power_list[i], coasting,
                                      limit_list[i + 1])
-        v, t_piece, work, aero_work, bearing_work, walked_piece = result
+        v, t_piece, work, aero_work, bearing_work, walked_piece, walk_work = result
         walked[i] = walked_piece
+        walking_work[i] = walk_work
         speed[i + 1] = v
         time[i + 1] = time[i] + t_piece
         applied_work[i] = work / efficiency
@@ -354,7 +365,7 @@ def _ride_pieces(piece: _Piece, pieces: _Pieces, efficiency: float,
         bearing_energy[i] = bearing_work
         braking_energy[i] = brake
     return _Trace(speed, time, applied_work, aero_energy, bearing_energy, braking_energy,
-                  walked)
+                  walked, walking_work)
 
 
 def _drive_force_cap(rider: Rider, options: SimulationOptions) -> float:
@@ -443,4 +454,5 @@ def simulate(course: Course, power: ArrayLike, rider: Rider, air: CourseAir,
         kinetic=0.5 * m_eff * np.diff(trace.speed**2),
         braking=trace.braking,
         walking=trace.walked | (mean_speed < options.minimum_speed),
+        walking_work=trace.walking_work,
     )

@@ -100,6 +100,8 @@ class SegmentTarget:
     headwind : float
         Length-weighted mean headwind component (negative = tailwind); 0 without air
         data [m/s].
+    walking_distance : float
+        Length walked (bike pushed) or ridden below walking pace [m].
     """
 
     index: int
@@ -116,6 +118,7 @@ class SegmentTarget:
     cumulative_time: float
     w_prime_balance: float | None
     headwind: float
+    walking_distance: float = 0.0
 
 
 def _optional(values: ArrayLike | None, count: int, name: str) -> np.ndarray | None:
@@ -234,6 +237,7 @@ def _rows(results: list[SegmentResult], power: np.ndarray | None, balance: np.nd
             cumulative_time=elapsed,
             w_prime_balance=None if balance is None else float(balance[k]),
             headwind=float(headwind[k]),
+            walking_distance=result.walking_distance,
         ))
     return rows
 
@@ -253,6 +257,7 @@ RECORD_KEYS = {
     "cumulative_time": "cumulative_time_s",
     "w_prime_balance": "w_prime_balance_j",
     "headwind": "headwind_m_s",
+    "walking_distance": "walking_distance_m",
 }
 """Field of SegmentTarget → key in exported records (SI units in the key's suffix)."""
 

@@ -10,11 +10,15 @@ Library: add_/update_/delete_athlete, add_/update_/delete_setup, add_course, ren
     find_courses, delete_course, save_plan, update_plan, delete_plan; athlete(id),
     athletes(), setup(id), setups(athlete_id=None), course(id), courses(), plan(id),
     plans(athlete_id=None, course_id=None). Changes take ``revision=`` (ConflictError when
-    stale); deletes take ``confirm=True``.
+    stale); deletes take ``confirm=True``; adds and saves take ``on_existing=`` ("refuse",
+    the default: NameTaken; "replace"; "keep-both": "name (2)").
 reproduce_plan(saved, compute) -> ReproductionReport
 export_library(library, athlete_id=None) -> dict; dump_library_file(...) -> str
-read_library_file(text) -> LibraryFile (checked); import_library(library, text) -> ImportSummary
+read_library_file(text) -> LibraryFile (checked: at most 50 MiB, 32 levels deep, physical
+    ranges); import_library(library, text, on_existing="refuse") -> ImportSummary
 Records: AthleteRecord, SetupRecord, CourseSummary, CourseRecord, PlanSummary, PlanRecord.
 Errors: pacing.errors.InputError (bad input, one line), pacing.errors.ConflictError (stale
-revision: someone else changed the entry).
+revision: someone else changed the entry), and two InputErrors of the store:
+pacing.store.statements.NameTaken (a name already stored) and
+pacing.store.database.LibraryBusy (another program kept the library locked past every try).
 """

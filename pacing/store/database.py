@@ -2,18 +2,29 @@
 
 Location, first match wins: the location the caller gives (an SQLAlchemy URL, or the path of an
 SQLite file), the environment variable PACING_DATABASE_URL (URL or path), or the file
-``library.sqlite3`` in the user's data directory (platformdirs), created on first use.
+``library.sqlite3`` in the user's data directory (platformdirs), created on first use. A new
+SQLite file is private to its user (0600), and so is a new data folder (0700); existing ones
+keep their permissions.
 
 The schema is changed only by the Alembic migrations in pacing/store_migrations, run in code
-every time a library is opened (a no-op when it is up to date), inside one transaction that
-holds a lock (SQLite: BEGIN IMMEDIATE; PostgreSQL: an advisory lock), so two programs opening
-a new library at once do not both create it.
+every time a library is opened: a read finds it up to date (the usual case, no lock taken);
+otherwise one writing transaction holds a lock (SQLite: BEGIN IMMEDIATE; PostgreSQL: an
+advisory lock) while it migrates, so two programs opening a new library at once do not both
+create it.
+
+Reads never take the write lock. SQLite runs in WAL mode (write-ahead log, sqlite.org/wal.html):
+readers see the last committed state while a writer works, and a writer waits for another
+writer at most SQLITE_BUSY_TIMEOUT per try, WRITE_TRIES times, then gives up with LibraryBusy
+(one line). Only writing transactions (`writing`) begin IMMEDIATE; reads begin DEFERRED.
 """
 
 from __future__ import annotations
 
 import datetime
 import os
+import time
+from collections.abc import Iterator
+from contextlib import contextmanager
 from pathlib import Path
 
 import platformdirs
@@ -22,8 +33,8 @@ from alembic import command
 from alembic.config import Config
 from alembic.runtime.migration import MigrationContext
 from alembic.script import ScriptDirectory
-from sqlalchemy.engine import URL, Engine
-from sqlalchemy.exc import ArgumentError, SQLAlchemyError
+from sqlalchemy.engine import URL, Connection, Engine, RootTransaction
+from sqlalchemy.exc import ArgumentError, OperationalError, SQLAlchemyError
 
 from pacing.errors import InputError
 
@@ -35,8 +46,17 @@ DEFAULT_FILE_NAME = "library.sqlite3"
 MIGRATIONS_DIR = Path(__file__).resolve().parent.parent / "store_migrations"
 #: Key of the PostgreSQL advisory lock held while migrating (any fixed 64-bit number).
 _MIGRATION_LOCK_KEY = 0x70616369_6E67  # "pacing"
-#: How long SQLite waits for another writer before giving up [s].
-SQLITE_BUSY_TIMEOUT = 30.0
+#: How long one try waits for another writer's lock on SQLite [s].
+SQLITE_BUSY_TIMEOUT = 5.0
+#: How many times a write tries to take the lock before giving up [-].
+WRITE_TRIES = 3
+#: Execution option that marks a connection's transaction as writing (BEGIN IMMEDIATE).
+_WRITE_OPTION = "pacing_write"
+
+
+class LibraryBusy(InputError):
+    """The library stayed locked by another program's write past every try; nothing was
+    changed. The message is one line; trying again later is the remedy."""
 
 
 def default_database_path() -> Path:
@@ -106,7 +126,7 @@ def resolve_database_url(location: str | os.PathLike | None = None) -> URL:
         return _url_from_text(from_env, DATABASE_ENV)
     path = default_database_path()
     try:
-        path.parent.mkdir(parents=True, exist_ok=True)
+        path.parent.mkdir(mode=0o700, parents=True, exist_ok=True)  # private when new
     except OSError as error:
         raise InputError(f"cannot create the library folder {path.parent}: "
                          f"{error.strerror}") from None
@@ -134,9 +154,11 @@ def shown_url(url: URL | Engine) -> str:
 def create_library_engine(url: URL) -> Engine:
     """An engine for the library at `url`.
 
-    SQLite: foreign keys enforced, every transaction begins IMMEDIATE (it takes the write lock
-    at once, so two writers queue instead of failing half-way) and waits up to
-    SQLITE_BUSY_TIMEOUT for another writer. Other backends: connections checked before use.
+    SQLite: WAL journal mode (readers never wait for a writer), foreign keys enforced, a
+    writing transaction (`writing`) begins IMMEDIATE (it takes the write lock at once, so two
+    writers queue instead of failing half-way), every other transaction begins DEFERRED (a
+    read takes no write lock); a connection waits up to SQLITE_BUSY_TIMEOUT for a lock. Other
+    backends: connections checked before use.
 
     Parameters
     ----------
@@ -150,21 +172,100 @@ def create_library_engine(url: URL) -> Engine:
     """
     if url.get_backend_name() == "sqlite":
         engine = sa.create_engine(url, connect_args={"timeout": SQLITE_BUSY_TIMEOUT})
+        busy_ms = int(SQLITE_BUSY_TIMEOUT * 1000)
 
         @sa.event.listens_for(engine, "connect")
         def _on_connect(dbapi_connection, _record) -> None:  # pragma: no cover - trivial
             # Let SQLAlchemy's "begin" event (below) own the transactions, not the driver.
             dbapi_connection.isolation_level = None
             cursor = dbapi_connection.cursor()
+            cursor.execute(f"PRAGMA busy_timeout={busy_ms}")
             cursor.execute("PRAGMA foreign_keys=ON")
+            cursor.execute("PRAGMA journal_mode=WAL")  # stays set in the file
             cursor.close()
 
         @sa.event.listens_for(engine, "begin")
         def _on_begin(connection) -> None:
-            connection.exec_driver_sql("BEGIN IMMEDIATE")
+            writes = connection.get_execution_options().get(_WRITE_OPTION, False)
+            connection.exec_driver_sql("BEGIN IMMEDIATE" if writes else "BEGIN")
 
         return engine
     return sa.create_engine(url, pool_pre_ping=True)
+
+
+def is_locked(error: BaseException) -> bool:
+    """Whether a database error says another program holds the lock (SQLite's
+    SQLITE_BUSY / SQLITE_LOCKED: "database is locked", "database table is locked").
+
+    Parameters
+    ----------
+    error : BaseException
+        Any error; a SQLAlchemy error is read through the driver's error it wraps.
+
+    Returns
+    -------
+    bool
+        True for a lock that another writer holds.
+    """
+    text = first_line(error).lower()
+    return isinstance(error, OperationalError) and ("locked" in text or "busy" in text)
+
+
+def busy_message() -> str:
+    """The one-line refusal of a write that found the library locked on every try.
+
+    Returns
+    -------
+    str
+        The message, naming how long it waited [s].
+    """
+    waited = SQLITE_BUSY_TIMEOUT * WRITE_TRIES
+    return (f"the library is busy: another program kept it locked for over {waited:.0f} s; "
+            "nothing was changed, try again in a moment")
+
+
+@contextmanager
+def writing(engine: Engine) -> Iterator[Connection]:
+    """One writing transaction: committed when the block ends, rolled back on any error.
+
+    On SQLite it begins IMMEDIATE: the write lock is taken before the block runs, waiting up
+    to SQLITE_BUSY_TIMEOUT per try and trying WRITE_TRIES times (with a short pause between),
+    so a block never fails half-way for want of the lock. Keep the block short: prepare and
+    check everything before it.
+
+    Parameters
+    ----------
+    engine : sqlalchemy.engine.Engine
+        The library's engine (create_library_engine).
+
+    Yields
+    ------
+    sqlalchemy.engine.Connection
+        The connection inside the transaction.
+
+    Raises
+    ------
+    LibraryBusy
+        The lock could not be taken on any try (nothing was run).
+    """
+    connection, transaction = _begin_writing(engine)
+    with connection, transaction:
+        yield connection
+
+
+def _begin_writing(engine: Engine) -> tuple[Connection, RootTransaction]:
+    """A connection and its begun writing transaction (lock taken), after at most
+    WRITE_TRIES tries; LibraryBusy otherwise."""
+    for attempt in range(WRITE_TRIES):
+        connection = engine.connect().execution_options(**{_WRITE_OPTION: True})
+        try:
+            return connection, connection.begin()
+        except OperationalError as error:
+            connection.close()
+            if not is_locked(error):
+                raise
+            time.sleep(0.05 * (attempt + 1))
+    raise LibraryBusy(busy_message())
 
 
 def _alembic_config() -> Config:
@@ -214,9 +315,10 @@ def schema_revision(engine: Engine) -> str | None:
 def migrate(engine: Engine, revision: str = "head") -> None:
     """Bring the library schema to `revision` (default: the newest), in one transaction.
 
-    The transaction holds a lock while it migrates (SQLite: BEGIN IMMEDIATE; PostgreSQL: an
-    advisory lock), so two programs opening a new library at once do not both create it. A
-    database already at the newest revision is left untouched.
+    A read first: a database already at the newest revision is left untouched and no lock is
+    taken. Otherwise the writing transaction holds a lock while it migrates (SQLite: BEGIN
+    IMMEDIATE; PostgreSQL: an advisory lock) and looks again, so two programs opening a new
+    library at once do not both create it.
 
     Parameters
     ----------
@@ -229,23 +331,36 @@ def migrate(engine: Engine, revision: str = "head") -> None:
     ------
     InputError
         The database carries a schema newer than this version of pacing knows.
+    LibraryBusy
+        Another program kept the library locked past every try.
     """
     config = _alembic_config()
     scripts = ScriptDirectory.from_config(config)
-    with engine.begin() as connection:
+    with engine.connect() as connection:  # a read: no lock when already up to date
+        current = MigrationContext.configure(connection).get_current_heads()
+    _refuse_unknown(engine, scripts, current)
+    if revision == "head" and tuple(current) == (_head(scripts),):
+        return
+    with writing(engine) as connection:
         if connection.dialect.name == "postgresql":
             connection.execute(sa.text("SELECT pg_advisory_xact_lock(:key)"),
                                {"key": _MIGRATION_LOCK_KEY})
         current = MigrationContext.configure(connection).get_current_heads()
-        for rev in current:
-            if not _known(scripts, rev):
-                raise InputError(
-                    f"the library at {shown_url(engine)} has schema {rev}, newer than this "
-                    f"pacing knows ({_head(scripts)}); update pacing")
+        _refuse_unknown(engine, scripts, current)
         if revision == "head" and tuple(current) == (_head(scripts),):
             return
         config.attributes["connection"] = connection
         command.upgrade(config, revision)
+
+
+def _refuse_unknown(engine: Engine, scripts: ScriptDirectory, current: tuple[str, ...]
+                    ) -> None:
+    """Refuse a database whose schema revision this pacing does not know (a newer one)."""
+    for rev in current:
+        if not _known(scripts, rev):
+            raise InputError(
+                f"the library at {shown_url(engine)} has schema {rev}, newer than this "
+                f"pacing knows ({_head(scripts)}); update pacing")
 
 
 def downgrade(engine: Engine, revision: str) -> None:
@@ -260,7 +375,7 @@ def downgrade(engine: Engine, revision: str) -> None:
         The Alembic revision to go back to (e.g. ``"0001"``).
     """
     config = _alembic_config()
-    with engine.begin() as connection:
+    with writing(engine) as connection:
         if connection.dialect.name == "postgresql":
             connection.execute(sa.text("SELECT pg_advisory_xact_lock(:key)"),
                                {"key": _MIGRATION_LOCK_KEY})
@@ -326,6 +441,7 @@ def open_engine(location: str | os.PathLike | None = None) -> Engine:
         than this pacing knows, in one line without the password.
     """
     url = resolve_database_url(location)
+    create_private_file(url)
     try:
         engine = create_library_engine(url)
     except (ArgumentError, ImportError) as error:
@@ -341,6 +457,36 @@ def open_engine(location: str | os.PathLike | None = None) -> Engine:
         engine.dispose()
         raise
     return engine
+
+
+def create_private_file(url: URL) -> None:
+    """Create the SQLite file of `url`, empty and readable by its owner only (0600), if it
+    does not exist yet; SQLite makes its write-ahead log and shared-memory files with the
+    same permissions. An existing file, and other backends, are left as they are.
+
+    A library holds athletes' body mass and physiology: other users of the machine have no
+    business reading it.
+
+    Parameters
+    ----------
+    url : sqlalchemy.engine.URL
+        The library's database URL.
+
+    Raises
+    ------
+    InputError
+        The file cannot be created, in one line.
+    """
+    if url.get_backend_name() != "sqlite" or not url.database:
+        return
+    try:
+        descriptor = os.open(url.database, os.O_WRONLY | os.O_CREAT | os.O_EXCL, 0o600)
+    except FileExistsError:
+        return
+    except OSError as error:
+        raise InputError(f"cannot create the library file {url.database}: "
+                         f"{error.strerror}") from None
+    os.close(descriptor)
 
 
 def first_line(error: BaseException) -> str:

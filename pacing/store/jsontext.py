@@ -13,8 +13,11 @@ from typing import Any
 
 from pacing.errors import InputError
 
+#: Deepest nesting of lists and dicts stored [-] (plan inputs and results need about 4).
+DEPTH_LIMIT = 32
 
-def to_json_value(value: Any, where: str) -> Any:
+
+def to_json_value(value: Any, where: str, depth: int = 0) -> Any:
     """A plain JSON value (dict with str keys, list, str, int, float, bool, None) from `value`.
 
     Tuples become lists; dataclasses (Athlete, Setup) become dicts of their fields; numpy
@@ -28,6 +31,8 @@ def to_json_value(value: Any, where: str) -> Any:
     where : str
         Its place, for error messages (e.g. ``"targets"``); nested places are appended
         (``targets[3].power``).
+    depth : int
+        How deep `value` sits in what is stored (0 at the top) [-].
 
     Returns
     -------
@@ -37,9 +42,11 @@ def to_json_value(value: Any, where: str) -> Any:
     Raises
     ------
     InputError
-        Naming the place of a NaN, an infinity, a dict key that is not text or a value that
-        JSON cannot hold.
+        Naming the place of a NaN, an infinity, a dict key that is not text, a value that
+        JSON cannot hold, or lists and dicts nested deeper than DEPTH_LIMIT.
     """
+    if depth > DEPTH_LIMIT:
+        raise InputError(f"{where[:80]} nests lists and dicts deeper than {DEPTH_LIMIT} levels")
     if value is None or isinstance(value, (bool, str)):
         return value
     if isinstance(value, int):
@@ -54,15 +61,15 @@ def to_json_value(value: Any, where: str) -> Any:
         for key, item in value.items():
             if not isinstance(key, str):
                 raise InputError(f"{where} has a key that is not text: {key!r}")
-            out[key] = to_json_value(item, f"{where}.{key}")
+            out[key] = to_json_value(item, f"{where}.{key}", depth + 1)
         return out
     if isinstance(value, (list, tuple)):
-        return [to_json_value(item, f"{where}[{i}]") for i, item in enumerate(value)]
+        return [to_json_value(item, f"{where}[{i}]", depth + 1) for i, item in enumerate(value)]
     if dataclasses.is_dataclass(value) and not isinstance(value, type):  # Athlete, Setup, ...
-        return to_json_value(dataclasses.asdict(value), where)
+        return to_json_value(dataclasses.asdict(value), where, depth)
     tolist = getattr(value, "tolist", None)  # numpy scalars and arrays
     if callable(tolist):
-        return to_json_value(tolist(), where)
+        return to_json_value(tolist(), where, depth)
     raise InputError(f"{where} holds a {type(value).__name__}, which cannot be saved "
                      "(use numbers, text, lists and dicts)")
 

@@ -1,9 +1,12 @@
 """The coach's library: athletes, their setups, courses and saved plans, in one database.
 
-Every write is one transaction. Every entry has a revision: a change or a delete that names
+Every write is one short transaction that takes the write lock; reads never take it (SQLite
+in WAL mode, pacing.store.database). Every entry has a revision: a change or a delete that names
 the revision it was based on is refused with ConflictError when someone changed the entry in
-between, instead of silently overwriting. Deleting needs ``confirm=True``; without it the
-InputError message says what would go (fit for the app's question to the user).
+between, instead of silently overwriting. Saving under a name already stored is refused
+(pacing.store.statements.NameTaken) unless told to replace that entry or keep both
+(``on_existing``). Deleting needs ``confirm=True``; without it the InputError message says what
+would go (fit for the app's question to the user).
 
 Example
 -------

@@ -13,7 +13,15 @@ from pacing.store.library_base import LibraryBase
 from pacing.store.records import AthleteRecord, SetupRecord
 from pacing.store.rows import athlete_record, athlete_row, plural, setup_record, setup_row
 from pacing.store.schema import athletes, plans, setups
-from pacing.store.statements import count_rows, delete_row, insert_row, update_row
+from pacing.store.statements import (
+    check_on_existing,
+    count_rows,
+    delete_row,
+    insert_row,
+    place_name,
+    replace_row,
+    update_row,
+)
 
 
 class AthleteMethods(LibraryBase):
@@ -27,23 +35,39 @@ class AthleteMethods(LibraryBase):
 
     # ---- athletes ---------------------------------------------------------------------------
 
-    def add_athlete(self, athlete: Athlete) -> AthleteRecord:
-        """Store a new athlete.
+    def add_athlete(self, athlete: Athlete, *, on_existing: str = "refuse") -> AthleteRecord:
+        """Store a new athlete; a name already in the library is never overwritten silently.
 
         Parameters
         ----------
         athlete : pacing.athlete.Athlete
             The athlete's values (SI).
+        on_existing : str
+            When an athlete of that name is stored: "refuse" (NameTaken), "replace" (its
+            values, keeping its id, setups and plans) or "keep-both" (this one is named
+            "name (2)") [-].
 
         Returns
         -------
         AthleteRecord
-            As stored: new id, revision 1.
+            As stored: new id and revision 1, or the replaced athlete's id and next revision.
+
+        Raises
+        ------
+        NameTaken
+            The name is taken and `on_existing` is "refuse".
         """
         values = athlete_row(athlete)
+        check_on_existing(on_existing)
         with self.transaction() as connection:
-            new_id = insert_row(connection, athletes, values)
-        return self.athlete(new_id)
+            values["name"], replaced = place_name(connection, athletes, "athlete",
+                                                  values["name"], on_existing)
+            if replaced is None:
+                entry_id = insert_row(connection, athletes, values)
+            else:
+                replace_row(connection, athletes, replaced, values)
+                entry_id = replaced
+        return self.athlete(entry_id)
 
     def athlete(self, athlete_id: int) -> AthleteRecord:
         """The athlete with this id.
@@ -127,8 +151,10 @@ class AthleteMethods(LibraryBase):
 
     # ---- setups -----------------------------------------------------------------------------
 
-    def add_setup(self, athlete_id: int, setup: Setup) -> SetupRecord:
-        """Store a new setup of an athlete.
+    def add_setup(self, athlete_id: int, setup: Setup, *, on_existing: str = "refuse"
+                  ) -> SetupRecord:
+        """Store a new setup of an athlete; a name the athlete's setups already hold is never
+        overwritten silently.
 
         Parameters
         ----------
@@ -136,17 +162,32 @@ class AthleteMethods(LibraryBase):
             Library id of the athlete who rides it.
         setup : pacing.athlete.Setup
             The setup's values (SI).
+        on_existing : str
+            When the athlete has a setup of that name: "refuse" (NameTaken), "replace" (its
+            values, keeping its id) or "keep-both" (this one is named "name (2)") [-].
 
         Returns
         -------
         SetupRecord
-            As stored: new id, revision 1.
+            As stored: new id and revision 1, or the replaced setup's id and next revision.
+
+        Raises
+        ------
+        NameTaken
+            The name is taken and `on_existing` is "refuse".
         """
         values = setup_row(setup)
+        check_on_existing(on_existing)
         with self.transaction() as connection:
             self._one(athletes, "athlete", athlete_id, connection)
-            new_id = insert_row(connection, setups, dict(values, athlete_id=athlete_id))
-        return self.setup(new_id)
+            values["name"], replaced = place_name(connection, setups, "setup", values["name"],
+                                                  on_existing, setups.c.athlete_id == athlete_id)
+            if replaced is None:
+                entry_id = insert_row(connection, setups, dict(values, athlete_id=athlete_id))
+            else:
+                replace_row(connection, setups, replaced, values)
+                entry_id = replaced
+        return self.setup(entry_id)
 
     def setup(self, setup_id: int) -> SetupRecord:
         """The setup with this id.

@@ -17,8 +17,15 @@ import sqlalchemy as sa
 from sqlalchemy.engine import Connection, Engine
 from sqlalchemy.exc import OperationalError, SQLAlchemyError
 
-from pacing.errors import ConflictError, InputError
-from pacing.store.database import first_line, shown_url
+from pacing.errors import InputError
+from pacing.store.database import (
+    LibraryBusy,
+    busy_message,
+    first_line,
+    is_locked,
+    shown_url,
+    writing,
+)
 from pacing.store.rows import check_id
 
 
@@ -59,30 +66,51 @@ class LibraryBase:
 
     @contextmanager
     def transaction(self) -> Iterator[Connection]:
-        """One transaction: committed when the block ends, rolled back on any error.
+        """One writing transaction: committed when the block ends, rolled back on any error.
 
-        Database failures become a one-line InputError (ConflictError when SQLite stayed
-        locked by another writer past its timeout).
+        The write lock is taken before the block runs (pacing.store.database.writing: SQLite
+        BEGIN IMMEDIATE, tried WRITE_TRIES times); keep the block short. Database failures
+        become a one-line InputError (LibraryBusy when another program kept the library
+        locked past every try).
 
         Yields
         ------
         sqlalchemy.engine.Connection
             The connection inside the transaction.
         """
-        try:
-            with self._engine.begin() as connection:
+        with self._refusing_failures():
+            with writing(self._engine) as connection:
                 yield connection
+
+    @contextmanager
+    def reading(self) -> Iterator[Connection]:
+        """One reading transaction: a consistent view of the library, no write lock taken
+        (SQLite in WAL mode: a writer at work does not hold it up).
+
+        Yields
+        ------
+        sqlalchemy.engine.Connection
+            The connection inside the transaction.
+        """
+        with self._refusing_failures():
+            with self._engine.connect() as connection, connection.begin():
+                yield connection
+
+    @contextmanager
+    def _refusing_failures(self) -> Iterator[None]:
+        """Database failures inside the block as one-line InputErrors."""
+        try:
+            yield
         except OperationalError as error:
-            if "locked" in first_line(error) or "busy" in first_line(error):
-                raise ConflictError("the library is busy with another writer; try again") \
-                    from None
+            if is_locked(error):
+                raise LibraryBusy(busy_message()) from None
             raise InputError(f"library database error: {first_line(error)}") from None
         except SQLAlchemyError as error:
             raise InputError(f"library database error: {first_line(error)}") from None
 
     def _rows(self, query: sa.Select) -> list[Any]:
-        """Every row of `query`, read in its own transaction."""
-        with self.transaction() as connection:
+        """Every row of `query`, read in its own reading transaction."""
+        with self.reading() as connection:
             return list(connection.execute(query))
 
     def _one(self, table: sa.Table, kind: str, entry_id: int,

@@ -12,7 +12,15 @@ from pacing.store.library_base import LibraryBase
 from pacing.store.records import CourseRecord, CourseSummary
 from pacing.store.rows import check_name, course_row, course_summary, plural
 from pacing.store.schema import courses, plans
-from pacing.store.statements import count_rows, delete_row, insert_row, update_row
+from pacing.store.statements import (
+    check_on_existing,
+    count_rows,
+    delete_row,
+    insert_row,
+    place_name,
+    replace_row,
+    update_row,
+)
 
 
 class CourseMethods(LibraryBase):
@@ -24,9 +32,10 @@ class CourseMethods(LibraryBase):
         An engine on a migrated library database (pacing.store.database.open_engine).
     """
 
-    def add_course(self, name: str, gpx: bytes, distance_m: float, ascent_m: float
-                   ) -> CourseRecord:
-        """Store a course: its original GPX file byte for byte, a name and its summary.
+    def add_course(self, name: str, gpx: bytes, distance_m: float, ascent_m: float, *,
+                   on_existing: str = "refuse") -> CourseRecord:
+        """Store a course: its original GPX file byte for byte, a name and its summary; a
+        name already in the library is never overwritten silently.
 
         Parameters
         ----------
@@ -38,16 +47,38 @@ class CourseMethods(LibraryBase):
             Course length, computed by the caller [m].
         ascent_m : float
             Total climbing, computed by the caller [m].
+        on_existing : str
+            When a course of that name is stored: "refuse" (NameTaken), "replace" (its file
+            and summary, keeping its id; refused while saved plans use it) or "keep-both"
+            (this one is named "name (2)") [-].
 
         Returns
         -------
         CourseRecord
-            As stored: new id, revision 1, the file's SHA-256 and size.
+            As stored: new id, revision 1 (or the replaced course's id and next revision),
+            the file's SHA-256 and size.
+
+        Raises
+        ------
+        NameTaken
+            The name is taken and `on_existing` is "refuse".
         """
         values = course_row(name, gpx, distance_m, ascent_m)
+        check_on_existing(on_existing)
         with self.transaction() as connection:
-            new_id = insert_row(connection, courses, values)
-        return self.course(new_id)
+            values["name"], replaced = place_name(connection, courses, "course",
+                                                  values["name"], on_existing)
+            if replaced is None:
+                entry_id = insert_row(connection, courses, values)
+            else:
+                n_plans = count_rows(connection, plans, plans.c.course_id == replaced)
+                if n_plans:
+                    raise InputError(f"course {values['name']!r} is used by "
+                                     f"{plural(n_plans, 'saved plan')}: its file cannot be "
+                                     "replaced; keep both")
+                replace_row(connection, courses, replaced, values)
+                entry_id = replaced
+        return self.course(entry_id)
 
     def course(self, course_id: int) -> CourseRecord:
         """The course with this id, with its GPX bytes.

@@ -124,7 +124,7 @@ def export_library(library: Library, athlete_id: int | None = None) -> dict[str,
     InputError
         No athlete with `athlete_id`.
     """
-    with library.transaction() as connection:
+    with library.reading() as connection:
         athlete_rows, setup_rows, course_rows, plan_rows = _export_rows(connection, athlete_id)
     return {
         "format": FORMAT_NAME,

@@ -32,8 +32,9 @@ Ids are those of the exporting library; the plans' link keys (``athlete_id``, ``
 ``course_id`` in their inputs) refer to them. Import gives every entry a new id and rewrites
 those links. Units: SI as everywhere in pacing (kg, W, J, m, s/km for flat pace, m/s, m², s).
 
-Import reads and checks the whole file first (structure, numbers, athlete and setup ranges,
-the GPX checksums, every link) and refuses a bad file with a one-line InputError naming the
+Import reads and checks the whole file first (its size, at most FILE_SIZE_LIMIT, and nesting,
+at most DEPTH_LIMIT; structure, numbers and their physical ranges, times within TIME_RANGE,
+names, the GPX checksums, every link) and refuses a bad file with a one-line InputError naming the
 place; only then does it write everything in one transaction, so the database is either
 unchanged or holds the whole file. A course whose GPX file and name are already in the library
 is not stored twice.
@@ -59,6 +60,7 @@ from pacing.store.rows import (
     athlete_row,
     check_id,
     check_name,
+    check_notes,
     course_row,
     plan_inputs_text,
     plan_result_values,
@@ -69,6 +71,15 @@ from pacing.store.rows import (
 FORMAT_NAME = "pacing library"
 #: Version of the format this pacing writes; it reads this one and older.
 FORMAT_VERSION = 1
+#: Largest library file read [bytes] (as GPX files, pacing.io.safe_xml): checked before the
+#: file is read whole, so a larger one is refused at once with little memory.
+FILE_SIZE_LIMIT = 50 * 2**20
+#: Deepest nesting of JSON lists and objects read [-]: a library file needs about 7 (plans'
+#: inputs and targets hold small records); Python's own parser fails near 1000.
+DEPTH_LIMIT = 32
+#: Times a file may give, naive UTC: from 1970 to 9998 (year 1 or 9999 overflow once a time
+#: zone is applied).
+TIME_RANGE = (datetime.datetime(1970, 1, 1), datetime.datetime(9998, 12, 31))
 
 _STAMPS = ("created_at", "updated_at")
 _ATHLETE_KEYS = {"id", "name", *ATHLETE_NUMBERS, "setups", *_STAMPS}
@@ -248,16 +259,22 @@ def _list(value: Any, where: str) -> list[Any]:
 
 
 def _time(value: Any, where: str) -> datetime.datetime:
-    """An ISO 8601 time as the library stores it (naive UTC; no offset means UTC)."""
-    if not isinstance(value, str):
+    """An ISO 8601 time as the library stores it (naive UTC; no offset means UTC), within
+    TIME_RANGE."""
+    if not isinstance(value, str) or len(value) > 64:
         raise InputError(f"{where} must be an ISO 8601 time")
     try:
         parsed = datetime.datetime.fromisoformat(value)
-    except ValueError:
-        raise InputError(f"{where} is not an ISO 8601 time: {value!r}") from None
-    if parsed.tzinfo is None:
-        parsed = parsed.replace(tzinfo=datetime.UTC)
-    return parsed.astimezone(datetime.UTC).replace(tzinfo=None)
+        if parsed.tzinfo is None:
+            parsed = parsed.replace(tzinfo=datetime.UTC)
+        stored = parsed.astimezone(datetime.UTC).replace(tzinfo=None)
+    except (ValueError, OverflowError):
+        raise InputError(f"{where} is not an ISO 8601 time from 1970 to 9998: "
+                         f"{value!r}") from None
+    low, high = TIME_RANGE
+    if not low <= stored <= high:
+        raise InputError(f"{where} is not an ISO 8601 time from 1970 to 9998: {value!r}")
+    return stored
 
 
 def _stamps(entry: Mapping[str, Any], where: str
@@ -304,20 +321,65 @@ def _refuse_constant(name: str) -> Any:
 # reading and checking: the document, entry by entry
 
 
+def check_file_size(size: int, exact: bool = True) -> None:
+    """Refuse a library file larger than FILE_SIZE_LIMIT before it is read whole.
+
+    Parameters
+    ----------
+    size : int
+        The file's size, or how much of it was read [bytes].
+    exact : bool
+        `size` is the whole file's (shown in the message); False when only a part was read.
+
+    Raises
+    ------
+    InputError
+        The file is larger than FILE_SIZE_LIMIT, in one line.
+    """
+    if size > FILE_SIZE_LIMIT:
+        shown = f" ({size / 2**20:.1f} MiB)" if exact else ""
+        raise InputError(f"the library file is larger than {FILE_SIZE_LIMIT // 2**20} MiB"
+                         f"{shown}; split it by athlete (export --athlete)")
+
+
+def _check_depth(document: Any) -> None:
+    """Refuse JSON nested deeper than DEPTH_LIMIT (walked without recursion)."""
+    stack = [(document, 1)]
+    while stack:
+        value, depth = stack.pop()
+        if depth > DEPTH_LIMIT:
+            raise InputError(f"the library file nests lists and objects deeper than "
+                             f"{DEPTH_LIMIT} levels")
+        if isinstance(value, dict):
+            stack.extend((item, depth + 1) for item in value.values()
+                         if isinstance(item, (dict, list)))
+        elif isinstance(value, list):
+            stack.extend((item, depth + 1) for item in value if isinstance(item, (dict, list)))
+
+
 def _parse_document(source: str | bytes) -> Mapping[str, Any]:
-    """The file's JSON object, marked as a pacing library file (UTF-8, a BOM allowed)."""
+    """The file's JSON object, marked as a pacing library file (UTF-8, a BOM allowed), within
+    FILE_SIZE_LIMIT and DEPTH_LIMIT."""
     if isinstance(source, (bytes, bytearray)):
+        check_file_size(len(source))
         try:
             source = bytes(source).decode("utf-8-sig")
         except UnicodeDecodeError:
             raise InputError("the library file is not UTF-8 text") from None
     if not isinstance(source, str):
         raise InputError("a library file is text (JSON)")
+    check_file_size(len(source))
     try:
         document = json.loads(source, parse_constant=_refuse_constant)
     except json.JSONDecodeError as error:
         raise InputError(f"the library file is not valid JSON (line {error.lineno}, column "
                          f"{error.colno}: {error.msg})") from None
+    except RecursionError:
+        raise InputError(f"the library file nests lists and objects deeper than "
+                         f"{DEPTH_LIMIT} levels") from None
+    except ValueError:  # an integer of more than sys.get_int_max_str_digits() digits
+        raise InputError("the library file holds a number too long to read") from None
+    _check_depth(document)
     if not isinstance(document, Mapping) or document.get("format") != FORMAT_NAME:
         raise InputError(f"not a pacing library file (it lacks \"format\": \"{FORMAT_NAME}\")")
     return document
@@ -463,8 +525,7 @@ def _read_plan(entry: Any, where: str, seen: set[int], athlete_ids: set[int],
     notes = entry.get("notes", "")
     if not isinstance(version, str) or not version or len(version) > 50:
         raise InputError(f"{where}: library_version must be short text")
-    if not isinstance(notes, str):
-        raise InputError(f"{where}: notes must be text")
+    notes = _checked(check_notes, where, notes)
     return FilePlan(plan_id, name, dict(entry["inputs"]), result, version, notes,
                     *_stamps(entry, where))
 

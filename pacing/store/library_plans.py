@@ -24,7 +24,15 @@ from pacing.store.rows import (
     plan_summary,
 )
 from pacing.store.schema import athletes, courses, plans, setups
-from pacing.store.statements import delete_row, entry_exists, insert_row, update_row
+from pacing.store.statements import (
+    check_on_existing,
+    delete_row,
+    entry_exists,
+    insert_row,
+    place_name,
+    replace_row,
+    update_row,
+)
 
 
 def resolve_plan_links(connection: Connection, links: Mapping[str, int | None]
@@ -78,8 +86,9 @@ class PlanMethods(LibraryBase):
     """
 
     def save_plan(self, name: str, inputs: Mapping[str, Any], result: Mapping[str, Any], *,
-                  notes: str = "") -> PlanRecord:
-        """Save a new plan: everything that made it and the numbers it gave.
+                  notes: str = "", on_existing: str = "refuse") -> PlanRecord:
+        """Save a new plan: everything that made it and the numbers it gave. A name already
+        in the library is never overwritten silently.
 
         The plan records ``pacing.__version__`` as the version of pacing that made it
         (PlanSummary.library_version; pacing.store.reproduce compares it when the plan is
@@ -99,22 +108,36 @@ class PlanMethods(LibraryBase):
             dicts) required, ``strategy``, ``weather`` and ``time_saved`` [s] optional.
         notes : str
             The coach's free text.
+        on_existing : str
+            When a saved plan of that name is stored: "refuse" (NameTaken), "replace" (all
+            of it, keeping its id) or "keep-both" (this one is named "name (2)") [-].
 
         Returns
         -------
         PlanRecord
-            As stored: new id, revision 1.
+            As stored: new id and revision 1, or the replaced plan's id and next revision.
+
+        Raises
+        ------
+        NameTaken
+            The name is taken and `on_existing` is "refuse".
         """
         name = check_name(name, "a plan")
         inputs_text, links = plan_inputs_text(inputs)
         values = plan_result_values(result)
         notes = check_notes(notes)
+        check_on_existing(on_existing)
         with self.transaction() as connection:
             link_columns = resolve_plan_links(connection, links)
-            new_id = insert_row(connection, plans, dict(
-                values, **link_columns, name=name, inputs=inputs_text, notes=notes,
-                library_version=pacing.__version__))
-        return self.plan(new_id)
+            name, replaced = place_name(connection, plans, "saved plan", name, on_existing)
+            row = dict(values, **link_columns, name=name, inputs=inputs_text, notes=notes,
+                       library_version=pacing.__version__)
+            if replaced is None:
+                entry_id = insert_row(connection, plans, row)
+            else:
+                replace_row(connection, plans, replaced, row)
+                entry_id = replaced
+        return self.plan(entry_id)
 
     def plan(self, plan_id: int) -> PlanRecord:
         """The saved plan with this id, with its inputs and target table.

@@ -1,7 +1,10 @@
 """Checks of what goes into the library, and conversions between values and table rows.
 
 Each check raises InputError with a one-line message naming the field. Numbers are stored as
-given, in SI (kg, W, J, m, s, m/s, m²; flat pace in s/km).
+given, in SI (kg, W, J, m, s, m/s, m²; flat pace in s/km), once they are within physical
+ranges (NUMBER_RANGES; the athlete's body mass and every setup number are checked by
+pacing.athlete itself). Names are normalised (check_name): trimmed, at most NAME_LENGTH
+characters, no control or direction-changing characters.
 """
 
 from __future__ import annotations
@@ -9,11 +12,13 @@ from __future__ import annotations
 import hashlib
 import math
 import numbers
+import unicodedata
 from collections.abc import Mapping
 from typing import Any
 
 from pacing.athlete import Athlete, Setup
 from pacing.errors import InputError
+from pacing.physics.running import RUNNING_SPEED_RANGE
 from pacing.store import jsontext
 from pacing.store.database import as_utc
 from pacing.store.records import (
@@ -30,6 +35,38 @@ from pacing.store.records import (
 NAME_LENGTH = 200
 #: Largest GPX file the library keeps [bytes].
 GPX_SIZE_LIMIT = 64 * 1024 * 1024
+#: Largest library id: the schema's ids are INTEGER, 32 bits on PostgreSQL [-].
+ID_LIMIT = 2**31 - 1
+
+#: Physical ranges (low, high, unit) of the numbers the library keeps, each low <= x <= high
+#: (low < x where low is 0 and the quantity must be positive, POSITIVE_NUMBERS). Wide enough
+#: for any athlete or race, narrow enough that no stored number overflows what shows it.
+#: Sources: critical power up to the plan command's largest power, 3000 W
+#: (pacing.cli.plan_cycling.POWER_RANGE); flat pace and critical speed within
+#: pacing.physics.running.RUNNING_SPEED_RANGE; W′ (typically 10-35 kJ), D′ (typically
+#: 100-400 m), height, course length (longer than any race), ascent and times: generous
+#: bounds, from memory and common practice.
+NUMBER_RANGES: dict[str, tuple[float, float, str]] = {
+    "critical_power": (0.0, 3000.0, "W"),
+    "w_prime": (0.0, 200_000.0, "J"),
+    "height": (0.5, 2.75, "m"),
+    "flat_pace": (1000.0 / RUNNING_SPEED_RANGE[1], 1000.0 / RUNNING_SPEED_RANGE[0], "s/km"),
+    "critical_speed": (RUNNING_SPEED_RANGE[0], RUNNING_SPEED_RANGE[1], "m/s"),
+    "d_prime": (0.0, 5000.0, "m"),
+    "yaw": (-180.0, 180.0, "deg"),
+    "CdA multiplier": (0.0, 10.0, "-"),
+    "course distance": (0.0, 1.0e7, "m"),
+    "course ascent": (0.0, 1.0e6, "m"),
+    "finish time": (0.0, 1.0e7, "s"),
+    "time saved": (-1.0e7, 1.0e7, "s"),
+}
+#: Keys of NUMBER_RANGES whose low bound 0 itself is refused.
+POSITIVE_NUMBERS = frozenset({"critical_power", "w_prime", "d_prime", "CdA multiplier",
+                              "course distance", "finish time"})
+#: Unicode characters refused in names besides control characters: the bidirectional
+#: embeddings, overrides and isolates (U+202A-U+202E, U+2066-U+2069), which make a name show
+#: other than it reads (Unicode Standard Annex #9; CVE-2021-42574, "Trojan Source").
+BIDI_CONTROLS = frozenset(chr(c) for c in (*range(0x202A, 0x202F), *range(0x2066, 0x206A)))
 
 #: Number fields of pacing.athlete.Athlete, as the athletes table stores them.
 ATHLETE_NUMBERS = ("body_mass", "critical_power", "w_prime", "height", "flat_pace",
@@ -43,31 +80,38 @@ SETUP_NUMBERS = ("bike_mass", "drag_area", "power_share", "rolling_coefficient",
 # checks and conversions between values and rows
 
 def check_name(name: Any, what: str) -> str:
-    """A valid entry name: non-empty text of at most NAME_LENGTH characters, no control
-    characters, stripped of surrounding blanks.
+    """A valid entry name, normalised: Unicode NFC, surrounding blanks trimmed, non-empty, at
+    most NAME_LENGTH characters, no control characters (Unicode category Cc: tabs, line
+    breaks, C1 controls), no embedding, override or isolate characters (BIDI_CONTROLS). Other
+    format characters stay: the zero-width non-joiner belongs in Persian names.
 
     Parameters
     ----------
     name : Any
-        The name given.
+        The name given [-].
     what : str
-        What is named, for the message (e.g. ``"an athlete"``).
+        What is named, for the message (e.g. ``"an athlete"``) [-].
 
     Returns
     -------
     str
-        The name without surrounding blanks.
+        The normalised name [-].
 
     Raises
     ------
     InputError
-        Not text, empty, too long or holding control characters (tabs, line breaks).
+        Not text, empty, too long or holding a refused character, in one line.
     """
     if not isinstance(name, str) or not name.strip():
         raise InputError(f"{what} needs a name (non-empty text)")
-    name = name.strip()
-    if any(ord(character) < 32 or ord(character) == 127 for character in name):
+    if len(name) > 4 * NAME_LENGTH:  # before any work on a huge text
+        raise InputError(f"{what} name is longer than {NAME_LENGTH} characters")
+    name = unicodedata.normalize("NFC", name).strip()
+    if any(unicodedata.category(character) == "Cc" for character in name):
         raise InputError(f"{what} name must not hold control characters (tabs, line breaks)")
+    if any(character in BIDI_CONTROLS for character in name):
+        raise InputError(f"{what} name must not hold direction-changing characters "
+                         "(U+202A-U+202E, U+2066-U+2069)")
     if len(name) > NAME_LENGTH:
         raise InputError(f"{what} name is longer than {NAME_LENGTH} characters")
     return name
@@ -79,22 +123,24 @@ def check_id(value: Any, what: str) -> int:
     Parameters
     ----------
     value : Any
-        The value given (a bool is refused although Python counts it as an int).
+        The value given (a bool is refused although Python counts it as an int) [-].
     what : str
-        What it is, for the message (e.g. ``"athlete id"``).
+        What it is, for the message (e.g. ``"athlete id"``) [-].
 
     Returns
     -------
     int
-        The value.
+        The value [-].
 
     Raises
     ------
     InputError
-        Not a positive int.
+        Not a positive int of at most ID_LIMIT.
     """
-    if isinstance(value, bool) or not isinstance(value, int) or value < 1:
-        raise InputError(f"{what} must be a positive whole number, got {value!r}")
+    if isinstance(value, bool) or not isinstance(value, int) or not 1 <= value <= ID_LIMIT:
+        shown = repr(value) if len(repr(value)) <= 40 else repr(value)[:37] + "..."
+        raise InputError(f"{what} must be a positive whole number up to {ID_LIMIT}, "
+                         f"got {shown}")
     return value
 
 
@@ -106,10 +152,32 @@ def _optional_finite(value: Any, what: str) -> float | None:
 def _finite(value: Any, what: str) -> float:
     """A finite number as float (InputError naming `what` otherwise)."""
     if isinstance(value, bool) or not isinstance(value, numbers.Real):
-        raise InputError(f"{what} must be a number, got {value!r}")
-    if not math.isfinite(value):
-        raise InputError(f"{what} must be a finite number, got {value}")
-    return float(value)
+        shown = repr(value) if len(repr(value)) <= 40 else repr(value)[:37] + "..."
+        raise InputError(f"{what} must be a number, got {shown}")
+    try:
+        number = float(value)
+    except OverflowError:  # an int too large for a float
+        raise InputError(f"{what} must be a finite number, got a number too large") from None
+    if not math.isfinite(number):
+        raise InputError(f"{what} must be a finite number, got {number}")
+    return number
+
+
+def _in_range(value: Any, what: str, key: str | None = None) -> float:
+    """A finite number within NUMBER_RANGES[key] (key defaults to `what`) as float."""
+    number = _finite(value, what)
+    low, high, unit = NUMBER_RANGES[key or what]
+    opened = (key or what) in POSITIVE_NUMBERS
+    if not ((low < number) if opened else (low <= number)) or not number <= high:
+        bracket = "(" if opened else "["
+        raise InputError(f"{what} must be in {bracket}{low:g}, {high:g}] {unit}, "
+                         f"got {number:g}")
+    return number
+
+
+def _optional_in_range(value: Any, what: str, key: str) -> float | None:
+    """None, or a number within NUMBER_RANGES[key]."""
+    return None if value is None else _in_range(value, what, key)
 
 
 def athlete_row(athlete: Athlete) -> dict[str, Any]:
@@ -137,7 +205,7 @@ def athlete_row(athlete: Athlete) -> dict[str, Any]:
         what = field.replace("_", " ")
         value = getattr(athlete, field)
         row[field] = _finite(value, what) if field == "body_mass" \
-            else _optional_finite(value, what)
+            else _optional_in_range(value, what, field)
     return row
 
 
@@ -173,7 +241,7 @@ def setup_row(setup: Setup) -> dict[str, Any]:
         for pair in table:
             if len(pair) != 2:
                 raise InputError("the yaw drag table needs (yaw [deg], CdA multiplier) pairs")
-            pairs.append([_finite(pair[0], "yaw"), _finite(pair[1], "CdA multiplier")])
+            pairs.append([_in_range(pair[0], "yaw"), _in_range(pair[1], "CdA multiplier")])
         row["yaw_drag_table"] = jsontext.dumps(pairs, "yaw drag table")
     return row
 
@@ -342,12 +410,8 @@ def course_row(name: Any, gpx: Any, distance_m: Any, ascent_m: Any) -> dict[str,
         raise InputError("the GPX file is empty")
     if len(gpx) > GPX_SIZE_LIMIT:
         raise InputError(f"the GPX file is larger than {GPX_SIZE_LIMIT // 2**20} MiB")
-    distance = _finite(distance_m, "course distance")
-    ascent = _finite(ascent_m, "course ascent")
-    if distance <= 0:
-        raise InputError(f"course distance must be positive, got {distance} m")
-    if ascent < 0:
-        raise InputError(f"course ascent must not be negative, got {ascent} m")
+    distance = _in_range(distance_m, "course distance")
+    ascent = _in_range(ascent_m, "course ascent")
     return {"name": check_name(name, "a course"), "gpx": gpx,
             "gpx_sha256": hashlib.sha256(gpx).hexdigest(), "gpx_size": len(gpx),
             "distance_m": distance, "ascent_m": ascent}
@@ -384,9 +448,7 @@ def plan_result_values(result: Any) -> dict[str, Any]:
     for key in ("finish_time", "targets"):
         if key not in result:
             raise InputError(f"a plan result needs {key!r}")
-    finish = _finite(result["finish_time"], "finish time")
-    if finish <= 0:
-        raise InputError(f"finish time must be positive, got {finish} s")
+    finish = _in_range(result["finish_time"], "finish time")
     targets = result["targets"]
     if not isinstance(targets, (list, tuple)) or not all(
             isinstance(record, Mapping) for record in targets):
@@ -395,7 +457,7 @@ def plan_result_values(result: Any) -> dict[str, Any]:
         "strategy": jsontext.dumps(result.get("strategy"), "strategy"),
         "weather": jsontext.dumps(result.get("weather"), "weather"),
         "targets": jsontext.dumps([dict(record) for record in targets], "targets"),
-        "time_saved": _optional_finite(result.get("time_saved"), "time saved"),
+        "time_saved": _optional_in_range(result.get("time_saved"), "time saved", "time saved"),
         "finish_time": finish,
     }
 

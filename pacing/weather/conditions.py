@@ -258,9 +258,10 @@ def air_along_course(course: Course, conditions: Conditions,
     model = AIR_DENSITY_MODELS.resolve(density_model)
     elevation = piece_elevation(course)
     pressure = standard_pressure(elevation, conditions.sea_level_pressure)
-    temperature = temperature_at_elevation(
-        elevation, conditions.temperature, float(course.elevation[0])
-    )
+    # the lapse rate warms pieces below the start: a start at the documented bound (60 °C)
+    # must not be refused for 60.0003 °C further down, so the model's values stay in range
+    temperature = np.clip(temperature_at_elevation(
+        elevation, conditions.temperature, float(course.elevation[0])), *TEMPERATURE_RANGE)
     density = model(temperature, pressure, conditions.relative_humidity)
     headwind, crosswind = wind_components(
         np.asarray(course.heading, dtype=float), conditions.wind_from, conditions.wind_at_rider
