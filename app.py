@@ -258,6 +258,8 @@ if outcome is not None:
     sections.outcome_headline(outcome, system)
     st.warning(text.speed_caution(outcome.sport))
     for notice in outcome.notices:  # warnings and notes of the planning chain, in words
+        if notice in course.notices:
+            continue  # shown beside the course facts already
         if notice.level == "warning":
             st.warning(f"⚠ {describe(notice, system)}")
         else:

@@ -22,7 +22,7 @@ JSON_KEYS = {"finish_time_s", "distance_m", "average_speed_mps", "average_power_
 LIMIT_KEYS = {"min_w_prime_balance_j", "w_prime_exhausted_at_m", "warnings"}
 """Issue 14: every cycling plan says where W′ runs out, whatever its strategy."""
 SEGMENT_KEYS = {"start_m", "end_m", "grade", "power_w", "power_low_w", "power_high_w",
-                "speed_mps", "time_s", "max_speed_mps", "walking_distance_m"}
+                "speed_mps", "time_s", "max_speed_mps", "walking_distance_m", "gap_m"}
 
 
 @pytest.fixture(scope="module")
@@ -50,7 +50,9 @@ def test_json_has_exactly_the_contract_keys(capsys, route):
     assert result["segments"] and all(set(s) == SEGMENT_KEYS for s in result["segments"])
     assert all(isinstance(v, float) and math.isfinite(v)
                for k, v in result.items() if k not in ("segments", "notices", *LIMIT_KEYS))
-    assert result["notices"] == []  # 250 W on a 6 km hill: nothing to warn about
+    # 250 W on a 6 km hill: nothing to warn about (the course's notes, such as what elevation
+    # cleaning removed, may be told)
+    assert [n for n in result["notices"] if n["level"] == "warning"] == []
     # without CP and W′ there is no balance to tell
     assert result["min_w_prime_balance_j"] is None and result["w_prime_exhausted_at_m"] is None
     assert result["warnings"] == []
@@ -341,3 +343,38 @@ def test_an_efficiency_below_one_half_is_refused_in_one_line(capsys, route):
     assert main(["plan", route, "--power", "250", "--efficiency", "0.01"]) == 2
     err = capsys.readouterr().err.strip().splitlines()
     assert len(err) == 1 and "--efficiency must be 0.5-1" in err[0]
+
+
+# ------------------------------------------------- issue 13: a joined gap in the recording
+
+@pytest.fixture(scope="module")
+def merged_recording(tmp_path_factory):
+    """Two 7.5 km tracks, the second 12.7 km east of the first's end (geographiclib forward
+    model, tests/recording_samples.py): one gap, joined by a straight line by default."""
+    from recording_samples import two_tracks_with_a_jump
+
+    path = tmp_path_factory.mktemp("recordings") / "merged.gpx"
+    path.write_text(two_tracks_with_a_jump(jump=12_700.0), encoding="utf-8")
+    return str(path)
+
+
+@pytest.mark.parametrize("strategy", [(), ("--strategy", "constant")])
+def test_json_tells_the_one_segment_holding_the_joined_gap(capsys, merged_recording, strategy):
+    result = run_json(capsys, merged_recording, "--power", "200", "--segment-length", "5000",
+                      *strategy)
+    holding = [s for s in result["segments"] if s["gap_m"] > 0]
+    assert len(holding) == 1
+    assert holding[0]["gap_m"] == pytest.approx(12_700.0, rel=0.01)  # the forward model's jump
+    assert holding[0]["start_m"] <= 7_500.0 < holding[0]["end_m"]  # where the first track ends
+
+
+def test_json_of_a_course_without_gaps_has_zero_gap_everywhere(capsys, route):
+    result = run_json(capsys, route, "--power", "250")
+    assert all(s["gap_m"] == 0.0 for s in result["segments"])
+
+
+def test_table_marks_the_row_holding_the_joined_gap(capsys, merged_recording):
+    assert main(["plan", merged_recording, "--power", "200", "--segment-length", "5000"]) == 0
+    rows = [line for line in capsys.readouterr().out.splitlines() if "joined gap" in line]
+    assert len(rows) == 1 and rows[0].endswith("<- joined gap 12.7 km")
+    assert rows[0].split()[1] == "5.00"  # the segment from km 5 to km 10

@@ -239,10 +239,12 @@ def test_json_says_where_d_prime_runs_out(capsys, flat_route):
     speed = 1000.0 / 220.0
     assert result["d_prime_exhausted_at_m"] == pytest.approx(
         speed * 200.0 / (speed - 4.2), abs=10.0)  # within one 10 m piece
-    assert len(result["warnings"]) == 1 and "D′ runs out" in result["warnings"][0]
+    said = [w for w in result["warnings"] if "D′ runs out" in w]
+    assert len(said) == 1
     within = run_json(capsys, flat_route, "--flat-pace", "5:00", "--critical-speed", "4.2",
                       "--d-prime", "200")
-    assert within["d_prime_exhausted_at_m"] is None and within["warnings"] == []
+    assert within["d_prime_exhausted_at_m"] is None
+    assert not any("D′ runs out" in w for w in within["warnings"])
     without = run_json(capsys, flat_route, "--flat-pace", "3:40")
     assert without["d_prime_exhausted_at_m"] is None
 
@@ -255,3 +257,34 @@ def test_a_gale_is_refused_in_one_line(capsys, hilly_route, wind):
     captured = capsys.readouterr()
     assert captured.out == "" and captured.err.count("\n") == 1
     assert "cannot be run in" in captured.err
+
+
+# ------------------------------------------------- issue 13: a joined gap in the recording
+
+@pytest.fixture
+def merged_recording(tmp_path):
+    """Two 7.5 km tracks, the second 12.7 km east of the first's end (geographiclib forward
+    model, tests/recording_samples.py): one gap, joined by a straight line by default."""
+    from recording_samples import two_tracks_with_a_jump
+
+    path = tmp_path / "merged.gpx"
+    path.write_text(two_tracks_with_a_jump(jump=12_700.0), encoding="utf-8")
+    return path
+
+
+def test_json_and_table_tell_the_one_segment_holding_the_joined_gap(capsys, merged_recording):
+    result = run_json(capsys, merged_recording, "--flat-pace", "5:00", "--segment-length",
+                      "5000")
+    holding = [s for s in result["segments"] if s["gap_m"] > 0]
+    assert len(holding) == 1
+    assert holding[0]["gap_m"] == pytest.approx(12_700.0, rel=0.01)  # the forward model's jump
+    assert holding[0]["start_m"] <= 7_500.0 < holding[0]["end_m"]  # where the first track ends
+    assert main(["plan", str(merged_recording), "--sport", "running", "--flat-pace", "5:00",
+                 "--segment-length", "5000"]) == 0
+    rows = [line for line in capsys.readouterr().out.splitlines() if "joined gap" in line]
+    assert len(rows) == 1 and rows[0].endswith("<- joined gap 12.7 km")
+
+
+def test_json_of_a_course_without_gaps_has_zero_gap_everywhere(capsys, flat_route):
+    result = run_json(capsys, flat_route, "--flat-pace", "5:00")
+    assert all(s["gap_m"] == 0.0 for s in result["segments"])

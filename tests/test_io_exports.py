@@ -70,6 +70,21 @@ class TestTable:
         assert list(segment_table(rows)["Walked [km]"]) == [0.0, 1.61, 0.0]
         assert list(segment_table(rows, "imperial")["Walked [mi]"]) == [0.0, 1.0, 0.0]
 
+    def test_a_joined_gap_has_a_column_only_when_some_segment_holds_one(self):
+        # issue 13: the table says which segment holds a gap in the recording joined by a
+        # straight line, and how long it is
+        rows = make_rows(3)
+        assert not any(c.startswith("Gap") for c in segment_table(rows).columns)
+        for row in rows:
+            row["gap_length"] = 0.0
+        assert not any(c.startswith("Gap") for c in segment_table(rows).columns)
+        rows[1]["gap_length"] = 12_700.0
+        assert list(segment_table(rows)["Gap [km]"]) == [0.0, 12.7, 0.0]
+        # 12 700 m / 1 609.344 m per international mile (NIST SP 811, B.8) = 7.89 mi
+        assert list(segment_table(rows, "imperial")["Gap [mi]"]) == [0.0, 7.89, 0.0]
+        back = pd.read_csv(io.BytesIO(table_to_csv(segment_table(rows))))
+        assert list(back["Gap [km]"]) == [0.0, 12.7, 0.0]
+
     def test_metric_numbers(self):
         row = make_rows()[1]
         table = segment_table(make_rows())
@@ -189,6 +204,15 @@ class TestGpx:
         assert "W′ runs out" in told[2] and "12.0 km" in told[2]
         assert not any("W′ runs out" in text for k, text in enumerate(told) if k != 2)
 
+    def test_the_waypoint_of_a_segment_holding_a_joined_gap_tells_its_length(self):
+        rows = make_rows(3)
+        rows[1]["gap_length"] = 12_700.0
+        told = [description for _, _, description in segment_waypoints(rows)]
+        assert told[1].endswith(", joined gap 12.7 km")
+        assert not any("gap" in text for k, text in enumerate(told) if k != 1)
+        imperial = segment_waypoints(rows, "imperial")[1][2]
+        assert "joined gap 7.9 mi" in imperial  # NIST SP 811, B.8: 1 mi = 1 609.344 m
+
     def test_a_warning_past_the_last_segment_goes_on_the_last_waypoint(self):
         rows = make_rows(3)
         points = segment_waypoints(rows, warnings=[(rows[-1]["end"], "D′ runs out")])
@@ -203,6 +227,21 @@ class TestCard:
         width, height = card_size(count)
         with Image.open(io.BytesIO(png)) as image:
             assert image.size == (round(width * CARD_DPI), round(height * CARD_DPI))
+
+    def test_a_joined_gap_is_printed_on_the_card_as_one_more_line(self):
+        from pacing.io.exports import _card_figure
+
+        rows = make_rows(4)
+        rows[2]["gap_length"] = 12_700.0
+        figure = _card_figure(rows, "metric", "x")
+        texts = " ".join(t.get_text().replace("\n", " ") for t in figure.axes[0].texts)
+        assert "joined gap 12.7 km" in texts and "segment 3" in texts
+        png = target_card_png(rows, warnings=["W′ runs out"])
+        width, height = card_size(4, 2)  # the gap line and the warning
+        with Image.open(io.BytesIO(png)) as image:  # 4.45 in · 150 dpi = 667.5 px: ±1 px
+            assert image.size == pytest.approx((width * CARD_DPI, height * CARD_DPI), abs=1)
+        figure = _card_figure(make_rows(4), "metric", "x")
+        assert "gap" not in " ".join(t.get_text() for t in figure.axes[0].texts)
 
     def test_more_segments_add_columns(self):
         assert card_size(45)[0] == pytest.approx(3 * card_size(5)[0])

@@ -1,13 +1,20 @@
 """Segment target tables (pacing.plan.targets): numbers only, consistent with the prediction."""
 
+import dataclasses
 import json
 from functools import lru_cache
 
+import gpxpy
 import numpy as np
 import pytest
+from geographiclib.geodesic import Geodesic
+from recording_samples import two_tracks_with_a_jump
 
 from pacing.course.geometry import synthetic_course
+from pacing.course.recording import Gap
+from pacing.course.segments import split_every
 from pacing.errors import InputError
+from pacing.io.gpx import load_course
 from pacing.physics.cycling import Rider
 from pacing.plan.cycling import make_plan
 from pacing.plan.prediction import SimulationOptions
@@ -18,8 +25,10 @@ from pacing.plan.targets import (
     RECORD_KEYS,
     SegmentTarget,
     power_band,
+    segment_gap_lengths,
     target_table,
     targets_as_records,
+    with_gap_lengths,
 )
 from pacing.weather.conditions import CourseAir, still_air
 
@@ -142,3 +151,69 @@ def test_the_target_table_band_is_power_band():
 def test_power_band_refuses_bad_input(power, band):
     with pytest.raises(InputError):
         power_band(power, band)
+
+
+# ------------------------------------------------- issue 13: a joined gap in the recording
+
+JUMP = 12_700.0
+"""The gap of tests/recording_samples.two_tracks_with_a_jump: the second track starts this far
+east of the first's end, placed along the WGS84 geodesic with geographiclib (Karney 2013,
+J. Geodesy 87, 43-55, doi:10.1007/s00190-012-0578-z); the first track is 7 500 m long."""
+
+
+@lru_cache
+def merged_recording():
+    """The two-track recording as a course (gap joined by default), split every 5 km."""
+    course = load_course(two_tracks_with_a_jump(jump=JUMP).encode())
+    return course, split_every(course, 5000.0)
+
+
+def jump_in_the_file():
+    """Geodesic from the first track's last point to the second's first, as the GPX text holds
+    them (parsed with gpxpy, measured with geographiclib: no pacing code)."""
+    parsed = gpxpy.parse(two_tracks_with_a_jump(jump=JUMP))
+    end = parsed.tracks[0].segments[-1].points[-1]
+    start = parsed.tracks[1].segments[0].points[0]
+    return Geodesic.WGS84.Inverse(end.latitude, end.longitude, start.latitude,
+                                  start.longitude)["s12"]
+
+
+def test_exactly_the_segment_holding_the_joined_gap_tells_its_length():
+    course, bounds = merged_recording()
+    prediction = simulate(course, 200.0, RIDER, still_air(course, 1.2),
+                          SimulationOptions(start_speed=8.0))
+    rows = target_table(course, bounds, prediction)
+    holding = [row for row in rows if row.gap_length > 0]
+    assert len(holding) == 1
+    assert holding[0].gap_length == pytest.approx(JUMP, rel=0.01)
+    assert holding[0].gap_length == pytest.approx(jump_in_the_file(), rel=1e-6)
+    # the gap starts where the first 7.5 km track ends (forward model)
+    assert holding[0].start <= 7_500.0 * 1.01 and 7_500.0 * 0.99 < holding[0].end
+    assert all(row.gap_length == 0.0 for row in rows if row is not holding[0])
+    assert targets_as_records([holding[0]])[0]["gap_length_m"] == holding[0].gap_length
+
+
+def test_a_course_without_gaps_has_no_gap_length():
+    course, bounds, air = rolling()
+    assert all(row.gap_length == 0.0
+               for row in target_table(course, bounds, fastest_plan(), air=air))
+
+
+def test_a_gap_belongs_to_the_segment_whose_start_to_end_holds_where_it_starts():
+    ends = [5_000.0, 10_000.0, 20_000.0]
+    gaps = [Gap(piece=1, at=5_000.0, length=800.0, duration=None),     # on a bound: next one
+            Gap(piece=2, at=7_000.0, length=200.0, duration=60.0),
+            Gap(piece=3, at=20_000.0, length=900.0, duration=None),    # at the finish: last
+            Gap(piece=4, at=1_000.0, length=5e5, duration=1.0, handling="drop")]  # not joined
+    assert segment_gap_lengths(gaps, ends).tolist() == [0.0, 1_000.0, 900.0]
+    assert segment_gap_lengths([], ends).tolist() == [0.0, 0.0, 0.0]
+    assert segment_gap_lengths(gaps, []).tolist() == []
+
+
+def test_rows_made_without_the_course_get_their_gap_lengths_from_it():
+    # e.g. running rows (pacing.plan.running_plan.running_targets)
+    course, bounds = merged_recording()
+    prediction = simulate(course, 200.0, RIDER, still_air(course, 1.2))
+    rows = target_table(course, bounds, prediction, pace=True)
+    bare = [dataclasses.replace(row, gap_length=0.0) for row in rows]
+    assert with_gap_lengths(bare, course.gaps) == rows

@@ -405,7 +405,10 @@ def _headline(report: SetupsAnalysis, system: str) -> None:
         spread = report.spread(best.name).standard_deviation
         cols[2].metric(f"vs {base.name}", signed_time(best.delta),
                        help=f"± {spread:.1f} s (1σ): {verdict(best.delta, spread)}")
+    course_notices = report.comparison.race.course.notices  # shown beside the course facts
     for notice in report.notices:
+        if notice in course_notices:
+            continue
         if notice.level == "warning":
             st.warning(describe(notice, system), icon="⚠️")
         else:

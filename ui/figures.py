@@ -32,6 +32,8 @@ POWER_COLOR = "#b5542c"
 WIND_COLOR = "#5a6b2f"
 RESERVE_COLOR = "#6a3d9a"
 BOUNDARY_COLOR = "rgba(29,43,58,0.35)"
+GAP_COLOR = "rgba(181,84,44,0.15)"
+"""Band over a stretch the recording has no points for, joined by a straight line."""
 
 
 def _layout(figure: go.Figure, height: int) -> go.Figure:
@@ -59,7 +61,8 @@ def _thin(count: int, limit: int = MAX_LINE_POINTS) -> np.ndarray:
 
 def profile_figure(course, system: str, bounds=None, height: int = 300) -> go.Figure:
     """Elevation along the course shaded by grade, the raw profile as a thin line, and the
-    segment boundaries (point indices) as dotted lines; distance in km or mi, elevation in m
+    segment boundaries (point indices) as dotted lines, and a band over each gap in the
+    recording joined by a straight line (course.gaps); distance in km or mi, elevation in m
     or ft, grade colours in %, `height` [px]."""
     distance = np.asarray(course.distance, dtype=float)
     elevation = np.asarray(course.elevation, dtype=float)
@@ -101,11 +104,25 @@ def profile_figure(course, system: str, bounds=None, height: int = 300) -> go.Fi
             x=np.repeat(inner, 3), y=np.tile([low, high, np.nan], inner.size), mode="lines",
             line=dict(color=BOUNDARY_COLOR, width=1, dash="dot"), hoverinfo="skip",
             connectgaps=False, name="segment boundaries"))
+    _mark_gaps(figure, course, system)
     figure.update_layout(bargap=0)
     figure.update_xaxes(title_text=f"distance [{unit_label('distance', system)}]")
     figure.update_yaxes(title_text=f"elevation [{unit_label('elevation', system)}]",
                         range=[base, floor + 1.1 * span])
     return _layout(figure, height)
+
+
+def _mark_gaps(figure: go.Figure, course, system: str) -> None:
+    """A shaded band, labelled "joined gap", over each gap of the recording the course crosses
+    on a straight line (course.gaps with handling "join"; none on a course without gaps)."""
+    for gap in getattr(course, "gaps", ()):
+        if gap.handling != "join":
+            continue
+        figure.add_vrect(
+            x0=to_display(gap.at, "distance", system),
+            x1=to_display(gap.at + gap.length, "distance", system),
+            fillcolor=GAP_COLOR, line_width=0, layer="below",
+            annotation_text="joined gap", annotation_position="top left")
 
 
 def route_map_figure(course, system: str, wind_speed: float = 0.0, wind_from: float = 0.0,

@@ -221,28 +221,23 @@ def load_course_and_bounds(args: argparse.Namespace) -> tuple[Course, np.ndarray
     Returns
     -------
     tuple of (Course, numpy.ndarray)
-        The course and its segment boundary point indices [-]. The course's warnings
-        (gaps, elevations) are given as UserWarnings, one line each; all its notices stay
-        on `course.notices`.
+        The course and its segment boundary point indices [-]. What reading found (gaps,
+        elevations) is on `course.notices`; the planning chain puts it first among a plan's
+        notices, so each command reports it once with the rest.
 
     Raises
     ------
     InputError
         When the file cannot be read as a course.
     """
-    import warnings
 
     from pacing.course.recording import parse_track_choice
     from pacing.course.segments import split_by_grade, split_every
-    from pacing.display.notices import describe
     from pacing.io.gpx import load_course
 
     course = load_course(args.route, step=args.step, allow_missing_elevation=args.flat,
                          tracks=parse_track_choice(getattr(args, "track", None)),
                          gaps=getattr(args, "gaps", "join"))
-    for notice in course.notices:
-        if notice.level == "warning":
-            warnings.warn(describe(notice, "metric"), UserWarning, stacklevel=2)
     bounds = (split_every(course, args.segment_length) if args.segment_length is not None
               else split_by_grade(course))
     return course, bounds

@@ -18,6 +18,7 @@ import argparse
 import json
 import math
 import sys
+from collections.abc import Sequence
 from typing import TYPE_CHECKING, Any
 
 import numpy as np
@@ -37,9 +38,10 @@ from pacing.physics.cycling import Rider
 from pacing.plan.cycling import RacePlan
 from pacing.plan.prediction import Prediction, SegmentResult, SimulationOptions, segment_results
 from pacing.plan.strategies import walking_distance
-from pacing.plan.targets import DEFAULT_BAND, power_band
+from pacing.plan.targets import DEFAULT_BAND, power_band, segment_gap_lengths
 
 if TYPE_CHECKING:
+    from pacing.course.recording import Gap
     from pacing.plan.race import RaceRequest, RaceResult
     from pacing.plan.request import PlanRequest
 
@@ -236,7 +238,7 @@ def simulation_options_from_args(args: argparse.Namespace) -> SimulationOptions:
 
 def prediction_as_dict(prediction: Prediction, segments: list[SegmentResult], *,
                        target_power: ArrayLike | None = None,
-                       band: float = DEFAULT_BAND) -> dict[str, Any]:
+                       band: float = DEFAULT_BAND, gaps: Sequence[Gap] = ()) -> dict[str, Any]:
     """JSON-ready numbers, SI units named in each key.
 
     Parameters
@@ -250,6 +252,8 @@ def prediction_as_dict(prediction: Prediction, segments: list[SegmentResult], *,
         segment [W].
     band : float, optional
         Half-width of the band around the target, a fraction [-].
+    gaps : sequence of pacing.course.recording.Gap, optional
+        The course's gaps in the recording (Course.gaps) [-].
 
     Returns
     -------
@@ -259,11 +263,13 @@ def prediction_as_dict(prediction: Prediction, segments: list[SegmentResult], *,
         below walking pace) [m], and per segment start_m, end_m [m], grade [-], power_w
         (the mean crank power of the pieces ridden: walking goes not through the pedals),
         power_low_w, power_high_w (the band ±`band` around the target) [W], speed_mps,
-        max_speed_mps [m/s], time_s [s], walking_distance_m [m].
+        max_speed_mps [m/s], time_s [s], walking_distance_m [m], gap_m (length of the
+        recording's gaps joined by a straight line that start in the segment) [m].
     """
     target = ([s.power for s in segments] if target_power is None
               else np.broadcast_to(np.asarray(target_power, dtype=float), (len(segments),)))
     low, high = power_band(target, band)
+    gap = segment_gap_lengths(gaps, [s.end for s in segments])
     return {
         "finish_time_s": prediction.finish_time,
         "distance_m": float(prediction.distance[-1] - prediction.distance[0]),
@@ -284,6 +290,7 @@ def prediction_as_dict(prediction: Prediction, segments: list[SegmentResult], *,
                 "time_s": s.time,
                 "max_speed_mps": s.max_speed,
                 "walking_distance_m": s.walking_distance,
+                "gap_m": float(gap[k]),
             }
             for k, s in enumerate(segments)
         ],
@@ -323,7 +330,7 @@ BAND_HEADER = f" {'band W':>11}"
 
 def prediction_as_table(prediction: Prediction, segments: list[SegmentResult], *,
                         target_power: ArrayLike | None = None,
-                        band: float = DEFAULT_BAND) -> str:
+                        band: float = DEFAULT_BAND, gaps: Sequence[Gap] = ()) -> str:
     """A readable table: km, %, W, km/h, H:MM:SS, and a finish line.
 
     Parameters
@@ -337,6 +344,9 @@ def prediction_as_table(prediction: Prediction, segments: list[SegmentResult], *
         for no band column [W].
     band : float, optional
         Half-width of the band around the target, a fraction [-].
+    gaps : sequence of pacing.course.recording.Gap, optional
+        The course's gaps in the recording (Course.gaps): a segment holding a joined one
+        ends with a mark, "<- joined gap 12.7 km" [-].
 
     Returns
     -------
@@ -362,6 +372,7 @@ def prediction_as_table(prediction: Prediction, segments: list[SegmentResult], *
         if band_edges is not None:
             row += f" {_band_text(band_edges[0][k], band_edges[1][k]):>11}"
         lines.append(row)
+    lines[1:] = gap_marked(lines[1:], [s.end for s in segments], gaps)
     distance = float(prediction.distance[-1] - prediction.distance[0])
     lines.append(
         f"finish {units.format_duration(prediction.finish_time)} (H:MM:SS) over "
@@ -372,6 +383,35 @@ def prediction_as_table(prediction: Prediction, segments: list[SegmentResult], *
     if target_power is not None:
         lines.append(f"band: ±{100 * band:g} % around the target power")
     return "\n".join(lines)
+
+
+def gap_marked(rows: list[str], ends: Sequence[float], gaps: Sequence[Gap]) -> list[str]:
+    """The table rows with "  <- joined gap 12.7 km" after each row whose segment holds a
+    joined gap of the recording (pacing.plan.targets.segment_gap_lengths).
+
+    Parameters
+    ----------
+    rows : list of str
+        One table line per segment [-].
+    ends : sequence of float
+        Course distance of each segment's end [m].
+    gaps : sequence of pacing.course.recording.Gap
+        The course's gaps (Course.gaps) [-].
+
+    Returns
+    -------
+    list of str
+        The rows, marked where a segment holds a joined gap [-].
+    """
+    if not gaps:
+        return rows
+    lengths = segment_gap_lengths(gaps, ends)
+    return [row + (f"  {GAP_MARK} joined gap {length / 1000:.1f} km" if length > 0 else "")
+            for row, length in zip(rows, lengths, strict=True)]
+
+
+GAP_MARK = "<-"
+"""Mark at the end of a table row whose segment holds a joined gap of the recording."""
 
 
 def run(args: argparse.Namespace) -> int:
@@ -398,17 +438,19 @@ def run(args: argparse.Namespace) -> int:
     result, segments = plan_from_args(args)
     plan = result.plan
     assert isinstance(plan, RacePlan)  # a cycling request makes a cycling plan
+    gaps = result.request.course.gaps
     if args.json:
-        output = (prediction_as_dict(plan.prediction, segments, target_power=args.power)
-                  if args.strategy is None else plan_as_dict(plan, segments))
+        output = (prediction_as_dict(plan.prediction, segments, target_power=args.power,
+                                     gaps=gaps)
+                  if args.strategy is None else plan_as_dict(plan, segments, gaps=gaps))
         output.update(limits_as_dict(result))
         output["notices"] = notices_as_json(result.notices)
         report_notices(result.notices, table=False)
         # whole or not at all: a value JSON cannot hold never leaves half a document
         sys.stdout.write(json.dumps(output, indent=2, allow_nan=False) + "\n")
         return 0
-    table = (prediction_as_table(plan.prediction, segments, target_power=args.power)
-             if args.strategy is None else plan_as_table(plan, segments))
+    table = (prediction_as_table(plan.prediction, segments, target_power=args.power, gaps=gaps)
+             if args.strategy is None else plan_as_table(plan, segments, gaps=gaps))
     print(table)
     for line in report_notices(result.notices, table=True):
         print(line)
@@ -496,7 +538,8 @@ def check_target_time_plan(plan: RacePlan, clock: str) -> None:
                          "give a longer time")
 
 
-def plan_as_dict(plan: RacePlan, segments: list[SegmentResult]) -> dict[str, Any]:
+def plan_as_dict(plan: RacePlan, segments: list[SegmentResult],
+                 gaps: Sequence[Gap] = ()) -> dict[str, Any]:
     """The JSON of the plain prediction plus the plan.
 
     Parameters
@@ -505,6 +548,8 @@ def plan_as_dict(plan: RacePlan, segments: list[SegmentResult]) -> dict[str, Any
         The plan with its verified prediction [-].
     segments : list of SegmentResult
         The prediction's segment summaries [-].
+    gaps : sequence of pacing.course.recording.Gap, optional
+        The course's gaps in the recording (Course.gaps), for each segment's gap_m [-].
 
     Returns
     -------
@@ -515,7 +560,7 @@ def plan_as_dict(plan: RacePlan, segments: list[SegmentResult]) -> dict[str, Any
         power_high_w (± the request's band), ridden_power_w [W] and w_prime_balance_j [J].
     """
     result = prediction_as_dict(plan.prediction, segments, target_power=plan.segment_power,
-                                band=plan.request.band)
+                                band=plan.request.band, gaps=gaps)
     result["strategy"] = plan.strategy
     result["time_saved_s"] = plan.time_saved
     result["reference_power_w"] = plan.reference_power
@@ -531,7 +576,8 @@ def plan_as_dict(plan: RacePlan, segments: list[SegmentResult]) -> dict[str, Any
     return result
 
 
-def plan_as_table(plan: RacePlan, segments: list[SegmentResult]) -> str:
+def plan_as_table(plan: RacePlan, segments: list[SegmentResult],
+                  gaps: Sequence[Gap] = ()) -> str:
     """The prediction table with the target power per segment and a summary of the plan.
 
     Parameters
@@ -540,6 +586,9 @@ def plan_as_table(plan: RacePlan, segments: list[SegmentResult]) -> str:
         The plan with its verified prediction [-].
     segments : list of SegmentResult
         The prediction's segment summaries [-].
+    gaps : sequence of pacing.course.recording.Gap, optional
+        The course's gaps in the recording (Course.gaps): rows holding a joined one are
+        marked [-].
 
     Returns
     -------
@@ -559,6 +608,7 @@ def plan_as_table(plan: RacePlan, segments: list[SegmentResult]) -> str:
         if plan.segment_w_prime_balance is not None:
             row += f" {plan.segment_w_prime_balance[index] / 1000:6.1f}"
         out.append(row)
+    out[1:] = gap_marked(out[1:], [s.end for s in segments], gaps)
     out.extend(footer[:1])
     out.append(f"band: ±{100 * plan.request.band:g} % around the target power")
     out.extend(footer[1:])

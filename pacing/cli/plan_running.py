@@ -12,6 +12,7 @@ import json
 import math
 import sys
 import warnings
+from collections.abc import Sequence
 from typing import TYPE_CHECKING, Any
 
 from pacing.athlete import Athlete
@@ -24,6 +25,7 @@ from pacing.cli.common import (
     warnings_as_text,
 )
 from pacing.cli.plan import RUNNING_STRATEGIES, add_plan_flags
+from pacing.cli.plan_cycling import gap_marked
 from pacing.display import units
 from pacing.display.notices import describe_all
 from pacing.errors import InputError
@@ -31,9 +33,11 @@ from pacing.physics.running import RUNNING_SPEED_RANGE, Runner
 from pacing.physiology.critical_speed import critical_speed_flat_race_time
 from pacing.plan.running import DOWNHILL_SPEED_RATIO_CAP
 from pacing.plan.running_plan import RunningPlan
+from pacing.plan.targets import segment_gap_lengths
 
 if TYPE_CHECKING:
     from pacing.course.geometry import Course
+    from pacing.course.recording import Gap
     from pacing.plan.race import RaceRequest, RaceResult
 
 SHARED_FLAGS = frozenset({"strategy", "cda", "drafting"})
@@ -315,7 +319,8 @@ def _optional(value: float | None) -> float | None:
     return None if value is None else float(value)
 
 
-def plan_as_dict(plan: RunningPlan, runner: Runner | None = None) -> dict[str, Any]:
+def plan_as_dict(plan: RunningPlan, runner: Runner | None = None,
+                 gaps: Sequence[Gap] = ()) -> dict[str, Any]:
     """JSON-ready numbers (SI units; paces in seconds per km).
 
     Besides the cycling keys (finish_time_s, distance_m, average_speed_mps, max_speed_mps,
@@ -324,7 +329,8 @@ def plan_as_dict(plan: RunningPlan, runner: Runner | None = None) -> dict[str, A
     (time_saved_against says so), with that pace, its finish time and its peak effort ratio;
     min_d_prime_balance_m and where (fastest, or with --critical-speed and --d-prime; else
     null); limited_even_pace_time_s, the fastest even pace within the same CS and D′ (fastest).
-    Per segment: pace_s_per_km, max_speed_mps, d_prime_balance_m (null without CS and D′).
+    Per segment: pace_s_per_km, max_speed_mps, d_prime_balance_m (null without CS and D′),
+    gap_m (length of the recording's gaps joined by a straight line that start in it).
 
     Parameters
     ----------
@@ -332,6 +338,8 @@ def plan_as_dict(plan: RunningPlan, runner: Runner | None = None) -> dict[str, A
         The plan [-].
     runner : pacing.physics.running.Runner or None, optional
         The runner, to add body_mass_kg [kg] and drag_area_m2 [m²] [-].
+    gaps : sequence of pacing.course.recording.Gap, optional
+        The course's gaps in the recording (Course.gaps), for each segment's gap_m [-].
 
     Returns
     -------
@@ -342,6 +350,7 @@ def plan_as_dict(plan: RunningPlan, runner: Runner | None = None) -> dict[str, A
     about_runner = {} if runner is None else {
         "body_mass_kg": runner.body_mass, "drag_area_m2": runner.drag_area}
     even_pace = None if plan.even_pace_speed is None else 1000.0 / plan.even_pace_speed
+    gap = segment_gap_lengths(gaps, [row.end for row in plan.segments])
     return {
         "sport": "running",
         "strategy": plan.strategy,
@@ -376,8 +385,9 @@ def plan_as_dict(plan: RunningPlan, runner: Runner | None = None) -> dict[str, A
                 "cumulative_time_s": row.cumulative_time,
                 "effort_ratio": row.effort_ratio,
                 "d_prime_balance_m": row.d_prime_balance,
+                "gap_m": float(gap[k]),
             }
-            for row in plan.segments
+            for k, row in enumerate(plan.segments)
         ],
     }
 
@@ -394,7 +404,8 @@ def _what_the_plan_holds(plan: RunningPlan) -> str:
             "(every piece at that effort, capped descents below it)")
 
 
-def plan_as_table(plan: RunningPlan, runner: Runner | None = None) -> str:
+def plan_as_table(plan: RunningPlan, runner: Runner | None = None,
+                  gaps: Sequence[Gap] = ()) -> str:
     """A readable target table.
 
     Parameters
@@ -403,13 +414,16 @@ def plan_as_table(plan: RunningPlan, runner: Runner | None = None) -> str:
         The plan [-].
     runner : pacing.physics.running.Runner or None, optional
         The runner, to name body mass [kg] and CdA [m²] in the title [-].
+    gaps : sequence of pacing.course.recording.Gap, optional
+        The course's gaps in the recording (Course.gaps): a segment holding a joined one
+        ends with a mark, "<- joined gap 12.7 km" [-].
 
     Returns
     -------
     str
         Km, grade [%], headwind [m/s], paces in min/km and min/mile, split and elapsed times,
         effort per segment as a share of the target [%], D′ balance at each segment's end
-        when known [m], and a finish line [-].
+        when known [m], marks on segments holding a joined gap, and a finish line [-].
     """
     about_runner = "" if runner is None else (
         f"   runner {runner.body_mass:g} kg, CdA {runner.drag_area:.2f} m²")
@@ -432,6 +446,7 @@ def plan_as_table(plan: RunningPlan, runner: Runner | None = None) -> str:
         if has_balance:
             line += f" {row.d_prime_balance:6.0f}"
         lines.append(line)
+    lines[3:] = gap_marked(lines[3:], [row.end for row in plan.segments], gaps)
     lines.append(
         f"finish {units.format_duration(plan.finish_time)} over {plan.distance / 1000:.2f} km "
         f"(mean {units.format_pace(1000.0 / plan.average_speed)} /km, max "
@@ -468,8 +483,9 @@ def run(args: argparse.Namespace) -> int:
     plan = result.plan
     assert isinstance(plan, RunningPlan)  # a running request makes a running plan
     runner = result.request.runner
+    gaps = result.request.course.gaps
     if args.json:
-        output = plan_as_dict(plan, runner)
+        output = plan_as_dict(plan, runner, gaps)
         output["d_prime_exhausted_at_m"] = result.exhausted_at
         output["warnings"] = warnings_as_text(result.notices)
         output["notices"] = notices_as_json(result.notices)
@@ -477,7 +493,7 @@ def run(args: argparse.Namespace) -> int:
         # whole or not at all: a value JSON cannot hold never leaves half a document
         sys.stdout.write(json.dumps(output, indent=2, allow_nan=False) + "\n")
         return 0
-    print(plan_as_table(plan, runner))
+    print(plan_as_table(plan, runner, gaps))
     for line in report_notices(result.notices, table=True):
         print(line)
     print(RUNNING_CAUTION)

@@ -218,7 +218,7 @@ def analyse_setups(race: RaceRequest, setups: Iterable[RiderSetup],
         comparison=comparison, uncertainty=uncertainty, sensitivities=sensitivities,
         finish_time_spreads=finish, difference_spreads=difference, break_evens=breaks,
         mixed=mixed_plan(comparison), samples=int(samples),
-        notices=(*setup_notices(comparison),
+        notices=(*race.course.notices, *setup_notices(comparison),
                  *clipped_draw_notices(comparison, uncertainty, samples)),
     )
 

@@ -6,7 +6,8 @@ attributes below, or dicts with the same keys), all in SI units:
 
     index, start, end, length [m], grade [-], target_power, power_low, power_high [W] or None,
     target_pace [s/km] or None, speed [m/s], time, cumulative_time [s],
-    w_prime_balance [J] or None, headwind [m/s], walking_distance [m] (optional)
+    w_prime_balance [J] or None, headwind [m/s], walking_distance [m] (optional),
+    gap_length [m] (optional: the recording's gaps joined by a straight line in the segment)
 
 `segment_table` turns them into the one table the app shows; CSV and XLSX write that same
 table, so the numbers in a file are the numbers on the screen. Units are converted only here
@@ -109,7 +110,8 @@ def segment_table(rows: Iterable[Any], system: str = "metric") -> pd.DataFrame:
     "To [km]", "Length [km]", "Grade [%]", "Target power [W]", "Power low [W]",
     "Power high [W]", "Target pace [min/km]", "Speed [km/h]", "Headwind [km/h]",
     "Split [h:mm:ss]", "Elapsed [h:mm:ss]", "W′ left [kJ]", "Walked [km]" (bike pushed on
-    foot). Power, pace, W′ and walking columns appear only when some segment has them.
+    foot), "Gap [km]" (a gap in the recording joined by a straight line). Power, pace, W′,
+    walking and gap columns appear only when some segment has them.
     Rounded for reading (distances 0.01, grade and speeds 0.1, power 1 W, W′ 0.1 kJ); a
     missing value is an empty cell, never NaN text.
 
@@ -171,7 +173,25 @@ def segment_table(rows: Iterable[Any], system: str = "metric") -> pd.DataFrame:
     if any(w > 0 for w in walked):
         table[f"Walked [{dist}]"] = [round(float(to_display(w, "distance", system)), 2) + 0.0
                                      for w in walked]
+    gaps = [_gap_length(row) for row in rows]
+    if any(g > 0 for g in gaps):
+        table[f"Gap [{dist}]"] = [round(float(to_display(g, "distance", system)), 2) + 0.0
+                                  for g in gaps]
     return pd.DataFrame(table)
+
+
+def _gap_length(row: Any) -> float:
+    """The row's joined gap length, 0 when it has none [m]."""
+    return _number(row, "gap_length") or 0.0
+
+
+def _gap_text(row: Any, system: str) -> str | None:
+    """"joined gap 12.7 km" (or mi) for a row holding a joined gap; None without one."""
+    length = _gap_length(row)
+    if length <= 0:
+        return None
+    return (f"joined gap {to_display(length, 'distance', system):.1f} "
+            f"{unit_label('distance', system)}")
 
 
 def table_to_csv(table: pd.DataFrame, notices: Sequence[str] = ()) -> bytes:
@@ -302,8 +322,9 @@ def segment_waypoints(rows: Iterable[Any], system: str = "metric",
     """One waypoint per segment start, with its target.
 
     Name: "S3 285 W" (or "S3 4:35 min/km"); description: where it starts, the target, the
-    expected speed, grade, split and elapsed time, in `system` units; then, on the segment
-    where they happen, the located warnings (e.g. where W′ runs out).
+    expected speed, grade, split and elapsed time, in `system` units, and the length of a
+    gap in the recording joined by a straight line ("joined gap 12.7 km"); then, on the
+    segment where they happen, the located warnings (e.g. where W′ runs out).
 
     Parameters
     ----------
@@ -340,6 +361,9 @@ def segment_waypoints(rows: Iterable[Any], system: str = "metric",
             f"split {format_duration(_required(row, 'time'))}, "
             f"elapsed {format_duration(_required(row, 'cumulative_time'))}"
         )
+        gap = _gap_text(row, system)
+        if gap is not None:
+            description += f", {gap}"
         points.append((start, f"S{number} {target}", description))
     for where, words in warnings:
         index = _segment_at(rows, where)
@@ -418,6 +442,7 @@ def _card_figure(rows: Sequence[Any], system: str, title: str,
     from matplotlib.backends.backend_agg import FigureCanvasAgg
     from matplotlib.figure import Figure
 
+    warnings = [*_card_gap_lines(rows, system), *warnings]
     width, height = card_size(len(rows), len(warnings))
     figure = Figure(figsize=(width, height))
     FigureCanvasAgg(figure)
@@ -461,6 +486,19 @@ def _card_figure(rows: Sequence[Any], system: str, title: str,
     return figure
 
 
+def _card_gap_lines(rows: Sequence[Any], system: str) -> list[str]:
+    """One card line per segment holding a joined gap: "segment 2 from 5.0 km: joined gap
+    12.7 km"."""
+    lines = []
+    for number, row in enumerate(rows, start=1):
+        gap = _gap_text(row, system)
+        if gap is not None:
+            start = to_display(_required(row, "start"), "distance", system)
+            lines.append(f"segment {number} from {start:.1f} {unit_label('distance', system)}: "
+                         f"{gap}")
+    return lines
+
+
 def _wrap(text: str, width_inches: float) -> str:
     """The text wrapped to about 15 characters per inch of width [in]."""
     import textwrap
@@ -470,10 +508,13 @@ def _wrap(text: str, width_inches: float) -> str:
 
 def target_card_png(rows: Iterable[Any], system: str = "metric", title: str = "race plan",
                     dpi: int = CARD_DPI, warnings: Sequence[str] = ()) -> bytes:
-    """The printable target card as PNG: card_size(len(rows), len(warnings)) inches at `dpi`.
+    """The printable target card as PNG: card_size(len(rows), len(warnings) + G) inches at
+    `dpi`, G the number of segments holding a joined gap.
 
-    Large type: segment start (km or mi), target power or pace, expected split; the plan's
-    warnings in words (e.g. where W′ runs out), then a caution line at the bottom.
+    Large type: segment start (km or mi), target power or pace, expected split; a line per
+    segment holding a gap in the recording joined by a straight line ("joined gap 12.7 km")
+    and the plan's warnings in words (e.g. where W′ runs out), then a caution line at the
+    bottom.
 
     Parameters
     ----------

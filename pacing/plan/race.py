@@ -10,7 +10,8 @@ The app, the command line, the setup comparison and the library's "work it out a
    (pacing.plan.running);
 3. the segment target rows (pacing.plan.targets.SegmentTarget);
 4. the notices: what the user must be told beside the numbers (pacing.notices), made here once
-   so the page, the terminal and every export say the same.
+   so the page, the terminal and every export say the same — the course's own first (gaps,
+   missing or constant elevations, what cleaning removed), then the plan's.
 
 Everything is SI; words and units are the edges' business (pacing.display).
 """
@@ -174,7 +175,8 @@ def plan_race_in_air(request: RaceRequest, air: CourseAir) -> RaceResult:
     strategy = strategy_for(request.sport, request.strategy)
     plan = strategy.make(request, air)
     targets = tuple(strategy.targets(request, plan))
-    notices = tuple(strategy.notices(request, plan))
+    # what reading the course found (gaps, elevations) comes first: the plan is made on it
+    notices = (*request.course.notices, *strategy.notices(request, plan))
     result = RaceResult(request=request, air=air, plan=plan, targets=targets, notices=notices)
     exhausted = exhausted_at(result)
     if exhausted is not None:

@@ -20,7 +20,7 @@ from pacing.plan.cycling import RacePlan, make_plan
 from pacing.plan.prediction import Prediction
 from pacing.plan.running import plan_equal_effort, plan_even_pace, plan_fastest
 from pacing.plan.running_plan import RunningPlan, running_targets
-from pacing.plan.targets import SegmentTarget, target_table
+from pacing.plan.targets import SegmentTarget, target_table, with_gap_lengths
 
 if TYPE_CHECKING:
     from pacing.plan.race import RaceRequest
@@ -144,7 +144,7 @@ def _make_fastest_run(request: RaceRequest, air: CourseAir) -> RunningPlan:
 
 
 def _running_targets(request: RaceRequest, plan: RunningPlan) -> list[SegmentTarget]:
-    return running_targets(plan)
+    return with_gap_lengths(running_targets(plan), request.course.gaps)
 
 
 def _running_notices(request: RaceRequest, plan: RunningPlan) -> tuple[Notice, ...]:

@@ -1,14 +1,17 @@
 """Segment target tables: what the athlete aims for on each segment, as numbers.
 
 One row per segment with the target power (and its band), the expected speed, the split and
-cumulative times, the W′ balance at its end and the headwind. Values are SI (m, s, m/s, W, J);
+cumulative times, the W′ balance at its end, the headwind and the length of any gap in the
+recording joined by a straight line inside it. Values are SI (m, s, m/s, W, J);
 pace is in seconds per kilometre because that is how every runner and coach reads it. Units and
 formatting are left to the edges (pacing.display.units, the CLI, exports, the app).
 """
 
 from __future__ import annotations
 
+import dataclasses
 import math
+from collections.abc import Iterable, Sequence
 from dataclasses import asdict, dataclass
 from typing import TYPE_CHECKING, cast
 
@@ -21,6 +24,7 @@ from pacing.plan.prediction import Prediction, SegmentResult, segment_results
 from pacing.weather.conditions import CourseAir
 
 if TYPE_CHECKING:
+    from pacing.course.recording import Gap
     from pacing.plan.cycling import RacePlan
 
 DEFAULT_BAND = 0.03
@@ -102,6 +106,9 @@ class SegmentTarget:
         data [m/s].
     walking_distance : float
         Length walked (bike pushed) or ridden below walking pace [m].
+    gap_length : float
+        Total length of the recording's gaps joined by a straight line that start in this
+        segment (pacing.course.recording.Gap); 0 when none [m].
     """
 
     index: int
@@ -119,6 +126,67 @@ class SegmentTarget:
     w_prime_balance: float | None
     headwind: float
     walking_distance: float = 0.0
+    gap_length: float = 0.0
+
+
+def segment_gap_lengths(gaps: Iterable[Gap], ends: Sequence[float]) -> np.ndarray:
+    """Total length of the joined gaps that start in each segment.
+
+    A gap belongs to the segment whose [start, end) holds the course distance where it starts
+    (`Gap.at`); one starting at or past the last end belongs to the last segment. A joined gap
+    is a straight line the course follows where the recording has no points, so a segment may
+    be longer than the part of it that was ridden; a dropped gap adds no distance and is not
+    counted.
+
+    Parameters
+    ----------
+    gaps : iterable of pacing.course.recording.Gap
+        The course's gaps (Course.gaps), each with `at` [m], `length` [m] and `handling` [-].
+    ends : sequence of float
+        Course distance of each segment's end, increasing, one per segment [m].
+
+    Returns
+    -------
+    numpy.ndarray
+        Joined gap length per segment, zeros where none [m].
+
+    Examples
+    --------
+    >>> from pacing.course.recording import Gap
+    >>> segment_gap_lengths([Gap(750, 7_500.0, 12_700.0, None)], [5e3, 1e4, 2e4]).tolist()
+    [0.0, 12700.0, 0.0]
+    """
+    limits = np.asarray(ends, dtype=float)
+    total = np.zeros(limits.size)
+    if limits.size == 0:
+        return total
+    for gap in gaps:
+        if gap.handling != "join":
+            continue
+        index = min(int(np.searchsorted(limits, gap.at, side="right")), limits.size - 1)
+        total[index] += gap.length
+    return total
+
+
+def with_gap_lengths(rows: Sequence[SegmentTarget], gaps: Iterable[Gap]
+                     ) -> list[SegmentTarget]:
+    """The rows with their `gap_length` filled from a course's gaps (segment_gap_lengths).
+
+    Parameters
+    ----------
+    rows : sequence of SegmentTarget
+        The target table, in course order [-].
+    gaps : iterable of pacing.course.recording.Gap
+        The course's gaps (Course.gaps) [-].
+
+    Returns
+    -------
+    list of SegmentTarget
+        The same rows, `gap_length` set [-].
+    """
+    lengths = segment_gap_lengths(gaps, [row.end for row in rows])
+    return [dataclasses.replace(row, gap_length=float(length))
+            for row, length in zip(rows, lengths, strict=True)]
 
 
 def _optional(values: ArrayLike | None, count: int, name: str) -> np.ndarray | None:
@@ -183,7 +251,8 @@ def target_table(
     Returns
     -------
     list of SegmentTarget
-        One row per segment, in course order [-].
+        One row per segment, in course order, with the length of the course's joined gaps
+        that start in it (segment_gap_lengths) [-].
 
     Raises
     ------
@@ -211,7 +280,8 @@ def target_table(
     headwind = _segment_headwind(
         course, bounds, air.headwind if air is not None else getattr(prediction, "headwind",
                                                                      None), count)
-    return _rows(results, power, balance, headwind, band, pace)
+    rows = _rows(results, power, balance, headwind, band, pace)
+    return with_gap_lengths(rows, course.gaps) if course.gaps else rows
 
 
 def _rows(results: list[SegmentResult], power: np.ndarray | None, balance: np.ndarray | None,
@@ -258,6 +328,7 @@ RECORD_KEYS = {
     "w_prime_balance": "w_prime_balance_j",
     "headwind": "headwind_m_s",
     "walking_distance": "walking_distance_m",
+    "gap_length": "gap_length_m",
 }
 """Field of SegmentTarget → key in exported records (SI units in the key's suffix)."""
 

@@ -160,7 +160,8 @@ def run_app_case(sport, path, athlete, weather, approach) -> dict:
     # in the record (the recording predates them; their own tests check them)
     result["notes"] = pipeline.notes_in(
         pipeline.with_replaced(outcome, notices=tuple(
-            n for n in outcome.notices if n.code not in ADDED_AFTER_RECORDING)), "metric")
+            n for n in outcome.notices
+            if n.code not in ADDED_AFTER_RECORDING and n not in course.notices)), "metric")
     for name in ("speed", "power", "headwind", "w_prime_balance"):
         result[name] = _fingerprint(getattr(outcome, name))
     return result
