@@ -151,3 +151,75 @@ def noisy_flat(sigma: float = 3.0, length: float = 5_000.0, seed: int = 7) -> st
     leg = Leg(45.0, 7.0, 60.0, length)
     noise = np.random.default_rng(seed).normal(0.0, sigma, int(length // 10.0) + 1)
     return gpx([("Noisy", [leg_points(leg, START, 8.0, lambda s: 150.0 + noise[:s.size])])])
+
+
+def _timed_rows(lat: Sequence[float], lon: Sequence[float], speed: float | None,
+                spacing: float) -> list[str]:
+    """<trkpt> strings a point every `spacing` metres at `speed` [m/s] (None: no times),
+    rising 0.5 % from 120 m."""
+    return [trkpt(lat[k], lon[k], 120.0 + 0.005 * spacing * k,
+                  None if speed is None else START + timedelta(seconds=k * spacing / speed))
+            for k in range(len(lat))]
+
+
+def spiky_road(spikes: Sequence[tuple[float, float, int]] = ((700.0, 60.0, 1),
+                                                            (1_800.0, 40.0, 1),
+                                                            (2_400.0, 80.0, 2)),
+               spacing: float = 5.0, speed: float | None = 5.0
+               ) -> tuple[str, float, float]:
+    """A 3 km road (1.5 km heading 30°, then 1.5 km heading 120°) with a point every
+    `spacing` metres, where each spike (at [m], offset [m], points) moves that many points
+    starting at that distance `offset` metres to the left of the road (a multipath fault).
+
+    Returns the GPX text, the clean road's length and the spiky track's length, both summed
+    over the points' geodesic pieces by geographiclib [m]."""
+    first = Leg(45.0, 7.0, 30.0, 1_500.0, spacing)
+    second = Leg(*first.end(), 120.0, 1_500.0, spacing)
+    lat1, lon1, _ = first.points()
+    lat2, lon2, _ = second.points()
+    lat = np.r_[lat1, lat2[1:]]
+    lon = np.r_[lon1, lon2[1:]]
+    heading = np.r_[np.full(lat1.size, 30.0), np.full(lat2.size - 1, 120.0)]
+    clean = _track_length(lat, lon)
+    for at, offset, count in spikes:
+        for k in range(int(round(at / spacing)), int(round(at / spacing)) + count):
+            lat[k], lon[k] = moved(lat[k], lon[k], heading[k] - 90.0, offset)
+    rows = _timed_rows(lat.tolist(), lon.tolist(), speed, spacing)
+    return gpx([("Spiky", [rows])]), clean, _track_length(lat, lon)
+
+
+def out_and_back(length: float = 1_000.0, spacing: float = 5.0, lane: float = 0.0,
+                 speed: float | None = 5.0) -> tuple[str, float]:
+    """Out `length` metres north and back south a point every `spacing` metres, the way back
+    `lane` metres east of the way out (0: the same line, a 180° turn on the spot; a few
+    metres: a hairpin). Returns the GPX text and the track's length (geographiclib) [m]."""
+    out = Leg(45.0, 7.0, 0.0, length, spacing)
+    back = Leg(*moved(*out.end(), 90.0, lane), 180.0, length, spacing)
+    lat_out, lon_out, _ = out.points()
+    lat_back, lon_back, _ = back.points()
+    lat = np.r_[lat_out, lat_back[1:] if lane == 0.0 else lat_back]
+    lon = np.r_[lon_out, lon_back[1:] if lane == 0.0 else lon_back]
+    rows = _timed_rows(lat.tolist(), lon.tolist(), speed, spacing)
+    return gpx([("Out and back", [rows])]), _track_length(lat, lon)
+
+
+def _track_length(lat: np.ndarray, lon: np.ndarray) -> float:
+    """Sum of the geodesic pieces between consecutive points (geographiclib) [m]."""
+    return float(sum(GEODESIC.Inverse(lat[k], lon[k], lat[k + 1], lon[k + 1])["s12"]
+                     for k in range(lat.size - 1)))
+
+
+def drawn_spur(spur: float = 150.0) -> tuple[str, float]:
+    """A route drawn without times: 1 km north as ten straight 100 m pieces, a dead end
+    `spur` metres east drawn as one point and back to the junction, then 1 km east a point
+    every 5 m. Returns the GPX text and the route's length (geographiclib) [m]."""
+    straight = Leg(45.0, 7.0, 0.0, 1_000.0, 100.0)
+    lat1, lon1, _ = straight.points()
+    junction = straight.end()
+    end_lat, end_lon = moved(*junction, 90.0, spur)
+    dense = Leg(*junction, 90.0, 1_000.0, 5.0)
+    lat2, lon2, _ = dense.points()
+    lat = np.r_[lat1, end_lat, lat2]
+    lon = np.r_[lon1, end_lon, lon2]
+    rows = _timed_rows(lat.tolist(), lon.tolist(), None, 5.0)
+    return gpx([("Drawn", [rows])]), _track_length(lat, lon)

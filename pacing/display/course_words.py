@@ -40,6 +40,11 @@ def _height(metres: Any, system: str) -> str:
     return format_quantity(_number(metres), "elevation", system, 0)
 
 
+def _short(metres: Any, system: str) -> str:
+    """A short length along the course in m or ft (read like a height: metres, not km)."""
+    return format_quantity(_number(metres), "elevation", system, 0)
+
+
 def _percent(share: Any) -> str:
     number = _number(share)
     return "–" if number is None or number != number or abs(number) == float("inf") \
@@ -68,6 +73,13 @@ def _gap_dropped(values: Values, system: str) -> str:
             f"{_distance(values['length_m'], system)} with no points{_lasting(values)}; "
             "left out of the course (its distance and the climbing across it are not "
             "counted)")
+
+
+def _spikes_removed(values: Values, system: str) -> str:
+    count = _count(values['count'])
+    return (f"{count} point{'' if count == '1' else 's'} jumping off the road and back "
+            f"(recording spikes) left out: {_short(values['distance_m'], system)} of false "
+            "distance removed")
 
 
 def _elevation_missing(values: Values, system: str) -> str:
@@ -109,6 +121,7 @@ def _steep_grade_kept(values: Values, system: str) -> str:
 WORDS: dict[str, Callable[[Values, str], str]] = {
     "course-gap-joined": _gap_joined,
     "course-gap-dropped": _gap_dropped,
+    "course-spikes-removed": _spikes_removed,
     "elevation-missing": _elevation_missing,
     "elevation-constant": _elevation_constant,
     "elevation-points-missing": _elevation_points_missing,
