@@ -7,12 +7,9 @@ from __future__ import annotations
 import dataclasses
 
 import pytest
+from samples import six_km_hill as hill_course
 from scipy import optimize
-from test_compare_setups import (
-    HILL_BOUNDS,
-    hill_course,
-    race_on,
-)
+from test_compare_setups import HILL_BOUNDS, race_on
 
 from pacing.compare.break_even import break_even
 from pacing.compare.setups import RiderSetup, compare_setups

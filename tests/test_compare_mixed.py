@@ -8,11 +8,8 @@ import dataclasses
 
 import numpy as np
 import pytest
-from test_compare_setups import (
-    HILL_BOUNDS,
-    hill_course,
-    race_on,
-)
+from samples import six_km_hill as hill_course
+from test_compare_setups import HILL_BOUNDS, race_on
 
 from pacing.compare.mixed import mix_candidates, mixed_plan
 from pacing.compare.setups import RiderSetup, compare_setups

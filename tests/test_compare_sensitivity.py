@@ -13,6 +13,9 @@ from dataclasses import replace
 
 import numpy as np
 import pytest
+from samples import flat_course as flat_road
+from samples import martin_steady_speed as steady_speed
+from samples import six_km_hill
 from scipy import optimize
 
 from pacing.compare.sensitivity import (
@@ -228,33 +231,6 @@ def test_an_uncertainty_must_be_finite_and_not_negative(field):
 
 
 # ------------------------------------------------- moved from tests/test_compare_setups.py
-
-def flat_road(length: float = 10_000.0, step: float = 10.0):
-    """A flat road heading north, pieces of `step` m."""
-    distance = np.arange(0.0, length + step / 2, step)
-    return synthetic_course(distance, np.zeros_like(distance), heading=0.0)
-
-
-def six_km_hill(step: float = 10.0):
-    """6 km heading east: 2 km flat, 2 km at 5 %, 2 km down at 4 %, pieces of `step` m."""
-    distance = np.arange(0.0, 6000.0 + step / 2, step)
-    elevation = np.interp(distance, [0, 2000, 4000, 6000], [100, 100, 200, 120])
-    return synthetic_course(distance, elevation, heading=90.0)
-
-
-def steady_speed(power, drag_area, mass, density, rolling=MARTIN_1998["rolling_coefficient"]):
-    """Independent steady speed on flat ground in still air: scipy brentq on
-    η·P = v·(½ρ(CdA + F_w)v² + Crr·m·g + a + b·v) (Martin et al. 1998, constants of its
-    Table; docs/references.md, "Cycling power balance (Martin et al. 1998)")."""
-    m = MARTIN_1998
-
-    def balance(v):
-        return v * (0.5 * density * (drag_area + m["wheel_drag_area"]) * v**2
-                    + rolling * mass * STANDARD_GRAVITY + m["bearing_force_constant"]
-                    + m["bearing_force_per_speed"] * v) - m["drivetrain_efficiency"] * power
-
-    return optimize.brentq(balance, 0.5, 40.0, xtol=1e-14)
-
 
 def test_cda_sensitivity_matches_the_derivative_of_the_steady_cubic():
     """Flat, windless course at constant power, started at the steady speed.

@@ -10,13 +10,13 @@ import numpy as np
 import pytest
 from hypothesis import given, settings
 from hypothesis import strategies as st
-from scipy import optimize
+from samples import flat_course
+from samples import martin_steady_speed as steady_speed
+from samples import six_km_hill as hill_course
 
 from pacing.compare.setups import MAX_SETUPS, RiderSetup, compare_setups, from_athlete, setup_race
-from pacing.constants import STANDARD_GRAVITY
-from pacing.course.geometry import synthetic_course
 from pacing.errors import InputError
-from pacing.physics.cycling import MARTIN_1998, Rider
+from pacing.physics.cycling import Rider
 from pacing.plan.prediction import SimulationOptions
 from pacing.plan.race import RaceRequest, plan_race_in_air
 from pacing.plan.request import PlanRequest
@@ -33,33 +33,7 @@ def race_on(course, bounds, request: PlanRequest = CONSTANT_250, conditions=None
                        rider=Rider(), cycling=request, options=options or SimulationOptions())
 
 
-def flat_course(length: float = 10_000.0, step: float = 10.0):
-    distance = np.arange(0.0, length + step / 2, step)
-    return synthetic_course(distance, np.zeros_like(distance), heading=0.0)
-
-
-def hill_course(step: float = 10.0):
-    """6 km heading east: 2 km flat, 2 km at 5 %, 2 km down at 4 %, pieces of `step` m."""
-    distance = np.arange(0.0, 6000.0 + step / 2, step)
-    elevation = np.interp(distance, [0, 2000, 4000, 6000], [100, 100, 200, 120])
-    return synthetic_course(distance, elevation, heading=90.0)
-
-
 HILL_BOUNDS = np.array([0, 200, 400, 600])
-
-
-def steady_speed(power, drag_area, mass, density, rolling=MARTIN_1998["rolling_coefficient"]):
-    """Independent steady speed on flat ground in still air: scipy brentq on
-    η·P = v·(½ρ(CdA + F_w)v² + Crr·m·g + a + b·v) (Martin et al. 1998, constants of its
-    Table; docs/references.md, "Cycling power balance (Martin et al. 1998)")."""
-    m = MARTIN_1998
-
-    def balance(v):
-        return v * (0.5 * density * (drag_area + m["wheel_drag_area"]) * v**2
-                    + rolling * mass * STANDARD_GRAVITY + m["bearing_force_constant"]
-                    + m["bearing_force_per_speed"] * v) - m["drivetrain_efficiency"] * power
-
-    return optimize.brentq(balance, 0.5, 40.0, xtol=1e-14)
 
 
 # ------------------------------------------------------------------------ side by side

@@ -15,6 +15,9 @@ import numpy as np
 import pytest
 from hypothesis import example, given, settings
 from hypothesis import strategies as st
+from samples import atkinson_hills as hilly
+from samples import atkinson_winds as windy
+from samples import random_hills_and_winds as random_course
 
 from pacing.course.geometry import synthetic_course
 from pacing.errors import InputError
@@ -26,36 +29,11 @@ from pacing.plan.prediction import Prediction, SimulationOptions, segment_result
 from pacing.plan.request import PlanRequest
 from pacing.plan.simulate import simulate
 from pacing.plan.steady_model import segment_model
-from pacing.weather.conditions import CourseAir, still_air
+from pacing.weather.conditions import still_air
 
 RIDER = Rider(mass=80.0, drag_area=0.269)
 MEAN = 289.0
 FLYING = SimulationOptions(start_speed=10.0)
-
-
-@lru_cache
-def hilly():
-    """Atkinson et al. 2007 course (i): 10 km of alternating 1 km at +10 % and −10 %
-    (grades as in the abstract [read])."""
-    distance = np.arange(0.0, 10000.0 + 5.0, 10.0)
-    section = np.minimum(distance // 1000, 9)
-    into = distance - 1000.0 * section
-    elevation = np.where(section % 2 == 0, 0.1 * into, 100.0 - 0.1 * into)
-    course = synthetic_course(distance, elevation)
-    return course, np.arange(0, distance.size, 100), still_air(course, 1.2)
-
-
-@lru_cache
-def windy():
-    """Atkinson et al. 2007 course (ii): 40 km flat, alternating 5 km into a 4.4 m/s headwind
-    and with a 4.4 m/s tailwind (abstract [read])."""
-    distance = np.arange(0.0, 40000.0 + 5.0, 10.0)
-    course = synthetic_course(distance, np.zeros_like(distance))
-    middle = 0.5 * (distance[:-1] + distance[1:])
-    headwind = np.where((middle // 5000) % 2 == 0, 4.4, -4.4)
-    pieces = distance.size - 1
-    air = CourseAir(np.full(pieces, 1.2), headwind, np.zeros(pieces))
-    return course, np.arange(0, distance.size, 500), air
 
 
 # ------------------------------------------------------------- Atkinson, Peacock & Passfield 2007
@@ -138,19 +116,6 @@ def test_a_plan_holds_its_verified_ride_and_its_constant_reference():
     assert plan.steady_time < plan.steady_reference_time
     assert plan.w_prime_balance is None and plan.min_w_prime_balance is None
     assert plan.solver.method == "lagrange" and plan.solver.correction_rounds == 0
-
-
-@lru_cache
-def random_course(seed: int):
-    rng = np.random.default_rng(seed)
-    distance = np.arange(0.0, 6000.0 + 5.0, 20.0)
-    section = np.minimum((distance[:-1] // 500).astype(int), 11)
-    grade = rng.uniform(-0.08, 0.10, 12)[section]
-    course = synthetic_course(distance, np.r_[0.0, np.cumsum(grade * 20.0)])
-    pieces = distance.size - 1
-    air = CourseAir(np.full(pieces, 1.15), rng.uniform(-5.0, 5.0, 12)[section],
-                    rng.uniform(-3.0, 3.0, 12)[section])
-    return course, np.arange(0, distance.size, 25), air
 
 
 # ------------------------------------------------------------- limits on the verified ride

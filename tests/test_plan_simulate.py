@@ -10,12 +10,12 @@ prediction and segment summaries are specified in tests/test_plan_prediction.py.
 from __future__ import annotations
 
 import math
-from types import SimpleNamespace
 
 import numpy as np
 import pytest
 from hypothesis import given, settings
 from hypothesis import strategies as st
+from samples import hilly_course, still, windy_air
 from scipy.integrate import solve_ivp
 
 from pacing.course.geometry import synthetic_course
@@ -29,31 +29,6 @@ from pacing.plan.prediction import (
 from pacing.plan.simulate import simulate
 
 G = 9.80665
-
-
-def still(course, density=1.2, headwind=0.0, crosswind=0.0):
-    """A CourseAir-like object: the same air on every piece."""
-    pieces = course.distance.size - 1
-    return SimpleNamespace(density=np.full(pieces, density),
-                           headwind=np.full(pieces, float(headwind)),
-                           crosswind=np.full(pieces, float(crosswind)))
-
-
-def hilly_course(length=5000.0, step=10.0):
-    """Rolling hills up to ±10 %, a heading that turns, for whole-course checks."""
-    distance = np.arange(0.0, length + step / 2, step)
-    middle = distance[:-1] + step / 2
-    grade = 0.08 * np.sin(middle / 600.0) + 0.02 * np.sin(middle / 97.0)
-    elevation = np.concatenate([[0.0], np.cumsum(grade * step)])
-    heading = (middle / 20.0) % 360.0
-    return synthetic_course(distance, elevation, heading)
-
-
-def windy_air(course, speed=3.0, wind_from=200.0):
-    relative = np.radians(wind_from - course.heading)
-    return SimpleNamespace(density=np.full(course.heading.size, 1.15),
-                           headwind=speed * np.cos(relative),
-                           crosswind=speed * np.sin(relative))
 
 
 def reference_ivp(course, power, rider, air, start_speed):
