@@ -15,13 +15,13 @@ import numpy as np
 import pytest
 from geographiclib.geodesic import Geodesic
 
+from pacing.course.recording import Recording
 from pacing.display.notices import describe
 from pacing.errors import InputError
 from pacing.io import gpx as gpx_module
 from pacing.io.gpx import (
     DEFAULT_DEMO_ROUTE,
     DEMO_ROUTES_DIR,
-    Track,
     demo_route_paths,
     load_course,
     read_track,
@@ -56,7 +56,7 @@ def test_read_track_from_path_bytes_and_file_objects(tmp_path):
     for source in (path, str(path), text.encode(), io.BytesIO(text.encode()),
                    io.StringIO(text), text):
         track = read_track(source)
-        assert isinstance(track, Track)
+        assert isinstance(track, Recording)
         assert track.name == "Test track"
         np.testing.assert_allclose(track.latitude, [p[0] for p in NORTHWARD])
         np.testing.assert_allclose(track.elevation, [p[2] for p in NORTHWARD])

@@ -132,6 +132,8 @@ class Recording:
         [s since 1970-01-01 UTC].
     parts : tuple of RecordingPart
         The segments of the tracks (or the routes), in file order, covering all M points.
+    name : str
+        The track's (or route's, or file's) name; "" when the file names none [-].
     """
 
     latitude: np.ndarray
@@ -139,6 +141,7 @@ class Recording:
     elevation: np.ndarray | None
     time: np.ndarray | None
     parts: tuple[RecordingPart, ...]
+    name: str = ""
 
 
 @dataclass(frozen=True)

@@ -24,7 +24,6 @@ import os
 import re
 import stat
 from collections.abc import Iterable, Sequence
-from dataclasses import dataclass
 from datetime import UTC, datetime
 from pathlib import Path
 from typing import Any
@@ -56,48 +55,6 @@ DEMO_ROUTES_DIR = Path(__file__).resolve().parents[2] / "demo_routes"
 
 DEFAULT_DEMO_ROUTE = DEMO_ROUTES_DIR / "01_corravey_hill_loop_40k.gpx"
 """The demo course the app opens on: a hilly 40 km time-trial loop."""
-
-
-@dataclass(frozen=True, eq=False)
-class Track:
-    """The raw points of a GPX file, in order along the course.
-
-    Attributes
-    ----------
-    latitude : numpy.ndarray
-        WGS84 latitude of each point, length M [deg].
-    longitude : numpy.ndarray
-        WGS84 longitude of each point, length M [deg].
-    elevation : numpy.ndarray or None
-        Elevation of each point, NaN where a point has none; None when no point of the file
-        has an elevation [m].
-    name : str
-        The track's (or route's, or file's) name; "" when the file names none [-].
-    time : numpy.ndarray or None
-        Time of each point, NaN where a point has none; None when no point has one
-        [s since 1970-01-01 UTC].
-    parts : tuple of pacing.course.recording.RecordingPart
-        The segments of each track (or the routes) as slices of the points, in file order.
-    """
-
-    latitude: np.ndarray
-    longitude: np.ndarray
-    elevation: np.ndarray | None
-    name: str = ""
-    time: np.ndarray | None = None
-    parts: tuple[RecordingPart, ...] = ()
-
-    def recording(self) -> Recording:
-        """The points as a pacing.course.recording.Recording (one part when none is known).
-
-        Returns
-        -------
-        pacing.course.recording.Recording
-            Positions [deg], elevations [m], times [s] and parts.
-        """
-        parts = self.parts or (RecordingPart(0, 0, self.name, 0, self.latitude.size),)
-        return Recording(latitude=self.latitude, longitude=self.longitude,
-                         elevation=self.elevation, time=self.time, parts=parts)
 
 
 def _shown(path: Path) -> str:
@@ -368,7 +325,7 @@ def _parsed(data: bytes) -> tuple[str, gpxpy.gpx.GPX]:
         raise InputError(f"not a valid GPX file: {message}") from None
 
 
-def read_track(source: str | os.PathLike | bytes | bytearray | memoryview | Any) -> Track:
+def read_track(source: str | os.PathLike | bytes | bytearray | memoryview | Any) -> Recording:
     """Read the points of a GPX file.
 
     Raises InputError: empty file, not a regular file, not XML or not GPX, DTD or entities,
@@ -383,7 +340,7 @@ def read_track(source: str | os.PathLike | bytes | bytearray | memoryview | Any)
 
     Returns
     -------
-    Track
+    pacing.course.recording.Recording
         The points of all tracks and track segments in order (or, without any, of all routes),
         validated for range (latitude -90..90 [deg], longitude -180..180 [deg]), with their
         times [s] and the parts they belong to.
@@ -421,9 +378,10 @@ def read_track(source: str | os.PathLike | bytes | bytearray | memoryview | Any)
     if len(points) >= 2:
         latitude, longitude, elevation = validate_track(latitude, longitude, elevation)
     lines = (name or document.name or fallback or "").strip().splitlines()
-    return Track(latitude=latitude, longitude=longitude, elevation=elevation,
-                 name=lines[0] if lines else "",
-                 time=times if np.isfinite(times).any() else None, parts=tuple(parts))
+    return Recording(latitude=latitude, longitude=longitude, elevation=elevation,
+                     time=times if np.isfinite(times).any() else None,
+                     parts=tuple(parts) or (RecordingPart(0, 0, "", 0, latitude.size),),
+                     name=lines[0] if lines else "")
 
 
 def load_course(source: str | os.PathLike | bytes | bytearray | memoryview | Any,
@@ -464,8 +422,7 @@ def load_course(source: str | os.PathLike | bytes | bytearray | memoryview | Any
         The course resampled every `step` metres, with its notices (warnings and notes as
         data), the file's tracks and the gaps found.
     """
-    track = read_track(source)
-    recording = track.recording()
+    recording = read_track(source)
     notices = []
     if recording.elevation is None:
         if not allow_missing_elevation:
@@ -473,9 +430,9 @@ def load_course(source: str | os.PathLike | bytes | bytearray | memoryview | Any
                              "'A file without heights is a flat course' (app) to treat it "
                              "as flat")
         notices.append(warning("elevation-missing"))
-        recording = dataclasses.replace(recording, elevation=np.zeros_like(track.latitude))
+        recording = dataclasses.replace(recording, elevation=np.zeros_like(recording.latitude))
     course = course_from_recording(recording, step=DEFAULT_STEP if step is None else step,
-                                   smoothing=smoothing, name=name or track.name or "course",
+                                   smoothing=smoothing, name=name or recording.name or "course",
                                    tracks=tracks, gaps=gaps)
     if course.total_distance < MINIMUM_COURSE_LENGTH:
         raise InputError(f"the course is only {course.total_distance:.1f} m long; a course "
