@@ -22,7 +22,6 @@ import codecs
 import dataclasses
 import os
 import re
-import stat
 from collections.abc import Iterable, Sequence
 from datetime import UTC, datetime
 from pathlib import Path
@@ -37,6 +36,7 @@ from pacing.course.elevation import ElevationSmoothing
 from pacing.course.geometry import DEFAULT_STEP, Course, validate_track
 from pacing.course.recording import Recording, RecordingPart, course_from_recording
 from pacing.errors import InputError, first_line
+from pacing.io.files import read_bounded
 from pacing.io.safe_xml import local_name, walk_xml
 from pacing.notices import warning
 
@@ -57,62 +57,12 @@ DEFAULT_DEMO_ROUTE = DEMO_ROUTES_DIR / "01_corravey_hill_loop_40k.gpx"
 """The demo course the app opens on: a hilly 40 km time-trial loop."""
 
 
-def _shown(path: Path) -> str:
-    """A path fit for a one-line message (no line breaks, at most 200 characters)."""
-    text = " ".join(str(path).split())
-    return text if len(text) <= 200 else text[:197] + "..."
-
-
 def _read_bytes(source: Any) -> tuple[bytes, str]:
-    """The file's bytes and a fallback name, from a path, bytes or a file-like object."""
-    if isinstance(source, bytes | bytearray | memoryview):
-        data = bytes(source)
-        fallback = ""
-    elif isinstance(source, str) and source.lstrip().startswith("<"):
-        data = source.encode("utf-8")  # GPX text given as a string
-        fallback = ""
-    elif isinstance(source, str | os.PathLike):
-        path = Path(source)
-        data = _read_regular_file(path)
-        fallback = path.stem
-    elif hasattr(source, "read"):
-        data = source.read(MAX_GPX_BYTES + 1)
-        if isinstance(data, str):
-            data = data.encode("utf-8")
-        fallback = Path(str(getattr(source, "name", ""))).stem if hasattr(source, "name") else ""
-    else:
-        raise InputError(f"cannot read a GPX course from {type(source).__name__}")
-    if len(data) > MAX_GPX_BYTES:
-        raise InputError(f"GPX file is too large (limit {MAX_GPX_BYTES // 2**20} MiB)")
-    return data, fallback
-
-
-def _read_regular_file(path: Path) -> bytes:
-    """The bytes of a regular file of at most MAX_GPX_BYTES, refused before reading otherwise.
-
-    A device (/dev/zero), a FIFO or a socket is refused by its type, without opening it (a
-    FIFO would wait for a writer); a folder likewise. The size is checked again while
-    reading (a file that grows is cut at MAX_GPX_BYTES + 1 and refused).
-    """
-    try:
-        status = path.stat()
-    except FileNotFoundError:
-        raise InputError(f"GPX file not found: {_shown(path)}") from None
-    except OSError as error:
-        raise InputError(f"cannot read {_shown(path)}: {error.strerror}") from None
-    if stat.S_ISDIR(status.st_mode):
-        raise InputError(f"{_shown(path)} is a folder, not a GPX file")
-    if not stat.S_ISREG(status.st_mode):
-        raise InputError(f"{_shown(path)} is not a regular file (a device, pipe or socket); "
-                         "give a GPX file")
-    if status.st_size > MAX_GPX_BYTES:
-        raise InputError(f"GPX file is too large: {status.st_size / 2**20:.0f} MiB "
-                         f"(limit {MAX_GPX_BYTES // 2**20} MiB)")
-    try:
-        with open(path, "rb") as file:
-            return file.read(MAX_GPX_BYTES + 1)
-    except OSError as error:
-        raise InputError(f"cannot read {_shown(path)}: {error.strerror}") from None
+    """The file's bytes and a fallback name (pacing.io.files.read_bounded); GPX text given
+    as a str is taken as it is."""
+    if isinstance(source, str) and source.lstrip().startswith("<"):
+        source = source.encode("utf-8")
+    return read_bounded(source, "GPX file", MAX_GPX_BYTES)
 
 
 _BYTE_ORDER_MARKS = (

@@ -66,6 +66,7 @@ import pandas as pd
 
 from pacing.errors import InputError, first_line
 from pacing.fieldtest.ride import MIN_SAMPLES, Ride, local_position, make_ride
+from pacing.io.files import read_bounded
 from pacing.io.safe_xml import local_name, parse_xml
 from pacing.notices import Notice, note
 
@@ -94,32 +95,8 @@ REQUIRED = ("time", "speed", "power")
 
 
 def _read_bytes(source: Any) -> tuple[bytes, str]:
-    """The file's bytes and a name, from a path, bytes or a file-like object."""
-    if isinstance(source, bytes | bytearray | memoryview):
-        return bytes(source), ""
-    if isinstance(source, str | os.PathLike):
-        path = Path(source)
-        if not path.exists():
-            raise InputError(f"ride file not found: {path}")
-        if path.is_dir():
-            raise InputError(f"{path} is a folder, not a ride file")
-        if not path.is_file():
-            # a FIFO would block the read and a device such as /dev/zero never end it
-            raise InputError(f"{path} is not a regular file (a pipe or a device?)")
-        if path.stat().st_size > MAX_RIDE_BYTES:
-            raise InputError(f"ride file is too large (limit {MAX_RIDE_BYTES // 2**20} MiB)")
-        try:
-            return path.read_bytes(), path.stem
-        except OSError as error:
-            raise InputError(f"cannot read {path}: {error.strerror}") from None
-    if hasattr(source, "read"):
-        data = source.read(MAX_RIDE_BYTES + 1)
-        if isinstance(data, str):
-            data = data.encode("utf-8")
-        if len(data) > MAX_RIDE_BYTES:
-            raise InputError(f"ride file is too large (limit {MAX_RIDE_BYTES // 2**20} MiB)")
-        return data, Path(str(getattr(source, "name", ""))).stem
-    raise InputError(f"cannot read a ride from {type(source).__name__}")
+    """The file's bytes and a name (pacing.io.files.read_bounded)."""
+    return read_bounded(source, "ride file", MAX_RIDE_BYTES)
 
 
 def _looks_like_xml(data: bytes) -> bool:
