@@ -137,11 +137,6 @@ def _plain(value):
     return str(value)
 
 
-ADDED_AFTER_RECORDING = {"w-prime-exhausted", "d-prime-exhausted", "walking",
-                         "target-time-unchecked"}
-"""Notice codes the page shows since the planning chain made warnings data (not recorded)."""
-
-
 def run_app_case(sport, path, athlete, weather, approach) -> dict:
     """What the page shows for one case, as plain numbers (through the page's own calls)."""
     from pathlib import Path
@@ -156,12 +151,10 @@ def run_app_case(sport, path, athlete, weather, approach) -> dict:
     keep = ("finish_time", "average_speed", "max_speed", "average_power", "time_saved",
             "rows", "exhausted_at")
     result = {name: _plain(getattr(outcome, name)) for name in keep}
-    # the notes of the recording, in words; notices the planning chain added later are not
-    # in the record (the recording predates them; their own tests check them)
+    # the results section's notices in words (the course's own are shown with the course)
     result["notes"] = pipeline.notes_in(
         pipeline.with_replaced(outcome, notices=tuple(
-            n for n in outcome.notices
-            if n.code not in ADDED_AFTER_RECORDING and n not in course.notices)), "metric")
+            n for n in outcome.notices if n not in course.notices)), "metric")
     for name in ("speed", "power", "headwind", "w_prime_balance"):
         result[name] = _fingerprint(getattr(outcome, name))
     return result
