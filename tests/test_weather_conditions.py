@@ -215,3 +215,17 @@ def test_the_documented_hottest_start_is_accepted_on_a_course_that_descends():
     course = synthetic_course(distance, 100.0 - 0.05 * distance, heading=0.0)
     air = air_along_course(course, Conditions(temperature=60.0))
     assert np.all(np.isfinite(air.density)) and air.density.size == distance.size - 1
+
+
+def test_density_along_elevations_is_the_one_the_course_air_uses():
+    # CIPM-2007 at 20 °C, 50 % RH, 101325 Pa: 1.19931 kg/m³ (docs/references.md, "Air" [calc])
+    from pacing.weather.conditions import density_along
+
+    flat = density_along(np.zeros(3), 0.0, Conditions())
+    assert flat == pytest.approx(1.19931, abs=5e-6)
+    distance = np.arange(0.0, 2001.0, 10.0)
+    course = synthetic_course(distance, 300.0 + 0.04 * distance, heading=0.0)
+    day = Conditions(temperature=12.0, relative_humidity=0.7)
+    elevation = 0.5 * (course.elevation[1:] + course.elevation[:-1])
+    np.testing.assert_array_equal(density_along(elevation, 300.0, day),
+                                  air_along_course(course, day).density)

@@ -24,11 +24,9 @@ from numpy.typing import ArrayLike
 
 from pacing.errors import InputError
 from pacing.notices import Notice, note, warning
-from pacing.physics.air import AIR_DENSITY_MODELS, DEFAULT_AIR_DENSITY_MODEL
-from pacing.physics.atmosphere import standard_pressure, temperature_at_elevation
-from pacing.physics.inputs import TEMPERATURE_RANGE
+from pacing.physics.air import DEFAULT_AIR_DENSITY_MODEL
 from pacing.physics.wind import wind_components
-from pacing.weather.conditions import Conditions, CourseAir
+from pacing.weather.conditions import Conditions, CourseAir, density_along
 
 STOP_SPEED = 1.0
 """Samples slower than this are a stop and are dropped [m/s]."""
@@ -580,15 +578,11 @@ def ride_air(ride: Ride, conditions: Conditions,
     Picard, A., Davis, R.S., Gläser, M. & Fujii, K. (2008). Revised formula for the density of
     moist air (CIPM-2007). Metrologia 45:149-155. doi:10.1088/0026-1394/45/2/004
     """
-    model = AIR_DENSITY_MODELS.resolve(density_model)
     if ride.elevation is None:
         elevation = np.zeros(ride.time.size - 1)
     else:
         elevation = 0.5 * (ride.elevation[1:] + ride.elevation[:-1])
-    pressure = standard_pressure(elevation, conditions.sea_level_pressure)
-    temperature = np.clip(temperature_at_elevation(elevation, conditions.temperature,
-                                                   float(elevation[0])), *TEMPERATURE_RANGE)
-    density = np.asarray(model(temperature, pressure, conditions.relative_humidity), dtype=float)
+    density = density_along(elevation, float(elevation[0]), conditions, density_model)
     headwind, crosswind = ride_wind(ride, conditions.wind_at_rider, conditions.wind_from)
     return CourseAir(density=density, headwind=np.asarray(headwind, dtype=float),
                      crosswind=np.asarray(crosswind, dtype=float))

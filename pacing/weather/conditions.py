@@ -214,6 +214,43 @@ def piece_elevation(course: Course) -> np.ndarray:
     return 0.5 * (elevation[:-1] + elevation[1:])
 
 
+def density_along(elevation: np.ndarray, start_elevation: float, conditions: Conditions,
+                  density_model: str = DEFAULT_AIR_DENSITY_MODEL) -> np.ndarray:
+    """Air density at elevations along a course or a ride, from the day's conditions.
+
+    Pressure by the ICAO standard atmosphere from the sea-level pressure; temperature given at
+    `start_elevation` and following the standard lapse rate elsewhere, kept within
+    TEMPERATURE_RANGE (the user's own temperature is checked strictly by Conditions: a start
+    at the documented bound, 60 °C, must not be refused for 60.0003 °C a few metres lower);
+    humid-air density by the chosen model.
+
+    Parameters
+    ----------
+    elevation : numpy.ndarray
+        Elevation of each piece [m].
+    start_elevation : float
+        Where the conditions' temperature is given [m].
+    conditions : Conditions
+        The day's air.
+    density_model : str
+        Key of pacing.physics.air.AIR_DENSITY_MODELS.
+
+    Returns
+    -------
+    numpy.ndarray
+        Density of each piece [kg/m³].
+
+    References
+    ----------
+    ICAO (1993), Doc 7488/3; Picard et al. (2008), Metrologia 45:149-155.
+    """
+    model = AIR_DENSITY_MODELS.resolve(density_model)
+    pressure = standard_pressure(elevation, conditions.sea_level_pressure)
+    temperature = np.clip(temperature_at_elevation(elevation, conditions.temperature,
+                                                   start_elevation), *TEMPERATURE_RANGE)
+    return np.asarray(model(temperature, pressure, conditions.relative_humidity), dtype=float)
+
+
 def air_along_course(course: Course, conditions: Conditions,
                      density_model: str = DEFAULT_AIR_DENSITY_MODEL) -> CourseAir:
     """Air density and wind components on every piece of a course.
@@ -236,8 +273,8 @@ def air_along_course(course: Course, conditions: Conditions,
     Raises
     ------
     pacing.errors.InputError
-        Where the air is out of the models' range (e.g. a point above the troposphere, or the
-        lapse rate taking the temperature below -60 °C), or for an unknown density model.
+        Where the air is out of the models' range (e.g. a point above the troposphere), or for
+        an unknown density model.
 
     References
     ----------
@@ -255,14 +292,8 @@ def air_along_course(course: Course, conditions: Conditions,
     >>> air.density.round(5).tolist(), air.headwind.round(3).tolist()
     ([1.19931, 1.19931], [3.018, 3.018])
     """
-    model = AIR_DENSITY_MODELS.resolve(density_model)
-    elevation = piece_elevation(course)
-    pressure = standard_pressure(elevation, conditions.sea_level_pressure)
-    # the lapse rate warms pieces below the start: a start at the documented bound (60 °C)
-    # must not be refused for 60.0003 °C further down, so the model's values stay in range
-    temperature = np.clip(temperature_at_elevation(
-        elevation, conditions.temperature, float(course.elevation[0])), *TEMPERATURE_RANGE)
-    density = model(temperature, pressure, conditions.relative_humidity)
+    density = density_along(piece_elevation(course), float(course.elevation[0]), conditions,
+                            density_model)
     headwind, crosswind = wind_components(
         np.asarray(course.heading, dtype=float), conditions.wind_from, conditions.wind_at_rider
     )
