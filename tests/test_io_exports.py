@@ -351,3 +351,12 @@ def test_the_card_grows_to_print_its_warnings():
     warned = Image.open(io.BytesIO(target_card_png(rows, dpi=50, warnings=SAID[:1])))
     assert warned.size[0] == plain.size[0]
     assert warned.size[1] == pytest.approx(plain.size[1] + 0.45 * 50, abs=1)
+
+
+def test_the_gpx_export_describes_the_plan_s_warnings_and_notes():
+    # the same lines as the CSV's comment lines and the XLSX's sheet, in <metadata><desc>
+    course = synthetic_course(np.arange(0.0, 20001.0, 10.0), np.zeros(2001), heading=0.0)
+    text = course_with_targets_gpx(course, make_rows(count=3), notices=SAID)
+    description = gpxpy.parse(text).description
+    assert description.splitlines() == SAID
+    assert gpxpy.parse(course_with_targets_gpx(course, make_rows(count=3))).description is None

@@ -349,7 +349,7 @@ def downloads(outcome, course, table, system: str, title: str) -> None:
     cols[2].download_button(
         "Route with targets · GPX",
         functools.partial(exports.course_with_targets_gpx, course, outcome.rows, system,
-                          exports.located_warnings(outcome.notices, system)),
+                          exports.located_warnings(outcome.notices, system), said),
         file_name=f"{base}-targets.gpx", mime="application/gpx+xml", key="dl_gpx",
         on_click="ignore")
     cols[3].download_button(

@@ -373,7 +373,8 @@ def segment_waypoints(rows: Iterable[Any], system: str = "metric",
 
 
 def course_with_targets_gpx(course: Any, rows: Iterable[Any], system: str = "metric",
-                            warnings: Sequence[tuple[float, str]] = ()) -> str:
+                            warnings: Sequence[tuple[float, str]] = (),
+                            notices: Sequence[str] = ()) -> str:
     """The course as a GPX 1.1 track with a waypoint at each segment start carrying its target.
 
     Uses pacing.io.gpx.write_gpx(course, waypoints) (the project's GPX writer).
@@ -388,6 +389,9 @@ def course_with_targets_gpx(course: Any, rows: Iterable[Any], system: str = "met
         The unit system of the waypoints' words [-].
     warnings : sequence of (float, str), optional
         Located warnings (`located_warnings`), told on the waypoint of their segment [m, -].
+    notices : sequence of str, optional
+        The plan's warnings and notes in words ("warning: …"), one per line of the document's
+        description (as the CSV's comment lines and the XLSX's sheet) [-].
 
     Returns
     -------
@@ -399,7 +403,8 @@ def course_with_targets_gpx(course: Any, rows: Iterable[Any], system: str = "met
     InputError
         When there are no rows, or a row lacks start, end, time or cumulative time.
     """
-    return write_gpx(course, segment_waypoints(rows, system, warnings))
+    return write_gpx(course, segment_waypoints(rows, system, warnings),
+                     "\n".join(notices) or None)
 
 
 CARD_WARNING_HEIGHT = 0.45

@@ -424,7 +424,8 @@ def position_at(course: Course, distance: ArrayLike) -> tuple[np.ndarray, np.nda
 
 
 def write_gpx(course: Course,
-              waypoints: Iterable[tuple[float, str, str | None]] | None = None) -> str:
+              waypoints: Iterable[tuple[float, str, str | None]] | None = None,
+              description: str | None = None) -> str:
     """The course as GPX 1.1 text: one track of its points (cleaned elevation) and waypoints.
 
     Parameters
@@ -434,6 +435,8 @@ def write_gpx(course: Course,
     waypoints : iterable of (float, str, str or None), optional
         (distance from the start [m], name, description) of each waypoint, placed on the
         course at that distance.
+    description : str, optional
+        The document's description (GPX 1.1 <metadata><desc>), e.g. the plan's warnings.
 
     Returns
     -------
@@ -442,6 +445,8 @@ def write_gpx(course: Course,
     """
     document = gpxpy.gpx.GPX()
     document.creator = "pacing"
+    if description:
+        document.description = description
     track = gpxpy.gpx.GPXTrack(name=course.name)
     segment = gpxpy.gpx.GPXTrackSegment()
     for lat, lon, ele in zip(course.latitude, course.longitude, course.elevation, strict=True):
