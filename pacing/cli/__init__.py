@@ -3,6 +3,10 @@
 Each command lives in its own module with ``add_parser(subparsers)``; the module's ``run(args)``
 returns the exit code. Bad input gives one line on stderr and exit code 2, never a traceback;
 warnings are printed as one line each.
+
+Only the command asked for is imported: `main` builds that command's parser in full and the
+others as their one-line entries of ``pacing --help`` (COMMANDS), so ``pacing plan …`` never
+imports the field test, the comparison or the store.
 """
 
 from __future__ import annotations
@@ -11,12 +15,23 @@ import argparse
 import os
 import sys
 import warnings
+from collections.abc import Collection
 from typing import NoReturn, TextIO
 
 from pacing import __version__
 from pacing.errors import InputError, first_line
 
-COMMAND_MODULES = ("course", "plan", "compare", "fieldtest", "library")
+COMMANDS = {
+    "course": "summarise a GPX course: distance, ascent, high and low points, segments",
+    "plan": "predict finish time and segment targets for a power or pace plan",
+    "compare": "compare setups (positions, equipment) on a course",
+    "fieldtest": "measure CdA and Crr from test rides with a power meter",
+    "library": "list, show, export or import the stored athletes, setups, courses and plans",
+}
+"""Each command (the module pacing.cli.<command>) and its line in ``pacing --help``."""
+
+COMMAND_MODULES = tuple(COMMANDS)
+"""The commands, in the order ``pacing --help`` lists them."""
 
 
 class OneLineParser(argparse.ArgumentParser):
@@ -33,13 +48,20 @@ class OneLineParser(argparse.ArgumentParser):
         self.exit(2, f"{self.prog}: error: {message} (see {self.prog} --help)\n")
 
 
-def build_parser() -> argparse.ArgumentParser:
+def build_parser(commands: Collection[str] = COMMAND_MODULES) -> argparse.ArgumentParser:
     """The parser of ``pacing``: --version and one subcommand per module of COMMAND_MODULES.
+
+    Parameters
+    ----------
+    commands : collection of str, optional
+        The commands to build in full, their modules imported (default: all); the others get
+        only their entry in ``pacing --help`` [-].
 
     Returns
     -------
     argparse.ArgumentParser
-        A OneLineParser; each subcommand sets ``run`` to its module's run function [-].
+        A OneLineParser; each subcommand built in full sets ``run`` to its module's run
+        function [-].
     """
     import importlib
 
@@ -51,6 +73,9 @@ def build_parser() -> argparse.ArgumentParser:
     subparsers = parser.add_subparsers(dest="command", required=True, metavar="COMMAND",
                                        parser_class=OneLineParser)
     for name in COMMAND_MODULES:
+        if name not in commands:
+            subparsers.add_parser(name, help=COMMANDS[name])
+            continue
         try:
             module = importlib.import_module(f"pacing.cli.{name}")
         except ModuleNotFoundError as error:
@@ -59,6 +84,31 @@ def build_parser() -> argparse.ArgumentParser:
             raise
         module.add_parser(subparsers)
     return parser
+
+
+def command_asked(argv: list[str]) -> str | None:
+    """The command the arguments name, as argparse will read them; None when there is none.
+
+    ``pacing`` itself takes only flags without values (-h, --version), so the command is the
+    first argument that is not a flag, or the one after "--".
+
+    Parameters
+    ----------
+    argv : list of str
+        The arguments after the program's name [-].
+
+    Returns
+    -------
+    str or None
+        A key of COMMANDS, or None (no command, or one argparse will refuse) [-].
+    """
+    for index, argument in enumerate(argv):
+        if argument == "--":
+            following = argv[index + 1:index + 2]
+            return following[0] if following and following[0] in COMMANDS else None
+        if not argument.startswith("-"):
+            return argument if argument in COMMANDS else None
+    return None
 
 
 def _one_line_warning(message: Warning | str, category: type[Warning], filename: str,
@@ -84,8 +134,10 @@ def main(argv: list[str] | None = None) -> int:
     int
         Exit code: 0 done, 2 bad input, 1 broken pipe, 130 interrupted [-].
     """
-    parser = build_parser()
-    args = parser.parse_args(argv)
+    arguments = sys.argv[1:] if argv is None else argv
+    command = command_asked(arguments)
+    parser = build_parser(() if command is None else (command,))
+    args = parser.parse_args(arguments)
     with warnings.catch_warnings():
         warnings.simplefilter("default")
         warnings.showwarning = _one_line_warning

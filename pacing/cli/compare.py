@@ -27,6 +27,7 @@ from typing import TYPE_CHECKING, Any
 
 import numpy as np
 
+from pacing.cli import COMMANDS
 from pacing.cli.common import (
     CAUTION,
     add_air_flags,
@@ -64,7 +65,7 @@ def add_parser(subparsers: argparse._SubParsersAction) -> None:
     """
     parser = subparsers.add_parser(
         "compare",
-        help="compare setups (positions, equipment) on a course",
+        help=COMMANDS["compare"],
         description="Ride several setups with the same pacing strategy on a GPX course and "
                     "show the time each gains or loses, break-even figures, sensitivities "
                     "and their uncertainty. Differences are setup minus baseline: positive "

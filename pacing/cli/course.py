@@ -11,6 +11,7 @@ from typing import Any
 
 import numpy as np
 
+from pacing.cli import COMMANDS
 from pacing.cli.common import add_course_flags, notices_as_json
 from pacing.course.geometry import Course
 from pacing.course.segments import describe_segments, split_by_grade, split_every
@@ -26,7 +27,7 @@ def add_parser(subparsers: argparse._SubParsersAction) -> None:
     """
     parser = subparsers.add_parser(
         "course",
-        help="summarise a GPX course: distance, ascent, high and low points, segments",
+        help=COMMANDS["course"],
         description="Summarise a GPX course: distance, ascent (cleaned and raw), descent, "
                     "highest and lowest point, its segments, the tracks of the file and the "
                     "gaps in the recording.",

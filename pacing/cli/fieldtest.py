@@ -23,6 +23,7 @@ from typing import TYPE_CHECKING, Any
 
 import numpy as np
 
+from pacing.cli import COMMANDS
 from pacing.cli.common import add_air_flags, notices_as_json, require
 from pacing.display.notices import describe, describe_all, labelled
 from pacing.errors import InputError
@@ -64,7 +65,7 @@ def add_parser(subparsers: argparse._SubParsersAction) -> None:
     """
     parser = subparsers.add_parser(
         "fieldtest",
-        help="measure CdA and Crr from test rides with a power meter",
+        help=COMMANDS["fieldtest"],
         description="Estimate drag area (CdA) and rolling resistance (Crr) from test rides\n"
                     "(CSV or GPX with time, speed and power). Several files are several\n"
                     "riding positions: one CdA each, one shared Crr.",

@@ -21,6 +21,7 @@ from collections.abc import Callable
 from pathlib import Path
 from typing import TYPE_CHECKING, Any
 
+from pacing.cli import COMMANDS
 from pacing.errors import ConflictError, InputError
 
 if TYPE_CHECKING:  # the store (SQLAlchemy) is imported only when a library command runs
@@ -41,7 +42,7 @@ def add_parser(subparsers: argparse._SubParsersAction) -> None:
     """
     parser = subparsers.add_parser(
         "library",
-        help="list, show, export or import the stored athletes, setups, courses and plans",
+        help=COMMANDS["library"],
         description="The coach's library of athletes, setups, courses and saved plans.",
     )
     parser.add_argument("--database", metavar="URL_OR_PATH", default=None,

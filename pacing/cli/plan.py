@@ -8,6 +8,7 @@ from __future__ import annotations
 
 import argparse
 
+from pacing.cli import COMMANDS
 from pacing.cli.common import add_air_flags, add_course_flags, add_rider_flags, add_simulation_flags
 from pacing.plan.strategies import STRATEGIES
 
@@ -28,7 +29,7 @@ def add_parser(subparsers: argparse._SubParsersAction) -> None:
     """
     parser = subparsers.add_parser(
         "plan",
-        help="predict finish time and segment targets for a power or pace plan",
+        help=COMMANDS["plan"],
         description="Predict finish time and segment targets on a GPX course.",
     )
     add_plan_flags(parser)

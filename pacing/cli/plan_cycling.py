@@ -35,13 +35,13 @@ from pacing.cli.common import (
 from pacing.display import units
 from pacing.errors import InputError
 from pacing.physics.cycling import Rider
-from pacing.plan.cycling import RacePlan
 from pacing.plan.prediction import Prediction, SegmentResult, SimulationOptions, segment_results
 from pacing.plan.strategies import walking_distance
 from pacing.plan.targets import DEFAULT_BAND, power_band, segment_gap_lengths
 
 if TYPE_CHECKING:
     from pacing.course.recording import Gap
+    from pacing.plan.cycling import RacePlan
     from pacing.plan.race import RaceRequest, RaceResult
     from pacing.plan.request import PlanRequest
 
@@ -206,6 +206,7 @@ def plan_from_args(args: argparse.Namespace) -> tuple[RaceResult, list[SegmentRe
         When the flags or the course cannot be used, or a target time needs more than
         HUMAN_POWER_CEILING [W].
     """
+    from pacing.plan.cycling import RacePlan
     from pacing.plan.race import plan_race
 
     result = plan_race(race_request_from_args(args))
@@ -312,6 +313,8 @@ def limits_as_dict(result: RaceResult) -> dict[str, Any]:
         w_prime_exhausted_at_m, where the balance first falls below zero (null when it never
         does) [m]; warnings, the text of the warning-level notices in metric words [-].
     """
+    from pacing.plan.cycling import RacePlan  # imported when the plan was made
+
     plan = result.plan
     assert isinstance(plan, RacePlan)  # a cycling result holds a cycling plan
     return {"min_w_prime_balance_j": plan.min_w_prime_balance,
@@ -433,6 +436,7 @@ def run(args: argparse.Namespace) -> int:
         When the flags, the course or the plan cannot be used.
     """
     from pacing.cli.plan_running import warn_flags_of_other_sport
+    from pacing.plan.cycling import RacePlan
 
     warn_flags_of_other_sport(args, "cycling")
     result, segments = plan_from_args(args)

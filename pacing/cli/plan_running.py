@@ -3,6 +3,9 @@
 The effort is a flat-ground pace in still air (``--flat-pace M:SS`` per km), or critical speed
 and D′ (``--critical-speed``, ``--d-prime``). Strategies: equal-effort (default), even-pace,
 fastest (needs critical speed and D′). Prints a table in min/km and min/mile, or JSON.
+
+The running modules are imported by the functions that use them: ``pacing plan`` for cycling
+reads this module's flag checks (`warn_flags_of_other_sport`) without loading them.
 """
 
 from __future__ import annotations
@@ -15,7 +18,6 @@ import warnings
 from collections.abc import Sequence
 from typing import TYPE_CHECKING, Any
 
-from pacing.athlete import Athlete
 from pacing.cli.common import (
     RUNNING_CAUTION,
     conditions_from_args,
@@ -29,16 +31,15 @@ from pacing.cli.plan_cycling import gap_marked
 from pacing.display import units
 from pacing.display.notices import describe_all
 from pacing.errors import InputError
-from pacing.physics.running import RUNNING_SPEED_RANGE, Runner
-from pacing.physiology.critical_speed import critical_speed_flat_race_time
-from pacing.plan.running import DOWNHILL_SPEED_RATIO_CAP
-from pacing.plan.running_plan import RunningPlan
+from pacing.physics.running import RUNNING_SPEED_RANGE
 from pacing.plan.targets import segment_gap_lengths
 
 if TYPE_CHECKING:
     from pacing.course.geometry import Course
     from pacing.course.recording import Gap
+    from pacing.physics.running import Runner
     from pacing.plan.race import RaceRequest, RaceResult
+    from pacing.plan.running_plan import RunningPlan
 
 SHARED_FLAGS = frozenset({"strategy", "cda", "drafting"})
 """Destinations of the cycling and rider groups' flags that running uses too."""
@@ -124,6 +125,8 @@ def downhill_cap_from_args(args: argparse.Namespace) -> float | None:
     InputError
         When the text is not a number 1-3, "none" or "off".
     """
+    from pacing.plan.running import DOWNHILL_SPEED_RATIO_CAP
+
     text = getattr(args, "downhill_cap", None)
     if text is None:
         return DOWNHILL_SPEED_RATIO_CAP
@@ -185,6 +188,9 @@ def runner_from_args(args: argparse.Namespace) -> Runner:
     InputError
         When both --height and --cda are given, or a value is out of range.
     """
+    from pacing.athlete import Athlete
+    from pacing.physics.running import Runner
+
     defaults = Athlete()
     body_mass = defaults.body_mass if args.body_mass is None else args.body_mass
     if args.height is not None and args.cda is not None:
@@ -270,6 +276,8 @@ def _flat_speed(args: argparse.Namespace, strategy: str, course: Course,
                 has_critical: bool) -> float | None:
     """The flat-ground speed of --flat-pace, or the pace that spends D′ exactly over the
     course's distance on flat ground (CS model) [m/s]; None for the fastest plan."""
+    from pacing.physiology.critical_speed import critical_speed_flat_race_time
+
     if strategy == "fastest":
         if not has_critical:
             raise InputError("--strategy fastest needs --critical-speed and --d-prime")
@@ -479,6 +487,8 @@ def run(args: argparse.Namespace) -> int:
     InputError
         When the flags, the course or the plan cannot be used.
     """
+    from pacing.plan.running_plan import RunningPlan
+
     result = make_plan(args)
     plan = result.plan
     assert isinstance(plan, RunningPlan)  # a running request makes a running plan

@@ -2,7 +2,7 @@
 window, the grade limit, filling points without a height, the absurd-jump check, ascent, and
 what the cleaning changed (as notices).
 
-The profile is smoothed with a positive, symmetric kernel from scipy.signal.windows (the ends
+The profile is smoothed with a positive, symmetric kernel (Gaussian or flat, numpy; the ends
 padded by odd reflection, so start and finish heights and a linear profile are kept and the
 ascent never grows), then re-integrated with every grade clipped to the limit.
 pacing.course.geometry builds courses with these.
@@ -249,24 +249,49 @@ def cleaning_notices(distance: np.ndarray, raw: np.ndarray, smoothed: np.ndarray
     return notices
 
 
-# scipy.signal is imported inside the functions that use it: it takes a second or more to
-# import, and code that only needs Course or synthetic_course should not pay for it.
+# The kernels and the convolution are a few lines of numpy: scipy.signal takes half a second to
+# import (with scipy.stats), too much for one window on the command line's path.
+
+def gaussian_window(length: int, deviation: float) -> np.ndarray:
+    """Symmetric Gaussian window: w[n] = exp(−½·(n/σ)²) for n = −(M−1)/2 … (M−1)/2.
+
+    The same numbers as scipy.signal.windows.gaussian(M, σ) (sym=True), computed the same way
+    (exp of −n²/(2σ²)), so they agree to round-off.
+
+    Parameters
+    ----------
+    length : int
+        Number of points M, ≥ 0; M ≤ 1 gives ones [-].
+    deviation : float
+        Standard deviation σ, in points, > 0 [-].
+
+    Returns
+    -------
+    numpy.ndarray
+        The M weights, 1 at the centre when M is odd [-].
+
+    Examples
+    --------
+    >>> gaussian_window(3, 1.0).round(6).tolist()
+    [0.606531, 1.0, 0.606531]
+    """
+    if length <= 1:
+        return np.ones(length)
+    index = np.arange(0, length, dtype=float) - (length - 1.0) / 2.0
+    return np.exp(-index ** 2 / (2 * deviation * deviation))
+
 
 def _gaussian_kernel(window: float, step: float) -> np.ndarray:
-    from scipy import signal
-
     deviation = window / 4.0 / step
     if deviation < 0.5:
         return np.ones(1)
     half = int(math.ceil(3.0 * deviation))
-    return signal.windows.gaussian(2 * half + 1, deviation)
+    return gaussian_window(2 * half + 1, deviation)
 
 
 def _moving_average_kernel(window: float, step: float) -> np.ndarray:
-    from scipy import signal
-
     half = int(round(window / step / 2.0))
-    return signal.windows.boxcar(2 * half + 1)
+    return np.ones(2 * half + 1)
 
 
 SMOOTHING_METHODS = {
@@ -281,8 +306,8 @@ def smooth_elevation(elevation: ArrayLike, step: float,
                      smoothing: ElevationSmoothing = ElevationSmoothing()) -> np.ndarray:
     """Elevation smoothed over a distance window [m] (no grade limit).
 
-    z_s[i] = Σ_j w_j·z[i+j] / Σ_j w_j with positive, symmetric weights w from
-    scipy.signal.windows. Beyond the ends the profile is continued by odd reflection about the
+    z_s[i] = Σ_j w_j·z[i+j] / Σ_j w_j with positive, symmetric weights w (gaussian_window, or
+    a flat window). Beyond the ends the profile is continued by odd reflection about the
     end point, z[-k] = 2·z[0] − z[k] (and likewise at the finish), so that
 
     - a linear profile a + b·s is returned unchanged (a symmetric kernel averages a straight
@@ -344,13 +369,52 @@ ASCENT_TOLERANCE = 1e-9
 def _convolve_padded(elevation: np.ndarray, kernel: np.ndarray, half: int,
                      padding: str) -> np.ndarray:
     """Convolve with `kernel` after padding `half` points each side ("odd" or "edge")."""
-    from scipy import signal
-
     if padding == "odd":
         padded = np.pad(elevation, half, mode="reflect", reflect_type="odd")
     else:
         padded = np.pad(elevation, half, mode="edge")
-    return signal.convolve(padded, kernel, mode="valid", method="auto")
+    return convolve_valid(padded, kernel)
+
+
+def convolve_valid(signal: np.ndarray, kernel: np.ndarray) -> np.ndarray:
+    """The "valid" part of the convolution of `signal` with a shorter `kernel`.
+
+    Directly (numpy.convolve) or through the FFT, whichever the operation counts say is
+    cheaper, with the constants scipy.signal.choose_conv_method uses for one dimension; where
+    it goes direct the result is scipy.signal.convolve(…, mode="valid")'s to the bit, through
+    the FFT to round-off.
+
+    Parameters
+    ----------
+    signal : numpy.ndarray
+        The padded profile, length N [m].
+    kernel : numpy.ndarray
+        The weights, length K ≤ N [-].
+
+    Returns
+    -------
+    numpy.ndarray
+        Length N − K + 1: Σ_j kernel[j]·signal[i + K − 1 − j] [m].
+
+    Examples
+    --------
+    >>> convolve_valid(np.array([1.0, 2.0, 3.0, 4.0]), np.array([0.5, 0.5])).tolist()
+    [1.5, 2.5, 3.5]
+    """
+    size, width = signal.size, kernel.size
+    full = size + width - 1
+    direct_operations = (size - width + 1) * width
+    fft_operations = 3 * full * math.log(full)
+    if _FFT_COST * fft_operations >= _DIRECT_COST * direct_operations + _COST_OFFSET:
+        return np.convolve(signal, kernel, mode="valid")
+    spectrum = np.fft.rfft(signal, full) * np.fft.rfft(kernel, full)
+    return np.fft.irfft(spectrum, full)[width - 1:size]
+
+
+_FFT_COST, _DIRECT_COST, _COST_OFFSET = 1.89095737e-9, 2.1364985e-10, -1e-3
+"""Seconds per operation of an FFT convolution and of a direct one, and an offset [s]: the
+constants scipy.signal.choose_conv_method weighs for a one-dimensional "valid" convolution
+(scipy 1.17), so that convolve_valid chooses as scipy.signal.convolve(method="auto") did."""
 
 
 def sustained_steep_pieces(distance: np.ndarray, elevation: np.ndarray, max_grade: float,

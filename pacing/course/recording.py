@@ -213,6 +213,33 @@ class Gap:
                 "handling": self.handling}
 
 
+def middle_value(values: np.ndarray) -> float:
+    """The median of finite values: numpy.median's number, without its import of numpy.ma
+    (about 15 ms at every start of the command line, for one median of the spacing).
+
+    Parameters
+    ----------
+    values : numpy.ndarray
+        At least one finite number [any unit].
+
+    Returns
+    -------
+    float
+        The middle value, or for an even count the mean of the two middle ones, computed as
+        numpy.median does: (a + b) / 2 [the unit of `values`].
+
+    Examples
+    --------
+    >>> middle_value(np.array([3.0, 1.0, 2.0])), middle_value(np.array([4.0, 1.0, 3.0, 2.0]))
+    (2.0, 2.5)
+    """
+    half = values.size // 2
+    if values.size % 2:
+        return float(np.partition(values, half)[half])
+    ordered = np.partition(values, (half - 1, half))
+    return float((ordered[half - 1] + ordered[half]) / 2.0)
+
+
 def gap_length_bound(length: np.ndarray) -> float:
     """Longest piece that is not a gap by its length: max(GAP_MIN_LENGTH, GAP_SPACING_FACTOR
     × median spacing) [m].
@@ -237,7 +264,7 @@ def gap_length_bound(length: np.ndarray) -> float:
     moving = length[length > REPEATED_POINT_DISTANCE]
     if moving.size < 2:
         return math.inf
-    return max(GAP_MIN_LENGTH, GAP_SPACING_FACTOR * float(np.median(moving)))
+    return max(GAP_MIN_LENGTH, GAP_SPACING_FACTOR * middle_value(moving))
 
 
 def find_gaps(length: np.ndarray, time: np.ndarray | None = None) -> np.ndarray:
@@ -298,7 +325,7 @@ def _spacing(latitude: np.ndarray, longitude: np.ndarray,
     moving = length > REPEATED_POINT_DISTANCE
     if np.count_nonzero(moving) < 2:
         return None
-    leg_bound = max(SPIKE_MIN_LEG, SPIKE_SPACING_FACTOR * float(np.median(length[moving])))
+    leg_bound = max(SPIKE_MIN_LEG, SPIKE_SPACING_FACTOR * middle_value(length[moving]))
     gap = np.zeros(length.size, dtype=bool)
     gap[find_gaps(length, time)] = True
     elapsed, speed_bound = None, math.inf
@@ -306,7 +333,7 @@ def _spacing(latitude: np.ndarray, longitude: np.ndarray,
         elapsed = np.diff(time)
         timed = moving & np.isfinite(elapsed) & (elapsed > 0.0)
         if timed.any():
-            speed_bound = SPIKE_SPEED_FACTOR * float(np.median(length[timed] / elapsed[timed]))
+            speed_bound = SPIKE_SPEED_FACTOR * middle_value(length[timed] / elapsed[timed])
     return _Spacing(length, elapsed, leg_bound, speed_bound, gap)
 
 

@@ -30,7 +30,6 @@ from collections.abc import Callable
 from dataclasses import dataclass
 
 import numpy as np
-from scipy.optimize import brentq
 
 from pacing.course.geometry import Course
 from pacing.errors import InputError
@@ -182,8 +181,32 @@ def even_pace_speed(course: Course, runner: Runner, air: CourseAir, mean_power: 
         high *= 2.0
         if high > 1e3:
             raise InputError("no even pace reaches that mean effort")
-    return float(brentq(lambda v: _mean_power_of_even_pace(v, course, runner, air) - mean_power,
-                        1e-3, high, xtol=1e-12, rtol=1e-14))
+    return _sign_change(lambda v: _mean_power_of_even_pace(v, course, runner, air) - mean_power,
+                        1e-3, high)
+
+
+def _sign_change(function: Callable[[float], float], low: float, high: float) -> float:
+    """Where `function` changes sign in [low, high] (below zero at `low`, not below at `high`),
+    by bisection down to neighbouring floats: of the last two, the one nearer zero.
+
+    About 55 halvings for a bracket of 1000 m/s; each is one sum over the course, so a
+    millisecond or two. Bisection, not scipy.optimize.brentq: importing scipy.optimize costs
+    the command line a third of a second, more than a whole running plan.
+    """
+    low_value, high_value = function(low), function(high)
+    if low_value >= 0:
+        if low_value == 0:
+            return low
+        raise InputError("no even pace is slow enough for that mean effort")
+    while True:
+        middle = 0.5 * (low + high)
+        if not low < middle < high:
+            return low if abs(low_value) < abs(high_value) else high
+        value = function(middle)
+        if value < 0:
+            low, low_value = middle, value
+        else:
+            high, high_value = middle, value
 
 
 def even_pace_for_mean_power(
@@ -197,8 +220,9 @@ def even_pace_for_mean_power(
     """The one speed whose time-weighted mean metabolic power over the course is `mean_power`.
 
     At a constant speed v the time on piece j is L_j/v, so the time-weighted mean metabolic
-    power is P̄(v) = Σ P_met,j(v)·L_j / Σ L_j; P̄(v) = mean_power is solved for v (scipy
-    brentq). This is how the even-pace plan meets an effort: on average, not on every piece.
+    power is P̄(v) = Σ P_met,j(v)·L_j / Σ L_j; P̄(v) = mean_power is solved for v (by
+    bisection, to the last bit). This is how the even-pace plan meets an effort: on average,
+    not on every piece.
 
     Parameters
     ----------

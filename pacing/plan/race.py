@@ -19,22 +19,26 @@ Everything is SI; words and units are the edges' business (pacing.display).
 from __future__ import annotations
 
 from dataclasses import dataclass, field
+from typing import TYPE_CHECKING, cast
 
 import numpy as np
 
-from pacing.course.geometry import Course
 from pacing.errors import InputError
 from pacing.notices import Notice, warning
-from pacing.physics.cycling import Rider
-from pacing.physics.running import Runner
-from pacing.plan.cycling import RacePlan
 from pacing.plan.prediction import SimulationOptions
 from pacing.plan.request import PlanRequest
 from pacing.plan.running import DOWNHILL_SPEED_RATIO_CAP
-from pacing.plan.running_plan import RunningPlan
 from pacing.plan.strategies import SPORTS, strategy_for
-from pacing.plan.targets import SegmentTarget
-from pacing.weather.conditions import Conditions, CourseAir, air_along_course
+from pacing.weather.conditions import air_along_course
+
+if TYPE_CHECKING:  # each sport's plan module is imported by its strategy, when it plans
+    from pacing.course.geometry import Course
+    from pacing.physics.cycling import Rider
+    from pacing.physics.running import Runner
+    from pacing.plan.cycling import RacePlan
+    from pacing.plan.running_plan import RunningPlan
+    from pacing.plan.targets import SegmentTarget
+    from pacing.weather.conditions import Conditions, CourseAir
 
 
 @dataclass(frozen=True)
@@ -199,15 +203,16 @@ def exhausted_at(result: RaceResult) -> float | None:
         Distance [m] of the first point (cycling) or piece end (running) with a negative
         balance.
     """
-    plan = result.plan
-    course = result.request.course
-    if isinstance(plan, RacePlan):
-        balance = plan.w_prime_balance
+    if result.sport == "cycling":
+        cycling = cast("RacePlan", result.plan)
+        balance = cycling.w_prime_balance
         if balance is None or np.min(balance) >= 0:
             return None
         first = int(np.argmax(np.asarray(balance) < 0))
-        return float(np.asarray(plan.prediction.distance)[first])
-    balance = plan.d_prime_balance
+        return float(np.asarray(cycling.prediction.distance)[first])
+    running = cast("RunningPlan", result.plan)
+    course = result.request.course
+    balance = running.d_prime_balance
     if balance is None or np.min(balance) >= 0:
         return None
     first = int(np.argmax(np.asarray(balance) < 0))
@@ -215,9 +220,10 @@ def exhausted_at(result: RaceResult) -> float | None:
 
 
 def _exhausted_notice(result: RaceResult, distance: float) -> Notice:
-    plan = result.plan
-    if isinstance(plan, RacePlan):
+    if result.sport == "cycling":
+        cycling = cast("RacePlan", result.plan)
         return warning("w-prime-exhausted", distance_m=distance,
-                       lowest_balance_j=float(np.min(np.asarray(plan.w_prime_balance))))
+                       lowest_balance_j=float(np.min(np.asarray(cycling.w_prime_balance))))
+    running = cast("RunningPlan", result.plan)
     return warning("d-prime-exhausted", distance_m=distance,
-                   lowest_balance_m=float(np.min(np.asarray(plan.d_prime_balance))))
+                   lowest_balance_m=float(np.min(np.asarray(running.d_prime_balance))))

@@ -4,6 +4,10 @@ One entry per (sport, key): what it is, the published basis, what it needs from 
 where it is valid, and three small functions the chain calls — make the plan, give its target
 rows, tell its notices. The command line's choices, the app's menu, the docs and the tests read
 this one list.
+
+Reading the list is cheap: each of those functions imports the planning module it calls when it
+is called (a cycling plan needs neither the running modules nor the other way round, and the
+command line builds its --strategy choices from the keys alone).
 """
 
 from __future__ import annotations
@@ -16,14 +20,13 @@ import numpy as np
 
 from pacing.errors import InputError
 from pacing.notices import Notice, note, warning
-from pacing.plan.cycling import RacePlan, make_plan
-from pacing.plan.prediction import Prediction
-from pacing.plan.running import plan_equal_effort, plan_even_pace, plan_fastest
-from pacing.plan.running_plan import RunningPlan, running_targets
-from pacing.plan.targets import SegmentTarget, target_table, with_gap_lengths
 
 if TYPE_CHECKING:
+    from pacing.plan.cycling import RacePlan
+    from pacing.plan.prediction import Prediction
     from pacing.plan.race import RaceRequest
+    from pacing.plan.running_plan import RunningPlan
+    from pacing.plan.targets import SegmentTarget
     from pacing.weather.conditions import CourseAir
 
 SPORTS = ("cycling", "running")
@@ -60,6 +63,8 @@ class Strategy:
 # ------------------------------------------------------------------------------------ cycling
 
 def _make_cycling(request: RaceRequest, air: CourseAir) -> RacePlan:
+    from pacing.plan.cycling import make_plan
+
     assert request.rider is not None  # RaceRequest refuses a cycling request without a rider
     asked = replace(request.cycling, strategy=request.strategy)
     return make_plan(request.course, np.asarray(request.bounds), request.rider, air, asked,
@@ -67,6 +72,8 @@ def _make_cycling(request: RaceRequest, air: CourseAir) -> RacePlan:
 
 
 def _cycling_targets(request: RaceRequest, plan: RacePlan) -> list[SegmentTarget]:
+    from pacing.plan.targets import target_table
+
     return target_table(request.course, plan.bounds, plan)
 
 
@@ -117,6 +124,8 @@ def _flat_speed(request: RaceRequest) -> float:
 
 
 def _make_equal_effort(request: RaceRequest, air: CourseAir) -> RunningPlan:
+    from pacing.plan.running import plan_equal_effort
+
     asked = request.running
     assert request.runner is not None  # RaceRequest refuses a running request without one
     return plan_equal_effort(request.course, request.runner, _flat_speed(request),
@@ -126,6 +135,8 @@ def _make_equal_effort(request: RaceRequest, air: CourseAir) -> RunningPlan:
 
 
 def _make_even_pace(request: RaceRequest, air: CourseAir) -> RunningPlan:
+    from pacing.plan.running import plan_even_pace
+
     asked = request.running
     assert request.runner is not None
     return plan_even_pace(request.course, request.runner, _flat_speed(request),
@@ -134,6 +145,8 @@ def _make_even_pace(request: RaceRequest, air: CourseAir) -> RunningPlan:
 
 
 def _make_fastest_run(request: RaceRequest, air: CourseAir) -> RunningPlan:
+    from pacing.plan.running import plan_fastest
+
     asked = request.running
     assert request.runner is not None
     if asked.critical_speed is None or asked.d_prime is None:
@@ -144,6 +157,9 @@ def _make_fastest_run(request: RaceRequest, air: CourseAir) -> RunningPlan:
 
 
 def _running_targets(request: RaceRequest, plan: RunningPlan) -> list[SegmentTarget]:
+    from pacing.plan.running_plan import running_targets
+    from pacing.plan.targets import with_gap_lengths
+
     return with_gap_lengths(running_targets(plan), request.course.gaps)
 
 
