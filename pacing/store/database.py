@@ -420,6 +420,25 @@ def as_utc(stored: datetime.datetime) -> datetime.datetime:
     return stored.astimezone(datetime.UTC)
 
 
+def _migrate_when_free(engine: Engine, tries: int = 6) -> None:
+    """Migrate, trying again when SQLite refused at once with "database is locked".
+
+    Two programs creating a new SQLite library at the same moment can meet a lock that SQLite
+    refuses without waiting (the switch of a fresh file to WAL journalling, a read while the
+    other's creating transaction commits): the busy timeout does not apply there, so wait a
+    little and look again (the second look finds the schema made by the other program).
+    """
+    for attempt in range(tries):
+        try:
+            migrate(engine)
+            return
+        except OperationalError as error:
+            if not is_locked(error) or attempt == tries - 1:
+                raise
+            engine.dispose()  # connections opened during the other's creation: start afresh
+            time.sleep(0.05 * (attempt + 1))
+
+
 def open_engine(location: str | os.PathLike | None = None) -> Engine:
     """Connect to the library at `location` and migrate it to the newest schema.
 
@@ -448,7 +467,7 @@ def open_engine(location: str | os.PathLike | None = None) -> Engine:
         raise InputError(f"cannot use the database {shown_url(url)}: "
                          f"{str(error).splitlines()[0]}") from None
     try:
-        migrate(engine)
+        _migrate_when_free(engine)
     except SQLAlchemyError as error:
         engine.dispose()
         raise InputError(f"cannot open the library at {shown_url(url)}: "
