@@ -6,6 +6,13 @@ with CP and W′ (as `pacing plan demo_routes/01_corravey_hill_loop_40k.gpx --st
 app's fastest plan on the demo course (reserve 2 kJ), under 0.35 s. Prints times,
 finish times and iteration counts; never asserts.
 
+Issue 15's fastest-plan rows first (`run_issue_15`): the plan within CP 270 W and W′ 20 kJ at
+250 W on the demo course (still air, split by terrain; target 100 ms) and on the 200 km course
+of bench_simulate.make_course with wind 4 m/s from 250° (split by terrain, target 0.5 s, and
+every 2 km), through pacing.plan.race.plan_race after the kernels are warmed up: min and median
+of interleaved runs, the steady segment-model calls and inertial simulations per plan, and the
+time each split saves (a finer split must never save less than a coarser one).
+
 Run: .venv/bin/python bench/bench_strategy.py
 """
 
@@ -113,7 +120,85 @@ def run_demo_reserve(repeats: int = 5) -> None:
           f"{plan.solver.correction_rounds} correction rounds")
 
 
+def _counting() -> dict[str, int]:
+    """Count the steady segment-model evaluations and the verifying simulations of every plan
+    module (wrapping the functions where they are imported) [-]."""
+    import sys
+
+    import pacing.plan.verify as verify
+
+    counts = {"model": 0, "simulate": 0}
+
+    def wrapped(key: str, function):
+        def call(*args, **kwargs):
+            counts[key] += 1
+            return function(*args, **kwargs)
+        call.counted = True  # type: ignore[attr-defined]
+        return call
+
+    for name, module in list(sys.modules.items()):
+        if name.startswith("pacing.plan"):
+            for attribute in ("steady_segment_times", "steady_times"):
+                function = getattr(module, attribute, None)
+                if function is not None and not getattr(function, "counted", False):
+                    setattr(module, attribute, wrapped("model", function))
+    verify.simulate = wrapped("simulate", verify.simulate)
+    return counts
+
+
+def run_issue_15(repeats: int = 5) -> None:
+    """Issue 15's fastest-plan rows (module docstring), runs interleaved."""
+    import sys
+    from dataclasses import replace
+
+    from pacing import kernels
+    from pacing.io.gpx import load_course
+    from pacing.plan.race import RaceRequest, plan_race
+
+    sys.path.insert(0, str(Path(__file__).resolve().parent))
+    from bench_simulate import make_course
+
+    warm = kernels.warm_up((*kernels.KERNEL_MODULES, "pacing.plan.steady_model"))
+    print(f"issue 15 fastest plans (kernels {kernels.policy()}, warm-up {warm:.2f} s)")
+    rider = Rider()
+    request = PlanRequest(strategy="fastest", mean_power=250.0, critical_power=270.0,
+                          w_prime=20000.0)
+    demo = load_course(DEMO)
+    course = make_course(200.0)
+    windy = Conditions(wind_speed=4.0, wind_from=250.0)
+    terrain = RaceRequest(course=course, bounds=split_by_grade(course), conditions=windy,
+                          strategy="fastest", rider=rider, cycling=request)
+    cases = {
+        "40 km demo, terrain (target 0.1 s)": RaceRequest(
+            course=demo, bounds=split_by_grade(demo), conditions=Conditions(),
+            strategy="fastest", rider=rider, cycling=request),
+        "200 km wind, terrain (target 0.5 s)": terrain,
+        "200 km wind, every 2 km": replace(terrain, bounds=split_every(course, 2000.0)),
+    }
+    counts = _counting()
+    times: dict[str, list[float]] = {name: [] for name in cases}
+    seen: dict[str, tuple[object, dict[str, int]]] = {}
+    for case in cases.values():  # untimed first run: caches, numba dispatch
+        plan_race(case)
+    for _ in range(repeats):
+        for name, case in cases.items():
+            counts.update(model=0, simulate=0)
+            started = time.perf_counter()
+            result = plan_race(case)
+            times[name].append(time.perf_counter() - started)
+            seen[name] = (result, dict(counts))
+    for name, case in cases.items():
+        result, calls = seen[name]
+        plan = result.plan  # type: ignore[attr-defined]
+        print(f"  {name}: {case.bounds.size - 1} segments, min {min(times[name]):.3f} s, "
+              f"median {np.median(times[name]):.3f} s; {calls['model']} segment-model calls, "
+              f"{calls['simulate']} simulations; saved {plan.time_saved:.1f} s verified "
+              f"({plan.steady_reference_time - plan.steady_time:.1f} s steady), "
+              f"{plan.solver.method}, {plan.solver.correction_rounds} correction rounds")
+
+
 def main() -> None:
+    run_issue_15()
     run("40 km, 200 m segments", 40_000.0, 200.0,
         PlanRequest(strategy="fastest", mean_power=300.0, critical_power=310.0,
                     max_power_ratio=1.3, min_power_ratio=0.5))

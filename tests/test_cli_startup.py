@@ -79,9 +79,6 @@ def test_a_constant_cycling_plan_loads_no_heavy_library(cycling_plan_modules):
     assert heavy_among(cycling_plan_modules, skip=("scipy.optimize",)) == []
 
 
-@pytest.mark.xfail(reason="pacing/plan/cycling.py imports scipy.optimize at the top for the "
-                          "target-time plan's brentq (_constant_target_time); it belongs in "
-                          "that function", strict=False)
 def test_a_constant_cycling_plan_loads_no_optimizer(cycling_plan_modules):
     assert heavy_among(cycling_plan_modules) == []
 

@@ -356,3 +356,72 @@ def test_an_uncertainty_wider_than_its_input_s_range_is_refused(name):
     with pytest.raises(InputError) as error:
         Uncertainty(**{name: 1e308})
     assert "\n" not in str(error.value) and "at most" in str(error.value)
+
+
+# ------------------------------------------------------------------------ draws together
+
+def one_by_one(course, power, rider, conditions, uncertainty, samples, seed, options):
+    """The Monte Carlo definition, one full simulation per draw: normal errors in the order
+    CdA, Crr, mass, wind (row by row), clipped at CdA 0.01 m², Crr 0, mass 20 kg, wind 0."""
+    generator = np.random.default_rng(seed)
+    scale = np.array([uncertainty.drag_area, uncertainty.rolling_coefficient,
+                      uncertainty.mass, uncertainty.wind])
+    times = []
+    for d_cda, d_crr, d_mass, d_wind in generator.standard_normal((samples, 4)) * scale:
+        changed = replace(rider, drag_area=np.maximum(rider.drag_area + d_cda, 0.01),
+                          rolling_coefficient=np.maximum(
+                              np.asarray(rider.rolling_coefficient) + d_crr, 0.0),
+                          mass=max(rider.mass + d_mass, 20.0))
+        wind = replace(conditions, wind_speed=max(conditions.wind_speed + d_wind, 0.0))
+        times.append(simulate(course, power, changed, air_along_course(course, wind),
+                              options).finish_time)
+    return np.array(times)
+
+
+@pytest.fixture(params=["compiled", "python"])
+def kernel_policy(request, monkeypatch):
+    """Run the test with the compiled kernels and again as plain Python (pacing.kernels)."""
+    if request.param == "compiled":
+        pytest.importorskip("numba")
+    monkeypatch.setenv("PACING_KERNELS", request.param)
+    return request.param
+
+
+@pytest.mark.parametrize("rider", [
+    Rider(mass=80.0, drag_area=0.30),
+    Rider(mass=70.0, drag_area=np.linspace(0.02, 0.35, 120), rolling_coefficient=0.0005,
+          yaw_drag_table=((0.0, 1.0), (15.0, 0.92)), drafting_reduction=0.2)])
+def test_draws_ridden_together_are_the_draws_ridden_one_by_one(rider, kernel_policy):
+    course = hill_course()
+    conditions = Conditions(wind_speed=0.8, wind_from=200.0, temperature=28.0)
+    uncertainty = Uncertainty(drag_area=0.03, rolling_coefficient=0.001, mass=3.0, wind=1.5)
+    options = SimulationOptions(start_speed=6.0, coasting_speed=15.0)
+    power = 200.0 + 60.0 * np.sin(np.arange(120) / 10.0)
+    expected = one_by_one(course, power, rider, conditions, uncertainty, 12, 3, options)
+    times = sampled_finish_time(course, power, rider, conditions, uncertainty, samples=12,
+                                seed=3, options=options)
+    np.testing.assert_allclose(times, expected, rtol=1e-12)
+
+
+def test_sampled_times_are_the_same_compiled_and_as_plain_python(monkeypatch):
+    pytest.importorskip("numba")
+    course = hill_course()
+    pair = ((Rider(mass=80.0, drag_area=0.30), np.full(120, 250.0)),
+            (Rider(mass=80.0, drag_area=0.27), np.full(120, 240.0)))
+    uncertainty = Uncertainty(drag_area=0.01, rolling_coefficient=0.0005, mass=2.0, wind=1.0)
+    conditions = Conditions(wind_speed=3.0, wind_from=90.0)
+    results = {}
+    for policy in ("python", "compiled"):
+        monkeypatch.setenv("PACING_KERNELS", policy)
+        results[policy] = (
+            sampled_finish_time(course, pair[0][1], pair[0][0], conditions, uncertainty,
+                                samples=6, seed=9),
+            sampled_difference(course, *pair, conditions, uncertainty, samples=6, seed=9))
+    for python, compiled in zip(results["python"], results["compiled"], strict=True):
+        np.testing.assert_array_equal(python, compiled)
+
+
+def test_a_drawn_wind_beyond_what_conditions_accept_is_refused():
+    with pytest.raises(InputError, match="wind speed must be between 0 and 60"):
+        sampled_finish_time(hill_course(), np.full(120, 250.0), Rider(),
+                            Conditions(wind_speed=55.0), Uncertainty(wind=20.0), samples=50)

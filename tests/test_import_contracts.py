@@ -3,8 +3,10 @@
 - the numeric core (course, weather, physics, physiology, plan, compare, fieldtest and the
   top-level modules) imports only the standard library, numpy and scipy, never the edges
   (io, store, cli, display, ui) nor their libraries (GPX parsing, tables, web app, plots,
-  database); two named exceptions: pyproj for geodesics in pacing.course.geometry and
-  threadpoolctl in pacing.plan.fastest;
+  database); named exceptions: pyproj for geodesics in pacing.course.geometry, threadpoolctl
+  in the fastest plan's SLSQP polish (pacing.plan.fastest, now pacing.plan.slsqp_polish) and
+  numba (with its llvmlite) in pacing.kernels, the one module that knows about compiled
+  kernels; importing the core does not import numba;
 - pure ui modules (views and helpers without widgets) never import streamlit;
 - every name is imported from the module that defines it: no package re-exports names.
 
@@ -23,11 +25,13 @@ import pytest
 
 ROOT = Path(__file__).resolve().parents[1]
 CORE_PACKAGES = ("course", "weather", "physics", "physiology", "plan", "compare", "fieldtest")
-CORE_TOP_MODULES = ("__init__", "athlete", "constants", "errors", "notices")
+CORE_TOP_MODULES = ("__init__", "athlete", "constants", "errors", "kernels", "notices")
 EDGE_PACKAGES = ("pacing.io", "pacing.store", "pacing.store_migrations", "pacing.cli",
                  "pacing.display", "ui")
 CORE_LIBRARIES = {"numpy", "scipy"}
-CORE_EXCEPTIONS = {"pacing.course.geometry": {"pyproj"}, "pacing.plan.fastest": {"threadpoolctl"}}
+CORE_EXCEPTIONS = {"pacing.course.geometry": {"pyproj"}, "pacing.plan.fastest": {"threadpoolctl"},
+                   "pacing.plan.slsqp_polish": {"threadpoolctl"},
+                   "pacing.kernels": {"numba", "llvmlite"}}
 STREAMLIT_UI_MODULES = {"ui.comparison", "ui.fieldtest_panel", "ui.library_panel", "ui.sections",
                         "ui.widgets"}
 EDGE_LIBRARIES = ["gpxpy", "pandas", "streamlit", "plotly", "sqlalchemy", "openpyxl",
@@ -138,6 +142,18 @@ def test_importing_the_whole_core_loads_no_edge_library():
     probe = ("import importlib, json, sys\n"
              f"for name in {names!r}: importlib.import_module(name)\n"
              f"print(json.dumps([m for m in {EDGE_LIBRARIES!r} if m in sys.modules]))")
+    result = subprocess.run([sys.executable, "-c", probe], capture_output=True, text=True,
+                            timeout=300, cwd=ROOT)
+    assert result.returncode == 0, result.stderr
+    assert json.loads(result.stdout) == []
+
+
+def test_importing_the_whole_core_does_not_import_numba():
+    # numba costs a few tenths of a second: pacing.kernels imports it on first need only
+    names = [module_name(p) for p in core_modules()]
+    probe = ("import importlib, json, sys\n"
+             f"for name in {names!r}: importlib.import_module(name)\n"
+             "print(json.dumps([m for m in ('numba', 'llvmlite') if m in sys.modules]))")
     result = subprocess.run([sys.executable, "-c", probe], capture_output=True, text=True,
                             timeout=300, cwd=ROOT)
     assert result.returncode == 0, result.stderr

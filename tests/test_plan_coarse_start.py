@@ -28,6 +28,7 @@ from pacing.plan.coarse_start import (
     grade_groups,
     grouped_model,
     grouped_plan,
+    run_count,
 )
 from pacing.plan.fastest import fastest_steady_plan
 from pacing.plan.fastest_problem import FastestProblem, SolverReport
@@ -161,8 +162,23 @@ def test_a_grouped_plan_that_breaks_a_limit_is_no_start():
 
 
 def test_a_split_too_fine_to_polish_is_grouped_in_runs():
-    # polish limit 4 < 8 segments: runs of ⌈8/80⌉ = 1 segment, no coarser than the split
+    # polish limit 6 < 8 segments: about 2/3·6 = 4 runs, of ⌈8/4⌉ = 2 segments (by hand), the
+    # runs' problem itself started from the climb and the descent
+    assert run_count(6) == 4
     model = climb_and_descent()
+    request = PlanRequest(strategy="fastest", mean_power=250.0)
+    problem = FastestProblem(model, request, *power_limits(model, request))
+    solver = StubSolver()
+    start, iterations = coarse_start_plan(problem, None, None, solver, 6)
+    assert solver.calls == [(4, None, None, True)]
+    assert start is not None and start[0].tolist() == [250.0] * 8 and iterations == 3
+
+
+def test_a_split_whose_runs_are_single_segments_gets_no_grouped_plan():
+    # polish limit 4 < 5 segments of 500 m, each a group of its own (climb, flat, descent,
+    # flat, climb, by hand): the runs are the segments, no coarser than the split
+    model = model_of_grades([0.05, 0.0, -0.05, 0.0, 0.05], [500.0] * 5)
+    assert grade_groups(model).tolist() == [0, 1, 2, 3, 4]
     request = PlanRequest(strategy="fastest", mean_power=250.0)
     problem = FastestProblem(model, request, *power_limits(model, request))
     solver = StubSolver()

@@ -281,3 +281,28 @@ def test_with_w_prime_a_200_m_split_is_not_slower_than_the_split_by_grade():
     assert fine.mean_power == pytest.approx(250.0, abs=0.02)
     assert fine.finish_time <= by_grade.finish_time * 1.002
     assert fine.steady_time <= by_grade.steady_time * 1.002
+
+
+def test_a_mean_power_below_cp_is_not_refused_when_the_ride_drains_w_prime_faster():
+    # Issue 15: the demo loop at 228 W with CP 240 W, W′ 3 kJ and a 2 kJ reserve (the command
+    # line's rider). Constant power below CP keeps W′ whole, so a plan exists; the steady plan
+    # rides long segments at CP exactly, which the ride's scaling to 228 W pushes a hair above
+    # CP, and every correction round broke the reserve ("no plan ... on the simulated ride").
+    # Now the largest share of the steady plan (the rest constant) that keeps it is ridden.
+    from pathlib import Path
+
+    from pacing.course.segments import split_by_grade
+    from pacing.io.gpx import load_course
+    from pacing.weather.conditions import Conditions, air_along_course
+
+    course = load_course(Path(__file__).resolve().parents[1] / "demo_routes"
+                         / "01_corravey_hill_loop_40k.gpx")
+    air = air_along_course(course, Conditions(temperature=20.0))
+    rider = Rider(mass=80.0, drag_area=0.30, rolling_coefficient=0.0032)
+    request = PlanRequest("fastest", mean_power=228.0, critical_power=240.0, w_prime=3000.0,
+                          w_prime_reserve=2000.0, max_power_ratio=1.15)
+    plan = make_plan(course, split_by_grade(course), rider, air, request)
+    assert plan.min_w_prime_balance >= 2000.0 - 1e-6 * 3000.0
+    assert plan.mean_power == pytest.approx(228.0, rel=1e-4)
+    assert plan.time_saved > 0.0  # faster than constant power (74 s when written)
+    assert plan.solver.method.endswith("+blend")

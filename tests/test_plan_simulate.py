@@ -26,9 +26,19 @@ from pacing.plan.prediction import (
     segment_results,
     steady_prediction,
 )
-from pacing.plan.simulate import simulate
+from pacing.plan.simulate import finish_times, simulate
+from pacing.weather.conditions import CourseAir
 
 G = 9.80665
+
+
+@pytest.fixture(params=["compiled", "python"])
+def kernel_policy(request, monkeypatch):
+    """Run the test with the compiled kernels and again as plain Python (pacing.kernels)."""
+    if request.param == "compiled":
+        pytest.importorskip("numba")
+    monkeypatch.setenv("PACING_KERNELS", request.param)
+    return request.param
 
 
 def reference_ivp(course, power, rider, air, start_speed):
@@ -82,7 +92,7 @@ def test_closed_form_coasting_reproduces_references_check_values():
     assert terminal * tau * math.log(math.cosh(60.0 / tau)) == pytest.approx(795.3679, abs=5e-5)
 
 
-def test_coasting_from_rest_matches_closed_form():
+def test_coasting_from_rest_matches_closed_form(kernel_policy):
     # v(t) = v_t·tanh(t/τ), x(t) = v_t·τ·ln cosh(t/τ) (Taylor 2005 §2.4), within 0.1 %
     terminal, tau = coasting_constants()
     step, grade = 10.0, 0.08
@@ -100,7 +110,7 @@ def test_coasting_from_rest_matches_closed_form():
     assert prediction.speed[-1] == pytest.approx(18.7304, rel=1e-3)  # terminal speed
 
 
-def test_finish_time_agrees_with_solve_ivp_on_a_hilly_windy_course():
+def test_finish_time_agrees_with_solve_ivp_on_a_hilly_windy_course(kernel_policy):
     # scipy solve_ivp (DOP853, rtol 1e-10) on the same model: within 0.05 % of finish time
     course = hilly_course()
     air = windy_air(course)
@@ -167,7 +177,7 @@ def _cases():
 
 
 @pytest.mark.parametrize("name", list(_cases()))
-def test_energy_balance_closes_on_every_course(name):
+def test_energy_balance_closes_on_every_course(name, kernel_policy):
     # rider work (at the cranks, plus pushing the bike on foot) = aero + rolling + bearings +
     # drivetrain loss + Δpotential + Δkinetic + braking, to 0.1 % (issue 3)
     course, power, air, options = _cases()[name]
@@ -453,3 +463,74 @@ def test_less_drag_area_on_any_pieces_is_never_slower(lowered, saving, power, he
     areas[lowered] -= saving
     faster = simulate(SMALL, power, Rider(drag_area=areas), air).finish_time
     assert faster <= base * (1 + 1e-9)
+
+
+# ---------------------------------------------------------------- compiled and plain Python
+
+FIELDS = ("time", "speed", "power", "air_speed", "yaw", "aero", "rolling", "bearing",
+          "drivetrain_loss", "potential", "kinetic", "braking", "walking", "walking_work")
+
+
+def _kernel_cases():
+    hills = hilly_course()
+    yawing = Rider(yaw_drag_table=((0.0, 1.0), (10.0, 0.9), (20.0, 0.95)),
+                   drafting_reduction=0.3)
+    cases = {name: (course, power, Rider(), air, options)
+             for name, (course, power, air, options) in _cases().items()}
+    cases["yaw table, drafting"] = (hills, 250.0, yawing, windy_air(hills, 6.0),
+                                    SimulationOptions(start_speed=3.0))
+    cases["drag area per piece"] = (hills, 250.0,
+                                    Rider(drag_area=np.linspace(0.25, 0.35, hills.grade.size)),
+                                    windy_air(hills), SimulationOptions())
+    return cases
+
+
+@pytest.mark.parametrize("name", list(_kernel_cases()))
+def test_compiled_kernels_ride_exactly_as_plain_python(name, monkeypatch):
+    # the same kernel source compiled by numba and run as Python: bit for bit the same ride
+    # (the compiled hypot is CPython's algorithm, pacing.kernels.cpython_hypot)
+    pytest.importorskip("numba")
+    course, power, rider, air, options = _kernel_cases()[name]
+    rides = {}
+    for policy in ("python", "compiled"):
+        monkeypatch.setenv("PACING_KERNELS", policy)
+        rides[policy] = simulate(course, power, rider, air, options)
+    for field in FIELDS:
+        assert np.array_equal(getattr(rides["python"], field),
+                              getattr(rides["compiled"], field)), field
+
+
+@pytest.mark.parametrize("options", [SimulationOptions(start_speed=6.0),
+                                     SimulationOptions(coasting_speed=13.0,
+                                                       max_descent_speed=15.0,
+                                                       max_drive_force=350.0)])
+def test_finish_times_of_draws_are_the_simulated_finish_times(options, kernel_policy):
+    # reference: simulate with the draw's rider and the draw's wind, one draw at a time
+    course = hilly_course()
+    pieces = course.grade.size
+    rider = Rider(drag_area=np.linspace(0.28, 0.33, pieces), rolling_coefficient=0.004,
+                  yaw_drag_table=((0.0, 1.0), (15.0, 0.93)))
+    unit = windy_air(course, 1.0)
+    draws = [[82.0, 0.01, -0.001, 3.0], [70.0, -0.5, -0.01, 0.0], [95.0, 0.0, 0.002, 7.5]]
+    floors = (0.02, 0.001)
+    power = 150 + 100 * np.sin(np.arange(pieces) / 30.0) ** 2
+    expected = []
+    for mass, d_area, d_rolling, wind in draws:
+        changed = Rider(mass=mass, drag_area=np.maximum(rider.drag_area + d_area, floors[0]),
+                        rolling_coefficient=max(0.004 + d_rolling, floors[1]),
+                        yaw_drag_table=rider.yaw_drag_table)
+        air = CourseAir(unit.density, wind * unit.headwind, wind * unit.crosswind)
+        expected.append(simulate(course, power, changed, air, options).finish_time)
+    times = finish_times(course, power, rider, unit, draws, options, floors)
+    np.testing.assert_array_equal(times, expected)
+
+
+@pytest.mark.parametrize(("draws", "floors", "message"), [
+    ([[80.0, 0.0, 0.0]], (0.01, 0.0), "rows of 4 numbers"),
+    ([[0.0, 0.0, 0.0, 1.0]], (0.01, 0.0), "positive mass"),
+    ([[80.0, np.nan, 0.0, 1.0]], (0.01, 0.0), "finite"),
+    ([[80.0, 0.0, 0.0, 1.0]], (0.0, 0.0), "floors")])
+def test_bad_draws_are_refused(draws, floors, message):
+    course = hilly_course(1000.0)
+    with pytest.raises(InputError, match=message):
+        finish_times(course, 250.0, Rider(), still(course), draws, None, floors)

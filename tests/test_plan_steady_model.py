@@ -11,6 +11,7 @@ docs/references.md, "Cycling power balance (Martin et al. 1998)" (from memory th
 from __future__ import annotations
 
 import math
+import os
 from dataclasses import replace
 
 import numpy as np
@@ -22,7 +23,8 @@ from scipy import optimize
 from pacing.course.geometry import synthetic_course
 from pacing.errors import InputError
 from pacing.physics.cycling import Rider, speed_for_power
-from pacing.plan.steady_model import segment_model, steady_segment_times
+from pacing.plan import steady_model
+from pacing.plan.steady_model import segment_model, steady_segment_times, steady_times
 from pacing.weather.conditions import CourseAir, still_air
 
 G = 9.80665  # standard gravity [m/s²] (CGPM 1901)
@@ -198,3 +200,61 @@ def test_air_that_is_not_finite_is_refused():
     air = CourseAir(np.full(pieces, 1.2), np.full(pieces, np.nan), np.zeros(pieces))
     with pytest.raises(InputError, match="headwind"):
         segment_model(course, bounds, RIDER, air)
+
+
+# ------------------------------------------------------------------ compiled kernels
+
+
+def windy_rolling_model(crosswind=True):
+    """A 3 km rolling course in 37 uneven segments, with head- and crosswind on every piece."""
+    distance = np.arange(0.0, 3000.0 + 5.0, 10.0)
+    course = synthetic_course(distance, 20.0 * np.sin(distance / 300.0))
+    pieces = distance.size - 1
+    angle = distance[:-1] / 500.0
+    air = CourseAir(np.full(pieces, 1.2), 3.0 * np.cos(angle),
+                    3.0 * np.sin(angle) if crosswind else np.zeros(pieces))
+    bounds = np.unique(np.r_[0, np.cumsum(np.arange(1, 40) % 13 + 1), pieces])
+    bounds = bounds[bounds <= pieces]
+    return segment_model(course, bounds, RIDER, air)
+
+
+@pytest.mark.parametrize("crosswind", [True, False])
+def test_the_compiled_and_the_numpy_steady_times_are_the_same_to_the_last_bit(
+        monkeypatch, crosswind):
+    # The solvers must not depend on whether the kernels are loaded: the compiled Newton
+    # steps and sums repeat numpy's operations in numpy's order (reduceat's pairwise sums).
+    # With NUMBA_DISABLE_JIT=1 the kernel is plain Python, whose math.hypot is CPython's own
+    # (correctly rounded), not the C library's that numpy and numba call: there the solvers
+    # use numpy (steady_model._use_kernel), and the crosswind case is not comparable.
+    if crosswind and os.environ.get("NUMBA_DISABLE_JIT", "0") not in ("", "0"):
+        pytest.skip("plain-Python kernel: CPython's math.hypot differs from the C library's")
+    results = {}
+    for compiled in (False, True):
+        model = windy_rolling_model(crosswind)
+        monkeypatch.setattr(steady_model, "_use_kernel", lambda pieces, c=compiled: c)
+        power = np.linspace(120.0, 380.0, model.count)
+        steady_segment_times(model, 0.8 * power)  # a previous solve's speeds to start from
+        full = steady_segment_times(model, power)
+        results[compiled] = (*full, *steady_times(model, 1.1 * power))
+    for numpy_result, compiled_result in zip(results[False], results[True], strict=True):
+        assert np.array_equal(numpy_result, compiled_result)
+
+
+def test_steady_times_are_the_first_two_results_of_steady_segment_times():
+    model = windy_rolling_model()
+    power = np.linspace(150.0, 350.0, model.count)
+    steady_segment_times(model, power)
+    guess = model.speed_guess["speed"].copy()
+    time, dtime = steady_times(model, power)
+    model.speed_guess["speed"] = guess
+    full = steady_segment_times(model, power)
+    assert np.array_equal(time, full[0]) and np.array_equal(dtime, full[1])
+
+
+@pytest.mark.parametrize("count", [1, 2, 7, 8, 9, 127, 128, 129, 300, 1000])
+def test_the_compiled_segment_sum_adds_in_numpys_order(count):
+    # numpy's add.reduceat: the first value plus numpy's pairwise sum of the rest (8
+    # accumulators in blocks of at most 128); compared bit for bit
+    values = np.random.default_rng(count).uniform(0.0, 10.0, count + 5) ** 3
+    expected = np.add.reduceat(values, [2, 2 + count])[0]
+    assert steady_model._segment_sum(values, 2, 2 + count) == expected

@@ -28,8 +28,9 @@ they enter through the difference of the sensitivities and mostly cancel::
 
     σ_Δ² = (S_A,cda·σ_A/h)² + (S_B,cda·σ_B/h)² + Σ_shared ((S_B,x − S_A,x)·σ_x/h_x)²
 
-A Monte Carlo estimate (normal draws with a seed, the full simulation for each draw) checks
-the linearization where the response is curved.
+A Monte Carlo estimate (normal draws with a seed, the full simulation for each draw, the
+draws ridden together by pacing.plan.simulate.finish_times) checks the linearization where the
+response is curved.
 
 References
 ----------
@@ -54,8 +55,9 @@ from pacing.course.geometry import Course
 from pacing.errors import InputError
 from pacing.physics.air import DEFAULT_AIR_DENSITY_MODEL
 from pacing.physics.cycling import Rider
+from pacing.physics.wind import wind_components
 from pacing.plan.prediction import SimulationOptions
-from pacing.plan.simulate import simulate
+from pacing.plan.simulate import finish_times, simulate
 from pacing.weather.conditions import Conditions, CourseAir, air_along_course
 
 STEPS = {
@@ -382,20 +384,46 @@ DRAW_FLOORS = {"drag_area": 0.01, "rolling_coefficient": 0.0, "mass": 20.0, "win
 and wind speed [m/s] never go below these."""
 
 
-def _perturbed_time(course: Course, power: np.ndarray, rider: Rider, conditions: Conditions,
-                    options: SimulationOptions | None, density_model: str, d_cda: float,
-                    d_crr: float, d_mass: float, d_wind: float) -> float:
-    """Finish time [s] with the errors added, clipped at physical limits (DRAW_FLOORS)."""
+def _draw_rows(rider: Rider, conditions: Conditions, d_cda: np.ndarray, d_crr: np.ndarray,
+               d_mass: np.ndarray, d_wind: np.ndarray) -> np.ndarray:
+    """Rows of pacing.plan.simulate.finish_times for the errors of each draw: total mass
+    (at least its floor) [kg], CdA and Crr errors [m², -] (the floors apply per piece) and
+    the wind at the rider's height from the forecast speed plus its error (at least its
+    floor) [m/s].
+
+    Raises
+    ------
+    InputError
+        When a drawn wind speed is out of the range Conditions accepts.
+    """
     floor = DRAW_FLOORS
-    changed = replace(rider,
-                      drag_area=np.maximum(rider.drag_area + d_cda, floor["drag_area"]),
-                      rolling_coefficient=np.maximum(
-                          np.asarray(rider.rolling_coefficient, dtype=float) + d_crr,
-                          floor["rolling_coefficient"]),
-                      mass=max(rider.mass + d_mass, floor["mass"]))
-    wind = replace(conditions, wind_speed=max(conditions.wind_speed + d_wind, floor["wind"]))
-    air = air_along_course(course, wind, density_model)
-    return simulate(course, power, changed, air, options).finish_time
+    mass = np.maximum(rider.mass + d_mass, floor["mass"])
+    wind = [replace(conditions, wind_speed=max(conditions.wind_speed + error, floor["wind"])
+                    ).wind_at_rider for error in d_wind.tolist()]
+    return np.column_stack([mass, d_cda, d_crr, np.array(wind, dtype=float)])
+
+
+def _unit_wind_air(course: Course, conditions: Conditions, density_model: str) -> CourseAir:
+    """The day's air density and the headwind and crosswind of 1 m/s at the rider's height
+    from the forecast direction (the log profile and the split by heading are linear in the
+    wind speed, so a draw's wind is this times its speed at the rider)."""
+    density = air_along_course(course, conditions, density_model).density
+    headwind, crosswind = wind_components(np.asarray(course.heading, dtype=float),
+                                          conditions.wind_from, 1.0)
+    return CourseAir(density=density, headwind=np.asarray(headwind, dtype=float),
+                     crosswind=np.asarray(crosswind, dtype=float))
+
+
+def _sampled_times(course: Course, power: ArrayLike, rider: Rider, conditions: Conditions,
+                   options: SimulationOptions | None, density_model: str,
+                   errors: tuple[np.ndarray, np.ndarray, np.ndarray, np.ndarray]) -> np.ndarray:
+    """Finish time of each draw [s] with the errors (CdA, Crr, mass, wind) added, clipped at
+    physical limits (DRAW_FLOORS), all draws ridden together."""
+    d_cda, d_crr, d_mass, d_wind = errors
+    rows = _draw_rows(rider, conditions, d_cda, d_crr, d_mass, d_wind)
+    return finish_times(course, np.asarray(power, dtype=float), rider,
+                        _unit_wind_air(course, conditions, density_model), rows, options,
+                        (DRAW_FLOORS["drag_area"], DRAW_FLOORS["rolling_coefficient"]))
 
 
 def _check_samples(samples: int) -> None:
@@ -411,8 +439,9 @@ def sampled_finish_time(course: Course, piece_power: ArrayLike, rider: Rider,
                         density_model: str = DEFAULT_AIR_DENSITY_MODEL) -> np.ndarray:
     """Monte Carlo finish times: normal errors of CdA, Crr, mass and wind speed.
 
-    Each draw is clipped at physical limits and ridden by the full simulation; the generator
-    is seeded, and the first draws do not depend on how many are taken.
+    Each draw is clipped at physical limits and ridden by the full simulation, all draws
+    together (pacing.plan.simulate.finish_times); the generator is seeded, and the first draws
+    do not depend on how many are taken.
 
     Parameters
     ----------
@@ -452,11 +481,9 @@ def sampled_finish_time(course: Course, piece_power: ArrayLike, rider: Rider,
     _check_samples(samples)
     generator = np.random.default_rng(seed)
     draws = _draws(uncertainty, samples, generator)
-    power = np.asarray(piece_power, dtype=float)
-    return np.array([
-        _perturbed_time(course, power, rider, conditions, options, density_model, *draw)
-        for draw in draws
-    ])
+    errors = (draws[:, 0], draws[:, 1], draws[:, 2], draws[:, 3])
+    return _sampled_times(course, piece_power, rider, conditions, options, density_model,
+                          errors)
 
 
 def sampled_difference(course: Course, first: tuple[Rider, ArrayLike],
@@ -505,14 +532,10 @@ def sampled_difference(course: Course, first: tuple[Rider, ArrayLike],
     _check_samples(samples)
     generator = np.random.default_rng(seed)
     draws = _draws(uncertainty, samples, generator, extra=2)
-    values = np.empty(samples)
-    for i, draw in enumerate(draws):
-        _, d_crr, d_mass, d_wind = draw[:4]
-        times = [
-            _perturbed_time(course, np.asarray(power, dtype=float), rider, conditions,
-                            options, density_model, draw[4 + j] * uncertainty.drag_area,
-                            d_crr, d_mass, d_wind)
-            for j, (rider, power) in enumerate((first, second))
-        ]
-        values[i] = times[1] - times[0]
-    return values
+    times = [
+        _sampled_times(course, power, rider, conditions, options, density_model,
+                       (draws[:, 4 + j] * uncertainty.drag_area, draws[:, 1], draws[:, 2],
+                        draws[:, 3]))
+        for j, (rider, power) in enumerate((first, second))
+    ]
+    return times[1] - times[0]

@@ -482,81 +482,114 @@ def power_for_speed(
     return speed * force / rider.drivetrain_efficiency
 
 
-ForceBalance = Callable[[np.ndarray], tuple[np.ndarray, np.ndarray]]
-"""g(v) = F_resist(v) − η·P/v [N] and its slope dg/dv [N·s/m] at ground speeds v [m/s]."""
+ForceBalance = Callable[[np.ndarray, "np.ndarray | None"], tuple[np.ndarray, np.ndarray]]
+"""g(v) = F_resist(v) − η·P/v [N] and its slope dg/dv [N·s/m] at ground speeds v [m/s]: on
+every piece, or on the pieces of an index array (v then holds one speed per index)."""
 
 
 def _steady_force_balance(power: np.ndarray, grade: np.ndarray, rho: np.ndarray,
                           head: np.ndarray, cross: np.ndarray, rider: Rider) -> ForceBalance:
-    """g(v) = F_resist(v) − η·P/v and dg/dv on every piece (arrays broadcast alike)."""
-    drive = rider.drivetrain_efficiency * power
+    """g(v) = F_resist(v) − η·P/v and dg/dv on every piece (arrays broadcast alike, then
+    flattened: v and the results are 1-D), or on some of them."""
+    shape = power.shape
+
+    def flat(value: ArrayLike) -> np.ndarray:  # 1-D: the in-place steps need real arrays
+        return np.ascontiguousarray(np.broadcast_to(value, shape), dtype=float).reshape(-1)
+
+    drive = flat(rider.drivetrain_efficiency * power)
     rolling = np.broadcast_to(rolling_force(grade, rider), grade.shape)
-    constant = rolling + gravity_force(grade, rider) + rider.bearing_force_constant
-
+    constant = flat(rolling + gravity_force(grade, rider) + rider.bearing_force_constant)
+    b = rider.bearing_force_per_speed
+    table = rider.yaw_drag_table
+    area = flat(np.asarray(rider.drag_area, dtype=float))
     plain_area = rider.drag_area * (1.0 - rider.drafting_reduction) + rider.wheel_drag_area
-    plain_k = 0.5 * rho * plain_area  # per piece when drag_area is
+    plain_k = flat(0.5 * rho * plain_area)  # per piece when drag_area is
+    rho, head, cross = flat(rho), flat(head), flat(cross)
 
-    def g_and_slope(v: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
-        along = v + head
-        apparent = np.hypot(along, cross)
-        if rider.yaw_drag_table is None:
-            k = plain_k  # no yaw table: skip the yaw angle (a third of the cost)
+    def g_and_slope(v: np.ndarray, index: np.ndarray | None = None
+                    ) -> tuple[np.ndarray, np.ndarray]:
+        if index is None:
+            at_head, at_cross, at_drive, at_constant = head, cross, drive, constant
         else:
-            yaw = np.degrees(np.arctan2(cross, along))
-            area = rider.drag_area * yaw_multiplier(yaw, rider.yaw_drag_table) * (
-                1.0 - rider.drafting_reduction
-            ) + rider.wheel_drag_area
-            k = 0.5 * rho * area
-        value = k * apparent * along + constant + rider.bearing_force_per_speed * v - drive / v
-        safe = np.where(apparent > 0, apparent, 1.0)
-        slope = (
-            k * np.where(apparent > 0, apparent + along**2 / safe, 0.0)
-            + rider.bearing_force_per_speed
-            + drive / v**2
-        )
+            at_head, at_cross = head.take(index), cross.take(index)
+            at_drive, at_constant = drive.take(index), constant.take(index)
+        along = v + at_head
+        apparent = np.hypot(along, at_cross)
+        if table is None:
+            k = plain_k if index is None else plain_k.take(index)  # no yaw table: no angle
+        else:
+            yaw = np.degrees(np.arctan2(at_cross, along))
+            at_area = area if index is None else area.take(index)
+            at_rho = rho if index is None else rho.take(index)
+            k = 0.5 * at_rho * (at_area * yaw_multiplier(yaw, table) * (
+                1.0 - rider.drafting_reduction) + rider.wheel_drag_area)
+        # in place, in the order of k·V·v_a + c + b·v − η·P/v (no new arrays: fewer faults)
+        pull = at_drive / v
+        value = k * apparent
+        value *= along
+        value += at_constant
+        value += b * v
+        value -= pull
+        pull = np.divide(at_drive, np.multiply(v, v, out=pull), out=pull)  # η·P/v²
+        if apparent.min() > 0:  # V > 0 everywhere (the usual case): V + v_a²/V
+            along *= along
+            along /= apparent
+            along += apparent
+            slope = np.multiply(k, along, out=along)
+        else:
+            safe = np.where(apparent > 0, apparent, 1.0)
+            slope = k * np.where(apparent > 0, apparent + along**2 / safe, 0.0)
+        slope += b
+        slope += pull
         return value, slope
 
     return g_and_slope
 
 
-def _bracket_speed(balance: ForceBalance, shape: tuple[int, ...],
-                   minimum_speed: float) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
-    """(low, high, stalled): g(low) < 0 < g(high) where a root lies above `minimum_speed`;
-    `stalled` where none does (g(minimum_speed) ≥ 0)."""
+def _bracket_speed(balance: ForceBalance, shape: tuple[int, ...], minimum_speed: float
+                   ) -> tuple[np.ndarray, np.ndarray, np.ndarray, np.ndarray]:
+    """(low, high, stalled, start): g(low) < 0 < g(high) where a root lies above
+    `minimum_speed`; `stalled` where none does (g(minimum_speed) ≥ 0); `start` the first
+    speed of the Newton steps, the middle of the bracket."""
     low = np.full(shape, float(minimum_speed))
-    g_low, _ = balance(low)
+    g_low, _ = balance(low, None)
     stalled = g_low >= 0
     high = np.full(shape, BRACKET_START_SPEED)
+    g_high, _ = balance(high, None)
+    short = np.flatnonzero((g_high < 0) & ~stalled)  # the root lies above: double the top
     for _ in range(60):
-        g_high, _ = balance(high)
-        short = (g_high < 0) & ~stalled
-        if not short.any():
+        if short.size == 0:
             break
-        low = np.where(short, high, low)
-        high = np.where(short, 2.0 * high, high)
-    return low, high, stalled
+        low[short] = high[short]
+        high[short] *= 2.0
+        g_short, _ = balance(high[short], short)
+        short = short[g_short < 0]
+    return low, high, stalled, 0.5 * (low + high)
 
 
 def _newton_in_bracket(balance: ForceBalance, low: np.ndarray, high: np.ndarray,
-                       stalled: np.ndarray, tolerance: float,
+                       stalled: np.ndarray, start: np.ndarray, tolerance: float,
                        max_iterations: int) -> np.ndarray:
-    """Root of the increasing g in [low, high]: Newton steps kept inside the shrinking
-    bracket, bisection otherwise; stops when every unstalled speed moves by at most
-    `tolerance`·v."""
-    speed = 0.5 * (low + high)
+    """Root of the increasing g in [low, high] from `start`: Newton steps kept inside the
+    shrinking bracket, bisection otherwise; a speed is kept once it moves by at most
+    `tolerance`·v (later steps would move it by less than rounding), the others go on."""
+    speed, low, high = start.copy(), low.copy(), high.copy()
+    active = np.flatnonzero(~stalled)
     for _ in range(max_iterations):
-        value, slope = balance(speed)
-        low = np.where(value < 0, speed, low)
-        high = np.where(value > 0, speed, high)
-        newton = speed - value / slope
+        if active.size == 0:
+            break
+        now, below, above = speed[active], low[active], high[active]
+        value, slope = balance(now, active if active.size < speed.size else None)
+        below = np.where(value < 0, now, below)
+        above = np.where(value > 0, now, above)
+        newton = now - value / slope
         # Non-strict bounds: once converged, a Newton step smaller than one ulp lands exactly on
         # the bracket end it came from and must not be mistaken for a step outside the bracket.
-        inside = (newton >= low) & (newton <= high)
-        new_speed = np.where(inside, newton, 0.5 * (low + high))
-        converged = np.abs(new_speed - speed) <= tolerance * new_speed
-        speed = new_speed
-        if np.all(converged | stalled):
-            break
+        inside = (newton >= below) & (newton <= above)
+        new_speed = np.where(inside, newton, 0.5 * (below + above))
+        converged = np.abs(new_speed - now) <= tolerance * new_speed
+        speed[active], low[active], high[active] = new_speed, below, above
+        active = active[~converged]
     return speed
 
 
@@ -629,6 +662,6 @@ def speed_for_power(
         np.asarray(rider.rolling_coefficient, dtype=float),
     )
     balance = _steady_force_balance(power, grade, rho, head, cross, rider)
-    low, high, stalled = _bracket_speed(balance, power.shape, minimum_speed)
-    speed = _newton_in_bracket(balance, low, high, stalled, tolerance, max_iterations)
-    return np.where(stalled, float(minimum_speed), speed)
+    low, high, stalled, start = _bracket_speed(balance, (power.size,), minimum_speed)
+    speed = _newton_in_bracket(balance, low, high, stalled, start, tolerance, max_iterations)
+    return np.where(stalled, float(minimum_speed), speed).reshape(power.shape)

@@ -7,9 +7,10 @@ the mean power and the work carry over exactly, and the W′ balance only gains 
 inner ends (within a stretch of constant power the balance is monotone, so it is lowest at a
 stretch's ends). When a limit binds, pacing.plan.fastest therefore first solves the grouped
 problem (runs of climb, flat or descent segments, `grade_groups`) and starts from its plan,
-so the fastest plan does not get slower as the segments get finer. On a split too fine for
-the SLSQP polish the groups are cut into runs of a few segments (`chunked_groups`), and that
-coarser problem itself starts from the climbs, flats and descents.
+so the fastest plan does not get slower as the segments get finer. On a split too long for
+one SLSQP polish the groups are cut into runs of a few segments (`chunked_groups`, about
+`run_count` runs), and that coarser problem itself starts from the climbs, flats and descents;
+the fine split is then polished from it window by window (pacing.plan.slsqp_polish).
 
 The solver of the grouped problem is passed in (`solve`: pacing.plan.fastest's
 `fastest_steady_plan`), which keeps this module below the solver it serves.
@@ -40,8 +41,22 @@ GROUP_MIN_LENGTH = 300.0
 GROUP_MAX_COUNT = 60
 """Most stretches in the grouped problem, so that its SLSQP polish stays cheap [-]."""
 
-CHUNK_COUNT = 80
-"""About this many runs of segments stand for a split too fine for the SLSQP polish [-]."""
+def run_count(polish_limit: int) -> int:
+    """About this many runs of segments stand for a split too fine for the polish: two thirds
+    of the polish limit, so that the runs and the group ends they add (at most
+    GROUP_MAX_COUNT) stay within it.
+
+    Parameters
+    ----------
+    polish_limit : int
+        Most segments the solver polishes [-].
+
+    Returns
+    -------
+    int
+        The number of runs aimed at, at least 1 [-].
+    """
+    return max(1, 2 * polish_limit // 3)
 
 
 class CoarseSolver(Protocol):
@@ -119,7 +134,7 @@ def grade_groups(model: SegmentModel) -> np.ndarray:
     return np.cumsum(group)
 
 
-def chunked_groups(group: np.ndarray, chunk_count: int = CHUNK_COUNT) -> np.ndarray:
+def chunked_groups(group: np.ndarray, chunk_count: int) -> np.ndarray:
     """Cut groups of segments into runs of at most ⌈K / chunk_count⌉ segments.
 
     Each group is cut from its first segment on; a run never spans two groups.
@@ -128,7 +143,7 @@ def chunked_groups(group: np.ndarray, chunk_count: int = CHUNK_COUNT) -> np.ndar
     ----------
     group : numpy.ndarray
         Group number of each segment, from 0, never decreasing, length K [-].
-    chunk_count : int, optional
+    chunk_count : int
         About this many runs stand for the K segments (more where groups end inside a run) [-].
 
     Returns
@@ -137,7 +152,7 @@ def chunked_groups(group: np.ndarray, chunk_count: int = CHUNK_COUNT) -> np.ndar
         Run number of each segment, from 0, never decreasing, length K [-].
     """
     count = group.size
-    size = -(-count // chunk_count)
+    size = -(-count // max(chunk_count, 1))
     first = np.flatnonzero(np.diff(group, prepend=-1))
     within = np.arange(count) - np.repeat(first, np.diff(np.r_[first, count]))
     new = np.zeros(count, dtype=int)
@@ -200,17 +215,18 @@ def grouped_plan(problem: FastestProblem, reserve: float | None, cap: float | No
     tuple of (numpy.ndarray, SolverReport) or None
         Segment powers of the fine split, length K [W], with the grouped problem's report;
         None when grouping does not coarsen the split (more than half as many groups as
-        segments), the groups' power bounds do not overlap, or the grouped problem has no
-        plan.
+        segments; above `polish_limit`, as many runs as segments), the groups' power bounds
+        do not overlap, or the grouped problem has no plan.
     """
     model = problem.model
     group = grade_groups(model)
     if model.count > polish_limit:
-        # too many segments for SLSQP: cut the groups into runs of a few segments, so the
+        # too many segments to polish: cut the groups into runs of a few segments, so the
         # coarser problem (≤ polish_limit) is polished and itself starts from the groups
-        group = chunked_groups(group)
-    count = int(group[-1]) + 1
-    if 2 * count > model.count:  # hardly coarser: not worth a second solve
+        group = chunked_groups(group, run_count(polish_limit))
+        if int(group[-1]) + 1 >= model.count:
+            return None
+    elif 2 * (int(group[-1]) + 1) > model.count:  # hardly coarser: not worth a second solve
         return None
     starts = np.flatnonzero(np.diff(group, prepend=-1))
     coarse = grouped_model(model, group)

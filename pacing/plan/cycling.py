@@ -35,7 +35,6 @@ from dataclasses import dataclass, field, replace
 
 import numpy as np
 from numpy.typing import ArrayLike
-from scipy import optimize
 
 from pacing.course.geometry import Course
 from pacing.errors import InputError
@@ -52,7 +51,7 @@ from pacing.plan.request import (
     required_target_time,
     w_prime_parameters,
 )
-from pacing.plan.steady_model import segment_model, steady_segment_times
+from pacing.plan.steady_model import segment_model, steady_times
 from pacing.plan.verify import (
     VerifyingRide,
     bound_binding,
@@ -231,10 +230,12 @@ def _constant_target_time(ride: VerifyingRide, request: PlanRequest, target: flo
 
     brentq on the steady finish time, then secant steps on the simulated one (to 0.01 s).
     """
+    from scipy import optimize  # here: constant and fastest plans never load it
+
     model = ride.model
 
     def steady(power: float) -> float:
-        time, _, _ = steady_segment_times(model, np.full(model.count, power))
+        time, _ = steady_times(model, np.full(model.count, power))
         return float(time.sum()) - target
 
     if steady(MAXIMUM_PLAN_POWER) > 0:
@@ -350,6 +351,7 @@ def _fastest_plan(ride: VerifyingRide, request: PlanRequest) -> RacePlan:
     best = None
     previous = None
     w_gap = math.inf
+    closest: tuple[float, np.ndarray, SolverReport] | None = None
     for rounds in range(_CORRECTION_ROUNDS + 1):
         power, report = _solve_round(ride, request, limits, aim, rounds, previous)
         previous = (power, report)
@@ -357,16 +359,60 @@ def _fastest_plan(ride: VerifyingRide, request: PlanRequest) -> RacePlan:
         plan = _finish_plan(ride, request, power, limits, report, reference)
         w_gap = plan.residuals.get("w_prime_reserve_j", math.inf)
         cap_gap = plan.residuals.get("effort_cap_w", math.inf)
-        feasible = (w_gap >= -1e-6 * float(request.w_prime or 1.0)
-                    and cap_gap >= -1e-6 * mean)
+        feasible = _keeps(plan, request)
         if feasible and (best is None or plan.finish_time < best.finish_time):
             best = plan
+        shortfall = min(w_gap / float(request.w_prime or 1.0), cap_gap / mean)
+        if closest is None or shortfall > closest[0]:
+            closest = (shortfall, power, report)
         if not _correct_aim(aim, plan, request, w_gap, cap_gap) and feasible:
             break
+    if best is None and closest is not None:
+        best = _blended_plan(ride, request, limits, reference, closest[1], closest[2])
     if best is None:
         what = "W′ reserve" if w_gap < 0 else "effort cap"
         raise InputError(f"no plan at mean power {mean:g} W keeps the {what} on the simulated "
                          "ride")
+    return best
+
+
+def _keeps(plan: RacePlan, request: PlanRequest) -> bool:
+    """Whether a verified plan keeps the W′ reserve (to 1e-6 of W′) and the effort cap (to
+    1e-6 of the mean power)."""
+    return (plan.residuals.get("w_prime_reserve_j", math.inf)
+            >= -1e-6 * float(request.w_prime or 1.0)
+            and plan.residuals.get("effort_cap_w", math.inf)
+            >= -1e-6 * required_mean_power(request))
+
+
+def _blended_plan(ride: VerifyingRide, request: PlanRequest, limits: tuple[np.ndarray, np.ndarray],
+                  reference: tuple[Prediction, float], power: np.ndarray, report: SolverReport
+                  ) -> RacePlan | None:
+    """When no correction round's plan keeps the limits on the ride: the largest share α of
+    the steady plan, the rest constant power, (1 − α)·P̄_ride + α·P, whose verified ride keeps
+    them (bisection on α to 1/64; α = 0 is the constant plan); None when even constant power
+    breaks them.
+
+    Below CP the constant plan keeps W′ whole, while the steady plan rides long segments at CP
+    exactly (the kink of the W′ balance), which scaling it to the ride's mean power pushes a
+    hair above CP for most of the ride.
+    """
+    constant = np.full(ride.model.count, reference[1])
+    low, best = 0.0, None
+    high = 1.0
+    for _ in range(7):
+        share = low if best is None else 0.5 * (low + high)
+        mixed = replace(report, method=report.method + "+blend",
+                        message=f"{share:.3f} of the steady plan, the rest constant power: "
+                                "the ride broke a limit with the whole plan")
+        plan = _finish_plan(ride, request, (1.0 - share) * constant + share * power, limits,
+                            mixed, reference)
+        if _keeps(plan, request):
+            low, best = share, plan
+        elif best is None:
+            return None
+        else:
+            high = share
     return best
 
 
@@ -408,8 +454,8 @@ def _finish_plan(ride: VerifyingRide, request: PlanRequest, segment_power: np.nd
     bounds checked; constant plans are their own reference."""
     mean = required_mean_power(request)
     model = ride.model
-    constant_time, _, _ = steady_segment_times(model, np.full(model.count, mean))
-    steady_time, _, _ = steady_segment_times(model, segment_power)
+    constant_time, _ = steady_times(model, np.full(model.count, mean))
+    steady_time, _ = steady_times(model, segment_power)
     lower, upper = limits if limits is not None else (segment_power, segment_power)
     residuals: dict[str, float] = {}
     binding: list[str] = []

@@ -15,22 +15,28 @@ When the athlete's W′ balance (reserve) or the effort cap would be broken:
    above CP or ν·P⁴·t_k for the effort measure, and the lowest price whose plan keeps the limit
    is found by false position (the problem stays separable, so it is as fast as above);
    when both limits break, the highest common power ceiling that keeps them is used instead;
-2. on up to _SLSQP_MAX_SEGMENTS segments, scipy's SLSQP then polishes that feasible plan on the
-   full problem (W′ balance at every segment end, recovery included), with analytic gradients
-   of time, mean power and W′ balance; it is given limits a hair inside the real ones and its
-   answer is moved back onto the coupling constraint, then kept only when feasible and faster.
+2. scipy's SLSQP then polishes that feasible plan on the full problem (W′ balance at every
+   segment end, recovery included), with analytic gradients of time, mean power and W′
+   balance; it is given limits a hair inside the real ones and its answer is moved back onto
+   the coupling constraint, then kept only when feasible and faster (pacing.plan.slsqp_polish).
+   Up to _SLSQP_MAX_SEGMENTS (120) segments plain SLSQP, 100 iterations (as the golden outputs
+   were recorded); above, plain SLSQP and then the sided rounds, which converge where plain
+   SLSQP zigzags across the W′ kink at CP; above FINE_MAX_SEGMENTS (240), where dense SLSQP
+   costs too much, windows of WINDOW_SEGMENTS (60) segments polished in turn.
 The priced plan is a relaxation (it charges W′ spent above CP but gives no credit for its
 recovery), so on its own it can be far from the optimum. A finer split can hold any plan of a
 coarser one, so the solver first solves the coarser problem with one power per run of climb,
-flat or descent segments (or, on a split too fine for SLSQP, per run of a few segments, which
-itself starts from the climbs, flats and descents) and starts from that plan: the fastest plan
-then does not get slower as the segments get finer (pacing.plan.coarse_start).
+flat or descent segments (or, above FINE_MAX_SEGMENTS, per run of a few segments, which itself
+starts from the climbs, flats and descents) and starts from that plan, then polishes it on
+every segment: the fastest plan does not get slower as the segments get finer
+(pacing.plan.coarse_start; tests/test_plan_fastest.py checks it on random courses).
 The solver's effort measure is the time-weighted 4th-power mean of the segment powers, an upper
 bound of the effort-weighted power (a 30 s rolling mean can only lower it).
 
 Called by pacing.plan.cycling.make_plan. The Lagrange solve is in pacing.plan.lagrange, the
-priced limits (step 1) in pacing.plan.priced_limits, the problem, its limits and the solver's
-report in pacing.plan.fastest_problem.
+priced limits (step 1) in pacing.plan.priced_limits, the SLSQP polish (step 2) in
+pacing.plan.slsqp_polish, the problem, its limits and the solver's report in
+pacing.plan.fastest_problem.
 
 References
 ----------
@@ -46,14 +52,9 @@ Kraft, D. (1988). A software package for sequential quadratic programming. DFVLR
 
 from __future__ import annotations
 
-from typing import Any
-
 import numpy as np
-from scipy import optimize
-from threadpoolctl import threadpool_limits
 
 from pacing.errors import InputError
-from pacing.physiology.critical_power import recovery_time_constant
 from pacing.plan.coarse_start import coarse_start_plan
 from pacing.plan.fastest_problem import FastestProblem, SolverLimits, SolverReport
 from pacing.plan.lagrange import (
@@ -71,210 +72,66 @@ from pacing.plan.request import (
     required_mean_power,
     w_prime_parameters,
 )
-from pacing.plan.steady_model import SegmentModel, steady_segment_times
+from pacing.plan.slsqp_polish import sided_slsqp_plan, slsqp_plan, window_polish
+from pacing.plan.steady_model import SegmentModel, steady_times
 
-_SLSQP_MAX_SEGMENTS = 120  # above this the dense SLSQP polish costs more than it gains
+_SLSQP_MAX_SEGMENTS = 120  # up to this plain SLSQP polishes (as recorded); above it, sided too
+# the most segments polished at once (dense SLSQP costs ~K³ per iteration: 1 ms at 160
+# segments, 100 ms at 400); above it the split's runs are polished, then windows of the split
+FINE_MAX_SEGMENTS = 240
 _SLSQP_MARGIN = 5e-4  # limits given to SLSQP, inside the real ones, relative to W′ or the cap
-# SLSQP's stop on the objective (finish time over the constant plan's, ≈ 1): 1e-9 is about
-# 4 µs of a one-hour ride; at 1e-10 its steps zigzag along the W′ kink at CP until the
-# iteration limit (100 iterations against 65 on the demo course, same finish time to 1 ms)
-_SLSQP_FTOL = 1e-9
+# segments per window above FINE_MAX_SEGMENTS: SLSQP takes ~2 ms an iteration at 120 (its bounds
+# count as constraints); on a 40 km course in 400 segments windows of 60 took half the time
+# of windows of 120 and found a plan 0.2 s slower of 3400 s (bench, 2 busy cores)
+WINDOW_SEGMENTS = FINE_MAX_SEGMENTS // 4
 
 
-def _w_prime_jacobian(power: np.ndarray, time: np.ndarray, dtime: np.ndarray,
-                      request: PlanRequest) -> np.ndarray:
-    """d(W′ balance at the end of segment j)/d(power of segment k) [J/W], shape (K, K).
-
-    Both W′ models are affine steps on the deficit D = W′ − W′bal over a segment of constant
-    power, D_{k+1} = a_k·D_k + b_k (differential: a = 1, b = (P − CP)·t above CP and
-    a = e^{(P − CP)·t/W′}, b = 0 below; integral: a = e^{−t/τ}, b = (P − CP)⁺·τ·(1 − a)), and t_k
-    depends on P_k through t_k′. Then dD_j/dP_k = (Π_{k<m<j} a_m)·(D_k·da_k/dP_k + db_k/dP_k)
-    for j > k. The integral form's τ = 546·e^(−0.01·D_CP) + 316 s depends on every below-CP
-    segment through D_CP = CP − Σ_b P·t / Σ_b t (Skiba et al. 2012).
-    """
-    critical, w_prime = w_prime_parameters(request)
-    excess = power - critical
-    above = excess > 0
-    if request.w_prime_model == "differential":
-        exponent = np.where(above, 0.0, excess * time / w_prime)
-        decay = np.exp(exponent)
-        d_decay = np.where(above, 0.0, decay * (time + excess * dtime) / w_prime)
-        d_increment = np.where(above, time + excess * dtime, 0.0)
-    else:
-        below = ~above & (power < critical)
-        below_time = float(time[below].sum())
-        gap = (critical - float(np.sum(power[below] * time[below])) / below_time
-               if below_time > 0 else 0.0)
-        tau = recovery_time_constant(gap)
-        decay = np.exp(-time / tau)
-        d_decay = -decay * dtime / tau
-        d_increment = np.where(above, tau * (1.0 - decay), 0.0) + np.maximum(excess, 0.0) * \
-            decay * dtime
-    deficit = w_prime - np.concatenate([[w_prime], steady_w_prime_balance(power, time, request)])
-    local = deficit[:-1] * d_decay + d_increment  # dD_{k+1}/dP_k
-    log_decay = np.concatenate([[0.0], np.cumsum(np.log(np.maximum(decay, 1e-300)))])
-    rows = np.arange(power.size)[:, None]
-    cols = np.arange(power.size)[None, :]
-    # the deficit after segment r (row r) depends on P_k, k ≤ r, through Π_{k<m≤r} a_m
-    span = np.where(cols <= rows, log_decay[rows + 1] - log_decay[cols + 1], -np.inf)
-    jacobian = -np.exp(span) * local[None, :]
-    if request.w_prime_model == "integral" and below_time > 0:
-        jacobian -= _recovery_constant_term(power, time, dtime, excess, decay, deficit, below,
-                                            below_time, gap, tau)
-    return jacobian
-
-
-def _recovery_constant_term(power: np.ndarray, time: np.ndarray, dtime: np.ndarray,
-                            excess: np.ndarray, decay: np.ndarray, deficit: np.ndarray,
-                            below: np.ndarray, below_time: float, gap: float, tau: float
-                            ) -> np.ndarray:
-    """The integral model's dD_{r+1}/dτ · dτ/dP_k [J/W], shape (K, K): τ depends on every
-    below-CP segment through D_CP = CP − Σ_b P·t / Σ_b t."""
-    d_gap = np.where(below, -(time + power * dtime) / below_time
-                     + float(np.sum(power[below] * time[below])) * dtime / below_time**2,
-                     0.0)
-    d_tau = -5.46 * np.exp(-0.01 * gap) * d_gap
-    by_tau = np.empty(power.size)  # dD_{r+1}/dτ
-    slope = 0.0
-    for r in range(power.size):
-        da = decay[r] * time[r] / tau**2
-        db = max(excess[r], 0.0) * ((1.0 - decay[r]) - decay[r] * time[r] / tau)
-        slope = decay[r] * slope + deficit[r] * da + db
-        by_tau[r] = slope
-    return np.outer(by_tau, d_tau)
-
-
-class _ScaledProblem:
-    """The fastest-plan problem in SLSQP's variables x = P/P̄ [-], with its objective (finish
-    time over the constant plan's) and constraints (coupling, W′ balance, effort) and their
-    analytic gradients; one steady evaluation per new x."""
-
-    def __init__(self, problem: FastestProblem) -> None:
-        self.model, self.request, self.counter = problem.model, problem.request, problem.counter
-        self.centre, self.target = coupling_constraint(self.request, self.model)
-        self.mean = required_mean_power(self.request)
-        time0, _, _ = steady_segment_times(self.model, np.full(self.model.count, self.mean))
-        self.total0 = float(time0.sum())
-        self.cache: dict[bytes, tuple[np.ndarray, np.ndarray, np.ndarray]] = {}
-
-    def evaluate(self, x: np.ndarray) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
-        """steady_segment_times at powers x·P̄ (the last one kept)."""
-        key = x.tobytes()
-        if key not in self.cache:
-            self.cache.clear()
-            self.counter[0] += 1
-            self.cache[key] = steady_segment_times(self.model, x * self.mean)
-        return self.cache[key]
-
-    def objective(self, x: np.ndarray) -> float:
-        """Finish time over the constant plan's [-]."""
-        return float(self.evaluate(x)[0].sum() / self.total0)
-
-    def objective_gradient(self, x: np.ndarray) -> np.ndarray:
-        """Its gradient in x [-]."""
-        return self.evaluate(x)[1] * self.mean / self.total0
-
-    def coupling(self, x: np.ndarray) -> np.ndarray:
-        """(Σ (P_k − c)·t_k − E₀) / (P̄·T₀) [-], zero on the constraint."""
-        time = self.evaluate(x)[0]
-        return np.array([(np.sum((x * self.mean - self.centre) * time) - self.target)
-                         / (self.mean * self.total0)])
-
-    def coupling_gradient(self, x: np.ndarray) -> np.ndarray:
-        """Its gradient in x, shape (1, K) [-]."""
-        time, dtime, _ = self.evaluate(x)
-        mean = self.mean
-        return ((time + (x * mean - self.centre) * dtime) * mean / (mean * self.total0)
-                )[None, :]
-
-    def balance_constraint(self, reserve: float) -> dict[str, Any]:
-        """(W′ balance at each segment end − reserve) / W′ ≥ 0, with its Jacobian."""
-        w_prime = w_prime_parameters(self.request)[1]
-
-        def balance(x: np.ndarray) -> np.ndarray:
-            power = x * self.mean
-            return (steady_w_prime_balance(power, self.evaluate(x)[0], self.request)
-                    - reserve) / w_prime
-
-        def balance_jacobian(x: np.ndarray) -> np.ndarray:
-            time, dtime, _ = self.evaluate(x)
-            return _w_prime_jacobian(x * self.mean, time, dtime, self.request) * self.mean / \
-                w_prime
-
-        return {"type": "ineq", "fun": balance, "jac": balance_jacobian}
-
-    def effort_constraint(self, cap: float) -> dict[str, Any]:
-        """1 − (4th-power mean / cap)⁴ ≥ 0, with its gradient."""
-        def effort(x: np.ndarray) -> np.ndarray:
-            time = self.evaluate(x)[0]
-            return np.array([1.0 - (fourth_power_mean(x * self.mean, time) / cap) ** 4])
-
-        def effort_gradient(x: np.ndarray) -> np.ndarray:
-            time, dtime, _ = self.evaluate(x)
-            power = x * self.mean
-            total = time.sum()
-            fourth = np.sum(power**4 * time) / total
-            grad = (4 * power**3 * time + power**4 * dtime) / total - fourth * dtime / total
-            return (-grad * self.mean / cap**4)[None, :]
-
-        return {"type": "ineq", "fun": effort, "jac": effort_gradient}
-
-
-def _slsqp_plan(problem: FastestProblem, start: np.ndarray, limits: SolverLimits
-                ) -> tuple[np.ndarray, optimize.OptimizeResult]:
-    """Fastest powers with W′ reserve and/or effort cap by SLSQP (Kraft 1988) from `start`
-    [W]; (power [W], scipy's result)."""
-    scaled = _ScaledProblem(problem)
-    constraints: list[dict[str, Any]] = [
-        {"type": "eq", "fun": scaled.coupling, "jac": scaled.coupling_gradient}]
-    if limits.reserve is not None:
-        constraints.append(scaled.balance_constraint(limits.reserve))
-    if limits.cap is not None:
-        constraints.append(scaled.effort_constraint(limits.cap))
-    lower, upper, mean = problem.lower, problem.upper, scaled.mean
-    # SLSQP's small dense linear algebra runs up to 50× slower on a multi-threaded BLAS when
-    # the cores are busy (measured: 2.4 s against 0.045 s for 40 segments on 2 loaded cores)
-    with threadpool_limits(limits=1, user_api="blas"):
-        result = optimize.minimize(
-            scaled.objective, np.clip(start, lower, upper) / mean,
-            jac=scaled.objective_gradient,
-            bounds=list(zip(lower / mean, upper / mean, strict=True)), constraints=constraints,
-            method="SLSQP", options={"maxiter": 100, "ftol": _SLSQP_FTOL},
-        )
-    power = np.clip(result.x * mean, lower, upper)
-    return power, result
-
-
-def _polished(problem: FastestProblem, start: np.ndarray, held: SolverLimits
-              ) -> tuple[np.ndarray, optimize.OptimizeResult, bool, float]:
+def _polished(problem: FastestProblem, start: np.ndarray, held: SolverLimits,
+              warm: bool = False) -> tuple[np.ndarray, int, str, bool, float]:
     """SLSQP from a feasible start [W], moved back onto the coupling constraint; (power [W],
-    scipy's result, whether it keeps the limits and the coupling constraint, its steady finish
-    time [s]).
+    SLSQP iterations, its message, whether it keeps the limits and the coupling constraint,
+    its steady finish time [s]). `warm`: the start is a nearby problem's polished plan.
 
     SLSQP ends within its own tolerance of the limits, possibly just outside: it is given
     limits a hair inside the real ones (a few joules, a hundredth of a watt), and its answer
-    is moved back onto the coupling constraint by scaling the free powers.
+    is moved back onto the coupling constraint by scaling the free powers. Up to
+    _SLSQP_MAX_SEGMENTS segments plain SLSQP polishes (as recorded in the golden outputs);
+    up to FINE_MAX_SEGMENTS the sided rounds follow it, which converge where plain SLSQP
+    zigzags across CP (from a nearby problem's polished plan, they alone); above, windows of
+    WINDOW_SEGMENTS are polished in turn (pacing.plan.slsqp_polish).
     """
     model, request = problem.model, problem.request
     inside = SolverLimits(
         None if held.reserve is None
         else held.reserve + _SLSQP_MARGIN * w_prime_parameters(request)[1],
         None if held.cap is None else held.cap * (1 - _SLSQP_MARGIN))
-    polished, result = _slsqp_plan(problem, start, inside)
+    if model.count <= FINE_MAX_SEGMENTS:
+        sided = model.count > _SLSQP_MAX_SEGMENTS
+        polished, iterations, message = start, 0, ""
+        if not (sided and warm):
+            polished, result = slsqp_plan(problem, start, inside)
+            iterations, message = int(result.nit), str(result.message)
+        if sided:
+            # plain SLSQP has found where W′ is spent; the sided rounds converge from there
+            polished, result = sided_slsqp_plan(problem, polished, inside)
+            iterations, message = iterations + int(result.nit), str(result.message)
+    else:
+        polished, iterations = window_polish(problem, start, held, inside, WINDOW_SEGMENTS)
+        message = f"polished in windows of {WINDOW_SEGMENTS} segments"
     polished = onto_coupling(model, request, polished, problem.lower, problem.upper,
                              problem.counter)
     centre, target = coupling_constraint(request, model)
-    time, _, _ = steady_segment_times(model, polished)
+    time, _ = steady_times(model, polished)
     coupling_gap = abs(float(np.sum((polished - centre) * time)) - target)
     feasible = (problem.keeps(polished, held, 1e-6)
                 and coupling_gap <= 1e-7 * required_mean_power(request) * float(time.sum()))
-    return polished, result, feasible, float(time.sum())
+    return polished, iterations, message, feasible, float(time.sum())
 
 
 def _active_limits(problem: FastestProblem, power: np.ndarray, held: SolverLimits
                    ) -> tuple[str, ...]:
     """The held limits the plan sits on, within twice PRICE_TOLERANCE."""
-    time, _, _ = steady_segment_times(problem.model, power)
+    time, _ = steady_times(problem.model, power)
     active = []
     request = problem.request
     if held.reserve is not None and steady_w_prime_balance(power, time, request).min() <= (
@@ -310,15 +167,15 @@ def _warm_plan(problem: FastestProblem, start: tuple[np.ndarray, SolverReport], 
                multiplier: float, iterations: int) -> tuple[np.ndarray, SolverReport] | None:
     """SLSQP from a nearby problem's plan (`start`), with the limits that bind; the plan and
     its report when its answer keeps them and the coupling constraint, else None."""
-    power, result, feasible, _ = _polished(problem, np.asarray(start[0], dtype=float), held)
+    power, nit, message, feasible, _ = _polished(problem, np.asarray(start[0], dtype=float),
+                                                 held, warm=True)
     if not feasible:
         return None
     active = _active_limits(problem, power, held)
     method = start[1].method if start[1].method.endswith("+slsqp") else (
         start[1].method + "+slsqp")
-    return power, SolverReport(method, multiplier, iterations + int(result.nit),
-                               problem.counter[0], float("nan"), str(result.message),
-                               active=active)
+    return power, SolverReport(method, multiplier, iterations + nit, problem.counter[0],
+                               float("nan"), message, active=active)
 
 
 def _ceiling_plan(problem: FastestProblem, held: SolverLimits, counts: list[int]
@@ -362,7 +219,7 @@ def _limited_plan(problem: FastestProblem, multiplier: float, iterations: int,
     #    split too fine for SLSQP): its plan is a plan of this split (same pieces, same
     #    powers), so this split starts from it and can only improve on it
     grouped, steps = coarse_start_plan(problem, every.reserve, every.cap, fastest_steady_plan,
-                                       _SLSQP_MAX_SEGMENTS) if coarse_start else (None, 0)
+                                       FINE_MAX_SEGMENTS) if coarse_start else (None, 0)
     # [iterations, ceiling steps]
     counts = [iterations + steps, 0]
     # with a plan of the coarser problem in hand, steps 2-3 (starts for the polish that lose
@@ -372,13 +229,11 @@ def _limited_plan(problem: FastestProblem, multiplier: float, iterations: int,
     else:
         power, method, message = _feasible_start(problem, multiplier, held, counts)
     # 4. polish with SLSQP on the full problem from that feasible start; keep its answer only
-    #    if it is feasible, meets the coupling constraint and is faster
-    nit = 0
-    if problem.model.count <= _SLSQP_MAX_SEGMENTS:
-        polished, result, feasible, finish = _polished(problem, power, held)
-        nit = int(result.nit)
-        if feasible and finish < problem.finish(power):
-            power, method, message = polished, method + "+slsqp", str(result.message)
+    #    if it is feasible, meets the coupling constraint and is faster (on a split too long
+    #    to polish, the polished plan of its runs is the answer)
+    polished, nit, polish_message, feasible, finish = _polished(problem, power, held)
+    if feasible and finish < problem.finish(power):
+        power, method, message = polished, method + "+slsqp", polish_message
     return power, SolverReport(method, multiplier, counts[0] + counts[1] + nit,
                                problem.counter[0], float("nan"), message,
                                active=_active_limits(problem, power, held))
@@ -421,7 +276,8 @@ def fastest_steady_plan(
     Minimises the steady finish time Σ t_k(P_k) under the request's coupling constraint
     (equal time-weighted mean power, or equal work), the power bounds, and the W′ reserve and
     effort cap: the Lagrange solve when no limit binds, else a feasible start (coarser
-    problem, priced limit or common power ceiling) polished by SLSQP (module docstring).
+    problem, priced limit or common power ceiling) polished by SLSQP on every segment
+    (module docstring).
 
     Parameters
     ----------
@@ -464,9 +320,10 @@ def fastest_steady_plan(
 
     Notes
     -----
-    Above _SLSQP_MAX_SEGMENTS (120) segments the SLSQP polish is skipped, and the plan is the
-    coarser problem's (one power per run of a few segments, itself polished) or the priced /
-    ceiling plan.
+    Every split is polished on its own segments: up to 120 by plain SLSQP, up to 240 by plain
+    SLSQP and sided rounds, above by windows of 60 segments (module docstring). The problem
+    is not convex (W′ recovers below CP), so a polish from another start can still find a
+    faster plan; the one known case is tests/test_plan_fastest.py's strict xfail.
 
     References
     ----------
@@ -494,7 +351,7 @@ def fastest_steady_plan(
     power, multiplier, iterations = lagrange_plan(model, request, lower, upper, problem.counter)
     centre, _ = coupling_constraint(request, model)
     stationarity = stationarity_residual(model, power, multiplier, centre, lower, upper)
-    time, _, _ = steady_segment_times(model, power)
+    time, _ = steady_times(model, power)
     breaks_w_prime = (reserve is not None
                       and steady_w_prime_balance(power, time, request).min() < reserve)
     breaks_cap = cap is not None and fourth_power_mean(power, time) > cap
@@ -505,7 +362,7 @@ def fastest_steady_plan(
     if breaks_w_prime and reserve is not None:
         _check_reserve_reachable(request, time, reserve)
     held = SolverLimits(reserve if breaks_w_prime else None, cap if breaks_cap else None)
-    if start is not None and model.count <= _SLSQP_MAX_SEGMENTS:
+    if start is not None:
         warm = _warm_plan(problem, start, held, multiplier, iterations)
         if warm is not None:
             return warm

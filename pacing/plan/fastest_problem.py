@@ -16,7 +16,7 @@ import numpy as np
 
 from pacing.plan.lagrange import fourth_power_mean, steady_w_prime_balance
 from pacing.plan.request import PlanRequest, w_prime_parameters
-from pacing.plan.steady_model import SegmentModel, steady_segment_times
+from pacing.plan.steady_model import SegmentModel, steady_times
 
 
 @dataclass(frozen=True)
@@ -29,7 +29,9 @@ class SolverReport:
         "constant"; "lagrange" (coupling constraint and bounds only); "lagrange+price" or
         "lagrange+ceiling" (a limit priced, or a common power ceiling), with "+slsqp" when
         SLSQP improved that plan; "grouped+" in front when the plan started from the coarser
-        problem's (whose own method follows) [-].
+        problem's (whose own method follows); "+blend" at the end when only a share of the
+        plan, the rest constant power, kept the limits on the verified ride
+        (pacing.plan.cycling) [-].
     multiplier : float or None
         λ, time saved per joule-equivalent of the coupling constraint (Lagrange stage); None
         when not used [1/J].
@@ -117,7 +119,7 @@ class FastestProblem:
         bool
             True when every given limit is kept [-].
         """
-        time, _, _ = steady_segment_times(self.model, power)
+        time, _ = steady_times(self.model, power)
         self.counter[0] += 1
         request = self.request
         return ((limits.reserve is None
@@ -139,4 +141,4 @@ class FastestProblem:
         float
             The sum of the segments' steady times [s].
         """
-        return float(steady_segment_times(self.model, power)[0].sum())
+        return float(steady_times(self.model, power)[0].sum())

@@ -45,7 +45,7 @@ import numpy as np
 from pacing.errors import InputError
 from pacing.physiology.critical_power import w_prime_balance
 from pacing.plan.request import PlanRequest, required_mean_power, w_prime_parameters
-from pacing.plan.steady_model import SegmentModel, steady_segment_times
+from pacing.plan.steady_model import SegmentModel, steady_segment_times, steady_times
 
 _POWER_TOLERANCE = 1e-11  # relative, on segment powers
 
@@ -70,7 +70,7 @@ def coupling_constraint(request: PlanRequest, model: SegmentModel) -> tuple[floa
     mean = required_mean_power(request)
     if request.constraint == "mean-power":
         return mean, 0.0
-    time, _, _ = steady_segment_times(model, np.full(model.count, mean))
+    time, _ = steady_times(model, np.full(model.count, mean))
     return 0.0, mean * float(time.sum())
 
 
@@ -298,7 +298,7 @@ def lagrange_plan(
     """
     centre, target = coupling_constraint(request, model)
     mean = required_mean_power(request)
-    time, dtime, _ = steady_segment_times(model, np.full(model.count, mean))
+    time, dtime = steady_times(model, np.full(model.count, mean))
     counter[0] += 1
     multiplier = float(-dtime.sum() / time.sum())  # λ of a uniform course
     tolerance = 1e-9 * mean * float(time.sum())
@@ -363,7 +363,7 @@ def stationarity_residual(model: SegmentModel, power: np.ndarray, multiplier: fl
     float
         The residual, 0 when no segment is free [-].
     """
-    time, dtime, _ = steady_segment_times(model, power)
+    time, dtime = steady_times(model, power)
     gradient = dtime * (1.0 + multiplier * (power - centre)) + multiplier * time
     free = (power > lower * (1 + 1e-6) + 1e-9) & (power < upper * (1 - 1e-6))
     if not free.any():
@@ -371,8 +371,8 @@ def stationarity_residual(model: SegmentModel, power: np.ndarray, multiplier: fl
     return float(np.max(np.abs(gradient[free]) / np.abs(multiplier * time[free])))
 
 
-def steady_w_prime_balance(power: np.ndarray, time: np.ndarray, request: PlanRequest
-                           ) -> np.ndarray:
+def steady_w_prime_balance(power: np.ndarray, time: np.ndarray, request: PlanRequest,
+                           initial_balance: float | None = None) -> np.ndarray:
     """W′ balance at the end of each segment ridden at steady power.
 
     Parameters
@@ -383,6 +383,8 @@ def steady_w_prime_balance(power: np.ndarray, time: np.ndarray, request: PlanReq
         Segment times, length K [s].
     request : PlanRequest
         CP, W′ and the W′ balance model [-].
+    initial_balance : float or None
+        Balance at the start of the first segment; None for W′ (rested) [J].
 
     Returns
     -------
@@ -395,7 +397,8 @@ def steady_w_prime_balance(power: np.ndarray, time: np.ndarray, request: PlanReq
     44(8):1526-1532. doi:10.1249/MSS.0b013e3182517a80 (pacing.physiology.critical_power).
     """
     critical_power, w_prime = w_prime_parameters(request)
-    return w_prime_balance(power, time, critical_power, w_prime, request.w_prime_model)
+    return w_prime_balance(power, time, critical_power, w_prime, request.w_prime_model,
+                           initial_balance)
 
 
 def fourth_power_mean(power: np.ndarray, time: np.ndarray) -> float:
@@ -453,12 +456,12 @@ def onto_coupling(model: SegmentModel, request: PlanRequest, power: np.ndarray,
 
     def gap(scale: float) -> tuple[float, np.ndarray]:
         trial = np.clip(np.where(free, power * scale, power), lower, upper)
-        time, _, _ = steady_segment_times(model, trial)
+        time, _ = steady_times(model, trial)
         counter[0] += 1
         return float(np.sum((trial - centre) * time) - target), trial
 
     tolerance = 1e-9 * required_mean_power(request) * float(
-        steady_segment_times(model, power)[0].sum())
+        steady_times(model, power)[0].sum())
     previous = (1.0, *gap(1.0))
     scale = 1.0 + 1e-4 * (1.0 if previous[1] < 0 else -1.0)
     for _ in range(8):

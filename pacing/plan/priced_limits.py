@@ -34,7 +34,7 @@ from pacing.plan.lagrange import (
     steady_w_prime_balance,
 )
 from pacing.plan.request import PlanRequest, required_mean_power, w_prime_parameters
-from pacing.plan.steady_model import SegmentModel, steady_segment_times
+from pacing.plan.steady_model import SegmentModel, steady_times
 
 PRICE_TOLERANCE = 1e-3
 """Slack the priced plan may leave on its limit, relative to W′ or to the cap [-]."""
@@ -71,7 +71,7 @@ class _PricedLimit:
         except InputError:
             return None, -math.inf
         self.warm.append((found, power))
-        time, _, _ = steady_segment_times(self.model, power)
+        time, _ = steady_times(self.model, power)
         self.counter[0] += 1
         if self.on_w_prime:
             w_prime = w_prime_parameters(self.request)[1]

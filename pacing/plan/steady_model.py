@@ -8,6 +8,12 @@ and cheap. The per-piece constants of the balance are computed once per model, t
 steps for the speeds start from the previous call's speeds, and calm crosswind skips the
 apparent-wind square root: one evaluation over 4,000 pieces takes about 0.1 ms.
 
+The Newton steps and, for solvers that need no second derivative (`steady_times`), the sums
+run as compiled kernels (pacing.kernels) on long courses or once the kernels are loaded; they
+repeat numpy's operations in numpy's order (its pairwise sums included), so a plan is the same
+to the last bit with or without them. Not x**3, which numpy computes with its own vectorised
+power: the second derivative stays in numpy.
+
 References
 ----------
 Martin, J.C., Milliken, D.L., Cobb, J.E., McFadden, K.L. & Coggan, A.R. (1998). Validation of a
@@ -17,12 +23,16 @@ doi:10.1123/jab.14.3.276
 
 from __future__ import annotations
 
+import math
+import os
 from dataclasses import dataclass, field
+from types import SimpleNamespace
 from typing import Any
 
 import numpy as np
 from numpy.typing import ArrayLike
 
+from pacing import kernels
 from pacing.course.geometry import Course
 from pacing.course.segments import piece_segment_index
 from pacing.errors import InputError
@@ -190,6 +200,71 @@ def steady_segment_times(
     return sums[0], sums[1], sums[2]
 
 
+def steady_times(model: SegmentModel, segment_power: ArrayLike
+                 ) -> tuple[np.ndarray, np.ndarray]:
+    """Steady-state time of each segment and its derivative in power.
+
+    The first two results of `steady_segment_times`, the same numbers to the last bit, for
+    the solvers that need no second derivative (the SLSQP polish, the limit checks): on a long
+    course, or once the compiled kernels are loaded, one compiled pass over the pieces.
+
+    Parameters
+    ----------
+    model : SegmentModel
+        The course's pieces grouped into segments [-].
+    segment_power : array_like
+        Crank power of each segment, length K [W].
+
+    Returns
+    -------
+    time : numpy.ndarray
+        Time of each segment, length K [s].
+    dtime : numpy.ndarray
+        Its derivative in the segment's power, length K [s/W].
+
+    References
+    ----------
+    Martin, J.C., Milliken, D.L., Cobb, J.E., McFadden, K.L. & Coggan, A.R. (1998). Validation
+    of a mathematical model for road cycling power. J Appl Biomech 14(3):276-291.
+    doi:10.1123/jab.14.3.276
+    """
+    power = np.asarray(segment_power, dtype=float)[model.segment]
+    speed = _steady_speed(model, power)
+    piece = _piece_constants(model)
+    efficiency = model.rider.drivetrain_efficiency
+    if piece.starts is not None and _use_kernel(speed.size):
+        time, dtime = np.empty(model.count), np.empty(model.count)
+        _compiled()._time_sums(speed, power, model.length, model.headwind, model.crosswind,
+                               piece.drag, piece.bearing, efficiency, piece.headwind,
+                               piece.calm_cross, piece.starts, time, dtime)
+        return time, dtime
+    slope = _force_slope(model, piece, speed)
+    inverse = 1.0 / speed
+    force = efficiency * np.maximum(power, 0.0) * inverse
+    first = efficiency / (force + speed * slope)
+    length_time = model.length * inverse  # L/v
+    terms = np.empty((2, speed.size))
+    terms[0] = length_time
+    terms[1] = -(length_time * first * inverse)  # −L·v′/v²
+    if piece.starts is None:
+        return (np.bincount(model.segment, terms[0], model.count),
+                np.bincount(model.segment, terms[1], model.count))
+    sums = np.add.reduceat(terms, piece.starts, axis=1)
+    return sums[0], sums[1]
+
+
+def _force_slope(model: SegmentModel, piece: _PieceConstants, speed: np.ndarray
+                 ) -> np.ndarray:
+    """F′ of the resisting force at the steady speeds [N·s/m] (`_force_slopes` without F″)."""
+    drag = piece.drag
+    along = speed + model.headwind if piece.headwind else speed
+    if piece.calm_cross:
+        return 2.0 * (drag * np.abs(along)) + piece.bearing
+    apparent = np.hypot(along, model.crosswind)
+    safe = np.where(apparent > 0, apparent, 1.0)
+    return drag * (apparent + along**2 / safe) + piece.bearing
+
+
 def _force_slopes(model: SegmentModel, piece: _PieceConstants, speed: np.ndarray
                   ) -> tuple[np.ndarray, np.ndarray]:
     """F′ [N·s/m] and F″ [N·s²/m²] of the resisting force at the steady speeds [m/s]."""
@@ -256,6 +331,186 @@ def _piece_constants(model: SegmentModel) -> _PieceConstants:
     return found
 
 
+# ------------------------------------------------------------------ kernel
+# A plain function of floats, bools and arrays (pacing.kernels): compiled by numba for long
+# courses or once the kernels are loaded; the same steps as `_newton_speeds_numpy`, operation
+# for operation, so both give the same speeds to the last bit.
+
+KERNELS = ("_newton_speeds", "_pairwise_sum", "_segment_sum", "_time_sums")
+"""The kernel functions of this module (pacing.kernels.compiled)."""
+
+_NEWTON_STEPS = 8  # most Newton steps from the previous speeds before the fallback
+
+
+def _newton_speeds(speed: np.ndarray, step: np.ndarray, headwind: np.ndarray,
+                   crosswind: np.ndarray, drag: np.ndarray, constant: np.ndarray,
+                   bearing: float, drive: np.ndarray, has_headwind: bool, calm_cross: bool
+                   ) -> None:
+    """Newton steps on g(v) = F(v) − η·P/v for every piece, all pieces per step, until every
+    step is within 1e-12 of the slowest speed (at most _NEWTON_STEPS): `speed` [m/s] and the
+    last `step` [m/s] of each piece are written in place. A step that is not a number (or a
+    zero speed) leaves the piece to the caller's fallback."""
+    count = speed.size
+    for _ in range(_NEWTON_STEPS):
+        largest = 0.0
+        smallest = math.inf
+        undefined = False
+        for i in range(count):
+            v = speed[i]
+            if v == 0.0:
+                undefined = True
+                step[i] = math.nan
+                speed[i] = math.nan
+                continue
+            along = v + headwind[i] if has_headwind else v
+            pushed = drive[i] / v
+            if calm_cross:
+                pull = drag[i] * abs(along)
+                value = pull * along + constant[i] + bearing * v - pushed
+                slope = 2.0 * pull + bearing + pushed / v
+            else:
+                apparent = math.hypot(along, crosswind[i])
+                safe = apparent if apparent > 0 else 1.0
+                value = drag[i] * apparent * along + constant[i] + bearing * v - pushed
+                slope = drag[i] * (apparent + along * along / safe) + bearing + pushed / v
+            change = value / slope if slope != 0.0 else math.nan
+            v = v - change
+            step[i] = change
+            speed[i] = v
+            if change != change or v != v:
+                undefined = True
+            else:
+                largest = max(largest, abs(change))
+                smallest = min(smallest, abs(v))
+        if not undefined and largest <= 1e-12 * smallest:
+            return
+
+
+def _pairwise_sum(values: np.ndarray, first: int, count: int) -> float:
+    """Σ values[first:first + count] in numpy's pairwise order (8 accumulators in blocks of at
+    most 128, halves above), so the compiled sums equal numpy's to the last bit."""
+    if count < 8:
+        total = 0.0
+        for i in range(first, first + count):
+            total += values[i]
+        return total
+    if count <= 128:
+        r0, r1, r2, r3 = values[first], values[first + 1], values[first + 2], values[first + 3]
+        r4, r5, r6, r7 = values[first + 4], values[first + 5], values[first + 6], values[first + 7]
+        i = 8
+        whole = count - count % 8
+        while i < whole:
+            at = first + i
+            r0 += values[at]
+            r1 += values[at + 1]
+            r2 += values[at + 2]
+            r3 += values[at + 3]
+            r4 += values[at + 4]
+            r5 += values[at + 5]
+            r6 += values[at + 6]
+            r7 += values[at + 7]
+            i += 8
+        total = ((r0 + r1) + (r2 + r3)) + ((r4 + r5) + (r6 + r7))
+        while i < count:
+            total += values[first + i]
+            i += 1
+        return total
+    half = count // 2
+    half -= half % 8
+    return (_pairwise_sum(values, first, half)
+            + _pairwise_sum(values, first + half, count - half))
+
+
+def _segment_sum(values: np.ndarray, first: int, stop: int) -> float:
+    """Σ values[first:stop] as numpy's add.reduceat sums one segment: its first value plus
+    the pairwise sum of the rest."""
+    if stop - first <= 1:
+        return values[first]
+    return values[first] + _pairwise_sum(values, first + 1, stop - first - 1)
+
+
+def _time_sums(speed: np.ndarray, power: np.ndarray, length: np.ndarray,
+               headwind: np.ndarray, crosswind: np.ndarray, drag: np.ndarray, bearing: float,
+               efficiency: float, has_headwind: bool, calm_cross: bool, starts: np.ndarray,
+               time: np.ndarray, dtime: np.ndarray) -> None:
+    """Segment times t_k = Σ L/v [s] and t_k′ = −Σ L·v′/v² [s/W] written into `time` and
+    `dtime`, operation for operation as `steady_times` does them with numpy."""
+    count = speed.size
+    length_time = np.empty(count)
+    first_time = np.empty(count)
+    for i in range(count):
+        v = speed[i]
+        along = v + headwind[i] if has_headwind else v
+        if calm_cross:
+            slope = 2.0 * (drag[i] * abs(along)) + bearing
+        else:
+            apparent = math.hypot(along, crosswind[i])
+            safe = apparent if apparent > 0 else 1.0
+            slope = drag[i] * (apparent + along * along / safe) + bearing
+        inverse = 1.0 / v
+        force = efficiency * max(power[i], 0.0) * inverse
+        first = efficiency / (force + v * slope)
+        length_time[i] = length[i] * inverse
+        first_time[i] = -(length_time[i] * first * inverse)
+    segments = starts.size
+    for k in range(segments):
+        stop = starts[k + 1] if k + 1 < segments else count
+        time[k] = _segment_sum(length_time, starts[k], stop)
+        dtime[k] = _segment_sum(first_time, starts[k], stop)
+
+
+def _compiled() -> SimpleNamespace:
+    """This module's kernel compiled by numba (built once per process)."""
+    return kernels.compiled(globals(), KERNELS)
+
+
+def _use_kernel(pieces: int) -> bool:
+    """Whether the compiled Newton steps serve a course of `pieces` pieces: as
+    pacing.kernels.use_compiled decides (the work is pieces × _NEWTON_STEPS), except with
+    NUMBA_DISABLE_JIT=1, where the kernel would be a Python loop and numpy is faster."""
+    if os.environ.get("NUMBA_DISABLE_JIT", "0") not in ("", "0"):
+        return False
+    return kernels.use_compiled(pieces * _NEWTON_STEPS)
+
+
+def warm_up_kernels() -> None:
+    """Load (or compile) this module's kernel on two pieces (pacing.kernels.warm_up)."""
+    two = np.ones(2)
+    for calm in (True, False):
+        _compiled()._newton_speeds(np.full(2, 8.0), np.empty(2), two, two, 0.2 * two,
+                                   3.0 * two, 0.01, 200.0 * two, True, calm)
+        _compiled()._time_sums(np.full(2, 8.0), 200.0 * two, 10.0 * two, two, two, 0.2 * two,
+                               0.01, 0.976, True, calm, np.array([0, 1]), np.empty(2),
+                               np.empty(2))
+
+
+def _newton_speeds_numpy(model: SegmentModel, piece: _PieceConstants, drive: np.ndarray,
+                         speed: np.ndarray) -> np.ndarray:
+    """`_newton_speeds` on numpy arrays, every piece at once: `speed` [m/s] updated in place;
+    the last step of each piece [m/s]."""
+    drag, constant, bearing = piece.drag, piece.constant, piece.bearing
+    step = np.full(speed.shape, np.inf)
+    with np.errstate(all="ignore"):
+        for _ in range(_NEWTON_STEPS):
+            along = speed + model.headwind if piece.headwind else speed
+            pushed = drive / speed  # η·P/v
+            if piece.calm_cross:
+                pull = drag * np.abs(along)  # k·|v_a|: drag k·|v_a|·v_a, slope 2k·|v_a|
+                value = pull * along + constant + bearing * speed - pushed
+                slope = 2.0 * pull + bearing + pushed / speed
+            else:
+                apparent = np.hypot(along, model.crosswind)
+                value = drag * apparent * along + constant + bearing * speed - pushed
+                slope = (drag * (apparent + along**2 / np.where(apparent > 0, apparent, 1.0))
+                         + bearing + pushed / speed)
+            step = value / slope
+            speed -= step
+            # every piece within 1e-12 of its speed (a max against a min: one pass each)
+            if np.abs(step).max() <= 1e-12 * np.abs(speed).min():
+                break
+    return step
+
+
 def _steady_speed(model: SegmentModel, power: np.ndarray) -> np.ndarray:
     """Steady speed on every piece [m/s].
 
@@ -271,28 +526,15 @@ def _steady_speed(model: SegmentModel, power: np.ndarray) -> np.ndarray:
         model.speed_guess["speed"] = speed
         return speed
     piece = _piece_constants(model)
-    drag, constant, bearing = piece.drag, piece.constant, piece.bearing
     drive = rider.drivetrain_efficiency * np.maximum(power, 0.0)
     speed = guess.copy()
-    step = np.full(speed.shape, np.inf)
-    with np.errstate(all="ignore"):
-        for _ in range(8):
-            along = speed + model.headwind if piece.headwind else speed
-            pushed = drive / speed  # η·P/v
-            if piece.calm_cross:
-                pull = drag * np.abs(along)  # k·|v_a|: drag k·|v_a|·v_a, slope 2k·|v_a|
-                value = pull * along + constant + bearing * speed - pushed
-                slope = 2.0 * pull + bearing + pushed / speed
-            else:
-                apparent = np.hypot(along, model.crosswind)
-                value = drag * apparent * along + constant + bearing * speed - pushed
-                slope = (drag * (apparent + along**2 / np.where(apparent > 0, apparent, 1.0))
-                         + bearing + pushed / speed)
-            step = value / slope
-            speed = speed - step
-            # every piece within 1e-12 of its speed (a max against a min: one pass each)
-            if np.abs(step).max() <= 1e-12 * np.abs(speed).min():
-                break
+    if _use_kernel(speed.size):
+        step = np.empty(speed.size)
+        _compiled()._newton_speeds(speed, step, model.headwind, model.crosswind, piece.drag,
+                                   piece.constant, piece.bearing, drive, piece.headwind,
+                                   piece.calm_cross)
+    else:
+        step = _newton_speeds_numpy(model, piece, drive, speed)
     converged = np.abs(step) <= 1e-12 * np.abs(speed)
     bad = ~(converged & np.isfinite(speed) & (speed > _MINIMUM_SPEED))
     if bad.any():
