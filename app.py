@@ -1,13 +1,25 @@
 """Streamlit front end: from a GPX course to a race plan and a segment target table.
 
 One page, top to bottom: route → athlete and equipment → weather → pacing approach → predicted
-race → downloads. The page only calls the library (ui.pipeline); expensive steps are cached on
-the file's bytes and the inputs. Run with ``make app`` (``streamlit run app.py``).
+race → downloads, then three sections opened on request (setups side by side, the coach's
+library, drag area from road tests: their imports and work are paid only when asked for). The
+page only calls the library (ui.pipeline). Results and figures are cached with st.cache_data on
+the file's digest and the inputs (each session gets its own copy); the library's compiled
+kernels are made ready once per server process, in the background after the first page. Run
+with ``make app`` (``streamlit run app.py``).
 """
 
 from __future__ import annotations
 
+import contextlib
 import hashlib
+import os
+import subprocess
+import sys
+import threading
+import time
+from collections.abc import Callable
+from concurrent.futures import Future
 from pathlib import Path
 
 import numpy as np
@@ -19,34 +31,103 @@ from pacing.display.units import format_duration, to_display, unit_label
 from pacing.errors import InputError, first_line
 from pacing.io.exports import segment_table
 from pacing.physics.wind import ROUGHNESS_LENGTHS
-from ui import (
-    comparison,
-    fieldtest_panel,
-    figures,
-    library_data,
-    library_panel,
-    pipeline,
-    sections,
-    text,
-)
+from ui import figures, library_data, pipeline, sections, text
 
 st.set_page_config(page_title="pacing · race plan", layout="wide")
 
 
 # ------------------------------------------------------------------------------ cached steps
+# Results and figures are cached with st.cache_data, keyed on the inputs they depend on (the
+# course's key: the file's digest and how it was read; the plan's inputs as sorted tuples; the
+# unit system): every session gets its own copy, a rerun that changes nothing they depend on
+# recomputes nothing, and a refusal is cached like a result. Figures are cached as plotly's
+# plain data (ui.figures *_spec) and drawn from it without validating it again.
+
+KERNEL_COMPILE_TIMEOUT = 900.0
+"""Longest wait for the library's kernels to compile in their own process [s]."""
+WARM_UP_VARIABLE = "PACING_APP_WARM_UP"
+"""Environment variable: "0" keeps the page from warming up the kernels (the app's tests set
+it, so no background compilation runs beside the rest of a test session)."""
+KERNEL_WARM_UP_DELAY = 2.0
+"""Seconds between the end of the first page and the kernels' warm-up: the page reaches the
+browser and is drawn before the warm-up takes a core (a coach reads the page longer)."""
+
+
+def ready_kernels(warm_up: Callable[[], float]) -> float:
+    """Seconds until the library's compiled kernels are loaded in this process: first
+    `warm_up` in a Python process of its own, which compiles them into numba's on-disk cache
+    when that is missing or stale (minutes, on a busy machine) without holding this server's
+    interpreter lock or numba's compiler lock meanwhile, then `warm_up` here, a load from that
+    cache (a fraction of a second)."""
+    start = time.perf_counter()
+    with contextlib.suppress(OSError, subprocess.SubprocessError):
+        subprocess.run([sys.executable, "-c", "from pacing.kernels import warm_up; warm_up()"],
+                       capture_output=True, timeout=KERNEL_COMPILE_TIMEOUT, check=False)
+    warm_up()
+    return time.perf_counter() - start
+
+
+@st.cache_resource(show_spinner=False)
+def kernels_warm_up() -> Future | None:
+    """Make the library's compiled kernels ready in a background thread, once per server
+    process (`ready_kernels`): started after the first page is drawn, so that page does not
+    wait (its plan runs the kernels as plain Python), and ready for the reruns that follow
+    (KERNEL_WARM_UP_DELAY later). None when the library has no compiled kernels."""
+    try:
+        from pacing import kernels  # importing it is cheap: numba loads in warm_up
+    except ImportError:
+        return None
+    warm_up = getattr(kernels, "warm_up", None)
+    if warm_up is None:
+        return None
+    started: Future = Future()
+
+    def work() -> None:
+        time.sleep(KERNEL_WARM_UP_DELAY)
+        try:
+            started.set_result(ready_kernels(warm_up))
+        except Exception as error:  # shown in the caption; the plans run as plain Python
+            started.set_exception(error)
+
+    # a daemon: a server stopping does not wait for a compilation
+    threading.Thread(target=work, name="pacing-kernels", daemon=True).start()
+    return started
+
+
+def kernels_status() -> Future | None:
+    """The kernels' warm-up (`kernels_warm_up`), started on the first call; None when
+    WARM_UP_VARIABLE is "0" or the library has no compiled kernels."""
+    if os.environ.get(WARM_UP_VARIABLE, "1") == "0":
+        return None
+    return kernels_warm_up()
+
+
+def kernels_caption(started: Future | None) -> str | None:
+    """A quiet line on the kernels' one-time cost: ready in N s, still loading, or not
+    available (the library then runs them as plain Python); None without kernels."""
+    if started is None:
+        return None
+    if not started.done():
+        return "Numeric kernels loading in the background (once per server start)."
+    failure = started.exception()
+    if failure is not None:
+        return f"Numeric kernels not available ({first_line(failure)}): plain Python instead."
+    return (f"Numeric kernels ready in {started.result():.1f} s (once per server start, in "
+            "the background).")
+
 
 @st.cache_data(max_entries=16, show_spinner=False)
 def read_demo(path: str) -> bytes:
     return Path(path).read_bytes()
 
 
-@st.cache_resource(max_entries=12, show_spinner="Reading the course…")
-def cached_course(data: bytes, name: str, window: float, max_grade: float, allow_flat: bool,
-                  tracks: tuple[int, ...] | None = None, gaps: str = "join"):
-    """(course, None) or (None, the refusal in one line): a refused file is not read again on
-    every rerun."""
+@st.cache_data(max_entries=12, show_spinner="Reading the course…")
+def cached_course(digest: str, _data: bytes, name: str, window: float, max_grade: float,
+                  allow_flat: bool, tracks: tuple[int, ...] | None = None, gaps: str = "join"):
+    """(course, None) or (None, the refusal in one line), keyed on the file's `digest` and how
+    it is read: a refused file is not read again on every rerun."""
     try:
-        return pipeline.load_course_from_bytes(data, name, window, max_grade, allow_flat,
+        return pipeline.load_course_from_bytes(_data, name, window, max_grade, allow_flat,
                                                tracks, gaps), None
     except (InputError, ValueError, OSError) as error:
         return None, first_line(error)
@@ -92,7 +173,14 @@ def cached_bounds(course_key: str, _course, mode: str, length, marks: tuple) -> 
     return pipeline.segment_bounds(_course, mode, length, marks)
 
 
-@st.cache_resource(max_entries=64, show_spinner="Working out the race…")
+def plain_inputs(values: dict) -> tuple:
+    """A dict of the page's inputs as a sorted tuple, whole numbers as floats (a widget gives
+    240 before it is touched and 240.0 after: the same plan, one cache entry)."""
+    return tuple(sorted((key, float(value) if type(value) is int else value)
+                        for key, value in values.items()))
+
+
+@st.cache_data(max_entries=64, show_spinner="Working out the race…")
 def cached_outcome(course_key: str, _course, bounds: tuple, athlete: tuple, weather: tuple,
                    approach: tuple):
     """(outcome, None) or (None, error message): refusals are cached too, so a slow refusal
@@ -107,22 +195,31 @@ def cached_outcome(course_key: str, _course, bounds: tuple, athlete: tuple, weat
         return None, f"the model could not work out this race ({first}); check the inputs"
 
 
-@st.cache_resource(max_entries=32, show_spinner=False)
-def cached_profile(course_key: str, _course, system: str, bounds: tuple | None):
-    return figures.profile_figure(_course, system,
-                                  None if bounds is None else np.asarray(bounds))
+@st.cache_data(max_entries=32, show_spinner=False)
+def cached_profile(course_key: str, _course, system: str, bounds: tuple | None) -> dict:
+    return figures.profile_spec(_course, system, None if bounds is None else np.asarray(bounds))
 
 
-@st.cache_resource(max_entries=32, show_spinner=False)
-def cached_map(course_key: str, _course, system: str, wind_speed: float, wind_from: float):
-    return figures.route_map_figure(_course, system, wind_speed, wind_from)
+@st.cache_data(max_entries=32, show_spinner=False)
+def cached_map(course_key: str, _course, system: str, wind_speed: float,
+               wind_from: float) -> dict:
+    return figures.route_map_spec(_course, system, wind_speed, wind_from)
 
 
-@st.cache_resource(max_entries=32, show_spinner=False)
-def cached_along(outcome_key: str, _outcome, system: str):
-    return figures.along_course_figure(_outcome.distance, _outcome.speed, _outcome.power,
-                                       _outcome.headwind, _outcome.w_prime_balance, system,
-                                       reserve="D′" if _outcome.sport == "running" else "W′")
+@st.cache_data(max_entries=32, show_spinner=False)
+def cached_along(outcome_key: str, _outcome, system: str) -> dict:
+    return figures.along_course_spec(
+        _outcome.distance, _outcome.speed, _outcome.power, _outcome.headwind,
+        _outcome.w_prime_balance, system, reserve="D′" if _outcome.sport == "running" else "W′")
+
+
+@st.cache_data(max_entries=32, show_spinner=False)
+def cached_targets(outcome_key: str, _rows: list, system: str):
+    """(segment target table, None) or (None, the refusal in one line)."""
+    try:
+        return segment_table(_rows, system), None
+    except InputError as error:
+        return None, first_line(error)
 
 
 def show_error(error: Exception, where: str = "") -> None:
@@ -184,16 +281,16 @@ elif demos:
 if source_bytes is None:
     st.warning("No course yet: upload a GPX file.")
 else:
-    reading = (source_bytes, source_name, smoothing["window"], smoothing["max_grade"],
+    digest = hashlib.sha1(source_bytes).hexdigest()
+    reading = (digest, source_bytes, source_name, smoothing["window"], smoothing["max_grade"],
                allow_flat)
     course, refusal = cached_course(*reading)
     if course is not None:
         tracks, gaps = recording_choices(course, system)
         if tracks is not None or gaps != "join":
             course, refusal = cached_course(*reading, tracks, gaps)
-        course_key = (hashlib.sha1(source_bytes).hexdigest()
-                      + f":{smoothing['window']}:{smoothing['max_grade']}:{allow_flat}"
-                      + f":{tracks}:{gaps}")
+        course_key = (f"{digest}:{source_name}:{smoothing['window']}:{smoothing['max_grade']}"
+                      f":{allow_flat}:{tracks}:{gaps}")
     if refusal:
         show_error(InputError(refusal), "Course file")
 if course is not None:
@@ -208,9 +305,9 @@ if course is not None:
         show_error(error, "Segments")
     cols = st.columns([3, 2])
     with cols[0]:
-        st.plotly_chart(cached_profile(course_key, course, system,
-                                       None if bounds is None else tuple(map(int, bounds))),
-                        key="profile")
+        st.plotly_chart(figures.drawable(cached_profile(
+            course_key, course, system, None if bounds is None else tuple(map(int, bounds)))),
+            key="profile")
     map_slot = cols[1].empty()
 
 # 2 · athlete and equipment ---------------------------------------------------------------
@@ -226,8 +323,9 @@ st.header(text.SECTION_WEATHER)
 weather = sections.weather_inputs(system, ROUGHNESS_LENGTHS)
 if map_slot is not None:
     with map_slot:
-        st.plotly_chart(cached_map(course_key, course, system, weather.get("wind_speed", 0.0),
-                                   weather.get("wind_from", 0.0)), key="map")
+        st.plotly_chart(figures.drawable(cached_map(
+            course_key, course, system, float(weather.get("wind_speed", 0.0)),
+            float(weather.get("wind_from", 0.0)))), key="map")
 
 # 4 · approach ----------------------------------------------------------------------------
 st.header(text.SECTION_APPROACH)
@@ -245,8 +343,8 @@ table = None
 if course is None or bounds is None or athlete is None or approach is None:
     st.info("Fix the inputs above to see the predicted race.")
 else:
-    inputs = (tuple(int(b) for b in bounds), tuple(sorted(athlete.items())),
-              tuple(sorted(weather.items())), tuple(sorted(approach.items())))
+    inputs = (tuple(int(b) for b in bounds), plain_inputs(athlete), plain_inputs(weather),
+              plain_inputs(approach))
     outcome_key = course_key + hashlib.sha1(repr(inputs).encode()).hexdigest()
     try:
         outcome, refusal = cached_outcome(course_key, course, *inputs)
@@ -264,13 +362,13 @@ if outcome is not None:
             st.warning(f"⚠ {describe(notice, system)}")
         else:
             st.caption(f"Note: {describe(notice, system)}")
-    st.plotly_chart(cached_along(outcome_key, outcome, system), key="along")
+    st.plotly_chart(figures.drawable(cached_along(outcome_key, outcome, system)), key="along")
     st.subheader("Segment targets")
-    try:
-        table = segment_table(outcome.rows, system)
+    table, refusal = cached_targets(outcome_key, outcome.rows, system)
+    if table is None:
+        show_error(InputError(refusal or "no table"), "Target table")
+    else:
         st.dataframe(table, hide_index=True, key="targets")
-    except InputError as error:
-        show_error(error, "Target table")
     st.caption(text.EXERTION_CAUTION)
 
 # 6 · take it with you --------------------------------------------------------------------
@@ -285,16 +383,30 @@ st.header(text.SECTION_SETUPS)
 if st.toggle("Compare positions and equipment on this course", key="show_setups",
              help="finish time, time won or lost along the course, break-even figures and "
                   "what each change is worth; takes a few seconds"):
+    from ui import comparison  # imported when asked for: the comparison's scipy parts
+
     comparison.render_comparison_for_page(course, bounds, athlete, weather, approach, system)
 
 # 8 · coach's library ---------------------------------------------------------------------
 st.header(text.SECTION_LIBRARY)
-library_panel.render_library_for_page(source_bytes, source_name, course, bounds, athlete,
-                                      weather, approach, smoothing, allow_flat, outcome, system,
-                                      split=split)
+if st.toggle("Open the coach's library", key="show_library",
+             help="athletes and setups to fill the page from, this plan saved with its course, "
+                  "saved plans reopened and worked out again, the library as a file"):
+    from ui import library_panel  # imported when asked for: the store (SQLAlchemy, Alembic)
+
+    library_panel.render_library_for_page(source_bytes, source_name, course, bounds, athlete,
+                                          weather, approach, smoothing, allow_flat, outcome,
+                                          system, split=split)
 
 # 9 · measure drag area on the road -------------------------------------------------------
 st.header(text.SECTION_ROAD_TEST)
 if st.toggle("Estimate CdA and Crr from test rides", key="show_road_test",
              help="upload rides with power and speed (CSV or GPX) from a quiet loop"):
+    from ui import fieldtest_panel  # imported when asked for
+
     fieldtest_panel.render_fieldtest(system)
+
+# the end of the page: the kernels load now, once per server process (see kernels_warm_up)
+kernels = kernels_caption(kernels_status())
+if kernels is not None:
+    st.caption(kernels)

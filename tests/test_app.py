@@ -6,6 +6,7 @@ switch to imperial units, make mistakes. Nothing may raise; every refusal is a m
 
 from __future__ import annotations
 
+import os
 import sys
 from pathlib import Path
 
@@ -17,12 +18,20 @@ ROOT = Path(__file__).resolve().parents[1]
 APP = str(ROOT / "app.py")
 if str(ROOT) not in sys.path:  # the app's ui/ package sits beside app.py, not in pacing/
     sys.path.insert(0, str(ROOT))
+# no background warm-up of the numeric kernels beside the test session (app.py
+# WARM_UP_VARIABLE); the test of its caption switches it on
+os.environ.setdefault("PACING_APP_WARM_UP", "0")
 
 
 
 def plan_downloads(app):
     """The plan's download buttons (the library's own backup button is not one of them)."""
     return [b for b in app.get("download_button") if "library" not in b.proto.label]
+
+def open_library(app: AppTest) -> None:
+    """Switch the coach's library panel on (it is folded away until asked for)."""
+    app.toggle(key="show_library").set_value(True).run()
+
 
 def started() -> AppTest:
     app = AppTest.from_file(APP, default_timeout=120)
@@ -359,12 +368,14 @@ def test_a_saved_plan_reopens_in_the_page_with_its_course_split_and_approach(tmp
     saved = {label: metric(app, label)
              for label in ("Finish time", "Distance", "Gained on even power")}
     saved_table = targets(app)
+    open_library(app)
     app.text_input(key="library_plan_name").input("hill fastest windy")
     app.button(key="library_save").click().run()
     assert any("Saved 'hill fastest windy'" in s.value for s in app.success)
 
     page = started()  # a new visit: demo course, even power, no wind
     assert metric(page, "Finish time") != saved["Finish time"]
+    open_library(page)
     page.button(key="library_open").click().run()
     no_failure(page)
     assert not page.error, [e.value for e in page.error]
@@ -394,11 +405,13 @@ def test_a_saved_running_plan_reopens_in_imperial(tmp_path, monkeypatch):
     no_failure(app)
     assert not app.error, [e.value for e in app.error]
     finish, table = metric(app, "Finish time"), targets(app)
+    open_library(app)
     app.text_input(key="library_plan_name").input("long run")
     app.button(key="library_save").click().run()
 
     page = started()
     page.radio(key="units").set_value("imperial").run()
+    open_library(page)
     page.button(key="library_open").click().run()
     no_failure(page)
     assert not page.error, [e.value for e in page.error]
@@ -485,3 +498,68 @@ def test_a_refused_file_is_read_once():
     finally:
         pipeline.load_course_from_bytes = real
     assert calls == [] and app.error
+
+
+# ------------------------------------------------------------------ what a rerun works out
+
+def counting_plans(monkeypatch) -> list:
+    """Count the page's calls into the planning chain (ui.pipeline.race_outcome)."""
+    from ui import pipeline
+
+    calls: list = []
+    real = pipeline.race_outcome
+    monkeypatch.setattr(pipeline, "race_outcome",
+                        lambda *a, **k: calls.append(1) or real(*a, **k))
+    return calls
+
+
+def test_switching_units_does_not_work_the_race_out_again(monkeypatch):
+    # the plan is cached on its SI inputs; the unit system changes only the words and figures
+    app = started()
+    before = targets(app)["Target power [W]"].tolist()
+    calls = counting_plans(monkeypatch)
+    app.radio(key="units").set_value("imperial").run()
+    app.radio(key="units").set_value("metric").run()
+    app.run()
+    no_failure(app)
+    assert calls == []
+    assert targets(app)["Target power [W]"].tolist() == before
+
+
+def test_the_default_power_typed_in_is_the_same_plan(monkeypatch):
+    # a widget gives 240 before it is touched and 240.0 after: one plan, worked out once
+    app = started()
+    default = app.number_input(key="mean_power:metric").value
+    app.number_input(key="mean_power:metric").set_value(default + 5.0).run()
+    calls = counting_plans(monkeypatch)
+    app.number_input(key="mean_power:metric").set_value(default).run()
+    no_failure(app)
+    assert calls == []
+
+
+def test_the_library_is_folded_away_until_asked_for():
+    app = started()
+    assert app.toggle(key="show_library").value is False
+    assert "Library" not in [s.value for s in app.subheader]
+    open_library(app)
+    no_failure(app)
+    assert "Library" in [s.value for s in app.subheader]
+
+
+def test_the_numeric_kernels_cost_is_said_once_they_are_ready(monkeypatch):
+    import threading
+
+    from pacing import kernels
+
+    if not hasattr(kernels, "warm_up"):
+        pytest.skip("the library has no compiled kernels to warm up")
+    monkeypatch.setenv("PACING_APP_WARM_UP", "1")
+    app = started()
+    for thread in threading.enumerate():  # the warm-up the page started in the background
+        if thread.name.startswith("pacing-kernels"):
+            thread.join()
+    app.run()
+    no_failure(app)
+    said = [c.value for c in app.caption if "Numeric kernels" in c.value]
+    assert len(said) == 1
+    assert said[0].startswith(("Numeric kernels ready in", "Numeric kernels not available"))

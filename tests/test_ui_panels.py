@@ -373,6 +373,29 @@ def test_comparison_view_in_imperial_units():
     assert any("Average speed [mph]" in t.columns for t in tables)
 
 
+def test_the_comparison_is_worked_out_once_per_change_of_its_inputs(monkeypatch):
+    import pacing.compare.analysis as analysis
+
+    calls = []
+    real = analysis.analyse_setups
+    monkeypatch.setattr(analysis, "analyse_setups",
+                        lambda *a, **k: calls.append(1) or real(*a, **k))
+    app = AppTest.from_function(comparison_page, default_timeout=180,
+                                kwargs={"mean_power": 243.0})  # a case no other test asks
+    app.session_state["cmp_break_even"] = False
+    app.run()
+    assert calls == [1]
+    shown = [frame.value for frame in app.dataframe]
+    app.run()  # a rerun with nothing new: the same analysis, figures and tables
+    no_failure(app)
+    assert calls == [1]
+    assert all(a.equals(b) for a, b in zip(shown, [f.value for f in app.dataframe],
+                                            strict=True))
+    app.selectbox(key="cmp_baseline").set_value("lower position").run()  # an input it needs
+    no_failure(app)
+    assert calls == [1, 1]
+
+
 # ------------------------------------------------------------------------------ plan figures
 
 def test_the_w_prime_chart_stops_at_zero_and_marks_where_it_runs_out():

@@ -10,7 +10,10 @@ by every setup; every number comes from one library call,
 pacing.compare.analysis.analyse_setups, the command line's too. ui.comparison_tables and
 ui.comparison_figures turn its result into tables, sentences and plotly figures (pure helpers,
 testable without Streamlit), and this module draws them (`render_comparison`,
-`render_comparison_for_page`).
+`render_comparison_for_page`). The analysis is worked out once per change of its inputs
+(st.cache_data keyed on their fingerprint, `_report_key`), and its figures and tables once
+per analysis and unit system (`_cached_view`): a rerun that changes nothing they depend on
+recomputes nothing.
 
 Sign convention (as in pacing.compare.setups): a time difference is setup − baseline [s];
 positive = slower.
@@ -311,11 +314,13 @@ def _report_key(race: RaceRequest, setups: list[RiderSetup], uncertainty: Uncert
     return hashlib.sha1(key.encode()).hexdigest()
 
 
-@st.cache_resource(max_entries=16, show_spinner="Riding every setup on the course…")
+@st.cache_data(max_entries=16, show_spinner="Riding every setup on the course…")
 def _cached_report(key: str, _race: RaceRequest, _setups: list[RiderSetup],
                    _uncertainty: Uncertainty, baseline: str,
                    break_even_figures: bool) -> tuple[SetupsAnalysis | None, str | None]:
-    """(analysis, None) or (None, one-line refusal); keyed on `key` (inputs' fingerprint)."""
+    """(analysis, None) or (None, one-line refusal); keyed on `key` (inputs' fingerprint),
+    the baseline and whether break-even figures are asked for: worked out once per change of
+    its inputs, every session getting its own copy (st.cache_data)."""
     from pacing.compare.analysis import analyse_setups
 
     try:
@@ -327,6 +332,27 @@ def _cached_report(key: str, _race: RaceRequest, _setups: list[RiderSetup],
         return None, f"the comparison could not be worked out: {first_line(error)}"
 
 
+@st.cache_data(max_entries=16, show_spinner=False)
+def _cached_view(key: str, baseline: str, break_even_figures: bool, system: str,
+                 _report: SetupsAnalysis) -> dict[str, Any]:
+    """The figures (plotly data, ui.figures.figure_spec), tables and sentences of one
+    analysis in one unit system, made once per analysis (the same key as `_cached_report`)
+    and system, not on every rerun."""
+    from ui.figures import figure_spec
+
+    course = _report.comparison.race.course
+    mixed = mixed_figure(_report, course, system)
+    several = _report.mixed is not None and len(set(_report.mixed.names)) > 1
+    return {
+        "bars": figure_spec(difference_figure(_report)),
+        "results": results_table(_report, system),
+        "along": figure_spec(gap_along_figure(_report, course, system)),
+        "segments": segment_table(_report, course, system),
+        "break_even": break_even_sentences(_report, system) if _report.break_evens else [],
+        "sensitivity": sensitivity_table(_report, system),
+        "mixed_summary": mixed_summary(_report),
+        "mixed": figure_spec(mixed) if mixed is not None and several else None,
+    }
 
 
 def _uncertainty_inputs(system: str) -> Uncertainty:
@@ -415,27 +441,27 @@ def _headline(report: SetupsAnalysis, system: str) -> None:
             st.caption(f"Note: {describe(notice, system)}")
 
 
-def _show_report(report: SetupsAnalysis, system: str) -> None:
-    course = report.comparison.race.course
+def _show_report(report: SetupsAnalysis, system: str, view: Mapping[str, Any]) -> None:
+    """The headline, then the view's figures, tables and sentences (`_cached_view`)."""
+    from ui.figures import drawable
+
     _headline(report, system)
-    st.plotly_chart(difference_figure(report), key="cmp_bars")
-    st.dataframe(results_table(report, system), hide_index=True, key="cmp_table")
+    st.plotly_chart(drawable(view["bars"]), key="cmp_bars")
+    st.dataframe(view["results"], hide_index=True, key="cmp_table")
     st.markdown("**Where the time is won or lost**")
-    st.plotly_chart(gap_along_figure(report, course, system), key="cmp_along")
+    st.plotly_chart(drawable(view["along"]), key="cmp_along")
     with st.expander("Per segment [s]", expanded=False):
-        st.dataframe(segment_table(report, course, system), hide_index=True,
-                     key="cmp_segments")
-    if report.break_evens:
+        st.dataframe(view["segments"], hide_index=True, key="cmp_segments")
+    if view["break_even"]:
         st.markdown("**Break-even figures** (each on its own, everything else held)")
-        for line in break_even_sentences(report, system):
+        for line in view["break_even"]:
             st.markdown(f"- {line}")
     st.markdown("**What each change is worth** (seconds of finish time; + slower, − quicker)")
-    st.dataframe(sensitivity_table(report, system), hide_index=True, key="cmp_sensitivity")
+    st.dataframe(view["sensitivity"], hide_index=True, key="cmp_sensitivity")
     st.markdown("**Position by segment**")
-    st.markdown(mixed_summary(report))
-    figure = mixed_figure(report, course, system)
-    if figure is not None and report.mixed is not None and len(set(report.mixed.names)) > 1:
-        st.plotly_chart(figure, key="cmp_mixed")
+    st.markdown(view["mixed_summary"])
+    if view["mixed"] is not None:
+        st.plotly_chart(drawable(view["mixed"]), key="cmp_mixed")
     st.caption("Predicted times are model estimates on this course and forecast; a position "
                "is only worth its time if it can be held safely on the road.")
 
@@ -490,12 +516,12 @@ def render_comparison(race: RaceRequest, system: str,
         "Work out break-even figures", value=True, key="cmp_break_even",
         help="what each setup may give away before it stops paying (a few seconds per setup)")
     uncertainty = _uncertainty_inputs(system)
-    report, refusal = _cached_report(_report_key(ride, setups, uncertainty), ride, setups,
-                                     uncertainty, baseline, with_break_even)
+    key = _report_key(ride, setups, uncertainty)
+    report, refusal = _cached_report(key, ride, setups, uncertainty, baseline, with_break_even)
     if report is None:
         st.error(refusal or "the comparison could not be worked out", icon="⚠️")
         return None
-    _show_report(report, system)
+    _show_report(report, system, _cached_view(key, baseline, with_break_even, system, report))
     return report
 
 

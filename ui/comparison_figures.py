@@ -13,6 +13,7 @@ import plotly.graph_objects as go
 
 from pacing.display.units import to_display, unit_label
 from ui.comparison_tables import signed_time
+from ui.figures import extremes
 
 if TYPE_CHECKING:
     from pacing.compare.analysis import SetupsAnalysis
@@ -93,15 +94,17 @@ def gap_along_figure(report: SetupsAnalysis, course, system: str) -> go.Figure:
     distance = to_display(np.asarray(comparison.distance, dtype=float), "distance", system)
     figure = make_subplots(specs=[[{"secondary_y": True}]])
     elevation = to_display(np.asarray(course.elevation, dtype=float), "elevation", system)
-    keep = _thin(distance.size)
+    keep = extremes(elevation)
     figure.add_trace(go.Scatter(x=distance[keep], y=elevation[keep], mode="lines",
                                 line=dict(color="rgba(29,43,58,0.25)", width=1),
                                 fill="tozeroy", fillcolor=TERRAIN_FILL, name="terrain",
                                 hoverinfo="skip", showlegend=False), secondary_y=True)
     for index, r in enumerate(comparison.results):
         is_base = r is comparison.baseline_result
+        gap = np.asarray(r.delta_along, dtype=float)
+        keep = extremes(gap)
         figure.add_trace(go.Scatter(
-            x=distance[keep], y=np.asarray(r.delta_along)[keep], mode="lines", name=r.name,
+            x=distance[keep], y=gap[keep], mode="lines", name=r.name,
             line=dict(color=SETUP_COLORS[index % len(SETUP_COLORS)], width=1 if is_base else 2,
                       dash="dot" if is_base else "solid"),
             hovertemplate=f"{r.name}: " + "%{y:+.1f} s at %{x:.2f}<extra></extra>"),
@@ -143,9 +146,10 @@ def mixed_figure(report: SetupsAnalysis, course, system: str) -> go.Figure | Non
     color_of = {r.name: SETUP_COLORS[i % len(SETUP_COLORS)] for i, r in enumerate(names)}
     figure = go.Figure()
     shown = set()
+    keep = extremes(elevation)  # the points drawn, whichever segment they fall in
     for k, name in enumerate(mixed.names):
         a, b = int(bounds[k]), int(bounds[k + 1])
-        part = slice(a, b + 1)
+        part = np.union1d(keep[(keep > a) & (keep < b)], [a, b])
         figure.add_trace(go.Scatter(
             x=distance[part], y=elevation[part], mode="lines", fill="tozeroy",
             line=dict(color=color_of[name], width=2), name=name,
@@ -158,9 +162,3 @@ def mixed_figure(report: SetupsAnalysis, course, system: str) -> go.Figure | Non
                         range=[low - 0.15 * span, high + 0.15 * span])
     figure.update_xaxes(title_text=f"distance [{unit_label('distance', system)}]")
     return _layout(figure, 240, legend=True)
-
-
-def _thin(count: int, limit: int = 2500) -> np.ndarray:
-    if count <= limit:
-        return np.arange(count)
-    return np.unique(np.linspace(0, count - 1, limit).round().astype(int))
