@@ -4,7 +4,7 @@ VENV   := .venv
 BIN    := $(VENV)/bin
 STAMP  := $(VENV)/.installed
 
-.PHONY: app test test-fast lint bench demo-routes clean
+.PHONY: app test test-nojit test-fast lint bench bench-table demo-routes clean
 
 $(STAMP): pyproject.toml
 	$(PYTHON) -m venv $(VENV)
@@ -19,6 +19,14 @@ app: $(STAMP)
 ## Run the whole test suite (installs first).
 test: $(STAMP)
 	$(BIN)/python -m pytest -q
+	$(MAKE) test-nojit
+
+## The physics and plan tests again with the kernels' source run as plain Python by numba.
+test-nojit: $(STAMP)
+	NUMBA_DISABLE_JIT=1 PACING_KERNELS=compiled $(BIN)/python -m pytest -q \
+	  tests/test_kernels.py tests/test_physics_*.py tests/test_plan_simulate.py \
+	  tests/test_plan_steady_model.py tests/test_plan_prediction.py tests/test_plan_verify.py \
+	  tests/test_plan_cycling.py tests/test_compare_sensitivity.py tests/test_golden.py
 
 ## The fast part only (no browser, no slow tests).
 test-fast: $(STAMP)
@@ -29,8 +37,20 @@ lint: $(STAMP)
 	$(BIN)/ruff check pacing tests bench app.py ui demo_routes
 	$(BIN)/mypy
 
+## Benchmarks: the speed table first (it fails when a ratio regresses), then every other
+## script; any script's non-zero exit fails the target, after all have run.
 bench: $(STAMP)
-	for f in bench/bench_*.py; do echo "== $$f"; $(BIN)/python $$f || exit 1; done
+	failed=""; \
+	$(BIN)/python bench/bench_table.py || failed="bench/bench_table.py"; \
+	for f in bench/bench_*.py; do \
+		[ "$$f" = bench/bench_table.py ] && continue; \
+		echo "== $$f"; $(BIN)/python $$f || failed="$$failed $$f"; \
+	done; \
+	if [ -n "$$failed" ]; then echo "FAILED: $$failed"; exit 1; fi
+
+## The speed table alone; `make bench-table ARGS=--update-baseline` rewrites bench/baseline.json.
+bench-table: $(STAMP)
+	$(BIN)/python bench/bench_table.py $(ARGS)
 
 demo-routes: $(STAMP)
 	$(BIN)/python demo_routes/make_demo_routes.py

@@ -1,6 +1,7 @@
-"""Cost of a comparison on the 40 km demo course, in units of one inertial simulation: setups
-side by side, sensitivities, break-even search, the mixed plan, and the linearized against the
-sampled spread. Prints; never asserts.
+"""Cost of a comparison on the 40 km demo course, in units of one inertial simulation and of
+bench_table's calibration workload (machine-independent): setups side by side, sensitivities,
+break-even search, the mixed plan, and the linearized against the sampled spread. Prints; never
+asserts (the speed table, bench_table.py, holds the baseline).
 
 Run: .venv/bin/python bench/bench_compare.py
 """
@@ -10,6 +11,7 @@ from __future__ import annotations
 import time
 
 import numpy as np
+from bench_table import calibration_seconds
 
 from pacing.compare.break_even import break_even
 from pacing.compare.mixed import mixed_plan
@@ -41,8 +43,11 @@ def main() -> None:
     conditions = Conditions(wind_speed=4.0, wind_from=270.0)
     air = air_along_course(course, conditions)
     rider = Rider(mass=80.0, drag_area=0.32)
+    simulate(course, 250.0, rider, air)  # warm-up (kernels, caches)
     _, one = timed(lambda: simulate(course, 250.0, rider, air))
-    print(f"one simulation ({course.distance.size - 1} pieces): {one * 1000:.0f} ms")
+    unit = calibration_seconds()
+    print(f"one simulation ({course.distance.size - 1} pieces): {one * 1000:.0f} ms = "
+          f"{one / unit:.2f} calibrations (calibration {unit * 1000:.1f} ms)")
     setups = [RiderSetup("hoods", rider),
               RiderSetup("aero", Rider(mass=80.0, drag_area=0.25), 0.95),
               RiderSetup("light", Rider(mass=78.0, drag_area=0.33))]
@@ -51,12 +56,14 @@ def main() -> None:
                            strategy=strategy, rider=rider,
                            cycling=PlanRequest(strategy=strategy, mean_power=250.0))
         comparison, took = timed(lambda r=race: compare_setups(r, setups, air=air))
-        print(f"{strategy:>8}: 3 setups {took:5.2f} s = {took / one:5.0f} simulations; "
+        print(f"{strategy:>8}: 3 setups {took:5.2f} s = {took / one:5.0f} simulations = "
+              f"{took / unit:5.0f} calibrations; "
               + ", ".join(f"{r.name} {r.delta:+.1f} s" for r in comparison.results))
         for result in comparison.results[1:]:
             figures, took = timed(lambda r=result, c=comparison: break_even(c, r))
             print(f"          break-even {result.name}: {took:5.2f} s = {took / one:4.0f} "
-                  f"simulations; margin {figures.power_margin:+.1f} W, "
+                  f"simulations = {took / unit:4.0f} calibrations; margin "
+                  f"{figures.power_margin:+.1f} W, "
                   f"{figures.drag_area_margin:+.4f} m², {figures.mass_margin:+.2f} kg")
         mixed, took = timed(lambda c=comparison: mixed_plan(c))
         if mixed is not None:
@@ -64,13 +71,14 @@ def main() -> None:
                   f"{mixed.best_single}")
     sens, took = timed(lambda: sensitivity(course, np.full(bounds[-1], 250.0), rider,
                                            conditions))
-    print(f"sensitivity: {took:5.2f} s = {took / one:4.0f} simulations; {sens.per_step()}")
+    print(f"sensitivity: {took:5.2f} s = {took / one:4.0f} simulations = {took / unit:4.0f} "
+          f"calibrations; {sens.per_step()}")
     uncertainty = Uncertainty(drag_area=0.005, rolling_coefficient=0.0003, mass=0.5, wind=1.0)
     linear = finish_time_spread(sens, uncertainty).standard_deviation
     samples, took = timed(lambda: sampled_finish_time(course, np.full(bounds[-1], 250.0), rider,
                                                       conditions, uncertainty, samples=100))
     print(f"spread: linearized {linear:.1f} s, 100 draws {np.std(samples, ddof=1):.1f} s "
-          f"({took:.1f} s)")
+          f"({took:.1f} s = {took / unit:.0f} calibrations)")
 
 
 if __name__ == "__main__":
