@@ -446,14 +446,14 @@ def _crossings(scaled: ScaledProblem, power: np.ndarray, side: np.ndarray,
     resting = np.abs(power - critical) <= 1e-9 * critical
     if not resting.any():
         return resting
-    x = power / scaled.mean
-    time, dtime = scaled.evaluate(x)
+    share = power / scaled.mean
+    time, dtime = scaled.evaluate(share)
     prices = prices[: power.size if rows is None else rows.size]  # the W′ rows' multipliers
     held = w_prime_jacobian(power, time, dtime, scaled.request, side, rows, scaled.initial)
     other = w_prime_jacobian(power, time, dtime, scaled.request, ~side, rows, scaled.initial)
     scale = scaled.mean / w_prime
-    gradient = (scaled.objective_gradient(x) - coupling_price * scaled.coupling_gradient(x)[0]
-                - prices @ held * scale)
+    gradient = (scaled.objective_gradient(share)
+                - coupling_price * scaled.coupling_gradient(share)[0] - prices @ held * scale)
     crossed = gradient + prices @ (held - other) * scale
     return resting & np.where(side, crossed > CROSSING_SLOPE, crossed < -CROSSING_SLOPE)
 
