@@ -101,9 +101,11 @@ def with_policy(policy: str, function: Callable[[], object]) -> Callable[[], obj
     return run
 
 
-def ivp_finish_time(course, rider: Rider, air, rtol: float, method: str,
-                    atol: float | None = None) -> float:
-    """solve_ivp piece by piece on d(½v²)/dx = (η·P/v − F(v))/m_eff, dt/dx = 1/v [s]."""
+def reference_terms(course, rider: Rider, air) -> tuple:
+    """The independent reference model's terms per piece, written here (not the library's):
+    road length [m], speed-independent force [N], drag factor k [kg/m], headwind and
+    crosswind [m/s] as lists; bearing force per speed [N·s/m], wheel drive power [W] and
+    effective mass [kg]."""
     grade = np.asarray(course.grade)
     root = np.sqrt(1.0 + grade**2)
     road = (np.diff(course.distance) * root).tolist()
@@ -111,10 +113,15 @@ def ivp_finish_time(course, rider: Rider, air, rtol: float, method: str,
                 + rider.mass * STANDARD_GRAVITY * grade / root
                 + rider.bearing_force_constant).tolist()
     k = (0.5 * air.density * (rider.drag_area + rider.wheel_drag_area)).tolist()
-    head, cross = air.headwind.tolist(), air.crosswind.tolist()
-    b = rider.bearing_force_per_speed
-    drive = rider.drivetrain_efficiency * POWER
-    m_eff = rider.effective_mass
+    return (road, constant, k, air.headwind.tolist(), air.crosswind.tolist(),
+            rider.bearing_force_per_speed, rider.drivetrain_efficiency * POWER,
+            rider.effective_mass)
+
+
+def ivp_finish_time(course, rider: Rider, air, rtol: float, method: str,
+                    atol: float | None = None) -> float:
+    """solve_ivp piece by piece on d(½v²)/dx = (η·P/v − F(v))/m_eff, dt/dx = 1/v [s]."""
+    road, constant, k, head, cross, b, drive, m_eff = reference_terms(course, rider, air)
     energy, total = 0.5 * START_SPEED**2, 0.0
     for i, length in enumerate(road):
         def rates(_x, y, i=i):
@@ -132,18 +139,8 @@ def ivp_finish_time(course, rider: Rider, air, rtol: float, method: str,
 def ivp_whole_course(course, rider: Rider, air, rtol: float, method: str) -> float:
     """solve_ivp over the whole course in one call (grade and wind jump at piece boundaries,
     left to the step control) [s]."""
-    grade = np.asarray(course.grade)
-    root = np.sqrt(1.0 + grade**2)
-    road = np.diff(course.distance) * root
+    road, constant, k, head, cross, b, drive, m_eff = reference_terms(course, rider, air)
     edges = np.concatenate([[0.0], np.cumsum(road)])
-    constant = (rider.rolling_coefficient * rider.mass * STANDARD_GRAVITY / root
-                + rider.mass * STANDARD_GRAVITY * grade / root
-                + rider.bearing_force_constant).tolist()
-    k = (0.5 * air.density * (rider.drag_area + rider.wheel_drag_area)).tolist()
-    head, cross = air.headwind.tolist(), air.crosswind.tolist()
-    b = rider.bearing_force_per_speed
-    drive = rider.drivetrain_efficiency * POWER
-    m_eff = rider.effective_mass
     last = len(road) - 1
     edge_list = edges.tolist()
 
