@@ -41,3 +41,19 @@ def test_the_command_line_names_every_registered_strategy_when_refusing_one(
 def test_an_unknown_strategy_names_the_choices():
     with pytest.raises(InputError, match="choose one of equal-effort, even-pace, fastest"):
         strategy_for("running", "negative-split")
+
+
+def test_a_fastest_plan_blended_with_even_power_says_so(capsys):
+    # The demo loop at 228 W with CP 240 W, W′ 3 kJ and a 2 kJ reserve: every correction round
+    # of the steady plan breaks the reserve on the simulated ride, so the plan ridden is part
+    # steady plan, part even power (tests/test_plan_cycling.py); the user is told, in the JSON
+    # notices as on every surface that lists them.
+    import json
+    from pathlib import Path
+
+    demo = Path(__file__).resolve().parents[1] / "demo_routes" / "01_corravey_hill_loop_40k.gpx"
+    main(["plan", str(demo), "--strategy", "fastest", "--power", "228", "--cp", "240",
+          "--w-prime", "3000", "--w-prime-reserve", "2000", "--max-power-ratio", "1.15",
+          "--json"])
+    codes = [notice["code"] for notice in json.loads(capsys.readouterr().out)["notices"]]
+    assert "fastest-plan-blended" in codes

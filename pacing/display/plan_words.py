@@ -189,7 +189,15 @@ def _target_time_unchecked(values: Values, system: str) -> str:
             "against the athlete's limits: no critical power and W′ given")
 
 
+def _fastest_plan_blended(values: Values, system: str) -> str:
+    """No values: the fastest plan is part steady plan, part even power."""
+    return ("ridden on the simulated course the fastest plan broke a limit of the athlete, so "
+            "it is blended with even power as far as needed to keep every limit: it gains less "
+            "than the steady model promised")
+
+
 WORDS: dict[str, Callable[[Values, str], str]] = {
+    "fastest-plan-blended": _fastest_plan_blended,
     "running-grade-beyond-cost-model": _grade_beyond_cost_model,
     "running-descent-capped": _descent_capped,
     "running-descent-capped-at-level": _descent_capped_at_level,

@@ -98,6 +98,8 @@ def _cycling_notices(request: RaceRequest, plan: RacePlan) -> list[Notice]:
     notices = []
     if plan.binding:
         notices.append(note("limits-reached", limits=list(plan.binding)))
+    if plan.solver.method.endswith("+blend"):
+        notices.append(note("fastest-plan-blended"))
     walked = walking_distance(plan.prediction)
     if walked > 0:
         distance = np.asarray(plan.prediction.distance, dtype=float)
