@@ -25,6 +25,7 @@ MILE = 1609.344
 """The international mile [m] (NIST SP 811 (2008), Appendix B.8), written out here."""
 
 SAMPLES = {
+    "fastest-plan-blended": {},
     "running-grade-beyond-cost-model": {"count": 3, "lowest_grade": -0.45, "highest_grade": 0.45},
     "running-descent-capped": {"ratio": 1.2, "share": 0.18},
     "running-descent-capped-at-level": {"ratio": 1.2, "share": 0.07},
