@@ -1,8 +1,8 @@
 """Import contracts, checked by walking the package (DEVELOPERS.md, "Layout"):
 
-- the numeric core (course, weather, physics, physiology, plan, compare, fieldtest and the
-  top-level modules) imports only the standard library, numpy and scipy, never the edges
-  (io, store, cli, display, ui) nor their libraries (GPX parsing, tables, web app, plots,
+- the numeric core (course, weather, physics, physiology, plan, compare, fieldtest, review,
+  team and the top-level modules) imports only the standard library, numpy and scipy, never
+  the edges (io, store, cli, display, ui) nor their libraries (GPX parsing, tables, web app, plots,
   database); named exceptions: pyproj for geodesics in pacing.course.geometry, threadpoolctl
   in the fastest plan's SLSQP polish (pacing.plan.fastest, now pacing.plan.slsqp_polish) and
   numba (with its llvmlite) in pacing.kernels, the one module that knows about compiled
@@ -24,7 +24,8 @@ from pathlib import Path
 import pytest
 
 ROOT = Path(__file__).resolve().parents[1]
-CORE_PACKAGES = ("course", "weather", "physics", "physiology", "plan", "compare", "fieldtest")
+CORE_PACKAGES = ("course", "weather", "physics", "physiology", "plan", "compare", "fieldtest",
+                 "review", "team")
 CORE_TOP_MODULES = ("__init__", "athlete", "constants", "errors", "kernels", "notices")
 EDGE_PACKAGES = ("pacing.io", "pacing.store", "pacing.store_migrations", "pacing.cli",
                  "pacing.display", "ui")

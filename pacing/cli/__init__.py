@@ -26,6 +26,8 @@ COMMANDS = {
     "plan": "predict finish time and segment targets for a power or pace plan",
     "compare": "compare setups (positions, equipment) on a course",
     "fieldtest": "measure CdA and Crr from test rides with a power meter",
+    "review": "review a race: the plan against the ride, where time went, CdA on the day",
+    "team": "plan a team time trial or team pursuit: order, turns and power of each rider",
     "library": "list, show, export or import the stored athletes, setups, courses and plans",
 }
 """Each command (the module pacing.cli.<command>) and its line in ``pacing --help``."""

@@ -10,13 +10,22 @@ from __future__ import annotations
 from collections.abc import Callable, Iterable, Mapping
 from typing import Any
 
-from pacing.display import compare_words, course_words, fieldtest_words, plan_words
+from pacing.display import (
+    compare_words,
+    course_words,
+    fieldtest_words,
+    plan_words,
+    review_words,
+    team_words,
+    weather_words,
+)
 from pacing.notices import Notice
 
 Words = Callable[[Mapping[str, Any], str], str]
 
 WORDS: dict[str, Words] = {}
-for _module in (plan_words, compare_words, fieldtest_words, course_words):
+for _module in (plan_words, compare_words, fieldtest_words, course_words, weather_words,
+                review_words, team_words):
     _overlap = WORDS.keys() & _module.WORDS.keys()
     if _overlap:
         raise RuntimeError(f"notice codes with two sentences: {sorted(_overlap)}")

@@ -1,0 +1,1 @@
+"""Team time trials and team pursuits: the line of riders, drafting by position, turns."""
