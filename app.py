@@ -130,7 +130,7 @@ def cached_course(digest: str, _data: bytes, name: str, window: float, max_grade
         return pipeline.load_course_from_bytes(_data, name, window, max_grade, allow_flat,
                                                tracks, gaps), None
     except (InputError, ValueError, OSError) as error:
-        return None, first_line(error)
+        return None, pipeline.page_words(first_line(error))
 
 
 def recording_choices(course, system: str) -> tuple[tuple[int, ...] | None, str]:
@@ -189,7 +189,7 @@ def cached_outcome(course_key: str, _course, bounds: tuple, athlete: tuple, weat
     try:
         return pipeline.race_outcome(*arguments), None
     except InputError as error:
-        return None, str(error).splitlines()[0] if str(error) else "bad input"
+        return None, pipeline.page_words(first_line(error)) if str(error) else "bad input"
     except (ValueError, ArithmeticError, RuntimeError) as error:  # a model could not solve
         first = first_line(error)
         return None, f"the model could not work out this race ({first}); check the inputs"
@@ -210,7 +210,8 @@ def cached_map(course_key: str, _course, system: str, wind_speed: float,
 def cached_along(outcome_key: str, _outcome, system: str) -> dict:
     return figures.along_course_spec(
         _outcome.distance, _outcome.speed, _outcome.power, _outcome.headwind,
-        _outcome.w_prime_balance, system, reserve="D′" if _outcome.sport == "running" else "W′")
+        _outcome.w_prime_balance, system, reserve="D′" if _outcome.sport == "running" else "W′",
+        events=_outcome.easing)
 
 
 @st.cache_data(max_entries=32, show_spinner=False)
@@ -260,6 +261,7 @@ def leave_library_course() -> None:
 cols = st.columns([2, 3])
 choice = cols[0].selectbox("Demo course", list(demos) or ["(none available yet)"],
                            key="demo_route", disabled=not demos, on_change=leave_library_course,
+                           format_func=pipeline.demo_label,
                            help="invented courses shipped with the program")
 upload = cols[1].file_uploader("…or your own course (GPX)", type=["gpx"], key="upload_gpx",
                                on_change=leave_library_course)
@@ -277,7 +279,7 @@ if library_course:
 elif upload is not None:
     source_bytes, source_name = upload.getvalue(), Path(upload.name).stem
 elif demos:
-    source_bytes, source_name = read_demo(str(demos[choice])), choice
+    source_bytes, source_name = read_demo(str(demos[choice])), pipeline.demo_label(choice)
 if source_bytes is None:
     st.warning("No course yet: upload a GPX file.")
 else:
@@ -321,6 +323,12 @@ except InputError as error:
 # 3 · weather -----------------------------------------------------------------------------
 st.header(text.SECTION_WEATHER)
 weather = sections.weather_inputs(system, ROUGHNESS_LENGTHS)
+with st.expander("Race day: weather through the race, heat, altitude, forecast band"):
+    from ui import race_day_panel
+
+    race_day = race_day_panel.render(course, system)
+if race_day is not None:
+    weather = {**weather, "race_day": race_day}
 if map_slot is not None:
     with map_slot:
         st.plotly_chart(figures.drawable(cached_map(
@@ -332,7 +340,7 @@ st.header(text.SECTION_APPROACH)
 approach = None
 if athlete is not None:
     try:
-        approach = sections.approach_inputs(athlete["sport"], athlete)
+        approach = sections.approach_inputs(athlete["sport"], athlete, system)
     except InputError as error:
         show_error(error, "Plan")
 
@@ -354,7 +362,17 @@ else:
         show_error(error, "Prediction")
 if outcome is not None:
     sections.outcome_headline(outcome, system)
+    race_day_panel.show_environment(outcome.race_day, (), system)
+    if race_day is not None and race_day.get("rows"):
+        with st.expander("Best start time within a window"):
+            race_day_panel.show_best_start(pipeline.race_request(course, bounds, athlete,
+                                                                 weather, approach))
     st.warning(text.speed_caution(outcome.sport))
+    # the race-day model's heat warning ("heat-risk", from the WBGT) says more; without it,
+    # a hot air temperature alone brings the page's own heat caution
+    if (float(weather.get("temperature", 20.0)) >= text.HOT_AIR_TEMPERATURE
+            and not any(n.code == "heat-risk" for n in outcome.notices)):
+        st.warning(text.HEAT_CAUTION)
     for notice in outcome.notices:  # warnings and notes of the planning chain, in words
         if notice in course.notices:
             continue  # shown beside the course facts already
@@ -368,7 +386,25 @@ if outcome is not None:
     if table is None:
         show_error(InputError(refusal or "no table"), "Target table")
     else:
-        st.dataframe(table, hide_index=True, key="targets")
+        # short headers: the whole table fits the page's width without scrolling sideways;
+        # the page adds where the rider eases off below the plan (the files do not)
+        easing = None
+        if outcome.easing:
+            from ui import energy_panel
+
+            easing = energy_panel.easing_per_segment(outcome.rows, outcome.easing)
+        shown = sections.page_targets(table, easing)
+        st.dataframe(shown, hide_index=True, key="targets",
+                     column_config=sections.target_columns(shown.columns))
+    if outcome.easing:
+        from ui import energy_panel
+
+        with st.expander(f"Where the rider eases off below the plan ({len(outcome.easing)})"):
+            st.dataframe(energy_panel.easing_frame(outcome.easing, system), hide_index=True,
+                         key="easing_table")
+            st.caption(text.speed_caution(outcome.sport))
+    with st.expander("Where the watts go"):
+        sections.where_the_watts_go(outcome, system)
     st.caption(text.EXERTION_CAUTION)
 
 # 6 · take it with you --------------------------------------------------------------------
@@ -405,6 +441,26 @@ if st.toggle("Estimate CdA and Crr from test rides", key="show_road_test",
     from ui import fieldtest_panel  # imported when asked for
 
     fieldtest_panel.render_fieldtest(system)
+
+# 10 · review a race ----------------------------------------------------------------------
+st.header(text.SECTION_REVIEW)
+if (st.toggle("Review a race against this plan", key="show_review",
+              help="upload the race's ride (CSV or GPX with power): where time was won or "
+                   "lost, why, and the drag area on the day")
+        and course is not None and bounds is not None and athlete is not None
+        and approach is not None):
+    from ui import review_panel  # imported when asked for
+
+    review_panel.render(course, bounds, athlete, weather, approach, system)
+
+# 11 · team time trial or team pursuit ----------------------------------------------------
+st.header(text.SECTION_TEAM)
+if st.toggle("Plan a team time trial or team pursuit", key="show_team",
+             help="who leads, for how long and at what power, within every rider's W′; "
+                  "takes a few seconds"):
+    from ui import team_panel  # imported when asked for
+
+    team_panel.render(st, system, course, weather)
 
 # the end of the page: the kernels load now, once per server process (see kernels_warm_up)
 kernels = kernels_caption(kernels_status())

@@ -63,7 +63,9 @@ WHOLE_COURSE_BUDGET = 15.0
 
 
 def make_course(length_km: float, seed: int = 1):
-    """Varied grade (smooth random walk within ±10 %) and a winding heading."""
+    """Varied grade (smooth random walk within ±10 %) and a winding heading; starts at 200 m,
+    lifted where the walk would go below sea level (the 200 km course reached −500 m, below
+    any road and below what the race-day air accepts)."""
     rng = np.random.default_rng(seed)
     n = int(length_km * 1000 / STEP) + 1
     distance = np.arange(n) * STEP
@@ -72,6 +74,7 @@ def make_course(length_km: float, seed: int = 1):
         grade[i] = 0.995 * grade[i - 1] + rng.normal(0.0, 0.003)
     grade = np.clip(grade, -0.10, 0.10)
     elevation = 200.0 + np.concatenate([[0.0], np.cumsum(grade * STEP)])
+    elevation -= min(0.0, float(elevation.min()))
     heading = np.cumsum(rng.normal(0.0, 3.0, n - 1)) % 360.0
     return synthetic_course(distance, elevation, heading)
 

@@ -9,7 +9,8 @@ finish times and iteration counts; never asserts.
 Issue 15's fastest-plan rows first (`run_issue_15`): the plan within CP 270 W and W′ 20 kJ at
 250 W on the demo course (still air, split by terrain; target 100 ms) and on the 200 km course
 of bench_simulate.make_course with wind 4 m/s from 250° (split by terrain, target 0.5 s, and
-every 2 km), through pacing.plan.race.plan_race after the kernels are warmed up: min and median
+every 2 km, 500 m and 200 m: 100, 400 and 1000 segments), through pacing.plan.race.plan_race
+after the kernels are warmed up: min and median
 of interleaved runs, the steady segment-model calls and inertial simulations per plan, and the
 time each split saves (a finer split must never save less than a coarser one).
 
@@ -174,6 +175,9 @@ def run_issue_15(repeats: int = 5) -> None:
             strategy="fastest", rider=rider, cycling=request),
         "200 km wind, terrain (target 0.5 s)": terrain,
         "200 km wind, every 2 km": replace(terrain, bounds=split_every(course, 2000.0)),
+        # finer than dense SLSQP polishes at once (240): the structured SQP on every segment
+        "200 km wind, every 500 m": replace(terrain, bounds=split_every(course, 500.0)),
+        "200 km wind, every 200 m": replace(terrain, bounds=split_every(course, 200.0)),
     }
     counts = _counting()
     times: dict[str, list[float]] = {name: [] for name in cases}

@@ -257,7 +257,9 @@ def test_notes_of_cleaning_name_their_ride_in_json_and_text(capsys, tmp_path, ri
     expected = ("hoods: dropped 5 samples slower than 1 m/s: 1 stop at t = 299 s (5 s long); "
                 "the energy balance restarts after each")
     result = run_json(capsys, stopped, "--mass", 80, "--position", "hoods")
-    assert result["notes"] == [expected]
+    # the wind estimated from the laps (no --wind-speed) is a note of its own, first
+    assert result["notes"][-1] == expected and len(result["notes"]) == 2
+    assert result["notes"][0].startswith("wind estimated from the ride: ")
     assert isinstance(result["warnings"], list)
     assert main(["fieldtest", str(stopped), "--mass", "80", "--position", "hoods",
                  "--bootstrap", "0"]) == 0
@@ -297,3 +299,71 @@ def test_power_dropouts_are_left_out_and_warned_of_after_the_rides_label(capsys,
                  "--bootstrap", "0"]) == 0
     assert any(line.startswith("warning: hoods: power dropouts: ")
                for line in capsys.readouterr().out.splitlines())
+
+
+# ---------------------------------------------------------------------------------------------
+# The wind: estimated when not given, checked when given
+# ---------------------------------------------------------------------------------------------
+
+
+def test_without_a_wind_the_wind_is_estimated_and_reported(capsys, ride_file):
+    result = run_json(capsys, ride_file, "--mass", 80)
+    wind = result["wind"]
+    assert wind["estimated"] is True
+    # the ride is simulated in calm air: the estimate is small (at 10 m, m/s)
+    assert 0.0 <= wind["speed_mps"] < 0.8
+    assert set(wind) == {"estimated", "speed_mps", "speed_at_rider_mps", "from_deg",
+                         "speed_ci95", "along_axis_only"}
+    assert result["cda_m2"] == pytest.approx(TRUE_AREA, rel=0.02)
+    assert not any(n["code"] == "fieldtest-wind-estimated" and n["level"] == "warning"
+                   for n in result["notices"])
+
+
+@pytest.mark.parametrize("flags", [["--wind-speed", "0", "--wind-from", "0"],
+                                   ["--no-estimate-wind"]])
+def test_a_given_wind_or_no_estimate_fits_as_before(capsys, ride_file, flags):
+    result = run_json(capsys, ride_file, "--mass", 80, *flags)
+    assert result["wind"] is None
+    assert result["notes"] == []
+
+
+def test_the_text_output_names_the_estimated_wind(capsys, ride_file):
+    assert main(["fieldtest", str(ride_file), "--mass", "80", "--bootstrap", "100"]) == 0
+    out = capsys.readouterr().out
+    assert "wind estimated from the laps: " in out and "m/s at 10 m" in out
+
+
+def test_a_negative_wind_speed_is_refused(capsys, ride_file):
+    assert main(["fieldtest", str(ride_file), "--mass", "80", "--wind-speed", "-1",
+                 "--wind-from", "0"]) == 2
+    assert "--wind-speed must be 0 m/s or more" in capsys.readouterr().err
+
+
+def test_pressure_kind_says_what_the_pressure_given_is(capsys, tmp_path):
+    """--pressure-kind (shared with plan) is used: at a start 1500 m up, 90 kPa read on a
+    station barometer is the pressure there, while 90 kPa as QNH is carried up by the ICAO
+    standard atmosphere to about 75 kPa. The air density checked against CoolProp's humid air
+    (HAPropsSI, Hyland-Wexler / ASHRAE RP-1485) at 20 °C, 50 % and 90 kPa."""
+    coolprop = pytest.importorskip("CoolProp.CoolProp")
+    path, _ = write_ride(tmp_path / "high.csv")
+    lines = path.read_text().splitlines()
+    column = lines[0].split(",").index("elevation_m")
+    rows = [line.split(",") for line in lines[1:]]
+    for row in rows:
+        row[column] = repr(float(row[column]) + 1500.0)
+    path.write_text("\n".join([lines[0], *(",".join(row) for row in rows)]) + "\n")
+
+    def density(*flags):
+        code = main(["fieldtest", str(path), "--mass", "80", "--json", "--bootstrap", "0",
+                     "--wind-speed", "0", "--sea-level-pressure", "90000", *flags])
+        captured = capsys.readouterr()
+        assert code == 0, captured.err
+        return json.loads(captured.out)["air_density_kg_m3"]
+
+    ratio = coolprop.HAPropsSI("W", "T", 293.15, "P", 90000.0, "R", 0.5)
+    expected = (1.0 + ratio) / coolprop.HAPropsSI("Vda", "T", 293.15, "P", 90000.0, "R", 0.5)
+    station = density("--pressure-kind", "station")
+    assert station == pytest.approx(expected, rel=2e-3)
+    # as QNH: ICAO p(1500 m)/p(0) = (1 - 0.0065·1500/288.15)^5.25588 = 0.8345 (ICAO Doc 7488),
+    # so about 75.1 kPa and a sixth less dense
+    assert density() == pytest.approx(station * 0.8345, rel=5e-3)

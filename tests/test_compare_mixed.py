@@ -150,8 +150,9 @@ def test_only_setups_that_differ_in_drag_area_alone_are_mixed():
                          power_share=0.95)]
     comparison = compare_setups(race_on(course, HILL_BOUNDS), setups, air=air)
     assert comparison.fastest.name == "slick"  # same CdA as aero, less rolling resistance
-    assert [r.name for r in mix_candidates(comparison)] == ["slick"]
-    assert mixed_plan(comparison) is None
+    # the quickest setup is alone on its bike; the two positions of the other bike are mixed
+    assert [r.name for r in mix_candidates(comparison)] == ["hoods", "aero"]
+    assert mixed_plan(comparison).candidates == ("hoods", "aero")
     mixed = mixed_plan(comparison, candidates=["hoods", "aero"])
     assert mixed.candidates == ("hoods", "aero")
     with pytest.raises(InputError, match="differ in more than CdA") as error:
@@ -159,3 +160,25 @@ def test_only_setups_that_differ_in_drag_area_alone_are_mixed():
     assert "\n" not in str(error.value)
 
 
+def test_the_bike_with_the_most_positions_is_mixed_and_a_tie_goes_to_the_quickest():
+    """Issue 18: a lighter bike that is quickest must not leave the positions of another bike
+    unmixed; of two bikes with as many positions, the one holding the quickest setup is mixed.
+    A bike is every rider parameter but the drag area (here: mass and Crr)."""
+    course = hill_course()
+    air = still_air(course, 1.2)
+    light = {"mass": 76.0, "rolling_coefficient": 0.0035}
+    setups = [RiderSetup("hoods", Rider(mass=80, drag_area=0.32)),
+              RiderSetup("light", Rider(drag_area=0.26, **light)),
+              RiderSetup("aero", Rider(mass=80, drag_area=0.26), power_share=0.96),
+              RiderSetup("drops", Rider(mass=80, drag_area=0.29))]
+    comparison = compare_setups(race_on(course, HILL_BOUNDS), setups, air=air)
+    assert comparison.fastest.name == "light"
+    assert [r.name for r in mix_candidates(comparison)] == ["hoods", "aero", "drops"]
+    # the light bike gets a second position and the other loses one: two bikes of two each
+    tied = setups[:2] + [RiderSetup("light tops", Rider(drag_area=0.32, **light)),
+                         setups[2]]
+    comparison = compare_setups(race_on(course, HILL_BOUNDS), tied, air=air)
+    assert [r.name for r in mix_candidates(comparison)] == ["light", "light tops"]
+    mixed = mixed_plan(comparison)
+    assert mixed.candidates == ("light", "light tops")
+    assert mixed.best_single == "light"

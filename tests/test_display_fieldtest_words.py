@@ -58,3 +58,47 @@ class TestRideWords:
                 in words(many, "imperial"))
         # 1 m/s = 2.2 mph (NIST SP 811 (2008), App. B.8)
         assert "slower than 2.2 mph" in words(many, "imperial")
+
+
+class TestWindWords:
+    """The sentences of the wind estimate (pacing.fieldtest.wind_estimate, race_fit)."""
+
+    ESTIMATED = {"speed_mps": 3.3, "speed_at_rider_mps": 2.0, "from_deg": 250.0,
+                 "along_axis_only": False, "speed_ci95_low_mps": 3.1,
+                 "speed_ci95_high_mps": 3.5}
+
+    def test_the_estimated_wind_gives_both_heights_and_its_interval(self):
+        assert WORDS["fieldtest-wind-estimated"](self.ESTIMATED, "metric") == (
+            "wind estimated from the ride: 3.3 m/s at 10 m (95 % interval 3.1 m/s to 3.5 m/s), "
+            "2.0 m/s at rider height, from 250°; CdA and Crr are fitted in that wind")
+        # 1 mph = 0.44704 m/s exactly (NIST SP 811 (2008), App. B.8): 3.3 m/s = 7.4 mph
+        assert "7.4 mph at 10 m" in WORDS["fieldtest-wind-estimated"](self.ESTIMATED,
+                                                                      "imperial")
+
+    def test_an_out_and_back_says_only_the_wind_along_the_road_was_told(self):
+        values = {**self.ESTIMATED, "along_axis_only": True}
+        del values["speed_ci95_low_mps"], values["speed_ci95_high_mps"]
+        sentence = WORDS["fieldtest-wind-estimated"](values, "metric")
+        assert "interval" not in sentence and "only the part along the road" in sentence
+
+    @pytest.mark.parametrize("reason, words", [
+        ("one-heading", "goes one way only"),
+        ("no-heading", "no headings or positions"),
+        ("correlation", "correlation 0.990"),
+    ])
+    def test_why_the_wind_cannot_be_told_from_drag(self, reason, words):
+        values = {"reason": reason, "heading_spread": 0.0, "correlation": 0.99}
+        sentence = WORDS["fieldtest-wind-inseparable"](values, "metric")
+        assert sentence.startswith("the wind cannot be told from drag: ") and words in sentence
+
+    def test_a_wind_interval_too_wide_is_named(self):
+        values = {"reason": "interval", "speed_ci95_low_mps": 1.0, "speed_ci95_high_mps": 9.0,
+                  "limit_mps": 2.0, "correlation": 0.9}
+        assert "1.0 m/s to 9.0 m/s, is wider than 2 m/s" in WORDS[
+            "fieldtest-wind-inseparable"](values, "metric")
+
+    def test_what_a_race_fit_left_out(self):
+        values = {"braking_s": 12.0, "stops_s": 31.0, "coasting_s": 240.0, "share": 0.079}
+        assert WORDS["race-fit-excluded"](values, "metric") == (
+            "left out of the drag fit: 12 s braking, 31 s stopped or not recorded, 240 s "
+            "coasting (8 % of the race)")

@@ -34,7 +34,7 @@ CORE_EXCEPTIONS = {"pacing.course.geometry": {"pyproj"}, "pacing.plan.fastest": 
                    "pacing.plan.slsqp_polish": {"threadpoolctl"},
                    "pacing.kernels": {"numba", "llvmlite"}}
 STREAMLIT_UI_MODULES = {"ui.comparison", "ui.fieldtest_panel", "ui.library_panel", "ui.sections",
-                        "ui.widgets"}
+                        "ui.widgets", "ui.review_panel", "ui.team_panel", "ui.race_day_panel"}
 EDGE_LIBRARIES = ["gpxpy", "pandas", "streamlit", "plotly", "sqlalchemy", "openpyxl",
                   "matplotlib", "defusedxml", "alembic"]
 

@@ -7,6 +7,7 @@ GPX, Pillow (matplotlib's image dependency) for the PNG; a PDF file starts with 
 
 from __future__ import annotations
 
+import datetime
 import io
 
 import gpxpy
@@ -54,6 +55,20 @@ def make_rows(count=6, running=False, wprime=True):
             headwind=1.25 - 0.5 * i,
         ))
     return rows
+
+
+def clock_text(duration: datetime.timedelta) -> str:
+    """"H:MM:SS" of a duration read back from a spreadsheet."""
+    total = round(duration.total_seconds())
+    return f"{total // 3600}:{total % 3600 // 60:02d}:{total % 60:02d}"
+
+
+def with_clock_texts(frame: pd.DataFrame) -> pd.DataFrame:
+    """The frame with its duration columns (read back as timedeltas) as "H:MM:SS" texts."""
+    for name in ("Split [h:mm:ss]", "Elapsed [h:mm:ss]"):
+        if name in frame:
+            frame[name] = [clock_text(value.to_pytimedelta()) for value in frame[name]]
+    return frame
 
 
 class TestTable:
@@ -150,12 +165,23 @@ class TestCsvAndXlsx:
         assert len(values) == len(table) + 1
         for got, (_, expected) in zip(values[1:], table.iterrows(), strict=True):
             for cell, want in zip(got, expected, strict=True):
+                if isinstance(cell, datetime.timedelta):  # durations are Excel durations
+                    cell = clock_text(cell)
                 assert cell == pytest.approx(want) if isinstance(want, float) else cell == want
         assert book.properties.title == "Test loop"
 
+    def test_xlsx_durations_are_time_values_a_spreadsheet_can_add(self):
+        table = segment_table(make_rows())
+        sheet = openpyxl.load_workbook(io.BytesIO(table_to_xlsx(table))).active
+        header = [cell.value for cell in sheet[1]]
+        for name in ("Split [h:mm:ss]", "Elapsed [h:mm:ss]"):
+            cell = sheet.cell(row=2, column=header.index(name) + 1)
+            assert cell.number_format == "[h]:mm:ss"
+            assert clock_text(cell.value) == table[name].iloc[0]
+
     def test_xlsx_reads_back_with_pandas(self):
         table = segment_table(make_rows())
-        back = pd.read_excel(io.BytesIO(table_to_xlsx(table)))
+        back = with_clock_texts(pd.read_excel(io.BytesIO(table_to_xlsx(table))))
         pd.testing.assert_frame_equal(back, table, check_dtype=False)
 
 
@@ -265,6 +291,14 @@ class TestCard:
         texts = " ".join(t.get_text().replace("\n", " ") for t in figure.axes[0].texts)
         assert CAUTION_LINE in texts
 
+    def test_a_running_card_speaks_of_running(self):
+        from pacing.io.exports import RUNNING_CAUTION_LINE, _card_figure
+
+        figure = _card_figure(make_rows(running=True), "metric", "x")
+        texts = " ".join(t.get_text().replace("\n", " ") for t in figure.axes[0].texts)
+        assert RUNNING_CAUTION_LINE in texts
+        assert "Ride within" not in texts
+
     def test_no_segments_is_an_input_error(self):
         with pytest.raises(InputError):
             target_card_png([])
@@ -307,7 +341,7 @@ class TestWithTheLibrary:
         _, rows = planned
         table = segment_table(rows, "imperial")
         from_csv = pd.read_csv(io.BytesIO(table_to_csv(table)))
-        from_xlsx = pd.read_excel(io.BytesIO(table_to_xlsx(table)))
+        from_xlsx = with_clock_texts(pd.read_excel(io.BytesIO(table_to_xlsx(table))))
         pd.testing.assert_frame_equal(from_csv, table, check_dtype=False)
         pd.testing.assert_frame_equal(from_xlsx, table, check_dtype=False)
 
@@ -360,3 +394,51 @@ def test_the_gpx_export_describes_the_plan_s_warnings_and_notes():
     description = gpxpy.parse(text).description
     assert description.splitlines() == SAID
     assert gpxpy.parse(course_with_targets_gpx(course, make_rows(count=3))).description is None
+
+
+def test_a_race_day_adds_clock_and_weather_columns_in_both_unit_systems():
+    rows = make_rows(2)
+    assert not any(c.startswith(("Clock", "Air", "Wind")) for c in segment_table(rows).columns)
+    for row, clock in zip(rows, ("2026-07-14T09:00:00+02:00", "2026-07-14T09:08:20+02:00"),
+                          strict=True):
+        row.update(clock_time=clock, temperature=25.0, wind_speed=5.0, wind_from=350.0)
+    metric = segment_table(rows)
+    assert list(metric["Clock [ISO 8601]"]) == ["2026-07-14T09:00:00+02:00",
+                                                "2026-07-14T09:08:20+02:00"]
+    assert list(metric["Air [°C]"]) == [25.0, 25.0]
+    assert list(metric["Wind [km/h]"]) == [18.0, 18.0]
+    assert list(metric["Wind from [deg]"]) == [350, 350]
+    imperial = segment_table(rows, "imperial")
+    assert list(imperial["Air [°F]"]) == [77.0, 77.0]  # 25 °C = 77 °F (NIST SP 811)
+    assert list(imperial["Wind [mph]"]) == [11.2, 11.2]  # 5 m/s / 0.44704
+    text = table_to_csv(metric).decode("utf-8")
+    assert "2026-07-14T09:00:00+02:00" in text
+
+
+def test_a_files_comments_say_the_race_days_test_conditions_and_band():
+    """Issue 16: the test conditions assumed and the forecast band in the file's comments."""
+    import numpy as np
+
+    from pacing.course.geometry import synthetic_course
+    from pacing.course.segments import split_every
+    from pacing.io.exports import race_day_lines
+    from pacing.physics.cycling import Rider
+    from pacing.plan.forecast_band import WeatherSpread
+    from pacing.plan.race import RaceRequest, plan_race
+    from pacing.plan.race_day import RaceDay
+    from pacing.plan.request import PlanRequest
+    from pacing.weather.conditions import Conditions
+
+    distance = np.arange(0.0, 5000.0 + 5.0, 10.0)
+    course = synthetic_course(distance, np.zeros_like(distance), heading=0.0)
+    result = plan_race(RaceRequest(
+        course=course, bounds=split_every(course, 1000.0), conditions=Conditions(wind_speed=3.0),
+        rider=Rider(), cycling=PlanRequest(mean_power=200.0),
+        race_day=RaceDay(spread=WeatherSpread(wind_speed=1.0, samples=10, seed=5))))
+    lines = race_day_lines(result.race_day, "imperial")
+    assert "68 °F, 50 % humidity, 0 ft (assumed)" in lines[0]
+    assert lines[-1].startswith("forecast band (5-50-95 %)") and "10 sampled weathers, seed 5" \
+        in lines[-1]
+    text = table_to_csv(segment_table(result.targets), lines).decode()
+    assert text.startswith("# heat and altitude: limits factor 1.0000")
+    assert race_day_lines(None) == []

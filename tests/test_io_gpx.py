@@ -22,6 +22,8 @@ from pacing.io import gpx as gpx_module
 from pacing.io.gpx import (
     DEFAULT_DEMO_ROUTE,
     DEMO_ROUTES_DIR,
+    NO_HEIGHTS_MESSAGE,
+    NoHeightsError,
     demo_route_paths,
     load_course,
     read_track,
@@ -79,9 +81,13 @@ def test_a_route_is_read_when_there_is_no_track():
 
 
 def test_missing_elevation_is_refused_unless_a_flat_course_is_allowed():
-    with pytest.raises(InputError, match="no elevation.*use --flat \\(command line\\) or "
-                       "'A file without heights is a flat course' \\(app\\)"):
+    with pytest.raises(NoHeightsError, match="no elevation data.*plan it as flat ground") \
+            as refused:
         load_course(DATA / "route_gpx11.gpx")
+    assert isinstance(refused.value, InputError)  # the command line's exit code 2
+    # in no surface's words: the command line adds its flag, the page its checkbox
+    assert str(refused.value) == NO_HEIGHTS_MESSAGE
+    assert not any(word in NO_HEIGHTS_MESSAGE for word in ("--", "command line", "app", "tick"))
     course = load_course(DATA / "route_gpx11.gpx", allow_missing_elevation=True)
     assert course.ascent == 0.0 and np.all(course.grade == 0.0)
     assert [n.code for n in course.notices] == ["elevation-missing"]

@@ -17,7 +17,14 @@ from hypothesis import strategies as st
 from pacing.display.notices import describe_all
 from pacing.errors import InputError
 from pacing.fieldtest.ride import Ride
-from pacing.io.rides import CSV_COLUMNS, read_ride, read_ride_csv, read_ride_gpx, sniff_csv
+from pacing.io.rides import (
+    CSV_COLUMNS,
+    read_race,
+    read_ride,
+    read_ride_csv,
+    read_ride_gpx,
+    sniff_csv,
+)
 
 N = 40
 
@@ -386,3 +393,49 @@ class TestGpx:
         with pytest.raises(InputError, match="unknown ride file type"):
             read_ride(path, kind="fit")
 
+
+
+# ------------------------------------------------------------------ race files (read_race)
+
+
+class TestRaceFiles:
+    def test_a_race_csv_keeps_its_stops(self):
+        columns = canonical()
+        columns["speed_mps"] = [0.0 if 10 <= i < 20 else 9.0 for i in range(N)]
+        race = read_race(csv_text(columns), kind="csv")
+        assert race.time.size == N  # the test-ride reader would drop the ten stopped samples
+        assert race.speed[15] == 0.0
+        assert race.has_position
+
+    def test_a_race_csv_needs_no_speed_when_it_has_a_distance(self):
+        columns = {"time_s": list(range(N)), "power_w": [250.0] * N,
+                   "distance_km": [0.01 * i for i in range(N)],
+                   "cadence": [90] * N, "heart_rate": [150] * N}
+        race = read_race(csv_text(columns), kind="csv")
+        np.testing.assert_allclose(race.speed, 10.0)
+        assert race.cadence[0] == 90 and race.heart_rate[-1] == 150
+        assert not race.has_position
+
+    def test_a_race_csv_without_power_is_refused(self):
+        columns = canonical()
+        del columns["power_w"]
+        with pytest.raises(InputError, match="missing column"):
+            read_race(csv_text(columns), kind="csv")
+
+    def test_a_race_gpx_with_cadence_and_heart_rate(self):
+        text = gpx_text().replace(b"<power>", b"<gpxtpx:cad>88</gpxtpx:cad><gpxtpx:hr>151"
+                                              b"</gpxtpx:hr><power>")
+        race = read_race(text)
+        np.testing.assert_allclose(race.speed, 9.0)
+        np.testing.assert_allclose(race.power, 200 + np.arange(N))
+        assert race.cadence[3] == 88 and race.heart_rate[3] == 151
+        assert race.elevation[1] == pytest.approx(100.1)
+
+    def test_a_race_gpx_without_speed_takes_it_from_the_positions(self):
+        race = read_race(gpx_text(speed=False))
+        np.testing.assert_allclose(race.speed[1:-1], 9.0, rtol=2e-3)  # WGS84 vs a sphere
+        assert race.notes[0].code == "review-ride-speed-from-positions"
+
+    def test_the_test_ride_reader_is_unchanged_for_gpx(self):
+        ride = read_ride_gpx(gpx_text(speed=False))
+        assert ride.notes[0].code == "test-ride-speed-from-positions"

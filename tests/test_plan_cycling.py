@@ -158,7 +158,8 @@ def test_w_prime_reserve_holds_on_the_verified_ride():
     assert "w-prime-reserve" in plan.binding
     assert plan.time_saved > 0
     assert plan.segment_w_prime_balance.shape == (bounds.size - 1,)
-    assert plan.solver.method.startswith("lagrange+")
+    # the plan is the solver's own, not constant power blended in to keep the reserve
+    assert not plan.solver.method.endswith("+blend")
 
 
 def test_integral_w_prime_model_also_holds():
@@ -230,6 +231,23 @@ def test_target_time_beyond_what_cp_and_w_prime_allow_is_not_reachable():
                           w_prime=20000.0)
     with pytest.raises(InputError, match="not reachable"):
         make_plan(course, bounds, RIDER, air, request, FLYING)
+
+
+@pytest.mark.parametrize(("fields", "said"), [
+    # 1300.4 s is 0:21:40 (whole seconds, half up), beyond CP 300 W and W′ 20 kJ
+    ({"target_time": 1300.4, "critical_power": 300.0, "w_prime": 20000.0},
+     "finish time 0:21:40 is not reachable: it needs"),
+    # two minutes for the hilly course would need more than any plan's power
+    ({"target_time": 120.0}, "finish time 0:02:00 is not reachable: even"),
+    # ten days and a bit is slower than riding at 1 W: hours are not wrapped at 24
+    ({"target_time": 864061.0}, "finish time 240:01:01 is slower than riding at 1 W"),
+])
+def test_an_unreachable_target_time_is_said_as_the_coach_types_it(fields, said):
+    course, bounds, air = hilly()
+    request = PlanRequest(strategy="target-time", **fields)
+    with pytest.raises(InputError, match=said) as error:
+        make_plan(course, bounds, RIDER, air, request, FLYING)
+    assert " s " not in str(error.value)  # never the target in seconds
 
 
 @pytest.mark.parametrize("fields", [{"strategy": "fastest"}, {"strategy": "constant"},

@@ -51,7 +51,10 @@ def test_a_cycling_plan_is_the_verified_plan_of_the_same_inputs(course):
     assert result.finish_time == direct.finish_time
     assert len(result.targets) == len(split_by_grade(course)) - 1
     # the course's notes (what elevation cleaning removed) come first; the plan adds nothing
-    assert result.notices == course.notices
+    # but the race day's heat and altitude (always counted, issue 16)
+    from pacing.plan.race_day import race_day_notices
+
+    assert result.notices == (*course.notices, *race_day_notices(result))
 
 
 def test_a_running_plan_is_the_plan_of_the_same_inputs(course):

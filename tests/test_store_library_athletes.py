@@ -114,3 +114,31 @@ def test_keep_both_fits_the_name_length(library):
     library.add_athlete(Athlete(name=long_name))
     kept = library.add_athlete(Athlete(name=long_name), on_existing="keep-both")
     assert kept.athlete.name.endswith(" (2)") and len(kept.athlete.name) <= 200
+
+
+def test_a_name_differing_only_in_letter_case_is_the_same_athlete(library):
+    # issue 18: duplicate athlete names were accepted silently ("Ann Lee" and "ann lee")
+    from pacing.store.statements import NameTaken
+
+    first = library.add_athlete(Athlete(name="Ann Lee", body_mass=61.0))
+    with pytest.raises(NameTaken, match="'Ann Lee' is already in the library"):
+        library.add_athlete(Athlete(name="ann lee", body_mass=62.0))
+    both = library.add_athlete(Athlete(name="ANN LEE", body_mass=63.0), on_existing="keep-both")
+    assert both.athlete.name == "Ann Lee (2)"
+    replaced = library.add_athlete(Athlete(name="ann lee", body_mass=64.0),
+                                   on_existing="replace")
+    assert replaced.id == first.id and replaced.athlete.name == "Ann Lee"
+    assert replaced.athlete.body_mass == 64.0
+    assert len(library.athletes()) == 2
+
+
+def test_renaming_onto_another_athletes_name_is_refused(library):
+    from pacing.store.statements import NameTaken
+
+    library.add_athlete(Athlete(name="Ann", body_mass=61.0))
+    bo = library.add_athlete(Athlete(name="Bo", body_mass=70.0))
+    with pytest.raises(NameTaken, match="'Ann'"):
+        library.update_athlete(bo.id, Athlete(name="ANN", body_mass=70.0), revision=bo.revision)
+    again = library.update_athlete(bo.id, Athlete(name="Bo", body_mass=71.0),
+                                   revision=bo.revision)  # keeping its own name is fine
+    assert again.athlete.body_mass == 71.0

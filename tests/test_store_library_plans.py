@@ -114,3 +114,23 @@ def test_a_plan_under_a_taken_name_is_refused_unless_told(library):
     assert replaced.id == first.id and replaced.revision == 2
     assert replaced.inputs == {"power": 1.0} and replaced.summary.notes == "new"
     assert replaced.summary.finish_time == plan_result(1.1)["finish_time"]
+
+
+def test_a_saved_plan_keeps_its_weather_table_in_its_inputs(library):
+    import numpy as np
+
+    from pacing.weather.timeline import WeatherTable, table_as_dict, table_from_dict
+
+    table = WeatherTable(time=np.array([0.0, 3600.0, 7200.0]),
+                         temperature=np.array([18.5, 24.0, 31.25]),
+                         relative_humidity=np.array([0.7, 0.5, 0.35]),
+                         wind_speed=np.array([3.0, 5.0, 6.0]),
+                         wind_from=np.array([350.0, 10.0, 180.0]),
+                         pressure=np.array([101500.0, 101450.0, 101200.0]), utc_offset=7200.0)
+    saved = library.save_plan("hot afternoon", {"weather_table": table_as_dict(table),
+                                                "start_s": 1800.0}, plan_result())
+    again = table_from_dict(library.plan(saved.summary.id).inputs["weather_table"])
+    for name in ("time", "temperature", "relative_humidity", "wind_speed", "wind_from",
+                 "pressure"):
+        np.testing.assert_array_equal(getattr(again, name), getattr(table, name))
+    assert again.latitude is None and again.utc_offset == 7200.0

@@ -136,7 +136,7 @@ def test_the_profile_and_the_map_are_what_plotly_makes_of_them(system):
 def test_the_profile_keeps_the_highest_point():
     course = _course(20_001)
     spec = figures.profile_spec(course, "metric")
-    cleaned = next(t for t in spec["data"] if t.get("name") == "cleaned")
+    cleaned = next(t for t in spec["data"] if t.get("name") == "heights cleaned")
     assert max(cleaned["y"]) == pytest.approx(float(np.max(course.elevation)), abs=1e-9)
 
 
@@ -144,3 +144,31 @@ def test_a_figure_round_trips_through_its_plain_data():
     figure = figures.along_course_figure(*_along_inputs(500, "W′"))
     again = drawable(figures.figure_spec(figure))
     assert same(again.to_dict(), figure.to_dict())
+
+
+def test_the_profile_has_a_legend_for_its_lines_and_colour_strings_for_its_bars():
+    # issue 18: no legend on the profile; its bars' numeric colours made the browser log
+    # "Invalid color specifier" once per bar
+    course = _course(2_001)
+    spec = figures.profile_spec(course, "metric", bounds=[0, 700, 2000])
+    assert spec["layout"]["showlegend"] is True
+    shown = {t["name"] for t in spec["data"] if t.get("showlegend")}
+    assert shown == {"heights as recorded", "heights cleaned", "segment boundaries"}
+    bars = spec["data"][0]
+    assert all(isinstance(c, str) and c.startswith("rgb(") for c in bars["marker"]["color"])
+
+
+def test_the_power_panel_starts_at_zero_and_marks_where_the_rider_eases_off():
+    from pacing.plan.energy import EasingEvent
+
+    distance, speed, power, headwind, balance = _along_inputs(500, "W′")
+    event = EasingEvent(start=1000.0, end=1030.0, kind="braking", lowest_speed=9.0,
+                        braking_work=800.0, work_not_given=300.0, tightest_radius=30.0)
+    spec = figures.along_course_spec(distance, speed, power, headwind, balance, "metric",
+                                     events=[event])
+    power_axis = next(v for k, v in spec["layout"].items()
+                      if k.startswith("yaxis") and v["title"]["text"] == "power [W]")
+    assert power_axis["range"][0] == 0.0
+    marks = [t for t in spec["data"] if t.get("name") == "eases off"]
+    assert len(marks) == 1 and marks[0]["x"] == [pytest.approx(1.015)]
+    assert "brakes" in marks[0]["text"][0]

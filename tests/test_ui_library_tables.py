@@ -26,3 +26,25 @@ def test_a_saved_plan_says_which_pacing_made_it(monkeypatch):
     caption = library_tables.version_caption(older)
     assert caption.startswith("made with pacing 0.1.0; this is pacing 0.2.0")
     assert "other numbers" in caption
+
+
+def test_the_plans_table_names_the_athlete_and_the_summary_the_pacing_in_words():
+    # issue 18: no athlete column; "plan: constant" (an internal name) in the summary
+    import datetime
+    import types
+
+    plans = [types.SimpleNamespace(name="hill", athlete_id=3, finish_time=3725.0,
+                                   time_saved=None, updated_at=datetime.datetime(2026, 5, 1),
+                                   library_version="0.2.0", notes=""),
+             types.SimpleNamespace(name="flat", athlete_id=None, finish_time=1800.0,
+                                   time_saved=12.0, updated_at=datetime.datetime(2026, 5, 2),
+                                   library_version="0.2.0", notes="windy")]
+    table = library_tables.plans_table(plans, {3: "Ann"})
+    assert table["Athlete"].tolist() == ["Ann", "–"]
+    lines = library_tables.inputs_summary(
+        {"athlete": {"sport": "cycling"}, "approach": {"strategy": "constant",
+                                                       "mean_power": 240.0}}, "metric")
+    assert lines == ["pacing: Even power, average 240 W"]
+    running = library_tables.inputs_summary(
+        {"athlete": {"sport": "running"}, "approach": {"strategy": "equal-effort"}}, "metric")
+    assert running == ["pacing: Equal effort on every grade"]

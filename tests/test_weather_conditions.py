@@ -229,3 +229,23 @@ def test_density_along_elevations_is_the_one_the_course_air_uses():
     elevation = 0.5 * (course.elevation[1:] + course.elevation[:-1])
     np.testing.assert_array_equal(density_along(elevation, 300.0, day),
                                   air_along_course(course, day).density)
+
+
+def test_a_station_pressure_is_the_pressure_at_the_start():
+    # ICAO Doc 7488/3 table: 79 495.2 Pa at 2000 m geopotential (2000.63 m geometric). A
+    # station at the start reading that pressure on a flat course there gives the air of the
+    # standard sea-level pressure carried up by the standard atmosphere.
+    course = synthetic_course([0.0, 500.0, 1000.0], [2000.63, 2000.63, 2000.63])
+    standard = air_along_course(course, Conditions(temperature=2.0))
+    station = air_along_course(course, Conditions(temperature=2.0, sea_level_pressure=79495.2,
+                                                  pressure_kind="station"))
+    np.testing.assert_allclose(station.density, standard.density, rtol=1e-5)
+
+
+def test_the_pressure_kind_is_checked():
+    with pytest.raises(InputError, match="unknown pressure kind"):
+        Conditions(pressure_kind="altimeter")
+    with pytest.raises(InputError, match="station pressure must be between"):
+        Conditions(pressure_kind="station", sea_level_pressure=30000.0)
+    assert Conditions(pressure_kind="station", sea_level_pressure=80000.0).pressure_kind \
+        == "station"

@@ -63,7 +63,7 @@ MAX_SHOWN_SETUPS = 6
 COLUMNS = {
     "name": "Setup",
     "drag_area": "CdA [m²]",
-    "power_share": "Power share [%]",
+    "power_share": "Power held in this position [%]",
     "bike_mass": "Bike and kit",  # the unit is appended per unit system
     "rolling_coefficient": "Crr [-]",
 }
@@ -95,7 +95,7 @@ def mass_column(system: str) -> str:
 def default_setup_rows(base_rider: Rider, body_mass: float, system: str) -> pd.DataFrame:
     """Starting rows of the editor: the setup as entered, a lower position (CdA −12 % at
     95 % of the power, a common starting guess, not a measurement) and a lighter bike
-    (−1.5 kg, CdA +0.005 m²).
+    (−1.5 kg, the same CdA: one change a row, so its worth reads off alone).
 
     Parameters
     ----------
@@ -117,7 +117,7 @@ def default_setup_rows(base_rider: Rider, body_mass: float, system: str) -> pd.D
     rows = [
         ("as entered", cda, 100.0, bike, crr),
         ("lower position", round(cda * 0.88, 3), 95.0, bike, crr),
-        ("lighter bike", round(cda + 0.005, 3), 100.0, max(bike - 1.5, 0.0), crr),
+        ("lighter bike", round(cda, 3), 100.0, max(bike - 1.5, 0.0), crr),
     ]
     return pd.DataFrame({
         COLUMNS["name"]: [r[0] for r in rows],
@@ -487,10 +487,10 @@ def render_comparison(race: RaceRequest, system: str,
     SetupsAnalysis or None
         None when an input is refused (the view shows why in one line).
     """
-    st.subheader("Setups side by side")
     st.caption("Each setup is ridden with the same pacing on this course and this weather. "
-               "Power share: the share of the athlete's power the setup allows (e.g. 95 % in "
-               "a low position). Differences are setup minus baseline: − quicker, + slower.")
+               "Power held in this position: the share of the athlete's power the setup "
+               "allows (e.g. 95 % in a low position). Differences are setup minus baseline: "
+               "− quicker, + slower.")
     base_rider = race.rider
     if base_rider is None:
         st.info("Setups are compared for cycling; switch the sport to cycling.")

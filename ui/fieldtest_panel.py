@@ -4,9 +4,11 @@ whether the positions really differ, the warnings, and plots of the virtual agai
 measured elevation of every lap with the residuals. A measured position becomes a setup (and
 goes into the library when one is open).
 
-The estimation is pacing.fieldtest.estimate.estimate_drag (virtual elevation after Chung, or the
-regression of Lim et al. 2011); rides are read by pacing.io.rides.read_ride. Pure helpers
-build the rides, tables and plotly figures; `render_fieldtest` draws the panel.
+The estimation is pacing.fieldtest.wind_estimate.estimate_drag_in_wind (Chung's virtual
+elevation, or the regression of Lim et al. 2011, with a steady wind estimated from the laps
+when the user does not give one); rides are read by pacing.io.rides.read_ride. The same ride
+uploaded twice is refused (its laps would count twice). Pure helpers build the rides, tables
+and plotly figures; `render_fieldtest` draws the panel.
 """
 
 from __future__ import annotations
@@ -113,6 +115,7 @@ def read_tests(files: Sequence[tuple[Any, ...]],
     notes: list[tuple[str, Notice]] = []
     if not files:
         raise InputError("upload at least one test ride (CSV or GPX)")
+    refuse_duplicates(files)
     for index, (file_name, data, label, *rest) in enumerate(files):
         lap_times = tuple(rest[0]) if rest and rest[0] else ()
         suffix = Path(file_name).suffix.lower().lstrip(".")
@@ -137,10 +140,36 @@ def read_tests(files: Sequence[tuple[Any, ...]],
     return tests, notes
 
 
+def refuse_duplicates(files: Sequence[tuple[Any, ...]]) -> None:
+    """Refuse the same ride uploaded twice: its laps would count twice in the fit.
+
+    Two files are the same ride when their bytes are identical (SHA-256), whatever their
+    names; the message names both.
+
+    Parameters
+    ----------
+    files : sequence of tuple
+        (file name, bytes, …) per ride.
+
+    Raises
+    ------
+    InputError
+        One line naming the two files.
+    """
+    seen: dict[bytes, str] = {}
+    for file_name, data, *_ in files:
+        digest = hashlib.sha256(bytes(data)).digest()
+        if digest in seen:
+            raise InputError(f"{file_name} is the same ride as {seen[digest]}: uploading a "
+                             "test ride twice would count its laps twice; remove one (a "
+                             "second position needs a ride of its own)")
+        seen[digest] = file_name
+
+
 def run_fieldtest(files: Sequence[tuple[Any, ...]], total_mass: float, conditions: Any,
                   method: str = "loop", rolling_coefficient: float | None = None,
                   drivetrain_efficiency: float = 0.976,
-                  bootstrap: int = BOOTSTRAP_DRAWS) -> FieldTestRun:
+                  bootstrap: int = BOOTSTRAP_DRAWS, wind_given: bool = True) -> FieldTestRun:
     """Read the rides and estimate CdA per position and a shared Crr.
 
     Parameters
@@ -159,6 +188,10 @@ def run_fieldtest(files: Sequence[tuple[Any, ...]], total_mass: float, condition
         Drivetrain efficiency [-], 0.5-1.
     bootstrap : int
         Draws for the intervals [-], 0 to pacing.fieldtest.checks.MAX_BOOTSTRAP_DRAWS.
+    wind_given : bool
+        True: the wind of `conditions` is the day's (calm at 0), used as given and checked
+        against the laps; False: the wind is estimated from the laps
+        (pacing.fieldtest.wind_estimate).
 
     Returns
     -------
@@ -166,7 +199,7 @@ def run_fieldtest(files: Sequence[tuple[Any, ...]], total_mass: float, condition
         The result, the tests, the mean air density [kg/m³] and the rides' notes.
     """
     from pacing.fieldtest.checks import check_bootstrap_draws
-    from pacing.fieldtest.estimate import estimate_drag
+    from pacing.fieldtest.wind_estimate import estimate_drag_in_wind
     from pacing.physics.cycling import Rider
 
     check_bootstrap_draws(bootstrap)
@@ -176,8 +209,9 @@ def run_fieldtest(files: Sequence[tuple[Any, ...]], total_mass: float, condition
         raise InputError(f"drivetrain efficiency must be 0.5-1, got {drivetrain_efficiency:g}")
     tests, notes = read_tests(files, conditions)
     rider = Rider(mass=float(total_mass), drivetrain_efficiency=float(drivetrain_efficiency))
-    result = estimate_drag(tests, rider, method=method, rolling_coefficient=rolling_coefficient,
-                           bootstrap=bootstrap)
+    result = estimate_drag_in_wind(tests, rider, method=method,
+                                   wind=conditions if wind_given else None,
+                                   rolling_coefficient=rolling_coefficient, bootstrap=bootstrap)
     for position in result.positions:
         if not np.isfinite(position.drag_area):
             raise InputError(f"no finite CdA for {position.label!r}: check the laps")
@@ -245,6 +279,36 @@ def rolling_line(result: Any) -> str:
                 "cannot separate CdA from Crr, see the warning)")
     return (f"Crr {result.rolling_coefficient:.5f} (95 % interval "
             f"{_interval(result.rolling_coefficient_ci95, 5)}), shared by all positions")
+
+
+def wind_line(result: Any, system: str) -> str | None:
+    """The wind estimated from the laps in words (10 m and rider height, FROM), or None.
+
+    Parameters
+    ----------
+    result : pacing.fieldtest.estimate.FieldTestResult
+        The field test's result (its `wind`).
+    system : str
+        "metric" or "imperial".
+
+    Returns
+    -------
+    str or None
+        One line, or None when no wind was estimated.
+    """
+    wind = result.wind
+    if wind is None:
+        return None
+    unit = unit_label("wind_speed", system)
+
+    def speed(value: float) -> str:
+        return f"{float(to_display(value, 'wind_speed', system)):.1f}"
+
+    interval = "" if wind.speed_ci95 is None else \
+        f" (95 % interval {speed(wind.speed_ci95[0])} to {speed(wind.speed_ci95[1])} {unit})"
+    return (f"Wind estimated from the laps: {speed(wind.speed)} {unit} at 10 m{interval}, "
+            f"{speed(wind.speed_at_rider)} {unit} at rider height, from "
+            f"{wind.wind_from:.0f}°")
 
 
 def difference_lines(result: Any) -> list[str]:
@@ -357,22 +421,36 @@ def road_test_cda_note() -> str:
 @st.cache_resource(max_entries=8, show_spinner="Fitting CdA and Crr…")
 def _cached_run(key: str, _files: Sequence[tuple[Any, ...]], total_mass: float,
                 _conditions: Any, method: str, rolling: float | None,
-                efficiency: float) -> tuple[FieldTestRun | None, str | None]:
+                efficiency: float, wind_given: bool = True,
+                ) -> tuple[FieldTestRun | None, str | None]:
     """(FieldTestRun, None) or (None, one-line refusal), keyed on the files' digests and
     the inputs."""
     try:
-        return run_fieldtest(_files, total_mass, _conditions, method, rolling, efficiency), None
+        return run_fieldtest(_files, total_mass, _conditions, method, rolling, efficiency,
+                             wind_given=wind_given), None
     except InputError as error:
         return None, first_line(error)
     except (ValueError, ArithmeticError, np.linalg.LinAlgError) as error:
         return None, f"the rides could not be fitted: {first_line(error)}"
 
 
-def _conditions_inputs(system: str) -> Any:
-    """The test day's air and wind as drawn (pacing.weather.conditions.Conditions)."""
+WIND_CHOICES = ("estimate it from the laps", "as given here")
+"""How the panel takes the test day's wind: estimated (the default) or as typed."""
+
+
+def _conditions_inputs(system: str) -> tuple[Any, bool]:
+    """The test day's air and wind as drawn (pacing.weather.conditions.Conditions), and
+    whether the wind is given (else estimated from the laps)."""
     from pacing.weather.conditions import Conditions
     from ui.widgets import unit_number
 
+    choice = st.radio("Wind on the test day", WIND_CHOICES, key="ft_wind_choice",
+                      horizontal=True,
+                      help="estimated: a steady wind (speed and direction) is fitted with CdA "
+                           "and Crr from how the laps depend on the direction of travel; a "
+                           "loop ridden at several speeds or an out-and-back tells it from "
+                           "drag. Given: the wind typed here (0 = calm), checked against "
+                           "the laps")
     cols = st.columns(3)
     with cols[0]:
         temperature = unit_number("Air temperature", "temperature", system, "ft_temperature",
@@ -389,9 +467,10 @@ def _conditions_inputs(system: str) -> Any:
                            0.5, help="test in calm air if you can")
         wind_from = unit_number("Wind comes from [° from north]", None, system, "ft_wind_from",
                                 0.0, 0.0, 360.0, 5.0)
-    return Conditions(temperature=temperature, relative_humidity=humidity,
-                      sea_level_pressure=pressure, wind_speed=wind, wind_from=wind_from,
-                      wind_height=height)
+    conditions = Conditions(temperature=temperature, relative_humidity=humidity,
+                            sea_level_pressure=pressure, wind_speed=wind, wind_from=wind_from,
+                            wind_height=height)
+    return conditions, choice == WIND_CHOICES[1]
 
 
 def _uploaded_rides(uploads: Sequence[Any]) -> list[tuple[str, bytes, str, tuple]] | None:
@@ -430,10 +509,11 @@ def _fit_inputs(system: str) -> tuple[float, str, float | None, float]:
     with cols[1]:
         method = st.radio("Method", list(FIELD_TEST_METHODS), key="ft_method",
                           format_func=lambda key: FIELD_TEST_METHODS[key].label,
-                          help="laps close: every lap returns to its start height, so noisy "
-                               "GPS heights do not matter; recorded heights: follow a trusted "
-                               "elevation trace; steady laps: the regression of Lim et al. "
-                               "(2011), for laps at constant speed")
+                          help="Chung's virtual elevation, loop closure: every lap returns to "
+                               "its start height, so noisy GPS heights do not matter; Chung's "
+                               "virtual elevation against recorded heights: follow a trusted "
+                               "elevation trace; the regression of Lim et al. (2011): laps at "
+                               "constant speed")
     with cols[2]:
         hold = st.checkbox("Hold Crr at a known value", key="ft_hold_crr")
         rolling = None
@@ -446,13 +526,15 @@ def _fit_inputs(system: str) -> tuple[float, str, float | None, float]:
 
 
 def _run_key(files: Sequence[tuple[str, bytes, str, tuple]], mass: float, conditions: Any,
-             method: str, rolling: float | None, efficiency: float) -> str:
+             method: str, rolling: float | None, efficiency: float,
+             wind_given: bool = True) -> str:
     """Cache key of a run: the files' digests and every input."""
     digest = hashlib.sha256()
     for name, data, position, lap_times in files:
         digest.update(name.encode() + b"\0" + position.encode() + b"\0" + repr(lap_times).encode()
                       + hashlib.sha256(data).digest())
-    return f"{digest.hexdigest()}|{mass!r}|{conditions!r}|{method}|{rolling!r}|{efficiency!r}"
+    return (f"{digest.hexdigest()}|{mass!r}|{conditions!r}|{method}|{rolling!r}|{efficiency!r}"
+            f"|{wind_given!r}")
 
 
 def _show_run(run: FieldTestRun, system: str) -> None:
@@ -470,11 +552,17 @@ def _show_run(run: FieldTestRun, system: str) -> None:
     st.dataframe(position_table(result), hide_index=True, key="ft_positions")
     st.caption(rolling_line(result) + f" · air density {run.air_density:.3f} kg/m³ · "
                f"{result.laps} laps")
+    wind = wind_line(result, system)
+    if wind:
+        st.caption(wind)
     st.caption(road_test_cda_note())
     for line in difference_lines(result):
         st.markdown(f"- {line}")
     for notice in result.warnings:
-        st.warning(describe(notice, system))
+        if notice.level == "warning":
+            st.warning(describe(notice, system))
+        else:
+            st.caption(f"Note: {describe(notice, system)}")
     for line in note_lines(run.notes, system, "warning"):
         st.warning(line)
     for line in note_lines(run.notes, system):
@@ -508,24 +596,28 @@ def render_fieldtest(system: str, location: str | None = None,
                "(CSV with time_s, speed_mps, power_w and optional elevation_m, latitude, "
                "longitude, separated by commas, semicolons or tabs, decimal commas welcome; "
                "or GPX with power in the track-point extensions). Laps at clearly different "
-               "speeds let CdA and Crr be told apart.")
+               "speeds let CdA and Crr be told apart. Methods: Chung's virtual elevation "
+               "(loop closure, or against recorded heights) and the regression of Lim et al. "
+               "(2011). Upload each ride once: the same ride twice would count its laps "
+               "twice.")
     uploads = st.file_uploader("Test rides", type=["csv", "gpx"], accept_multiple_files=True,
                                key="ft_files") or []
     files = _uploaded_rides(uploads)
     if files is None:
         return None
     mass, method, rolling, efficiency = _fit_inputs(system)
-    with st.expander("Air on the test day", expanded=False):
+    with st.expander("Air and wind on the test day", expanded=False):
         try:
-            conditions = _conditions_inputs(system)
+            conditions, wind_given = _conditions_inputs(system)
         except InputError as error:
             st.error(first_line(error), icon="⚠️")
             return None
     if not files:
         st.info("Upload one or more test rides to measure CdA.")
         return None
-    key = _run_key(files, mass, conditions, method, rolling, efficiency)
-    run, refusal = _cached_run(key, tuple(files), mass, conditions, method, rolling, efficiency)
+    key = _run_key(files, mass, conditions, method, rolling, efficiency, wind_given)
+    run, refusal = _cached_run(key, tuple(files), mass, conditions, method, rolling, efficiency,
+                               wind_given)
     if refusal:
         st.error(refusal, icon="⚠️")
         return None

@@ -134,6 +134,16 @@ def _grade_colorscale() -> list[list]:
     return [[i / (len(colors) - 1), color] for i, color in enumerate(colors)]
 
 
+def grade_colors(grade, limit: float) -> list[str]:
+    """The colour of each grade [-] on GRADE_COLORSCALE from -limit to +limit [-] (beyond:
+    the end colours), as "rgb(r, g, b)" strings (display only)."""
+    import plotly.colors
+
+    position = 0.5 + 0.5 * np.clip(np.asarray(grade, dtype=float) / limit, -1.0, 1.0)
+    return plotly.colors.sample_colorscale(_grade_colorscale(),
+                                           np.nan_to_num(position, nan=0.5).tolist())
+
+
 def profile_spec(course, system: str, bounds=None, height: int = 300) -> dict:
     """`profile_figure` as plotly's plain data, written directly (no plotly objects to build
     and validate). Parameters as `profile_figure`.
@@ -157,23 +167,30 @@ def profile_spec(course, system: str, bounds=None, height: int = 300) -> dict:
     span = max(to_display(np.ptp(elevation), "elevation", system), 1.0)
     base = floor - 0.15 * span
     limit = min(GRADE_COLOR_LIMIT, max(0.02, float(np.max(np.abs(grade)))))
+    # the bars get their colours as colour strings, worked out here: numbers mapped through
+    # a colour scale on bars make the browser's plotly log one "Invalid color specifier"
+    # per bar and property; the colour bar is drawn by an invisible marker of its own
     data: list[dict] = [{
         "type": "bar", "x": (x0 + x1) / 2, "y": top - base, "base": base, "width": x1 - x0,
-        "marker": {"color": 100 * grade, "colorscale": _grade_colorscale(),
-                   "cmin": -100 * limit, "cmax": 100 * limit, "cmid": 0, "line": {"width": 0},
-                   "colorbar": {"title": {"text": "grade [%]"}, "thickness": 12, "len": 0.9}},
-        "customdata": 100 * grade,
-        "hovertemplate": "%{x:.2f}: grade %{customdata:.1f} %<extra></extra>"}]
+        "marker": {"color": grade_colors(grade, limit), "line": {"width": 0}},
+        "customdata": 100 * grade, "name": "grade", "showlegend": False,
+        "hovertemplate": "%{x:.2f}: grade %{customdata:.1f} %<extra></extra>"},
+        {"type": "scatter", "x": [None], "y": [None], "mode": "markers", "showlegend": False,
+         "hoverinfo": "skip", "name": "grade scale",
+         "marker": {"color": [0.0], "colorscale": _grade_colorscale(), "cmin": -100 * limit,
+                    "cmax": 100 * limit, "showscale": True,
+                    "colorbar": {"title": {"text": "grade [%]"}, "thickness": 12,
+                                 "len": 0.9}}}]
     raw = np.asarray(course.raw_elevation, dtype=float)
     shown = extremes(raw)
     data.append({"type": "scatter", "x": to_display(distance[shown], "distance", system),
                  "y": to_display(raw[shown], "elevation", system), "mode": "lines",
-                 "line": {"color": "rgba(29,43,58,0.45)", "width": 1}, "name": "as recorded",
-                 "hoverinfo": "skip"})
+                 "line": {"color": "rgba(29,43,58,0.45)", "width": 1},
+                 "name": "heights as recorded", "hoverinfo": "skip"})
     shown = extremes(elevation)
     data.append({"type": "scatter", "x": to_display(distance[shown], "distance", system),
                  "y": to_display(elevation[shown], "elevation", system), "mode": "lines",
-                 "line": {"color": INK, "width": 1.6}, "name": "cleaned",
+                 "line": {"color": INK, "width": 1.6}, "name": "heights cleaned",
                  "hovertemplate": "%{x:.2f}, %{y:.0f}<extra></extra>"})
     if bounds is not None and len(bounds) > 2:
         inner = to_display(distance[np.asarray(bounds)[1:-1]], "distance", system)
@@ -187,6 +204,11 @@ def profile_spec(course, system: str, bounds=None, height: int = 300) -> dict:
               "yaxis": {"title": {"text": f"elevation [{unit_label('elevation', system)}]"},
                         "range": [base, floor + 1.1 * span]}}
     spec = {"data": data, "layout": _styled(layout, height)}
+    # a legend for the lines (the grade's colours have their colour bar)
+    spec["layout"].update(showlegend=True, legend={"orientation": "h", "x": 0.0, "y": 1.12,
+                                                   "bgcolor": "rgba(255,255,255,0)"})
+    for trace in data[2:]:
+        trace["showlegend"] = True
     if any(gap.handling == "join" for gap in getattr(course, "gaps", ())):
         figure = go.Figure(spec)  # the gaps' bands are placed by plotly's add_vrect
         _mark_gaps(figure, course, system)
@@ -349,13 +371,33 @@ def _along_panels(distance: np.ndarray, speed, power, headwind, w_prime_balance,
     return panels
 
 
+EASING_COLOR = "#7f8c8d"
+"""Markers where the rider brakes or coasts below the plan."""
+
+
+def _easing_trace(axis: str, events, system: str) -> dict:
+    """Markers on the power panel (axes `axis`) at each stretch where the rider eases off,
+    labelled by what happens there (display only)."""
+    from ui.text import EASING_WORDS
+
+    x = [float(to_display(0.5 * (e.start + e.end), "distance", system)) for e in events]
+    speed = unit_label("speed", system)
+    text = [f"{EASING_WORDS.get(e.kind, e.kind)}, down to "
+            f"{float(to_display(e.lowest_speed, 'speed', system)):.0f} {speed}" for e in events]
+    return {"type": "scatter", "x": x, "y": [0.0] * len(x), "mode": "markers",
+            "marker": {"color": EASING_COLOR, "size": 9, "symbol": "triangle-up"},
+            "text": text, "hovertemplate": "%{x:.2f}: %{text}<extra></extra>",
+            "name": "eases off", "xaxis": f"x{axis}", "yaxis": f"y{axis}"}
+
+
 def along_course_spec(distance, speed, power=None, headwind=None, w_prime_balance=None,
                       system: str = "metric", height_per_panel: int = 170,
-                      reserve: str = "W′") -> dict:
+                      reserve: str = "W′", events=()) -> dict:
     """`along_course_figure` as plotly's plain data, written directly: the panels stacked on
     one shared distance axis as plotly's make_subplots(rows=n, shared_xaxes=True,
     vertical_spacing=0.04) lays them out, without building and validating plotly objects (the
-    page makes this figure for every new plan). Parameters as `along_course_figure`.
+    page makes this figure for every new plan). Parameters as `along_course_figure`;
+    `events` (pacing.plan.energy.EasingEvent) are marked at the foot of the power panel.
 
     Returns
     -------
@@ -389,6 +431,11 @@ def along_course_spec(distance, speed, power=None, headwind=None, w_prime_balanc
         layout[f"yaxis{axis}"] = {"anchor": f"x{axis}",
                                   "domain": [max(bottom, 0.0), min(bottom + height, 1.0)],
                                   "title": {"text": title}, **grid}
+        if title == "power [W]":  # from zero: a 1 W dip must not fill the panel
+            top = float(np.nanmax(y)) if np.size(y) else 1.0
+            layout[f"yaxis{axis}"]["range"] = [0.0, 1.1 * max(top, 1.0)]
+            if events:
+                data.append(_easing_trace(axis, events, system))
     layout[f"xaxis{count if count > 1 else ''}"]["title"] = {
         "text": f"distance [{unit_label('distance', system)}]"}
     if w_prime_balance is not None:

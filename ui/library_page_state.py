@@ -32,6 +32,9 @@ PAGE_WIDGETS = {
     "mean_power": ("mean_power", 1.0),
     "max_power_ratio": ("max_power_ratio", 1.0),
     "w_prime_reserve": ("w_prime_reserve", 0.001),
+    "start_speed": ("start_speed", 1.0),
+    "max_descent_speed": ("max_descent_speed", 1.0),
+    "drafting_reduction": ("drafting_pct", 100.0),
 }
 """How the page's inputs (ui.sections, ui.widgets.unit_number) keep their values: page value
 (SI) → (the widget's store key "si:<key>" and widget keys "<key>:<system>", factor from SI to
@@ -65,8 +68,8 @@ def _number_states(inputs: Mapping[str, Any]) -> dict:
 
 
 def _approach_states(athlete: Mapping[str, Any], approach: Mapping[str, Any]) -> dict:
-    """The sport, the approach radio (cycling or running labels), the target time and the
-    "coast on descents" box."""
+    """The sport, the approach radio (cycling or running labels), the target time, the
+    "coast on descents" box, and for cycling the descent-limit box and the W′ model."""
     from ui import text
 
     state: dict = {}
@@ -82,6 +85,9 @@ def _approach_states(athlete: Mapping[str, Any], approach: Mapping[str, Any]) ->
         state["target_time"] = format_duration(float(approach["target_time"]))
     if "allow_zero_on_descents" in approach:
         state["coast_descents"] = bool(approach["allow_zero_on_descents"])
+    if sport == "cycling":  # a plan saved before these were asked had neither
+        state["descent_cap_on"] = approach.get("max_descent_speed") is not None
+        state["w_prime_model"] = approach.get("w_prime_model") or "differential"
     return state
 
 

@@ -60,20 +60,21 @@ def fill_page_inputs(values: Mapping[str, Any]) -> None:
         keys the page does not keep as numbers, and None values, are skipped.
     """
     from ui import text
+    from ui.widgets import set_inputs
 
+    numbers = {}
     for key, value in values.items():
-        if key not in PAGE_WIDGETS or value is None:
-            continue
-        store, factor = PAGE_WIDGETS[key]
-        st.session_state[f"si:{store}"] = float(value) * factor
-        for system in ("metric", "imperial"):
-            st.session_state.pop(f"{store}:{system}", None)
+        if key in PAGE_WIDGETS and value is not None:
+            store, factor = PAGE_WIDGETS[key]
+            numbers[store] = float(value) * factor
+    choices = {}
     own = next((label for label, v in text.DRAG_AREA_PRESETS.items() if v is None), None)
     if "drag_area" in values and own is not None:
-        st.session_state["cda_preset"] = own
+        choices["cda_preset"] = own
     own = next((label for label, v in text.ROLLING_PRESETS.items() if v is None), None)
     if "rolling_coefficient" in values and own is not None:
-        st.session_state["crr_preset"] = own
+        choices["crr_preset"] = own
+    set_inputs(numbers, choices)
 
 
 def open_plan_in_page(library, inputs: Mapping[str, Any], plan_name: str = "") -> None:
@@ -113,11 +114,10 @@ def open_plan_in_page(library, inputs: Mapping[str, Any], plan_name: str = "") -
         st.session_state[LIBRARY_COURSE] = {"gpx": bytes(gpx),
                                             "name": inputs.get("course_name") or "course",
                                             "plan": plan_name}
-    for key, value in state.items():
-        st.session_state[key] = value
-        if key.startswith("si:"):
-            for system in ("metric", "imperial"):
-                st.session_state.pop(f"{key[3:]}:{system}", None)
+    from ui.widgets import set_inputs
+
+    set_inputs({key[3:]: value for key, value in state.items() if key.startswith("si:")},
+               {key: value for key, value in state.items() if not key.startswith("si:")})
     st.session_state["library:message"] = (
         f"The page now shows the saved plan {plan_name!r}." if plan_name else
         "The page now shows the saved plan.")
@@ -229,14 +229,12 @@ def render_library(current_inputs: dict | None, current_result: dict | None, sys
         ``{"action": "open", "plan_id", "plan": PlanRecord, "inputs": dict}`` (a saved plan
         to show).
     """
-    st.subheader("Library")
     try:
         library = _library(location)
     except (InputError, ConflictError, OSError) as error:
         st.error(f"The library cannot be opened: {error_message(error)}", icon="⚠️")
         return None
     st.session_state["library:location"] = location
-    st.caption(f"Stored in {library.location}")
     message = st.session_state.pop("library:message", None)
     if message:
         st.success(message)
@@ -244,7 +242,10 @@ def render_library(current_inputs: dict | None, current_result: dict | None, sys
     if failure:
         st.error(failure, icon="⚠️")
     chosen: dict | None = None
-    tabs = st.tabs(["Athletes and setups", "Save this plan", "Saved plans", "Backup"])
+    # the open tab is kept across reruns (a message after storing or saving does not send
+    # the coach back to the first tab)
+    tabs = st.tabs(["Athletes and setups", "Save this plan", "Saved plans", "Backup"],
+                   key="library_tab", on_change="rerun")
     with tabs[0]:
         chosen = _athletes_tab(library, current_inputs, system) or chosen
     with tabs[1]:
@@ -275,21 +276,44 @@ def _athletes_tab(library, current_inputs, system) -> dict | None:
     return result
 
 
+SELECT_ATHLETE = "library:select_athlete"
+SELECT_SETUP = "library:select_setup"
+"""Session keys: the id of an athlete or setup just stored, to be chosen in its selector
+the next time it is drawn (a selector drawn already cannot change in the same run)."""
+
+
+def _select_stored(pending: str, widget: str, labels: Mapping[str, Any]) -> None:
+    """Choose the record stored under `pending` (an id) in the selector `widget` whose
+    choices are `labels` (label → record with .id), before the selector is drawn."""
+    wanted = st.session_state.pop(pending, None)
+    if wanted is None:
+        return
+    label = next((k for k, v in labels.items() if v is not None and v.id == wanted), None)
+    if label is not None:
+        st.session_state[widget] = label
+
+
 def _choose_athlete(library, athletes) -> tuple[Any, dict | None]:
     """Athlete and setup choices, "Use in the page" and "Delete…"; returns the chosen
     athlete's record and, when "Use in the page" was pressed, the "use" action."""
-    labels = {f"{a.athlete.name} · {a.athlete.body_mass:.1f} kg (#{a.id})": a
-              for a in athletes}
+    labels = {f"{a.athlete.name} · {a.athlete.body_mass:.1f} kg": a for a in athletes}
+    if len(labels) < len(athletes):  # a library from before names were unique
+        labels = {f"{a.athlete.name} · {a.athlete.body_mass:.1f} kg (#{a.id})": a
+                  for a in athletes}
+    _select_stored(SELECT_ATHLETE, "library_athlete", labels)
     label = st.selectbox("Athlete", list(labels), key="library_athlete")
     record = labels[label]
     st.session_state["library:athlete_id"] = record.id
     setups = library.setups(record.id)
-    setup_labels = {f"{s.setup.name} · CdA {s.setup.drag_area:.3f} m² (#{s.id})": s
-                    for s in setups}
+    setup_labels = {f"{s.setup.name} · CdA {s.setup.drag_area:.3f} m²": s for s in setups}
     setup_labels["(the athlete only, no setup)"] = None
+    _select_stored(SELECT_SETUP, "library_setup", setup_labels)
     setup_label = st.selectbox("Setup", list(setup_labels), key="library_setup")
     setup_record = setup_labels[setup_label]
     st.session_state["library:setup_id"] = None if setup_record is None else setup_record.id
+    st.session_state["library:filed_under"] = (
+        record.athlete.name if setup_record is None
+        else f"{record.athlete.name}, setup {setup_record.setup.name}")
     values = page_values(record.athlete, None if setup_record is None
                          else setup_record.setup)
     result = None
@@ -339,19 +363,24 @@ def _store_page_athlete(library, page_athlete: dict, record, expanded: bool) -> 
         def add(on_existing: str):
             added = library.add_athlete(athlete_from_page(name, page_athlete),
                                         on_existing=on_existing)
+            st.session_state[SELECT_ATHLETE] = added.id
             if page_athlete.get("sport", "cycling") == "cycling":
-                library.add_setup(added.id, setup_from_page(setup_name, page_athlete),
-                                  on_existing="replace" if on_existing == "replace"
-                                  else "keep-both")
+                setup = library.add_setup(added.id, setup_from_page(setup_name, page_athlete),
+                                          on_existing="replace" if on_existing == "replace"
+                                          else "keep-both")
+                st.session_state[SELECT_SETUP] = setup.id
             return added
         save_asking("athlete", pressed, add, lambda added: f"Stored {added.athlete.name!r}.")
         pressed = cols[1].button("Add the setup to the chosen athlete", key="library_add_setup",
                                  disabled=record is None or not page_athlete)
-        save_asking("setup", pressed and record is not None,
-                     lambda on_existing: library.add_setup(
-                         record.id, setup_from_page(setup_name, page_athlete),
-                         on_existing=on_existing),
-                     lambda added: f"Stored setup {added.setup.name!r}.")
+        def add_setup(on_existing: str):
+            added = library.add_setup(record.id, setup_from_page(setup_name, page_athlete),
+                                      on_existing=on_existing)
+            st.session_state[SELECT_SETUP] = added.id
+            return added
+        save_asking("setup", pressed and record is not None, add_setup,
+                     lambda added: f"Stored setup {added.setup.name!r} for "
+                                   f"{record.athlete.name!r}.")
 
 
 def _save_tab(library, current_inputs, current_result) -> None:
@@ -365,8 +394,12 @@ def _save_tab(library, current_inputs, current_result) -> None:
     athlete_id = st.session_state.get("library:athlete_id")
     link = False
     if athlete_id is not None:
-        link = st.checkbox("File it under the chosen athlete and setup", value=True,
-                           key="library_plan_link")
+        under = st.session_state.get("library:filed_under") or "the chosen athlete"
+        link = st.checkbox(f"File it under {under}", value=True, key="library_plan_link",
+                           help="choose another athlete or setup in the first tab")
+    else:
+        st.caption("Not filed under an athlete: store one in the first tab to file plans "
+                   "under them.")
     pressed = st.button("Save this plan", key="library_save", type="primary")
     save_asking("plan", pressed, lambda on_existing: save_current_plan(
         library, name, notes, current_inputs, current_result,
@@ -387,8 +420,11 @@ def _plans_tab(library, system: str, compute) -> dict | None:
     if not plans:
         st.caption("No saved plans yet.")
         return None
-    st.dataframe(plans_table(plans), hide_index=True, key="library_plans")
-    labels = {f"{p.name} · {format_duration(p.finish_time)} (#{p.id})": p for p in plans}
+    names = {a.id: a.athlete.name for a in library.athletes()}
+    st.dataframe(plans_table(plans, names), hide_index=True, key="library_plans")
+    labels = {f"{p.name} · {format_duration(p.finish_time)}"
+              + (f" · {names[p.athlete_id]}" if p.athlete_id in names else ""): p
+              for p in plans}
     label = st.selectbox("Open a saved plan", list(labels), key="library_plan")
     summary = labels[label]
     try:
@@ -469,7 +505,7 @@ def _backup_tab(library) -> None:
                        functools.partial(dump_library_file, library),
                        file_name="pacing-library.json", mime="application/json",
                        key="library_export", on_click="ignore")
-    upload = st.file_uploader("Bring in a library file (JSON)", type=["json"],
+    upload = st.file_uploader("Add a library file (JSON)", type=["json"],
                               key="library_import_file")
     if upload is None:
         return
@@ -483,12 +519,12 @@ def _backup_tab(library) -> None:
     if st.session_state.get("library:imported") == digest:
         st.caption("This file has been brought in.")
         return
-    pressed = st.button("Bring it in", key="library_import")
+    pressed = st.button("Add the file's athletes, setups and plans", key="library_import")
     on_existing = "refuse"
     if st.session_state.get("library:import_asking") == digest:
-        st.warning("Some names of the file are already in the library. Bring it in keeping "
+        st.warning("Some names of the file are already in the library. Add the file keeping "
                    "both (the file's entries get a number, e.g. \"Ann (2)\")?")
-        if st.button("Bring it in, keeping both", key="library_import_keep_both"):
+        if st.button("Add them, keeping both", key="library_import_keep_both"):
             pressed, on_existing = True, "keep-both"
     if pressed:
         try:

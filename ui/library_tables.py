@@ -18,29 +18,43 @@ def _stamp(value) -> str:
     return value.strftime("%Y-%m-%d %H:%M UTC") if value is not None else ""
 
 
-def plans_table(plans) -> pd.DataFrame:
+def strategy_label(strategy: str, sport: str | None) -> str:
+    """The page's name of a plan's strategy key ("constant" → "Even power"); the key itself
+    when the page has no name for it."""
+    from ui import text
+
+    choices = text.RUNNING_APPROACHES if sport == "running" else text.APPROACHES
+    return next((label for label, key in choices.items() if key == strategy), strategy)
+
+
+def plans_table(plans, athlete_names: Mapping[int, str] | None = None) -> pd.DataFrame:
     """Saved plans as a table, in the order given (the library lists newest first).
 
     Parameters
     ----------
     plans : sequence of pacing.store.records.PlanSummary
         The saved plans.
+    athlete_names : Mapping or None
+        Athlete id → name, for the athlete column ("–" for a plan filed under nobody).
 
     Returns
     -------
     pandas.DataFrame
-        Plan, finish [h:mm:ss], time gained on even power [s], when saved (UTC), the version
-        of pacing that made it, notes.
+        Plan, athlete, finish [h:mm:ss], time gained on even power [s], when saved (UTC),
+        the version of pacing that made it, notes.
     """
+    names = athlete_names or {}
     return pd.DataFrame({
         "Plan": [p.name for p in plans],
+        "Athlete": [names.get(p.athlete_id, "–") if p.athlete_id is not None else "–"
+                    for p in plans],
         "Finish [h:mm:ss]": [format_duration(p.finish_time) for p in plans],
         "Gained on even power [s]": [("" if p.time_saved is None else f"{p.time_saved:.0f}")
                                      for p in plans],
         "Saved": [_stamp(p.updated_at) for p in plans],
         "Made with pacing": [p.library_version for p in plans],
         "Notes": [p.notes for p in plans],
-    }, columns=["Plan", "Finish [h:mm:ss]", "Gained on even power [s]", "Saved",
+    }, columns=["Plan", "Athlete", "Finish [h:mm:ss]", "Gained on even power [s]", "Saved",
                 "Made with pacing", "Notes"])
 
 
@@ -132,6 +146,6 @@ def inputs_summary(inputs: Mapping[str, Any], system: str) -> list[str]:
     approach = inputs.get("approach") or {}
     if approach.get("strategy"):
         power = approach.get("mean_power")
-        lines.append(f"plan: {approach['strategy']}"
+        lines.append(f"pacing: {strategy_label(approach['strategy'], athlete.get('sport'))}"
                      + (f", average {power:.0f} W" if power else ""))
     return [line for line in lines if "nan" not in line]

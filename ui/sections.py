@@ -19,7 +19,7 @@ from pacing.display.units import (
 )
 from pacing.errors import InputError
 from ui import text
-from ui.widgets import unit_number
+from ui.widgets import take_pending, unit_number
 
 # ------------------------------------------------------------------------------------ route
 
@@ -116,6 +116,13 @@ def smoothing_inputs(system: str) -> dict:
 
 # --------------------------------------------------------------------------- athlete, setup
 
+DEFAULT_CRITICAL_SPEED = 4.0
+"""The page's first critical speed [m/s] (14.4 km/h, 4:10 per km)."""
+DEFAULT_FLAT_PACE = 1000.0 / DEFAULT_CRITICAL_SPEED
+"""The page's first flat pace [s/km]: the pace of the first critical speed, so the two
+defaults describe the same runner (equal effort and the quickest plan within critical speed
+then finish about a minute apart on the default course, not half an hour)."""
+
 FLAT_PACE_RANGE = (120.0, 900.0)
 """Flat pace the page accepts [s/km]: 2:00 to 15:00 per km."""
 
@@ -202,12 +209,17 @@ def _runner_inputs(cols, system: str) -> dict:
                                        1.2, 2.2, 0.01)
     with cols[2]:
         pace_label = unit_label("pace", system)
-        default = st.session_state.get("si:flat_pace", 300.0)
-        shown = float(pace_per_km_to_display(default, system))
+        default = st.session_state.get("si:flat_pace", DEFAULT_FLAT_PACE)
+        shown = format_pace(float(pace_per_km_to_display(default, system)))
+        widget = f"flat_pace:{system}"
+        if take_pending("flat_pace", system):
+            st.session_state[widget] = shown  # the browser shows the value set
         typed = st.text_input(f"Flat pace, still air [{pace_label}, M:SS]",
-                              value=format_pace(shown), key=f"flat_pace:{system}",
-                              help="the pace you would hold for this race on flat ground")
-        seconds = parse_clock(typed, "flat pace")
+                              value=None if widget in st.session_state else shown, key=widget,
+                              help="the pace you would hold for this race on flat ground; "
+                                   "for races under an hour about the pace of your "
+                                   "critical speed")
+        seconds = parse_clock(typed or "", "flat pace")
         per_km = seconds / float(pace_per_km_to_display(1.0, system))
         if not FLAT_PACE_RANGE[0] <= per_km <= FLAT_PACE_RANGE[1]:
             raise InputError(flat_pace_range_message(system))
@@ -216,8 +228,9 @@ def _runner_inputs(cols, system: str) -> dict:
     cols = st.columns(3)
     with cols[0]:
         values["critical_speed"] = unit_number(
-            "Critical speed", "speed", system, "critical_speed", 4.5, 1.5, 7.0, 0.1,
-            help="the speed you can hold for about half an hour")
+            "Critical speed", "speed", system, "critical_speed", DEFAULT_CRITICAL_SPEED, 1.5,
+            7.0, 0.1, help="the speed you can hold for about half an hour; the quickest plan "
+                           "keeps to it and to D′")
     with cols[1]:
         values["d_prime"] = unit_number("D′ [m]", None, system, "d_prime", 150.0, 10.0,
                                         600.0, 5.0,
@@ -266,10 +279,11 @@ def weather_inputs(system: str, roughness_classes: dict[str, float] | None) -> d
 
 # ------------------------------------------------------------------------------ approach
 
-def approach_inputs(sport: str, athlete: dict) -> dict:
+def approach_inputs(sport: str, athlete: dict, system: str = "metric") -> dict:
     """The pacing plan and its limits; returns SI values: strategy (a key of
     pacing.plan.strategies.STRATEGIES[sport]); cycling: mean_power [W] or target_time [s],
-    max_power_ratio [-], w_prime_reserve [J], allow_zero_on_descents."""
+    max_power_ratio [-], w_prime_reserve [J], allow_zero_on_descents, and the race details
+    of `race_details_inputs`."""
     values: dict = {}
     if sport == "cycling":
         label = st.radio("Plan", list(text.APPROACHES), key="approach", horizontal=True)
@@ -295,11 +309,12 @@ def approach_inputs(sport: str, athlete: dict) -> dict:
                 "max_power_ratio", 1.15, 0.5, 2.0, 0.05, help=limits)
         with cols[2]:
             values["w_prime_reserve"] = 1000.0 * unit_number(
-                "W′ to keep in hand [kJ]", None, "metric", "w_prime_reserve", 2.0, 0.0,
+                "W′ never spent, at least [kJ]", None, "metric", "w_prime_reserve", 2.0, 0.0,
                 50.0, 0.5, help=limits)
         values["allow_zero_on_descents"] = st.checkbox(
             "Freewheeling allowed on descents", value=False, key="coast_descents",
             help="descending segments may go down to 0 W (" + limits + ")")
+        values.update(race_details_inputs(system))
     else:
         label = st.radio("Plan", list(text.RUNNING_APPROACHES), key="running_approach",
                          horizontal=True)
@@ -307,23 +322,186 @@ def approach_inputs(sport: str, athlete: dict) -> dict:
     return values
 
 
+W_PRIME_MODEL_LABELS = {
+    "differential": "balance changes with the gap to CP (Skiba et al. 2015)",
+    "integral": "one recovery time for the whole race (Skiba et al. 2012)",
+}
+"""The W′ balance models of pacing.physiology.critical_power.W_PRIME_BALANCE_MODELS, in
+words (key → label)."""
+
+DESCENT_CAP_DEFAULT = 60.0 / 3.6
+"""The descent speed limit first offered when the coach asks for one [m/s] (60 km/h)."""
+
+
+def race_details_inputs(system: str) -> dict:
+    """The race's own details, folded away: speed at the start [m/s], a descent speed limit
+    [m/s] or None, the drag saved by drafting [-] and the W′ balance model (a key of
+    W_PRIME_MODEL_LABELS). Their first values are the model's defaults (standing start, no
+    limit, riding alone, differential balance)."""
+    values: dict = {}
+    with st.expander("Start, descent speed limit, drafting and W′ model", expanded=False):
+        cols = st.columns(4)
+        with cols[0]:
+            values["start_speed"] = unit_number(
+                "Speed at the start", "speed", system, "start_speed", 0.0, 0.0, 20.0, 1.0,
+                help="0 for a standing start; a flying start carries its speed over the line")
+        with cols[1]:
+            capped = st.checkbox("Limit the descent speed", value=False, key="descent_cap_on",
+                                 help="the rider never goes faster than this, braking before "
+                                      "where the model would go faster")
+            if capped:
+                values["max_descent_speed"] = unit_number(
+                    "Highest speed", "speed", system, "max_descent_speed",
+                    DESCENT_CAP_DEFAULT, 5.0, 30.0, 1.0,
+                    help="a limit of your own for the road and your skills")
+        with cols[2]:
+            values["drafting_reduction"] = unit_number(
+                "Drag saved by drafting [%]", None, system, "drafting_pct", 0.0, 0.0, 60.0,
+                1.0, help="share of your air drag saved riding behind others; 0 when riding "
+                          "alone (a time trial)") / 100.0
+        with cols[3]:
+            model = st.radio("W′ balance model", list(W_PRIME_MODEL_LABELS),
+                             format_func=W_PRIME_MODEL_LABELS.get, key="w_prime_model",
+                             help="how the reserve above critical power is spent and won back; "
+                                  "on stop-and-go efforts the two can differ by several kJ")
+            values["w_prime_model"] = model
+    return values
+
+
 # ------------------------------------------------------------------------------ results
 
 def outcome_headline(outcome, system: str) -> None:
     """Show finish time [h:mm:ss] and average speed [km/h or mph] front and centre, then
-    average power [W], top speed and the time gained on even power [s]."""
+    average power [W] (cycling) or pace (running), top speed and, for the quickest plan, the
+    time gained on even power [s]; under it, why the average power differs from the plan's
+    (easing off for corners, limits and the start)."""
     speed_unit = unit_label("speed", system)
     cols = st.columns(5)
     cols[0].metric("Finish time", format_duration(outcome.finish_time))
     cols[1].metric("Average speed",
                    f"{to_display(outcome.average_speed, 'speed', system):.1f} {speed_unit}")
     if outcome.average_power is not None:
-        cols[2].metric("Average power", f"{outcome.average_power:.0f} W")
+        cols[2].metric("Average power", f"{outcome.average_power:.0f} W",
+                       help="time-weighted mean of the crank power actually ridden, with "
+                            "the easing off for corners, speed limits and the start")
+    elif outcome.average_speed > 0:
+        pace = format_pace(float(pace_per_km_to_display(1000.0 / outcome.average_speed,
+                                                        system)))
+        cols[2].metric("Average pace", f"{pace} {unit_label('pace', system)}")
     cols[3].metric("Top speed", f"{to_display(outcome.max_speed, 'speed', system):.1f} "
                    f"{speed_unit}", help=text.speed_caution(outcome.sport))
-    if outcome.time_saved is not None:
+    if outcome.time_saved is not None and outcome.strategy == "fastest":
         cols[4].metric("Gained on even power", f"{outcome.time_saved:.0f} s",
                        help="finish time of even power at the same average, minus this plan's")
+    line = power_explained(outcome)
+    if line:
+        st.caption(line)
+    model = getattr(outcome, "w_prime_model", None)
+    if outcome.sport == "cycling" and model in W_PRIME_MODEL_LABELS:
+        st.caption(f"W′ balance model: {model}, {W_PRIME_MODEL_LABELS[model]}.")
+
+
+def power_explained(outcome) -> str | None:
+    """One line on the planned against the ridden average power: "240 W planned; 239 W
+    ridden on average, easing off at 7 places (6 corners or speed limits braked for, the
+    start)"; None without power."""
+    if outcome.average_power is None or outcome.planned_power is None:
+        return None
+    kinds = [e.kind for e in outcome.easing]
+    parts = []
+    for kind, words in (("braking", "braking for {n} corners or speed limits"),
+                        ("coasting", "coasting at {n} places"),
+                        ("start", "the standing start")):
+        count = kinds.count(kind)
+        if count:
+            parts.append(words.format(n=count) if count > 1 or kind == "start" else
+                         words.format(n=1).replace("corners or speed limits",
+                                                   "corner or speed limit").replace(
+                             "places", "place"))
+    planned = f"{outcome.planned_power:.0f} W planned"
+    if not parts:
+        return f"{planned}; ridden as planned everywhere."
+    return (f"{planned}; {outcome.average_power:.0f} W ridden on average, with "
+            f"{', '.join(parts)} (marked ▲ on the power chart and listed under the table).")
+
+
+def where_the_watts_go(outcome, system: str) -> None:
+    """Draw "Where the watts go" (ui.energy_panel): the chart and the table of what the
+    athlete's energy pays for (a rider's crank work, a runner's metabolic energy), and the
+    line on why drag grows with the square of speed."""
+    from ui import energy_panel
+    from ui.figures import drawable
+
+    line = energy_panel.reynolds_line(outcome, system)
+    if outcome.budget is not None:
+        st.plotly_chart(drawable(energy_panel.energy_spec(outcome.budget)), key="energy_chart")
+        st.caption(energy_panel.energy_note(outcome.budget))
+        frame = energy_panel.energy_frame(outcome.budget, system)
+        st.dataframe(frame, hide_index=True, key="energy_table", column_config={
+            column: st.column_config.Column(label=label, help=column)
+            for column, label in energy_panel.short_labels(frame.columns).items()})
+    if line:
+        st.caption(line)
+
+
+SHORT_HEADERS = {
+    "Segment": "#", "From": "From", "To": "To", "Length": "Length", "Grade": "Grade",
+    "Target power": "Power", "Range": "Range", "Speed": "Speed",
+    "Target pace": "Pace", "Headwind": "Headwind", "Split": "Split", "Elapsed": "Total",
+    "W′ left": "W′ left", "D′ left": "D′ left",
+}
+"""The segment table's headers as the page shows them, short enough for every column to fit
+the page (the full header, with its unit, is the column's help; the files keep the full
+headers)."""
+
+
+def page_targets(table, easing: list[str] | None = None):
+    """The segment table as the page shows it, narrower: "From" left out (it is the row
+    above's "To"), the power band as one "Range" column ("233–247"), and where the rider
+    eases off below the plan (`easing`, one text per row, after the elapsed time) when
+    given. The files keep the full table."""
+    shown = table.drop(columns=[c for c in table.columns if str(c).startswith("From [")])
+    low = next((c for c in shown.columns if str(c).startswith("Power low")), None)
+    high = next((c for c in shown.columns if str(c).startswith("Power high")), None)
+    if low is not None and high is not None:
+        band = [f"{a:.0f}–{b:.0f}" if a == a and b == b else "–"
+                for a, b in zip(shown[low], shown[high], strict=True)]
+        shown = shown.drop(columns=[low, high])
+        shown.insert(list(shown.columns).index(next(
+            c for c in shown.columns if str(c).startswith("Target power"))) + 1,
+            "Range [W]", band)
+    if easing is not None:  # beside the plan's numbers, before the weather's columns
+        after = next((c for c in shown.columns if str(c).startswith("Elapsed")), None)
+        place = list(shown.columns).index(after) + 1 if after is not None else len(
+            shown.columns)
+        shown.insert(place, "Eases off", easing)
+    return shown
+
+
+def target_columns(columns) -> dict:
+    """Streamlit column settings for the segment table: each column under its short header
+    (SHORT_HEADERS; "Power [W]" for "Target power [W]") with the full header as its help."""
+    settings = {}
+    for column in columns:
+        name, _, unit = str(column).partition(" [")
+        short = SHORT_HEADERS.get(name, name)
+        shown = f"{short} [{unit}" if unit and not unit.startswith("h:mm") else short
+        settings[column] = st.column_config.Column(label=shown, help=str(column))
+    return settings
+
+
+def file_notes(outcome, system: str) -> list[str]:
+    """The lines every download carries: the outcome's notices ("warning: …", "note: …"),
+    for cycling the W′ balance model the plan used, and the race day's lines (start, where
+    the limits were measured, the forecast band: pacing.io.exports.race_day_lines)."""
+    from pacing.display.notices import labelled
+    from pacing.io.exports import race_day_lines
+
+    said = [labelled(n, system) for n in outcome.notices]
+    model = getattr(outcome, "w_prime_model", None)
+    if outcome.sport == "cycling" and model in W_PRIME_MODEL_LABELS:
+        said.append(f"note: W′ balance model: {model}, {W_PRIME_MODEL_LABELS[model]}")
+    return said + list(race_day_lines(getattr(outcome, "race_day", None), system))
 
 
 def downloads(outcome, course, table, system: str, title: str) -> None:
@@ -332,11 +510,11 @@ def downloads(outcome, course, table, system: str, title: str) -> None:
     CSV is made now (cheap); the others only when their button is pressed. Every file says
     the outcome's notices in the page's unit system; the card prints its warnings.
     """
-    from pacing.display.notices import describe, labelled
+    from pacing.display.notices import describe
     from pacing.io import exports
 
     base = "".join(c if c.isalnum() else "-" for c in title.lower()).strip("-") or "race"
-    said = [labelled(n, system) for n in outcome.notices]  # every file says what the page says
+    said = file_notes(outcome, system)  # every file says what the page says
     warned = [describe(n, system) for n in outcome.notices if n.level == "warning"]
     cols = st.columns(5)
     cols[0].download_button("Table · CSV", exports.table_to_csv(table, said),

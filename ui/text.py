@@ -9,6 +9,8 @@ SECTION_TAKEAWAY = "6 · Take it with you"
 SECTION_SETUPS = "7 · Setups side by side"
 SECTION_LIBRARY = "8 · Coach's library"
 SECTION_ROAD_TEST = "9 · Measure drag area on the road"
+SECTION_REVIEW = "10 · Review a race"
+SECTION_TEAM = "11 · Team time trial or team pursuit"
 """Titles of the page's sections, in order."""
 
 SPEED_CAUTION = (
@@ -36,6 +38,17 @@ EXERTION_CAUTION = (
 )
 """Shown in the sidebar and under the predicted race."""
 
+HOT_AIR_TEMPERATURE = 25.0
+"""Air temperature from which the page adds its heat caution [°C] (air temperature alone; the
+race-day conditions' heat model judges humidity, sun and wind as well)."""
+HEAT_CAUTION = (
+    "Hot day: drink and cool down before, during and after, and expect to hold less than on a "
+    "cool day. The organiser's heat policy and the medical staff come first; stop at signs "
+    "of heat illness."
+)
+"""Shown beside the predicted race when the air is at least HOT_AIR_TEMPERATURE."""
+
+
 DRAG_AREA_GUIDE = (
     "Typical CdA (m²) by riding position, wind-tunnel studies:\n\n"
     "| position | Defraeye et al. 2010 | Grappe et al. 1997 |\n"
@@ -44,8 +57,15 @@ DRAG_AREA_GUIDE = (
     "| hands in the drops | ≈ 0.243 | ≈ 0.28 |\n"
     "| time-trial, on aero bars | ≈ 0.216 | ≈ 0.26 |\n\n"
     "Static mannequin or rider; pedalling raises CdA by roughly 30 % in the tunnel "
-    "(García-López et al. 2008). Values quoted from memory of Defraeye et al., J Biomech "
-    "43:1262 (2010) and Grappe et al., Ergonomics 40:1299 (1997)."
+    "(García-López et al. 2008).\n\n"
+    "Sources: Defraeye T, Blocken B, Koninckx E, Hespel P, Carmeliet J (2010) Aerodynamic "
+    "study of different cyclist positions: CFD analysis and full-scale wind-tunnel tests. "
+    "J Biomech 43(7):1262-1268, doi:10.1016/j.jbiomech.2010.01.025 · Grappe F, Candau R, "
+    "Belli A, Rouillon JD (1997) Aerodynamic drag in field cycling with special reference to "
+    "the Obree's position. Ergonomics 40(12):1299-1311 · García-López J, Rodríguez-Marroyo "
+    "JA, Juneau CE, Peleteiro J, Martínez AC, Villa JG (2008) Reference values and "
+    "improvement of aerodynamic drag in professional cyclists. J Sports Sci 26(3):277-286. "
+    "The CdA values in the table are quoted from memory of these papers."
 )
 """Help beside the CdA inputs [m²]."""
 ROLLING_GUIDE = (
@@ -93,3 +113,8 @@ ROAD_TEST_CDA_NOTE = (
     "that includes the spinning wheels therefore reads a little higher than this one."
 )
 """Road-test caption; {wheel} is pacing.physics.cycling.MARTIN_1998["wheel_drag_area"] [m²]."""
+
+EASING_WORDS = {"braking": "brakes for a bend or a speed limit", "coasting": "coasts",
+                "start": "gets going from a standing start"}
+"""What the rider does where the ridden power falls below the plan (the kinds of
+pacing.plan.energy.EasingEvent), on the power chart and in its table."""

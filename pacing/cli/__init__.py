@@ -151,11 +151,22 @@ def main(argv: list[str] | None = None) -> int:
         except (InputError, ValueError, OSError) as error:
             if isinstance(error, BrokenPipeError):
                 return _quiet_broken_pipe()
-            message = first_line(error)
+            message = _in_command_line_words(error, args)
             print(f"pacing {args.command}: error: {message}", file=sys.stderr)
             return 2
         except KeyboardInterrupt:
             return 130
+
+
+def _in_command_line_words(error: BaseException, args: argparse.Namespace) -> str:
+    """The refusal's one line, with the flag that answers it where the command has one: a
+    course file without heights names --flat."""
+    from pacing.io.gpx import NoHeightsError  # on a refusal only: no gpxpy at start-up
+
+    message = first_line(error)
+    if isinstance(error, NoHeightsError) and hasattr(args, "flat"):
+        return f"{message}; add --flat to do so"
+    return message
 
 
 def _quiet_broken_pipe() -> int:

@@ -88,8 +88,8 @@ def add_air_flags(parser: argparse.ArgumentParser) -> None:
     ----------
     parser : argparse.ArgumentParser
         Gets a group "air and wind": --temperature [°C], --humidity [%],
-        --sea-level-pressure [Pa], --wind-speed [m/s], --wind-from [deg], --wind-height [m]
-        and --roughness [m].
+        --sea-level-pressure [Pa], --pressure-kind, --wind-speed [m/s], --wind-from [deg],
+        --wind-height [m] and --roughness [m].
     """
     group = parser.add_argument_group("air and wind")
     group.add_argument("--temperature", type=float, default=20.0,
@@ -97,7 +97,13 @@ def add_air_flags(parser: argparse.ArgumentParser) -> None:
     group.add_argument("--humidity", type=float, default=50.0,
                        help="relative humidity [%%] (default 50)")
     group.add_argument("--sea-level-pressure", type=float, default=101325.0,
-                       help="pressure reduced to sea level [Pa] (default 101325)")
+                       help="pressure reduced to sea level [Pa] (default 101325), or the "
+                            "station pressure with --pressure-kind station")
+    group.add_argument("--pressure-kind", choices=("qnh", "mslp", "station"), default="qnh",
+                       help="what --sea-level-pressure is: qnh (default; reduced by the "
+                            "standard atmosphere, the altimeter setting), mslp (mean-sea-level "
+                            "pressure as weather services publish it) or station (measured at "
+                            "the start's elevation)")
     group.add_argument("--wind-speed", type=float, default=0.0,
                        help="wind speed at the measurement height [m/s] (default 0)")
     group.add_argument("--wind-from", type=float, default=None,
@@ -206,6 +212,7 @@ def conditions_from_args(args: argparse.Namespace) -> Conditions:
         wind_from=args.wind_from,
         wind_height=args.wind_height,
         roughness_length=args.roughness,
+        pressure_kind=getattr(args, "pressure_kind", "qnh"),
     )
 
 
@@ -307,3 +314,6 @@ def report_notices(notices: Sequence[Notice], table: bool) -> list[str]:
         if notice.level == "warning":
             warnings.warn(describe(notice, "metric"), UserWarning, stacklevel=2)
     return [labelled(n, "metric") for n in notices if n.level != "warning"] if table else []
+
+
+# ------------------------------------------------------------------------------ race day

@@ -37,6 +37,9 @@ from pacing.cli.common import (
     notices_as_json,
     report_notices,
 )
+from pacing.cli.race_day_flags import (
+    add_race_day_flags,
+)
 from pacing.compare.analysis import DEFAULT_UNCERTAINTY, MAX_SAMPLES
 from pacing.display import units
 from pacing.errors import InputError
@@ -92,6 +95,7 @@ def add_compare_flags(parser: argparse.ArgumentParser) -> None:
                         help="name of the setup the others are compared to (default: first)")
     add_rider_flags(parser)
     add_air_flags(parser)
+    add_race_day_flags(parser)
     _add_pacing_flags(parser)
     _add_uncertainty_flags(parser)
     parser.add_argument("--no-break-even", action="store_true",
@@ -266,6 +270,16 @@ def analyse(args: argparse.Namespace) -> SetupsAnalysis:
         raise InputError(f"--samples must be 0 or 2-{MAX_SAMPLES}, got {args.samples}")
     setups = setups_from_args(args)
     race = race_request_from_args(args)
+    day = race.race_day
+    if day is not None and getattr(args, "best_start_between", None) is not None:
+        from dataclasses import replace
+
+        from pacing.cli.race_day_flags import start_window
+        from pacing.plan.best_start import best_start
+
+        best = best_start(race, *start_window(args, day))
+        race = replace(race, race_day=replace(day, start=best.start))
+        args.best_start_found = best
     return analyse_setups(race, setups, args.baseline, _uncertainty(args), args.samples,
                           args.seed, not args.no_break_even)
 
@@ -393,8 +407,24 @@ def as_dict(analysis: SetupsAnalysis) -> dict[str, Any]:
             "gain_s": mixed.gain,
             "faster": bool(mixed.faster),
         },
+        **_race_day_as_dict(analysis),
         "notices": notices_as_json(analysis.notices),
     }
+
+
+def _race_day_as_dict(analysis: SetupsAnalysis) -> dict[str, Any]:
+    """start and environment of the race day the setups share (none without one)."""
+    from pacing.plan.race_day import environment_summary
+    from pacing.weather.timeline import clock_text
+
+    day = analysis.race_day
+    if day is None:
+        return {}
+    output = {"start": None if day.start is None else clock_text(day.start, day.utc_offset),
+              "environment": environment_summary(day)}
+    if day.band is not None:  # the band of the flags' rider, the race day's own plan
+        output["finish_time_band"] = day.band.as_dict()
+    return output
 
 
 # ------------------------------------------------------------------------------ table
@@ -522,13 +552,26 @@ def run(args: argparse.Namespace) -> int:
         The exit code (0).
     """
     analysis = analyse(args)
+    best = getattr(args, "best_start_found", None)
     if args.json:
         report_notices(analysis.notices, table=False)
+        output = as_dict(analysis)
+        if best is not None:
+            from pacing.cli.race_day_flags import best_start_as_json
+
+            output["best_start"] = best_start_as_json(best)
         # whole or not at all: a value JSON cannot hold never leaves half a document
-        sys.stdout.write(json.dumps(as_dict(analysis), indent=2, allow_nan=False) + "\n")
+        sys.stdout.write(json.dumps(output, indent=2, allow_nan=False) + "\n")
     else:
         print(as_table(analysis))
         for line in report_notices(analysis.notices, table=True):
             print(line)
+        if analysis.race_day is not None:
+            from pacing.cli.race_day_flags import band_line, best_start_line, race_day_cost_lines
+
+            lines = race_day_cost_lines(analysis.race_day)
+            if analysis.race_day.band is not None:
+                lines.append(band_line(analysis.race_day.band))
+            print("\n".join([*lines, *([best_start_line(best)] if best else [])]))
         print(CAUTION)
     return 0

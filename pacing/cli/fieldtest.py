@@ -3,7 +3,7 @@
     pacing fieldtest RIDE [RIDE ...] --mass KG [--position LABEL ...]
         [--temperature C --humidity PCT --sea-level-pressure PA --wind-speed M/S --wind-from DEG]
         [--method loop|profile|regression] [--crr FIXED] [--fallback-crr TYPICAL]
-        [--laps T0,T1,...] [--json]
+        [--laps T0,T1,...] [--estimate-wind | --no-estimate-wind] [--json]
 
 Several ride files are several riding positions (one CdA each, one shared Crr); the output
 then says whether each position differs from the first beyond the 95 % interval. Lap
@@ -11,6 +11,12 @@ boundaries come from the positions in the file (passes near the start point) unl
 gives them as times [s]. Units are SI except --humidity [%] and --temperature [°C].
 When the laps cannot separate CdA from Crr (all at about one speed), Crr is held at
 --fallback-crr and only CdA is fitted; the output says so ("crr_held" in JSON).
+
+The wind: without --wind-speed the steady wind is estimated from the laps with CdA and Crr
+(--estimate-wind is on by default then; pacing.fieldtest.wind_estimate), since an untold wind
+biases every method. With --wind-speed (0 included: "it was calm") the given wind is used as
+before and only checked: a warning says when the laps show a clearly different one.
+--estimate-wind / --no-estimate-wind override the default.
 """
 
 from __future__ import annotations
@@ -24,7 +30,7 @@ from typing import TYPE_CHECKING, Any
 import numpy as np
 
 from pacing.cli import COMMANDS
-from pacing.cli.common import add_air_flags, notices_as_json, require
+from pacing.cli.common import add_air_flags, conditions_from_args, notices_as_json, require
 from pacing.display.notices import describe, describe_all, labelled
 from pacing.errors import InputError
 from pacing.fieldtest.checks import MAX_BOOTSTRAP_DRAWS, check_bootstrap_draws
@@ -47,8 +53,14 @@ CdA and Crr estimates, near 1 = inseparable); cda_change_per_0_001_crr_m2; air_d
 positions (label, cda_m2, cda_ci95, laps, lap_cda_m2); differences (position - baseline,
 ci95, significant); warnings (of the fit, then of each ride after its label, e.g. power
 dropouts); notes (of reading each ride, after its label, e.g. stops dropped); notices (every
-warning and note as data: code, level, values in SI, text, and the ride for a ride's notice).
-Intervals are 95 % bootstrap intervals over laps, null with fewer than 3 laps.
+warning and note as data: code, level, values in SI, text, and the ride for a ride's notice);
+wind (null unless estimated: estimated, speed_mps at 10 m, speed_at_rider_mps, from_deg,
+speed_ci95 at 10 m, along_axis_only).
+Intervals are 95 % bootstrap intervals over laps, null with fewer than 3 laps; with the wind
+estimated, each draw refits the wind.
+
+Without --wind-speed the wind is estimated from the laps (headings or positions needed): a
+loop ridden at several speeds, or an out-and-back, tells it from drag; one heading does not.
 
 example: python -m pacing fieldtest hoods.csv aero.csv --mass 82 --position hoods
          --position aero --temperature 14 --humidity 70
@@ -99,9 +111,13 @@ def add_parser(subparsers: argparse._SubParsersAction) -> None:
     parser.add_argument("--bootstrap", type=int, default=1000, metavar="DRAWS",
                         help="bootstrap draws for the intervals (default 1000, 0 for none, "
                              f"at most {MAX_BOOTSTRAP_DRAWS})")
+    parser.add_argument("--estimate-wind", action=argparse.BooleanOptionalAction, default=None,
+                        help="estimate a steady wind from the laps with CdA and Crr (default: "
+                             "on when --wind-speed is not given, off when it is)")
     parser.add_argument("--json", action="store_true", help="print JSON instead of a table")
     add_air_flags(parser)
-    parser.set_defaults(run=run)
+    # None = no wind given (the wind is then estimated); an explicit 0 means calm
+    parser.set_defaults(run=run, wind_speed=None)
 
 
 def _pair(values: Sequence[float] | None) -> list[float] | None:
@@ -115,6 +131,8 @@ def _check_flags(args: argparse.Namespace) -> None:
             f"--mass must be 20-300 kg (rider + bike), got {args.mass:g}")
     require(0.5 <= args.efficiency <= 1.0, f"--efficiency must be 0.5-1, got {args.efficiency:g}")
     require(0.0 <= args.humidity <= 100.0, f"--humidity must be 0-100 %, got {args.humidity:g}")
+    require(args.wind_speed is None or (np.isfinite(args.wind_speed) and args.wind_speed >= 0),
+            f"--wind-speed must be 0 m/s or more, got {args.wind_speed}")
     check_bootstrap_draws(args.bootstrap, "--bootstrap")
     for flag, value in (("--crr", args.crr), ("--fallback-crr", args.fallback_crr)):
         require(value is None or (np.isfinite(value) and 0.0 <= value <= 0.1),
@@ -174,22 +192,22 @@ def run(args: argparse.Namespace) -> int:
     int
         0; bad input raises pacing.errors.InputError (exit code 2).
     """
-    from pacing.fieldtest.estimate import TYPICAL_ROLLING_COEFFICIENT, estimate_drag
+    from pacing.fieldtest.estimate import TYPICAL_ROLLING_COEFFICIENT
+    from pacing.fieldtest.wind_estimate import estimate_drag_in_wind
     from pacing.physics.cycling import Rider
-    from pacing.weather.conditions import Conditions
-
     _check_flags(args)
-    conditions = Conditions(
-        temperature=args.temperature, relative_humidity=args.humidity / 100.0,
-        sea_level_pressure=args.sea_level_pressure, wind_speed=args.wind_speed,
-        wind_from=args.wind_from, wind_height=args.wind_height,
-        roughness_length=args.roughness)
+    wind_given = args.wind_speed is not None
+    # the shared builder of the air flags, with no wind given read as calm for the air
+    conditions = conditions_from_args(argparse.Namespace(
+        **{**vars(args), "wind_speed": args.wind_speed or 0.0}))
     rider = Rider(mass=args.mass, drivetrain_efficiency=args.efficiency)
     tests, notes = _position_tests(args, conditions)
     fallback = TYPICAL_ROLLING_COEFFICIENT if args.fallback_crr is None else args.fallback_crr
-    result = estimate_drag(tests, rider, method=args.method, rolling_coefficient=args.crr,
-                           lap_radius=args.lap_radius, bootstrap=args.bootstrap,
-                           fallback_rolling_coefficient=fallback)
+    result = estimate_drag_in_wind(
+        tests, rider, method=args.method, wind=conditions if wind_given else None,
+        estimate_wind=args.estimate_wind, rolling_coefficient=args.crr,
+        lap_radius=args.lap_radius, bootstrap=args.bootstrap,
+        fallback_rolling_coefficient=fallback)
     if args.json:
         print(json.dumps(_as_json(result, tests, notes), indent=2, allow_nan=False))
     else:
@@ -230,13 +248,38 @@ def _as_json(result: FieldTestResult, tests: Sequence[PositionTest],
              round(d.difference, 5), "ci95": _pair(d.ci95), "significant": d.significant}
             for d in result.differences
         ],
-        "warnings": describe_all(result.warnings) + _note_lines(notes, "warning"),
-        "notes": _note_lines(notes),
+        "wind": _wind_json(result),
+        "warnings": describe_all([w for w in result.warnings if w.level == "warning"])
+        + _note_lines(notes, "warning"),
+        "notes": describe_all([w for w in result.warnings if w.level != "warning"])
+        + _note_lines(notes),
         "notices": notices_as_json(result.warnings)
         + [{**entry, "ride": label}
            for label, entry in zip((label for label, _ in notes),
                                    notices_as_json([n for _, n in notes]), strict=True)],
     }
+
+
+def _wind_json(result: FieldTestResult) -> dict[str, Any] | None:
+    """The estimated wind for JSON (10 m and rider height, FROM), or None."""
+    wind = result.wind
+    if wind is None:
+        return None
+    return {"estimated": wind.estimated, "speed_mps": round(wind.speed, 3),
+            "speed_at_rider_mps": round(wind.speed_at_rider, 3),
+            "from_deg": round(wind.wind_from, 1), "speed_ci95": _pair(wind.speed_ci95),
+            "along_axis_only": wind.along_axis_only}
+
+
+def _wind_line(result: FieldTestResult) -> list[str]:
+    """The estimated wind in one line for the terminal, or nothing."""
+    wind = result.wind
+    if wind is None:
+        return []
+    interval = "" if wind.speed_ci95 is None else \
+        f" (95 % interval {wind.speed_ci95[0]:.1f} to {wind.speed_ci95[1]:.1f} m/s)"
+    return [f"wind estimated from the laps: {wind.speed:.1f} m/s at 10 m{interval}, "
+            f"{wind.speed_at_rider:.1f} m/s at rider height, from {wind.wind_from:.0f}°"]
 
 
 def _crr_source(result: FieldTestResult) -> str:
@@ -283,6 +326,7 @@ def _as_text(result: FieldTestResult, tests: Sequence[PositionTest],
         if result.rolling_coefficient < 0:
             crr += " (not physical: below 0; see the warnings)"
     lines.append(crr)
+    lines.extend(_wind_line(result))
     for d in result.differences:
         verdict = "significant" if d.significant else "not significant"
         lines.append(f"{d.label} - {d.baseline}: {d.difference:+.4f} m² "

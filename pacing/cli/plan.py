@@ -9,7 +9,15 @@ from __future__ import annotations
 import argparse
 
 from pacing.cli import COMMANDS
-from pacing.cli.common import add_air_flags, add_course_flags, add_rider_flags, add_simulation_flags
+from pacing.cli.common import (
+    add_air_flags,
+    add_course_flags,
+    add_rider_flags,
+    add_simulation_flags,
+)
+from pacing.cli.race_day_flags import (
+    add_race_day_flags,
+)
 from pacing.plan.strategies import STRATEGIES
 
 CYCLING_STRATEGIES = tuple(STRATEGIES["cycling"])
@@ -42,7 +50,9 @@ def add_plan_flags(parser: argparse.ArgumentParser) -> None:
     Parameters
     ----------
     parser : argparse.ArgumentParser
-        Gets the course, rider, air and wind flags, --sport, and the groups "cycling plan"
+        Gets the course, rider, air and wind flags, the race day's (--weather, --start,
+        --best-start-between, --heat-acclimatised, --altitude-acclimatised,
+        --heat-and-altitude), --sport, and the groups "cycling plan"
         (--power [W], --strategy, --target-time [H:MM:SS], --cp [W], --w-prime [J],
         --w-prime-reserve [J], --max-power-ratio [-] and the simulation flags [m/s]) and
         "running plan" (--flat-pace [M:SS per km], --body-mass [kg], --height [m],
@@ -52,6 +62,7 @@ def add_plan_flags(parser: argparse.ArgumentParser) -> None:
     parser.add_argument("--sport", choices=("cycling", "running"), default="cycling")
     add_rider_flags(parser)
     add_air_flags(parser)
+    add_race_day_flags(parser)
     cyc = parser.add_argument_group("cycling plan")
     cyc.add_argument("--power", type=float, default=None,
                      help="constant crank power, or the mean power to match [W]")

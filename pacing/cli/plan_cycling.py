@@ -32,6 +32,14 @@ from pacing.cli.common import (
     report_notices,
     warnings_as_text,
 )
+from pacing.cli.race_day_flags import (
+    add_segment_weather,
+    plan_the_day,
+    race_day_as_json,
+    race_day_from_args,
+    race_day_lines,
+    with_weather_columns,
+)
 from pacing.display import units
 from pacing.errors import InputError
 from pacing.physics.cycling import Rider
@@ -41,6 +49,7 @@ from pacing.plan.targets import DEFAULT_BAND, power_band, segment_gap_lengths
 
 if TYPE_CHECKING:
     from pacing.course.recording import Gap
+    from pacing.plan.best_start import BestStart
     from pacing.plan.cycling import RacePlan
     from pacing.plan.race import RaceRequest, RaceResult
     from pacing.plan.request import PlanRequest
@@ -183,10 +192,18 @@ def race_request_from_args(args: argparse.Namespace) -> RaceRequest:
     course, bounds = load_course_and_bounds(args)
     return RaceRequest(course=course, bounds=bounds, conditions=conditions_from_args(args),
                        sport="cycling", strategy=request.strategy, rider=rider_from_args(args),
-                       cycling=request, options=simulation_options_from_args(args))
+                       cycling=request, options=simulation_options_from_args(args),
+                       race_day=race_day_from_args(args))
 
 
 def plan_from_args(args: argparse.Namespace) -> tuple[RaceResult, list[SegmentResult]]:
+    """`plan_day_from_args` without the best start (see there)."""
+    result, segments, _ = plan_day_from_args(args)
+    return result, segments
+
+
+def plan_day_from_args(args: argparse.Namespace
+                       ) -> tuple[RaceResult, list[SegmentResult], BestStart | None]:
     """Check the flags, load the course and plan through the one chain.
 
     Parameters
@@ -196,9 +213,9 @@ def plan_from_args(args: argparse.Namespace) -> tuple[RaceResult, list[SegmentRe
 
     Returns
     -------
-    tuple of (pacing.plan.race.RaceResult, list of SegmentResult)
-        The result of pacing.plan.race.plan_race and the segment summaries of its verified
-        prediction [-].
+    tuple of (pacing.plan.race.RaceResult, list of SegmentResult, BestStart or None)
+        The result of pacing.plan.race.plan_race, the segment summaries of its verified
+        prediction and the best-start search of --best-start-between [-].
 
     Raises
     ------
@@ -207,15 +224,14 @@ def plan_from_args(args: argparse.Namespace) -> tuple[RaceResult, list[SegmentRe
         HUMAN_POWER_CEILING [W].
     """
     from pacing.plan.cycling import RacePlan
-    from pacing.plan.race import plan_race
 
-    result = plan_race(race_request_from_args(args))
+    result, best = plan_the_day(race_request_from_args(args), args)
     plan = result.plan
     assert isinstance(plan, RacePlan)  # a cycling request makes a cycling plan
     if result.request.strategy == "target-time":
         check_target_time_plan(plan, args.target_time)
     return result, segment_results(result.request.course, plan.prediction,
-                                   result.request.bounds)
+                                   result.request.bounds), best
 
 
 def simulation_options_from_args(args: argparse.Namespace) -> SimulationOptions:
@@ -311,7 +327,9 @@ def limits_as_dict(result: RaceResult) -> dict[str, Any]:
     dict
         min_w_prime_balance_j, the lowest W′ balance (null without CP and W′) [J];
         w_prime_exhausted_at_m, where the balance first falls below zero (null when it never
-        does) [m]; warnings, the text of the warning-level notices in metric words [-].
+        does) [m]; w_prime_model, the W′ balance model of the plan ("differential" or
+        "integral", pacing.physiology.critical_power) [-]; warnings, the text of the
+        warning-level notices in metric words [-].
     """
     from pacing.plan.cycling import RacePlan  # imported when the plan was made
 
@@ -319,6 +337,7 @@ def limits_as_dict(result: RaceResult) -> dict[str, Any]:
     assert isinstance(plan, RacePlan)  # a cycling result holds a cycling plan
     return {"min_w_prime_balance_j": plan.min_w_prime_balance,
             "w_prime_exhausted_at_m": result.exhausted_at,
+            "w_prime_model": result.request.cycling.w_prime_model,
             "warnings": warnings_as_text(result.notices)}
 
 
@@ -439,7 +458,7 @@ def run(args: argparse.Namespace) -> int:
     from pacing.plan.cycling import RacePlan
 
     warn_flags_of_other_sport(args, "cycling")
-    result, segments = plan_from_args(args)
+    result, segments, best = plan_day_from_args(args)
     plan = result.plan
     assert isinstance(plan, RacePlan)  # a cycling request makes a cycling plan
     gaps = result.request.course.gaps
@@ -448,6 +467,9 @@ def run(args: argparse.Namespace) -> int:
                                      gaps=gaps)
                   if args.strategy is None else plan_as_dict(plan, segments, gaps=gaps))
         output.update(limits_as_dict(result))
+        if result.race_day is not None:
+            add_segment_weather(output["segments"], result.targets)
+            output.update(race_day_as_json(result, best))
         output["notices"] = notices_as_json(result.notices)
         report_notices(result.notices, table=False)
         # whole or not at all: a value JSON cannot hold never leaves half a document
@@ -455,8 +477,8 @@ def run(args: argparse.Namespace) -> int:
         return 0
     table = (prediction_as_table(plan.prediction, segments, target_power=args.power, gaps=gaps)
              if args.strategy is None else plan_as_table(plan, segments, gaps=gaps))
-    print(table)
-    for line in report_notices(result.notices, table=True):
+    print(with_weather_columns(table, result.targets))
+    for line in (*race_day_lines(result, best), *report_notices(result.notices, table=True)):
         print(line)
     print(CAUTION)
     return 0

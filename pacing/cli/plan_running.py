@@ -28,6 +28,14 @@ from pacing.cli.common import (
 )
 from pacing.cli.plan import RUNNING_STRATEGIES, add_plan_flags
 from pacing.cli.plan_cycling import gap_marked
+from pacing.cli.race_day_flags import (
+    add_segment_weather,
+    plan_the_day,
+    race_day_as_json,
+    race_day_from_args,
+    race_day_lines,
+    with_weather_columns,
+)
 from pacing.display import units
 from pacing.display.notices import describe_all
 from pacing.errors import InputError
@@ -38,6 +46,7 @@ if TYPE_CHECKING:
     from pacing.course.geometry import Course
     from pacing.course.recording import Gap
     from pacing.physics.running import Runner
+    from pacing.plan.best_start import BestStart
     from pacing.plan.race import RaceRequest, RaceResult
     from pacing.plan.running_plan import RunningPlan
 
@@ -269,7 +278,8 @@ def race_request_from_args(args: argparse.Namespace) -> RaceRequest:
                              critical_speed=args.critical_speed, d_prime=args.d_prime,
                              downhill_speed_ratio_cap=downhill_cap)
     return RaceRequest(course=course, bounds=bounds, conditions=conditions, sport="running",
-                       strategy=strategy, runner=runner, running=running)
+                       strategy=strategy, runner=runner, running=running,
+                       race_day=race_day_from_args(args))
 
 
 def _flat_speed(args: argparse.Namespace, strategy: str, course: Course,
@@ -295,6 +305,11 @@ def _flat_speed(args: argparse.Namespace, strategy: str, course: Course,
 
 
 def make_plan(args: argparse.Namespace) -> RaceResult:
+    """`make_day_plan` without the best start (see there)."""
+    return make_day_plan(args)[0]
+
+
+def make_day_plan(args: argparse.Namespace) -> tuple[RaceResult, BestStart | None]:
     """Load the course and plan the run the flags ask for, through the one planning chain.
 
     Parameters
@@ -304,17 +319,16 @@ def make_plan(args: argparse.Namespace) -> RaceResult:
 
     Returns
     -------
-    pacing.plan.race.RaceResult
-        The plan (pacing.plan.running_plan.RunningPlan), its target rows and notices [-].
+    tuple of (pacing.plan.race.RaceResult, pacing.plan.race.BestStart or None)
+        The plan (pacing.plan.running_plan.RunningPlan), its target rows and notices, and
+        the best-start search of --best-start-between [-].
 
     Raises
     ------
     InputError
         When the flags, the course or the plan cannot be used.
     """
-    from pacing.plan.race import plan_race
-
-    return plan_race(race_request_from_args(args))
+    return plan_the_day(race_request_from_args(args), args)
 
 
 TIME_SAVED_MEANING = ("seconds before the even pace with the same time-weighted mean "
@@ -489,7 +503,7 @@ def run(args: argparse.Namespace) -> int:
     """
     from pacing.plan.running_plan import RunningPlan
 
-    result = make_plan(args)
+    result, best = make_day_plan(args)
     plan = result.plan
     assert isinstance(plan, RunningPlan)  # a running request makes a running plan
     runner = result.request.runner
@@ -497,14 +511,17 @@ def run(args: argparse.Namespace) -> int:
     if args.json:
         output = plan_as_dict(plan, runner, gaps)
         output["d_prime_exhausted_at_m"] = result.exhausted_at
+        if result.race_day is not None:
+            add_segment_weather(output["segments"], result.targets)
+            output.update(race_day_as_json(result, best))
         output["warnings"] = warnings_as_text(result.notices)
         output["notices"] = notices_as_json(result.notices)
         report_notices(result.notices, table=False)
         # whole or not at all: a value JSON cannot hold never leaves half a document
         sys.stdout.write(json.dumps(output, indent=2, allow_nan=False) + "\n")
         return 0
-    print(plan_as_table(plan, runner, gaps))
-    for line in report_notices(result.notices, table=True):
+    print(with_weather_columns(plan_as_table(plan, runner, gaps), result.targets, header=2))
+    for line in (*race_day_lines(result, best), *report_notices(result.notices, table=True)):
         print(line)
     print(RUNNING_CAUTION)
     return 0

@@ -43,6 +43,7 @@ from pacing.compare.setups import Comparison, RiderSetup, SetupResult, compare_s
 from pacing.errors import InputError
 from pacing.notices import Notice, note
 from pacing.plan.race import RaceRequest
+from pacing.plan.race_day import RaceDay, RaceDayResult, race_day_notices, shared_race_day
 from pacing.weather.conditions import CourseAir
 
 DEFAULT_UNCERTAINTY = Uncertainty(drag_area=0.005, rolling_coefficient=0.0003, mass=0.5,
@@ -119,6 +120,9 @@ class SetupsAnalysis:
         Monte Carlo draws per setup, 0 for none [-].
     notices : tuple of Notice
         What the user must be told beside the numbers, in order.
+    race_day : RaceDayResult or None
+        The race day whose air all setups share (pacing.plan.race_day.shared_race_day);
+        None without one.
     """
 
     comparison: Comparison
@@ -130,6 +134,7 @@ class SetupsAnalysis:
     mixed: MixedPlan | None
     samples: int
     notices: tuple[Notice, ...]
+    race_day: RaceDayResult | None = None
 
     def spread(self, name: str) -> Spread:
         """The spread shown beside a setup: of its difference to the baseline, or of its own
@@ -203,6 +208,10 @@ def analyse_setups(race: RaceRequest, setups: Iterable[RiderSetup],
     """
     if samples and not 2 <= samples <= MAX_SAMPLES:
         raise InputError(f"samples must be 0 or 2-{MAX_SAMPLES}, got {samples}")
+    # one race day's air for all setups, at the race's times; heat and altitude always count
+    race, day_air, day = shared_race_day(race if race.race_day is not None
+                                         else replace(race, race_day=RaceDay()))
+    air = day_air if air is None else air
     setups = list(setups)
     check_draw_work(samples, len(setups), int(np.asarray(race.course.distance).size) - 1)
     comparison = compare_setups(race, setups, baseline, air)
@@ -219,7 +228,9 @@ def analyse_setups(race: RaceRequest, setups: Iterable[RiderSetup],
         finish_time_spreads=finish, difference_spreads=difference, break_evens=breaks,
         mixed=mixed_plan(comparison), samples=int(samples),
         notices=(*race.course.notices, *setup_notices(comparison),
-                 *clipped_draw_notices(comparison, uncertainty, samples)),
+                 *clipped_draw_notices(comparison, uncertainty, samples),
+                 *race_day_notices(day)),
+        race_day=day.race_day,
     )
 
 

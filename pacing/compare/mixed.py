@@ -93,8 +93,33 @@ def _same_bike(rider: Rider, other: Rider) -> bool:
                for name in SWAPPABLE_FIELDS)
 
 
+def bike_groups(comparison: Comparison) -> list[list[SetupResult]]:
+    """The setups grouped by bike: each group equal in every rider parameter but the drag area
+    (SWAPPABLE_FIELDS), in the comparison's order within and between groups.
+
+    Parameters
+    ----------
+    comparison : Comparison
+        Setups side by side.
+
+    Returns
+    -------
+    list of list of SetupResult
+        One list per bike, ordered by its first setup in `comparison.results`.
+    """
+    groups: list[list[SetupResult]] = []
+    for result in comparison.results:
+        group = next((g for g in groups if _same_bike(g[0].setup.rider, result.setup.rider)),
+                     None)
+        if group is None:
+            groups.append([result])
+        else:
+            group.append(result)
+    return groups
+
+
 def mix_candidates(comparison: Comparison) -> list[SetupResult]:
-    """Setups that can be swapped during a ride.
+    """Setups that can be swapped during a ride: the positions of the bike with the most.
 
     Parameters
     ----------
@@ -104,11 +129,13 @@ def mix_candidates(comparison: Comparison) -> list[SetupResult]:
     Returns
     -------
     list of SetupResult
-        Those equal to the fastest setup in every rider parameter but the drag area
-        (SWAPPABLE_FIELDS: positions on one bike).
+        The largest group of `bike_groups` (positions on one bike); among groups of one size,
+        the one holding the quickest setup. A lighter bike that is quickest on its own does
+        not hide two positions of another bike.
     """
-    best = comparison.fastest.setup.rider
-    return [result for result in comparison.results if _same_bike(result.setup.rider, best)]
+    groups = bike_groups(comparison)
+    return max(groups, key=lambda group: (len(group),
+                                          -min(result.finish_time for result in group)))
 
 
 def _chosen_candidates(comparison: Comparison,

@@ -2,7 +2,9 @@
 
 Each function takes a notice's values (SI, keys ending with the unit) and the unit system
 ("metric" or "imperial") and returns one line. Codes "fieldtest-…" come from
-pacing.fieldtest.estimate.estimate_drag (warnings about a fit), codes "test-ride-…" from
+pacing.fieldtest.estimate.estimate_drag (warnings about a fit) and, for the wind,
+pacing.fieldtest.wind_estimate and pacing.fieldtest.race_fit; codes "race-fit-…" from
+pacing.fieldtest.race_fit (the drag area of a race day); codes "test-ride-…" from
 pacing.fieldtest.ride.make_ride and pacing.io.rides (notes of reading and cleaning a ride).
 
 In metric the sentences keep the units the field test has always printed: wind and stop speeds
@@ -83,7 +85,7 @@ def _windy(values: Values, system: str) -> str:
     return (f"wind of {_speed(values['speed_mps'], system, '.1f')} at rider height on "
             f"{values['label']!r}: test rides want calm air (under "
             f"{_speed(values['limit_mps'], system, 'g')}, Lim et al. 2011); the result is only "
-            "as good as the wind given")
+            "as good as the wind it was fitted in (given or estimated)")
 
 
 def _braking(values: Values, system: str) -> str:
@@ -123,6 +125,75 @@ def _crr_unusual(values: Values, system: str) -> str:
 def _crr_interval_below_zero(values: Values, system: str) -> str:
     return (f"the 95 % interval of Crr reaches {values['rolling_ci95_low']:.4f} (below 0): the "
             "laps determine Crr poorly")
+
+
+def _wind_span(values: Values, system: str) -> str:
+    """"a to b" of the 95 % interval of the 10 m wind speed."""
+    low = _speed(values["speed_ci95_low_mps"], system, ".1f")
+    high = _speed(values["speed_ci95_high_mps"], system, ".1f")
+    return f"{low} to {high}"
+
+
+def _wind_interval(values: Values, system: str) -> str:
+    """" (95 % interval a to b)" of the 10 m wind speed, or nothing."""
+    if "speed_ci95_low_mps" not in values:
+        return ""
+    return f" (95 % interval {_wind_span(values, system)})"
+
+
+def _wind_estimated(values: Values, system: str) -> str:
+    axis = (": only the part along the road, ridden both ways, could be told; the part across "
+            "it is taken as 0" if values.get("along_axis_only") is True else "")
+    return (f"wind estimated from the ride: {_speed(values['speed_mps'], system, '.1f')} at 10 m"
+            f"{_wind_interval(values, system)}, "
+            f"{_speed(values['speed_at_rider_mps'], system, '.1f')} at rider height, from "
+            f"{values['from_deg']:.0f}°; CdA and Crr are fitted in that wind{axis}")
+
+
+_WIND_REASONS = {
+    "no-heading": "the ride has no headings or positions to tell the direction of travel",
+    "one-heading": "the ride goes one way only, where a steady wind is just more drag",
+    "correlation": "the wind estimate is too strongly tied to CdA and Crr",
+}
+
+
+def _wind_inseparable(values: Values, system: str) -> str:
+    reason = _WIND_REASONS.get(values["reason"], "the fit cannot tell them apart")
+    if values["reason"] == "interval":
+        reason = (f"the 95 % interval of the wind at 10 m, {_wind_span(values, system)}, "
+                  f"is wider than {_speed(values['limit_mps'], system, 'g')}")
+    elif values["reason"] == "bound":
+        reason = (f"the fit runs off to a wind of {_speed(values['speed_mps'], system, '.0f')},"
+                  " which no test is ridden in")
+    correlation = values.get("correlation")
+    tail = f" (correlation {correlation:.3f})" if values["reason"] == "correlation" else ""
+    return (f"the wind cannot be told from drag: {reason}{tail}; CdA and Crr are fitted in the "
+            "wind given (calm if none), so an untold wind biases them: ride a loop at several "
+            "speeds or an out-and-back, or give the wind")
+
+
+def _wind_undeclared(values: Values, system: str) -> str:
+    return (f"the ride shows a wind of {_speed(values['speed_mps'], system, '.1f')} at 10 m from "
+            f"{values['from_deg']:.0f}°, but the wind given was "
+            f"{_speed(values['given_speed_mps'], system, '.1f')} from "
+            f"{values['given_from_deg']:.0f}°: check the wind, or let it be estimated")
+
+
+def _race_excluded(values: Values, system: str) -> str:
+    return (f"left out of the drag fit: {values['braking_s']:.0f} s braking, "
+            f"{values['stops_s']:.0f} s stopped or not recorded, {values['coasting_s']:.0f} s "
+            f"coasting ({100 * values['share']:.0f} % of the race)")
+
+
+def _race_short(values: Values, system: str) -> str:
+    return (f"only {values['used_s']:.0f} s of the race could be used for the drag fit (under "
+            f"{values['limit_s']:.0f} s): the CdA and Crr of the day are rough")
+
+
+def _race_crr_held(values: Values, system: str) -> str:
+    return (f"the race cannot separate CdA from Crr (too little speed variety): Crr held at "
+            f"{values['held_rolling_coefficient']:g}; for Crr {values['rolling_low']:g}-"
+            f"{values['rolling_high']:g} the CdA would differ")
 
 
 def _speed_filled(values: Values, system: str) -> str:
@@ -186,6 +257,12 @@ WORDS: dict[str, Callable[[Mapping[str, Any], str], str]] = {
     "fieldtest-crr-negative": _crr_negative,
     "fieldtest-crr-unusual": _crr_unusual,
     "fieldtest-crr-interval-below-zero": _crr_interval_below_zero,
+    "fieldtest-wind-estimated": _wind_estimated,
+    "fieldtest-wind-inseparable": _wind_inseparable,
+    "fieldtest-wind-undeclared": _wind_undeclared,
+    "race-fit-excluded": _race_excluded,
+    "race-fit-short": _race_short,
+    "race-fit-crr-held": _race_crr_held,
     "test-ride-speed-filled": _speed_filled,
     "test-ride-power-dropouts": _power_dropouts,
     "test-ride-zero-power": _zero_power,

@@ -113,8 +113,8 @@ def _descent_capped(values: Values, system: str) -> str:
 
 def _descent_capped_at_level(values: Values, system: str) -> str:
     """ratio [-] of the cap to the flat-equivalent speed and share [-] of the course capped."""
-    return (f"descent speed capped at {_shown(values['ratio'], 'g')} × flat-equivalent speed on "
-            f"{_shown(values['share'], '.0%')} of the course")
+    return (f"descent speed capped at {_shown(values['ratio'], 'g')} × the speed of the same "
+            f"effort on the flat, on {_shown(values['share'], '.0%')} of the course")
 
 
 def _even_pace_at_same_effort(values: Values, system: str) -> str:
@@ -122,7 +122,8 @@ def _even_pace_at_same_effort(values: Values, system: str) -> str:
     later = _finite(values["later_s"])
     overdrawn = values.get("overdrawn_balance_m")
     overdraw = ("" if overdrawn is None else
-                f" and overdrawing D′ (lowest balance {_shown(overdrawn, '.0f')} m)")
+                f" and spending more than D′ (its balance falls to {_shown(overdrawn, '.0f')} "
+                "m)")
     when = "later" if later is not None and later > 0 else "sooner"
     return (f"even pace at the same mean effort ({pace(values['speed_mps'], system)}) would "
             f"finish {_shown(None if later is None else abs(later), '.0f')} s {when} in this "

@@ -23,9 +23,10 @@ hills within a lap for method "profile"); the fit reports the correlation betwee
 estimates, and when the laps cannot separate them it holds Crr at a typical value, fits CdA
 alone and says so (`FieldTestResult.rolling_held`), rather than trading one against the other
 into a negative Crr. A steady wind that is not given shows up mostly in Crr on a loop (it adds a
-nearly constant drag); changing wind, braking or a changing position make the per-lap CdA
-scatter, which is reported. Uncertainty comes from a bootstrap over laps (Efron & Tibshirani
-1993).
+nearly constant drag) and in CdA against a profile; pacing.fieldtest.wind_estimate estimates it
+from the laps and fits here with it. Changing wind, braking or a changing position make the
+per-lap CdA scatter, which is reported. Uncertainty comes from a bootstrap over laps (Efron &
+Tibshirani 1993).
 
 What the user must hear comes back as `FieldTestResult.warnings`, notices (pacing.notices) with
 their numbers; pacing.display.fieldtest_words has their sentences.
@@ -71,6 +72,7 @@ from pacing.fieldtest.checks import (
 from pacing.fieldtest.fit import (
     GRID_POINTS,
     Columns,
+    Refit,
     bootstrap_fits,
     drag_area_per_rolling,
     estimate_correlation,
@@ -80,6 +82,7 @@ from pacing.fieldtest.fit import (
 from pacing.fieldtest.laps import LAP_RADIUS, LapTerms, build_laps
 from pacing.fieldtest.methods import FIELD_TEST_METHODS, FieldTestMethod
 from pacing.fieldtest.ride import Ride
+from pacing.fieldtest.wind_fit import WindEstimate
 from pacing.notices import Notice
 from pacing.physics.cycling import MARTIN_1998, Rider
 
@@ -243,6 +246,9 @@ class FieldTestResult:
     drag_area_per_rolling : tuple of float
         Change of each position's fitted CdA per unit change of the Crr it is fitted with
         [m²], d CdA / d Crr (negative: a higher Crr leaves less drag to air).
+    wind : pacing.fieldtest.wind_fit.WindEstimate or None
+        The steady wind estimated from the laps (pacing.fieldtest.wind_estimate), None when
+        the wind was given or not estimated.
     """
 
     method: str
@@ -256,6 +262,7 @@ class FieldTestResult:
     bootstrap_drag_area: np.ndarray
     rolling_held: bool = False
     drag_area_per_rolling: tuple[float, ...] = ()
+    wind: WindEstimate | None = None
 
     @property
     def drag_area(self) -> float:
@@ -416,7 +423,7 @@ def _separation_problem(solution: np.ndarray | None, correlation: float,
 
 
 def _solve(groups: Sequence[Columns], method: FieldTestMethod, rolling: float | None,
-           bootstrap: int, seed: int, bootstrap_when_singular: bool,
+           bootstrap: int, seed: int, bootstrap_when_singular: bool, refit: Refit | None = None,
            ) -> tuple[np.ndarray | None, float, np.ndarray, bool]:
     """(solution or None, correlation, bootstrap draws, enough draws) of one least squares."""
     equations = normal_equations(groups, method.offset_per_lap, rolling)
@@ -426,19 +433,20 @@ def _solve(groups: Sequence[Columns], method: FieldTestMethod, rolling: float | 
         correlation = estimate_correlation(equations[0], rolling is not None)
     draws = bootstrap_fits(groups, method.offset_per_lap, rolling,
                            bootstrap if solution is not None or bootstrap_when_singular else 0,
-                           seed)
+                           seed, refit)
     valid = draws.shape[0] >= max(20, bootstrap // 2) if bootstrap else False
     return solution, correlation, draws, valid
 
 
 def _fit(groups: Sequence[Columns], method: FieldTestMethod, rolling_coefficient: float | None,
          fallback_rolling_coefficient: float | None, bootstrap: int, seed: int,
-         few: Sequence[str]) -> _Fit:
+         few: Sequence[str], refit: Refit | None = None) -> _Fit:
     """Fit CdA per position and Crr; hold Crr at the fallback when the laps cannot separate
     them. Raises InputError when no CdA can be fitted."""
     fixed = rolling_coefficient is not None
     solution, correlation, draws, valid = _solve(groups, method, rolling_coefficient, bootstrap,
-                                                 seed, bootstrap_when_singular=False)
+                                                 seed, bootstrap_when_singular=False,
+                                                 refit=refit)
     problem = None if fixed else _separation_problem(
         solution, correlation, draws[:, -1] if valid and not few else None)
     held_value = rolling_coefficient
@@ -447,7 +455,7 @@ def _fit(groups: Sequence[Columns], method: FieldTestMethod, rolling_coefficient
         # CdA and Crr trade off freely: hold Crr at the typical value, fit CdA alone
         held_value = float(fallback_rolling_coefficient)
         solution, _, draws, valid = _solve(groups, method, held_value, bootstrap, seed,
-                                           bootstrap_when_singular=True)
+                                           bootstrap_when_singular=True, refit=refit)
     if solution is None:
         raise InputError("CdA and Crr cannot be separated from these laps: ride laps at "
                          "clearly different speeds, or give Crr")
@@ -489,6 +497,7 @@ def estimate_drag(
     bootstrap: int = 1000,
     seed: int = 0,
     fallback_rolling_coefficient: float | None = TYPICAL_ROLLING_COEFFICIENT,
+    bootstrap_refit: Refit | None = None,
 ) -> FieldTestResult:
     """CdA of each position and a common Crr from test rides.
 
@@ -532,6 +541,9 @@ def estimate_drag(
     fallback_rolling_coefficient : float or None
         Crr to hold when the laps cannot separate CdA from Crr [-] (default
         TYPICAL_ROLLING_COEFFICIENT, Martin et al. 1998); None fits both anyway and only warns.
+    bootstrap_refit : pacing.fieldtest.fit.Refit or None
+        A refit of each bootstrap draw replacing the refit of its columns (the wind estimate
+        of pacing.fieldtest.wind_estimate refits the wind in each draw); None as before.
 
     Returns
     -------
@@ -560,7 +572,7 @@ def estimate_drag(
     few = [t.label for t, laps in zip(tests, lap_sets, strict=True)
            if len(laps) < INTERVAL_LAPS]
     fit = _fit(groups, spec, rolling_coefficient, fallback_rolling_coefficient, bootstrap, seed,
-               few)
+               few, bootstrap_refit)
     slopes = drag_area_per_rolling(groups, spec.offset_per_lap)
     crr = float(fit.held_value) if fit.held_value is not None else float(fit.solution[-1])
     areas = fit.solution[:len(tests)]

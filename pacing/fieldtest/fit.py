@@ -27,7 +27,7 @@ Efron, B. & Tibshirani, R.J. (1993). An Introduction to the Bootstrap. Chapman &
 
 from __future__ import annotations
 
-from collections.abc import Sequence
+from collections.abc import Callable, Sequence
 
 import numpy as np
 
@@ -38,6 +38,10 @@ GRID_POINTS = 200
 
 Columns = tuple[np.ndarray, np.ndarray, np.ndarray]
 """One position's least-squares columns (y, drag a, rolling b), each of shape (laps, G)."""
+
+Refit = Callable[[list[np.ndarray], float | None], np.ndarray | None]
+"""A bootstrap draw's own refit: (lap indices drawn per position, Crr held [-] or None) →
+CdA per position [m²] (then Crr [-] when fitted), or None when it cannot be fitted."""
 
 
 # ---------------------------------------------------------------------------------------------
@@ -300,11 +304,14 @@ def estimate_correlation(matrix: np.ndarray, fixed: bool) -> float:
 
 
 def bootstrap_fits(groups: Sequence[Columns], offset_per_lap: bool,
-                   fixed_rolling: float | None, draws: int, seed: int) -> np.ndarray:
+                   fixed_rolling: float | None, draws: int, seed: int,
+                   refit: Refit | None = None) -> np.ndarray:
     """Bootstrap estimates over laps.
 
     Each draw resamples the laps of every position with replacement (within the position) and
-    refits; draws that cannot be fitted are left out.
+    refits; draws that cannot be fitted are left out. A `refit` replaces the refit of the
+    resampled columns (the wind estimate refits the wind in every draw,
+    pacing.fieldtest.wind_estimate); the draws of laps are the same.
 
     Parameters
     ----------
@@ -318,6 +325,9 @@ def bootstrap_fits(groups: Sequence[Columns], offset_per_lap: bool,
         Number of draws (0 for none).
     seed : int
         Seed of the random generator.
+    refit : Refit or None
+        (lap indices drawn per position, Crr held or None) → solution or None; None refits
+        the resampled columns.
 
     Returns
     -------
@@ -334,12 +344,16 @@ def bootstrap_fits(groups: Sequence[Columns], offset_per_lap: bool,
     rng = np.random.default_rng(seed)
     results = []
     for _ in range(draws):
-        sample = []
+        sample, picks = [], []
         for y, a, b in groups:
-            pick = rng.integers(0, y.shape[0], y.shape[0])
+            pick = np.asarray(rng.integers(0, y.shape[0], y.shape[0]))
+            picks.append(pick)
             sample.append((y[pick], a[pick], b[pick]))
-        equations = normal_equations(sample, offset_per_lap, fixed_rolling)
-        solution = None if equations is None else solve_normal_equations(*equations)
+        if refit is not None:
+            solution = refit(picks, fixed_rolling)
+        else:
+            equations = normal_equations(sample, offset_per_lap, fixed_rolling)
+            solution = None if equations is None else solve_normal_equations(*equations)
         if solution is not None:
             results.append(solution)
     return np.array(results) if results else np.empty((0, columns))

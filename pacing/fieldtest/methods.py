@@ -134,7 +134,7 @@ class FieldTestMethod:
 FIELD_TEST_METHODS: ModelRegistry[FieldTestMethod] = ModelRegistry({
     "loop": FieldTestMethod(
         name="loop",
-        label="Laps close on themselves (no heights needed)",
+        label="Chung's virtual elevation: laps close on themselves (no heights needed)",
         computes="virtual elevation, every lap returns to the same height (no elevation data "
                  "needed)",
         references=(CHUNG, MARTIN_1998),
@@ -149,7 +149,7 @@ FIELD_TEST_METHODS: ModelRegistry[FieldTestMethod] = ModelRegistry({
     ),
     "profile": FieldTestMethod(
         name="profile",
-        label="Follow the recorded heights",
+        label="Chung's virtual elevation: follow the recorded heights",
         computes="virtual elevation fitted to a known elevation profile",
         references=(CHUNG, MARTIN_1998),
         needs_elevation=True,
@@ -163,7 +163,7 @@ FIELD_TEST_METHODS: ModelRegistry[FieldTestMethod] = ModelRegistry({
     ),
     "regression": FieldTestMethod(
         name="regression",
-        label="Steady laps, mean force against speed",
+        label="Regression of Lim et al. (2011): steady laps, mean force against speed",
         computes="mean force against mean air speed over laps (Lim et al. 2011)",
         references=(LIM_2011, MARTIN_1998),
         needs_elevation=False,

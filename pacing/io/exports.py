@@ -27,6 +27,7 @@ import pandas as pd
 from pacing.display.units import (
     format_duration,
     format_pace,
+    format_quantity,
     pace_per_km_to_display,
     to_display,
     unit_label,
@@ -43,7 +44,13 @@ CAUTION_LINE = (
     "Speeds are estimates, not safe limits. Ride within your skills, the road, "
     "traffic law and race rules."
 )
-"""Printed on every card and shown beside predicted speeds."""
+"""Printed on every cycling card and shown beside predicted speeds."""
+
+RUNNING_CAUTION_LINE = (
+    "Paces are estimates, not safe limits. Run within your fitness, the footing, the road, "
+    "traffic law and race rules."
+)
+"""Printed on every running card (a card of paces only)."""
 
 ROWS_PER_CARD_COLUMN = 20
 """Segments per column of the printed card; more segments add columns side by side."""
@@ -110,8 +117,10 @@ def segment_table(rows: Iterable[Any], system: str = "metric") -> pd.DataFrame:
     "To [km]", "Length [km]", "Grade [%]", "Target power [W]", "Power low [W]",
     "Power high [W]", "Target pace [min/km]", "Speed [km/h]", "Headwind [km/h]",
     "Split [h:mm:ss]", "Elapsed [h:mm:ss]", "W′ left [kJ]", "Walked [km]" (bike pushed on
-    foot), "Gap [km]" (a gap in the recording joined by a straight line). Power, pace, W′,
-    walking and gap columns appear only when some segment has them.
+    foot), "Gap [km]" (a gap in the recording joined by a straight line), and on a race day
+    "Clock [ISO 8601]" (at the segment's start), "Air [°C]" (°F imperial), "Wind [km/h]" and
+    "Wind from [deg]" (the weather met). Power, pace, W′, walking, gap and race-day columns
+    appear only when some segment has them.
     Rounded for reading (distances 0.01, grade and speeds 0.1, power 1 W, W′ 0.1 kJ); a
     missing value is an empty cell, never NaN text.
 
@@ -177,7 +186,23 @@ def segment_table(rows: Iterable[Any], system: str = "metric") -> pd.DataFrame:
     if any(g > 0 for g in gaps):
         table[f"Gap [{dist}]"] = [round(float(to_display(g, "distance", system)), 2) + 0.0
                                   for g in gaps]
+    table.update(_weather_columns(rows, system, col))
     return pd.DataFrame(table)
+
+
+def _weather_columns(rows: Sequence[Any], system: str, col: Any) -> dict[str, list]:
+    """The race day's columns: clock time and the weather met (none without a race day)."""
+    columns: dict[str, list] = {}
+    if any(_field(row, "clock_time") for row in rows):
+        columns["Clock [ISO 8601]"] = [_field(row, "clock_time") or None for row in rows]
+    if _has(rows, "temperature"):
+        columns[f"Air [{unit_label('temperature', system)}]"] = col("temperature",
+                                                                   "temperature", digits=1)
+    if _has(rows, "wind_speed"):
+        columns[f"Wind [{unit_label('wind_speed', system)}]"] = col("wind_speed", "wind_speed",
+                                                                    digits=1)
+        columns["Wind from [deg]"] = col("wind_from", digits=0)
+    return columns
 
 
 def _gap_length(row: Any) -> float:
@@ -253,12 +278,32 @@ def table_to_xlsx(table: pd.DataFrame, sheet_name: str = "segment targets",
             writer.book.move_sheet(sheet_name[:31], offset=-1)
         sheet = writer.sheets[sheet_name[:31]]
         sheet.freeze_panes = "A2"
+        _durations_as_time(sheet, table)
         for cells in sheet.columns:
             width = max(len(str(c.value)) if c.value is not None else 0 for c in cells)
             sheet.column_dimensions[cells[0].column_letter].width = min(max(width + 2, 8), 40)
         if title:
             writer.book.properties.title = title
     return buffer.getvalue()
+
+
+DURATION_COLUMNS = ("Split [h:mm:ss]", "Elapsed [h:mm:ss]")
+"""Columns written in the XLSX as durations (Excel time values, format [h]:mm:ss)."""
+
+
+def _durations_as_time(sheet: Any, table: pd.DataFrame) -> None:
+    """Write the "H:MM:SS" texts of DURATION_COLUMNS as Excel durations: a fraction of a day
+    [d] shown as [h]:mm:ss, so a spreadsheet can add and compare them."""
+    for position, name in enumerate(table.columns, start=1):
+        if name not in DURATION_COLUMNS:
+            continue
+        for row in range(2, len(table) + 2):
+            cell = sheet.cell(row=row, column=position)
+            parts = str(cell.value).split(":")
+            if len(parts) == 3 and all(part.isdigit() for part in parts):
+                hours, minutes, seconds = (int(part) for part in parts)
+                cell.value = (hours * 3600 + minutes * 60 + seconds) / 86400.0
+                cell.number_format = "[h]:mm:ss"
 
 
 def _pace_text(row: Any, system: str) -> str | None:
@@ -457,7 +502,9 @@ def _card_figure(rows: Sequence[Any], system: str, title: str,
     axes.set_ylim(height, 0)  # y grows downward, in inches
     finish = _required(rows[-1], "cumulative_time")
     axes.text(0.12, 0.38, title[:40], fontsize=15, fontweight="bold", va="center")
-    axes.text(0.12, 0.72, f"finish {format_duration(finish)}", fontsize=12, va="center")
+    clock = _card_clock_text(rows, system)
+    axes.text(0.12, 0.72, f"finish {format_duration(finish)}{clock}",
+              fontsize=10 if clock else 12, va="center")
     dist = unit_label("distance", system)
     columns = math.ceil(len(rows) / ROWS_PER_CARD_COLUMN)
     pace_only = not _has(rows, "target_power") and _has(rows, "target_pace")
@@ -486,9 +533,25 @@ def _card_figure(rows: Sequence[Any], system: str, title: str,
              + CARD_WARNING_HEIGHT / 2)
         axes.text(0.12, y, _wrap("⚠ " + warning, width), fontsize=7, va="center",
                   color="#8a2c0d", fontweight="bold")
-    axes.text(0.12, height - CARD_FOOTER_HEIGHT / 2, _wrap(CAUTION_LINE, width), fontsize=7,
+    caution = RUNNING_CAUTION_LINE if pace_only else CAUTION_LINE
+    axes.text(0.12, height - CARD_FOOTER_HEIGHT / 2, _wrap(caution, width), fontsize=7,
               va="center", color="0.2")
     return figure
+
+
+def _card_clock_text(rows: Sequence[Any], system: str) -> str:
+    """" · start 09:00 · 24–31 °C" on a race day (clock at the start, the air met on the first
+    and last segments); "" without one."""
+    clock = _field(rows[0], "clock_time")
+    if not clock:
+        return ""
+    text = f" · start {str(clock)[11:16]}"
+    first, last = _number(rows[0], "temperature"), _number(rows[-1], "temperature")
+    if first is not None and last is not None:
+        label = unit_label("temperature", system)
+        text += (f" · {to_display(first, 'temperature', system):.0f}–"
+                 f"{to_display(last, 'temperature', system):.0f} {label}")
+    return text
 
 
 def _card_gap_lines(rows: Sequence[Any], system: str) -> list[str]:
@@ -579,3 +642,40 @@ def target_card_pdf(rows: Iterable[Any], system: str = "metric", title: str = "r
     buffer = io.BytesIO()
     _card_figure(rows, system, title, warnings).savefig(buffer, format="pdf")
     return buffer.getvalue()
+
+
+def race_day_lines(race_day: Any, system: str = "metric") -> list[str]:
+    """Lines for a file's comments about the race day: where the athlete's limits were taken
+    as measured, heat and altitude in numbers, and the forecast's finish-time band.
+
+    Parameters
+    ----------
+    race_day : pacing.plan.race_day.RaceDayResult or None
+        A result's race day [-].
+    system : str, optional
+        "metric" or "imperial" [-].
+
+    Returns
+    -------
+    list of str
+        Lines without the "# " (table_to_csv adds it; the XLSX's notes sheet takes them as
+        they are); none without a race day [-].
+    """
+    if race_day is None:
+        return []
+    temperature, humidity, elevation = race_day.limits_measured
+    test = (f"{format_quantity(temperature, 'temperature', system, 0)}, "
+            f"{100.0 * humidity:.0f} % humidity, "
+            f"{format_quantity(elevation, 'elevation', system, 0)}")
+    lines = [f"heat and altitude: limits factor {race_day.limit_factor:.4f} against a test at "
+             f"{test}" + (" (assumed)" if race_day.limits_assumed else "")]
+    environment = race_day.environment
+    if environment is not None:
+        wbgt = format_quantity(environment.wbgt_max_c, "temperature", system, 1)
+        lines.append(f"WBGT up to {wbgt} ({environment.heat_category})")
+    band = race_day.band
+    if band is not None:
+        lines.append(f"forecast band (5-50-95 %): {format_duration(band.p5)} – "
+                     f"{format_duration(band.p50)} – {format_duration(band.p95)} "
+                     f"({band.samples} sampled weathers, seed {band.seed})")
+    return lines

@@ -50,6 +50,17 @@ MINIMUM_COURSE_LENGTH = 100.0
 """Shortest course accepted from a file [m]: anything shorter is a recording fault or a
 wrong file, not a course to plan (one 10 m resampling step is 100 times shorter)."""
 
+NO_HEIGHTS_MESSAGE = ("GPX file has no elevation data (no heights at any point); plan it as "
+                      "flat ground if the course is flat")
+"""The refusal of a course file without heights, in no surface's words: the command line adds
+its flag, the page its checkbox (each knows how a user asks for a flat course)."""
+
+
+class NoHeightsError(InputError):
+    """A course file without any elevation, refused (message NO_HEIGHTS_MESSAGE); a surface
+    that catches it may add how the user plans the course as flat there."""
+
+
 DEMO_ROUTES_DIR = Path(__file__).resolve().parents[2] / "demo_routes"
 """Folder of the invented demo courses (in the source tree)."""
 
@@ -371,14 +382,17 @@ def load_course(source: str | os.PathLike | bytes | bytearray | memoryview | Any
     Course
         The course resampled every `step` metres, with its notices (warnings and notes as
         data), the file's tracks and the gaps found.
+
+    Raises
+    ------
+    NoHeightsError
+        A file without any elevation when `allow_missing_elevation` is False (an InputError).
     """
     recording = read_track(source)
     notices = []
     if recording.elevation is None:
         if not allow_missing_elevation:
-            raise InputError("GPX file has no elevation data; use --flat (command line) or "
-                             "'A file without heights is a flat course' (app) to treat it "
-                             "as flat")
+            raise NoHeightsError(NO_HEIGHTS_MESSAGE)
         notices.append(warning("elevation-missing"))
         recording = dataclasses.replace(recording, elevation=np.zeros_like(recording.latitude))
     course = course_from_recording(recording, step=DEFAULT_STEP if step is None else step,

@@ -1,4 +1,9 @@
-"""Read test rides (for pacing.fieldtest.estimate) from CSV and GPX files.
+"""Read test rides (for pacing.fieldtest.estimate) and race files (for pacing.review) from CSV
+and GPX files.
+
+Race files (`read_race`) are read with the same columns and elements, and also cadence and
+heart rate; they keep their stops and recording gaps (pacing.review.recording) and need only
+time and power (speed may come from the distance or the positions).
 
 CSV
 ---
@@ -69,6 +74,7 @@ from pacing.fieldtest.ride import MIN_SAMPLES, Ride, local_position, make_ride
 from pacing.io.files import read_bounded
 from pacing.io.safe_xml import local_name, parse_xml
 from pacing.notices import Notice, note
+from pacing.review.recording import RaceRecording, make_race_recording
 
 MAX_RIDE_BYTES = 100 * 1024 * 1024
 """Largest ride file accepted [bytes]."""
@@ -91,7 +97,16 @@ CSV_COLUMNS: dict[str, dict[str, float | None]] = {
 """Accepted CSV column names per quantity, with the factor to SI (None: a timestamp).
 Units follow common practice: 1 mph = 0.44704 m/s, 1 ft = 0.3048 m (exact, 1959 agreement)."""
 
+RACE_COLUMNS: dict[str, dict[str, float | None]] = {
+    "cadence": {"cadence_rpm": 1.0, "cadence": 1.0, "cad": 1.0},
+    "heart_rate": {"heart_rate_bpm": 1.0, "heart_rate": 1.0, "heartrate": 1.0, "hr": 1.0},
+}
+"""Further CSV columns a race file may carry (read by `read_race`), per minute [1/min]."""
+
 REQUIRED = ("time", "speed", "power")
+
+RACE_REQUIRED = ("time", "power")
+"""A race file needs time and power; speed may come from the distance or the positions."""
 
 
 def _read_bytes(source: Any) -> tuple[bytes, str]:
@@ -350,15 +365,16 @@ def _shown_columns(frame: pd.DataFrame, most: int = 12) -> str:
 
 
 def _check_columns(frame: pd.DataFrame, columns: dict[str, str], dialect: CsvDialect,
-                   found: dict[str, np.ndarray] | None = None) -> None:
-    """Refuse a table without the REQUIRED quantities (by column name, or among `found`),
+                   found: dict[str, np.ndarray] | None = None,
+                   required: tuple[str, ...] = REQUIRED) -> None:
+    """Refuse a table without the `required` quantities (by column name, or among `found`),
     then one without data rows or with a single one; one line each."""
     if found is None:
         found = {q: np.empty(0) for q, aliases in CSV_COLUMNS.items()
                  if any(a in columns for a in aliases)}
         if "distance" in found and "time" in found:
             found["speed"] = found["distance"]
-    missing = [q for q in REQUIRED if q not in found]
+    missing = [q for q in required if q not in found]
     if missing:
         wanted = ", ".join(f"{q} (e.g. {next(iter(CSV_COLUMNS[q]))})" for q in missing)
         have = _shown_columns(frame) or "none"
@@ -389,10 +405,13 @@ def _csv_column(series: pd.Series, label: str, quantity: str,
     return numbers.to_numpy(dtype=float) * (1.0 if factor is None else factor)
 
 
-def _csv_quantities(frame: pd.DataFrame, columns: dict[str, str]) -> dict[str, np.ndarray]:
-    """Each quantity of CSV_COLUMNS found in the table (the first alias present), in SI."""
+def _csv_quantities(frame: pd.DataFrame, columns: dict[str, str],
+                    table: dict[str, dict[str, float | None]] | None = None
+                    ) -> dict[str, np.ndarray]:
+    """Each quantity of `table` (default CSV_COLUMNS) found in the table (the first alias
+    present), in SI."""
     found: dict[str, np.ndarray] = {}
-    for quantity, aliases in CSV_COLUMNS.items():
+    for quantity, aliases in (CSV_COLUMNS if table is None else table).items():
         for alias, factor in aliases.items():
             if alias in columns:
                 found[quantity] = _csv_column(frame[columns[alias]], columns[alias], quantity,
@@ -449,11 +468,20 @@ def _number(text: str | None) -> float:
         return np.nan
 
 
-def _gpx_point(point: Any) -> tuple[float, float, str | None, float, float, float]:
-    """(lat [deg], lon [deg], time text, elevation [m], power [W], speed [m/s]) of one
-    track point; NaN (or None for the time) where absent."""
+GPX_CADENCE = ("cad", "cadence")
+"""Extension elements read as cadence [1/min] (race files)."""
+
+GPX_HEART_RATE = ("hr", "heartrate", "heart_rate")
+"""Extension elements read as heart rate [1/min] (race files)."""
+
+
+def _gpx_point(point: Any) -> tuple[float, float, str | None, float, float, float, float,
+                                    float]:
+    """(lat [deg], lon [deg], time text, elevation [m], power [W], speed [m/s], cadence
+    [1/min], heart rate [1/min]) of one track point; NaN (or None for the time) where
+    absent."""
     stamp: str | None = None
-    values = {"ele": np.nan, "power": np.nan, "speed": np.nan}
+    values = {"ele": np.nan, "power": np.nan, "speed": np.nan, "cad": np.nan, "hr": np.nan}
     for element in point.iter():
         tag = _local(element.tag)
         if tag == "time" and stamp is None:
@@ -464,8 +492,12 @@ def _gpx_point(point: Any) -> tuple[float, float, str | None, float, float, floa
             values["power"] = _number(element.text)
         elif tag == "speed":
             values["speed"] = _number(element.text)
+        elif tag in GPX_CADENCE:
+            values["cad"] = _number(element.text)
+        elif tag in GPX_HEART_RATE:
+            values["hr"] = _number(element.text)
     return (_number(point.get("lat")), _number(point.get("lon")), stamp, values["ele"],
-            values["power"], values["speed"])
+            values["power"], values["speed"], values["cad"], values["hr"])
 
 
 def read_ride_gpx(source: Any, name: str = "ride", **options: Any) -> Ride:
@@ -485,22 +517,9 @@ def read_ride_gpx(source: Any, name: str = "ride", **options: Any) -> Ride:
     pacing.fieldtest.ride.Ride
         The cleaned ride; a note says when the speed came from the positions.
     """
-    data = source if isinstance(source, bytes) else _read_bytes(source)[0]
-    root = parse_xml(data, "GPX file")
-    if _local(root.tag) != "gpx":
-        raise InputError(f"not a GPX file: the root element is <{_local(root.tag)}>")
-    rows = [_gpx_point(point) for point in root.iter() if _local(point.tag) == "trkpt"]
-    if not rows:
-        raise InputError("the GPX file has no track points")
-    stamps = [row[2] for row in rows]
-    if any(s is None or s == "" for s in stamps):
-        raise InputError("every GPX track point needs a <time>: some have none")
-    time = _seconds(pd.Series(stamps), "time")
-    latitude, longitude, elevation, power, speed = (
-        np.array([row[k] for row in rows], dtype=float) for k in (0, 1, 3, 4, 5))
-    if np.isnan(power).all():
-        raise InputError("the GPX track carries no power values (a <power> element in the "
-                         "track-point extensions)")
+    track = _gpx_track(source)
+    time, latitude, longitude = track["time"], track["latitude"], track["longitude"]
+    elevation, power, speed = track["elevation"], track["power"], track["speed"]
     if np.isnan(latitude).any() or np.isnan(longitude).any():
         raise InputError("some GPX track points lack lat/lon")
     notes: list[Notice] = []
@@ -514,3 +533,83 @@ def read_ride_gpx(source: Any, name: str = "ride", **options: Any) -> Ride:
     return make_ride(time, speed, power, elevation=None if np.isnan(elevation).all()
                      else elevation, latitude=latitude, longitude=longitude, name=name,
                      notes=notes, **options)
+
+
+def _gpx_track(source: Any) -> dict[str, np.ndarray]:
+    """The track points of a GPX file as arrays: time [s] from the first point, latitude and
+    longitude [deg], elevation [m], power [W], speed [m/s], cadence and heart rate [1/min]
+    (NaN where absent); refuses a file without track points, times or power."""
+    data = source if isinstance(source, bytes) else _read_bytes(source)[0]
+    root = parse_xml(data, "GPX file")
+    if _local(root.tag) != "gpx":
+        raise InputError(f"not a GPX file: the root element is <{_local(root.tag)}>")
+    rows = [_gpx_point(point) for point in root.iter() if _local(point.tag) == "trkpt"]
+    if not rows:
+        raise InputError("the GPX file has no track points")
+    stamps = [row[2] for row in rows]
+    if any(s is None or s == "" for s in stamps):
+        raise InputError("every GPX track point needs a <time>: some have none")
+    track = {"time": _seconds(pd.Series(stamps), "time")}
+    for key, k in (("latitude", 0), ("longitude", 1), ("elevation", 3), ("power", 4),
+                   ("speed", 5), ("cadence", 6), ("heart_rate", 7)):
+        track[key] = np.array([row[k] for row in rows], dtype=float)
+    if np.isnan(track["power"]).all():
+        raise InputError("the GPX track carries no power values (a <power> element in the "
+                         "track-point extensions)")
+    return track
+
+
+# ---------------------------------------------------------------------------------------------
+# Race files (pacing.review): stops and gaps kept, speed optional
+# ---------------------------------------------------------------------------------------------
+
+
+def read_race(source: Any, name: str | None = None, kind: str | None = None) -> RaceRecording:
+    """Read a race file (CSV or GPX, as a test ride) for the race review.
+
+    Unlike `read_ride`, stops and recording gaps are kept (pacing.review.recording): the
+    review counts their time. A CSV needs time and power; speed may come from the distance
+    or the positions. Cadence and heart rate are read when present (CSV columns of
+    RACE_COLUMNS; GPX extension elements named in GPX_CADENCE and GPX_HEART_RATE).
+
+    Parameters
+    ----------
+    source : str, os.PathLike, bytes or file-like
+        The file, its path or its bytes.
+    name : str or None
+        Label of the race (default the file name without extension).
+    kind : str or None
+        "csv" or "gpx"; default from the file extension, else from the content.
+
+    Returns
+    -------
+    pacing.review.recording.RaceRecording
+    """
+    if kind is None and isinstance(source, str | os.PathLike):
+        suffix = Path(source).suffix.lower().lstrip(".")
+        kind = suffix if suffix in ("csv", "gpx") else None
+    data, stem = _read_bytes(source)
+    if kind is None:
+        kind = "gpx" if _looks_like_xml(data) else "csv"
+    if kind not in ("csv", "gpx"):
+        raise InputError(f"unknown race file type {kind!r}: use CSV or GPX")
+    label = name or stem or "race"
+    if kind == "gpx":
+        track = _gpx_track(data)
+        if np.isnan(track["latitude"]).any() or np.isnan(track["longitude"]).any():
+            raise InputError("some GPX track points lack lat/lon")
+        speed = track["speed"]
+        return make_race_recording(
+            track["time"], track["power"], speed=None if np.isnan(speed).all() else speed,
+            latitude=track["latitude"], longitude=track["longitude"],
+            elevation=track["elevation"], cadence=track["cadence"],
+            heart_rate=track["heart_rate"], name=label)
+    frame, dialect = _csv_frame(data)
+    columns = {_normalise(c): c for c in frame.columns}
+    _check_columns(frame, columns, dialect, required=RACE_REQUIRED)
+    found = _csv_quantities(frame, columns, {**CSV_COLUMNS, **RACE_COLUMNS})
+    return make_race_recording(
+        found["time"], found["power"], speed=found.get("speed"),
+        distance=found.get("distance"), latitude=found.get("latitude"),
+        longitude=found.get("longitude"), elevation=found.get("elevation"),
+        cadence=found.get("cadence"), heart_rate=found.get("heart_rate"), name=label)

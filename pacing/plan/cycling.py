@@ -225,6 +225,13 @@ def make_plan(course: Course, bounds: ArrayLike, rider: Rider, air: CourseAir,
     return _fastest_plan(ride, request)
 
 
+def _clock(seconds: float) -> str:
+    """A finish time as the coach types it: "H:MM:SS", whole seconds rounded half up (the
+    same text as pacing.display.units.format_duration, which the core does not import)."""
+    hours, rest = divmod(int(np.floor(seconds + 0.5)), 3600)
+    return f"{hours}:{rest // 60:02d}:{rest % 60:02d}"
+
+
 def _constant_target_time(ride: VerifyingRide, request: PlanRequest, target: float) -> float:
     """Constant power whose simulated finish time equals the target [s]; the power [W].
 
@@ -239,10 +246,10 @@ def _constant_target_time(ride: VerifyingRide, request: PlanRequest, target: flo
         return float(time.sum()) - target
 
     if steady(MAXIMUM_PLAN_POWER) > 0:
-        raise InputError(f"target time {target:.0f} s is not reachable: even "
+        raise InputError(f"finish time {_clock(target)} is not reachable: even "
                          f"{MAXIMUM_PLAN_POWER:g} W is slower")
     if steady(1.0) < 0:
-        raise InputError(f"target time {target:.0f} s is slower than riding at 1 W")
+        raise InputError(f"finish time {_clock(target)} is slower than riding at 1 W")
     power = optimize.brentq(steady, 1.0, MAXIMUM_PLAN_POWER, xtol=1e-6)
     pieces = np.asarray(ride.course.distance).size - 1
     previous = None
@@ -258,7 +265,7 @@ def _constant_target_time(ride: VerifyingRide, request: PlanRequest, target: flo
         power = float(np.clip(new, 0.5 * power, min(2.0 * power, MAXIMUM_PLAN_POWER)))
     else:
         if abs(finish - target) > 1.0:
-            raise InputError(f"target time {target:.0f} s is not reachable on this course")
+            raise InputError(f"finish time {_clock(target)} is not reachable on this course")
     return float(power)
 
 
@@ -282,16 +289,17 @@ def _check_reachable(plan: RacePlan, request: PlanRequest) -> None:
     """InputError when the target-time plan drains W′ below the reserve or needs more than
     the power cap."""
     power = plan.reference_power
+    target = required_target_time(request)
     if (request.uses_w_prime and plan.min_w_prime_balance is not None
             and plan.min_w_prime_balance < request.w_prime_reserve):
         critical_power, w_prime = w_prime_parameters(request)
         allowed = critical_power + (w_prime - request.w_prime_reserve) / plan.finish_time
-        raise InputError(f"target time {request.target_time:.0f} s is not reachable: it needs "
+        raise InputError(f"finish time {_clock(target)} is not reachable: it needs "
                          f"{power:.0f} W, more than the {allowed:.0f} W that CP and W′ allow")
     if request.max_power_ratio is not None:
         reference = request.critical_power or power
         if power > request.max_power_ratio * reference * (1 + 1e-9):
-            raise InputError(f"target time {request.target_time:.0f} s is not reachable: it "
+            raise InputError(f"finish time {_clock(target)} is not reachable: it "
                              f"needs {power:.0f} W, above the power cap")
 
 

@@ -19,10 +19,17 @@ When the athlete's W′ balance (reserve) or the effort cap would be broken:
    segment end, recovery included), with analytic gradients of time, mean power and W′
    balance; it is given limits a hair inside the real ones and its answer is moved back onto
    the coupling constraint, then kept only when feasible and faster (pacing.plan.slsqp_polish).
-   Up to _SLSQP_MAX_SEGMENTS (120) segments plain SLSQP, 100 iterations (as the golden outputs
-   were recorded); above, plain SLSQP and then the sided rounds, which converge where plain
-   SLSQP zigzags across the W′ kink at CP; above FINE_MAX_SEGMENTS (240), where dense SLSQP
-   costs too much, windows of WINDOW_SEGMENTS (60) segments polished in turn.
+   With a W′ reserve in the differential model and no effort cap (the app's and the command
+   line's fastest plan), on every split: a few plain SLSQP steps (up to FINE_MAX_SEGMENTS,
+   240), then the sided rounds, which converge where plain SLSQP zigzags across the W′ kink
+   at CP, each solved by the structured SQP of pacing.plan.sided_sqp on every segment at
+   once (its cost grows as K·R², R the runs above CP, against dense SLSQP's K³; where it
+   cannot go on, a round falls back to SLSQP and says so in the message); a split of up to
+   BOTH_POLISHES_MAX_SEGMENTS (0: none) without a coarser start would also be polished from
+   the priced start by plain SLSQP and the faster plan kept.
+   Otherwise (an effort cap, the integral W′ model): up to _SLSQP_MAX_SEGMENTS (120) plain
+   SLSQP, 100 iterations; up to FINE_MAX_SEGMENTS plain SLSQP and sided SLSQP rounds; above,
+   windows of WINDOW_SEGMENTS (60) segments polished in turn.
 The priced plan is a relaxation (it charges W′ spent above CP but gives no credit for its
 recovery), so on its own it can be far from the optimum. A finer split can hold any plan of a
 coarser one, so the solver first solves the coarser problem with one power per run of climb,
@@ -75,7 +82,9 @@ from pacing.plan.request import (
 from pacing.plan.slsqp_polish import sided_slsqp_plan, slsqp_plan, window_polish
 from pacing.plan.steady_model import SegmentModel, steady_times
 
-_SLSQP_MAX_SEGMENTS = 120  # up to this plain SLSQP polishes (as recorded); above it, sided too
+# without the structured SQP (effort cap, integral model): up to this plain SLSQP polishes;
+# above it, the sided SLSQP rounds too
+_SLSQP_MAX_SEGMENTS = 120
 # the most segments polished at once (dense SLSQP costs ~K³ per iteration: 1 ms at 160
 # segments, 100 ms at 400); above it the split's runs are polished, then windows of the split
 FINE_MAX_SEGMENTS = 240
@@ -84,28 +93,57 @@ _SLSQP_MARGIN = 5e-4  # limits given to SLSQP, inside the real ones, relative to
 # count as constraints); on a 40 km course in 400 segments windows of 60 took half the time
 # of windows of 120 and found a plan 0.2 s slower of 3400 s (bench, 2 busy cores)
 WINDOW_SEGMENTS = FINE_MAX_SEGMENTS // 4
+# plain SLSQP iterations before the structured sided rounds (up to FINE_MAX_SEGMENTS): they
+# find where W′ is spent. On the 200 km course with wind split by terrain (158 segments) the
+# plan took 0.71 / 0.76 / 1.30 s of CPU and finished in 18,347.87 / 18,347.53 / 18,346.74 s
+# with 10 / 30 / 100 of them (none: 2 s slower); every 500 m (400 segments, where the grouped
+# problem gets them) 10 left 0.6 s, 30 nothing (bench, 2 busy cores)
+STRUCTURED_PLAIN_ITERATIONS = 30
+_POLISH_SLSQP, _POLISH_STRUCTURED = "+slsqp", "+structured-sqp"  # the polish in method names
+# up to this many segments a split without a coarser start (the terrain split of the demo
+# courses) is polished both ways, from the priced start by plain SLSQP and from constant power
+# by the structured SQP, and the faster plan kept: alone, the structured SQP found plans up to
+# 3.5e-6 slower there (7 ms of 2064 s; 2 of the demo courses' 12 such first solves; from the
+# priced start up to 1.5e-6), plain SLSQP up to 2 % slower (15.5 s of 787 s: the short hilly
+# course of tests/test_plan_fastest.py). Both cost the 40 km demo 172 ms against 169 ms for
+# plain SLSQP alone and ~70 ms for the structured SQP alone (bench, 2 busy cores); 0 polishes
+# such splits by the structured SQP alone: chosen (the lead's call, issue 15), the demo's
+# fastest plan in 80 ms against the 100 ms target, at a cost of at most 3.5e-6 of the finish
+BOTH_POLISHES_MAX_SEGMENTS = 0
 
 
 def _polished(problem: FastestProblem, start: np.ndarray, held: SolverLimits,
-              warm: bool = False) -> tuple[np.ndarray, int, str, bool, float]:
+              structured: bool, warm: bool = False) -> tuple[np.ndarray, int, str, bool, float]:
     """SLSQP from a feasible start [W], moved back onto the coupling constraint; (power [W],
     SLSQP iterations, its message, whether it keeps the limits and the coupling constraint,
-    its steady finish time [s]). `warm`: the start is a nearby problem's polished plan.
+    its steady finish time [s]). `structured`: polish by the structured SQP (where
+    `structured_polish` holds); `warm`: the start is a nearby problem's polished plan.
 
     SLSQP ends within its own tolerance of the limits, possibly just outside: it is given
     limits a hair inside the real ones (a few joules, a hundredth of a watt), and its answer
-    is moved back onto the coupling constraint by scaling the free powers. Up to
-    _SLSQP_MAX_SEGMENTS segments plain SLSQP polishes (as recorded in the golden outputs);
-    up to FINE_MAX_SEGMENTS the sided rounds follow it, which converge where plain SLSQP
-    zigzags across CP (from a nearby problem's polished plan, they alone); above, windows of
-    WINDOW_SEGMENTS are polished in turn (pacing.plan.slsqp_polish).
+    is moved back onto the coupling constraint by scaling the free powers. Structured:
+    STRUCTURED_PLAIN_ITERATIONS plain SLSQP steps (up to FINE_MAX_SEGMENTS, not from a nearby
+    problem's plan) and the sided rounds by the structured SQP (pacing.plan.sided_sqp).
+    Otherwise up to _SLSQP_MAX_SEGMENTS segments plain SLSQP; up to FINE_MAX_SEGMENTS the
+    sided rounds follow it, which converge where plain SLSQP zigzags across CP (from a nearby
+    problem's polished plan, they alone); above, windows of WINDOW_SEGMENTS are polished in
+    turn (pacing.plan.slsqp_polish).
     """
     model, request = problem.model, problem.request
     inside = SolverLimits(
         None if held.reserve is None
         else held.reserve + _SLSQP_MARGIN * w_prime_parameters(request)[1],
         None if held.cap is None else held.cap * (1 - _SLSQP_MARGIN))
-    if model.count <= FINE_MAX_SEGMENTS:
+    if structured and structured_polish(problem, inside):
+        # a few plain SLSQP steps find where W′ is spent (they cross CP where the sided
+        # rounds would not), then the sided rounds by the structured SQP on every segment
+        polished, iterations = start, 0
+        if not warm and model.count <= FINE_MAX_SEGMENTS:
+            polished, result = slsqp_plan(problem, start, inside, STRUCTURED_PLAIN_ITERATIONS)
+            iterations = int(result.nit)
+        polished, result = sided_slsqp_plan(problem, polished, inside, structured=True)
+        iterations, message = iterations + int(result.nit), str(result.message)
+    elif model.count <= FINE_MAX_SEGMENTS:
         sided = model.count > _SLSQP_MAX_SEGMENTS
         polished, iterations, message = start, 0, ""
         if not (sided and warm):
@@ -126,6 +164,36 @@ def _polished(problem: FastestProblem, start: np.ndarray, held: SolverLimits,
     feasible = (problem.keeps(polished, held, 1e-6)
                 and coupling_gap <= 1e-7 * required_mean_power(request) * float(time.sum()))
     return polished, iterations, message, feasible, float(time.sum())
+
+
+def structured_polish(problem: FastestProblem, limits: SolverLimits) -> bool:
+    """Whether the structured SQP polishes this problem (pacing.plan.sided_sqp): with a W′
+    reserve in the differential model and no effort cap, on any number of segments.
+
+    Where a coarser start exists it was never slower than plain SLSQP (up to 120 segments)
+    or the sided SLSQP rounds, on 100 random courses of 3-400 segments and 48 splits of the
+    demo courses: up to 0.04 % faster, in about half the CPU up to 120 segments.
+
+    Parameters
+    ----------
+    problem : FastestProblem
+        The problem [-].
+    limits : SolverLimits
+        The limits given to the polish [-].
+
+    Returns
+    -------
+    bool
+        True for the structured SQP [-].
+    """
+    return (limits.reserve is not None and limits.cap is None
+            and problem.request.w_prime_model == "differential")
+
+
+def _polish_name(structured: bool) -> str:
+    """The polish's part of the method name: "+structured-sqp" for the structured SQP, else
+    "+slsqp" (plain or sided SLSQP, or windows of it)."""
+    return _POLISH_STRUCTURED if structured else _POLISH_SLSQP
 
 
 def _active_limits(problem: FastestProblem, power: np.ndarray, held: SolverLimits
@@ -167,13 +235,18 @@ def _warm_plan(problem: FastestProblem, start: tuple[np.ndarray, SolverReport], 
                multiplier: float, iterations: int) -> tuple[np.ndarray, SolverReport] | None:
     """SLSQP from a nearby problem's plan (`start`), with the limits that bind; the plan and
     its report when its answer keeps them and the coupling constraint, else None."""
+    # a correction round polishes as the round before it (a plan of a coarse split without
+    # a coarser start by plain SLSQP, as before the structured SQP: module docstring)
+    structured = structured_polish(problem, held) and (
+        start[1].method.endswith(_POLISH_STRUCTURED)
+        or problem.model.count > _SLSQP_MAX_SEGMENTS)
     power, nit, message, feasible, _ = _polished(problem, np.asarray(start[0], dtype=float),
-                                                 held, warm=True)
+                                                 held, structured, warm=True)
     if not feasible:
         return None
     active = _active_limits(problem, power, held)
-    method = start[1].method if start[1].method.endswith("+slsqp") else (
-        start[1].method + "+slsqp")
+    method = start[1].method.removesuffix(_POLISH_SLSQP).removesuffix(_POLISH_STRUCTURED)
+    method += _polish_name(structured)
     return power, SolverReport(method, multiplier, iterations + nit, problem.counter[0],
                                float("nan"), message, active=active)
 
@@ -209,7 +282,9 @@ def _limited_plan(problem: FastestProblem, multiplier: float, iterations: int,
                   every: SolverLimits, held: SolverLimits, coarse_start: bool
                   ) -> tuple[np.ndarray, SolverReport]:
     """The fastest plan when the Lagrange plan breaks a limit (`held`: the broken ones;
-    `every`: all the request's): a feasible start, then the SLSQP polish."""
+    `every`: all the request's): a feasible start (the coarser problem's plan, else constant
+    power for the structured SQP or the priced or ceiling plan for SLSQP; both up to
+    BOTH_POLISHES_MAX_SEGMENTS), each polished, the fastest feasible plan kept."""
     mean = required_mean_power(problem.request)
     if not problem.keeps(np.full(problem.model.count, mean), held):
         what = "W′ reserve" if held.reserve is not None else "effort cap"
@@ -222,19 +297,44 @@ def _limited_plan(problem: FastestProblem, multiplier: float, iterations: int,
                                        FINE_MAX_SEGMENTS) if coarse_start else (None, 0)
     # [iterations, ceiling steps]
     counts = [iterations + steps, 0]
+    # a split without a coarser start up to BOTH_POLISHES_MAX_SEGMENTS (the terrain split
+    # of the demo courses): both polishes, the faster plan kept
+    both = (grouped is None and coarse_start
+            and problem.model.count <= BOTH_POLISHES_MAX_SEGMENTS
+            and structured_polish(problem, held))
+    candidates = []
     # with a plan of the coarser problem in hand, steps 2-3 (starts for the polish that lose
     # to it in practice: 3891 s against 3843 s on the test's hill loop) are skipped
     if grouped is not None:
-        power, method, message = grouped[0], "grouped+" + grouped[1].method, grouped[1].message
-    else:
-        power, method, message = _feasible_start(problem, multiplier, held, counts)
-    # 4. polish with SLSQP on the full problem from that feasible start; keep its answer only
-    #    if it is feasible, meets the coupling constraint and is faster (on a split too long
-    #    to polish, the polished plan of its runs is the answer)
-    polished, nit, polish_message, feasible, finish = _polished(problem, power, held)
-    if feasible and finish < problem.finish(power):
-        power, method, message = polished, method + "+slsqp", polish_message
-    return power, SolverReport(method, multiplier, counts[0] + counts[1] + nit,
+        candidates.append((grouped[0], "grouped+" + grouped[1].method, grouped[1].message,
+                           structured_polish(problem, held)))
+    if grouped is None and (both or structured_polish(problem, held)):
+        # the structured SQP's polish crosses CP on its own (its plain SLSQP steps and sided
+        # rounds), so constant power (kept, checked above) is start enough; on the
+        # 200 km course with wind (terrain split) the priced start cost a third more CPU for
+        # a plan 0.1 s faster of 18,347 s, every 500 m none
+        candidates.append((np.full(problem.model.count, mean), "constant",
+                           "constant power, polished", True))
+    if grouped is None and (both or not structured_polish(problem, held)):
+        candidates.append((*_feasible_start(problem, multiplier, held, counts), False))
+    best: tuple[np.ndarray, str, str, float] | None = None
+    for power, method, message, structured in candidates:
+        # 4. polish from that feasible start; keep its answer only if it is feasible, meets
+        #    the coupling constraint and is faster (on a split too long to polish, the
+        #    polished plan of its runs is the answer)
+        polished, nit, polish_message, feasible, finish = _polished(problem, power, held,
+                                                                    structured)
+        counts[0] += nit
+        if feasible and finish < problem.finish(power):
+            power, method, message = polished, method + _polish_name(structured), \
+                polish_message
+        else:
+            finish = problem.finish(power)
+        if best is None or finish < best[3]:
+            best = (power, method, message, finish)
+    assert best is not None
+    power, method, message, _ = best
+    return power, SolverReport(method, multiplier, counts[0] + counts[1],
                                problem.counter[0], float("nan"), message,
                                active=_active_limits(problem, power, held))
 
@@ -320,10 +420,11 @@ def fastest_steady_plan(
 
     Notes
     -----
-    Every split is polished on its own segments: up to 120 by plain SLSQP, up to 240 by plain
-    SLSQP and sided rounds, above by windows of 60 segments (module docstring). The problem
-    is not convex (W′ recovers below CP), so a polish from another start can still find a
-    faster plan; the one known case is tests/test_plan_fastest.py's strict xfail.
+    Every split is polished on its own segments: by the structured SQP's sided rounds with a
+    W′ reserve in the differential model and no effort cap; else up to 120 by plain SLSQP, up
+    to 240 by plain SLSQP and sided rounds and above by windows of 60 segments (module
+    docstring). The problem is not convex (W′ recovers below CP), so a polish from another
+    start can still find a faster plan.
 
     References
     ----------

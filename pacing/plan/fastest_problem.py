@@ -26,12 +26,16 @@ class SolverReport:
     Attributes
     ----------
     method : str
-        "constant"; "lagrange" (coupling constraint and bounds only); "lagrange+price" or
-        "lagrange+ceiling" (a limit priced, or a common power ceiling), with "+slsqp" when
-        SLSQP improved that plan; "grouped+" in front when the plan started from the coarser
-        problem's (whose own method follows); "+blend" at the end when only a share of the
-        plan, the rest constant power, kept the limits on the verified ride
-        (pacing.plan.cycling) [-].
+        How the plan was found, its steps joined by "+": the start, "lagrange" (coupling
+        constraint and bounds only, then alone), "constant" (constant power: the start of
+        the structured SQP), "lagrange+price" or "lagrange+ceiling" (a limit priced, or a
+        common power ceiling), with "grouped+" in front when the plan started from the
+        coarser problem's (whose own method follows); then the polish that improved it,
+        "+structured-sqp" (the structured SQP, pacing.plan.sided_sqp: a W′ reserve in the
+        differential model, no effort cap) or "+slsqp" (scipy's SLSQP); "+blend" at the end
+        when only a share of the plan, the rest constant power, kept the limits on the
+        verified ride (pacing.plan.cycling). A name, not a contract: tests and callers check
+        the limits and the finish time [-].
     multiplier : float or None
         λ, time saved per joule-equivalent of the coupling constraint (Lagrange stage); None
         when not used [1/J].

@@ -13,12 +13,20 @@ The app, the command line, the setup comparison and the library's "work it out a
    so the page, the terminal and every export say the same — the course's own first (gaps,
    missing or constant elevations, what cleaning removed), then the plan's.
 
+Every plan goes through the race day (pacing.plan.race_day; a request without a `RaceDay`
+gets the default one): heat (WBGT) and altitude lower the athlete's limits relative to where
+they were measured (20 °C, 50 %, sea level unless said). With a weather table through the
+race it is solved to a fixed point: plan → passing times → weather at each piece → air →
+plan …, until the finish time moves less than 0.1 s; one weather all day is one pass.
+`plan_race_in_air` is the bare chain (the athlete's limits as given) for callers that share
+one air. docs/race_day_weather.md describes the race day.
+
 Everything is SI; words and units are the edges' business (pacing.display).
 """
 
 from __future__ import annotations
 
-from dataclasses import dataclass, field
+from dataclasses import dataclass, field, replace
 from typing import TYPE_CHECKING, cast
 
 import numpy as np
@@ -29,13 +37,13 @@ from pacing.plan.prediction import SimulationOptions
 from pacing.plan.request import PlanRequest
 from pacing.plan.running import DOWNHILL_SPEED_RATIO_CAP
 from pacing.plan.strategies import SPORTS, strategy_for
-from pacing.weather.conditions import air_along_course
 
 if TYPE_CHECKING:  # each sport's plan module is imported by its strategy, when it plans
     from pacing.course.geometry import Course
     from pacing.physics.cycling import Rider
     from pacing.physics.running import Runner
     from pacing.plan.cycling import RacePlan
+    from pacing.plan.race_day import RaceDay, RaceDayResult
     from pacing.plan.running_plan import RunningPlan
     from pacing.plan.targets import SegmentTarget
     from pacing.weather.conditions import Conditions, CourseAir
@@ -79,6 +87,8 @@ class RaceRequest:
     options : the inertial simulation's options (cycling).
     runner : the running energy-balance parameters (running).
     running : the running plan's pace, critical speed and D′ (running).
+    race_day : the start time, weather through the race, heat and altitude; None for one
+        weather all day and the athlete's limits as given.
     """
 
     course: Course
@@ -91,6 +101,7 @@ class RaceRequest:
     options: SimulationOptions = field(default_factory=SimulationOptions)
     runner: Runner | None = None
     running: RunningRequest = field(default_factory=RunningRequest)
+    race_day: RaceDay | None = None
 
     def __post_init__(self) -> None:
         if self.sport not in SPORTS:
@@ -113,6 +124,8 @@ class RaceResult:
     plan : the sport's plan: RacePlan (cycling, with its verified Prediction) or RunningPlan.
     targets : one SegmentTarget row per segment.
     notices : what the user must be told beside the numbers, in order.
+    race_day : the clock, the weather met, heat and altitude (RaceDayResult); None
+        without a race day.
     """
 
     request: RaceRequest
@@ -120,6 +133,7 @@ class RaceResult:
     plan: RacePlan | RunningPlan
     targets: tuple[SegmentTarget, ...]
     notices: tuple[Notice, ...]
+    race_day: RaceDayResult | None = None
 
     @property
     def sport(self) -> str:
@@ -157,8 +171,11 @@ def plan_race(request: RaceRequest) -> RaceResult:
         When the request cannot be met (a target time beyond what the athlete's limits allow,
         a fastest plan without the limits it needs, …): one line for the user.
     """
-    air = air_along_course(request.course, request.conditions)
-    return plan_race_in_air(request, air)
+    from pacing.plan.race_day import RaceDay, plan_race_day
+
+    if request.race_day is None:  # heat and altitude always count: the day's single weather
+        request = replace(request, race_day=RaceDay())
+    return plan_race_day(request)
 
 
 def plan_race_in_air(request: RaceRequest, air: CourseAir) -> RaceResult:
@@ -227,3 +244,4 @@ def _exhausted_notice(result: RaceResult, distance: float) -> Notice:
     running = cast("RunningPlan", result.plan)
     return warning("d-prime-exhausted", distance_m=distance,
                    lowest_balance_m=float(np.min(np.asarray(running.d_prime_balance))))
+

@@ -225,7 +225,7 @@ def required_target_time(request: PlanRequest) -> float:
         When the request has no target time.
     """
     if request.target_time is None:
-        raise InputError("the target-time plan needs a target time (--target-time)")
+        raise InputError("the target-time plan needs a target time")
     return float(request.target_time)
 
 

@@ -155,13 +155,16 @@ def _aero(v: float, piece: _PieceTuple, rider: _RiderTuple, angles: _Floats,
 
 
 def _step(piece: _PieceTuple, rider: _RiderTuple, angles: _Floats, factors: _Floats,
-          v0: float, resist0: float, h: float, drive: float) -> tuple[float, float]:
+          v0: float, resist0: float, h: float, drive: float, aero0: float,
+          aero_slope0: float) -> tuple[float, float]:
     """Speed after a step of length h, and the drive work [J]; v1 < 0 when the bike stalls.
 
     Solves R(v1) = ½m(v1² − v0²) − W(v1) + h·(F0 + F(v1))/2 = 0, with W(v1) =
     min(drive·2h/(v0+v1), drive_cap·h) (0 without drive, also from rest): R is strictly
     increasing in v1, so Newton steps kept in a bracket [0, high] converge to the unique root.
-    The bike stalls when R(0) ≥ 0.
+    The bike stalls when R(0) ≥ 0. The first Newton step starts from v0 when moving and takes
+    the aerodynamic force and slope there from the caller (`aero0` [N], `aero_slope0`
+    [N·s/m], what `_aero` gives at v0), not computing them again.
     """
     b, m_eff, drive_cap = rider[1], rider[4], rider[5]
     head, cross, k = piece[2], piece[3], piece[6]
@@ -173,8 +176,12 @@ def _step(piece: _PieceTuple, rider: _RiderTuple, angles: _Floats, factors: _Flo
     low, high = 0.0, math.inf
     low_checked = False
     v1 = v0 if v0 > 0 else math.sqrt(2.0 * max(drive_cap, 1.0) * h / m_eff)
+    known = v0 > 0  # the force at v1 = v0 is the caller's
     for _ in range(100):
-        if plain:
+        if known:
+            aero1, aero_slope = aero0, aero_slope0
+            known = False
+        elif plain:
             along = v1 + head
             apparent = hypot(along, cross)
             aero1 = k * apparent * along
@@ -246,14 +253,15 @@ def _ride(piece: _PieceTuple, rider: _RiderTuple, angles: _Floats, factors: _Flo
     holds, holds_known = False, False  # whether the power holds the walking pace, on need
     walked = False
     v_now = v_start
-    aero_now, _ = _aero(v_now, piece, rider, angles, factors)
+    aero_now, slope_now = _aero(v_now, piece, rider, angles, factors)
     done = 0.0
     h = length
     t_sum = work_sum = aero_sum = bearing_sum = walk_sum = 0.0
     while done < length * (1.0 - 1e-12):
         h = min(h, length - done)
         resist_now = aero_now + constant + b * v_now
-        v_next, work = _step(piece, rider, angles, factors, v_now, resist_now, h, drive)
+        v_next, work = _step(piece, rider, angles, factors, v_now, resist_now, h, drive,
+                             aero_now, slope_now)
         walk = v_next < 0
         if not walk and v_next < walking_speed:
             if not holds_known:
@@ -269,11 +277,11 @@ def _ride(piece: _PieceTuple, rider: _RiderTuple, angles: _Floats, factors: _Flo
         if walk:  # the rider walks the bike at the walking speed
             walked = True
             v_next = walking_speed
-            aero_next, _ = _aero(v_next, piece, rider, angles, factors)
+            aero_next, slope_next = _aero(v_next, piece, rider, angles, factors)
             resist_next = aero_next + constant + b * v_next
             work = 0.5 * m_eff * (v_next**2 - v_now**2) + 0.5 * h * (resist_now + resist_next)
         else:
-            aero_next, _ = _aero(v_next, piece, rider, angles, factors)
+            aero_next, slope_next = _aero(v_next, piece, rider, angles, factors)
         t_sum += 2.0 * h / (v_now + v_next)
         if walk:
             walk_sum += work
@@ -282,7 +290,7 @@ def _ride(piece: _PieceTuple, rider: _RiderTuple, angles: _Floats, factors: _Flo
         aero_sum += 0.5 * h * (aero_now + aero_next)
         bearing_sum += h * (a + 0.5 * b * (v_now + v_next))
         done += h
-        v_now, aero_now = v_next, aero_next
+        v_now, aero_now, slope_now = v_next, aero_next, slope_next
         h *= 2.0
     return v_now, t_sum, work_sum, aero_sum, bearing_sum, walked, walk_sum
 

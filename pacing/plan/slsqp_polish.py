@@ -14,7 +14,11 @@ the W′ balance at every segment end and the effort cap, with analytic gradient
   multipliers) says crossing lowers it, and SLSQP runs again. With the differential W′
   balance and the sides fixed, the balance falls only on segments above CP and never on those
   below, so its lowest points are the ends of the runs above CP: only those rows are
-  constraints.
+  constraints. Each round is solved by SLSQP or, on request (`structured`), by the
+  structured SQP of pacing.plan.sided_sqp, which sees that the objective and the coupling
+  constraint are separable and that the rows are few; where that SQP cannot go on (a
+  singular system, a power it cannot evaluate) the round is solved by SLSQP, the reason at
+  the front of its message, so no linear-algebra error escapes the polish.
 - By windows (`window_polish`): on a split too long for dense SLSQP (its cost grows as K³),
   windows of consecutive segments are polished in turn with the rest of the plan held; each
   keeps its share of the coupling constraint, starts from the W′ balance the plan reaches
@@ -52,6 +56,7 @@ from pacing.plan.lagrange import (
     steady_w_prime_balance,
 )
 from pacing.plan.request import PlanRequest, required_mean_power, w_prime_parameters
+from pacing.plan.sided_sqp import SqpResult, sided_sqp
 from pacing.plan.steady_model import SegmentModel, steady_times
 
 if TYPE_CHECKING:
@@ -322,8 +327,8 @@ def _run_slsqp(scaled: ScaledProblem, constraints: list[dict[str, Any]], start: 
             method="SLSQP", options={"maxiter": maxiter, "ftol": SLSQP_FTOL})
 
 
-def slsqp_plan(problem: FastestProblem, start: np.ndarray, limits: SolverLimits
-               ) -> tuple[np.ndarray, OptimizeResult]:
+def slsqp_plan(problem: FastestProblem, start: np.ndarray, limits: SolverLimits,
+               maxiter: int = PLAIN_MAXITER) -> tuple[np.ndarray, OptimizeResult]:
     """Fastest powers with the W′ reserve and/or effort cap by plain SLSQP (Kraft 1988).
 
     Parameters
@@ -334,6 +339,8 @@ def slsqp_plan(problem: FastestProblem, start: np.ndarray, limits: SolverLimits
         Segment powers to start from, length K [W].
     limits : SolverLimits
         The W′ reserve [J] and effort cap [W] to keep [-].
+    maxiter : int
+        Most SLSQP iterations [-].
 
     Returns
     -------
@@ -350,7 +357,7 @@ def slsqp_plan(problem: FastestProblem, start: np.ndarray, limits: SolverLimits
     scaled = ScaledProblem(problem)
     lower, upper, mean = problem.lower, problem.upper, scaled.mean
     result = _run_slsqp(scaled, _constraints(scaled, limits), start / mean, lower / mean,
-                        upper / mean, PLAIN_MAXITER)
+                        upper / mean, maxiter)
     return np.clip(result.x * mean, lower, upper), result
 
 
@@ -374,7 +381,8 @@ def _lowest_rows(side: np.ndarray, request: PlanRequest) -> np.ndarray | None:
 
 
 def sided_slsqp_plan(problem: FastestProblem, start: np.ndarray, limits: SolverLimits,
-                     window: Window | None = None) -> tuple[np.ndarray, OptimizeResult]:
+                     window: Window | None = None, structured: bool = False
+                     ) -> tuple[np.ndarray, OptimizeResult | SqpResult]:
     """SLSQP with every segment held on one side of CP, sides changed where crossing pays.
 
     Each round gives every segment CP as a bound on its side (module docstring); after it, a
@@ -392,13 +400,16 @@ def sided_slsqp_plan(problem: FastestProblem, start: np.ndarray, limits: SolverL
         The W′ reserve [J] and effort cap [W] to keep [-].
     window : Window or None
         The window's start, share and end floor when the problem is a window [-].
+    structured : bool
+        Solve each round with the structured SQP (pacing.plan.sided_sqp) instead of SLSQP,
+        when there is no effort cap (the differential model's rows) [-].
 
     Returns
     -------
     power : numpy.ndarray
         Segment powers within the bounds, length K [W].
-    result : scipy.optimize.OptimizeResult
-        scipy's last result, with the iterations of every round in `nit` [-].
+    result : scipy.optimize.OptimizeResult or pacing.plan.sided_sqp.SqpResult
+        The last round's result, with the iterations of every round in `nit` [-].
 
     References
     ----------
@@ -421,8 +432,12 @@ def sided_slsqp_plan(problem: FastestProblem, start: np.ndarray, limits: SolverL
         rows = _lowest_rows(side, problem.request)
         low = np.where(side, np.maximum(lower, critical), lower)
         high = np.where(side, upper, np.minimum(upper, critical))
-        result = _run_slsqp(scaled, _constraints(scaled, limits, rows), power / mean,
-                            low / mean, high / mean, SIDED_MAXITER)
+        if structured and rows is not None and limits.cap is None:
+            result = _structured_round(scaled, limits, power / mean, low / mean,
+                                       high / mean, rows)
+        else:
+            result = _run_slsqp(scaled, _constraints(scaled, limits, rows), power / mean,
+                                low / mean, high / mean, SIDED_MAXITER)
         iterations += int(result.nit)
         power = np.clip(result.x * mean, low, high)
         has_rows = rows is None or rows.size > 0
@@ -434,6 +449,28 @@ def sided_slsqp_plan(problem: FastestProblem, start: np.ndarray, limits: SolverL
         side = side ^ crossing
     result.nit = iterations
     return power, result
+
+
+def _structured_round(scaled: ScaledProblem, limits: SolverLimits, start: np.ndarray,
+                      low: np.ndarray, high: np.ndarray, rows: np.ndarray
+                      ) -> OptimizeResult | SqpResult:
+    """One sided round by the structured SQP (pacing.plan.sided_sqp); where it cannot go on
+    (a singular system, a power it cannot evaluate), the round by SLSQP instead, the reason
+    at the front of its message."""
+    reserve = 0.0 if limits.reserve is None else limits.reserve
+    try:
+        with np.errstate(over="raise", invalid="raise", divide="raise"):
+            result = sided_sqp(scaled, reserve, start, low, high, rows, SIDED_MAXITER,
+                               SLSQP_FTOL)
+        if np.all(np.isfinite(result.x)) and np.all(np.isfinite(result.multipliers)):
+            return result
+        reason = "a power that is not a number"
+    except (np.linalg.LinAlgError, FloatingPointError) as error:
+        reason = f"{type(error).__name__}: {error}"
+    fallback = _run_slsqp(scaled, _constraints(scaled, limits, rows), start, low, high,
+                          SIDED_MAXITER)
+    fallback.message = f"structured SQP stopped ({reason}); SLSQP round: {fallback.message}"
+    return fallback
 
 
 def _crossings(scaled: ScaledProblem, power: np.ndarray, side: np.ndarray,

@@ -109,6 +109,17 @@ class SegmentTarget:
     gap_length : float
         Total length of the recording's gaps joined by a straight line that start in this
         segment (pacing.course.recording.Gap); 0 when none [m].
+    clock_time : str or None
+        Clock time at its start, ISO 8601 (with the offset from UTC when known); None without
+        a race day's start time [-].
+    temperature : float or None
+        Air temperature met on it (time-weighted, at the start's elevation); None without a
+        race day [°C].
+    wind_speed : float or None
+        Wind speed met on it at 10 m (time-weighted vector mean); None without a race day
+        [m/s].
+    wind_from : float or None
+        Direction that wind blows from; None without a race day [deg clockwise from north].
     """
 
     index: int
@@ -127,6 +138,10 @@ class SegmentTarget:
     headwind: float
     walking_distance: float = 0.0
     gap_length: float = 0.0
+    clock_time: str | None = None
+    temperature: float | None = None
+    wind_speed: float | None = None
+    wind_from: float | None = None
 
 
 def segment_gap_lengths(gaps: Iterable[Gap], ends: Sequence[float]) -> np.ndarray:
@@ -329,6 +344,10 @@ RECORD_KEYS = {
     "headwind": "headwind_m_s",
     "walking_distance": "walking_distance_m",
     "gap_length": "gap_length_m",
+    "clock_time": "clock_time",
+    "temperature": "temperature_c",
+    "wind_speed": "wind_speed_m_s",
+    "wind_from": "wind_from_deg",
 }
 """Field of SegmentTarget → key in exported records (SI units in the key's suffix)."""
 

@@ -14,6 +14,7 @@ from pacing.store.records import AthleteRecord, SetupRecord
 from pacing.store.rows import athlete_record, athlete_row, plural, setup_record, setup_row
 from pacing.store.schema import athletes, plans, setups
 from pacing.store.statements import (
+    NameTaken,
     check_on_existing,
     count_rows,
     delete_row,
@@ -22,6 +23,19 @@ from pacing.store.statements import (
     replace_row,
     update_row,
 )
+
+
+def _name_in_use(connection, name: str, exclude_id: int | None = None
+                 ) -> tuple[int, str] | None:
+    """(id, stored name) of an athlete whose name is `name` apart from letter case (Unicode
+    case folding), other than `exclude_id`; None when the name is free. "Ann Lee" and
+    "ann lee" are one coach's athlete: a second one is never stored silently."""
+    wanted = name.casefold()
+    for entry_id, stored in connection.execute(
+            sa.select(athletes.c.id, athletes.c.name).order_by(athletes.c.id)):
+        if entry_id != exclude_id and stored.casefold() == wanted:
+            return int(entry_id), str(stored)
+    return None
 
 
 class AthleteMethods(LibraryBase):
@@ -55,11 +69,15 @@ class AthleteMethods(LibraryBase):
         Raises
         ------
         NameTaken
-            The name is taken and `on_existing` is "refuse".
+            The name is taken (letter case aside: "ann" is "Ann") and `on_existing` is
+            "refuse".
         """
         values = athlete_row(athlete)
         check_on_existing(on_existing)
         with self.transaction() as connection:
+            same = _name_in_use(connection, values["name"])
+            if same is not None:  # the stored spelling: "ann" refused as "Ann", or "Ann (2)"
+                values["name"] = same[1]
             values["name"], replaced = place_name(connection, athletes, "athlete",
                                                   values["name"], on_existing)
             if replaced is None:
@@ -117,9 +135,14 @@ class AthleteMethods(LibraryBase):
         ------
         ConflictError
             Someone changed the athlete since `revision`.
+        NameTaken
+            Another athlete has that name (letter case aside).
         """
         values = athlete_row(athlete)
         with self.transaction() as connection:
+            same = _name_in_use(connection, values["name"], exclude_id=athlete_id)
+            if same is not None:
+                raise NameTaken("athlete", same[1], same[0])
             update_row(connection, athletes, "athlete", athlete_id, revision, values)
         return self.athlete(athlete_id)
 

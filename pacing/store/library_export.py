@@ -26,7 +26,7 @@ from pacing.store.rows import (
     check_id,
     setup_from_row,
 )
-from pacing.store.schema import athletes, courses, plans, setups
+from pacing.store.schema import athletes, courses, plans, setups, teams
 
 
 def _stamp(value: datetime.datetime) -> str:
@@ -102,6 +102,15 @@ def _plan_entry(row: Any) -> dict[str, Any]:
     }
 
 
+def _team_entries(connection: Connection) -> list[dict[str, Any]]:
+    """Every team as the file holds it (riders and drafting as JSON values)."""
+    return [{"id": row.id, "name": row.name, "riders": jsontext.loads(row.riders),
+             "drafting": None if row.drafting is None else jsontext.loads(row.drafting),
+             "counts_rider": row.counts_rider,
+             "created_at": _stamp(row.created_at), "updated_at": _stamp(row.updated_at)}
+            for row in connection.execute(sa.select(teams).order_by(teams.c.id))]
+
+
 def export_library(library: Library, athlete_id: int | None = None) -> dict[str, Any]:
     """The library, or one athlete's part of it, in the library file format.
 
@@ -111,7 +120,7 @@ def export_library(library: Library, athlete_id: int | None = None) -> dict[str,
         The open library; everything is read in one transaction.
     athlete_id : int or None
         Only this athlete, their setups, their saved plans and the courses those plans use;
-        None for the whole library.
+        None for the whole library (with its teams).
 
     Returns
     -------
@@ -126,6 +135,7 @@ def export_library(library: Library, athlete_id: int | None = None) -> dict[str,
     """
     with library.reading() as connection:
         athlete_rows, setup_rows, course_rows, plan_rows = _export_rows(connection, athlete_id)
+        team_entries = _team_entries(connection) if athlete_id is None else []
     return {
         "format": FORMAT_NAME,
         "format_version": FORMAT_VERSION,
@@ -134,6 +144,7 @@ def export_library(library: Library, athlete_id: int | None = None) -> dict[str,
         "athletes": [_athlete_entry(row, setup_rows) for row in athlete_rows],
         "courses": [_course_entry(row) for row in course_rows],
         "plans": [_plan_entry(row) for row in plan_rows],
+        "teams": team_entries,
     }
 
 

@@ -6,7 +6,7 @@ pacing.store.library_import adds one to a library. A format of our own design:
 ```
 {
   "format": "pacing library",          # marks the file
-  "format_version": 1,                 # FORMAT_VERSION; files from a newer pacing are refused
+  "format_version": 2,                 # FORMAT_VERSION; files from a newer pacing are refused
   "exported_at": "2026-12-01T22:30:00+00:00",
   "exported_by": "pacing 0.1.0",
   "athletes": [{"id": 1, "name": "Ann", "body_mass": 61.0, "critical_power": 250.0,
@@ -24,9 +24,17 @@ pacing.store.library_import adds one to a library. A format of our own design:
                                                    "course_id": 2, ...},
              "strategy": ..., "weather": ..., "targets": [{...}, ...],
              "time_saved": 41.5, "finish_time": 3725.0, "library_version": "0.1.0",
-             "notes": "", "created_at": "...", "updated_at": "..."}]
+             "notes": "", "created_at": "...", "updated_at": "..."}],
+  "teams": [{"id": 3, "name": "Pursuit A", "riders": [{"name": "Ann", "mass": 72.0,
+             "drag_area": 0.19, "critical_power": 380.0, "w_prime": 22000.0,
+             "max_power": null, "rolling_coefficient": 0.0025}, ...],
+             "drafting": [0.0, 0.32, 0.39], "counts_rider": 3,
+             "created_at": "...", "updated_at": "..."}]
 }
 ```
+
+Version 2 added "teams" (optional: version 1 files have none; a whole-library export writes
+them, one athlete's export does not).
 
 Ids are those of the exporting library; the plans' link keys (``athlete_id``, ``setup_id``,
 ``course_id`` in their inputs) refer to them. Import gives every entry a new id and rewrites
@@ -49,7 +57,7 @@ import hashlib
 import json
 from collections.abc import Callable, Mapping
 from dataclasses import dataclass
-from typing import Any
+from typing import TYPE_CHECKING, Any
 
 from pacing.athlete import Athlete, Setup
 from pacing.errors import InputError
@@ -67,10 +75,13 @@ from pacing.store.rows import (
     setup_row,
 )
 
+if TYPE_CHECKING:
+    from pacing.store.library_teams import FileTeam
+
 #: Value of the file's "format" field.
 FORMAT_NAME = "pacing library"
 #: Version of the format this pacing writes; it reads this one and older.
-FORMAT_VERSION = 1
+FORMAT_VERSION = 2
 #: Largest library file read [bytes] (as GPX files, pacing.io.safe_xml): checked before the
 #: file is read whole, so a larger one is refused at once with little memory.
 FILE_SIZE_LIMIT = 50 * 2**20
@@ -87,7 +98,7 @@ _SETUP_KEYS = {"id", "name", *SETUP_NUMBERS, "yaw_drag_table", *_STAMPS}
 _COURSE_KEYS = {"id", "name", "distance_m", "ascent_m", "gpx_sha256", "gpx_base64", *_STAMPS}
 _PLAN_KEYS = {"id", "name", "inputs", *PLAN_RESULT_KEYS, "library_version", "notes", *_STAMPS}
 _TOP_KEYS = {"format", "format_version", "exported_at", "exported_by", "athletes", "courses",
-             "plans"}
+             "plans", "teams"}
 
 
 @dataclass(frozen=True)
@@ -222,6 +233,8 @@ class LibraryFile:
         In file order.
     plans : tuple of FilePlan
         In file order.
+    teams : tuple of FileTeam
+        In file order (none in version 1 files).
     """
 
     format_version: int
@@ -231,6 +244,7 @@ class LibraryFile:
     setups: tuple[FileSetup, ...]
     courses: tuple[FileCourse, ...]
     plans: tuple[FilePlan, ...]
+    teams: tuple[FileTeam, ...] = ()
 
 
 # ---------------------------------------------------------------------------------------------
@@ -566,7 +580,11 @@ def read_library_file(source: str | bytes) -> LibraryFile:
     version, exported_at, exported_by = _read_header(document)
     file_athletes, file_setups, setup_owner = _read_athletes(document["athletes"])
     file_courses = _read_courses(document["courses"])
+    from pacing.store.library_teams import read_file_teams
+
     file_plans = _read_plans(document["plans"], {a.id for a in file_athletes}, setup_owner,
                              {c.id for c in file_courses})
     return LibraryFile(version, exported_at, exported_by, tuple(file_athletes),
-                       tuple(file_setups), tuple(file_courses), tuple(file_plans))
+                       tuple(file_setups), tuple(file_courses), tuple(file_plans),
+                       read_file_teams(document.get("teams", [])))
+

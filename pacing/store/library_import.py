@@ -31,7 +31,7 @@ from pacing.store.rows import (
     plural,
     setup_row,
 )
-from pacing.store.schema import athletes, courses, plans, setups
+from pacing.store.schema import athletes, courses, plans, setups, teams
 from pacing.store.statements import NameTaken, check_on_existing
 
 
@@ -51,6 +51,8 @@ class ImportSummary:
         Courses of the file whose GPX file and name were already stored, reused [-].
     plans : int
         New saved plans [-].
+    teams : int
+        New teams [-].
     """
 
     athletes: int
@@ -58,15 +60,17 @@ class ImportSummary:
     courses: int
     courses_already_stored: int
     plans: int
+    teams: int = 0
 
     def message(self) -> str:
         """One line for the user, e.g. "imported 1 athlete, 2 setups, 1 course and 3 saved
         plans"."""
         reused = (f" ({self.courses_already_stored} already in the library)"
                   if self.courses_already_stored else "")
-        return (f"imported {plural(self.athletes, 'athlete')}, {plural(self.setups, 'setup')}, "
+        text = (f"imported {plural(self.athletes, 'athlete')}, {plural(self.setups, 'setup')}, "
                 f"{plural(self.courses, 'course')}{reused} and "
                 f"{plural(self.plans, 'saved plan')}")
+        return text + (f", and {plural(self.teams, 'team')}" if self.teams else "")
 
 
 def _stamped(values: Mapping[str, Any], created_at: datetime.datetime,
@@ -220,7 +224,7 @@ def import_library(library: Library, source: str | bytes | LibraryFile, *,
     source : str or bytes or LibraryFile
         The file's text or bytes, or a file already read by read_library_file.
     on_existing : str
-        When an athlete, course or saved plan of the file has a name the library holds (a
+        When an athlete, course, saved plan or team of the file has a name the library holds (a
         course with the same GPX file and name is reused, not a clash): "refuse" the whole
         file (NameTaken, nothing written) or "keep-both" (the imported one is named
         "name (2)") [-].
@@ -253,6 +257,9 @@ def import_library(library: Library, source: str | bytes | LibraryFile, *,
                 "course_id": dict(zip((c.id for c in data.courses), course_ids, strict=True))}
         insert_many(connection, plans, _placed(
             _plan_rows(prepared, maps), _Names(connection, plans, "saved plan", on_existing)))
+        insert_many(connection, teams, _placed(
+            [_stamped(t.row, t.created_at, t.updated_at) for t in data.teams],
+            _Names(connection, teams, "team", on_existing)))
     return ImportSummary(athletes=len(data.athletes), setups=len(data.setups),
                          courses=len(data.courses) - reused, courses_already_stored=reused,
-                         plans=len(data.plans))
+                         plans=len(data.plans), teams=len(data.teams))

@@ -15,6 +15,7 @@ from dataclasses import dataclass
 from typing import Any
 
 from pacing.athlete import Athlete, Setup
+from pacing.team.riders import Team
 
 #: Keys of a plan result, as `compute(inputs)` returns it and as a saved plan keeps it.
 PLAN_RESULT_KEYS = ("strategy", "weather", "targets", "time_saved", "finish_time")
@@ -247,3 +248,38 @@ class PlanRecord:
             "time_saved": self.summary.time_saved,
             "finish_time": self.summary.finish_time,
         }
+
+
+@dataclass(frozen=True)
+class TeamRecord:
+    """A stored team (riders for team time trials and team pursuits).
+
+    Attributes
+    ----------
+    id : int
+        Library id.
+    name : str
+        The team's name.
+    team : pacing.team.riders.Team
+        The riders in starting order (SI values).
+    drafting : tuple of float or None
+        The team's drag reduction by place in the line, leader first [-]; None for the
+        default set.
+    counts_rider : int or None
+        The rider whose time counts; None for the race's default [-].
+    revision : int
+        Change counter: 1 when created, +1 on every change.
+    created_at : datetime.datetime
+        When it was stored (timezone-aware, UTC).
+    updated_at : datetime.datetime
+        When it was last changed (timezone-aware, UTC).
+    """
+
+    id: int
+    name: str
+    team: Team
+    drafting: tuple[float, ...] | None
+    counts_rider: int | None
+    revision: int
+    created_at: datetime.datetime
+    updated_at: datetime.datetime

@@ -85,5 +85,19 @@ plans = sa.Table(
     sa.Column("updated_at", sa.DateTime, nullable=False),
 )
 
+# added by migration 0003: teams of riders for team time trials and team pursuits
+teams = sa.Table(
+    "teams",
+    metadata,
+    sa.Column("id", sa.Integer, primary_key=True),
+    sa.Column("name", sa.String(200), nullable=False),
+    sa.Column("riders", sa.Text, nullable=False),
+    sa.Column("drafting", sa.Text, nullable=True),
+    sa.Column("counts_rider", sa.Integer, nullable=True),
+    sa.Column("revision", sa.Integer, nullable=False),
+    sa.Column("created_at", sa.DateTime, nullable=False),
+    sa.Column("updated_at", sa.DateTime, nullable=False),
+)
+
 #: Tables in an order that respects foreign keys (parents first).
-TABLES = (athletes, setups, courses, plans)
+TABLES = (athletes, setups, courses, plans, teams)

@@ -38,6 +38,7 @@ from pacing.physics.wind import wind_at_height, wind_components
 
 if TYPE_CHECKING:
     from pacing.course.geometry import Course
+    from pacing.weather.timeline import WeatherAt
 
 SEA_LEVEL_PRESSURE_RANGE = (85000.0, 110000.0)
 """Sea-level pressures accepted [Pa]. Recorded extremes lie near 87 and 108.4 kPa (common
@@ -55,6 +56,15 @@ ROUGHNESS_LENGTH_RANGE = (0.0001, 2.0)
 """Roughness lengths accepted [m]: from calm open water to the roughest Davenport-Wieringa class
 ("chaotic", z0 ≥ 2 m; Wieringa 1992)."""
 
+
+PRESSURE_KINDS = ("qnh", "mslp", "station")
+"""What Conditions.sea_level_pressure holds: "qnh" (reduced to sea level by the standard
+atmosphere, the altimeter setting; carried back by the ICAO ratio, as always), "mslp"
+(mean-sea-level pressure as weather services publish it, reduced with the actual temperature)
+or "station" (measured at the start's elevation)."""
+
+STATION_PRESSURE_RANGE = (45000.0, 110000.0)
+"""Station pressures accepted [Pa]: up to about 6000 m above sea level (ICAO: 47.2 kPa)."""
 
 NUMBER_FIELDS = ("temperature", "relative_humidity", "sea_level_pressure", "wind_speed",
                  "wind_from", "wind_height", "roughness_length", "rider_height")
@@ -85,6 +95,9 @@ class Conditions:
         grassland) [m].
     rider_height : float
         Height where the wind acts on the rider, about the middle of the body [m].
+    pressure_kind : str
+        What `sea_level_pressure` holds (PRESSURE_KINDS): "qnh" (default, as always),
+        "mslp" or "station" (then it is the pressure at the start's elevation) [-].
     """
 
     temperature: float = 20.0
@@ -95,6 +108,7 @@ class Conditions:
     wind_height: float = 10.0
     roughness_length: float = 0.03
     rider_height: float = 1.0
+    pressure_kind: str = "qnh"
 
     def __post_init__(self) -> None:
         self._check_numbers()
@@ -119,10 +133,14 @@ class Conditions:
         _require(0.0 <= self.relative_humidity <= 1.0,
                  f"relative humidity must be 0-100 %, got {100 * self.relative_humidity:g} % "
                  f"(fraction {self.relative_humidity:g})")
-        low, high = SEA_LEVEL_PRESSURE_RANGE
+        _require(self.pressure_kind in PRESSURE_KINDS,
+                 f"unknown pressure kind {self.pressure_kind!r}; choose one of "
+                 f"{', '.join(PRESSURE_KINDS)}")
+        station = self.pressure_kind == "station"
+        low, high = STATION_PRESSURE_RANGE if station else SEA_LEVEL_PRESSURE_RANGE
         _require(low <= self.sea_level_pressure <= high,
-                 f"sea-level pressure must be between {low:g} and {high:g} Pa "
-                 f"(1013 hPa = 101300 Pa), got {self.sea_level_pressure:g}")
+                 f"{'station' if station else 'sea-level'} pressure must be between {low:g} "
+                 f"and {high:g} Pa (1013 hPa = 101300 Pa), got {self.sea_level_pressure:g}")
 
     def _check_wind(self) -> None:
         _require(0.0 <= self.wind_speed <= WIND_SPEED_LIMIT,
@@ -245,10 +263,42 @@ def density_along(elevation: np.ndarray, start_elevation: float, conditions: Con
     ICAO (1993), Doc 7488/3; Picard et al. (2008), Metrologia 45:149-155.
     """
     model = AIR_DENSITY_MODELS.resolve(density_model)
-    pressure = standard_pressure(elevation, conditions.sea_level_pressure)
+    pressure = conditions_pressure(elevation, start_elevation, conditions)
     temperature = np.clip(temperature_at_elevation(elevation, conditions.temperature,
                                                    start_elevation), *TEMPERATURE_RANGE)
     return np.asarray(model(temperature, pressure, conditions.relative_humidity), dtype=float)
+
+
+def conditions_pressure(elevation: np.ndarray, start_elevation: float,
+                        conditions: Conditions) -> np.ndarray:
+    """Pressure at elevations from the Conditions' single pressure of its kind [Pa].
+
+    "qnh": the ICAO standard atmosphere scaled by the sea-level pressure (as always); "mslp"
+    and "station": the hypsometric equation with the day's temperature at the start
+    (`pressure_along`).
+
+    Parameters
+    ----------
+    elevation : numpy.ndarray
+        Elevations [m].
+    start_elevation : float
+        Where the temperature (and a station pressure) is given [m].
+    conditions : Conditions
+        The day's air.
+
+    Returns
+    -------
+    numpy.ndarray
+        Pressure at each elevation [Pa].
+    """
+    if conditions.pressure_kind == "qnh":
+        return np.asarray(standard_pressure(elevation, conditions.sea_level_pressure),
+                          dtype=float)
+    kind = "station" if conditions.pressure_kind == "station" else "sea-level"
+    return pressure_along(elevation, start_elevation,
+                          np.full(np.shape(elevation), conditions.sea_level_pressure), kind,
+                          np.full(np.shape(elevation), conditions.temperature),
+                          conditions.relative_humidity)
 
 
 def air_along_course(course: Course, conditions: Conditions,
@@ -336,3 +386,131 @@ def still_air(course: Course, density: float | None = None) -> CourseAir:
         values = np.full(pieces, float(density))
     zeros = np.zeros(pieces)
     return CourseAir(density=values, headwind=zeros, crosswind=zeros.copy())
+
+
+def pressure_along(elevation: np.ndarray, start_elevation: float, pressure: np.ndarray,
+                   kind: str, start_temperature: np.ndarray,
+                   relative_humidity: np.ndarray | float = 0.0) -> np.ndarray:
+    """Pressure at each piece's elevation from a weather table's pressure of its kind [Pa].
+
+    The one place where a weather table's pressure is carried to the course, with the day's
+    temperature (pacing.physics.atmosphere, hypsometric equation):
+
+    - "sea-level": mean-sea-level pressure as national weather services publish it (MSLP,
+      reduced with the actual temperature), `pressure_from_sea_level(kind="mslp")`;
+    - "station": measured at the start's elevation, `pressure_from_station`.
+
+    The single weather of Conditions keeps the ICAO ratio (the altimeter setting QNH), as it
+    always did.
+
+    Parameters
+    ----------
+    elevation : numpy.ndarray
+        Elevation of each piece [m].
+    start_elevation : float
+        Where the temperature (and a station pressure) is measured [m].
+    pressure : numpy.ndarray
+        The pressure at each piece's moment, of `kind` [Pa].
+    kind : str
+        "sea-level" or "station" (pacing.weather.timeline.TABLE_PRESSURE_KINDS) [-].
+    start_temperature : numpy.ndarray
+        Air temperature at the start's elevation at each piece's moment [°C].
+    relative_humidity : numpy.ndarray or float, optional
+        Relative humidity (for the virtual temperature) [-].
+
+    Returns
+    -------
+    numpy.ndarray
+        Pressure at each piece [Pa].
+
+    References
+    ----------
+    WMO (2018), WMO-No. 8, vol. I ch. 3 (reduction of pressure to sea level); ICAO (1993),
+    Doc 7488/3.
+    """
+    from pacing.physics.atmosphere import pressure_from_sea_level, pressure_from_station
+
+    if kind == "station":
+        return np.asarray(pressure_from_station(elevation, pressure, start_elevation,
+                                                start_temperature, relative_humidity),
+                          dtype=float)
+    return np.asarray(pressure_from_sea_level(elevation, pressure, start_temperature,
+                                              start_elevation, relative_humidity, kind="mslp"),
+                      dtype=float)
+
+
+def pressure_in_weather(course: Course, weather: WeatherAt, conditions: Conditions,
+                        pressure_kind: str = "sea-level") -> np.ndarray:
+    """Pressure on every piece in its weather: the table's, else the Conditions' sea-level
+    pressure by the ICAO ratio (as `air_along_course`) [Pa].
+
+    Parameters
+    ----------
+    course : pacing.course.geometry.Course
+        The course.
+    weather : pacing.weather.timeline.WeatherAt
+        The weather of each piece, length N-1.
+    conditions : Conditions
+        The fallback sea-level pressure.
+    pressure_kind : str, optional
+        What `weather.pressure` is: "sea-level" or "station" [-].
+
+    Returns
+    -------
+    numpy.ndarray
+        Pressure of each piece, length N-1 [Pa].
+    """
+    elevation = piece_elevation(course)
+    if weather.pressure is None:
+        return conditions_pressure(elevation, float(course.elevation[0]), conditions)
+    return pressure_along(elevation, float(course.elevation[0]), weather.pressure,
+                          pressure_kind, weather.temperature, weather.relative_humidity)
+
+
+def air_in_weather(course: Course, weather: WeatherAt, conditions: Conditions,
+                   pressure_kind: str = "sea-level",
+                   density_model: str = DEFAULT_AIR_DENSITY_MODEL) -> CourseAir:
+    """Air density and wind components on every piece, each in its own weather.
+
+    Like `air_along_course`, with the temperature, humidity, pressure and wind of each piece
+    from a weather table at the moment (and place) it is passed
+    (pacing.weather.timeline.weather_at). The temperature is given at the start's elevation
+    and follows the standard lapse rate elsewhere; a piece without a pressure takes the
+    Conditions' sea-level pressure; the wind height, roughness and rider height are the
+    Conditions'.
+
+    Parameters
+    ----------
+    course : pacing.course.geometry.Course
+        The course.
+    weather : pacing.weather.timeline.WeatherAt
+        The weather of each piece, arrays of length N-1.
+    conditions : Conditions
+        Wind height, roughness length, rider height and the fallback sea-level pressure.
+    pressure_kind : str, optional
+        What `weather.pressure` is: "sea-level" or "station" [-].
+    density_model : str, optional
+        A key of pacing.physics.air.AIR_DENSITY_MODELS [-].
+
+    Returns
+    -------
+    CourseAir
+        Density [kg/m³], headwind and crosswind [m/s], each of length N-1.
+
+    References
+    ----------
+    ICAO (1993), Doc 7488/3; Picard et al. (2008), Metrologia 45:149-155; Wieringa (1992).
+    """
+    model = AIR_DENSITY_MODELS.resolve(density_model)
+    elevation = piece_elevation(course)
+    start_elevation = float(course.elevation[0])
+    pressure = pressure_in_weather(course, weather, conditions, pressure_kind)
+    temperature = np.clip(temperature_at_elevation(elevation, weather.temperature,
+                                                   start_elevation), *TEMPERATURE_RANGE)
+    density = np.asarray(model(temperature, pressure, weather.relative_humidity), dtype=float)
+    at_rider = wind_at_height(weather.wind_speed, conditions.wind_height,
+                              conditions.rider_height, conditions.roughness_length)
+    headwind, crosswind = wind_components(np.asarray(course.heading, dtype=float),
+                                          weather.wind_from, at_rider)
+    return CourseAir(density=density, headwind=np.asarray(headwind, dtype=float),
+                     crosswind=np.asarray(crosswind, dtype=float))

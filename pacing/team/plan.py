@@ -1,0 +1,414 @@
+"""The team's plan: turn lengths, leader powers and last turns, fastest within every W′.
+
+Two plans are made and compared:
+
+- *Equal turns* (the simple schedule): every rider leads turns of one length, the line rides
+  one constant speed, nobody drops out; the speed is the highest at which every rider's W′
+  balance stays at or above the reserve and no leader passes his cap (bisection).
+- *Optimised*: per rider a turn length and a leader power, and for the riders allowed to drop
+  out (the weakest by critical power, as many as the counting rule lets go) the distance of
+  their last long turn; chosen by SLSQP (scipy.optimize.minimize, Kraft 1988) to finish
+  fastest subject to every rider's lowest W′ balance ≥ the reserve, starting from the equal
+  turns. The faster of the two is the plan (the optimiser never returns a slower plan than
+  the equal turns).
+
+References
+----------
+Kraft, D. (1988). A software package for sequential quadratic programming. DFVLR-FB 88-28.
+Skiba et al. (2015), Eur J Appl Physiol 115(4):703-713 (W′ balance).
+docs/team.md, "The plan".
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+import numpy as np
+from scipy.optimize import minimize
+
+from pacing.errors import InputError
+from pacing.notices import Notice, note, warning
+from pacing.team.race import TeamRace
+from pacing.team.ride import LeaderSpeeds, TeamRide, cut_cells, line_speeds, ride_at_speeds
+from pacing.team.riders import Team
+from pacing.team.turns import TurnChoice, build_turns
+
+ROAD_EQUAL_TURN = 400.0
+"""Length of the equal turns on the road [m] (about 30 s at 50 km/h; common practice)."""
+
+STARTERS = 2
+"""Riders tried as first leader besides the given one: those with the highest caps [-]."""
+
+SPEED_RANGE = (3.0, 30.0)
+"""Speeds searched for the equal-turns plan [m/s]."""
+
+LOWEST_POWER_SHARE = 0.6
+"""Lowest leader power the optimiser considers, as a share of the rider's CP [-]."""
+
+FEASIBLE = -1e-9
+"""Constraint value accepted as met [-] (SLSQP's answer is first pulled inside by
+`_within_reserve`)."""
+
+
+@dataclass(frozen=True)
+class PlanOptions:
+    """How the plan is searched.
+
+    Attributes
+    ----------
+    equal_turn_length : float or None
+        Turn length of the equal-turns plan; None for a lap on a velodrome, ROAD_EQUAL_TURN on
+        the road [m].
+    shortest_turn : float or None
+        Shortest turn the optimiser may give; None for a quarter lap or 100 m [m].
+    max_iterations : int
+        Most SLSQP iterations per search [-].
+    allow_drop_outs : bool
+        Let riders beyond the counting one do a last long turn and drop out [-].
+    choose_start : bool
+        Try the STARTERS riders with the highest caps as first leader (the line's order kept
+        around the rotation) and keep the order whose equal turns are fastest [-].
+    """
+
+    equal_turn_length: float | None = None
+    shortest_turn: float | None = None
+    max_iterations: int = 40
+    allow_drop_outs: bool = True
+    choose_start: bool = True
+
+
+@dataclass(frozen=True, eq=False)
+class TeamPlan:
+    """The plan and the equal-turns plan it is compared with.
+
+    Attributes
+    ----------
+    team : Team
+        The riders in the plan's starting order (its indices are the ride's) [-].
+    ride : TeamRide
+        The plan's ride [-].
+    choice : TurnChoice
+        Turn length [m], leader power [W] and drop distance [m] per rider.
+    equal_turns : TeamRide
+        The equal-turns plan's ride [-].
+    equal_turns_speed : float
+        Its constant speed [m/s].
+    optimised : bool
+        True when the optimiser's plan beat the equal turns [-].
+    notices : tuple of Notice
+        What the coach must hear [-].
+    """
+
+    team: Team
+    ride: TeamRide
+    choice: TurnChoice
+    equal_turns: TeamRide
+    equal_turns_speed: float
+    optimised: bool
+    notices: tuple[Notice, ...]
+
+    @property
+    def gain(self) -> float:
+        """Time the plan gains on the equal turns [s]."""
+        return self.equal_turns.finish_time - self.ride.finish_time
+
+
+def _margins(team: Team, race: TeamRace, ride: TeamRide) -> np.ndarray:
+    """Each rider's lowest W′ balance above the reserve, as a share of his W′ [-]."""
+    return (ride.lowest_balance - race.w_prime_reserve) / team.array("w_prime")
+
+
+def ride_choice(team: Team, race: TeamRace, choice: TurnChoice,
+                memo: LeaderSpeeds | None = None) -> TeamRide:
+    """The ride of a choice of turn lengths, leader powers and drop distances.
+
+    Parameters
+    ----------
+    team : Team
+        The riders in starting order [-].
+    race : TeamRace
+        The race [-].
+    choice : TurnChoice
+        Per rider: turn length [m], leader power [W], drop distance [m].
+    memo : LeaderSpeeds, optional
+        Line speeds solved before [-].
+
+    Returns
+    -------
+    TeamRide
+        Time, powers and W′ balances [s, W, J].
+    """
+    turns = build_turns(choice, race.distance, race.counts_rider)
+    cells = cut_cells(race, turns)
+    speed = line_speeds(team, race, turns, cells, choice.turn_power, memo)
+    return ride_at_speeds(team, race, turns, cells, speed)
+
+
+def ride_at_constant_speed(team: Team, race: TeamRace, turn_length: float,
+                           speed: float) -> TeamRide:
+    """Equal turns at one constant speed, nobody dropping out.
+
+    Parameters
+    ----------
+    team : Team
+        The riders [-].
+    race : TeamRace
+        The race [-].
+    turn_length : float
+        Every turn's length [m].
+    speed : float
+        The line's speed [m/s].
+
+    Returns
+    -------
+    TeamRide
+        Its time, powers and W′ balances [s, W, J].
+    """
+    riders = team.size
+    choice = TurnChoice(np.full(riders, turn_length), np.zeros(riders), np.full(riders, np.inf))
+    turns = build_turns(choice, race.distance, race.counts_rider)
+    cells = cut_cells(race, turns)
+    return ride_at_speeds(team, race, turns, cells, np.full(cells.length.size, float(speed)))
+
+
+def _leaders_within_caps(team: Team, ride: TeamRide) -> bool:
+    leader = ride.turns.leader[ride.cells.turn]
+    power = ride.power[leader, np.arange(leader.size)]
+    return bool(np.all(power <= team.power_caps[leader] + 1e-9))
+
+
+def equal_turns_plan(team: Team, race: TeamRace, turn_length: float,
+                     tolerance: float = 1e-3) -> tuple[TeamRide, float, bool]:
+    """The fastest constant speed with equal turns that every rider can hold.
+
+    Parameters
+    ----------
+    team : Team
+        The riders [-].
+    race : TeamRace
+        The race, with its W′ reserve [J].
+    turn_length : float
+        Every turn's length [m].
+    tolerance : float, optional
+        Width of the last speed bracket [m/s].
+
+    Returns
+    -------
+    tuple of (TeamRide, float, bool)
+        The ride, its speed [m/s], and whether it keeps every reserve (False: even the lowest
+        speed searched does not) [-].
+    """
+    def holds(speed: float) -> tuple[bool, TeamRide]:
+        ride = ride_at_constant_speed(team, race, turn_length, speed)
+        return bool(np.all(_margins(team, race, ride) >= 0)) and _leaders_within_caps(
+            team, ride), ride
+
+    low, high = SPEED_RANGE
+    ok, ride = holds(low)
+    if not ok:
+        return ride, low, False
+    best = ride
+    for _ in range(40):
+        middle = 0.5 * (low + high)
+        ok, ride = holds(middle)
+        if ok:
+            low, best = middle, ride
+        else:
+            high = middle
+        if high - low < tolerance:
+            break
+    return best, low, True
+
+
+def drop_out_riders(team: Team, race: TeamRace) -> np.ndarray:
+    """The riders allowed a last long turn: the weakest by CP, as many as can be spared [-].
+
+    Parameters
+    ----------
+    team : Team
+        The riders [-].
+    race : TeamRace
+        The counting rule [-].
+
+    Returns
+    -------
+    numpy.ndarray
+        Team indices, weakest first [-].
+    """
+    spare = max(team.size - race.counts_rider, 0)
+    order = np.argsort(team.array("critical_power"), kind="stable")
+    return np.sort(order[:spare])
+
+
+class _Search:
+    """The optimiser's view: x = (turn length / L₀, leader power / CP, drop share of distance)."""
+
+    def __init__(self, team: Team, race: TeamRace, base_length: float,
+                 droppers: np.ndarray, scale_time: float) -> None:
+        self.team, self.race, self.base_length = team, race, base_length
+        self.droppers, self.scale_time = droppers, scale_time
+        self.critical = team.array("critical_power")
+        self._cache: dict[bytes, TeamRide] = {}
+        self.memo = LeaderSpeeds(team, race)
+
+    def choice(self, x: np.ndarray) -> TurnChoice:
+        riders = self.team.size
+        drop = np.full(riders, np.inf)
+        drop[self.droppers] = x[2 * riders:] * self.race.distance
+        return TurnChoice(x[:riders] * self.base_length, x[riders:2 * riders] * self.critical,
+                          drop)
+
+    def ride(self, x: np.ndarray) -> TeamRide:
+        key = np.asarray(x, dtype=float).tobytes()
+        ride = self._cache.get(key)
+        if ride is None:
+            if len(self._cache) > 256:  # the finite differences of one step are enough
+                self._cache.clear()
+            ride = self._cache[key] = ride_choice(self.team, self.race, self.choice(x),
+                                                  self.memo)
+        return ride
+
+    def time(self, x: np.ndarray) -> float:
+        return self.ride(x).finish_time / self.scale_time
+
+    def margins(self, x: np.ndarray) -> np.ndarray:
+        return _margins(self.team, self.race, self.ride(x))
+
+
+def _search(search: _Search, start: np.ndarray, bounds: list[tuple[float, float]],
+            iterations: int) -> tuple[np.ndarray, TeamRide] | None:
+    """SLSQP from `start`; the best plan that keeps every reserve, or None."""
+    result = minimize(search.time, start, method="SLSQP", bounds=bounds,
+                      constraints=[{"type": "ineq", "fun": search.margins}],
+                      options={"maxiter": iterations, "ftol": 1e-7, "eps": 1e-4})
+    x = _within_reserve(search, np.clip(result.x, [b[0] for b in bounds],
+                                        [b[1] for b in bounds]), bounds)
+    if x is None:
+        return None
+    return x, search.ride(x)
+
+
+def _within_reserve(search: _Search, x: np.ndarray, bounds: list[tuple[float, float]]
+                    ) -> np.ndarray | None:
+    """x, its leader powers lowered by 0.1 % steps (at most 20) until every rider keeps his
+    reserve (SLSQP ends on the constraint, a rounding either side); None when that fails."""
+    riders = search.team.size
+    low = np.array([b[0] for b in bounds[riders:2 * riders]])
+    for _ in range(20):
+        if np.all(search.margins(x) >= FEASIBLE):
+            return x
+        x = x.copy()
+        x[riders:2 * riders] = np.maximum(x[riders:2 * riders] * 0.999, low)
+    return None
+
+
+def _bounds(team: Team, race: TeamRace, base: float, shortest: float,
+            droppers: int) -> list[tuple[float, float]]:
+    longest = max(race.distance / base, shortest / base + 1e-3)
+    caps = team.power_caps / team.array("critical_power")
+    length = [(shortest / base, longest)] * team.size
+    power = [(LOWEST_POWER_SHARE, float(cap)) for cap in caps]
+    return length + power + [(0.3, 1.0)] * droppers
+
+
+def _default_lengths(race: TeamRace, options: PlanOptions) -> tuple[float, float]:
+    """(equal turn length, shortest turn) [m]."""
+    lap = race.lap_length
+    base = options.equal_turn_length or (lap if lap is not None else ROAD_EQUAL_TURN)
+    shortest = options.shortest_turn or (0.25 * lap if lap is not None else 100.0)
+    return float(min(base, race.distance)), float(min(shortest, base))
+
+
+def plan_team(team: Team, race: TeamRace, options: PlanOptions | None = None) -> TeamPlan:
+    """The fastest plan of turns and powers within every rider's W′, and the equal turns.
+
+    Parameters
+    ----------
+    team : Team
+        The riders in starting order [-].
+    race : TeamRace
+        The race, its counting rule and W′ reserve [-].
+    options : PlanOptions, optional
+        How to search [-].
+
+    Returns
+    -------
+    TeamPlan
+        The plan (never slower than the equal turns), the equal turns and notices [-].
+    """
+    options = options or PlanOptions()
+    if race.counts_rider > team.size:
+        raise InputError(f"the counting rider ({race.counts_rider}) must be one of the "
+                         f"{team.size} riders")
+    smallest = float(team.array("w_prime").min())
+    if race.w_prime_reserve >= smallest:
+        raise InputError(f"the W′ reserve ({race.w_prime_reserve:g} J) must be below every "
+                         f"rider's W′ (the smallest is {smallest:g} J)")
+    base, shortest = _default_lengths(race, options)
+    if options.choose_start:
+        team = starting_order(team, race, base)
+    equal, speed, holds = equal_turns_plan(team, race, base)
+    notices: list[Notice] = []
+    if not holds:
+        notices.append(warning("team-reserve-unreachable", speed_mps=speed,
+                               reserve_j=race.w_prime_reserve))
+    leader = equal.turns.leader[equal.cells.turn]
+    lead_power = np.array([
+        np.average(equal.power[k, leader == k], weights=equal.duration[leader == k])
+        if np.any((leader == k) & (equal.duration > 0)) else team.riders[k].critical_power
+        for k in range(team.size)])
+    droppers = drop_out_riders(team, race) if options.allow_drop_outs else np.zeros(0, int)
+    best = _optimised(team, race, options, base, shortest, droppers, lead_power, equal)
+    if best is None or best[1].finish_time >= equal.finish_time:
+        choice = TurnChoice(np.full(team.size, base), lead_power, np.full(team.size, np.inf))
+        notices.append(note("team-equal-turns-kept", time_s=equal.finish_time))
+        return TeamPlan(team, equal, choice, equal, speed, False, tuple(notices))
+    choice, ride = best
+    return TeamPlan(team, ride, choice, equal, speed, True, tuple(notices))
+
+
+def starting_order(team: Team, race: TeamRace, turn_length: float) -> Team:
+    """The team's order around the rotation, started by the rider whose equal turns are
+    fastest among the given first rider and the STARTERS riders with the highest caps.
+
+    Drafting depends only on the place in the line, so the rotation's order matters through
+    who leads off (the standing start at his cap) and where the finish and the drop-outs
+    fall; the given order around the rotation is kept.
+
+    Parameters
+    ----------
+    team : Team
+        The riders in the given order [-].
+    race : TeamRace
+        The race [-].
+    turn_length : float
+        Turn length of the equal turns [m].
+
+    Returns
+    -------
+    Team
+        The riders from the chosen first leader on [-].
+    """
+    candidates = [0] + [int(i) for i in np.argsort(-team.power_caps, kind="stable")[:STARTERS]]
+    best, best_time = team, np.inf
+    for first in dict.fromkeys(candidates):
+        turned = Team(team.riders[first:] + team.riders[:first])
+        time = equal_turns_plan(turned, race, turn_length, tolerance=1e-2)[0].finish_time
+        if time < best_time - 1e-9:
+            best, best_time = turned, time
+    return best
+
+
+def _optimised(team: Team, race: TeamRace, options: PlanOptions, base: float, shortest: float,
+               droppers: np.ndarray, lead_power: np.ndarray, equal: TeamRide
+               ) -> tuple[TurnChoice, TeamRide] | None:
+    """SLSQP from the equal turns (their lengths and each leader's mean power; the riders who
+    may drop out start with a last turn that ends at the finish)."""
+    critical = team.array("critical_power")
+    caps = team.power_caps / critical
+    power_share = np.clip(lead_power / critical, LOWEST_POWER_SHARE, caps)
+    start = np.concatenate([np.ones(team.size), power_share, np.ones(droppers.size)])
+    search = _Search(team, race, base, droppers, equal.finish_time)
+    found = _search(search, start, _bounds(team, race, base, shortest, droppers.size),
+                    options.max_iterations)
+    return None if found is None else (search.choice(found[0]), found[1])

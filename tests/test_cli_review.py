@@ -1,0 +1,108 @@
+"""``pacing review ROUTE.gpx RIDE.csv …`` end to end (pacing.cli.review)."""
+
+from __future__ import annotations
+
+import json
+import math
+
+import pytest
+from test_review_synthetic import Day, race_csv, race_gpx, ride, route_gpx
+
+from pacing.cli import main
+
+PLAN = ["--power", "250", "--crr", "0.004", "--start-speed", "10"]
+
+
+@pytest.fixture(scope="module")
+def files(tmp_path_factory):
+    folder = tmp_path_factory.mktemp("review")
+    route = folder / "loop.gpx"
+    route.write_bytes(route_gpx())
+    samples = ride(Day(power=lambda x: 200.0 if 500.0 <= x < 1500.0 else 250.0,
+                       stops=((3000.0, 30.0),)))
+    race = folder / "race.csv"
+    race.write_bytes(race_csv(samples))
+    flat = folder / "race_no_positions.csv"
+    flat.write_bytes(race_csv(samples, positions=False))
+    (folder / "race.gpx").write_bytes(race_gpx(samples))
+    return route, race, flat
+
+
+def run_json(capsys, *args):
+    code = main(["review", *map(str, args), "--json"])
+    captured = capsys.readouterr()
+    assert code == 0, captured.err
+    return json.loads(captured.out)
+
+
+def test_json_has_the_keys_of_the_issue(capsys, files):
+    route, race, _ = files
+    result = run_json(capsys, route, race, *PLAN, "--bootstrap", "30")
+    assert {"planned_time_s", "actual_time_s", "segments", "attribution", "fitted",
+            "warnings"} <= set(result)
+    assert set(result["segments"][0]) >= {"start_m", "end_m", "planned_time_s",
+                                          "actual_time_s", "delta_s", "planned_power_w",
+                                          "actual_power_w"}
+    assert set(result["attribution"]) == {"power_s", "drag_s", "rolling_s", "wind_s",
+                                          "stops_s", "other_s"}
+    assert set(result["fitted"]) == {"cda_m2", "cda_ci95", "crr", "crr_ci95",
+                                     "wind_speed_mps", "wind_from_deg"}
+    assert math.fsum(result["attribution"].values()) == pytest.approx(
+        result["actual_time_s"] - result["planned_time_s"], abs=1e-9)
+    assert result["attribution"]["power_s"] > 25.0
+    assert result["attribution"]["stops_s"] > 30.0
+    assert all({"code", "level", "values", "text"} <= set(w) for w in result["warnings"])
+    assert "review-stops" in {w["code"] for w in result["warnings"]}
+
+
+def test_without_positions_the_ride_is_aligned_by_distance(capsys, files):
+    route, _, flat = files
+    result = run_json(capsys, route, flat, *PLAN, "--no-fit")
+    assert result["fitted"] is None
+    assert result["alignment"]["method"] == "distance"
+    assert result["attribution"]["drag_s"] == 0.0
+
+
+def test_a_gpx_race_file_gives_the_same_review(capsys, files):
+    route, race, _ = files
+    from_csv = run_json(capsys, route, race, *PLAN, "--no-fit")
+    from_gpx = run_json(capsys, route, race.with_suffix(".gpx"), *PLAN, "--no-fit")
+    assert from_gpx["actual_time_s"] == pytest.approx(from_csv["actual_time_s"], abs=0.05)
+    assert from_gpx["attribution"] == pytest.approx(from_csv["attribution"], abs=0.1)
+
+
+def test_the_table_and_the_csv_export(capsys, files, tmp_path):
+    route, race, _ = files
+    target = tmp_path / "review.csv"
+    assert main(["review", str(route), str(race), *PLAN, "--no-fit", "--csv",
+                 str(target)]) == 0
+    out = capsys.readouterr().out
+    assert "where the time went" in out and "Caution" in out
+    assert target.read_text(encoding="utf-8").count("\n") > 5
+
+
+def test_a_known_day_wind_is_used(capsys, files):
+    route, race, _ = files
+    result = run_json(capsys, route, race, *PLAN, "--no-fit", "--day-wind-speed", "3",
+                      "--day-wind-from", "90")
+    assert result["day_conditions"]["wind_speed_mps"] == 3.0
+    assert result["attribution"]["wind_s"] != 0.0
+
+
+@pytest.mark.parametrize(("flags", "message"), [
+    (["--day-wind-speed", "3"], "--day-wind-from"),
+    (["--bootstrap", "-1"], "--bootstrap"),
+    (["--sport", "running", "--flat-pace", "4:00"], "cycling"),
+])
+def test_bad_flags_exit_with_code_2_and_one_line(capsys, files, flags, message):
+    route, race, _ = files
+    code = main(["review", str(route), str(race), *PLAN, *flags])
+    err = capsys.readouterr().err
+    assert code == 2
+    assert message in err and len(err.strip().splitlines()) == 1
+
+
+def test_a_missing_ride_file_is_one_line(capsys, files, tmp_path):
+    route, _, _ = files
+    assert main(["review", str(route), str(tmp_path / "none.csv"), *PLAN]) == 2
+    assert len(capsys.readouterr().err.strip().splitlines()) == 1

@@ -1,0 +1,118 @@
+"""The team plan (pacing.team.plan): never slower than a steady floor or the equal turns,
+symmetric for a symmetric team, longer turns for a stronger rider, W′ kept above the reserve."""
+
+from __future__ import annotations
+
+import numpy as np
+import pytest
+from scipy.optimize import brentq
+
+from pacing.course.geometry import synthetic_course
+from pacing.team.plan import plan_team
+from pacing.team.race import race_on_road, race_on_track
+from pacing.team.riders import Team, TeamRider
+from pacing.team.schedule import rider_rows
+from pacing.weather.conditions import Conditions, air_along_course
+
+DRAFTING = (0.0, 0.30, 0.38, 0.40)
+
+
+def martin_power(speed, drag_area, mass, density=1.2, rolling=0.0032):
+    """Steady flat power of Martin et al. (1998) written out here (F_w 0.0044 m², bearings
+    0.091 + 0.0087·v N, η 0.976), independent of pacing.physics.cycling."""
+    force = (0.5 * density * (drag_area + 0.0044) * speed**2 + rolling * mass * 9.80665
+             + 0.091 + 0.0087 * speed)
+    return speed * force / 0.976
+
+
+def steady_floor_time(riders, distance, density=1.2):
+    """The independent steady model: constant speed, equal turns, every rider's mean power
+    over a rotation (one turn in each place) at most his CP (W′ unused): the fastest such
+    speed gives a time any plan that also spends W′ must beat or match."""
+    places = len(riders)
+
+    def slack(speed):
+        worst = np.inf
+        for rider in riders:
+            mean = np.mean([martin_power(speed, rider.drag_area * (1 - DRAFTING[p]),
+                                         rider.mass, density) for p in range(places)])
+            worst = min(worst, rider.critical_power - mean)
+        return worst
+
+    return distance / brentq(slack, 3.0, 30.0)
+
+
+def rider(name, cp=400.0, w_prime=20000.0, mass=80.0, cda=0.20):
+    return TeamRider(name, mass, cda, cp, w_prime)
+
+
+def track(counts=4, **rules):
+    rules.setdefault("standing_start", False)
+    return race_on_track(4000.0, 250.0, 1.2, counts_rider=counts, drafting=DRAFTING, **rules)
+
+
+@pytest.mark.parametrize("team", [
+    Team(tuple(rider(n) for n in "ABCD")),
+    Team((rider("A", 440.0), rider("B", 410.0, 18000.0), rider("C", 390.0, mass=75.0),
+          rider("D", 380.0, 24000.0, cda=0.21))),
+])
+def test_the_plan_beats_or_matches_the_independent_steady_floor(team):
+    plan = plan_team(team, track())
+    assert plan.ride.finish_time <= steady_floor_time(team.riders, 4000.0) + 1e-6
+
+
+def test_the_plan_is_never_slower_than_equal_turns_at_constant_speed():
+    team = Team((rider("A", 450.0), rider("B"), rider("C"), rider("D", 380.0)))
+    plan = plan_team(team, track(3, standing_start=True))
+    assert plan.ride.finish_time <= plan.equal_turns.finish_time
+    assert plan.gain > 1.0  # an uneven team gains from uneven turns
+
+
+def test_a_symmetric_team_gets_a_symmetric_plan():
+    team = Team(tuple(rider(n) for n in "ABCD"))
+    plan = plan_team(team, track())
+    powers = plan.choice.turn_power
+    assert powers.max() / powers.min() < 1.03
+    lead = np.array([row.lead_time_s for row in rider_rows(plan.team, plan.ride)])
+    assert lead.max() / lead.min() < 1.15
+    mean_power = np.array([row.mean_power_w for row in rider_rows(plan.team, plan.ride)])
+    assert mean_power.max() / mean_power.min() < 1.03
+
+
+def test_a_stronger_rider_gets_longer_turns():
+    team = Team((rider("B"), rider("S", 460.0), rider("C"), rider("D")))
+    plan = plan_team(team, track(standing_start=True))
+    rows = rider_rows(plan.team, plan.ride)
+    assert max(rows, key=lambda row: row.lead_time_s).name == "S"
+    assert plan.team.riders[int(np.argmax(plan.choice.turn_length))].name == "S"
+
+
+@pytest.mark.parametrize("reserve", [0.0, 3000.0])
+def test_every_w_prime_balance_stays_above_the_reserve_along_the_race(reserve):
+    team = Team((rider("A", 450.0), rider("B"), rider("C", 410.0), rider("D", 380.0)))
+    plan = plan_team(team, track(3, standing_start=True, w_prime_reserve=reserve))
+    ride = plan.ride
+    inside = ride.turns.position[ride.cells.turn].T >= 0
+    assert np.all(ride.balance[inside] >= reserve - 1e-6)
+    assert np.all(ride.start_balance >= reserve - 1e-6)
+    assert np.all(plan.equal_turns.lowest_balance >= reserve - 1e-6)
+
+
+def test_riders_beyond_the_counting_one_may_drop_out_after_a_last_turn():
+    team = Team((rider("A", 450.0), rider("B"), rider("C", 410.0), rider("D", 380.0)))
+    plan = plan_team(team, track(3, standing_start=True))
+    dropped = np.isfinite(plan.ride.turns.dropped_at)
+    assert dropped.sum() <= 1
+    assert plan.ride.turns.line_size.min() >= 3
+
+
+def test_a_road_plan_with_hills_and_wind_keeps_the_reserve_and_beats_equal_turns():
+    distance = np.arange(0.0, 10001.0, 10.0)
+    course = synthetic_course(distance, 15.0 * np.sin(distance / 1500.0), heading=90.0)
+    air = air_along_course(course, Conditions(wind_speed=4.0, wind_from=45.0))
+    team = Team(tuple(rider(f"R{i}", 380.0 + 15 * i, cda=0.24) for i in range(5)))
+    plan = plan_team(team, race_on_road(course, air, counts_rider=4))
+    assert plan.ride.finish_time <= plan.equal_turns.finish_time
+    assert np.all(plan.ride.lowest_balance >= -1e-6)
+    assert plan.ride.finish_time == pytest.approx(plan.ride.duration.sum()
+                                                  + plan.ride.start.duration)

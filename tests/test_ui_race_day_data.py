@@ -1,0 +1,167 @@
+"""The race-day panel's pure parts (ui/race_day_data.py) and its render (streamlit's AppTest)."""
+
+from __future__ import annotations
+
+import math
+from datetime import datetime
+
+import numpy as np
+import pytest
+
+from pacing.course.geometry import synthetic_course
+from pacing.course.segments import split_every
+from pacing.io.weather_file import race_day_from_inputs
+from pacing.physics.cycling import Rider
+from pacing.plan.best_start import best_start
+from pacing.plan.race import RaceRequest, plan_race
+from pacing.plan.request import PlanRequest
+from pacing.weather.conditions import Conditions
+from ui.race_day_data import (
+    COLUMN_NAMES,
+    WEATHER_COLUMNS,
+    best_start_clock,
+    best_start_points,
+    check_rows,
+    clean_rows,
+    environment_lines,
+    race_day_inputs,
+    rows_from_csv,
+    starter_rows,
+)
+
+ROWS = [
+    {"time": "2026-07-14T08:00+02:00", "temperature_c": 18, "relative_humidity_pct": 70,
+     "wind_speed_mps": 3, "wind_from_deg": 350},
+    {"time": "2026-07-14T12:00+02:00", "temperature_c": 31, "relative_humidity_pct": 35,
+     "wind_speed_mps": 6, "wind_from_deg": 180},
+]
+
+
+def request(inputs):
+    distance = np.arange(0.0, 10000.0 + 5.0, 10.0)
+    course = synthetic_course(distance, np.zeros_like(distance), heading=0.0)
+    return RaceRequest(course=course, bounds=split_every(course, 2500.0),
+                       conditions=Conditions(), rider=Rider(),
+                       cycling=PlanRequest(mean_power=220.0),
+                       race_day=race_day_from_inputs(inputs))
+
+
+def test_the_table_has_the_csv_columns_with_units_in_the_headers():
+    from pacing.io.weather_file import OPTIONAL_COLUMNS, REQUIRED_COLUMNS
+
+    assert set(COLUMN_NAMES) == {*REQUIRED_COLUMNS, *OPTIONAL_COLUMNS}
+    assert all("[" in label or name == "time" for name, label, _ in WEATHER_COLUMNS)
+
+
+def test_empty_cells_and_empty_rows_are_dropped():
+    edited = [{**ROWS[0], "latitude": math.nan, "extra": 1},
+              {name: None for name in COLUMN_NAMES}, {"time": "  "}]
+    assert clean_rows(edited) == [{**{n: None for n in COLUMN_NAMES}, **ROWS[0]}]
+
+
+def test_rows_that_do_not_read_give_one_line_naming_the_row():
+    bad = [ROWS[0], {**ROWS[1], "relative_humidity_pct": 140}]
+    problem = check_rows(clean_rows(bad), "2026-07-14T09:00")
+    assert problem is not None and "\n" not in problem and "row 2" in problem
+    backwards = [ROWS[1], ROWS[0]]
+    assert "row" in check_rows(clean_rows(backwards), None)
+    assert check_rows(clean_rows(ROWS), "2026-07-14T09:00") is None
+    assert check_rows([], None) is None
+
+
+def test_an_uploaded_csv_becomes_rows_of_the_table():
+    text = ("time,temperature_c,relative_humidity_pct,wind_speed_mps,wind_from_deg\n"
+            "2026-07-14T08:00+02:00,18,70,3,350\n2026-07-14T12:00+02:00,31,35,6,180\n")
+    rows = rows_from_csv(text.encode())
+    assert [row["temperature_c"] for row in rows] == [18.0, 31.0]
+    assert check_rows(clean_rows(rows), None) is None
+
+
+def test_the_inputs_make_the_request_race_day_and_a_plan_through_the_weather():
+    inputs = race_day_inputs(clean_rows(ROWS), "2026-07-14T09:00", heat_acclimatised=True,
+                             limits={"limits_temperature_c": 25.0, "limits_humidity_pct": None,
+                                     "limits_elevation_m": 0.0},
+                             spread={"wind_speed_mps": 1.0, "wind_from_deg": 0.0,
+                                     "temperature_c": 0.0, "samples": 20, "seed": 2})
+    day = race_day_from_inputs(inputs)
+    assert day.heat_acclimatised and day.limits_temperature == 25.0
+    assert day.limits_relative_humidity is None and day.spread.samples == 20
+    result = plan_race(request(inputs))
+    assert result.race_day.band is not None
+    lines = environment_lines(result.race_day, "metric")
+    assert lines[0].startswith("WBGT up to") and any("Forecast band" in s for s in lines)
+    assert any("25 °C" in s for s in lines)
+    # no spread at all: no band asked
+    assert race_day_inputs([], None, spread={"wind_speed_mps": 0.0})["spread"] is None
+
+
+def test_the_best_start_curve_and_its_best_point():
+    inputs = race_day_inputs(clean_rows(ROWS), "2026-07-14T08:00")
+    race = request(inputs)
+    best = best_start(race, race.race_day.start, race.race_day.start + 7200.0)
+    starts, finishes = best_start_points(best)
+    assert starts[0] == "08:00" and len(starts) == len(finishes) == len(best.grid)
+    assert best_start_clock(best) in starts and min(finishes) == best.finish_time
+
+
+def test_a_starter_table_reads():
+    rows = starter_rows(datetime(2026, 7, 14, 9, 0))
+    assert check_rows(clean_rows(rows), "2026-07-14T09:00") is None
+
+
+PANEL_SCRIPT = """
+import streamlit as st
+from ui.race_day_panel import render
+st.session_state["race_day_result"] = render(None, "metric")
+"""
+
+
+def test_the_panel_renders_and_returns_the_inputs():
+    testing = pytest.importorskip("streamlit.testing.v1")
+    app = testing.AppTest.from_string(PANEL_SCRIPT, default_timeout=30).run()
+    assert not app.exception
+    result = app.session_state["race_day_result"]
+    assert result["rows"] == [] and result["spread"] is None
+    app.toggle(key="race_day_table").set_value(True).run()
+    assert not app.exception
+    result = app.session_state["race_day_result"]
+    assert len(result["rows"]) >= 2 and result["start"].endswith("09:00")
+
+
+SUMMARY_SCRIPT = """
+import numpy as np
+import streamlit as st
+from pacing.course.geometry import synthetic_course
+from pacing.course.segments import split_every
+from pacing.physics.cycling import Rider
+from pacing.plan.race import RaceRequest, plan_race
+from pacing.plan.request import PlanRequest
+from pacing.weather.conditions import Conditions
+from ui.race_day_panel import show_environment
+
+distance = np.arange(0.0, 5005.0, 10.0)
+course = synthetic_course(distance, np.zeros_like(distance), heading=0.0)
+result = plan_race(RaceRequest(course=course, bounds=split_every(course, 1000.0),
+                               conditions=Conditions(temperature=33.0), rider=Rider(),
+                               cycling=PlanRequest(mean_power=200.0)))
+show_environment(result.race_day, result.notices, "metric")
+"""
+
+
+def test_the_summary_shows_the_heat_caution_and_the_cost():
+    testing = pytest.importorskip("streamlit.testing.v1")
+    app = testing.AppTest.from_string(SUMMARY_SCRIPT, default_timeout=60).run()
+    assert not app.exception
+    assert any("extreme" in w.value for w in app.warning)
+    assert any("heat costs about" in m.value for m in app.markdown)
+
+
+def test_the_best_start_figure_marks_the_best():
+    from ui.race_day_panel import best_start_figure
+
+    inputs = race_day_inputs(clean_rows(ROWS), "2026-07-14T08:00")
+    race = request(inputs)
+    best = best_start(race, race.race_day.start, race.race_day.start + 3600.0)
+    figure = best_start_figure(best)
+    assert list(figure.data[1].x) == [best_start_clock(best)]
+    assert figure.data[1].y[0] == pytest.approx(best.finish_time / 60.0)

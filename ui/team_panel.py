@@ -1,0 +1,289 @@
+"""The team part of the web app: a team time trial on the page's course or a team pursuit on a
+velodrome. The coach lists the riders (name, mass, CdA, CP, W′, cap), picks the race and the
+counting rider, the drafting set and the W′ reserve, and reads the turn schedule, each rider's
+W′ balance along the race, the gain over equal turns, and downloads the schedule (CSV, XLSX).
+
+The panel draws with the Streamlit module it is given (``render(st, …)``): app.py passes its
+``st``. This module imports no Streamlit itself, so it stays a pure UI module
+(tests/test_import_contracts.py) and its helpers are tested without a server.
+"""
+
+from __future__ import annotations
+
+from typing import Any
+
+import numpy as np
+import pandas as pd
+import plotly.graph_objects as go
+
+from pacing.display.notices import describe
+from pacing.display.units import to_display, unit_label
+from pacing.errors import InputError, first_line
+from pacing.team.drafting import DEFAULT_DRAFTING_SET, DRAFTING_SETS
+from pacing.team.plan import TeamPlan, plan_team
+from pacing.team.race import TeamRace, race_on_road, race_on_track
+from pacing.team.riders import Team, TeamRider
+from pacing.team.schedule import plan_notices, rider_rows, turn_rows
+
+RIDER_COLORS = ("#0f6e8c", "#b5542c", "#6a3d9a", "#5a6b2f", "#c28f1a", "#1b7f79", "#8c2d5a",
+                "#3d5a80")
+"""Line colours of the riders (the palette of the field-test panel)."""
+
+DEFAULT_RIDERS = pd.DataFrame({
+    "name": ["Rider 1", "Rider 2", "Rider 3", "Rider 4"],
+    "mass_kg": [80.0, 78.0, 76.0, 82.0],
+    "cda_m2": [0.21, 0.20, 0.20, 0.22],
+    "cp_w": [430.0, 420.0, 410.0, 425.0],
+    "w_prime_j": [24000.0, 22000.0, 23000.0, 21000.0],
+    "max_power_w": [830.0, 787.0, 793.0, 775.0],
+})
+"""The rider table the panel opens with (an invented team; each cap CP + W′/60 s, the
+default of pacing.team.riders, written out so no cell shows blank)."""
+
+CAUTION = ("Targets are model estimates. Keep the line safe at every change of lead, obey race "
+           "rules and the commissaires, and consult a physician before hard efforts.")
+
+
+def team_from_frame(frame: pd.DataFrame) -> Team:
+    """The team of the rider table (one row per rider, in starting order).
+
+    Parameters
+    ----------
+    frame : pandas.DataFrame
+        Columns name, mass_kg [kg], cda_m2 [m²], cp_w [W], w_prime_j [J], max_power_w [W]
+        (blank: the default cap) [-].
+
+    Returns
+    -------
+    pacing.team.riders.Team
+        The team [-].
+
+    Raises
+    ------
+    InputError
+        A row with a missing or wrong value (one line naming the row).
+    """
+    riders = []
+    for number, values in enumerate(frame.dropna(how="all").to_dict("records"), start=1):
+        try:
+            cap = values.get("max_power_w")
+            riders.append(TeamRider(
+                name=str(values["name"]), mass=float(values["mass_kg"]),
+                drag_area=float(values["cda_m2"]), critical_power=float(values["cp_w"]),
+                w_prime=float(values["w_prime_j"]),
+                max_power=None if cap is None or pd.isna(cap) else float(cap)))
+        except (TypeError, ValueError) as error:
+            raise InputError(f"rider row {number}: {first_line(error)}") from None
+    return Team(tuple(riders))
+
+
+def balance_figure(plan: TeamPlan, system: str) -> go.Figure:
+    """Each rider's W′ balance along the race [kJ against km or mi].
+
+    Parameters
+    ----------
+    plan : pacing.team.plan.TeamPlan
+        The plan [-].
+    system : str
+        "metric" or "imperial" [-].
+
+    Returns
+    -------
+    plotly.graph_objects.Figure
+        One line per rider, ending where a rider drops out [-].
+    """
+    ride, team = plan.ride, plan.team
+    end = ride.cells.start + ride.cells.length
+    figure = go.Figure()
+    for index, rider in enumerate(team.riders):
+        inside = ride.turns.position[ride.cells.turn, index] >= 0
+        figure.add_trace(go.Scatter(
+            x=to_display(end[inside], "distance", system), y=ride.balance[index, inside] / 1000,
+            mode="lines", name=rider.name,
+            line={"color": RIDER_COLORS[index % len(RIDER_COLORS)], "width": 2}))
+    figure.update_layout(xaxis_title=f"distance [{unit_label('distance', system)}]",
+                         yaxis_title="W′ balance [kJ]", height=320,
+                         margin={"l": 10, "r": 10, "t": 10, "b": 10})
+    return figure
+
+
+def shown_riders(table: pd.DataFrame) -> pd.DataFrame:
+    """The rider table for the page: the drop-out column as text, blank for riders who
+    finish (never "None" or NaN on the page).
+
+    Parameters
+    ----------
+    table : pandas.DataFrame
+        pacing.io.team_file.rider_table [display units].
+
+    Returns
+    -------
+    pandas.DataFrame
+        The same table, its last column as text [-].
+    """
+    shown = table.copy()
+    column = shown.columns[-1]
+    shown[column] = [("" if value is None or pd.isna(value) else f"{value:.3f}")
+                     for value in shown[column]]
+    return shown
+
+
+def summary_line(plan: TeamPlan, race: TeamRace) -> str:
+    """"Finish 4:01.3 (rider 3); equal turns 4:05.1; gain 3.8 s".
+
+    Parameters
+    ----------
+    plan : pacing.team.plan.TeamPlan
+        The plan [-].
+    race : pacing.team.race.TeamRace
+        The race (counting rider) [-].
+
+    Returns
+    -------
+    str
+        One line [-].
+    """
+    def clock(seconds: float) -> str:
+        minutes, rest = divmod(seconds, 60.0)
+        hours, minutes = divmod(int(minutes), 60)
+        head = f"{hours}:{minutes:02d}" if hours else f"{minutes}"
+        return f"{head}:{rest:04.1f}"
+
+    return (f"Finish {clock(plan.ride.finish_time)} (rider {race.counts_rider}); equal turns "
+            f"at constant speed {clock(plan.equal_turns.finish_time)}; gain {plan.gain:.1f} s")
+
+
+def race_from_inputs(choice: dict[str, Any], course: Any = None,
+                     conditions: Any = None) -> TeamRace:
+    """The race the panel's inputs describe.
+
+    Parameters
+    ----------
+    choice : dict
+        kind ("track" or "road"), distance_m [m], lap_m [m], counts_rider [-], drafting
+        (tuple [-]), reserve_j [J], standing_start (bool) [-].
+    course : pacing.course.geometry.Course or None
+        The page's course (road) [-].
+    conditions : pacing.weather.conditions.Conditions or None
+        The page's air (default Conditions()) [-].
+
+    Returns
+    -------
+    pacing.team.race.TeamRace
+        The race [-].
+    """
+
+    from pacing.weather.conditions import Conditions, air_along_course, density_along
+
+    conditions = conditions or Conditions()
+    rules = {"counts_rider": int(choice["counts_rider"]), "drafting": choice["drafting"],
+             "w_prime_reserve": float(choice["reserve_j"]),
+             "standing_start": bool(choice["standing_start"])}
+    if choice["kind"] == "track":
+        density = float(density_along(np.array([0.0]), 0.0, conditions)[0])
+        return race_on_track(float(choice["distance_m"]), float(choice["lap_m"]), density,
+                             **rules)
+    if course is None:
+        raise InputError("load a course first for a team time trial on the road")
+    return race_on_road(course, air_along_course(course, conditions), **rules)
+
+
+def _inputs(st: Any, system: str, has_course: bool) -> tuple[pd.DataFrame, dict[str, Any]]:
+    """The rider table and the race choices."""
+    st.caption("One row per rider, in starting order (the first leads off). Leave the cap "
+               "blank for CP + W′/60 s.")
+    frame = st.data_editor(DEFAULT_RIDERS, num_rows="dynamic", key="team_riders",
+                           hide_index=True)
+    columns = st.columns(3)
+    kinds = ["track", "road"] if has_course else ["track"]
+    kind = columns[0].radio("Race", kinds, key="team_kind", horizontal=True,
+                            format_func={"track": "team pursuit (velodrome)",
+                                         "road": "team time trial (this course)"}.get)
+    distance = columns[0].number_input("Track distance [m]", 500.0, 20000.0, 4000.0, 250.0,
+                                       key="team_distance", disabled=kind != "track")
+    lap = columns[0].number_input("Lap length [m]", 133.0, 500.0, 250.0, 1.0,
+                                  key="team_lap", disabled=kind != "track")
+    riders = max(int(frame.dropna(how="all").shape[0]), 1)
+    counts = columns[1].number_input("Rider whose time counts", 1, max(riders, 1),
+                                     min(3 if kind == "track" else riders, riders), 1,
+                                     key="team_counts")
+    reserve = columns[1].number_input("W′ reserve [kJ]", 0.0, 20.0, 0.0, 0.5,
+                                      key="team_reserve") * 1000.0
+    standing = columns[1].toggle("Standing start", value=True, key="team_standing")
+    key = columns[2].selectbox("Drafting by position", sorted(DRAFTING_SETS),
+                               index=sorted(DRAFTING_SETS).index(DEFAULT_DRAFTING_SET),
+                               key="team_drafting",
+                               help="published drag reductions by place in the line")
+    columns[2].caption(DRAFTING_SETS[key].conditions)
+    return frame, {"kind": kind, "distance_m": distance, "lap_m": lap, "counts_rider": counts,
+                   "drafting": DRAFTING_SETS[key].reductions, "reserve_j": reserve,
+                   "standing_start": standing}
+
+
+def _show(st: Any, race: TeamRace, plan: TeamPlan, system: str) -> None:
+    """The plan: summary, notices, schedule, riders, W′ chart, downloads, caution."""
+    from pacing.io.team_file import (
+        balance_table,
+        rider_table,
+        schedule_csv,
+        schedule_xlsx,
+        turn_table,
+    )
+
+    st.success(summary_line(plan, race))
+    team = plan.team
+    notices = plan_notices(plan)
+    for notice in notices:
+        (st.warning if notice.level == "warning" else st.caption)(describe(notice, system))
+    turns = turn_rows(team, plan.ride)
+    riders = rider_rows(team, plan.ride)
+    st.dataframe(turn_table(turns, system, race.lap_length), hide_index=True)
+    st.dataframe(shown_riders(rider_table(riders, system)), hide_index=True)
+    st.plotly_chart(balance_figure(plan, system), key="team_balance")
+    words = [describe(n, system) for n in notices]
+    cells = plan.ride.cells
+    balance = balance_table(cells.start + cells.length, plan.ride.balance,
+                            [r.name for r in team.riders], system)
+    left, right = st.columns(2)
+    left.download_button("Turn schedule (CSV)",
+                         schedule_csv(turns, words, system, race.lap_length),
+                         "team_schedule.csv", "text/csv", key="team_csv")
+    right.download_button("Turn schedule and W′ (XLSX)",
+                          schedule_xlsx(turns, riders, balance, words, system,
+                                        race.lap_length),
+                          "team_schedule.xlsx", key="team_xlsx",
+                          mime="application/vnd.openxmlformats-officedocument."
+                               "spreadsheetml.sheet")
+    st.caption(CAUTION)
+
+
+def render(st: Any, system: str, course: Any = None, weather: dict | None = None) -> None:
+    """Draw the team panel with the Streamlit module `st`.
+
+    Parameters
+    ----------
+    st : module
+        streamlit (app.py passes its own) [-].
+    system : str
+        "metric" or "imperial" [-].
+    course : pacing.course.geometry.Course or None
+        The page's course, for a team time trial on it [-].
+    weather : dict or None
+        The page's weather as Conditions fields in SI (ui.sections.weather_inputs) [-].
+    """
+    from pacing.weather.conditions import Conditions
+
+    st.subheader("Team time trial or team pursuit")
+    frame, choice = _inputs(st, system, course is not None)
+    if not st.button("Plan the team", key="team_plan", type="primary"):
+        return
+    try:
+        team = team_from_frame(frame)
+        conditions = Conditions(**weather) if weather else None
+        race = race_from_inputs(choice, course, conditions)
+        with st.spinner("Choosing turns and powers…"):
+            plan = plan_team(team, race)
+    except (InputError, ValueError) as error:
+        st.error(first_line(error), icon="⚠️")
+        return
+    _show(st, race, plan, system)
