@@ -329,6 +329,8 @@ with st.expander("Race day: weather through the race, heat, altitude, forecast b
     race_day = race_day_panel.render(course, system)
 if race_day is not None:
     weather = {**weather, "race_day": race_day}
+# a weather table that does not read (said in the panel) plans no race: not another day's
+race_day_unread = race_day is None and bool(st.session_state.get("race_day_table"))
 if map_slot is not None:
     with map_slot:
         st.plotly_chart(figures.drawable(cached_map(
@@ -348,7 +350,8 @@ if athlete is not None:
 st.header(text.SECTION_OUTCOME)
 outcome = None
 table = None
-if course is None or bounds is None or athlete is None or approach is None:
+if (course is None or bounds is None or athlete is None or approach is None
+        or race_day_unread):
     st.info("Fix the inputs above to see the predicted race.")
 else:
     inputs = (tuple(int(b) for b in bounds), plain_inputs(athlete), plain_inputs(weather),

@@ -1,6 +1,7 @@
 """Team plans (pacing.team): a 4-rider team pursuit (target < 2 s) and an 8-rider team time
 trial on the 40 km demo course with wind (target < 10 s), wall time of plan_team, best of
-`--repeat` runs, with the gain over equal turns. Prints; never asserts.
+`--repeat` runs, with the gain over equal turns and over one leader power per rider (the plan
+with PlanOptions(power_parts=1), timed once). Prints; never asserts.
 
 Run: .venv/bin/python bench/bench_team.py [--repeat 3]
 """
@@ -12,7 +13,7 @@ import os
 import time
 
 from pacing.io.gpx import demo_route_paths, load_course
-from pacing.team.plan import plan_team
+from pacing.team.plan import PlanOptions, plan_team
 from pacing.team.race import race_on_road, race_on_track
 from pacing.team.riders import Team, TeamRider
 from pacing.weather.conditions import Conditions, air_along_course
@@ -34,12 +35,12 @@ def road_case() -> tuple[Team, object]:
     return team, race_on_road(course, air, counts_rider=5)
 
 
-def best_of(case, repeat: int) -> tuple[float, object]:
+def best_of(case, repeat: int, options: PlanOptions | None = None) -> tuple[float, object]:
     team, race = case
     best, plan = float("inf"), None
     for _ in range(repeat):
         start = time.perf_counter()
-        plan = plan_team(team, race)
+        plan = plan_team(team, race, options)
         best = min(best, time.perf_counter() - start)
     return best, plan
 
@@ -56,6 +57,9 @@ def main() -> None:
         print(f"{name}: {seconds:.2f} s (target < {target:g} s, {verdict}); finish "
               f"{plan.ride.finish_time:.1f} s, equal turns {plan.equal_turns.finish_time:.1f} s, "
               f"gain {plan.gain:.1f} s, turns {plan.ride.turns.leader.size}")
+        one_seconds, one = best_of(case, 1, PlanOptions(power_parts=1))
+        print(f"  one power per rider: {one_seconds:.2f} s; finish {one.ride.finish_time:.1f} s "
+              f"(the power per part gains {one.ride.finish_time - plan.ride.finish_time:.1f} s)")
 
 
 if __name__ == "__main__":

@@ -80,8 +80,8 @@ def _empty_postgres(url: str) -> None:
     """Drop the library's tables on the test server, so every test starts from empty."""
     engine = sa.create_engine(url, poolclass=sa.pool.NullPool)
     with engine.begin() as connection:
-        connection.exec_driver_sql("DROP TABLE IF EXISTS plans, courses, setups, athletes, teams, "
-                                   "alembic_version CASCADE")
+        connection.exec_driver_sql("DROP TABLE IF EXISTS plan_reviews, plans, courses, setups, "
+                                   "athletes, teams, alembic_version CASCADE")
     engine.dispose()
 
 

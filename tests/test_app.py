@@ -802,3 +802,76 @@ def test_a_weather_table_plans_the_race_day_and_finds_the_best_start():
     app.run()
     no_failure(app)
     assert any(element.value.startswith("Best start **") for element in app.markdown)
+
+
+# ------------------------------------------- issue 16: a reopened plan keeps its race day
+
+def weather_csv(wind_speed: float, wind_from: float, temperature: float) -> bytes:
+    """A weather table for 1 July 2026, 06:00 to 16:00 every two hours (the CSV's columns,
+    pacing.io.weather_file)."""
+    lines = ["time,temperature_c,relative_humidity_pct,wind_speed_mps,wind_from_deg"]
+    for hour in range(6, 17, 2):
+        lines.append(f"2026-07-01T{hour:02d}:00,{temperature + (hour - 6) * 0.5:.1f},55,"
+                     f"{wind_speed:.1f},{wind_from:.0f}")
+    return ("\n".join(lines) + "\n").encode()
+
+
+def race_day_panel(app: AppTest) -> dict:
+    """What the race-day panel shows: start, table toggle, boxes, test conditions, spread."""
+    return {"date": app.date_input(key="race_day_date").value,
+            "time": app.time_input(key="race_day_time").value,
+            "table": app.toggle(key="race_day_table").value,
+            "heat": app.checkbox(key="race_day_heat").value,
+            "altitude": app.checkbox(key="race_day_altitude").value,
+            **{key: app.number_input(key=key).value for key in (
+                "race_day_test_temperature", "race_day_test_humidity",
+                "race_day_test_elevation", "race_day_sd_wind", "race_day_sd_direction",
+                "race_day_sd_temperature")}}
+
+
+def test_a_reopened_plan_brings_back_its_race_day(tmp_path, monkeypatch):
+    # "Show in the page" restored the athlete, weather and approach but not the race-day
+    # panel: the next run planned with the panel's current table, start and boxes instead
+    # of the saved race day (the silent wrong-data class of issue 18 item 1).
+    from datetime import date, time
+
+    monkeypatch.setenv("PACING_DATABASE_URL", str(tmp_path / "library.sqlite3"))
+    app = started()
+    app.date_input(key="race_day_date").set_value(date(2026, 7, 1))
+    app.time_input(key="race_day_time").set_value(time(10, 0))
+    app.toggle(key="race_day_table").set_value(True).run()
+    app.file_uploader(key="race_day_csv").set_value(
+        ("windy.csv", weather_csv(7.0, 250.0, 24.0), "text/csv"))
+    app.checkbox(key="race_day_heat").set_value(True)
+    app.number_input(key="race_day_test_temperature").set_value(15.0)
+    app.number_input(key="race_day_sd_direction").set_value(10.0)
+    app.run()
+    no_failure(app)
+    assert not app.error, [e.value for e in app.error]
+    saved, panel = metric(app, "Finish time"), race_day_panel(app)
+    open_library(app)
+    app.text_input(key="library_plan_name").input("windy July morning")
+    app.button(key="library_save").click().run()
+    assert any("Saved 'windy July morning'" in s.value for s in app.success)
+
+    # the same page, the panel changed: another table (calm and hot), other boxes and start
+    app.file_uploader(key="race_day_csv").set_value(
+        ("calm.csv", weather_csv(0.0, 0.0, 33.0), "text/csv"))
+    app.time_input(key="race_day_time").set_value(time(13, 0))
+    app.checkbox(key="race_day_heat").set_value(False)
+    app.checkbox(key="race_day_altitude").set_value(True)
+    app.number_input(key="race_day_test_temperature").set_value(None)
+    app.number_input(key="race_day_test_elevation").set_value(800.0)
+    app.number_input(key="race_day_sd_direction").set_value(0.0)
+    app.run()
+    no_failure(app)
+    assert metric(app, "Finish time") != saved
+
+    app.button(key="library_open").click().run()
+    no_failure(app)
+    assert not app.error, [e.value for e in app.error]
+    assert metric(app, "Finish time") == saved
+    assert race_day_panel(app) == panel
+    app.run()  # any rerun: the widgets send back what they hold, the saved race day
+    assert metric(app, "Finish time") == saved
+    assert race_day_panel(app) == panel

@@ -5,6 +5,7 @@ from __future__ import annotations
 
 import io
 import json
+import re
 import subprocess
 import sys
 
@@ -71,6 +72,39 @@ def test_show_each_kind(capsys, database, tmp_path):
     assert code == 0 and "610.0" in out and gpx_copy.read_bytes() == GPX
     code, out, _ = run(capsys, "library", "--database", database, "show", "plan", "1")
     assert code == 0 and "251.25" in out and '"course_id": 1' in out and "1:02:05" in out
+
+
+def test_a_setup_shows_where_its_cda_came_from(capsys, database):
+    from pacing.store.records import DragAreaOrigin
+
+    code, out, _ = run(capsys, "library", "--database", database, "show", "setup", "1")
+    assert code == 0 and "CdA from" in out and "interval" not in out
+    with open_library(database) as library:
+        record = library.setup(1)
+        library.update_setup(1, Setup(name="TT bike", drag_area=0.236), revision=record.revision,
+                             drag_area_origin=DragAreaOrigin(
+                                 0.228, 0.244, "race review of Hill TT.csv, 2026-12-05"))
+    code, out, _ = run(capsys, "library", "--database", database, "show", "setup", "1")
+    assert code == 0 and "0.2360" in out
+    assert re.search(r"CdA 95 % interval \[m²\] +0\.2280-0\.2440", out)
+    assert "race review of Hill TT.csv, 2026-12-05" in out
+
+
+def test_a_saved_plan_shows_its_race_reviews_and_each_one_shows_its_json(capsys, database):
+    review = {"planned_time_s": 3725.0, "actual_time_s": 3790.5, "segments": [],
+              "attribution": {"power_s": 65.5}, "fitted": {"cda_m2": 0.236}, "warnings": []}
+    code, out, _ = run(capsys, "library", "--database", database, "show", "plan", "1")
+    assert "race reviews (0)" in out
+    with open_library(database) as library:
+        library.add_plan_review(1, review, ride_name="Hill TT.csv", ride_sha256="ab" * 32)
+    code, out, _ = run(capsys, "library", "--database", database, "show", "plan", "1")
+    assert code == 0 and "race reviews (1)" in out
+    row = out.split("race reviews (1)\n")[1].splitlines()[1]
+    assert "Hill TT.csv" in row and "1:02:05" in row and "1:03:10" in row
+    assert "+65.5" in row and "0.2360" in row
+    code, out, _ = run(capsys, "library", "--database", database, "show", "review", "1")
+    assert code == 0 and "Race day" in out and "ab" * 32 in out
+    assert json.loads(out[out.index("\n{"):]) == review
 
 
 def test_saved_plans_show_the_version_of_pacing_that_made_them(capsys, database):

@@ -106,3 +106,57 @@ def test_a_missing_ride_file_is_one_line(capsys, files, tmp_path):
     route, _, _ = files
     assert main(["review", str(route), str(tmp_path / "none.csv"), *PLAN]) == 2
     assert len(capsys.readouterr().err.strip().splitlines()) == 1
+
+
+def test_the_review_is_kept_with_a_saved_plan_of_the_library(capsys, files, tmp_path):
+    import hashlib
+
+    from pacing.store.library import open_library
+
+    route, race, _ = files
+    database = tmp_path / "library.sqlite3"
+    with open_library(database) as library:
+        plan = library.save_plan("Loop TT", {"sport": "cycling"},
+                                 {"strategy": {}, "weather": {}, "targets": [],
+                                  "time_saved": None, "finish_time": 1000.0})
+    result = run_json(capsys, route, race, *PLAN, "--no-fit", "--save-to-plan", plan.id,
+                      "--database", database)
+    with open_library(database) as library:
+        (kept,) = library.plan_reviews(plan.id)
+    assert kept.review == json.loads(json.dumps(result))
+    assert kept.ride_name == "race.csv"
+    assert kept.ride_sha256 == hashlib.sha256(race.read_bytes()).hexdigest()  # FIPS 180-4
+
+
+def test_keeping_with_a_plan_that_is_not_there_exits_with_code_2(capsys, files, tmp_path):
+    route, race, _ = files
+    code = main(["review", str(route), str(race), *PLAN, "--no-fit", "--save-to-plan", "7",
+                 "--database", str(tmp_path / "library.sqlite3")])
+    err = capsys.readouterr().err
+    assert code == 2 and "no plan with id 7" in err and "Traceback" not in err
+
+
+def test_the_day_cda_is_kept_on_a_setup_with_its_interval(capsys, files, tmp_path):
+    from pacing.athlete import Athlete, Setup
+    from pacing.store.library import open_library
+
+    route, race, _ = files
+    database = tmp_path / "library.sqlite3"
+    with open_library(database) as library:
+        ann = library.add_athlete(Athlete(name="Ann", body_mass=72.0))
+        tt = library.add_setup(ann.id, Setup(name="TT bike", drag_area=0.25))
+    result = run_json(capsys, route, race, *PLAN, "--bootstrap", "30",
+                      "--keep-cda-on-setup", tt.id, "--database", database)
+    with open_library(database) as library:
+        stored = library.setup(tt.id)
+    fitted = result["fitted"]
+    assert stored.setup.drag_area == round(fitted["cda_m2"], 4)
+    origin = stored.drag_area_origin
+    assert origin.low_m2 <= fitted["cda_ci95"][0] and origin.high_m2 >= fitted["cda_ci95"][1]
+    assert origin.source.startswith("race review of race.csv, ")
+
+
+def test_keeping_the_cda_needs_the_fit(capsys, files):
+    route, race, _ = files
+    code = main(["review", str(route), str(race), *PLAN, "--no-fit", "--keep-cda-on-setup", "1"])
+    assert code == 2 and "drop --no-fit" in capsys.readouterr().err

@@ -63,6 +63,22 @@ def test_csv_and_xlsx_schedules_are_written(capsys, tmp_path):
                                                         "notes"}
 
 
+def test_the_printable_card_is_written_as_png_and_pdf(capsys, tmp_path):
+    from PIL import Image
+
+    from pacing.io.exports import CARD_DPI
+    from pacing.io.team_file import team_card_size
+
+    png, pdf = tmp_path / "card.png", tmp_path / "card.pdf"
+    code, out, err = run(capsys, *TRACK, *RIDERS, "--json", "--card-png", png, "--card-pdf", pdf)
+    assert code == 0, err
+    result = json.loads(out)
+    assert pdf.read_bytes().startswith(b"%PDF")
+    # one line per turn and one per notice (warnings and drop-out notes) above the caution
+    width, height = team_card_size(len(result["turns"]), len(result["notices"]))
+    assert Image.open(png).size == (round(width * CARD_DPI), round(height * CARD_DPI))
+
+
 def test_a_team_time_trial_on_a_gpx_course_with_wind(capsys, tmp_path):
     distance = np.arange(0.0, 8001.0, 10.0)
     course = synthetic_course(distance, 10.0 * np.sin(distance / 1000.0), heading=30.0)
@@ -88,8 +104,19 @@ def test_a_team_time_trial_on_a_gpx_course_with_wind(capsys, tmp_path):
     ([*TRACK, *RIDERS, "--wind-speed", "3", "--wind-from", "10"], "no wind"),
     ([*TRACK, *RIDERS, "--w-prime-reserve", "19000"], "reserve"),
     ([*TRACK, *RIDERS, "--counts-rider", "0"], "counts-rider"),
+    ([*TRACK, *RIDERS, "--power-parts", "0"], "power-parts"),
+    ([*TRACK, *RIDERS, "--power-parts", "9"], "power-parts"),
 ])
 def test_bad_input_is_refused_in_one_line_with_exit_code_2(capsys, argv, words):
     code, out, err = run(capsys, *argv)
     assert code == 2
     assert words in err and len(err.strip().splitlines()) == 1 and out == ""
+
+
+def test_one_power_per_rider_is_never_faster_than_a_power_per_part(capsys):
+    _, one, _ = run(capsys, *TRACK, *RIDERS, "--power-parts", "1", "--json")
+    _, four, _ = run(capsys, *TRACK, *RIDERS, "--power-parts", "4", "--json")
+    one, four = json.loads(one), json.loads(four)
+    assert four["finish_time_s"] <= one["finish_time_s"] + 1e-9
+    for result in (one, four):
+        assert all(r["min_w_prime_balance_j"] >= -1e-6 for r in result["riders"])

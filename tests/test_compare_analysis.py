@@ -212,3 +212,46 @@ def test_draws_too_many_for_the_course_are_refused_with_what_is_allowed():
     message = str(error.value)
     assert "\n" not in message
     assert f"at most {MAX_DRAWN_PIECES // 40_000} samples" in message
+
+
+# ------------------------------------------------------------- in the race day's air (issue 16)
+
+def test_every_number_of_a_comparison_is_in_the_race_day_s_air():
+    # The single conditions say 3 m/s from the east; the weather table says 6 m/s from the
+    # west all morning (20 °C, 50 %: the conditions' air otherwise). The sensitivities and
+    # the sampled spreads follow the table: a plain central difference written here on the
+    # simulated finish time in the table's air (built from the table's wind by
+    # air_along_course, not by the race day).
+    from dataclasses import replace
+
+    from pacing.plan.race_day import RaceDay
+    from pacing.plan.simulate import simulate
+    from pacing.weather.timeline import WeatherTable
+
+    table = WeatherTable(time=np.array([0.0, 7200.0]), temperature=np.full(2, 20.0),
+                         relative_humidity=np.full(2, 0.5), wind_speed=np.full(2, 6.0),
+                         wind_from=np.full(2, 270.0))
+    race = replace(HILL_RACE, race_day=RaceDay(start=0.0, weather=table))
+    result = analyse_setups(race, SETUPS[:2], baseline="hoods", uncertainty=Uncertainty(wind=1.0),
+                            samples=3, seed=4)
+    day = Conditions(wind_speed=6.0, wind_from=270.0)
+
+    def finish(setup_result, wind_speed=6.0, rider=None):
+        air = air_along_course(HILL, replace(day, wind_speed=wind_speed))
+        return simulate(HILL, setup_result.plan.piece_power,
+                        rider or setup_result.setup.rider, air, ROLLING).finish_time
+
+    for r in result.comparison.results:
+        sens = result.sensitivities[r.name]
+        assert sens.finish_time == pytest.approx(finish(r), rel=1e-9)
+        assert sens.wind == pytest.approx(0.5 * (finish(r, 7.0) - finish(r, 5.0)), rel=1e-6)
+        rider = r.setup.rider
+        assert sens.mass == pytest.approx(0.5 * (
+            finish(r, rider=replace(rider, mass=rider.mass + 1.0))
+            - finish(r, rider=replace(rider, mass=rider.mass - 1.0))), rel=1e-6)
+        assert sens.wind < 0.0 and sens.wind_direction == pytest.approx(270.0)
+        # the draws ride the same air: with every σ but the wind's at 0 the draw's wind
+        # error e (4th column, row by row) rides the table's wind 6 + e
+        errors = np.random.default_rng(4).standard_normal((3, 4))[:, 3] * 1.0
+        np.testing.assert_allclose(result.finish_time_spreads[r.name].samples,
+                                   [finish(r, 6.0 + e) for e in errors], rtol=1e-9)

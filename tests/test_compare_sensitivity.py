@@ -425,3 +425,104 @@ def test_a_drawn_wind_beyond_what_conditions_accept_is_refused():
     with pytest.raises(InputError, match="wind speed must be between 0 and 60"):
         sampled_finish_time(hill_course(), np.full(120, 250.0), Rider(),
                             Conditions(wind_speed=55.0), Uncertainty(wind=20.0), samples=50)
+
+
+# ------------------------------------------------------------- in the race day's air (issue 16)
+
+def air_of_wind(course, density, speed_10m, wind_from, conditions):
+    """The test's own air: a density and a wind at 10 m per piece (speed [m/s], from [deg])
+    reduced to the rider's height by the neutral log profile u(z) = u₁₀·ln(z/z₀)/ln(10/z₀)
+    (Stull 1988, An Introduction to Boundary Layer Meteorology, §9.7.5; from memory) and
+    split into the components against and across the heading (common practice)."""
+    from pacing.weather.conditions import CourseAir
+
+    pieces = np.asarray(course.heading).size
+    factor = (math.log(conditions.rider_height / conditions.roughness_length)
+              / math.log(conditions.wind_height / conditions.roughness_length))
+    at_rider = factor * np.broadcast_to(np.asarray(speed_10m, dtype=float), (pieces,))
+    angle = np.radians(np.asarray(wind_from, dtype=float) - np.asarray(course.heading))
+    return CourseAir(density=np.full(pieces, float(density)), headwind=at_rider * np.cos(angle),
+                     crosswind=at_rider * np.sin(angle))
+
+
+def finite_differences(course, power, rider, finish_in, options):
+    """Central differences on the simulated finish time: ±0.01 m² of CdA and, through
+    `finish_in(scale)`, the day's wind scaled."""
+    def finish(r=rider, air=None):
+        return simulate(course, power, r, air if air is not None else finish_in(1.0),
+                        options).finish_time
+
+    drag = 0.5 * (finish(replace(rider, drag_area=rider.drag_area + 0.01))
+                  - finish(replace(rider, drag_area=rider.drag_area - 0.01)))
+    return drag, finish
+
+
+def test_sensitivities_in_a_race_day_s_air_follow_its_wind_not_the_forecast():
+    # The forecast says 2 m/s from the east (a headwind going east); the race day's air has
+    # 6 m/s from the west (a tailwind) over a thinner 1.15 kg/m³. Every number follows the
+    # day's air: CdA and wind by a plain central difference written here.
+    course, options = hill_course(), SimulationOptions(start_speed=8.0)
+    conditions = Conditions(wind_speed=2.0, wind_from=90.0)
+    rider, power = Rider(mass=78.0, drag_area=0.28), np.full(120, 240.0)
+
+    def day(scale):
+        return air_of_wind(course, 1.15, 6.0 * scale, 270.0, conditions)
+
+    sens = sensitivity(course, power, rider, conditions, options, air=day(1.0))
+    drag, finish = finite_differences(course, power, rider, day, options)
+    assert sens.finish_time == pytest.approx(finish(), rel=1e-12)
+    assert sens.drag_area == pytest.approx(drag, rel=1e-9)
+    wind = 0.5 * (finish(air=day(7.0 / 6.0)) - finish(air=day(5.0 / 6.0)))
+    assert sens.wind == pytest.approx(wind, rel=1e-6)
+    assert sens.wind < 0.0  # more tailwind is faster (the forecast's headwind would say +)
+    assert sens.wind_direction == pytest.approx(270.0, abs=1e-9)
+    assert sensitivity(course, power, rider, conditions, options).wind > 0.0
+
+
+def test_a_changing_wind_is_scaled_in_proportion_keeping_each_piece_s_direction():
+    # A tailwind of 6 m/s (from the west) for the first 3 km, then a 2 m/s headwind (from
+    # the east): the day's mean wind is 4 m/s; +1 m/s scales every piece by 5/4, −1 by 3/4.
+    course, options = hill_course(), SimulationOptions(start_speed=8.0)
+    conditions = Conditions()
+    first = np.asarray(course.distance)[:-1] < 3000.0
+    speed, wind_from = np.where(first, 6.0, 2.0), np.where(first, 270.0, 90.0)
+    rider, power = Rider(mass=80.0, drag_area=0.30), np.full(120, 250.0)
+
+    def day(scale):
+        return air_of_wind(course, 1.2, speed * scale, wind_from, conditions)
+
+    sens = sensitivity(course, power, rider, conditions, options, air=day(1.0))
+    _, finish = finite_differences(course, power, rider, day, options)
+    assert sens.wind == pytest.approx(
+        0.5 * (finish(air=day(5.0 / 4.0)) - finish(air=day(3.0 / 4.0))), rel=1e-6)
+    assert sens.wind_direction == pytest.approx(270.0, abs=1e-9)  # mean wind: 2 m/s from W
+
+
+def test_draws_in_a_race_day_s_air_scale_its_wind():
+    # The Monte Carlo wind error e (σ 1.5 m/s, the 4th column, row by row) scales the day's
+    # wind by (w̄ + e)/w̄, cut at calm; each draw ridden alone in that air.
+    course, options = hill_course(), SimulationOptions(start_speed=8.0)
+    conditions = Conditions(wind_speed=2.0, wind_from=90.0)
+    rider, power = Rider(mass=80.0, drag_area=0.30), np.full(120, 250.0)
+    first = np.asarray(course.distance)[:-1] < 3000.0
+    speed, wind_from = np.where(first, 3.0, 1.0), np.where(first, 270.0, 180.0)
+
+    def day(scale):
+        return air_of_wind(course, 1.18, speed * scale, wind_from, conditions)
+
+    errors = np.random.default_rng(5).standard_normal((8, 4))[:, 3] * 1.5
+    expected = [simulate(course, power, rider, day(max(2.0 + e, 0.0) / 2.0),
+                         options).finish_time for e in errors]
+    times = sampled_finish_time(course, power, rider, conditions, Uncertainty(wind=1.5),
+                                samples=8, seed=5, options=options, air=day(1.0))
+    np.testing.assert_allclose(times, expected, rtol=1e-9)
+
+
+def test_a_race_day_air_with_the_forecast_s_wind_gives_the_forecast_s_numbers():
+    course, options = hill_course(), SimulationOptions(start_speed=8.0)
+    conditions = Conditions(wind_speed=3.0, wind_from=120.0)
+    rider, power = Rider(mass=80.0, drag_area=0.30), np.full(120, 250.0)
+    alone = sensitivity(course, power, rider, conditions, options)
+    shared = sensitivity(course, power, rider, conditions, options,
+                         air=air_along_course(course, conditions))
+    assert shared == alone

@@ -63,3 +63,77 @@ def test_xlsx_holds_turns_riders_balances_and_notes():
     assert sheets["W′ balance"]["'=cmd W′ [kJ]"].tolist() == [20.0, 10.0]
     assert sheets["riders"]["Drops out at [km]"].iloc[1] == 0.625
     assert TEAM_CAUTION in sheets["notes"]["notes"].tolist()
+
+
+# ------------------------------------------------------------------------ printable card
+
+def card_texts(figure) -> list[str]:
+    return [text.get_text() for text in figure.axes[0].texts]
+
+
+ORDERS = [["Ann", "=cmd"], ["=cmd", "Ann"]]
+
+
+def test_the_card_holds_every_turn_its_targets_and_the_line_behind():
+    from pacing.io.team_file import team_card_figure
+
+    texts = card_texts(team_card_figure(TURNS, ORDERS, 2, lap_length=250.0,
+                                        finish_time_s=45.04))
+    assert "finish 0:45.0 · time taken on the 2nd rider of 2 across the line" in texts
+    assert "start order: 1 Ann, 2 =cmd" in texts
+    # turn 1: 375 m = 1.5 laps of 250 m at 12.5 m/s, so 20.00 s a lap, 700 W, Ann then no. 2
+    assert {"1", "Ann", "1.5", "700", "20.00", "2"} <= set(texts)
+    assert {"2", "=cmd", "1.0", "600", "15.00", "1"} <= set(texts)
+
+
+def test_the_card_prints_the_caution_of_a_team_line_and_the_warnings():
+    from pacing.io.team_file import team_card_figure
+
+    texts = " ".join(card_texts(team_card_figure(
+        TURNS, ORDERS, 2, warnings=["W′ runs out"], notes=["Ann drops out"])))
+    flat = " ".join(texts.split())  # the caution is wrapped over lines
+    assert TEAM_CAUTION in flat
+    for words in ("keep the line safe at every change of lead", "commissaires",
+                  "model estimates", "physician"):
+        assert words in flat
+    assert "⚠ W′ runs out" in flat and "Ann drops out" in flat
+
+
+def test_a_road_card_gives_distances_and_time_per_kilometre_or_mile():
+    from pacing.io.team_file import team_card_figure
+
+    texts = card_texts(team_card_figure(TURNS, ORDERS, 2, "imperial"))
+    # 375 m = 0.23 mi; 1609.344 m at 12.5 m/s = 128.7 s = 2:09 per mile (international mile)
+    assert "0.00–0.23" in texts and "2:09" in texts and "per mi" in texts
+
+
+def test_the_card_renders_as_png_and_pdf_growing_with_its_turns():
+    from PIL import Image
+
+    from pacing.io.team_file import team_card_pdf, team_card_png, team_card_size
+
+    png = team_card_png(TURNS, ORDERS, 2, lap_length=250.0, dpi=50)
+    image = Image.open(io.BytesIO(png))
+    width, height = team_card_size(2)
+    assert image.size == (round(width * 50), round(height * 50))
+    grey = np.asarray(image.convert("L"))
+    assert (grey < 100).mean() > 0.01  # dark ink on a white card
+    assert team_card_pdf(TURNS, ORDERS, 2).startswith(b"%PDF")
+    assert team_card_size(61)[0] == pytest.approx(3 * team_card_size(5)[0])  # 30 a column
+
+
+def test_a_card_without_turns_or_with_orders_missing_is_refused():
+    from pacing.errors import InputError
+    from pacing.io.team_file import team_card_png
+
+    with pytest.raises(InputError, match="no turns"):
+        team_card_png([], [], 3)
+    with pytest.raises(InputError, match="line order per turn"):
+        team_card_png(TURNS, ORDERS[:1], 2)
+
+
+def test_line_orders_put_the_leader_first_and_leave_out_riders_who_dropped():
+    from pacing.io.team_file import line_orders
+
+    position = np.array([[0, 1, 2, 3], [3, 0, 1, 2], [2, -1, 0, 1]])
+    assert line_orders(list("ABCD"), position) == [list("ABCD"), list("BCDA"), list("CDA")]

@@ -19,6 +19,6 @@ from pacing.store.schema import metadata
 
 def test_migration_from_empty_gives_the_tables_the_code_uses(database):
     with open_library(database) as library:
-        assert schema_revision(library.engine) == head_revision() == "0003"
+        assert schema_revision(library.engine) == head_revision() == "0004"
         with library.engine.connect() as connection:
             assert compare_metadata(MigrationContext.configure(connection), metadata) == []

@@ -58,3 +58,35 @@ def test_plan_page_state_sets_the_approach_terrain_and_smoothing():
     from pacing.physics.wind import ROUGHNESS_LENGTHS
 
     assert ROUGHNESS_LENGTHS[state["terrain"]] == 0.03
+
+
+def test_plan_page_state_sets_the_race_day_panel():
+    # The page keeps the race-day panel's dict in the weather (weather["race_day"]); a
+    # reopened plan sets the panel from it (ui.race_day_data.panel_state), so the next run
+    # plans the saved race day, not the panel's current one.
+    from datetime import time
+
+    from ui.race_day_data import PANEL_KEYS, ROWS_TO_SHOW
+
+    rows = [{"time": "2026-07-14T08:00", "temperature_c": 18.0, "relative_humidity_pct": 70.0,
+             "wind_speed_mps": 3.0, "wind_from_deg": 350.0, "latitude": None},
+            {"time": "2026-07-14T12:00", "temperature_c": 31.0, "relative_humidity_pct": 35.0,
+             "wind_speed_mps": 6.0, "wind_from_deg": 180.0, "latitude": None}]
+    race_day = {"rows": rows, "start": "2026-07-14T09:05", "heat_acclimatised": False,
+                "altitude_acclimatised": True, "limits_temperature_c": None,
+                "limits_humidity_pct": 40.0, "limits_elevation_m": None,
+                "spread": {"wind_speed_mps": 0.5, "wind_from_deg": 20.0, "temperature_c": 0.0,
+                           "samples": 200, "seed": 0}}
+    state = library_page_state.plan_page_state(
+        {"weather": {"temperature": 25.0, "race_day": race_day}}, "metric")
+    assert state["si:temperature"] == 25.0
+    assert state[PANEL_KEYS["table"]] is True
+    assert [row["time"] for row in state[ROWS_TO_SHOW]] == [row["time"] for row in rows]
+    assert state[PANEL_KEYS["time"]] == time(9, 5)
+    assert state[PANEL_KEYS["altitude"]] is True and state[PANEL_KEYS["heat"]] is False
+    assert state[PANEL_KEYS["limits_humidity_pct"]] == 40.0
+    assert state[PANEL_KEYS["limits_temperature_c"]] is None
+    assert state[PANEL_KEYS["spread_wind_from_deg"]] == 20.0
+    # a plan saved without a race day: one weather all day, nothing acclimatised
+    plain = library_page_state.plan_page_state({"weather": {"temperature": 25.0}}, "metric")
+    assert plain[PANEL_KEYS["table"]] is False and ROWS_TO_SHOW not in plain

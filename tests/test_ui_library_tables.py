@@ -48,3 +48,34 @@ def test_the_plans_table_names_the_athlete_and_the_summary_the_pacing_in_words()
     running = library_tables.inputs_summary(
         {"athlete": {"sport": "running"}, "approach": {"strategy": "equal-effort"}}, "metric")
     assert running == ["pacing: Equal effort on every grade"]
+
+
+def test_a_setup_says_where_its_cda_came_from():
+    import types
+
+    from pacing.athlete import Setup
+    from pacing.store.records import DragAreaOrigin
+
+    typed = types.SimpleNamespace(setup=Setup(name="TT", drag_area=0.23), drag_area_origin=None)
+    assert library_tables.setup_origin_caption(typed) is None
+    measured = types.SimpleNamespace(
+        setup=Setup(name="TT", drag_area=0.236),
+        drag_area_origin=DragAreaOrigin(0.228, 0.244, "race review of a.csv, 2026-12-05"))
+    assert library_tables.setup_origin_caption(measured) == (
+        "CdA 0.2360 m², 95 % interval 0.2280-0.2440 m², from race review of a.csv, 2026-12-05")
+
+
+def test_the_reviews_kept_with_a_plan_as_a_table():
+    import datetime
+    import types
+
+    kept = types.SimpleNamespace(
+        ride_name="a.csv", created_at=datetime.datetime(2026, 12, 5, 9, 30,
+                                                        tzinfo=datetime.UTC),
+        review={"planned_time_s": 3725.0, "actual_time_s": 3790.4, "fitted": None})
+    frame = library_tables.reviews_frame([kept])
+    row = frame.iloc[0].to_dict()
+    assert row["Race file"] == "a.csv" and row["Kept"] == "2026-12-05 09:30 UTC"
+    assert row["Planned"] == "1:02:05" and row["Ridden"] == "1:03:10"
+    assert row["Ridden − planned [s]"] == 65.4 and row["CdA on the day [m²]"] is None
+    assert library_tables.reviews_frame([]).empty

@@ -165,3 +165,77 @@ def test_the_best_start_figure_marks_the_best():
     figure = best_start_figure(best)
     assert list(figure.data[1].x) == [best_start_clock(best)]
     assert figure.data[1].y[0] == pytest.approx(best.finish_time / 60.0)
+
+
+# ------------------------------------------------ a saved race day shown in the panel again
+
+SAVED = race_day_inputs(
+    clean_rows([{**ROWS[0], "sea_level_pressure_hpa": 1016.0},
+                {**ROWS[1], "sea_level_pressure_hpa": 1012.5}]), "2026-07-14T09:35",
+    heat_acclimatised=True, altitude_acclimatised=False,
+    limits={"limits_temperature_c": 14.0, "limits_humidity_pct": None,
+            "limits_elevation_m": 650.0},
+    spread={"wind_speed_mps": 1.5, "wind_from_deg": 0.0, "temperature_c": 2.0,
+            "samples": 200, "seed": 0})
+
+
+def test_the_panel_state_of_a_saved_race_day_gives_the_same_race_day_back():
+    # The state mapping inverts what the panel returns: the panel's values read back from
+    # the state (as the panel reads its widgets) make the saved race-day dict again.
+    from datetime import date, time
+
+    from ui.race_day_data import PANEL_KEYS, ROWS_TO_SHOW, SPREAD_FIELDS, panel_state
+
+    state = panel_state(SAVED)
+    assert state[PANEL_KEYS["date"]] == date(2026, 7, 14)
+    assert state[PANEL_KEYS["time"]] == time(9, 35)
+    assert state[PANEL_KEYS["table"]] is True
+    assert state[ROWS_TO_SHOW][0]["sea_level_pressure_hpa"] == 1016.0
+    assert "latitude" not in state[ROWS_TO_SHOW][0]  # empty cells stay empty
+    again = race_day_inputs(
+        clean_rows(state[ROWS_TO_SHOW]),
+        datetime.combine(state[PANEL_KEYS["date"]], state[PANEL_KEYS["time"]]).isoformat(
+            timespec="minutes"),
+        heat_acclimatised=state[PANEL_KEYS["heat"]],
+        altitude_acclimatised=state[PANEL_KEYS["altitude"]],
+        limits={name: state[PANEL_KEYS[name]] for name in (
+            "limits_temperature_c", "limits_humidity_pct", "limits_elevation_m")},
+        spread={**{name: state[PANEL_KEYS[f"spread_{name}"]] for name in SPREAD_FIELDS},
+                "samples": 200, "seed": 0})
+    assert again == SAVED
+
+
+def test_a_plan_without_a_race_day_sets_the_panel_to_one_weather_all_day():
+    from ui.race_day_data import PANEL_KEYS, ROWS_TO_SHOW, panel_state
+
+    state = panel_state(None)
+    assert state[PANEL_KEYS["table"]] is False and ROWS_TO_SHOW not in state
+    assert not state[PANEL_KEYS["heat"]] and not state[PANEL_KEYS["altitude"]]
+    assert state[PANEL_KEYS["limits_elevation_m"]] is None
+    assert state[PANEL_KEYS["spread_wind_speed_mps"]] == 0.0
+    assert PANEL_KEYS["date"] not in state  # the start is left as the page has it
+    without_table = panel_state({**SAVED, "rows": []})
+    assert without_table[PANEL_KEYS["table"]] is False and ROWS_TO_SHOW not in without_table
+
+
+def test_the_panel_drawn_from_a_saved_state_returns_the_saved_race_day():
+    # The real panel (AppTest): the state set before it is drawn, as the library does,
+    # gives back the saved race day; a table the user had edited is replaced.
+    testing = pytest.importorskip("streamlit.testing.v1")
+    from ui.race_day_data import panel_state
+
+    app = testing.AppTest.from_string(PANEL_SCRIPT, default_timeout=30)
+    app.session_state["race_day_table"] = True
+    app.session_state["race_day_rows"] = [dict(ROWS[1], time="2026-07-14T07:00+02:00"),
+                                          dict(ROWS[1])]
+    app.run()
+    assert not app.exception
+    assert app.session_state["race_day_result"]["rows"][0]["time"].startswith(
+        "2026-07-14T07:00")
+    for key, value in panel_state(SAVED).items():
+        app.session_state[key] = value
+    app.run()
+    assert not app.exception
+    assert app.session_state["race_day_result"] == SAVED
+    app.run()  # the widgets hold it
+    assert app.session_state["race_day_result"] == SAVED

@@ -1,21 +1,32 @@
-"""The team panel (ui/team_panel.py): the rider table, the race, the W′ chart, and the panel
-drawn in a Streamlit test run (AppTest)."""
+"""The team panel (ui/team_panel.py): the rider table, the race, the W′ chart, the card
+downloads, teams from and to the library (a temporary one: tests/store_fixtures.py), and the
+panel drawn in a Streamlit test run (AppTest)."""
 
 from __future__ import annotations
 
 import numpy as np
 import pandas as pd
 import pytest
+from store_fixtures import database_fixture, library_fixture  # noqa: F401
 
 from pacing.errors import InputError
 from pacing.io.team_file import rider_table
+from pacing.store.statements import NameTaken
+from pacing.team.drafting import DEFAULT_DRAFTING_SET, DRAFTING_SETS
 from pacing.team.plan import plan_team
+from pacing.team.riders import Team, TeamRider
 from pacing.team.schedule import RiderRow
 from ui.team_panel import (
+    ASKING,
     DEFAULT_RIDERS,
+    FILLED_RIDERS,
     balance_figure,
+    drafting_key,
+    fill_from_record,
+    frame_from_team,
     race_from_inputs,
     shown_riders,
+    store_team,
     summary_line,
     team_from_frame,
 )
@@ -83,3 +94,116 @@ def test_riders_who_finish_show_a_blank_not_none_or_nan():
     table = shown_riders(rider_table([RiderRow("A", 1.0, 2.0, 3.0, None),
                                       RiderRow("B", 1.0, 2.0, 3.0, 3750.0)]))
     assert table.iloc[:, -1].tolist() == ["", "3.750"]
+
+
+def test_the_panel_offers_the_printable_card_after_planning():
+    from streamlit.testing.v1 import AppTest
+
+    def page():
+        import streamlit as st
+
+        from ui.team_panel import render
+
+        render(st, "metric")
+
+    app = AppTest.from_function(page, default_timeout=60)
+    app.run()
+    app.button(key="team_plan").click().run()
+    assert not app.exception
+    labels = [element.proto.label for element in app.get("download_button")]
+    assert "Printable card (PNG)" in labels and "Printable card (PDF)" in labels
+
+
+# ------------------------------------------------------------------------ the library
+
+STORED = Team((TeamRider("Ann", 72.0, 0.19, 380.0, 22000.0),
+               TeamRider("Bea", 70.0, 0.18, 360.0, 20000.0, max_power=700.0),
+               TeamRider("Cat", 68.0, 0.18, 350.0, 21000.0, rolling_coefficient=0.004)))
+
+
+def test_a_team_and_its_rider_table_make_each_other():
+    frame = frame_from_team(STORED)
+    assert frame["name"].tolist() == ["Ann", "Bea", "Cat"]
+    assert np.isnan(frame["max_power_w"].iloc[0])  # the default cap shows blank
+    assert frame["crr"].tolist()[2] == 0.004  # a Crr of its own gets the column
+    assert team_from_frame(frame) == STORED
+    plain = Team(STORED.riders[:2])
+    assert "crr" not in frame_from_team(plain).columns
+    assert team_from_frame(frame_from_team(plain)) == plain
+
+
+def test_the_drafting_set_is_found_by_its_values():
+    assert drafting_key(DRAFTING_SETS[DEFAULT_DRAFTING_SET].reductions) == DEFAULT_DRAFTING_SET
+    assert drafting_key((0.0, 0.123)) is None and drafting_key(None) is None
+
+
+def test_the_rider_table_is_stored_and_a_taken_name_is_refused_until_the_coach_says(library):
+    choice = {**CHOICE, "drafting": DRAFTING_SETS[DEFAULT_DRAFTING_SET].reductions}
+    stored = store_team(library, "Squad", DEFAULT_RIDERS, choice)
+    assert stored.team == team_from_frame(DEFAULT_RIDERS) and stored.counts_rider == 3
+    with pytest.raises(NameTaken):
+        store_team(library, "Squad", frame_from_team(STORED), choice)
+    assert library.team(stored.id).team.size == 4  # nothing replaced
+    replaced = store_team(library, "Squad", frame_from_team(STORED), choice, "replace")
+    assert replaced.id == stored.id and replaced.revision == 2 and replaced.team == STORED
+    both = store_team(library, "Squad", DEFAULT_RIDERS, choice, "keep-both")
+    assert both.name == "Squad (2)" and len(library.teams()) == 2
+
+
+def test_a_stored_team_fills_the_rider_table_its_counting_rider_and_drafting(library):
+    record = library.add_team("Trio", STORED, counts_rider=2,
+                              drafting=DRAFTING_SETS[DEFAULT_DRAFTING_SET].reductions)
+    state = {"team_riders": {"edited_rows": {0: {"name": "old"}}}}
+    fill_from_record(state, record)
+    assert "team_riders" not in state  # the old table's edits are dropped
+    assert team_from_frame(state[FILLED_RIDERS]) == STORED
+    assert state["team_counts"] == 2 and state["team_drafting"] == DEFAULT_DRAFTING_SET
+
+
+def library_page(location):
+    import streamlit as st
+
+    from ui.team_panel import render
+
+    render(st, "metric", library_location=location)
+
+
+def test_the_panel_stores_the_table_and_asks_before_replacing_a_name(tmp_path):
+    from streamlit.testing.v1 import AppTest
+
+    from pacing.store.library import open_library
+
+    database = str(tmp_path / "library.sqlite3")
+    app = AppTest.from_function(library_page, args=(database,), default_timeout=60)
+    app.run()
+    app.toggle(key="team_library").set_value(True).run()
+    app.text_input(key="team_library_name").input("Squad").run()
+    app.button(key="team_library_store").click().run()
+    assert not app.exception and any("Stored the team 'Squad'" in s.value for s in app.success)
+    app.button(key="team_library_store").click().run()
+    assert ASKING in app.session_state and any("already in the library" in w.value
+                                               for w in app.warning)
+    app.button(key="team_library_replace").click().run()
+    assert not app.exception and ASKING not in app.session_state
+    with open_library(database) as library:
+        teams = library.teams()
+    assert [(t.name, t.revision) for t in teams] == [("Squad", 2)]
+
+
+def test_the_panel_fills_the_rider_table_from_a_stored_team(tmp_path):
+    from streamlit.testing.v1 import AppTest
+
+    from pacing.store.library import open_library
+
+    database = str(tmp_path / "library.sqlite3")
+    with open_library(database) as library:
+        library.add_team("Trio", STORED)
+    app = AppTest.from_function(library_page, args=(database,), default_timeout=60)
+    app.run()
+    app.toggle(key="team_library").set_value(True).run()
+    app.button(key="team_library_fill").click().run()
+    assert not app.exception
+    shown = app.dataframe[0].value  # the rider editor
+    assert shown["name"].tolist() == ["Ann", "Bea", "Cat"]
+    app.button(key="team_plan").click().run()
+    assert not app.exception and any("Finish" in s.value for s in app.success)

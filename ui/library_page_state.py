@@ -1,6 +1,6 @@
 """Showing a saved plan in the page (pure; ui.library_panel.open_plan_in_page applies it):
 the widget states of the page's inputs that give back the plan's sport, approach and its
-limits, numbers, smoothing, terrain and segment choice. No Streamlit here.
+limits, numbers, smoothing, terrain, segment choice and race day. No Streamlit here.
 """
 
 from __future__ import annotations
@@ -137,11 +137,19 @@ def _split_states(inputs: Mapping[str, Any], system: str, course) -> dict:
     return state
 
 
+def _race_day_states(weather: Mapping[str, Any]) -> dict:
+    """The race-day panel's states (ui.race_day_data.panel_state) of the saved race day."""
+    from ui.race_day_data import panel_state
+
+    return panel_state(weather.get("race_day"))
+
+
 def plan_page_state(inputs: Mapping[str, Any], system: str, course=None) -> dict:
     """The page's widget states that show a saved plan (pure; `open_plan_in_page` applies
-    them): sport, plan radio and its limits, smoothing, "file without heights", terrain and
-    the segment choice. Numbers under ui.widgets stores are returned as "si:<key>" entries
-    (SI or the stored factor, see PAGE_WIDGETS).
+    them): sport, plan radio and its limits, smoothing, "file without heights", terrain,
+    the segment choice and the race-day panel (start, weather table, acclimatisation, test
+    conditions, forecast spread: ui.race_day_data.panel_state). Numbers under ui.widgets
+    stores are returned as "si:<key>" entries (SI or the stored factor, see PAGE_WIDGETS).
 
     Parameters
     ----------
@@ -163,5 +171,6 @@ def plan_page_state(inputs: Mapping[str, Any], system: str, course=None) -> dict
             **_approach_states(athlete, inputs.get("approach") or {}),
             **_preset_states(athlete),
             **_terrain_state(inputs.get("weather") or {}),
-            **_split_states(inputs, system, course)}
+            **_split_states(inputs, system, course),
+            **_race_day_states(inputs.get("weather") or {})}
 

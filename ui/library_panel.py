@@ -77,7 +77,8 @@ def fill_page_inputs(values: Mapping[str, Any]) -> None:
     set_inputs(numbers, choices)
 
 
-def open_plan_in_page(library, inputs: Mapping[str, Any], plan_name: str = "") -> None:
+def open_plan_in_page(library, inputs: Mapping[str, Any], plan_name: str = "",
+                      plan_id: int | None = None) -> None:
     """Show a saved plan in the page (a button's on_click, run before the page is drawn
     again): its stored course file (LIBRARY_COURSE), then every input plan_page_state gives.
     A plan that cannot be shown leaves the page as it was and says why.
@@ -90,6 +91,8 @@ def open_plan_in_page(library, inputs: Mapping[str, Any], plan_name: str = "") -
         The saved plan's inputs (library_data.page_plan_inputs, SI).
     plan_name : str
         The saved plan's name, for the page's message.
+    plan_id : int or None
+        The saved plan's id, kept with its course (the review panel keeps reviews with it).
     """
     try:
         course = None
@@ -113,7 +116,7 @@ def open_plan_in_page(library, inputs: Mapping[str, Any], plan_name: str = "") -
     if gpx is not None:
         st.session_state[LIBRARY_COURSE] = {"gpx": bytes(gpx),
                                             "name": inputs.get("course_name") or "course",
-                                            "plan": plan_name}
+                                            "plan": plan_name, "plan_id": plan_id}
     from ui.widgets import set_inputs
 
     set_inputs({key[3:]: value for key, value in state.items() if key.startswith("si:")},
@@ -311,6 +314,11 @@ def _choose_athlete(library, athletes) -> tuple[Any, dict | None]:
     setup_label = st.selectbox("Setup", list(setup_labels), key="library_setup")
     setup_record = setup_labels[setup_label]
     st.session_state["library:setup_id"] = None if setup_record is None else setup_record.id
+    from ui.library_tables import setup_origin_caption
+
+    origin = None if setup_record is None else setup_origin_caption(setup_record)
+    if origin:
+        st.caption(origin)
     st.session_state["library:filed_under"] = (
         record.athlete.name if setup_record is None
         else f"{record.athlete.name}, setup {setup_record.setup.name}")
@@ -432,14 +440,14 @@ def _plans_tab(library, system: str, compute) -> dict | None:
     except (InputError, ConflictError) as error:
         st.error(error_message(error), icon="⚠️")
         return None
-    _plan_details(record, system)
+    _plan_details(library, record, system)
     result = None
     cols = st.columns(2)
     if cols[0].button("Work it out again", key="library_reproduce",
                       help="recompute the plan from its inputs and compare the numbers"):
         _work_out_again(record, compute)
     if cols[1].button("Show in the page", key="library_open", on_click=open_plan_in_page,
-                      args=(library, record.inputs, record.name),
+                      args=(library, record.inputs, record.name, record.id),
                       help="the page takes the plan's stored course, segments, athlete, "
                            "equipment, weather and pacing approach"):
         result = {"action": "open", "plan_id": record.id, "plan": record,
@@ -448,14 +456,20 @@ def _plans_tab(library, system: str, compute) -> dict | None:
     return result
 
 
-def _plan_details(record, system: str) -> None:
-    """A saved plan's main inputs, notes, the version of pacing that made it and its target
-    table."""
+def _plan_details(library, record, system: str) -> None:
+    """A saved plan's main inputs, notes, the version of pacing that made it, the race
+    reviews kept with it and its target table."""
     for line in inputs_summary(record.inputs, system):
         st.caption(line)
     if record.summary.notes:
         st.caption(f"notes: {record.summary.notes}")
     st.caption(version_caption(record.summary))
+    from ui.library_tables import reviews_frame
+
+    reviews = library.plan_reviews(record.id)
+    if reviews:
+        st.markdown(f"**Race reviews kept with this plan** ({len(reviews)})")
+        st.dataframe(reviews_frame(reviews), hide_index=True, key="library_plan_reviews")
     try:
         st.dataframe(targets_frame(record.targets, system), hide_index=True,
                      key="library_plan_targets")

@@ -149,3 +149,48 @@ def inputs_summary(inputs: Mapping[str, Any], system: str) -> list[str]:
         lines.append(f"pacing: {strategy_label(approach['strategy'], athlete.get('sport'))}"
                      + (f", average {power:.0f} W" if power else ""))
     return [line for line in lines if "nan" not in line]
+
+
+def setup_origin_caption(record) -> str | None:
+    """Where a stored setup's CdA came from, one line; None when it was typed in.
+
+    Parameters
+    ----------
+    record : pacing.store.records.SetupRecord
+
+    Returns
+    -------
+    str or None
+        E.g. "CdA 0.2360 m², 95 % interval 0.2280-0.2440 m², from race review of a.csv, …".
+    """
+    origin = record.drag_area_origin
+    if origin is None:
+        return None
+    return (f"CdA {record.setup.drag_area:.4f} m², 95 % interval {origin.low_m2:.4f}-"
+            f"{origin.high_m2:.4f} m², from {origin.source}")
+
+
+def reviews_frame(reviews) -> pd.DataFrame:
+    """The race reviews kept with a saved plan, one row each (times as H:MM:SS).
+
+    Parameters
+    ----------
+    reviews : sequence of pacing.store.records.PlanReviewRecord
+
+    Returns
+    -------
+    pandas.DataFrame
+        Columns "Race file", "Kept", "Planned", "Ridden", "Ridden − planned [s]",
+        "CdA on the day [m²]" (None without a fit).
+    """
+    rows = []
+    for record in reviews:
+        review = record.review
+        fitted = review.get("fitted") or {}
+        planned, ridden = review["planned_time_s"], review["actual_time_s"]
+        rows.append({"Race file": record.ride_name, "Kept": _stamp(record.created_at),
+                     "Planned": format_duration(planned), "Ridden": format_duration(ridden),
+                     "Ridden − planned [s]": round(ridden - planned, 1),
+                     "CdA on the day [m²]": fitted.get("cda_m2")})
+    return pd.DataFrame(rows, columns=["Race file", "Kept", "Planned", "Ridden",
+                                       "Ridden − planned [s]", "CdA on the day [m²]"])

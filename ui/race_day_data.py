@@ -34,6 +34,27 @@ COLUMN_NAMES = tuple(name for name, _, _ in WEATHER_COLUMNS)
 DEFAULT_START = "09:00"
 """The start time the panel offers first (local to the race)."""
 
+ROWS = "race_day_rows"
+"""Session key: the weather rows the panel's editable table starts from (the panel's own
+state; an upload or a reopened plan replaces them, the editor's edits apply on top)."""
+
+ROWS_TO_SHOW = "race_day:rows_to_show"
+"""Session key: rows put into the panel from elsewhere (a reopened plan); the panel takes
+them into ROWS with a fresh editor the next time it is drawn."""
+
+PANEL_KEYS = {
+    "date": "race_day_date", "time": "race_day_time", "table": "race_day_table",
+    "heat": "race_day_heat", "altitude": "race_day_altitude",
+    "limits_temperature_c": "race_day_test_temperature",
+    "limits_humidity_pct": "race_day_test_humidity",
+    "limits_elevation_m": "race_day_test_elevation",
+    "spread_wind_speed_mps": "race_day_sd_wind", "spread_wind_from_deg": "race_day_sd_direction",
+    "spread_temperature_c": "race_day_sd_temperature"}
+"""The panel's inputs → their widget keys (session state) in ui/race_day_panel.py."""
+
+SPREAD_FIELDS = ("wind_speed_mps", "wind_from_deg", "temperature_c")
+"""The forecast spread's standard deviations the panel asks for [m/s, deg, °C]."""
+
 
 def starter_rows(day: datetime, hours: int = 4) -> list[dict[str, Any]]:
     """A first table to edit: the day's single weather every two hours from two hours before
@@ -144,6 +165,51 @@ def race_day_inputs(rows: Sequence[Mapping[str, Any]], start: str | None, *,
             "spread": dict(spread) if spread and any(
                 spread.get(k) for k in ("wind_speed_mps", "wind_from_deg", "temperature_c"))
             else None}
+
+
+def panel_state(race_day: Mapping[str, Any] | None) -> dict[str, Any]:
+    """The session state that shows a saved race day in the panel (pure; the library's
+    "Show in the page" sets it before the panel is drawn, ui.library_page_state).
+
+    A plan without a race day was planned with one weather all day, not acclimatised, its
+    limits measured at the defaults and no forecast band: the panel is set so (its start is
+    left as it is).
+
+    Parameters
+    ----------
+    race_day : mapping or None
+        The race-day dict a plan keeps (`race_day_inputs`, the page's weather["race_day"]).
+
+    Returns
+    -------
+    dict
+        Session key → value: the start's date and time (datetime.date, datetime.time), the
+        table toggle, the rows to show (ROWS_TO_SHOW, when the plan has a table; empty
+        cells left out), the
+        acclimatisation boxes, the test conditions [°C, %, m] (None: the default) and the
+        forecast's standard deviations [m/s, deg, °C] (0: no band).
+    """
+    race_day = race_day or {}
+    rows = [{name: value for name, value in row.items() if not _blank(value)}
+            for row in race_day.get("rows") or []]  # empty cells stay empty in the editor
+    spread = race_day.get("spread") or {}
+    state: dict[str, Any] = {
+        PANEL_KEYS["table"]: bool(rows),
+        PANEL_KEYS["heat"]: bool(race_day.get("heat_acclimatised", False)),
+        PANEL_KEYS["altitude"]: bool(race_day.get("altitude_acclimatised", False))}
+    if rows:
+        state[ROWS_TO_SHOW] = rows
+    for name in ("limits_temperature_c", "limits_humidity_pct", "limits_elevation_m"):
+        value = race_day.get(name)
+        state[PANEL_KEYS[name]] = None if value in (None, "") else float(value)
+    for name in SPREAD_FIELDS:
+        state[PANEL_KEYS[f"spread_{name}"]] = float(spread.get(name) or 0.0)
+    start = race_day.get("start")
+    if start:
+        moment = datetime.fromisoformat(str(start))
+        state[PANEL_KEYS["date"]] = moment.date()
+        state[PANEL_KEYS["time"]] = moment.time().replace(tzinfo=None)
+    return state
 
 
 def best_start_points(best: Any) -> tuple[list[str], list[float]]:

@@ -5,7 +5,10 @@ the forecast's spread; after a plan, the best-start curve and the environment su
 `render(course, system)` draws the inputs and returns the race-day dict ui/pipeline.py passes
 on to the request (pacing.io.weather_file.race_day_from_inputs reads it), or None while the
 table does not read (the one-line reason, naming the row, is shown instead of a traceback).
-The pure parts live in ui/race_day_data.py.
+The pure parts live in ui/race_day_data.py. The panel reads every value from its own session
+keys (ui.race_day_data.PANEL_KEYS, the rows its table starts from under ROWS), so a reopened
+plan sets them before the panel is drawn (ui.race_day_data.panel_state); rows put there
+(ROWS_TO_SHOW) or a new upload start the table afresh.
 """
 
 from __future__ import annotations
@@ -20,6 +23,9 @@ from pacing.display.notices import describe
 from pacing.errors import InputError, first_line
 from ui.race_day_data import (
     DEFAULT_START,
+    PANEL_KEYS,
+    ROWS,
+    ROWS_TO_SHOW,
     WEATHER_COLUMNS,
     best_start_clock,
     best_start_points,
@@ -34,6 +40,28 @@ from ui.race_day_data import (
 INK = "#1d2b3a"
 BEST_COLOR = "#b5542c"
 
+EDITOR_VERSION = "race_day:editor_version"
+"""Session key: the number in the editable table's key; a new one shows new rows (ROWS)
+without the edits made to the old ones."""
+
+CSV_TAKEN = "race_day:csv_taken"
+"""Session key: the id of the uploaded weather CSV already taken into the rows (an upload
+is taken once, so a reopened plan's rows are not overwritten by a file still shown)."""
+
+
+def _given(key: str, value: Any) -> Any:
+    """A widget's first value, or None when its session state already holds one (a reopened
+    plan's): Streamlit warns when a widget gets both."""
+    return None if key in st.session_state else value
+
+
+def _show_rows(rows: list[dict[str, Any]]) -> None:
+    """Start the editable table afresh from `rows` (the edits of the old table dropped)."""
+    version = int(st.session_state.get(EDITOR_VERSION, 0))
+    st.session_state.pop(f"race_day_editor:{version}", None)
+    st.session_state[ROWS] = rows
+    st.session_state[EDITOR_VERSION] = version + 1
+
 
 def _column_config() -> dict[str, Any]:
     """The editor's columns: the CSV's names, headers with their units."""
@@ -47,25 +75,32 @@ def _column_config() -> dict[str, Any]:
 def _start_inputs() -> str:
     """The start date and time, ISO 8601 text (local to the race)."""
     left, right = st.columns(2)
-    day = left.date_input("Race date", value=date.today(), key="race_day_date")
-    clock = right.time_input("Start time", value=time.fromisoformat(DEFAULT_START),
-                             key="race_day_time", step=300)
+    day_key, time_key = PANEL_KEYS["date"], PANEL_KEYS["time"]
+    day = left.date_input("Race date", value=_given(day_key, date.today()), key=day_key)
+    clock = right.time_input("Start time", key=time_key, step=300,
+                             value=_given(time_key, time.fromisoformat(DEFAULT_START)))
+    day = day if isinstance(day, date) else date.today()
+    clock = clock if isinstance(clock, time) else time.fromisoformat(DEFAULT_START)
     return datetime.combine(day, clock).isoformat(timespec="minutes")
 
 
 def _weather_rows(start: str) -> list[dict[str, Any]] | None:
-    """The weather table as edited (an upload replaces it), or None when it does not read."""
+    """The weather table as edited (a new upload replaces it), or None when it does not
+    read."""
     upload = st.file_uploader("Weather table (CSV, same columns)", type=["csv"],
                               key="race_day_csv")
-    if upload is not None:
+    if upload is not None and upload.file_id != st.session_state.get(CSV_TAKEN):
         try:
-            st.session_state["race_day_rows"] = rows_from_csv(upload.getvalue())
+            rows = rows_from_csv(upload.getvalue())
         except InputError as error:
             st.error(f"Weather CSV: {first_line(error)}")
             return None
-    rows = st.session_state.get("race_day_rows") or starter_rows(datetime.fromisoformat(start))
+        st.session_state[CSV_TAKEN] = upload.file_id
+        _show_rows(rows)
+    rows = st.session_state.get(ROWS) or starter_rows(datetime.fromisoformat(start))
+    version = int(st.session_state.get(EDITOR_VERSION, 0))
     edited = st.data_editor(rows, column_config=_column_config(), num_rows="dynamic",
-                            key="race_day_editor", width="stretch")
+                            key=f"race_day_editor:{version}", width="stretch")
     cleaned = clean_rows(edited if isinstance(edited, list) else edited.to_dict("records"))
     problem = check_rows(cleaned, start)
     if problem is not None:
@@ -78,26 +113,29 @@ def _limits_inputs() -> dict[str, float | None]:
     """Where the athlete's limits were measured (empty: 20 °C, 50 %, sea level)."""
     st.caption("Where critical power / speed was measured (empty: 20 °C, 50 %, sea level)")
     cols = st.columns(3)
-    return {"limits_temperature_c": cols[0].number_input("Test temperature [°C]", value=None,
-                                                         key="race_day_test_temperature"),
-            "limits_humidity_pct": cols[1].number_input("Test humidity [%]", value=None,
-                                                        min_value=0.0, max_value=100.0,
-                                                        key="race_day_test_humidity"),
-            "limits_elevation_m": cols[2].number_input("Test elevation [m]", value=None,
-                                                       key="race_day_test_elevation")}
+    return {"limits_temperature_c": cols[0].number_input(
+                "Test temperature [°C]", value=None,
+                key=PANEL_KEYS["limits_temperature_c"]),
+            "limits_humidity_pct": cols[1].number_input(
+                "Test humidity [%]", value=None, min_value=0.0, max_value=100.0,
+                key=PANEL_KEYS["limits_humidity_pct"]),
+            "limits_elevation_m": cols[2].number_input(
+                "Test elevation [m]", value=None, key=PANEL_KEYS["limits_elevation_m"])}
 
 
 def _spread_inputs() -> dict[str, float]:
     """The forecast's standard deviations (all 0: no band)."""
     st.caption("Forecast uncertainty (1 standard deviation; 0 for no finish-time band)")
     cols = st.columns(3)
-    return {"wind_speed_mps": cols[0].number_input("Wind speed ± [m/s]", 0.0, 20.0, 0.0, 0.5,
-                                                   key="race_day_sd_wind"),
-            "wind_from_deg": cols[1].number_input("Wind direction ± [deg]", 0.0, 180.0, 0.0,
-                                                  5.0, key="race_day_sd_direction"),
-            "temperature_c": cols[2].number_input("Temperature ± [°C]", 0.0, 15.0, 0.0, 0.5,
-                                                  key="race_day_sd_temperature"),
-            "samples": 200, "seed": 0}
+    asked = (("wind_speed_mps", "Wind speed ± [m/s]", 20.0, 0.5),
+             ("wind_from_deg", "Wind direction ± [deg]", 180.0, 5.0),
+             ("temperature_c", "Temperature ± [°C]", 15.0, 0.5))
+    spread: dict[str, float] = {}
+    for column, (name, label, high, step) in zip(cols, asked, strict=True):
+        key = PANEL_KEYS[f"spread_{name}"]
+        value = column.number_input(label, 0.0, high, _given(key, 0.0), step, key=key)
+        spread[name] = float(value or 0.0)
+    return {**spread, "samples": 200, "seed": 0}
 
 
 def render(course: Any, system: str) -> dict[str, Any] | None:
@@ -118,14 +156,16 @@ def render(course: Any, system: str) -> dict[str, Any] | None:
         "limits_temperature_c", "limits_humidity_pct", "limits_elevation_m", "spread"}.
     """
     del course, system
+    if ROWS_TO_SHOW in st.session_state:  # a reopened plan's table
+        _show_rows(list(st.session_state.pop(ROWS_TO_SHOW) or []))
     start = _start_inputs()
-    through = st.toggle("Weather changes through the race (a table)", key="race_day_table")
+    through = st.toggle("Weather changes through the race (a table)", key=PANEL_KEYS["table"])
     rows = _weather_rows(start) if through else []
     left, right = st.columns(2)
     heat = left.checkbox("Heat-acclimatised (about two weeks of training in the heat)",
-                         key="race_day_heat")
+                         key=PANEL_KEYS["heat"])
     altitude = right.checkbox("Altitude-acclimatised (some weeks at altitude)",
-                              key="race_day_altitude")
+                              key=PANEL_KEYS["altitude"])
     limits = _limits_inputs()
     spread = _spread_inputs()
     if rows is None:

@@ -4,13 +4,18 @@ time was won or lost and why, and the drag area on the day.
 The review is pacing.review.race.review_race on the page's plan (made by the one planning
 chain from the page's inputs, ui.pipeline.race_request); the ride is read by
 pacing.io.rides.read_race. Pure helpers build the tables and plotly figures (`gap_figure`,
-`power_figure`, `split_table`, `segment_frame`); `render` draws the panel. The CdA on the day
-can be kept on a setup of the library (Library.update_setup) when the library panel has one
-open with an athlete chosen.
+`power_figure`, `split_table`, `segment_frame`), the review's JSON (`review_json`) and the
+day's CdA to keep (`day_drag_area`); `render` draws the panel. The CdA on the day can be kept
+on a setup of the library with its 95 % interval and the race it came from (Library.update_setup
+with a DragAreaOrigin) when the library panel has an athlete chosen, and then put in the page's
+CdA box to plan the next race (ui.library_panel.fill_page_inputs). The review can be kept with
+the saved plan the page shows when it was opened from the library (Library.add_plan_review).
 """
 
 from __future__ import annotations
 
+import dataclasses
+import datetime
 import hashlib
 from typing import Any
 
@@ -174,34 +179,104 @@ def review_for_page(ride: bytes, name: str, arguments: tuple, fit: bool = True) 
     return review_race(result, recording, fit=fit, bootstrap=200)
 
 
-def _keep_cda(review: Any, system: str) -> None:
-    """Offer to keep the day's CdA on a setup of the library panel's athlete."""
-    location = st.session_state.get("library:location")
-    owner = st.session_state.get("library:athlete_id")
-    if review.fitted is None or owner is None or "library:location" not in st.session_state:
-        st.caption("Open the library and choose an athlete to keep this CdA on a setup.")
-        return
-    import dataclasses
+def review_json(review: Any) -> dict[str, Any]:
+    """The review as JSON, as ``pacing review --json`` prints it (notices with metric words):
+    what the library keeps with a saved plan."""
+    return review.as_json(lambda notices: [{**n.as_dict(), "text": describe(n, "metric")}
+                                           for n in notices])
 
+
+def day_drag_area(review: Any, ride_name: str, day: datetime.date | None = None
+                  ) -> tuple[float, Any]:
+    """The day's CdA to keep on a setup, and its origin (interval and source).
+
+    Parameters
+    ----------
+    review : pacing.review.race.RaceReview
+        A review with a fit (``review.fitted`` not None).
+    ride_name : str
+        The race file's name, for the source.
+    day : datetime.date or None
+        The day of the review; None for today (UTC).
+
+    Returns
+    -------
+    tuple
+        (CdA rounded to 0.0001 m² [m²], pacing.store.records.DragAreaOrigin with the 95 %
+        interval widened outward to 0.0001 m², or None when the fit has no interval).
+    """
+    from pacing.store.drag_origin import fitted_drag_area, race_review_source
+
+    fit = review.fitted.as_json()
+    return fitted_drag_area(fit["cda_m2"], fit["cda_ci95"], race_review_source(ride_name, day))
+
+
+def _library_or_none() -> Any:
+    """The library the library panel has open, or None."""
+    if "library:location" not in st.session_state:
+        return None
     from ui.library_panel import _library
 
-    library = _library(location)
+    return _library(st.session_state.get("library:location"))
+
+
+def _keep_cda(review: Any, ride_name: str) -> None:
+    """Offer to keep the day's CdA (with its interval and the race) on a setup of the library
+    panel's athlete, then to put it in the page's CdA box for the next plan."""
+    owner = st.session_state.get("library:athlete_id")
+    library = _library_or_none()
+    if review.fitted is None or owner is None or library is None:
+        st.caption("Open the library and choose an athlete to keep this CdA on a setup.")
+        return
     records = library.setups(int(owner))
     if not records:
         st.caption("The athlete has no setup in the library yet.")
         return
     labels = {f"{r.setup.name} (CdA {r.setup.drag_area:.3f} m²)": r for r in records}
     chosen = labels[st.selectbox("Setup", list(labels), key="review_setup")]
+    cda, origin = day_drag_area(review, ride_name)
     if st.button("Keep this CdA on the setup", key="review_keep_cda"):
-        cda = round(float(review.fitted.drag_area), 4)
         try:
             stored = library.update_setup(
                 chosen.id, dataclasses.replace(chosen.setup, drag_area=cda),
-                revision=chosen.revision)
+                revision=chosen.revision, drag_area_origin=origin)
         except (InputError, ConflictError) as error:
             st.error(first_line(error), icon="⚠️")
             return
-        st.success(f"Setup {stored.setup.name!r} now has CdA {cda:.4f} m².")
+        st.session_state["review:kept_cda"] = cda
+        shown = (f" (95 % interval {origin.low_m2:.4f}-{origin.high_m2:.4f} m², "
+                 f"{origin.source})" if origin is not None else " (the fit gave no interval)")
+        st.success(f"Setup {stored.setup.name!r} now has CdA {cda:.4f} m²{shown}.")
+    kept = st.session_state.get("review:kept_cda")
+    if kept is not None:
+        from ui.library_panel import fill_page_inputs
+
+        st.button(f"Plan the next race with CdA {kept:.4f} m²", key="review_use_cda",
+                  on_click=fill_page_inputs, args=({"drag_area": kept},),
+                  help="puts the day's CdA in the page's CdA box (my own value)")
+
+
+def _keep_review(review: Any, ride_name: str, digest: str) -> None:
+    """Offer to keep the review with the saved plan the page shows (opened from the
+    library)."""
+    from ui.library_data import LIBRARY_COURSE
+
+    shown = st.session_state.get(LIBRARY_COURSE) or {}
+    library = _library_or_none()
+    if library is None or shown.get("plan_id") is None:
+        st.caption("Show a saved plan of the library in the page (Library → Saved plans → "
+                   "Show in the page) to keep this review with it.")
+        return
+    if st.button(f"Keep this review with the saved plan {shown.get('plan')!r}",
+                 key="review_keep_review"):
+        try:
+            kept = library.add_plan_review(int(shown["plan_id"]), review_json(review),
+                                           ride_name=ride_name, ride_sha256=digest)
+        except (InputError, ConflictError) as error:
+            st.error(first_line(error), icon="⚠️")
+            return
+        st.success(f"Kept the review of {ride_name} with the saved plan {shown.get('plan')!r} "
+                   f"(race review {kept.id}).")
 
 
 def _show(review: Any, system: str) -> None:
@@ -274,6 +349,7 @@ def render(course: Any, bounds: Any, athlete: dict, weather: dict, approach: dic
         try:
             with st.spinner("Reviewing the race…"):
                 cache.clear()
+                st.session_state.pop("review:kept_cda", None)
                 cache[key] = review_for_page(data, upload.name,
                                              (course, bounds, athlete, weather, approach), fit)
         except InputError as error:
@@ -281,5 +357,6 @@ def render(course: Any, bounds: Any, athlete: dict, weather: dict, approach: dic
             return None
     review = cache[key]
     _show(review, system)
-    _keep_cda(review, system)
+    _keep_cda(review, upload.name)
+    _keep_review(review, upload.name, hashlib.sha256(data).hexdigest())
     return review

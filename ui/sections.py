@@ -268,7 +268,9 @@ def weather_inputs(system: str, roughness_classes: dict[str, float] | None) -> d
         if roughness_classes:
             names = list(roughness_classes)
             default = names.index("open grassland") if "open grassland" in names else 0
-            terrain = st.selectbox("Terrain around the road", names, index=default,
+            # a reopened plan sets the choice in the session state: no default beside it
+            terrain = st.selectbox("Terrain around the road", names,
+                                   index=None if "terrain" in st.session_state else default,
                                    key="terrain",
                                    help="how rough the land is slows the wind near the ground "
                                         "(Davenport-Wieringa classes)")

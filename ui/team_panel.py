@@ -1,7 +1,9 @@
 """The team part of the web app: a team time trial on the page's course or a team pursuit on a
 velodrome. The coach lists the riders (name, mass, CdA, CP, W′, cap), picks the race and the
 counting rider, the drafting set and the W′ reserve, and reads the turn schedule, each rider's
-W′ balance along the race, the gain over equal turns, and downloads the schedule (CSV, XLSX).
+W′ balance along the race, the gain over equal turns, and downloads the schedule (CSV, XLSX)
+and its printable card (PNG, PDF). Teams come from and go to the coach's library (the rider
+table filled from a stored team; the table stored as one, asking before replacing a name).
 
 The panel draws with the Streamlit module it is given (``render(st, …)``): app.py passes its
 ``st``. This module imports no Streamlit itself, so it stays a pure UI module
@@ -10,6 +12,7 @@ The panel draws with the Streamlit module it is given (``render(st, …)``): app
 
 from __future__ import annotations
 
+from collections.abc import Callable, MutableMapping
 from typing import Any
 
 import numpy as np
@@ -19,8 +22,9 @@ import plotly.graph_objects as go
 from pacing.display.notices import describe
 from pacing.display.units import to_display, unit_label
 from pacing.errors import InputError, first_line
+from pacing.physics.cycling import MARTIN_1998
 from pacing.team.drafting import DEFAULT_DRAFTING_SET, DRAFTING_SETS
-from pacing.team.plan import TeamPlan, plan_team
+from pacing.team.plan import PlanOptions, TeamPlan, plan_team
 from pacing.team.race import TeamRace, race_on_road, race_on_track
 from pacing.team.riders import Team, TeamRider
 from pacing.team.schedule import plan_notices, rider_rows, turn_rows
@@ -40,6 +44,13 @@ DEFAULT_RIDERS = pd.DataFrame({
 """The rider table the panel opens with (an invented team; each cap CP + W′/60 s, the
 default of pacing.team.riders, written out so no cell shows blank)."""
 
+FILLED_RIDERS = "team:filled_riders"
+"""Session key of the rider table filled from the library (the editor's starting rows)."""
+ASKING = "team:asking"
+"""Session key of the question asked when a team's name is already in the library."""
+LIBRARY_MESSAGE = "team:library_message"
+"""Session key of the last library write's message, shown after the page is drawn again."""
+
 CAUTION = ("Targets are model estimates. Keep the line safe at every change of lead, obey race "
            "rules and the commissaires, and consult a physician before hard efforts.")
 
@@ -51,7 +62,7 @@ def team_from_frame(frame: pd.DataFrame) -> Team:
     ----------
     frame : pandas.DataFrame
         Columns name, mass_kg [kg], cda_m2 [m²], cp_w [W], w_prime_j [J], max_power_w [W]
-        (blank: the default cap) [-].
+        (blank: the default cap) and, optionally, crr [-] (blank: the default) [-].
 
     Returns
     -------
@@ -66,15 +77,111 @@ def team_from_frame(frame: pd.DataFrame) -> Team:
     riders = []
     for number, values in enumerate(frame.dropna(how="all").to_dict("records"), start=1):
         try:
-            cap = values.get("max_power_w")
+            cap, crr = values.get("max_power_w"), values.get("crr")
             riders.append(TeamRider(
                 name=str(values["name"]), mass=float(values["mass_kg"]),
                 drag_area=float(values["cda_m2"]), critical_power=float(values["cp_w"]),
                 w_prime=float(values["w_prime_j"]),
-                max_power=None if cap is None or pd.isna(cap) else float(cap)))
+                max_power=None if cap is None or pd.isna(cap) else float(cap),
+                **({} if crr is None or pd.isna(crr) else {"rolling_coefficient": float(crr)})))
         except (TypeError, ValueError) as error:
             raise InputError(f"rider row {number}: {first_line(error)}") from None
     return Team(tuple(riders))
+
+
+def frame_from_team(team: Team) -> pd.DataFrame:
+    """The rider table of a team (the inverse of team_from_frame): a blank cap where the
+    rider has the default one, a crr column only when a rider's Crr is not the default.
+
+    Parameters
+    ----------
+    team : pacing.team.riders.Team
+        The riders in starting order [-].
+
+    Returns
+    -------
+    pandas.DataFrame
+        Columns of DEFAULT_RIDERS (and crr) [SI].
+    """
+    riders = team.riders
+    frame = pd.DataFrame({
+        "name": [r.name for r in riders], "mass_kg": [r.mass for r in riders],
+        "cda_m2": [r.drag_area for r in riders], "cp_w": [r.critical_power for r in riders],
+        "w_prime_j": [r.w_prime for r in riders],
+        "max_power_w": [np.nan if r.max_power is None else r.max_power for r in riders],
+    })
+    if any(r.rolling_coefficient != MARTIN_1998["rolling_coefficient"] for r in riders):
+        frame["crr"] = [r.rolling_coefficient for r in riders]
+    return frame
+
+
+def drafting_key(reductions: Any) -> str | None:
+    """The published drafting set of these reductions, None when none matches [-].
+
+    Parameters
+    ----------
+    reductions : sequence of float or None
+        Drag reduction by place, leader first [-].
+    """
+    if reductions is None:
+        return None
+    for key, found in DRAFTING_SETS.items():
+        if len(found.reductions) == len(reductions) and np.allclose(
+                found.reductions, reductions, rtol=0.0, atol=1e-12):
+            return key
+    return None
+
+
+def fill_from_record(state: MutableMapping[str, Any], record: Any) -> None:
+    """Put a stored team into the panel (a button's on_click, run before the page is drawn):
+    its riders into the rider table (the table's own edits dropped), its counting rider and
+    its drafting set where stored.
+
+    Parameters
+    ----------
+    state : MutableMapping
+        The session state [-].
+    record : pacing.store.records.TeamRecord
+        The stored team [-].
+    """
+    state[FILLED_RIDERS] = frame_from_team(record.team)
+    if "team_riders" in state:
+        del state["team_riders"]
+    if record.counts_rider is not None:
+        state["team_counts"] = int(record.counts_rider)
+    key = drafting_key(record.drafting)
+    if key is not None:
+        state["team_drafting"] = key
+    state[LIBRARY_MESSAGE] = f"The rider table now shows the team {record.name!r}."
+
+
+def store_team(library: Any, name: str, frame: pd.DataFrame, choice: dict[str, Any],
+               on_existing: str = "refuse") -> Any:
+    """Store the rider table as a team with the race's drafting and counting rider.
+
+    Parameters
+    ----------
+    library : pacing.store.library.Library
+        The open library [-].
+    name : str
+        The team's name [-].
+    frame : pandas.DataFrame
+        The rider table (team_from_frame) [-].
+    choice : dict
+        The race choices (drafting, counts_rider) of _inputs [-].
+    on_existing : str
+        "refuse" (NameTaken when the name is stored), "replace" or "keep-both" [-].
+
+    Returns
+    -------
+    pacing.store.records.TeamRecord
+        The team as stored [-].
+    """
+    team = team_from_frame(frame)
+    counts = int(choice["counts_rider"])
+    return library.add_team(name, team, drafting=tuple(choice["drafting"]),
+                            counts_rider=counts if counts <= team.size else None,
+                            on_existing=on_existing)
 
 
 def balance_figure(plan: TeamPlan, system: str) -> go.Figure:
@@ -192,8 +299,8 @@ def _inputs(st: Any, system: str, has_course: bool) -> tuple[pd.DataFrame, dict[
     """The rider table and the race choices."""
     st.caption("One row per rider, in starting order (the first leads off). Leave the cap "
                "blank for CP + W′/60 s.")
-    frame = st.data_editor(DEFAULT_RIDERS, num_rows="dynamic", key="team_riders",
-                           hide_index=True)
+    frame = st.data_editor(st.session_state.get(FILLED_RIDERS, DEFAULT_RIDERS),
+                           num_rows="dynamic", key="team_riders", hide_index=True)
     columns = st.columns(3)
     kinds = ["track", "road"] if has_course else ["track"]
     kind = columns[0].radio("Race", kinds, key="team_kind", horizontal=True,
@@ -215,9 +322,14 @@ def _inputs(st: Any, system: str, has_course: bool) -> tuple[pd.DataFrame, dict[
                                key="team_drafting",
                                help="published drag reductions by place in the line")
     columns[2].caption(DRAFTING_SETS[key].conditions)
+    parts = columns[2].number_input(
+        "Parts with a leader power of their own", 1, 8, PlanOptions().power_parts, 1,
+        key="team_power_parts",
+        help="the race cut into equal parts, each with its own factor on the leaders' power; "
+             "1 for one power per rider")
     return frame, {"kind": kind, "distance_m": distance, "lap_m": lap, "counts_rider": counts,
                    "drafting": DRAFTING_SETS[key].reductions, "reserve_j": reserve,
-                   "standing_start": standing}
+                   "standing_start": standing, "power_parts": int(parts)}
 
 
 def _show(st: Any, race: TeamRace, plan: TeamPlan, system: str) -> None:
@@ -227,6 +339,9 @@ def _show(st: Any, race: TeamRace, plan: TeamPlan, system: str) -> None:
         rider_table,
         schedule_csv,
         schedule_xlsx,
+        team_card_inputs,
+        team_card_pdf,
+        team_card_png,
         turn_table,
     )
 
@@ -244,20 +359,106 @@ def _show(st: Any, race: TeamRace, plan: TeamPlan, system: str) -> None:
     cells = plan.ride.cells
     balance = balance_table(cells.start + cells.length, plan.ride.balance,
                             [r.name for r in team.riders], system)
-    left, right = st.columns(2)
-    left.download_button("Turn schedule (CSV)",
-                         schedule_csv(turns, words, system, race.lap_length),
-                         "team_schedule.csv", "text/csv", key="team_csv")
-    right.download_button("Turn schedule and W′ (XLSX)",
-                          schedule_xlsx(turns, riders, balance, words, system,
-                                        race.lap_length),
-                          "team_schedule.xlsx", key="team_xlsx",
-                          mime="application/vnd.openxmlformats-officedocument."
-                               "spreadsheetml.sheet")
+    columns = st.columns(4)
+    columns[0].download_button("Turn schedule (CSV)",
+                               schedule_csv(turns, words, system, race.lap_length),
+                               "team_schedule.csv", "text/csv", key="team_csv")
+    columns[1].download_button("Turn schedule and W′ (XLSX)",
+                               schedule_xlsx(turns, riders, balance, words, system,
+                                             race.lap_length),
+                               "team_schedule.xlsx", key="team_xlsx",
+                               mime="application/vnd.openxmlformats-officedocument."
+                                    "spreadsheetml.sheet")
+    card = team_card_inputs(race, plan, system)
+    columns[2].download_button("Printable card (PNG)", team_card_png(**card),
+                               "team_card.png", "image/png", key="team_card_png")
+    columns[3].download_button("Printable card (PDF)", team_card_pdf(**card),
+                               "team_card.pdf", "application/pdf", key="team_card_pdf")
     st.caption(CAUTION)
 
 
-def render(st: Any, system: str, course: Any = None, weather: dict | None = None) -> None:
+def ask_before_replacing(st: Any, pressed: bool, action: Callable[[str], Any],
+                         success: Callable[[Any], str]) -> None:
+    """Store when `pressed`, refusing a name already in the library; then ask "Replace it",
+    "Keep both" (stored as "name (2)") or "Cancel" and store again with the answer, as the
+    library panel does for athletes. Nothing is replaced without the coach's say.
+
+    Parameters
+    ----------
+    st : module
+        streamlit [-].
+    pressed : bool
+        The store button was pressed in this run [-].
+    action : callable
+        ``action(on_existing)`` stores with "refuse", "replace" or "keep-both" [-].
+    success : callable
+        The message of what the store returned [-].
+    """
+    from pacing.store.statements import NameTaken
+
+    def attempt(on_existing: str) -> None:
+        st.session_state.pop(ASKING, None)
+        try:
+            stored = action(on_existing)
+        except NameTaken as taken:
+            st.session_state[ASKING] = f"A team named {taken.name!r} is already in the library."
+            return
+        except InputError as error:
+            st.error(first_line(error), icon="⚠️")
+            return
+        st.session_state[LIBRARY_MESSAGE] = success(stored)
+        st.rerun()
+
+    if pressed:
+        attempt("refuse")
+    question = st.session_state.get(ASKING)
+    if question is None:
+        return
+    st.warning(f"{question} Replace it, or keep both (the new one gets a number)?")
+    columns = st.columns(3)
+    if columns[0].button("Replace it", key="team_library_replace"):
+        attempt("replace")
+    if columns[1].button("Keep both", key="team_library_keep_both"):
+        attempt("keep-both")
+    if columns[2].button("Cancel", key="team_library_cancel"):
+        st.session_state.pop(ASKING, None)
+        st.rerun()
+
+
+def _library_part(st: Any, frame: pd.DataFrame, choice: dict[str, Any],
+                  location: Any) -> None:
+    """Teams in the library: fill the rider table from a stored team, store the table."""
+    from pacing.store.library import open_library
+
+    message = st.session_state.pop(LIBRARY_MESSAGE, None)
+    if message:
+        st.success(message)
+    try:
+        with open_library(location) as library:
+            records = library.teams()
+            if records:
+                labels = {r.id: f"{r.name} ({r.team.size} riders)" for r in records}
+                chosen = st.selectbox("Stored team", list(labels), format_func=labels.get,
+                                      key="team_library_pick")
+                record = next(r for r in records if r.id == chosen)
+                st.button("Fill the rider table with it", key="team_library_fill",
+                          on_click=fill_from_record, args=(st.session_state, record))
+            else:
+                st.caption("No team is stored yet.")
+            name = st.text_input("Team name", key="team_library_name",
+                                 placeholder="e.g. club pursuit squad")
+            pressed = st.button("Store the rider table as a team", key="team_library_store")
+            ask_before_replacing(
+                st, pressed, lambda on_existing: store_team(library, name, frame, choice,
+                                                            on_existing),
+                lambda stored: f"Stored the team {stored.name!r} "
+                               f"({stored.team.size} riders).")
+    except InputError as error:
+        st.error(first_line(error), icon="⚠️")
+
+
+def render(st: Any, system: str, course: Any = None, weather: dict | None = None,
+           library_location: Any = None) -> None:
     """Draw the team panel with the Streamlit module `st`.
 
     Parameters
@@ -270,11 +471,17 @@ def render(st: Any, system: str, course: Any = None, weather: dict | None = None
         The page's course, for a team time trial on it [-].
     weather : dict or None
         The page's weather as Conditions fields in SI (ui.sections.weather_inputs) [-].
+    library_location : str, os.PathLike or None
+        The coach's library (pacing.store.library.open_library; None: PACING_DATABASE_URL,
+        else the default file) [-].
     """
     from pacing.weather.conditions import Conditions
 
     st.subheader("Team time trial or team pursuit")
     frame, choice = _inputs(st, system, course is not None)
+    if st.toggle("Teams in the library", key="team_library",
+                 help="fill the rider table from a stored team, or store it as one"):
+        _library_part(st, frame, choice, library_location)
     if not st.button("Plan the team", key="team_plan", type="primary"):
         return
     try:
@@ -282,7 +489,8 @@ def render(st: Any, system: str, course: Any = None, weather: dict | None = None
         conditions = Conditions(**weather) if weather else None
         race = race_from_inputs(choice, course, conditions)
         with st.spinner("Choosing turns and powers…"):
-            plan = plan_team(team, race)
+            plan = plan_team(team, race, PlanOptions(
+                power_parts=int(choice.get("power_parts", PlanOptions().power_parts))))
     except (InputError, ValueError) as error:
         st.error(first_line(error), icon="⚠️")
         return

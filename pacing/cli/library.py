@@ -1,14 +1,15 @@
 """``pacing library …``: look into the coach's library, back it up, move it between machines.
 
     pacing library [--database URL_OR_PATH] list
-    pacing library [--database URL_OR_PATH] show athlete|setup|course|plan ID [--gpx FILE]
+    pacing library [--database URL_OR_PATH] show athlete|setup|course|plan|review ID [--gpx FILE]
     pacing library [--database URL_OR_PATH] export [--athlete ID] [-o FILE]
     pacing library [--database URL_OR_PATH] import FILE [--on-existing refuse|keep-both]
 
 The library is the SQLite file in the user's data directory unless --database or the
 environment variable PACING_DATABASE_URL names another (a file path or an SQLAlchemy URL).
 Values are shown in SI units, times as H:MM:SS. Saved plans show the version of pacing that
-made them.
+made them, with the race reviews kept with them (``show review ID`` prints one as JSON); setups
+show where their CdA came from (its 95 % interval and the race review) when it was measured.
 """
 
 from __future__ import annotations
@@ -29,7 +30,7 @@ if TYPE_CHECKING:  # the store (SQLAlchemy) is imported only when a library comm
     from pacing.store.records import PlanRecord
 
 #: What `show` can show.
-KINDS = ("athlete", "setup", "course", "plan")
+KINDS = ("athlete", "setup", "course", "plan", "review")
 
 
 def add_parser(subparsers: argparse._SubParsersAction) -> None:
@@ -241,12 +242,22 @@ def _show_setup(library: Library, args: argparse.Namespace) -> None:
         ("athlete", f"{record.athlete_id}  {library.athlete(record.athlete_id).athlete.name}"),
         ("bike mass [kg]", number(setup.bike_mass, 2)),
         ("CdA [m²]", number(setup.drag_area, 4)),
+        *_origin_fields(record),
         ("power share", number(setup.power_share, 3)),
         ("Crr", number(setup.rolling_coefficient, 5)),
         ("drivetrain efficiency", number(setup.drivetrain_efficiency, 3)),
         ("yaw drag table [deg, x]", setup.yaw_drag_table or "-"),
         *_stamps(record),
     ]))
+
+
+def _origin_fields(record: Any) -> list[tuple[str, Any]]:
+    """Where a setup's CdA came from, as _fields pairs ("-" when it was typed in)."""
+    origin = record.drag_area_origin
+    if origin is None:
+        return [("CdA from", "-")]
+    return [("CdA 95 % interval [m²]", f"{origin.low_m2:.4f}-{origin.high_m2:.4f}"),
+            ("CdA from", origin.source)]
 
 
 def _show_course(library: Library, args: argparse.Namespace) -> None:
@@ -267,8 +278,38 @@ def _show_course(library: Library, args: argparse.Namespace) -> None:
 
 
 def _show_saved_plan(library: Library, args: argparse.Namespace) -> None:
-    """A saved plan (see _show_plan)."""
+    """A saved plan (see _show_plan) and the race reviews kept with it."""
     _show_plan(library.plan(args.id))
+    reviews = library.plan_reviews(args.id)
+    print(f"\nrace reviews ({len(reviews)})")
+    if reviews:
+        print(table(["id", "race file", "SHA-256", "kept (UTC)", "planned", "ridden",
+                     "ridden − planned [s]", "CdA on the day [m²]"],
+                    [_review_row(r) for r in reviews]))
+
+
+def _review_row(record: Any) -> list[str]:
+    """One kept race review as a row of the saved plan's review table."""
+    review = record.review
+    fitted = review.get("fitted") or {}
+    planned, ridden = review["planned_time_s"], review["actual_time_s"]
+    return [str(record.id), record.ride_name, record.ride_sha256[:12] + "…",
+            record.created_at.strftime("%Y-%m-%d %H:%M"), clock(planned), clock(ridden),
+            f"{ridden - planned:+.1f}", number(fitted.get("cda_m2"), 4)]
+
+
+def _show_review(library: Library, args: argparse.Namespace) -> None:
+    """A kept race review: its plan, race file, then the review's JSON as the review command
+    prints it."""
+    record = library.plan_review(args.id)
+    print(_fields([
+        ("race review", record.id),
+        ("saved plan", f"{record.plan_id}  {library.plan(record.plan_id).name}"),
+        ("race file", record.ride_name),
+        ("race file SHA-256", record.ride_sha256),
+        *_stamps(record),
+    ]))
+    print("\n" + json.dumps(record.review, indent=2, ensure_ascii=False, allow_nan=False))
 
 
 def _show_plan(plan: PlanRecord) -> None:
@@ -382,6 +423,7 @@ def _import(library: Library, args: argparse.Namespace) -> int:
 #: What ``library show KIND`` prints, by kind.
 SHOW: dict[str, Callable[[Library, argparse.Namespace], None]] = {
     "athlete": _show_athlete, "setup": _show_setup, "course": _show_course,
+    "review": _show_review,
     "plan": _show_saved_plan}
 
 #: The function of each action.

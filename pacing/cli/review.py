@@ -10,6 +10,10 @@ Output: a table (segments, the split, the fitted drag area; warnings on stderr, 
 it), or with --json the numbers: planned_time_s, actual_time_s, segments, attribution, fitted,
 warnings (every notice: code, level, values, text), and alignment, day_conditions,
 attribution_detail. --csv FILE writes the review table (pacing.io.review_file).
+--save-to-plan ID keeps that JSON, with the race file's name and SHA-256, with a saved plan of
+the library (pacing.store.library_reviews; see ``pacing library show plan ID``);
+--keep-cda-on-setup ID stores the CdA on the day on a setup of the library, with its interval
+and the race it came from (see ``pacing library show setup ID``).
 """
 
 from __future__ import annotations
@@ -62,6 +66,16 @@ def add_parser(subparsers: argparse._SubParsersAction) -> None:
                      help="bootstrap draws of the fit's intervals (default 200; 0: none)")
     parser.add_argument("--csv", default=None, metavar="FILE",
                         help="also write the review table as CSV")
+    keep = parser.add_argument_group("the library", "keep the review with the saved plan")
+    keep.add_argument("--save-to-plan", type=int, default=None, metavar="ID",
+                      help="keep the review (its JSON, the race file's name and SHA-256) with "
+                           "this saved plan of the library")
+    keep.add_argument("--keep-cda-on-setup", type=int, default=None, metavar="ID",
+                      help="store the CdA on the day on this setup of the library, with its "
+                           "95 %% interval and the race it came from")
+    keep.add_argument("--database", metavar="URL_OR_PATH", default=None,
+                      help="the library (default: $PACING_DATABASE_URL, else the user's "
+                           "library file)")
     parser.set_defaults(run=run)
 
 
@@ -120,32 +134,7 @@ def review_as_dict(review: RaceReview) -> dict[str, Any]:
     """
     from pacing.cli.common import notices_as_json
 
-    alignment = review.alignment
-    day = review.day_conditions
-    return {
-        "planned_time_s": review.planned_time,
-        "actual_time_s": review.actual_time,
-        "segments": [
-            {"start_m": s.start, "end_m": s.end, "planned_time_s": s.planned_time,
-             "actual_time_s": s.actual_time, "delta_s": s.delta,
-             "planned_power_w": s.planned_power, "actual_power_w": s.actual_power,
-             "planned_speed_mps": s.planned_speed, "actual_speed_mps": s.actual_speed,
-             "stopped_s": s.stopped_time, "planned_min_w_prime_j": s.planned_min_w_prime,
-             "actual_min_w_prime_j": s.actual_min_w_prime}
-            for s in review.segments],
-        "attribution": review.attribution.parts(),
-        "attribution_detail": {
-            "stopped_s": review.attribution.stopped_s,
-            "replays": [{"causes": list(causes), "finish_time_s": time}
-                        for causes, time in review.attribution.replays]},
-        "fitted": None if review.fitted is None else review.fitted.as_json(),
-        "day_conditions": {"temperature_c": day.temperature, "wind_speed_mps": day.wind_speed,
-                           "wind_from_deg": day.wind_from, "wind_height_m": day.wind_height},
-        "alignment": {"method": alignment.method,
-                      "off_course_samples": int(alignment.off_course.sum()),
-                      "dropouts": int(alignment.dropout.sum())},
-        "warnings": notices_as_json(review.notices),
-    }
+    return review.as_json(notices_as_json)
 
 
 def review_as_table(review: RaceReview) -> str:
@@ -206,6 +195,76 @@ def review_from_args(args: argparse.Namespace) -> RaceReview:
                        bootstrap=args.bootstrap)
 
 
+def keep_with_plan(review: RaceReview, args: argparse.Namespace) -> str:
+    """Keep the review (review_as_dict) with the saved plan --save-to-plan of the library.
+
+    Parameters
+    ----------
+    review : pacing.review.race.RaceReview
+    args : argparse.Namespace
+        ``save_to_plan`` (plan id), ``database`` (None: the default library) and ``ride``.
+
+    Returns
+    -------
+    str
+        One line saying what was kept where.
+    """
+    from pathlib import Path
+
+    from pacing.errors import ConflictError
+    from pacing.store.library import open_library
+    from pacing.store.library_reviews import ride_digest
+
+    ride = Path(args.ride)
+    try:
+        with open_library(args.database) as library:
+            kept = library.add_plan_review(args.save_to_plan, review_as_dict(review),
+                                           ride_name=ride.name,
+                                           ride_sha256=ride_digest(ride.read_bytes()))
+            plan_name = library.plan(kept.plan_id).name
+    except ConflictError as error:
+        raise InputError(str(error)) from None
+    return (f"kept the review of {ride.name} with saved plan {kept.plan_id} "
+            f"({plan_name!r}) as race review {kept.id}")
+
+
+def keep_cda_on_setup(review: RaceReview, args: argparse.Namespace) -> str:
+    """Store the CdA on the day (rounded to 0.0001 m²) on the setup --keep-cda-on-setup, with
+    its 95 % interval widened outward to 0.0001 m² and its source "race review of <file>,
+    <today>" (pacing.store.drag_origin).
+
+    Returns
+    -------
+    str
+        One line saying what was stored.
+    """
+    import dataclasses
+    import datetime
+    from pathlib import Path
+
+    from pacing.errors import ConflictError
+    from pacing.store.drag_origin import fitted_drag_area, race_review_source
+    from pacing.store.library import open_library
+
+    if review.fitted is None:
+        raise InputError("the drag area was not fitted: there is no CdA on the day to keep")
+    fit = review.fitted.as_json()
+    today = datetime.datetime.now(datetime.UTC).date()
+    cda, origin = fitted_drag_area(fit["cda_m2"], fit["cda_ci95"],
+                                   race_review_source(Path(args.ride).name, today))
+    try:
+        with open_library(args.database) as library:
+            record = library.setup(args.keep_cda_on_setup)
+            stored = library.update_setup(record.id,
+                                          dataclasses.replace(record.setup, drag_area=cda),
+                                          revision=record.revision, drag_area_origin=origin)
+    except ConflictError as error:
+        raise InputError(str(error)) from None
+    interval = ("" if origin is None
+                else f" (95 % interval {origin.low_m2:.4f}-{origin.high_m2:.4f} m²)")
+    return f"setup {stored.id} ({stored.setup.name!r}) now has CdA {cda:.4f} m²{interval}"
+
+
 def run(args: argparse.Namespace) -> int:
     """Run ``pacing review``: the table or JSON on stdout, the CSV when asked.
 
@@ -221,7 +280,18 @@ def run(args: argparse.Namespace) -> int:
     """
     from pacing.cli.common import CAUTION, report_notices
 
+    for flag in ("save_to_plan", "keep_cda_on_setup"):
+        if getattr(args, flag) is not None and getattr(args, flag) < 1:
+            raise InputError(f"--{flag.replace('_', '-')} must be a library id (1 or more), "
+                             f"got {getattr(args, flag)}")
+    if args.keep_cda_on_setup is not None and args.no_fit:
+        raise InputError("--keep-cda-on-setup needs the fit of the day (drop --no-fit)")
     review = review_from_args(args)
+    said = sys.stderr if args.json else sys.stdout
+    if args.save_to_plan is not None:
+        print(keep_with_plan(review, args), file=said)
+    if args.keep_cda_on_setup is not None:
+        print(keep_cda_on_setup(review, args), file=said)
     if args.csv:
         from pacing.io.review_file import write_review_csv
 

@@ -5,7 +5,7 @@
 
 Prints the turn schedule (leader, from, to, laps or km, power, speed, lap or km time), each
 rider's lowest W′ balance and the gain over equal turns at constant speed; --json the numbers;
---csv / --xlsx write the schedule.
+--csv / --xlsx write the schedule, --card-png / --card-pdf the printable card.
 """
 
 from __future__ import annotations
@@ -20,7 +20,7 @@ from pacing.cli.common import CAUTION, add_air_flags, require
 from pacing.errors import InputError
 
 if TYPE_CHECKING:
-    from pacing.team.plan import TeamPlan
+    from pacing.team.plan import PlanOptions, TeamPlan
     from pacing.team.race import TeamRace
     from pacing.team.riders import Team, TeamRider
 
@@ -30,6 +30,9 @@ RIDER_KEYS = {"mass": "mass", "cda": "drag_area", "cp": "critical_power",
 
 REQUIRED_KEYS = ("mass", "cda", "cp", "w_prime")
 """Keys every --rider must give."""
+
+MOST_POWER_PARTS = 8
+"""Most parts of --power-parts: each adds a variable to the search (time grows) [-]."""
 
 
 def add_parser(subparsers: argparse._SubParsersAction) -> None:
@@ -62,6 +65,9 @@ def add_parser(subparsers: argparse._SubParsersAction) -> None:
                         help=f"published drafting set (default {DEFAULT_DRAFTING_SET})")
     parser.add_argument("--w-prime-reserve", type=float, default=0.0,
                         help="W′ every rider keeps while in the line [J] (default 0)")
+    parser.add_argument("--power-parts", type=int, default=None, metavar="N",
+                        help="equal parts of the race, each with its own factor on the "
+                             "leaders' power (default 4; 1 for one power per rider)")
     parser.add_argument("--flying-start", action="store_true",
                         help="start at race speed instead of from rest")
     parser.add_argument("--track-distance", type=float, default=None,
@@ -75,6 +81,10 @@ def add_parser(subparsers: argparse._SubParsersAction) -> None:
                         help="write the turn schedule as CSV")
     parser.add_argument("--xlsx", default=None, metavar="PATH",
                         help="write the turn schedule and W′ balances as XLSX")
+    parser.add_argument("--card-png", default=None, metavar="FILE",
+                        help="write the printable turn schedule card as PNG")
+    parser.add_argument("--card-pdf", default=None, metavar="FILE",
+                        help="write the printable turn schedule card as PDF")
     add_air_flags(parser)
     parser.set_defaults(run=run)
 
@@ -198,7 +208,29 @@ def plan_from_args(args: argparse.Namespace) -> tuple[Team, TeamRace, TeamPlan]:
     require(len(args.rider) >= 2, "give at least two --rider")
     team = Team(tuple(parse_rider(text) for text in args.rider))
     race = race_from_args(args, team)
-    return team, race, plan_team(team, race)
+    return team, race, plan_team(team, race, plan_options(args))
+
+
+def plan_options(args: argparse.Namespace) -> PlanOptions:
+    """The search's options of the flags (--power-parts, 1 to MOST_POWER_PARTS).
+
+    Parameters
+    ----------
+    args : argparse.Namespace
+        The flags [-].
+
+    Returns
+    -------
+    pacing.team.plan.PlanOptions
+        The options [-].
+    """
+    from pacing.team.plan import PlanOptions
+
+    if args.power_parts is None:
+        return PlanOptions()
+    require(1 <= args.power_parts <= MOST_POWER_PARTS,
+            f"--power-parts must be 1 to {MOST_POWER_PARTS}, got {args.power_parts}")
+    return PlanOptions(power_parts=args.power_parts)
 
 
 def plan_as_dict(plan: TeamPlan) -> dict[str, Any]:
@@ -268,11 +300,25 @@ def plan_as_text(race: TeamRace, plan: TeamPlan) -> str:
     ])
 
 
+def _write_cards(args: argparse.Namespace, race: TeamRace, plan: TeamPlan) -> None:
+    """The printable card (--card-png, --card-pdf): warnings and notes above the caution."""
+    from pacing.io.team_file import team_card_inputs, team_card_pdf, team_card_png, write_bytes
+
+    if not (args.card_png or args.card_pdf):
+        return
+    card = team_card_inputs(race, plan, "metric")
+    if args.card_png:
+        write_bytes(args.card_png, team_card_png(**card))
+    if args.card_pdf:
+        write_bytes(args.card_pdf, team_card_pdf(**card))
+
+
 def _write_files(args: argparse.Namespace, race: TeamRace, plan: TeamPlan) -> None:
     from pacing.display.notices import labelled
     from pacing.io.team_file import balance_table, schedule_csv, schedule_xlsx, write_bytes
     from pacing.team.schedule import plan_notices, rider_rows, turn_rows
 
+    _write_cards(args, race, plan)
     team = plan.team
     words = [labelled(n, "metric") for n in plan_notices(plan)]
     turns = turn_rows(team, plan.ride)

@@ -33,6 +33,7 @@ from pacing.compare.sensitivity import (
     Sensitivity,
     Spread,
     Uncertainty,
+    day_wind,
     difference_spread,
     finish_time_spread,
     sampled_difference,
@@ -235,10 +236,11 @@ def analyse_setups(race: RaceRequest, setups: Iterable[RiderSetup],
 
 
 def _sensitivities(comparison: Comparison) -> dict[str, Sensitivity]:
-    """Each setup's sensitivities, its plan's power profile held."""
+    """Each setup's sensitivities, its plan's power profile held, in the comparison's air
+    (the race day's: every number of a comparison in the same air)."""
     race = comparison.race
     return {r.name: sensitivity(race.course, r.plan.piece_power, r.setup.rider,
-                                race.conditions, race.options)
+                                race.conditions, race.options, air=comparison.air)
             for r in comparison.results}
 
 
@@ -258,19 +260,20 @@ def _sampled_spreads(comparison: Comparison, uncertainty: Uncertainty, samples: 
                      seed: int, finish: Mapping[str, Spread],
                      difference: Mapping[str, Spread]
                      ) -> tuple[dict[str, Spread], dict[str, Spread]]:
-    """The spreads with their Monte Carlo samples attached (the same seed for every setup)."""
+    """The spreads with their Monte Carlo samples attached (the same seed for every setup),
+    drawn in the comparison's air."""
     race = comparison.race
     base = comparison.baseline_result
     sampled_finish, sampled_delta = dict(finish), dict(difference)
     for r in comparison.results:
         sampled_finish[r.name] = replace(finish[r.name], samples=sampled_finish_time(
             race.course, r.plan.piece_power, r.setup.rider, race.conditions, uncertainty,
-            samples, seed, race.options))
+            samples, seed, race.options, air=comparison.air))
         if r is not base:
             sampled_delta[r.name] = replace(difference[r.name], samples=sampled_difference(
                 race.course, (base.setup.rider, base.plan.piece_power),
                 (r.setup.rider, r.plan.piece_power), race.conditions, uncertainty, samples,
-                seed, race.options))
+                seed, race.options, air=comparison.air))
     return sampled_finish, sampled_delta
 
 
@@ -315,7 +318,7 @@ def clipped_draw_notices(comparison: Comparison, uncertainty: Uncertainty,
     spread of a normal input.
 
     The share of normal draws x + σ·Z below a floor f is Φ((f − x)/σ) = ½·erfc((x − f)/(σ√2))
-    (x the forecast wind speed, or the lowest CdA, Crr or mass of the setups).
+    (x the day's wind speed (DayWind), or the lowest CdA, Crr or mass of the setups).
 
     Parameters
     ----------
@@ -338,7 +341,8 @@ def clipped_draw_notices(comparison: Comparison, uncertainty: Uncertainty,
     values = {"drag_area": _lowest(comparison.results, "drag_area"),
               "rolling_coefficient": _lowest(comparison.results, "rolling_coefficient"),
               "mass": _lowest(comparison.results, "mass"),
-              "wind": float(comparison.race.conditions.wind_speed)}
+              "wind": day_wind(comparison.race.course, comparison.race.conditions,
+                               air=comparison.air).speed}
     found = []
     for name, floor in DRAW_FLOORS.items():
         sigma = float(getattr(uncertainty, name))

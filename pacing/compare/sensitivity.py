@@ -10,8 +10,11 @@ with the steps h (the table a coach reads): +0.01 m² of CdA, +1 kg of total mas
 mean power (the profile scaled by (P̄ ± 10)/P̄), +0.001 of Crr, and +1 m/s of wind speed from
 the forecast direction (at the forecast's measurement height, as a weather report gives it).
 Wind uses a forward difference T(w + 1) − T(w) when the forecast wind w is below 1 m/s: a
-negative wind speed would turn the wind around. Central differences are second-order accurate;
-T is smooth in every parameter except where a speed cap starts or stops binding.
+negative wind speed would turn the wind around. In a race day's air (a weather table, given
+as `air`) every ride is in that air and the wind step is on the day's mean wind speed, each
+piece's wind scaled in proportion and keeping its direction (DayWind). Central differences
+are second-order accurate; T is smooth in every parameter except where a speed cap starts or
+stops binding.
 
 SIGN CONVENTION: a sensitivity is the change of finish time for an INCREASE of the parameter,
 positive = slower. More CdA, mass, Crr or wind is usually slower (positive); more power is
@@ -90,9 +93,11 @@ class Sensitivity:
     rolling_coefficient : float
         Change per +0.001 of Crr [s].
     wind : float
-        Change per +1 m/s of wind speed from the forecast direction [s].
+        Change per +1 m/s of the day's wind speed (DayWind: from the forecast direction, or
+        a race day's winds scaled in proportion) [s].
     wind_direction : float
-        The direction the wind blows from used for `wind`, clockwise from north [deg].
+        The direction the wind blows from used for `wind` (a race day's: its mean wind's),
+        clockwise from north [deg].
     """
 
     finish_time: float
@@ -134,24 +139,124 @@ def _rider_sensitivities(finish: Callable[..., float], rider: Rider, base: float
     return drag, mass, crr
 
 
-def _wind_sensitivity(course: Course, conditions: Conditions, density_model: str,
-                      finish: Callable[..., float], base: float) -> float:
-    """Seconds per +1 m/s of forecast wind speed [s]; forward difference below one step."""
-    wind_step = STEPS["wind"]
+@dataclass(frozen=True)
+class DayWind:
+    """The day's wind as the sensitivities and the draws change it: the wind on every piece
+    is `unit` times the wind at the rider's height, that wind the log profile of `speed`.
 
-    def with_wind(speed: float) -> float:
-        changed = replace(conditions, wind_speed=speed)
-        return finish(air_now=air_along_course(course, changed, density_model))
+    With one weather all day `speed` is the forecast's; with the air of a race day (a
+    weather table) it is the mean over the pieces of the wind met, and a change of it scales
+    the wind on every piece in proportion, each piece keeping its direction (a calm day: the
+    change blows from the forecast direction).
 
-    if conditions.wind_speed >= wind_step:
-        return 0.5 * (with_wind(conditions.wind_speed + wind_step)
-                      - with_wind(conditions.wind_speed - wind_step))
-    return with_wind(conditions.wind_speed + wind_step) - base
+    Attributes
+    ----------
+    unit : CourseAir
+        The day's air density [kg/m³] and the headwind and crosswind per m/s at the rider [-].
+    speed : float
+        The day's wind speed at the forecast's height (a table's: the mean) [m/s].
+    direction : float
+        Where the day's (mean) wind blows from, clockwise from north [deg].
+    conditions : Conditions
+        The forecast: the heights and roughness of the log profile, the range of wind speeds
+        it accepts [-].
+    """
+
+    unit: CourseAir
+    speed: float
+    direction: float
+    conditions: Conditions
+
+    def at_rider(self, speed: float) -> float:
+        """The wind at the rider's height of a wind `speed` at the forecast's height [m/s]
+        (InputError beyond the range Conditions accepts)."""
+        return replace(self.conditions, wind_speed=speed).wind_at_rider
+
+    def air(self, speed: float) -> CourseAir:
+        """The day's air with the wind speed `speed` at the forecast's height [m/s]."""
+        at_rider = self.at_rider(speed)
+        return CourseAir(density=self.unit.density, headwind=self.unit.headwind * at_rider,
+                         crosswind=self.unit.crosswind * at_rider)
+
+
+def _mean_direction(course: Course, air: CourseAir) -> float | None:
+    """Where the mean wind vector over the pieces blows from [deg], None when calm."""
+    wind_from = np.radians(np.asarray(course.heading, dtype=float)) + np.arctan2(
+        air.crosswind, air.headwind)
+    speed = np.hypot(air.headwind, air.crosswind)
+    east, north = np.mean(speed * np.sin(wind_from)), np.mean(speed * np.cos(wind_from))
+    if math.hypot(east, north) == 0.0:
+        return None
+    return float(np.degrees(np.arctan2(east, north)) % 360.0)
+
+
+def _forecast_wind(course: Course, conditions: Conditions, density: np.ndarray) -> DayWind:
+    """The single forecast's wind over the day's density."""
+    head, cross = wind_components(np.asarray(course.heading, dtype=float),
+                                  conditions.wind_from, 1.0)
+    return DayWind(CourseAir(density=np.asarray(density, dtype=float),
+                             headwind=np.asarray(head, dtype=float),
+                             crosswind=np.asarray(cross, dtype=float)),
+                   float(conditions.wind_speed), float(conditions.wind_from), conditions)
+
+
+def day_wind(course: Course, conditions: Conditions,
+             density_model: str = DEFAULT_AIR_DENSITY_MODEL,
+             air: CourseAir | None = None) -> DayWind:
+    """The day's wind (DayWind) of a single forecast, or of the air a race day made.
+
+    An air whose wind is the forecast's, number for number (a race day of one weather all
+    day), is the forecast's wind over that air's density.
+
+    Parameters
+    ----------
+    course : pacing.course.geometry.Course
+        The course, N points [-].
+    conditions : pacing.weather.conditions.Conditions
+        The forecast: its wind without `air`, and the heights and roughness of the log
+        profile [-].
+    density_model : str
+        Key of pacing.physics.air.AIR_DENSITY_MODELS (without `air`) [-].
+    air : CourseAir or None
+        The day's air on every piece (pacing.plan.race_day.shared_race_day); None works it
+        out from `conditions` [-].
+
+    Returns
+    -------
+    DayWind
+    """
+    if air is None:
+        return _forecast_wind(course, conditions,
+                              air_along_course(course, conditions, density_model).density)
+    forecast = wind_components(np.asarray(course.heading, dtype=float), conditions.wind_from,
+                               conditions.wind_at_rider)
+    if (np.array_equal(forecast[0], air.headwind)
+            and np.array_equal(forecast[1], air.crosswind)):
+        return _forecast_wind(course, conditions, air.density)
+    at_rider = float(np.mean(np.hypot(air.headwind, air.crosswind)))
+    direction = _mean_direction(course, air)
+    if at_rider > 0.0 and direction is not None:
+        profile = replace(conditions, wind_speed=1.0).wind_at_rider
+        return DayWind(CourseAir(density=air.density, headwind=air.headwind / at_rider,
+                                 crosswind=air.crosswind / at_rider),
+                       at_rider / profile, direction, conditions)
+    calm = _forecast_wind(course, conditions, air.density)
+    return replace(calm, speed=0.0)
+
+
+def _wind_sensitivity(wind: DayWind, finish: Callable[..., float], base: float) -> float:
+    """Seconds per +1 m/s of the day's wind speed [s]; forward difference below one step."""
+    step = STEPS["wind"]
+    if wind.speed >= step:
+        return 0.5 * (finish(air_now=wind.air(wind.speed + step))
+                      - finish(air_now=wind.air(wind.speed - step)))
+    return finish(air_now=wind.air(wind.speed + step)) - base
 
 
 def sensitivity(course: Course, piece_power: ArrayLike, rider: Rider, conditions: Conditions,
                 options: SimulationOptions | None = None,
-                density_model: str = DEFAULT_AIR_DENSITY_MODEL) -> Sensitivity:
+                density_model: str = DEFAULT_AIR_DENSITY_MODEL,
+                air: CourseAir | None = None) -> Sensitivity:
     """Finish-time sensitivities of a ride by finite differences on the inertial simulation.
 
     S_x = (T(x + h) − T(x − h)) / 2 with the steps h of STEPS (forward differences for Crr and
@@ -171,6 +276,10 @@ def sensitivity(course: Course, piece_power: ArrayLike, rider: Rider, conditions
         Choices of the simulation; None for the defaults [-].
     density_model : str
         Key of pacing.physics.air.AIR_DENSITY_MODELS [-].
+    air : CourseAir or None
+        The day's air on every piece (a race day's, pacing.plan.race_day.shared_race_day):
+        every ride, the wind's included (DayWind), is in it; None: the air of
+        `conditions` [-].
 
     Returns
     -------
@@ -187,7 +296,8 @@ def sensitivity(course: Course, piece_power: ArrayLike, rider: Rider, conditions
     JCGM 100:2008 (GUM), section 5.1: sensitivity coefficients.
     """
     power = np.asarray(piece_power, dtype=float)
-    air = air_along_course(course, conditions, density_model)
+    wind = day_wind(course, conditions, density_model, air)
+    air = air_along_course(course, conditions, density_model) if air is None else air
 
     def finish(rider_now: Rider = rider, power_now: np.ndarray = power,
                air_now: CourseAir = air) -> float:
@@ -201,10 +311,9 @@ def sensitivity(course: Course, piece_power: ArrayLike, rider: Rider, conditions
     if not mean > power_step:
         raise InputError(f"mean power must exceed {power_step:g} W for a sensitivity")
     watts = _central(lambda s: finish(power_now=power * (mean + s * power_step) / mean))
-    wind = _wind_sensitivity(course, conditions, density_model, finish, base)
     return Sensitivity(finish_time=base, drag_area=drag, mass=mass, power=watts,
-                       rolling_coefficient=crr, wind=wind,
-                       wind_direction=float(conditions.wind_from))
+                       rolling_coefficient=crr, wind=_wind_sensitivity(wind, finish, base),
+                       wind_direction=wind.direction)
 
 
 # ------------------------------------------------------------------------ uncertainty
@@ -384,12 +493,12 @@ DRAW_FLOORS = {"drag_area": 0.01, "rolling_coefficient": 0.0, "mass": 20.0, "win
 and wind speed [m/s] never go below these."""
 
 
-def _draw_rows(rider: Rider, conditions: Conditions, d_cda: np.ndarray, d_crr: np.ndarray,
+def _draw_rows(rider: Rider, wind: DayWind, d_cda: np.ndarray, d_crr: np.ndarray,
                d_mass: np.ndarray, d_wind: np.ndarray) -> np.ndarray:
     """Rows of pacing.plan.simulate.finish_times for the errors of each draw: total mass
     (at least its floor) [kg], CdA and Crr errors [m², -] (the floors apply per piece) and
-    the wind at the rider's height from the forecast speed plus its error (at least its
-    floor) [m/s].
+    the wind at the rider's height from the day's speed plus its error (at least its floor)
+    [m/s], for the unit air `wind.unit`.
 
     Raises
     ------
@@ -398,32 +507,20 @@ def _draw_rows(rider: Rider, conditions: Conditions, d_cda: np.ndarray, d_crr: n
     """
     floor = DRAW_FLOORS
     mass = np.maximum(rider.mass + d_mass, floor["mass"])
-    wind = [replace(conditions, wind_speed=max(conditions.wind_speed + error, floor["wind"])
-                    ).wind_at_rider for error in d_wind.tolist()]
-    return np.column_stack([mass, d_cda, d_crr, np.array(wind, dtype=float)])
+    at_rider = [wind.at_rider(max(wind.speed + error, floor["wind"]))
+                for error in d_wind.tolist()]
+    return np.column_stack([mass, d_cda, d_crr, np.array(at_rider, dtype=float)])
 
 
-def _unit_wind_air(course: Course, conditions: Conditions, density_model: str) -> CourseAir:
-    """The day's air density and the headwind and crosswind of 1 m/s at the rider's height
-    from the forecast direction (the log profile and the split by heading are linear in the
-    wind speed, so a draw's wind is this times its speed at the rider)."""
-    density = air_along_course(course, conditions, density_model).density
-    headwind, crosswind = wind_components(np.asarray(course.heading, dtype=float),
-                                          conditions.wind_from, 1.0)
-    return CourseAir(density=density, headwind=np.asarray(headwind, dtype=float),
-                     crosswind=np.asarray(crosswind, dtype=float))
-
-
-def _sampled_times(course: Course, power: ArrayLike, rider: Rider, conditions: Conditions,
-                   options: SimulationOptions | None, density_model: str,
+def _sampled_times(course: Course, power: ArrayLike, rider: Rider, wind: DayWind,
+                   options: SimulationOptions | None,
                    errors: tuple[np.ndarray, np.ndarray, np.ndarray, np.ndarray]) -> np.ndarray:
     """Finish time of each draw [s] with the errors (CdA, Crr, mass, wind) added, clipped at
     physical limits (DRAW_FLOORS), all draws ridden together."""
     d_cda, d_crr, d_mass, d_wind = errors
-    rows = _draw_rows(rider, conditions, d_cda, d_crr, d_mass, d_wind)
-    return finish_times(course, np.asarray(power, dtype=float), rider,
-                        _unit_wind_air(course, conditions, density_model), rows, options,
-                        (DRAW_FLOORS["drag_area"], DRAW_FLOORS["rolling_coefficient"]))
+    rows = _draw_rows(rider, wind, d_cda, d_crr, d_mass, d_wind)
+    return finish_times(course, np.asarray(power, dtype=float), rider, wind.unit, rows,
+                        options, (DRAW_FLOORS["drag_area"], DRAW_FLOORS["rolling_coefficient"]))
 
 
 def _check_samples(samples: int) -> None:
@@ -436,7 +533,8 @@ def sampled_finish_time(course: Course, piece_power: ArrayLike, rider: Rider,
                         conditions: Conditions, uncertainty: Uncertainty,
                         samples: int = 200, seed: int = 0,
                         options: SimulationOptions | None = None,
-                        density_model: str = DEFAULT_AIR_DENSITY_MODEL) -> np.ndarray:
+                        density_model: str = DEFAULT_AIR_DENSITY_MODEL,
+                        air: CourseAir | None = None) -> np.ndarray:
     """Monte Carlo finish times: normal errors of CdA, Crr, mass and wind speed.
 
     Each draw is clipped at physical limits and ridden by the full simulation, all draws
@@ -463,6 +561,9 @@ def sampled_finish_time(course: Course, piece_power: ArrayLike, rider: Rider,
         Choices of the simulation; None for the defaults [-].
     density_model : str
         Key of pacing.physics.air.AIR_DENSITY_MODELS [-].
+    air : CourseAir or None
+        The day's air on every piece (a race day's); the wind's error changes its wind as
+        DayWind says; None: the air of `conditions` [-].
 
     Returns
     -------
@@ -482,15 +583,16 @@ def sampled_finish_time(course: Course, piece_power: ArrayLike, rider: Rider,
     generator = np.random.default_rng(seed)
     draws = _draws(uncertainty, samples, generator)
     errors = (draws[:, 0], draws[:, 1], draws[:, 2], draws[:, 3])
-    return _sampled_times(course, piece_power, rider, conditions, options, density_model,
-                          errors)
+    return _sampled_times(course, piece_power, rider,
+                          day_wind(course, conditions, density_model, air), options, errors)
 
 
 def sampled_difference(course: Course, first: tuple[Rider, ArrayLike],
                        second: tuple[Rider, ArrayLike], conditions: Conditions,
                        uncertainty: Uncertainty, samples: int = 200, seed: int = 0,
                        options: SimulationOptions | None = None,
-                       density_model: str = DEFAULT_AIR_DENSITY_MODEL) -> np.ndarray:
+                       density_model: str = DEFAULT_AIR_DENSITY_MODEL,
+                       air: CourseAir | None = None) -> np.ndarray:
     """Monte Carlo T_second − T_first: shared draws of Crr, mass and wind, independent draws
     of each setup's CdA (both with the σ of `uncertainty`).
 
@@ -514,6 +616,9 @@ def sampled_difference(course: Course, first: tuple[Rider, ArrayLike],
         Choices of the simulation; None for the defaults [-].
     density_model : str
         Key of pacing.physics.air.AIR_DENSITY_MODELS [-].
+    air : CourseAir or None
+        The day's air on every piece (a race day's); the wind's error changes its wind as
+        DayWind says; None: the air of `conditions` [-].
 
     Returns
     -------
@@ -532,8 +637,9 @@ def sampled_difference(course: Course, first: tuple[Rider, ArrayLike],
     _check_samples(samples)
     generator = np.random.default_rng(seed)
     draws = _draws(uncertainty, samples, generator, extra=2)
+    wind = day_wind(course, conditions, density_model, air)
     times = [
-        _sampled_times(course, power, rider, conditions, options, density_model,
+        _sampled_times(course, power, rider, wind, options,
                        (draws[:, 4 + j] * uncertainty.drag_area, draws[:, 1], draws[:, 2],
                         draws[:, 3]))
         for j, (rider, power) in enumerate((first, second))

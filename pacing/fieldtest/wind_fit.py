@@ -77,11 +77,11 @@ class HeadingSpread:
     Attributes
     ----------
     resultant : float
-        Mean resultant length |Σ t̂·Δs| / ΣΔs of the unit vectors of travel [-]: 1 = one
-        heading, 0 = as much one way as back.
+        Mean resultant length |Σ u_i·l_i| / Σ l_i of the unit vectors of travel u_i over
+        pieces of length l_i [-]: 1 = one heading, 0 = as much one way as back.
     across : float
-        Smaller eigenvalue of the mean of t̂·t̂ᵀ [-], 0..0.5: the share of travel across the
-        main axis (0 = one road, 0.5 = every direction alike).
+        Smaller eigenvalue of the length-weighted mean of u_i·u_iᵀ [-], 0..0.5: the share of
+        travel across the main axis (0 = one road, 0.5 = every direction alike).
     axis : float
         Main axis of travel [deg clockwise from north], 0-180.
     """

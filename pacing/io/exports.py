@@ -531,10 +531,10 @@ def _card_figure(rows: Sequence[Any], system: str, title: str,
     for number, warning in enumerate(warnings):
         y = (height - CARD_FOOTER_HEIGHT - CARD_WARNING_HEIGHT * (len(warnings) - number)
              + CARD_WARNING_HEIGHT / 2)
-        axes.text(0.12, y, _wrap("⚠ " + warning, width), fontsize=7, va="center",
+        axes.text(0.12, y, wrap_text("⚠ " + warning, width), fontsize=7, va="center",
                   color="#8a2c0d", fontweight="bold")
     caution = RUNNING_CAUTION_LINE if pace_only else CAUTION_LINE
-    axes.text(0.12, height - CARD_FOOTER_HEIGHT / 2, _wrap(caution, width), fontsize=7,
+    axes.text(0.12, height - CARD_FOOTER_HEIGHT / 2, wrap_text(caution, width), fontsize=7,
               va="center", color="0.2")
     return figure
 
@@ -567,7 +567,7 @@ def _card_gap_lines(rows: Sequence[Any], system: str) -> list[str]:
     return lines
 
 
-def _wrap(text: str, width_inches: float) -> str:
+def wrap_text(text: str, width_inches: float) -> str:
     """The text wrapped to about 15 characters per inch of width [in]."""
     import textwrap
 

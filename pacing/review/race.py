@@ -18,8 +18,9 @@ The notices say what was assumed or could not be done (codes "review-…", and t
 from __future__ import annotations
 
 import dataclasses
+from collections.abc import Callable
 from dataclasses import dataclass
-from typing import TYPE_CHECKING
+from typing import TYPE_CHECKING, Any
 
 import numpy as np
 
@@ -93,6 +94,51 @@ class RaceReview:
     def gap_along(self) -> np.ndarray:
         """Ridden − planned time at each course point [s] (positive: behind the plan)."""
         return self.actual_time_along - self.planned_time_along
+
+    def as_json(self, notices_json: Callable[[tuple[Notice, ...]], list[dict[str, Any]]]
+                | None = None) -> dict[str, Any]:
+        """The review as a JSON value (what ``pacing review --json`` prints and the library
+        keeps with a saved plan), SI with the unit in each key, no NaN.
+
+        Parameters
+        ----------
+        notices_json : callable or None
+            Turns the notices into the "warnings" list (the edges add words, e.g.
+            pacing.cli.common.notices_as_json); None: each notice's ``as_dict()``.
+
+        Returns
+        -------
+        dict
+            planned_time_s, actual_time_s, segments, attribution, attribution_detail, fitted,
+            day_conditions, alignment, warnings.
+        """
+        alignment, day = self.alignment, self.day_conditions
+        return {
+            "planned_time_s": self.planned_time,
+            "actual_time_s": self.actual_time,
+            "segments": [
+                {"start_m": s.start, "end_m": s.end, "planned_time_s": s.planned_time,
+                 "actual_time_s": s.actual_time, "delta_s": s.delta,
+                 "planned_power_w": s.planned_power, "actual_power_w": s.actual_power,
+                 "planned_speed_mps": s.planned_speed, "actual_speed_mps": s.actual_speed,
+                 "stopped_s": s.stopped_time, "planned_min_w_prime_j": s.planned_min_w_prime,
+                 "actual_min_w_prime_j": s.actual_min_w_prime}
+                for s in self.segments],
+            "attribution": self.attribution.parts(),
+            "attribution_detail": {
+                "stopped_s": self.attribution.stopped_s,
+                "replays": [{"causes": list(causes), "finish_time_s": time}
+                            for causes, time in self.attribution.replays]},
+            "fitted": None if self.fitted is None else self.fitted.as_json(),
+            "day_conditions": {"temperature_c": day.temperature,
+                               "wind_speed_mps": day.wind_speed,
+                               "wind_from_deg": day.wind_from, "wind_height_m": day.wind_height},
+            "alignment": {"method": alignment.method,
+                          "off_course_samples": int(alignment.off_course.sum()),
+                          "dropouts": int(alignment.dropout.sum())},
+            "warnings": (notices_json(self.notices) if notices_json is not None
+                         else [n.as_dict() for n in self.notices]),
+        }
 
 
 def _piece_at(course: Course, distance: np.ndarray) -> np.ndarray:

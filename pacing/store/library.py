@@ -1,4 +1,5 @@
-"""The coach's library: athletes, their setups, courses, saved plans and teams, in one database.
+"""The coach's library: athletes, their setups, courses, saved plans (with race reviews) and
+teams, in one database.
 
 Every write is one short transaction that takes the write lock; reads never take it (SQLite
 in WAL mode, pacing.store.database). Every entry has a revision: a change or a delete that names
@@ -24,17 +25,19 @@ from pacing.store.database import open_engine
 from pacing.store.library_athletes import AthleteMethods
 from pacing.store.library_courses import CourseMethods
 from pacing.store.library_plans import PlanMethods
+from pacing.store.library_reviews import ReviewMethods
 from pacing.store.library_teams import TeamMethods
 
 
-class Library(AthleteMethods, CourseMethods, PlanMethods, TeamMethods):
+class Library(AthleteMethods, CourseMethods, PlanMethods, ReviewMethods, TeamMethods):
     """A coach's library in one database. Open it with `open_library`; close it when done
     (or use it as a context manager). Methods return frozen records, never database objects.
 
     The engine, transactions and reads by id come from pacing.store.library_base.LibraryBase;
     the methods on athletes and setups from pacing.store.library_athletes, on courses from
-    pacing.store.library_courses, on saved plans from pacing.store.library_plans, on teams
-    from pacing.store.library_teams.
+    pacing.store.library_courses, on saved plans from pacing.store.library_plans, on the race
+    reviews kept with them from pacing.store.library_reviews, on teams from
+    pacing.store.library_teams.
 
     Parameters
     ----------

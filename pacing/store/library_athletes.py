@@ -9,10 +9,11 @@ import sqlalchemy as sa
 
 from pacing.athlete import Athlete, Setup
 from pacing.errors import InputError
+from pacing.store.drag_origin import origin_columns
 from pacing.store.library_base import LibraryBase
-from pacing.store.records import AthleteRecord, SetupRecord
+from pacing.store.records import AthleteRecord, DragAreaOrigin, SetupRecord
 from pacing.store.rows import athlete_record, athlete_row, plural, setup_record, setup_row
-from pacing.store.schema import athletes, plans, setups
+from pacing.store.schema import athletes, plan_reviews, plans, setups
 from pacing.store.statements import (
     NameTaken,
     check_on_existing,
@@ -168,14 +169,16 @@ class AthleteMethods(LibraryBase):
                 raise InputError(
                     f"deleting athlete {row.name!r} also deletes {plural(n_setups, 'setup')} "
                     f"and {plural(n_plans, 'saved plan')}; confirm to go ahead")
+            connection.execute(plan_reviews.delete().where(plan_reviews.c.plan_id.in_(
+                sa.select(plans.c.id).where(plans.c.athlete_id == athlete_id))))
             connection.execute(plans.delete().where(plans.c.athlete_id == athlete_id))
             connection.execute(setups.delete().where(setups.c.athlete_id == athlete_id))
             delete_row(connection, athletes, "athlete", athlete_id, revision)
 
     # ---- setups -----------------------------------------------------------------------------
 
-    def add_setup(self, athlete_id: int, setup: Setup, *, on_existing: str = "refuse"
-                  ) -> SetupRecord:
+    def add_setup(self, athlete_id: int, setup: Setup, *, on_existing: str = "refuse",
+                  drag_area_origin: DragAreaOrigin | None = None) -> SetupRecord:
         """Store a new setup of an athlete; a name the athlete's setups already hold is never
         overwritten silently.
 
@@ -188,6 +191,9 @@ class AthleteMethods(LibraryBase):
         on_existing : str
             When the athlete has a setup of that name: "refuse" (NameTaken), "replace" (its
             values, keeping its id) or "keep-both" (this one is named "name (2)") [-].
+        drag_area_origin : DragAreaOrigin or None
+            The drag area's interval and source when it was measured (a race review); None
+            when it was typed in.
 
         Returns
         -------
@@ -200,6 +206,7 @@ class AthleteMethods(LibraryBase):
             The name is taken and `on_existing` is "refuse".
         """
         values = setup_row(setup)
+        values.update(origin_columns(drag_area_origin, values["drag_area"]))
         check_on_existing(on_existing)
         with self.transaction() as connection:
             self._one(athletes, "athlete", athlete_id, connection)
@@ -245,7 +252,8 @@ class AthleteMethods(LibraryBase):
             query = query.where(setups.c.athlete_id == athlete_id)
         return tuple(setup_record(row) for row in self._rows(query))
 
-    def update_setup(self, setup_id: int, setup: Setup, *, revision: int) -> SetupRecord:
+    def update_setup(self, setup_id: int, setup: Setup, *, revision: int,
+                     drag_area_origin: DragAreaOrigin | None = None) -> SetupRecord:
         """Replace a setup's values.
 
         Parameters
@@ -256,6 +264,10 @@ class AthleteMethods(LibraryBase):
             The new values (SI).
         revision : int
             The revision of the copy the change is based on (the record's `revision`).
+        drag_area_origin : DragAreaOrigin or None
+            The new drag area's interval and source (a race review). None keeps the stored
+            origin while the drag area stays the same, and drops it when the drag area changes
+            (a typed-in value has no interval).
 
         Returns
         -------
@@ -268,7 +280,13 @@ class AthleteMethods(LibraryBase):
             Someone changed the setup since `revision`.
         """
         values = setup_row(setup)
+        if drag_area_origin is not None:
+            values.update(origin_columns(drag_area_origin, values["drag_area"]))
         with self.transaction() as connection:
+            if drag_area_origin is None:
+                stored = self._one(setups, "setup", setup_id, connection)
+                if stored.drag_area != values["drag_area"]:
+                    values.update(origin_columns(None, values["drag_area"]))
             update_row(connection, setups, "setup", setup_id, revision, values)
         return self.setup(setup_id)
 

@@ -17,16 +17,19 @@ import pacing
 from pacing.errors import InputError
 from pacing.store import jsontext
 from pacing.store.database import as_utc
+from pacing.store.drag_origin import origin_entry
 from pacing.store.library import Library
 from pacing.store.library_file import FORMAT_NAME, FORMAT_VERSION
+from pacing.store.library_reviews import file_review_entry
 from pacing.store.rows import (
     ATHLETE_NUMBERS,
     SETUP_NUMBERS,
     athlete_from_row,
     check_id,
+    origin_from_row,
     setup_from_row,
 )
-from pacing.store.schema import athletes, courses, plans, setups, teams
+from pacing.store.schema import athletes, courses, plan_reviews, plans, setups, teams
 
 
 def _stamp(value: datetime.datetime) -> str:
@@ -66,6 +69,7 @@ def _setup_entry(row: Any) -> dict[str, Any]:
             **{field: getattr(setup, field) for field in SETUP_NUMBERS},
             "yaw_drag_table": (None if setup.yaw_drag_table is None
                                else [list(pair) for pair in setup.yaw_drag_table]),
+            "drag_area_origin": origin_entry(origin_from_row(row)),
             "created_at": _stamp(row.created_at), "updated_at": _stamp(row.updated_at)}
 
 
@@ -90,8 +94,8 @@ def _course_entry(row: Any) -> dict[str, Any]:
     }
 
 
-def _plan_entry(row: Any) -> dict[str, Any]:
-    """A saved plan as the file holds it."""
+def _plan_entry(row: Any, review_rows: list[Any]) -> dict[str, Any]:
+    """A saved plan as the file holds it, with its race reviews among `review_rows`."""
     return {
         "id": row.id, "name": row.name, "inputs": jsontext.loads(row.inputs),
         "strategy": jsontext.loads(row.strategy), "weather": jsontext.loads(row.weather),
@@ -99,6 +103,7 @@ def _plan_entry(row: Any) -> dict[str, Any]:
         "finish_time": row.finish_time, "library_version": row.library_version,
         "notes": row.notes,
         "created_at": _stamp(row.created_at), "updated_at": _stamp(row.updated_at),
+        "reviews": [file_review_entry(r) for r in review_rows if r.plan_id == row.id],
     }
 
 
@@ -136,6 +141,9 @@ def export_library(library: Library, athlete_id: int | None = None) -> dict[str,
     with library.reading() as connection:
         athlete_rows, setup_rows, course_rows, plan_rows = _export_rows(connection, athlete_id)
         team_entries = _team_entries(connection) if athlete_id is None else []
+        review_rows = list(connection.execute(
+            sa.select(plan_reviews).where(plan_reviews.c.plan_id.in_([r.id for r in plan_rows]))
+            .order_by(plan_reviews.c.created_at, plan_reviews.c.id)))
     return {
         "format": FORMAT_NAME,
         "format_version": FORMAT_VERSION,
@@ -143,7 +151,7 @@ def export_library(library: Library, athlete_id: int | None = None) -> dict[str,
         "exported_by": f"pacing {pacing.__version__}",
         "athletes": [_athlete_entry(row, setup_rows) for row in athlete_rows],
         "courses": [_course_entry(row) for row in course_rows],
-        "plans": [_plan_entry(row) for row in plan_rows],
+        "plans": [_plan_entry(row, review_rows) for row in plan_rows],
         "teams": team_entries,
     }
 

@@ -6,7 +6,7 @@ pacing.store.library_import adds one to a library. A format of our own design:
 ```
 {
   "format": "pacing library",          # marks the file
-  "format_version": 2,                 # FORMAT_VERSION; files from a newer pacing are refused
+  "format_version": 3,                 # FORMAT_VERSION; files from a newer pacing are refused
   "exported_at": "2026-12-01T22:30:00+00:00",
   "exported_by": "pacing 0.1.0",
   "athletes": [{"id": 1, "name": "Ann", "body_mass": 61.0, "critical_power": 250.0,
@@ -16,6 +16,8 @@ pacing.store.library_import adds one to a library. A format of our own design:
                 "setups": [{"id": 4, "name": "TT bike", "bike_mass": 8.9, "drag_area": 0.23,
                             "power_share": 0.95, "rolling_coefficient": 0.003,
                             "drivetrain_efficiency": 0.976, "yaw_drag_table": null,
+                            "drag_area_origin": {"low_m2": 0.22, "high_m2": 0.24,
+                                  "source": "race review of Hill TT.csv, 2026-12-05"},
                             "created_at": "...", "updated_at": "..."}]}],
   "courses": [{"id": 2, "name": "Hill loop", "distance_m": 41250.0, "ascent_m": 610.0,
                "gpx_sha256": "<hex>", "gpx_base64": "<the original GPX file>",
@@ -24,7 +26,10 @@ pacing.store.library_import adds one to a library. A format of our own design:
                                                    "course_id": 2, ...},
              "strategy": ..., "weather": ..., "targets": [{...}, ...],
              "time_saved": 41.5, "finish_time": 3725.0, "library_version": "0.1.0",
-             "notes": "", "created_at": "...", "updated_at": "..."}],
+             "notes": "", "created_at": "...", "updated_at": "...",
+             "reviews": [{"ride_name": "Hill TT.csv", "ride_sha256": "<hex>",
+                          "review": {"planned_time_s": 3725.0, ...},
+                          "created_at": "...", "updated_at": "..."}]}],
   "teams": [{"id": 3, "name": "Pursuit A", "riders": [{"name": "Ann", "mass": 72.0,
              "drag_area": 0.19, "critical_power": 380.0, "w_prime": 22000.0,
              "max_power": null, "rolling_coefficient": 0.0025}, ...],
@@ -34,7 +39,10 @@ pacing.store.library_import adds one to a library. A format of our own design:
 ```
 
 Version 2 added "teams" (optional: version 1 files have none; a whole-library export writes
-them, one athlete's export does not).
+them, one athlete's export does not). Version 3 added the setups' "drag_area_origin" (the drag
+area's 95 % interval [m²] and source, pacing.store.drag_origin; null or absent when typed in)
+and the plans' "reviews" (the race reviews kept with the plan, pacing.store.library_reviews;
+absent in older files).
 
 Ids are those of the exporting library; the plans' link keys (``athlete_id``, ``setup_id``,
 ``course_id`` in their inputs) refer to them. Import gives every entry a new id and rewrites
@@ -61,7 +69,8 @@ from typing import TYPE_CHECKING, Any
 
 from pacing.athlete import Athlete, Setup
 from pacing.errors import InputError
-from pacing.store.records import PLAN_LINK_KEYS, PLAN_RESULT_KEYS
+from pacing.store.drag_origin import origin_from_entry
+from pacing.store.records import PLAN_LINK_KEYS, PLAN_RESULT_KEYS, DragAreaOrigin
 from pacing.store.rows import (
     ATHLETE_NUMBERS,
     SETUP_NUMBERS,
@@ -81,7 +90,7 @@ if TYPE_CHECKING:
 #: Value of the file's "format" field.
 FORMAT_NAME = "pacing library"
 #: Version of the format this pacing writes; it reads this one and older.
-FORMAT_VERSION = 2
+FORMAT_VERSION = 3
 #: Largest library file read [bytes] (as GPX files, pacing.io.safe_xml): checked before the
 #: file is read whole, so a larger one is refused at once with little memory.
 FILE_SIZE_LIMIT = 50 * 2**20
@@ -94,9 +103,10 @@ TIME_RANGE = (datetime.datetime(1970, 1, 1), datetime.datetime(9998, 12, 31))
 
 _STAMPS = ("created_at", "updated_at")
 _ATHLETE_KEYS = {"id", "name", *ATHLETE_NUMBERS, "setups", *_STAMPS}
-_SETUP_KEYS = {"id", "name", *SETUP_NUMBERS, "yaw_drag_table", *_STAMPS}
+_SETUP_KEYS = {"id", "name", *SETUP_NUMBERS, "yaw_drag_table", "drag_area_origin", *_STAMPS}
 _COURSE_KEYS = {"id", "name", "distance_m", "ascent_m", "gpx_sha256", "gpx_base64", *_STAMPS}
-_PLAN_KEYS = {"id", "name", "inputs", *PLAN_RESULT_KEYS, "library_version", "notes", *_STAMPS}
+_PLAN_KEYS = {"id", "name", "inputs", *PLAN_RESULT_KEYS, "library_version", "notes", "reviews",
+              *_STAMPS}
 _TOP_KEYS = {"format", "format_version", "exported_at", "exported_by", "athletes", "courses",
              "plans", "teams"}
 
@@ -139,6 +149,8 @@ class FileSetup:
         When the exporting library stored it (naive UTC).
     updated_at : datetime.datetime
         When it was last changed there (naive UTC).
+    drag_area_origin : DragAreaOrigin or None
+        The drag area's interval and source (format version 3), None when not given.
     """
 
     id: int
@@ -146,6 +158,7 @@ class FileSetup:
     setup: Setup
     created_at: datetime.datetime
     updated_at: datetime.datetime
+    drag_area_origin: DragAreaOrigin | None = None
 
 
 @dataclass(frozen=True)
@@ -201,6 +214,8 @@ class FilePlan:
         When the exporting library stored it (naive UTC).
     updated_at : datetime.datetime
         When it was last changed there (naive UTC).
+    reviews : tuple of pacing.store.library_reviews.FileReview
+        The race reviews kept with the plan (format version 3), in file order.
     """
 
     id: int
@@ -211,6 +226,7 @@ class FilePlan:
     notes: str
     created_at: datetime.datetime
     updated_at: datetime.datetime
+    reviews: tuple[Any, ...] = ()
 
 
 @dataclass(frozen=True)
@@ -452,7 +468,8 @@ def _read_setup(entry: Any, where: str, athlete_id: int, setup_owner: dict[int, 
     setup = _build(Setup, {"name": entry["name"], "yaw_drag_table": table,
                            **{f: entry[f] for f in SETUP_NUMBERS}}, where)
     _checked(setup_row, where, setup)
-    return FileSetup(setup_id, athlete_id, setup, *_stamps(entry, where))
+    origin = origin_from_entry(entry.get("drag_area_origin"), where, setup.drag_area)
+    return FileSetup(setup_id, athlete_id, setup, *_stamps(entry, where), origin)
 
 
 def _read_athletes(entries: Any
@@ -540,8 +557,11 @@ def _read_plan(entry: Any, where: str, seen: set[int], athlete_ids: set[int],
     if not isinstance(version, str) or not version or len(version) > 50:
         raise InputError(f"{where}: library_version must be short text")
     notes = _checked(check_notes, where, notes)
+    from pacing.store.library_reviews import read_file_reviews
+
     return FilePlan(plan_id, name, dict(entry["inputs"]), result, version, notes,
-                    *_stamps(entry, where))
+                    *_stamps(entry, where),
+                    read_file_reviews(entry.get("reviews", []), f"{where}.reviews"))
 
 
 def _read_plans(entries: Any, athlete_ids: set[int], setup_owner: Mapping[int, int],

@@ -20,6 +20,7 @@ from typing import Any
 import sqlalchemy as sa
 from sqlalchemy.engine import Connection
 
+from pacing.store.drag_origin import origin_columns
 from pacing.store.library import Library
 from pacing.store.library_file import LibraryFile, read_library_file
 from pacing.store.rows import (
@@ -31,7 +32,7 @@ from pacing.store.rows import (
     plural,
     setup_row,
 )
-from pacing.store.schema import athletes, courses, plans, setups, teams
+from pacing.store.schema import athletes, courses, plan_reviews, plans, setups, teams
 from pacing.store.statements import NameTaken, check_on_existing
 
 
@@ -53,6 +54,8 @@ class ImportSummary:
         New saved plans [-].
     teams : int
         New teams [-].
+    reviews : int
+        New race reviews kept with the saved plans [-].
     """
 
     athletes: int
@@ -61,6 +64,7 @@ class ImportSummary:
     courses_already_stored: int
     plans: int
     teams: int = 0
+    reviews: int = 0
 
     def message(self) -> str:
         """One line for the user, e.g. "imported 1 athlete, 2 setups, 1 course and 3 saved
@@ -70,6 +74,7 @@ class ImportSummary:
         text = (f"imported {plural(self.athletes, 'athlete')}, {plural(self.setups, 'setup')}, "
                 f"{plural(self.courses, 'course')}{reused} and "
                 f"{plural(self.plans, 'saved plan')}")
+        text += f" with {plural(self.reviews, 'race review')}" if self.reviews else ""
         return text + (f", and {plural(self.teams, 'team')}" if self.teams else "")
 
 
@@ -129,7 +134,9 @@ def _prepare(data: LibraryFile) -> _Prepared:
     return _Prepared(
         athletes=[_stamped(athlete_row(a.athlete), a.created_at, a.updated_at)
                   for a in data.athletes],
-        setups=[_stamped(setup_row(s.setup), s.created_at, s.updated_at) for s in data.setups],
+        setups=[_stamped(dict(setup_row(s.setup),
+                              **origin_columns(s.drag_area_origin, s.setup.drag_area)),
+                         s.created_at, s.updated_at) for s in data.setups],
         setup_athletes=[s.athlete_id for s in data.setups],
         courses=[_stamped(course_row(c.name, c.gpx, c.distance_m, c.ascent_m), c.created_at,
                           c.updated_at) for c in data.courses],
@@ -255,11 +262,16 @@ def import_library(library: Library, source: str | bytes | LibraryFile, *,
         maps = {"athlete_id": athlete_map,
                 "setup_id": dict(zip((s.id for s in data.setups), setup_ids, strict=True)),
                 "course_id": dict(zip((c.id for c in data.courses), course_ids, strict=True))}
-        insert_many(connection, plans, _placed(
+        plan_ids = insert_many(connection, plans, _placed(
             _plan_rows(prepared, maps), _Names(connection, plans, "saved plan", on_existing)))
+        insert_many(connection, plan_reviews, [
+            _stamped(dict(review.row, plan_id=plan_id), review.created_at, review.updated_at)
+            for plan, plan_id in zip(data.plans, plan_ids, strict=True)
+            for review in plan.reviews])
         insert_many(connection, teams, _placed(
             [_stamped(t.row, t.created_at, t.updated_at) for t in data.teams],
             _Names(connection, teams, "team", on_existing)))
     return ImportSummary(athletes=len(data.athletes), setups=len(data.setups),
                          courses=len(data.courses) - reused, courses_already_stored=reused,
-                         plans=len(data.plans), teams=len(data.teams))
+                         plans=len(data.plans), teams=len(data.teams),
+                         reviews=sum(len(plan.reviews) for plan in data.plans))

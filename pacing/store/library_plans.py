@@ -23,7 +23,7 @@ from pacing.store.rows import (
     plan_result_values,
     plan_summary,
 )
-from pacing.store.schema import athletes, courses, plans, setups
+from pacing.store.schema import athletes, courses, plan_reviews, plans, setups
 from pacing.store.statements import (
     check_on_existing,
     delete_row,
@@ -248,4 +248,6 @@ class PlanMethods(LibraryBase):
             if not confirm:
                 raise InputError(f"deleting saved plan {row.name!r} cannot be undone; confirm "
                                  "to go ahead")
+            # its race reviews go with it (pacing.store.library_reviews)
+            connection.execute(plan_reviews.delete().where(plan_reviews.c.plan_id == plan_id))
             delete_row(connection, plans, "plan", plan_id, revision)

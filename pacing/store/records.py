@@ -50,6 +50,23 @@ class AthleteRecord:
 
 
 @dataclass(frozen=True)
+class DragAreaOrigin:
+    """Where a setup's drag area came from: its interval and its source (e.g. a race review).
+
+    Attributes
+    ----------
+    low_m2, high_m2 : float
+        The drag area's interval (95 %), low <= the setup's drag area <= high [m²].
+    source : str
+        Where the value came from, one line (e.g. "race review of Hill TT.csv, 2026-12-05").
+    """
+
+    low_m2: float
+    high_m2: float
+    source: str
+
+
+@dataclass(frozen=True)
 class SetupRecord:
     """A stored setup (bike, kit and position); it belongs to one athlete.
 
@@ -67,6 +84,9 @@ class SetupRecord:
         When it was stored (timezone-aware, UTC).
     updated_at : datetime.datetime
         When it was last changed (timezone-aware, UTC).
+    drag_area_origin : DragAreaOrigin or None
+        The drag area's interval and source when it was measured (a race review); None when
+        it was typed in or changed since.
     """
 
     id: int
@@ -75,6 +95,7 @@ class SetupRecord:
     revision: int
     created_at: datetime.datetime
     updated_at: datetime.datetime
+    drag_area_origin: DragAreaOrigin | None = None
 
 
 @dataclass(frozen=True)
@@ -280,6 +301,41 @@ class TeamRecord:
     team: Team
     drafting: tuple[float, ...] | None
     counts_rider: int | None
+    revision: int
+    created_at: datetime.datetime
+    updated_at: datetime.datetime
+
+
+@dataclass(frozen=True)
+class PlanReviewRecord:
+    """A stored review of a race ridden to a saved plan.
+
+    Attributes
+    ----------
+    id : int
+        Library id.
+    plan_id : int
+        Library id of the saved plan reviewed.
+    ride_name : str
+        The race file's name.
+    ride_sha256 : str
+        SHA-256 of the race file (64 hexadecimal digits).
+    review : dict
+        The review as JSON (what ``pacing review --json`` prints: planned_time_s,
+        actual_time_s, segments, attribution, fitted, warnings; SI).
+    revision : int
+        Change counter: 1 when created, +1 on every change.
+    created_at : datetime.datetime
+        When it was stored (timezone-aware, UTC).
+    updated_at : datetime.datetime
+        When it was last changed (timezone-aware, UTC).
+    """
+
+    id: int
+    plan_id: int
+    ride_name: str
+    ride_sha256: str
+    review: dict[str, Any]
     revision: int
     created_at: datetime.datetime
     updated_at: datetime.datetime

@@ -26,6 +26,7 @@ from pacing.store.records import (
     PLAN_RESULT_KEYS,
     AthleteRecord,
     CourseSummary,
+    DragAreaOrigin,
     PlanRecord,
     PlanSummary,
     SetupRecord,
@@ -301,6 +302,17 @@ def athlete_record(row: Any) -> AthleteRecord:
                          created_at=as_utc(row.created_at), updated_at=as_utc(row.updated_at))
 
 
+def origin_from_row(row: Any) -> DragAreaOrigin | None:
+    """The DragAreaOrigin of a setups row (migration 0004), None when its origin columns are
+    empty (the drag area was typed in)."""
+    low = getattr(row, "drag_area_low", None)
+    high = getattr(row, "drag_area_high", None)
+    source = getattr(row, "drag_area_source", None)
+    if low is None or high is None or source is None:
+        return None
+    return DragAreaOrigin(float(low), float(high), str(source))
+
+
 def setup_record(row: Any) -> SetupRecord:
     """The SetupRecord of a row.
 
@@ -316,7 +328,8 @@ def setup_record(row: Any) -> SetupRecord:
     """
     return SetupRecord(id=row.id, athlete_id=row.athlete_id, setup=setup_from_row(row),
                        revision=row.revision, created_at=as_utc(row.created_at),
-                       updated_at=as_utc(row.updated_at))
+                       updated_at=as_utc(row.updated_at),
+                       drag_area_origin=origin_from_row(row))
 
 
 def course_summary(row: Any) -> CourseSummary:

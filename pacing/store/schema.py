@@ -42,6 +42,10 @@ setups = sa.Table(
     sa.Column("rolling_coefficient", sa.Double, nullable=False),
     sa.Column("drivetrain_efficiency", sa.Double, nullable=False),
     sa.Column("yaw_drag_table", sa.Text, nullable=True),
+    # added by migration 0004: the drag area's interval [m²] and source (pacing.store.drag_origin)
+    sa.Column("drag_area_low", sa.Double, nullable=True),
+    sa.Column("drag_area_high", sa.Double, nullable=True),
+    sa.Column("drag_area_source", sa.Text, nullable=True),
     sa.Column("revision", sa.Integer, nullable=False),
     sa.Column("created_at", sa.DateTime, nullable=False),
     sa.Column("updated_at", sa.DateTime, nullable=False),
@@ -99,5 +103,20 @@ teams = sa.Table(
     sa.Column("updated_at", sa.DateTime, nullable=False),
 )
 
+# added by migration 0004: reviews of the races ridden to a saved plan (the review's JSON as
+# the review command prints it, the ride file's name and SHA-256)
+plan_reviews = sa.Table(
+    "plan_reviews",
+    metadata,
+    sa.Column("id", sa.Integer, primary_key=True),
+    sa.Column("plan_id", sa.Integer, sa.ForeignKey("plans.id"), nullable=False, index=True),
+    sa.Column("ride_name", sa.String(200), nullable=False),
+    sa.Column("ride_sha256", sa.String(64), nullable=False),
+    sa.Column("review", sa.Text, nullable=False),
+    sa.Column("revision", sa.Integer, nullable=False),
+    sa.Column("created_at", sa.DateTime, nullable=False),
+    sa.Column("updated_at", sa.DateTime, nullable=False),
+)
+
 #: Tables in an order that respects foreign keys (parents first).
-TABLES = (athletes, setups, courses, plans, teams)
+TABLES = (athletes, setups, courses, plans, teams, plan_reviews)

@@ -9,8 +9,11 @@ Two plans are made and compared:
   out (the weakest by critical power, as many as the counting rule lets go) the distance of
   their last long turn; chosen by SLSQP (scipy.optimize.minimize, Kraft 1988) to finish
   fastest subject to every rider's lowest W′ balance ≥ the reserve, starting from the equal
-  turns. The faster of the two is the plan (the optimiser never returns a slower plan than
-  the equal turns).
+  turns; then, from that answer, a second search that also moves a power profile (a factor
+  on every leader's power in each of PlanOptions.power_parts equal parts of the race), so a
+  rider's turns need not share one power. The fastest of these is the plan (the optimiser
+  never returns a slower plan than the equal turns, nor the profile one slower than one
+  power per rider).
 
 References
 ----------
@@ -31,7 +34,7 @@ from pacing.notices import Notice, note, warning
 from pacing.team.race import TeamRace
 from pacing.team.ride import LeaderSpeeds, TeamRide, cut_cells, line_speeds, ride_at_speeds
 from pacing.team.riders import Team
-from pacing.team.turns import TurnChoice, build_turns
+from pacing.team.turns import TurnChoice, build_turns, leader_powers
 
 ROAD_EQUAL_TURN = 400.0
 """Length of the equal turns on the road [m] (about 30 s at 50 km/h; common practice)."""
@@ -44,6 +47,12 @@ SPEED_RANGE = (3.0, 30.0)
 
 LOWEST_POWER_SHARE = 0.6
 """Lowest leader power the optimiser considers, as a share of the rider's CP [-]."""
+
+PROFILE_RANGE = (0.85, 1.15)
+"""Range of the leader-power factor of a part of the race (PlanOptions.power_parts) [-]."""
+
+PROFILE_ITERATIONS = 10
+"""Most SLSQP iterations of the search that also moves the power profile [-]."""
 
 FEASIBLE = -1e-9
 """Constraint value accepted as met [-] (SLSQP's answer is first pulled inside by
@@ -65,6 +74,10 @@ class PlanOptions:
         Most SLSQP iterations per search [-].
     allow_drop_outs : bool
         Let riders beyond the counting one do a last long turn and drop out [-].
+    power_parts : int
+        Equal parts of the distance with a leader-power factor of their own (the first part's
+        is 1): a rider's turns in different parts need not share one power; 1 for one power
+        per rider [-].
     choose_start : bool
         Try the STARTERS riders with the highest caps as first leader (the line's order kept
         around the rotation) and keep the order whose equal turns are fastest [-].
@@ -75,6 +88,7 @@ class PlanOptions:
     max_iterations: int = 40
     allow_drop_outs: bool = True
     choose_start: bool = True
+    power_parts: int = 4
 
 
 @dataclass(frozen=True, eq=False)
@@ -140,7 +154,8 @@ def ride_choice(team: Team, race: TeamRace, choice: TurnChoice,
     """
     turns = build_turns(choice, race.distance, race.counts_rider)
     cells = cut_cells(race, turns)
-    speed = line_speeds(team, race, turns, cells, choice.turn_power, memo)
+    power = leader_powers(choice, turns, race.distance, team.power_caps)
+    speed = line_speeds(team, race, turns, cells, power, memo)
     return ride_at_speeds(team, race, turns, cells, speed)
 
 
@@ -241,22 +256,25 @@ def drop_out_riders(team: Team, race: TeamRace) -> np.ndarray:
 
 
 class _Search:
-    """The optimiser's view: x = (turn length / L₀, leader power / CP, drop share of distance)."""
+    """The optimiser's view: x = (turn length / L₀, leader power / CP, factors of the power
+    profile after the first part, drop share of distance)."""
 
     def __init__(self, team: Team, race: TeamRace, base_length: float,
-                 droppers: np.ndarray, scale_time: float) -> None:
+                 droppers: np.ndarray, scale_time: float, parts: int = 1) -> None:
         self.team, self.race, self.base_length = team, race, base_length
-        self.droppers, self.scale_time = droppers, scale_time
+        self.droppers, self.scale_time, self.parts = droppers, scale_time, max(int(parts), 1)
         self.critical = team.array("critical_power")
         self._cache: dict[bytes, TeamRide] = {}
         self.memo = LeaderSpeeds(team, race)
 
     def choice(self, x: np.ndarray) -> TurnChoice:
-        riders = self.team.size
+        riders, extra = self.team.size, self.parts - 1
         drop = np.full(riders, np.inf)
-        drop[self.droppers] = x[2 * riders:] * self.race.distance
+        drop[self.droppers] = x[2 * riders + extra:] * self.race.distance
+        profile = (np.concatenate([[1.0], x[2 * riders:2 * riders + extra]]) if extra
+                   else None)
         return TurnChoice(x[:riders] * self.base_length, x[riders:2 * riders] * self.critical,
-                          drop)
+                          drop, profile)
 
     def ride(self, x: np.ndarray) -> TeamRide:
         key = np.asarray(x, dtype=float).tobytes()
@@ -303,12 +321,13 @@ def _within_reserve(search: _Search, x: np.ndarray, bounds: list[tuple[float, fl
 
 
 def _bounds(team: Team, race: TeamRace, base: float, shortest: float,
-            droppers: int) -> list[tuple[float, float]]:
+            droppers: int, parts: int = 1) -> list[tuple[float, float]]:
     longest = max(race.distance / base, shortest / base + 1e-3)
     caps = team.power_caps / team.array("critical_power")
     length = [(shortest / base, longest)] * team.size
     power = [(LOWEST_POWER_SHARE, float(cap)) for cap in caps]
-    return length + power + [(0.3, 1.0)] * droppers
+    profile = [PROFILE_RANGE] * (max(int(parts), 1) - 1)
+    return length + power + profile + [(0.3, 1.0)] * droppers
 
 
 def _default_lengths(race: TeamRace, options: PlanOptions) -> tuple[float, float]:
@@ -403,7 +422,10 @@ def _optimised(team: Team, race: TeamRace, options: PlanOptions, base: float, sh
                droppers: np.ndarray, lead_power: np.ndarray, equal: TeamRide
                ) -> tuple[TurnChoice, TeamRide] | None:
     """SLSQP from the equal turns (their lengths and each leader's mean power; the riders who
-    may drop out start with a last turn that ends at the finish)."""
+    may drop out start with a last turn that ends at the finish) with one power per rider;
+    then, with PlanOptions.power_parts > 1, a second SLSQP from that answer that also moves
+    the power profile (at most PROFILE_ITERATIONS iterations). The faster plan that keeps
+    every reserve is returned."""
     critical = team.array("critical_power")
     caps = team.power_caps / critical
     power_share = np.clip(lead_power / critical, LOWEST_POWER_SHARE, caps)
@@ -411,4 +433,20 @@ def _optimised(team: Team, race: TeamRace, options: PlanOptions, base: float, sh
     search = _Search(team, race, base, droppers, equal.finish_time)
     found = _search(search, start, _bounds(team, race, base, shortest, droppers.size),
                     options.max_iterations)
-    return None if found is None else (search.choice(found[0]), found[1])
+    if found is None:
+        return None
+    best = (search.choice(found[0]), found[1])
+    parts = max(int(options.power_parts), 1)
+    if parts == 1:
+        return best
+    riders = team.size
+    x = found[0]
+    start = np.concatenate([x[:2 * riders], np.ones(parts - 1), x[2 * riders:]])
+    profiled = _Search(team, race, base, droppers, equal.finish_time, parts)
+    profiled.memo = search.memo  # the line speeds solved so far serve again
+    refined = _search(profiled, start,
+                      _bounds(team, race, base, shortest, droppers.size, parts),
+                      min(PROFILE_ITERATIONS, options.max_iterations))
+    if refined is not None and refined[1].finish_time < best[1].finish_time:
+        return profiled.choice(refined[0]), refined[1]
+    return best

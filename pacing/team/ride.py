@@ -174,8 +174,8 @@ class LeaderSpeeds:
         return table
 
 
-def line_speeds(team: Team, race: TeamRace, turns: Turns, cells: Cells, power: np.ndarray,
-                memo: LeaderSpeeds | None = None) -> np.ndarray:
+def line_speeds(team: Team, race: TeamRace, turns: Turns, cells: Cells,
+                turn_power: np.ndarray, memo: LeaderSpeeds | None = None) -> np.ndarray:
     """Steady speed of the line on each cell at its leader's power [m/s].
 
     Parameters
@@ -186,8 +186,8 @@ def line_speeds(team: Team, race: TeamRace, turns: Turns, cells: Cells, power: n
         Grade, air on each piece [-, kg/m³, m/s].
     turns, cells : Turns, Cells
         Leaders and cells [-].
-    power : numpy.ndarray
-        Each rider's power while leading [W].
+    turn_power : numpy.ndarray
+        The leader's power in each turn (pacing.team.turns.leader_powers) [W].
     memo : LeaderSpeeds, optional
         Speeds solved before (a search passes one along) [-].
 
@@ -197,14 +197,16 @@ def line_speeds(team: Team, race: TeamRace, turns: Turns, cells: Cells, power: n
         Speed on each cell [m/s].
     """
     memo = memo or LeaderSpeeds(team, race)
-    leader = turns.leader[cells.turn]
+    pairs, group = np.unique(np.column_stack([turns.leader, turn_power]), axis=0,
+                             return_inverse=True)
+    cell_group = np.asarray(group).reshape(-1)[cells.turn]
     size = turns.line_size[cells.turn]
     kind = race.piece_kind[cells.piece]
     speed = np.empty(cells.length.size)
-    for index in range(team.size):
-        mine = np.flatnonzero(leader == index)
+    for number, (index, power) in enumerate(pairs):
+        mine = np.flatnonzero(cell_group == number)
         if mine.size:
-            speed[mine] = memo.table(index, float(power[index]))[size[mine], kind[mine]]
+            speed[mine] = memo.table(int(index), float(power))[size[mine], kind[mine]]
     return speed
 
 

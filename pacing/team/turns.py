@@ -32,11 +32,16 @@ class TurnChoice:
     drop_distance : numpy.ndarray
         Distance by which the rider leaves the line after a last turn; inf to ride to the
         finish [m].
+    power_profile : numpy.ndarray or None
+        Factor on every leader's power in each of equal parts of the distance (a turn takes
+        the factor of the part where it starts), so that one rider's turns need not share one
+        power; None for one power per rider [-].
     """
 
     turn_length: np.ndarray
     turn_power: np.ndarray
     drop_distance: np.ndarray
+    power_profile: np.ndarray | None = None
 
 
 @dataclass(frozen=True, eq=False)
@@ -139,3 +144,40 @@ def _places(lines: list[list[int]], riders: int) -> np.ndarray:
     for turn, line in enumerate(lines):
         places[turn, line] = np.arange(len(line))
     return places
+
+
+def leader_powers(choice: TurnChoice, turns: Turns, distance: float,
+                  caps: np.ndarray) -> np.ndarray:
+    """The leader's power in each turn: his turn power times the profile's factor of the part
+    of the race where the turn starts, at most his cap.
+
+    Parameters
+    ----------
+    choice : TurnChoice
+        Turn power per rider [W] and the power profile [-].
+    turns : Turns
+        The turns [-].
+    distance : float
+        Race distance [m].
+    caps : numpy.ndarray
+        Each rider's cap on power [W].
+
+    Returns
+    -------
+    numpy.ndarray
+        Power of each turn's leader [W].
+
+    Examples
+    --------
+    >>> choice = TurnChoice(np.array([300.0, 200.0]), np.array([400.0, 500.0]),
+    ...                     np.array([np.inf, np.inf]), np.array([1.0, 1.1]))
+    >>> turns = build_turns(choice, 1000.0, 2)
+    >>> leader_powers(choice, turns, 1000.0, np.array([600.0, 520.0])).tolist()
+    [400.0, 500.0, 440.0, 520.0]
+    """
+    power = np.asarray(choice.turn_power, dtype=float)[turns.leader]
+    profile = choice.power_profile
+    if profile is not None and len(profile) > 0:
+        part = np.minimum((turns.start / distance * len(profile)).astype(int), len(profile) - 1)
+        power = power * np.asarray(profile, dtype=float)[part]
+    return np.minimum(power, np.asarray(caps, dtype=float)[turns.leader])
