@@ -773,6 +773,21 @@ def test_the_page_table_fits_and_the_file_table_stays_whole():
     assert list(table.columns)[1] == "From [km]"  # the file's table is not changed
 
 
+def test_the_page_table_shows_the_weather_met_only_where_it_changes():
+    import pandas as pd
+
+    from ui import sections
+
+    table = pd.DataFrame({"Segment": [1, 2], "Split [h:mm:ss]": ["0:02:40"] * 2,
+                          "Clock [ISO 8601]": ["2026-07-14T09:00:00+02:00",
+                                               "2026-07-14T09:02:40+02:00"],
+                          "Air [°C]": [24.0, 25.5], "Wind [km/h]": [10.0, 10.0],
+                          "Wind from [deg]": [270.0, 270.0]})
+    shown = sections.page_targets(table)
+    assert list(shown.columns) == ["Segment", "Split [h:mm:ss]", "Clock [hh:mm]", "Air [°C]"]
+    assert shown["Clock [hh:mm]"].tolist() == ["09:00", "09:02"]
+
+
 def test_a_runner_sees_where_the_energy_goes_too():
     app = started()
     app.radio(key="sport").set_value("running").run()

@@ -457,11 +457,16 @@ the page (the full header, with its unit, is the column's help; the files keep t
 headers)."""
 
 
+WEATHER_MET_COLUMNS = ("Air", "Wind", "Wind from")
+"""The target table's columns of the weather met (pacing.io.exports.segment_table)."""
+
+
 def page_targets(table, easing: list[str] | None = None):
     """The segment table as the page shows it, narrower: "From" left out (it is the row
     above's "To"), the power band as one "Range" column ("233–247"), and where the rider
     eases off below the plan (`easing`, one text per row, after the elapsed time) when
-    given. The files keep the full table."""
+    given; the clock as HH:MM and the weather's columns only when the weather changes along
+    the race. The files keep the full table."""
     shown = table.drop(columns=[c for c in table.columns if str(c).startswith("From [")])
     low = next((c for c in shown.columns if str(c).startswith("Power low")), None)
     high = next((c for c in shown.columns if str(c).startswith("Power high")), None)
@@ -472,6 +477,16 @@ def page_targets(table, easing: list[str] | None = None):
         shown.insert(list(shown.columns).index(next(
             c for c in shown.columns if str(c).startswith("Target power"))) + 1,
             "Range [W]", band)
+    # the weather met: the clock as HH:MM; a column the same on every row (one weather all
+    # day) says nothing the weather inputs above do not
+    for column in list(shown.columns):
+        name = str(column)
+        if name.startswith("Clock"):
+            shown[column] = [str(v)[11:16] if isinstance(v, str) and len(v) >= 16 else v
+                             for v in shown[column]]
+            shown = shown.rename(columns={column: "Clock [hh:mm]"})
+        elif name.split(" [")[0] in WEATHER_MET_COLUMNS and shown[column].nunique() <= 1:
+            shown = shown.drop(columns=[column])
     if easing is not None:  # beside the plan's numbers, before the weather's columns
         after = next((c for c in shown.columns if str(c).startswith("Elapsed")), None)
         place = list(shown.columns).index(after) + 1 if after is not None else len(
