@@ -11,6 +11,9 @@ from __future__ import annotations
 import json
 from pathlib import Path
 
+import numpy as np
+import scipy
+
 ROOT = Path(__file__).resolve().parents[2]
 DEMO = ROOT / "demo_routes"
 LOOP = str(DEMO / "01_corravey_hill_loop_40k.gpx")
@@ -169,3 +172,12 @@ def _fingerprint(values) -> dict | None:
     array = np.asarray(values, dtype=float)
     return {"size": int(array.size), "sum": float(array.sum()), "min": float(array.min()),
             "max": float(array.max()), "sample": array[::97].tolist()}
+
+
+def platform_fingerprint() -> dict[str, object]:
+    """What decides the last bits of the numbers besides our code: the numpy and scipy
+    versions and the CPU features numpy dispatches its vector math to (AVX-512 or not gives
+    exp, log and power that differ in the last bit; solvers carry that to ~1e-8)."""
+    features = np._core._multiarray_umath.__cpu_features__  # type: ignore[attr-defined]
+    return {"numpy": np.__version__, "scipy": scipy.__version__,
+            "numpy_cpu_features": sorted(name for name, on in features.items() if on)}

@@ -11,7 +11,7 @@ from pathlib import Path
 HERE = Path(__file__).resolve().parent
 sys.path[:0] = [str(HERE), str(HERE.parent), str(HERE.parents[1])]
 
-from cases import app_cases, cases, run_app_case, run_case, write_ride  # noqa: E402
+from cases import app_cases, cases, platform_fingerprint, run_app_case, run_case, write_ride  # noqa: E402
 
 
 def main() -> None:
@@ -27,6 +27,7 @@ def main() -> None:
     (HERE / "golden.json").write_text(text + "\n")
     app = {name: run_app_case(*case) for name, case in app_cases().items()}
     (HERE / "golden_app.json").write_text(json.dumps(app, indent=1, sort_keys=True) + "\n")
+    (HERE / "platform.json").write_text(json.dumps(platform_fingerprint(), indent=1) + "\n")
     print(f"wrote {len(results)} command-line cases and {len(app)} page cases")
 
 
