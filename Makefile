@@ -26,7 +26,8 @@ test-nojit: $(STAMP)
 	NUMBA_DISABLE_JIT=1 PACING_KERNELS=compiled $(BIN)/python -m pytest -q \
 	  tests/test_kernels.py tests/test_physics_*.py tests/test_plan_simulate.py \
 	  tests/test_plan_steady_model.py tests/test_plan_prediction.py tests/test_plan_verify.py \
-	  tests/test_plan_cycling.py tests/test_compare_sensitivity.py tests/test_golden.py
+	  tests/test_plan_cycling.py tests/test_plan_simulate_kernels.py \
+	  tests/test_compare_sensitivity.py tests/test_compare_sampled_uncertainty.py tests/test_golden.py
 
 ## The fast part only (no browser, no slow tests).
 test-fast: $(STAMP)

@@ -37,6 +37,7 @@ import importlib.util
 import math
 import os
 import sys
+import threading
 import time
 import types
 from collections.abc import Callable, Iterable, Mapping
@@ -58,9 +59,15 @@ importing numba, the rest numba's first-use set-up), while plain Python rides a 
 5.5-9 µs, so 50,000-90,000 pieces cost as much as the loading; 100,000 (a 1000 km course, or
 25 simulations of a 40 km course) is the round number above that."""
 
-KERNEL_MODULES = ("pacing.plan.simulate", "pacing.plan.steady_model")
+KERNEL_MODULES = ("pacing.plan.simulate", "pacing.plan.steady_model",
+                  "pacing.physics.cycling_speed")
 """Modules holding kernels; each has a `warm_up_kernels()` that runs its compiled kernels once
 on a tiny case [-]."""
+
+PARALLEL_LOCK = threading.Lock()
+"""Held around every call of a parallel kernel: one at a time per process (numba's workqueue
+threading layer must not be entered from two threads at once; the app serves sessions on
+threads)."""
 
 _SMALLEST_NORMAL = 2.2250738585072014e-308
 """The smallest positive normal float, DBL_MIN [-]."""

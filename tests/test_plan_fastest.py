@@ -363,11 +363,12 @@ def keeps_the_limits(model, power, request):
 FINER_TOLERANCE = 1e-6
 
 
-def check_a_finer_split_is_not_slower(seed, fine, coarse, share, w_prime, reserve):
-    """A random course (`seed`), a split of `fine` random segments and a coarser one made of
-    `coarse` of its segments; mean power `share` of CP 280 W, W′ `w_prime` [J], a reserve of
-    `reserve` of W′: both plans keep their limits, the fine one is not slower."""
-    course, air = rolling_windy_course(seed)
+def check_a_finer_split_is_not_slower(seed, fine, coarse, share, w_prime, reserve,
+                                      length=4000.0):
+    """A random course (`seed`, `length` [m]), a split of `fine` random segments and a coarser
+    one made of `coarse` of its segments; mean power `share` of CP 280 W, W′ `w_prime` [J], a
+    reserve of `reserve` of W′: both plans keep their limits, the fine one is not slower."""
+    course, air = rolling_windy_course(seed, length)
     rng = np.random.default_rng(seed)
     fine_bounds = random_split(rng, course.distance.size, fine)
     coarse_bounds = np.r_[0, np.sort(rng.choice(fine_bounds[1:-1], coarse - 1, replace=False)),
@@ -402,6 +403,56 @@ def test_a_finer_split_is_never_slower_than_a_coarser_one_on_many_courses(
         seed, fine, coarse, share, w_prime, reserve):
     # up to the most segments polished at once (240), coarse splits up to 124 segments
     check_a_finer_split_is_not_slower(seed, fine, coarse, share, w_prime, reserve)
+
+
+# Known gap (issue 15): the problem is not convex, and a fine split just above
+# FINE_MAX_SEGMENTS (no plain SLSQP steps at its level) can end in a local optimum a little
+# slower than a coarser split just below it (which gets them), mostly where W′ is empty over a
+# plateau of segments on CP and no reserve is kept: a pair of segments, one above and one
+# below CP, would gain where small steps and single jumps do not. Hypothesis shrinks to such
+# cases (2e-6 to 2e-5 of the finish); on 80 random draws of 241-600 segments none was found.
+EMPTY_PLATEAU = "known gap (issue 15): a local optimum with W′ empty on a plateau at CP"
+
+
+@pytest.mark.slow
+@pytest.mark.xfail(reason=EMPTY_PLATEAU, strict=False)
+@settings(max_examples=30, deadline=None)
+@given(st.integers(0, 2**31), st.integers(241, 600), st.integers(3, 599),
+       st.floats(0.85, 0.98), st.floats(4000.0, 20000.0), st.floats(0.0, 0.3))
+def test_a_finer_split_above_the_plain_polish_is_never_slower_than_a_coarser_one(
+        seed, fine, coarse, share, w_prime, reserve):
+    # above FINE_MAX_SEGMENTS (240, no plain SLSQP steps at the fine level), on an 8 km
+    # course; coarse splits of any size below the fine one
+    check_a_finer_split_is_not_slower(seed, fine, min(coarse, fine - 1), share, w_prime,
+                                      reserve, length=8000.0)
+
+
+def test_a_split_just_above_the_plain_polish_leaves_no_plateau_on_cp_that_a_jump_improves():
+    # regression (issue 15): 241 segments (just above FINE_MAX_SEGMENTS) came out 5.8e-5
+    # slower than a coarser split of 233 of its ends: the sided rounds stopped with segments
+    # resting on CP where a small step up did not pay but a jump to 340 W did
+    # (pacing.plan.sided_crossings); now 4.7e-5 faster
+    check_a_finer_split_is_not_slower(seed=1611082394, fine=241, coarse=233, share=0.92,
+                                      w_prime=10000.0, reserve=0.0)
+
+
+def test_a_plateau_on_cp_with_w_prime_empty_splits_above_and_below_cp():
+    # the same course and splits with W′ 5 kJ at 97 % of CP: the fine split was 2.3e-5
+    # slower, its rounds dropping a plateau of ten segments on CP below it whole; split one
+    # segment at a time (pacing.plan.sided_crossings, `gradual`), now 2.7e-6 faster
+    check_a_finer_split_is_not_slower(seed=1611082394, fine=241, coarse=233, share=0.97,
+                                      w_prime=5000.0, reserve=0.0)
+
+
+@pytest.mark.xfail(reason=EMPTY_PLATEAU, strict=False)
+@pytest.mark.parametrize("seed, fine, coarse, share, w_prime, length", [
+    (1611082394, 241, 233, 0.92, 5000.0, 4000.0),  # 1.6e-5 slower
+    (0, 241, 235, 0.875, 4000.0, 8000.0),  # 2.9e-6 slower (found by hypothesis)
+    (1, 242, 235, 0.875, 10000.0, 8000.0),  # 2.4e-6 slower (found by hypothesis)
+])
+def test_a_split_with_w_prime_empty_on_a_plateau_at_cp_is_not_slower(seed, fine, coarse,
+                                                                     share, w_prime, length):
+    check_a_finer_split_is_not_slower(seed, fine, coarse, share, w_prime, 0.0, length)
 
 
 def test_a_coarse_split_of_four_segments_with_a_large_reserve_is_solved():

@@ -32,7 +32,7 @@ they enter through the difference of the sensitivities and mostly cancel::
     σ_Δ² = (S_A,cda·σ_A/h)² + (S_B,cda·σ_B/h)² + Σ_shared ((S_B,x − S_A,x)·σ_x/h_x)²
 
 A Monte Carlo estimate (normal draws with a seed, the full simulation for each draw, the
-draws ridden together by pacing.plan.simulate.finish_times) checks the linearization where the
+draws ridden together: pacing.compare.sampled_uncertainty) checks the linearization where the
 response is curved.
 
 References
@@ -54,13 +54,18 @@ from dataclasses import dataclass, replace
 import numpy as np
 from numpy.typing import ArrayLike
 
+from pacing.compare.sampled_uncertainty import (
+    UNCERTAIN_INPUTS,
+    sampled_times,
+    uncertainty_errors,
+)
 from pacing.course.geometry import Course
 from pacing.errors import InputError
 from pacing.physics.air import DEFAULT_AIR_DENSITY_MODEL
 from pacing.physics.cycling import Rider
 from pacing.physics.wind import wind_components
 from pacing.plan.prediction import SimulationOptions
-from pacing.plan.simulate import finish_times, simulate
+from pacing.plan.simulate import simulate
 from pacing.weather.conditions import Conditions, CourseAir, air_along_course
 
 STEPS = {
@@ -410,11 +415,6 @@ class Spread:
         return float(low), float(high)
 
 
-def _names() -> list[str]:
-    """The uncertain inputs, in the order of the Monte Carlo draw columns."""
-    return ["drag_area", "rolling_coefficient", "mass", "wind"]
-
-
 def finish_time_spread(sens: Sensitivity, uncertainty: Uncertainty) -> Spread:
     """Linearized 1 σ of a finish time, σ_T² = Σ (S_x·σ_x/h_x)².
 
@@ -435,7 +435,7 @@ def finish_time_spread(sens: Sensitivity, uncertainty: Uncertainty) -> Spread:
     JCGM 100:2008 (GUM), section 5.1: law of propagation of uncertainty, uncorrelated inputs.
     """
     parts = {name: abs(getattr(sens, name) * getattr(uncertainty, name) / STEPS[name])
-             for name in _names()}
+             for name in UNCERTAIN_INPUTS}
     return Spread(math.sqrt(sum(v * v for v in parts.values())), parts)
 
 
@@ -479,54 +479,9 @@ def difference_spread(first: Sensitivity, second: Sensitivity, uncertainty: Unce
     return Spread(math.sqrt(sum(v * v for v in parts.values())), parts)
 
 
-def _draws(uncertainty: Uncertainty, samples: int, generator: np.random.Generator,
-           extra: int = 0) -> np.ndarray:
-    """Normal errors, one row per draw: columns in the order of _names() scaled by their σ,
-    then `extra` standard normal columns. Row by row, so the first draws do not depend on
-    how many are taken."""
-    scale = np.array([getattr(uncertainty, name) for name in _names()] + [1.0] * extra)
-    return generator.standard_normal((samples, scale.size)) * scale
-
-
 DRAW_FLOORS = {"drag_area": 0.01, "rolling_coefficient": 0.0, "mass": 20.0, "wind": 0.0}
 """Where a Monte Carlo draw is cut (its physical limits): CdA [m²], Crr [-], total mass [kg]
 and wind speed [m/s] never go below these."""
-
-
-def _draw_rows(rider: Rider, wind: DayWind, d_cda: np.ndarray, d_crr: np.ndarray,
-               d_mass: np.ndarray, d_wind: np.ndarray) -> np.ndarray:
-    """Rows of pacing.plan.simulate.finish_times for the errors of each draw: total mass
-    (at least its floor) [kg], CdA and Crr errors [m², -] (the floors apply per piece) and
-    the wind at the rider's height from the day's speed plus its error (at least its floor)
-    [m/s], for the unit air `wind.unit`.
-
-    Raises
-    ------
-    InputError
-        When a drawn wind speed is out of the range Conditions accepts.
-    """
-    floor = DRAW_FLOORS
-    mass = np.maximum(rider.mass + d_mass, floor["mass"])
-    at_rider = [wind.at_rider(max(wind.speed + error, floor["wind"]))
-                for error in d_wind.tolist()]
-    return np.column_stack([mass, d_cda, d_crr, np.array(at_rider, dtype=float)])
-
-
-def _sampled_times(course: Course, power: ArrayLike, rider: Rider, wind: DayWind,
-                   options: SimulationOptions | None,
-                   errors: tuple[np.ndarray, np.ndarray, np.ndarray, np.ndarray]) -> np.ndarray:
-    """Finish time of each draw [s] with the errors (CdA, Crr, mass, wind) added, clipped at
-    physical limits (DRAW_FLOORS), all draws ridden together."""
-    d_cda, d_crr, d_mass, d_wind = errors
-    rows = _draw_rows(rider, wind, d_cda, d_crr, d_mass, d_wind)
-    return finish_times(course, np.asarray(power, dtype=float), rider, wind.unit, rows,
-                        options, (DRAW_FLOORS["drag_area"], DRAW_FLOORS["rolling_coefficient"]))
-
-
-def _check_samples(samples: int) -> None:
-    """InputError unless `samples` is a whole number 2-100000."""
-    if not (isinstance(samples, int | np.integer) and 2 <= samples <= 100_000):
-        raise InputError(f"samples must be a whole number 2-100000, got {samples!r}")
 
 
 def sampled_finish_time(course: Course, piece_power: ArrayLike, rider: Rider,
@@ -579,12 +534,11 @@ def sampled_finish_time(course: Course, piece_power: ArrayLike, rider: Rider,
     ----------
     JCGM 101:2008 (GUM Supplement 1): propagation of distributions by a Monte Carlo method.
     """
-    _check_samples(samples)
-    generator = np.random.default_rng(seed)
-    draws = _draws(uncertainty, samples, generator)
+    draws = uncertainty_errors(uncertainty, samples, seed)
     errors = (draws[:, 0], draws[:, 1], draws[:, 2], draws[:, 3])
-    return _sampled_times(course, piece_power, rider,
-                          day_wind(course, conditions, density_model, air), options, errors)
+    return sampled_times(course, piece_power, rider,
+                         day_wind(course, conditions, density_model, air), options, errors,
+                         DRAW_FLOORS)
 
 
 def sampled_difference(course: Course, first: tuple[Rider, ArrayLike],
@@ -634,14 +588,12 @@ def sampled_difference(course: Course, first: tuple[Rider, ArrayLike],
     ----------
     JCGM 101:2008 (GUM Supplement 1): propagation of distributions by a Monte Carlo method.
     """
-    _check_samples(samples)
-    generator = np.random.default_rng(seed)
-    draws = _draws(uncertainty, samples, generator, extra=2)
+    draws = uncertainty_errors(uncertainty, samples, seed, extra=2)
     wind = day_wind(course, conditions, density_model, air)
     times = [
-        _sampled_times(course, power, rider, wind, options,
-                       (draws[:, 4 + j] * uncertainty.drag_area, draws[:, 1], draws[:, 2],
-                        draws[:, 3]))
+        sampled_times(course, power, rider, wind, options,
+                      (draws[:, 4 + j] * uncertainty.drag_area, draws[:, 1], draws[:, 2],
+                       draws[:, 3]), DRAW_FLOORS)
         for j, (rider, power) in enumerate((first, second))
     ]
     return times[1] - times[0]

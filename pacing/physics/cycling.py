@@ -29,7 +29,6 @@ docs/references.md, "Cycling power balance (Martin et al. 1998)" (worked values)
 
 from __future__ import annotations
 
-from collections.abc import Callable
 from dataclasses import dataclass
 
 import numpy as np
@@ -482,117 +481,6 @@ def power_for_speed(
     return speed * force / rider.drivetrain_efficiency
 
 
-ForceBalance = Callable[[np.ndarray, "np.ndarray | None"], tuple[np.ndarray, np.ndarray]]
-"""g(v) = F_resist(v) − η·P/v [N] and its slope dg/dv [N·s/m] at ground speeds v [m/s]: on
-every piece, or on the pieces of an index array (v then holds one speed per index)."""
-
-
-def _steady_force_balance(power: np.ndarray, grade: np.ndarray, rho: np.ndarray,
-                          head: np.ndarray, cross: np.ndarray, rider: Rider) -> ForceBalance:
-    """g(v) = F_resist(v) − η·P/v and dg/dv on every piece (arrays broadcast alike, then
-    flattened: v and the results are 1-D), or on some of them."""
-    shape = power.shape
-
-    def flat(value: ArrayLike) -> np.ndarray:  # 1-D: the in-place steps need real arrays
-        return np.ascontiguousarray(np.broadcast_to(value, shape), dtype=float).reshape(-1)
-
-    drive = flat(rider.drivetrain_efficiency * power)
-    rolling = np.broadcast_to(rolling_force(grade, rider), grade.shape)
-    constant = flat(rolling + gravity_force(grade, rider) + rider.bearing_force_constant)
-    b = rider.bearing_force_per_speed
-    table = rider.yaw_drag_table
-    area = flat(np.asarray(rider.drag_area, dtype=float))
-    plain_area = rider.drag_area * (1.0 - rider.drafting_reduction) + rider.wheel_drag_area
-    plain_k = flat(0.5 * rho * plain_area)  # per piece when drag_area is
-    rho, head, cross = flat(rho), flat(head), flat(cross)
-
-    def g_and_slope(v: np.ndarray, index: np.ndarray | None = None
-                    ) -> tuple[np.ndarray, np.ndarray]:
-        if index is None:
-            at_head, at_cross, at_drive, at_constant = head, cross, drive, constant
-        else:
-            at_head, at_cross = head.take(index), cross.take(index)
-            at_drive, at_constant = drive.take(index), constant.take(index)
-        along = v + at_head
-        apparent = np.hypot(along, at_cross)
-        if table is None:
-            k = plain_k if index is None else plain_k.take(index)  # no yaw table: no angle
-        else:
-            yaw = np.degrees(np.arctan2(at_cross, along))
-            at_area = area if index is None else area.take(index)
-            at_rho = rho if index is None else rho.take(index)
-            k = 0.5 * at_rho * (at_area * yaw_multiplier(yaw, table) * (
-                1.0 - rider.drafting_reduction) + rider.wheel_drag_area)
-        # in place, in the order of k·V·v_a + c + b·v − η·P/v (no new arrays: fewer faults)
-        pull = at_drive / v
-        value = k * apparent
-        value *= along
-        value += at_constant
-        value += b * v
-        value -= pull
-        pull = np.divide(at_drive, np.multiply(v, v, out=pull), out=pull)  # η·P/v²
-        if apparent.min() > 0:  # V > 0 everywhere (the usual case): V + v_a²/V
-            along *= along
-            along /= apparent
-            along += apparent
-            slope = np.multiply(k, along, out=along)
-        else:
-            safe = np.where(apparent > 0, apparent, 1.0)
-            slope = k * np.where(apparent > 0, apparent + along**2 / safe, 0.0)
-        slope += b
-        slope += pull
-        return value, slope
-
-    return g_and_slope
-
-
-def _bracket_speed(balance: ForceBalance, shape: tuple[int, ...], minimum_speed: float
-                   ) -> tuple[np.ndarray, np.ndarray, np.ndarray, np.ndarray]:
-    """(low, high, stalled, start): g(low) < 0 < g(high) where a root lies above
-    `minimum_speed`; `stalled` where none does (g(minimum_speed) ≥ 0); `start` the first
-    speed of the Newton steps, the middle of the bracket."""
-    low = np.full(shape, float(minimum_speed))
-    g_low, _ = balance(low, None)
-    stalled = g_low >= 0
-    high = np.full(shape, BRACKET_START_SPEED)
-    g_high, _ = balance(high, None)
-    short = np.flatnonzero((g_high < 0) & ~stalled)  # the root lies above: double the top
-    for _ in range(60):
-        if short.size == 0:
-            break
-        low[short] = high[short]
-        high[short] *= 2.0
-        g_short, _ = balance(high[short], short)
-        short = short[g_short < 0]
-    return low, high, stalled, 0.5 * (low + high)
-
-
-def _newton_in_bracket(balance: ForceBalance, low: np.ndarray, high: np.ndarray,
-                       stalled: np.ndarray, start: np.ndarray, tolerance: float,
-                       max_iterations: int) -> np.ndarray:
-    """Root of the increasing g in [low, high] from `start`: Newton steps kept inside the
-    shrinking bracket, bisection otherwise; a speed is kept once it moves by at most
-    `tolerance`·v (later steps would move it by less than rounding), the others go on."""
-    speed, low, high = start.copy(), low.copy(), high.copy()
-    active = np.flatnonzero(~stalled)
-    for _ in range(max_iterations):
-        if active.size == 0:
-            break
-        now, below, above = speed[active], low[active], high[active]
-        value, slope = balance(now, active if active.size < speed.size else None)
-        below = np.where(value < 0, now, below)
-        above = np.where(value > 0, now, above)
-        newton = now - value / slope
-        # Non-strict bounds: once converged, a Newton step smaller than one ulp lands exactly on
-        # the bracket end it came from and must not be mistaken for a step outside the bracket.
-        inside = (newton >= below) & (newton <= above)
-        new_speed = np.where(inside, newton, 0.5 * (below + above))
-        converged = np.abs(new_speed - now) <= tolerance * new_speed
-        speed[active], low[active], high[active] = new_speed, below, above
-        active = active[~converged]
-    return speed
-
-
 def speed_for_power(
     power: ArrayLike,
     grade: ArrayLike,
@@ -608,7 +496,9 @@ def speed_for_power(
 
     Solves g(v) = F_resist(v) − η·P/v = 0 for v > 0. g is strictly increasing on v > 0 (F_resist
     grows with v, −η·P/v grows with v for P ≥ 0), so the root is unique; it is found by Newton
-    steps kept inside a bisection bracket. At P = 0 downhill the root is the terminal speed.
+    steps kept inside a bisection bracket (pacing.physics.cycling_speed: vectorised, or
+    compiled piece by piece for large jobs, the same numbers). At P = 0 downhill the root is
+    the terminal speed.
     Where no root lies above `minimum_speed` (a climb at too little power) the result is
     `minimum_speed`: the rider is off the bike.
 
@@ -652,16 +542,7 @@ def speed_for_power(
     >>> round(float(speed_for_power(289.0, 0.0, 1.2, Rider(mass=80.0, drag_area=0.269))), 3)
     11.522
     """
-    power, grade, rho, head, cross, _, _ = np.broadcast_arrays(
-        np.maximum(np.asarray(power, dtype=float), 0.0),
-        np.asarray(grade, dtype=float),
-        np.asarray(air_density, dtype=float),
-        np.asarray(headwind, dtype=float),
-        np.asarray(crosswind, dtype=float),
-        np.asarray(rider.drag_area, dtype=float),  # per-piece rider values set the shape too
-        np.asarray(rider.rolling_coefficient, dtype=float),
-    )
-    balance = _steady_force_balance(power, grade, rho, head, cross, rider)
-    low, high, stalled, start = _bracket_speed(balance, (power.size,), minimum_speed)
-    speed = _newton_in_bracket(balance, low, high, stalled, start, tolerance, max_iterations)
-    return np.where(stalled, float(minimum_speed), speed).reshape(power.shape)
+    from pacing.physics.cycling_speed import steady_speed  # the solver (it imports this module)
+
+    return steady_speed(power, grade, air_density, rider, headwind, crosswind, minimum_speed,
+                        tolerance, max_iterations)

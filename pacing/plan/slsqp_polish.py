@@ -9,16 +9,14 @@ the W′ balance at every segment end and the effort cap, with analytic gradient
   it) and where the optimum rides at CP (a third of the segments on a 200 km course with
   wind) SLSQP zigzags across it until the iteration limit.
 - Sided (`sided_slsqp_plan`): every segment is held on one side of CP, with CP as a bound on
-  that side. There the balance is smooth and SLSQP converges; a segment resting on CP changes
-  side when the derivative of the Lagrangian on the other side's formula (with SLSQP's
-  multipliers) says crossing lowers it, and SLSQP runs again. With the differential W′
-  balance and the sides fixed, the balance falls only on segments above CP and never on those
-  below, so its lowest points are the ends of the runs above CP: only those rows are
-  constraints. Each round is solved by SLSQP or, on request (`structured`), by the
-  structured SQP of pacing.plan.sided_sqp, which sees that the objective and the coupling
-  constraint are separable and that the rows are few; where that SQP cannot go on (a
-  singular system, a power it cannot evaluate) the round is solved by SLSQP, the reason at
-  the front of its message, so no linear-algebra error escapes the polish.
+  that side; there the balance is smooth and SLSQP converges. Segments resting on CP change
+  side where a small step or a jump across CP lowers the Lagrangian (pacing.plan.sided_crossings)
+  and SLSQP runs again. With the differential W′ balance and the sides fixed, the balance falls
+  only above CP, so its lowest points are the ends of the runs above CP: only those rows are
+  constraints. Each round is solved by SLSQP or (`structured`) by the structured SQP of
+  pacing.plan.sided_sqp (separable objective and coupling, few rows); where that SQP cannot go
+  on (a singular system, a power it cannot evaluate) by SLSQP, the reason at the front of its
+  message, so no linear-algebra error escapes the polish.
 - By windows (`window_polish`): on a split too long for dense SLSQP (its cost grows as K³),
   windows of consecutive segments are polished in turn with the rest of the plan held; each
   keeps its share of the coupling constraint, starts from the W′ balance the plan reaches
@@ -56,6 +54,7 @@ from pacing.plan.lagrange import (
     steady_w_prime_balance,
 )
 from pacing.plan.request import PlanRequest, required_mean_power, w_prime_parameters
+from pacing.plan.sided_crossings import crossed_sides, kept_finish, side_jumps
 from pacing.plan.sided_sqp import SqpResult, sided_sqp
 from pacing.plan.steady_model import SegmentModel, steady_times
 
@@ -69,9 +68,7 @@ SLSQP_FTOL = 1e-9
 PLAIN_MAXITER = 100  # iterations of the plain polish
 SIDED_ROUNDS = 6  # rounds of the sided polish (2 on the 200 km course with wind)
 SIDED_MAXITER = 300  # SLSQP iterations per round of the sided polish
-# a segment on CP crosses when the Lagrangian's slope on the other side is beyond this, in the
-# scaled objective (finish time over the constant plan's) per unit of P/P̄ [-]
-CROSSING_SLOPE = 1e-9
+JUMP_ROUNDS = 3  # most rounds started by jumps across CP (pacing.plan.sided_crossings)
 WINDOW_SWEEPS = 4  # most sweeps of the windows
 WINDOW_GAIN = 1e-5  # another sweep while the last one gained more than this share of the time
 
@@ -218,6 +215,7 @@ class ScaledProblem:
         self.total0 = float(time0.sum())
         self.cache: dict[bytes, tuple[np.ndarray, np.ndarray]] = {}
         self.side: np.ndarray | None = None
+        self.bounds = (problem.lower, problem.upper)
 
     def evaluate(self, x: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
         """steady_times at powers x·P̄ (the last one kept).
@@ -381,14 +379,17 @@ def _lowest_rows(side: np.ndarray, request: PlanRequest) -> np.ndarray | None:
 
 
 def sided_slsqp_plan(problem: FastestProblem, start: np.ndarray, limits: SolverLimits,
-                     window: Window | None = None, structured: bool = False
-                     ) -> tuple[np.ndarray, OptimizeResult | SqpResult]:
+                     window: Window | None = None, structured: bool = False,
+                     gradual: bool = False) -> tuple[np.ndarray, OptimizeResult | SqpResult]:
     """SLSQP with every segment held on one side of CP, sides changed where crossing pays.
 
-    Each round gives every segment CP as a bound on its side (module docstring); after it, a
-    segment resting on CP changes side when the derivative of the Lagrangian
-    f − λ·coupling − Σ μ_j·balance_j (SLSQP's multipliers) on the other side's formula says
-    that crossing lowers it; at most SIDED_ROUNDS rounds. Without a W′ reserve: one SLSQP run.
+    Each round gives every segment CP as a bound on its side (module docstring); after it,
+    segments resting on CP change side where a small step across lowers the Lagrangian
+    f − λ·coupling − Σ μ_j·balance_j (the round's multipliers; only the strongest of each
+    block when the sides would repeat), at most SIDED_ROUNDS times; when none does, the
+    fastest such answer is kept and up to JUMP_ROUNDS rounds start from jumps well across CP
+    (pacing.plan.sided_crossings), kept while they are faster. Without a W′ reserve: one SLSQP
+    run.
 
     Parameters
     ----------
@@ -403,6 +404,8 @@ def sided_slsqp_plan(problem: FastestProblem, start: np.ndarray, limits: SolverL
     structured : bool
         Solve each round with the structured SQP (pacing.plan.sided_sqp) instead of SLSQP,
         when there is no effort cap (the differential model's rows) [-].
+    gradual : bool
+        Split runs above CP one segment per block and round (sided_crossings) [-].
 
     Returns
     -------
@@ -426,8 +429,9 @@ def sided_slsqp_plan(problem: FastestProblem, start: np.ndarray, limits: SolverL
         return np.clip(result.x * mean, lower, upper), result
     critical = w_prime_parameters(problem.request)[0]
     side = _sides(power, lower, upper, critical)
-    iterations = 0
-    for _ in range(SIDED_ROUNDS):
+    iterations, jumps, seen = 0, 0, {side.tobytes()}
+    best: tuple[float, np.ndarray, OptimizeResult | SqpResult] | None = None
+    for _ in range(SIDED_ROUNDS + JUMP_ROUNDS):
         scaled.side = side
         rows = _lowest_rows(side, problem.request)
         low = np.where(side, np.maximum(lower, critical), lower)
@@ -440,13 +444,26 @@ def sided_slsqp_plan(problem: FastestProblem, start: np.ndarray, limits: SolverL
                                 low / mean, high / mean, SIDED_MAXITER)
         iterations += int(result.nit)
         power = np.clip(result.x * mean, low, high)
-        has_rows = rows is None or rows.size > 0
-        prices = np.asarray(result.multipliers)[1:] if has_rows else np.zeros(0)
-        crossing = _crossings(scaled, power, side, prices, float(result.multipliers[0]), rows)
-        crossing &= np.where(side, lower < critical, upper > critical)
-        if not crossing.any():
+        crossed = crossed_sides(scaled, result, power, side, rows, seen, gradual)
+        if crossed is not None:
+            side = crossed
+            continue
+        # no segment crosses CP by a small step: keep the fastest such answer, then try
+        # the resting segments well across CP (pacing.plan.sided_crossings)
+        finish = kept_finish(scaled, limits, power)
+        if best is not None and not finish < best[0]:
             break
-        side = side ^ crossing
+        best = (finish, power, result)
+        jump = (side_jumps(scaled, power, side, lower, upper, np.asarray(result.multipliers),
+                           rows, limits.reserve) if jumps < JUMP_ROUNDS and rows is not None
+                and limits.cap is None else None)
+        if jump is None:
+            break
+        side, power = jump
+        seen.add(side.tobytes())
+        jumps += 1
+    if best is not None and not kept_finish(scaled, limits, power) < best[0]:
+        power, result = best[1], best[2]
     result.nit = iterations
     return power, result
 
@@ -471,28 +488,6 @@ def _structured_round(scaled: ScaledProblem, limits: SolverLimits, start: np.nda
                           SIDED_MAXITER)
     fallback.message = f"structured SQP stopped ({reason}); SLSQP round: {fallback.message}"
     return fallback
-
-
-def _crossings(scaled: ScaledProblem, power: np.ndarray, side: np.ndarray,
-               prices: np.ndarray, coupling_price: float, rows: np.ndarray | None
-               ) -> np.ndarray:
-    """Segments resting on CP whose Lagrangian falls when they cross to the other side (bool):
-    its slope is ∂L/∂x on the held side (≥ 0 at a lower bound, ≤ 0 at an upper one) plus
-    Σ μ_j·(J_held − J_other)_jk, J the W′ balance Jacobian on each side's formula."""
-    critical, w_prime = w_prime_parameters(scaled.request)
-    resting = np.abs(power - critical) <= 1e-9 * critical
-    if not resting.any():
-        return resting
-    share = power / scaled.mean
-    time, dtime = scaled.evaluate(share)
-    prices = prices[: power.size if rows is None else rows.size]  # the W′ rows' multipliers
-    held = w_prime_jacobian(power, time, dtime, scaled.request, side, rows, scaled.initial)
-    other = w_prime_jacobian(power, time, dtime, scaled.request, ~side, rows, scaled.initial)
-    scale = scaled.mean / w_prime
-    gradient = (scaled.objective_gradient(share)
-                - coupling_price * scaled.coupling_gradient(share)[0] - prices @ held * scale)
-    crossed = gradient + prices @ (held - other) * scale
-    return resting & np.where(side, crossed > CROSSING_SLOPE, crossed < -CROSSING_SLOPE)
 
 
 # ----------------------------------------------------------------------------- windows
