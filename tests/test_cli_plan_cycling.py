@@ -1,7 +1,7 @@
 """Specification of ``pacing plan ROUTE.gpx --power W`` for cycling (pacing.cli.plan_cycling).
 
-The JSON keys are a contract other tools rely on (issue 3); bad input gives one line on stderr
-and exit code 2.
+Bad input gives one line on stderr and exit code 2. The JSON keys, a contract other tools rely
+on (issue 3), and the table: tests/test_cli_plan_cycling_output.py.
 """
 
 from __future__ import annotations
@@ -15,18 +15,6 @@ from samples import north_hill_gpx
 from pacing.cli import main
 
 pytest.importorskip("pacing.io.gpx")
-
-JSON_KEYS = {"finish_time_s", "distance_m", "average_speed_mps", "average_power_w",
-             "max_speed_mps", "work_kj", "walking_distance_m", "segments", "notices",
-             "min_w_prime_balance_j", "w_prime_exhausted_at_m", "w_prime_model", "warnings",
-             "start", "fixed_point_iterations", "environment"}  # issue 16: always a race day
-LIMIT_KEYS = {"min_w_prime_balance_j", "w_prime_exhausted_at_m", "w_prime_model", "warnings"}
-"""Issue 14: every cycling plan says where W′ runs out, whatever its strategy (and, issue 18,
-by which W′ balance model)."""
-SEGMENT_KEYS = {"start_m", "end_m", "grade", "power_w", "power_low_w", "power_high_w",
-                "speed_mps", "time_s", "max_speed_mps", "walking_distance_m", "gap_m",
-                "clock_time", "temperature_c", "wind_speed_mps", "wind_from_deg"}
-
 
 @pytest.fixture(scope="module")
 def route(tmp_path_factory):
@@ -47,43 +35,6 @@ def run_json(capsys, *argv):
     return json.loads(captured.out, parse_constant=_refuse_constant)
 
 
-def test_json_has_exactly_the_contract_keys(capsys, route):
-    result = run_json(capsys, route, "--power", "250")
-    assert set(result) == JSON_KEYS
-    assert result["segments"] and all(set(s) == SEGMENT_KEYS for s in result["segments"])
-    assert all(isinstance(v, float) and math.isfinite(v)
-               for k, v in result.items()
-               if k not in ("segments", "notices", "start", "fixed_point_iterations",
-                            "environment", *LIMIT_KEYS))
-    # 250 W on a 6 km hill: nothing to warn about (the course's notes, such as what elevation
-    # cleaning removed, may be told)
-    # (the day's heat caution, issue 16, is always told)
-    assert [n for n in result["notices"]
-            if n["level"] == "warning" and n["code"] != "heat-risk"] == []
-    # without CP and W′ there is no balance to tell
-    assert result["min_w_prime_balance_j"] is None and result["w_prime_exhausted_at_m"] is None
-    assert [text for text in result["warnings"] if "WBGT" not in text] == []
-
-
-def test_json_numbers_are_consistent(capsys, route):
-    result = run_json(capsys, route, "--power", "250")
-    segments = result["segments"]
-    assert result["distance_m"] == pytest.approx(segments[-1]["end_m"] - segments[0]["start_m"])
-    assert result["distance_m"] == pytest.approx(6000.0, rel=0.01)
-    assert sum(s["time_s"] for s in segments) == pytest.approx(result["finish_time_s"])
-    assert result["average_speed_mps"] == pytest.approx(
-        result["distance_m"] / result["finish_time_s"])
-    assert result["work_kj"] * 1000 == pytest.approx(
-        result["average_power_w"] * result["finish_time_s"])
-    assert result["average_power_w"] <= 250.0 + 1e-6
-    for s in segments:
-        assert s["speed_mps"] == pytest.approx((s["end_m"] - s["start_m"]) / s["time_s"])
-        assert s["max_speed_mps"] <= result["max_speed_mps"] + 1e-12
-    climb = max(segments, key=lambda s: s["grade"])
-    assert climb["grade"] == pytest.approx(0.05, abs=0.01)
-    assert climb["speed_mps"] < min(s["speed_mps"] for s in segments if s is not climb)
-
-
 def test_physics_flags_move_the_result_the_right_way(capsys, route):
     base = run_json(capsys, route, "--power", "250")["finish_time_s"]
     assert run_json(capsys, route, "--power", "300")["finish_time_s"] < base
@@ -102,15 +53,6 @@ def test_segment_length_flag_splits_evenly(capsys, route):
     assert len(result["segments"]) == 6
     assert [s["start_m"] for s in result["segments"]] == pytest.approx(
         [0, 1000, 2000, 3000, 4000, 5000], abs=30)
-
-
-def test_table_has_units_on_every_column(capsys, route):
-    assert main(["plan", route, "--power", "250"]) == 0
-    out = capsys.readouterr().out
-    header = out.splitlines()[0]
-    for unit in ("km", "%", "W", "km/h"):
-        assert unit in header
-    assert "finish" in out and "(H:MM:SS)" in out
 
 
 @pytest.mark.parametrize(
@@ -168,35 +110,6 @@ def test_tiny_power_walks_the_bike_and_is_flagged_never_nan(capsys, route):
 
 def test_a_normal_power_walks_nowhere(capsys, route):
     assert run_json(capsys, route, "--power", "250")["walking_distance_m"] == 0.0
-
-
-BAND = 0.03  # issue 4: "power targets per segment come with a band (e.g. ±3 %)"
-
-
-@pytest.mark.parametrize(
-    "flags",
-    [
-        ["--power", "250"],
-        ["--strategy", "constant", "--power", "250"],
-        ["--strategy", "fastest", "--power", "250", "--segment-length", "1000"],
-        ["--strategy", "target-time", "--target-time", "0:12:00", "--cp", "300",
-         "--w-prime", "20000"],
-    ],
-    ids=["plain", "constant", "fastest", "target-time"],
-)
-def test_every_cycling_plan_shows_the_power_band(capsys, route, flags):
-    """Review finding 5: the ±3 % band around each segment's target power, in JSON and table."""
-    result = run_json(capsys, route, *flags)
-    for segment in result["segments"]:
-        target = 250.0 if flags[0] == "--power" else segment["power_w"]
-        assert segment["power_low_w"] == pytest.approx((1 - BAND) * target, rel=1e-12)
-        assert segment["power_high_w"] == pytest.approx((1 + BAND) * target, rel=1e-12)
-    assert main(["plan", route, *flags]) == 0
-    lines = capsys.readouterr().out.splitlines()
-    assert "band W" in lines[0]
-    first = result["segments"][0]
-    assert f"{first['power_low_w']:.0f}-{first['power_high_w']:.0f}" in lines[1]
-    assert any(line.startswith("band: ±3 %") for line in lines)
 
 
 def test_max_descent_speed_caps_the_speed_and_brakes(capsys, route):
@@ -354,38 +267,3 @@ def test_an_efficiency_below_one_half_is_refused_in_one_line(capsys, route):
     assert main(["plan", route, "--power", "250", "--efficiency", "0.01"]) == 2
     err = capsys.readouterr().err.strip().splitlines()
     assert len(err) == 1 and "--efficiency must be 0.5-1" in err[0]
-
-
-# ------------------------------------------------- issue 13: a joined gap in the recording
-
-@pytest.fixture(scope="module")
-def merged_recording(tmp_path_factory):
-    """Two 7.5 km tracks, the second 12.7 km east of the first's end (geographiclib forward
-    model, tests/recording_samples.py): one gap, joined by a straight line by default."""
-    from recording_samples import two_tracks_with_a_jump
-
-    path = tmp_path_factory.mktemp("recordings") / "merged.gpx"
-    path.write_text(two_tracks_with_a_jump(jump=12_700.0), encoding="utf-8")
-    return str(path)
-
-
-@pytest.mark.parametrize("strategy", [(), ("--strategy", "constant")])
-def test_json_tells_the_one_segment_holding_the_joined_gap(capsys, merged_recording, strategy):
-    result = run_json(capsys, merged_recording, "--power", "200", "--segment-length", "5000",
-                      *strategy)
-    holding = [s for s in result["segments"] if s["gap_m"] > 0]
-    assert len(holding) == 1
-    assert holding[0]["gap_m"] == pytest.approx(12_700.0, rel=0.01)  # the forward model's jump
-    assert holding[0]["start_m"] <= 7_500.0 < holding[0]["end_m"]  # where the first track ends
-
-
-def test_json_of_a_course_without_gaps_has_zero_gap_everywhere(capsys, route):
-    result = run_json(capsys, route, "--power", "250")
-    assert all(s["gap_m"] == 0.0 for s in result["segments"])
-
-
-def test_table_marks_the_row_holding_the_joined_gap(capsys, merged_recording):
-    assert main(["plan", merged_recording, "--power", "200", "--segment-length", "5000"]) == 0
-    rows = [line for line in capsys.readouterr().out.splitlines() if "joined gap" in line]
-    assert len(rows) == 1 and rows[0].endswith("<- joined gap 12.7 km")
-    assert rows[0].split()[1] == "5.00"  # the segment from km 5 to km 10

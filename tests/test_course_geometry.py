@@ -1,6 +1,7 @@
 """Specification of pacing.course.geometry: geodesy, resampling, building a course (with its
-elevation cleaned), corner radius, and the checks on bad tracks (the cleaning itself:
-tests/test_course_elevation.py; segments: tests/test_course_segments.py)."""
+elevation cleaned), corner radius, and bad tracks refused (the checks themselves:
+tests/test_course_track_checks.py; the cleaning itself: tests/test_course_elevation.py;
+segments: tests/test_course_segments.py)."""
 
 from __future__ import annotations
 
@@ -286,12 +287,6 @@ def test_bad_tracks_raise_one_line_input_errors(latitude, longitude, elevation, 
     with pytest.raises(InputError, match=message) as error:
         build_course(latitude, longitude, elevation)
     assert "\n" not in str(error.value)
-
-
-@pytest.mark.parametrize("step", [0.0, -5.0, 0.5, 5000.0, float("nan"), "ten"])
-def test_bad_steps_are_refused(step):
-    with pytest.raises(InputError, match="step"):
-        build_course([45.0, 45.1], [7.0, 7.0], [0.0, 0.0], step=step)
 
 
 def test_synthetic_course_refuses_bad_arrays_with_input_error():

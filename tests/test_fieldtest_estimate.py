@@ -27,11 +27,7 @@ import pytest
 from pacing.athlete import Setup
 from pacing.display.notices import describe, describe_all
 from pacing.errors import InputError
-from pacing.fieldtest.estimate import (
-    TYPICAL_ROLLING_COEFFICIENT,
-    PositionTest,
-    estimate_drag,
-)
+from pacing.fieldtest.estimate import TYPICAL_ROLLING_COEFFICIENT, PositionTest, estimate_drag
 from pacing.fieldtest.laps import laps_from_bounds
 from pacing.fieldtest.ride import EARTH_RADIUS, make_ride, ride_wind
 from pacing.notices import Notice

@@ -1,8 +1,7 @@
 """Exports of the segment target table (pacing.io.exports).
 
-Each file is read back with an independent reader: pandas and openpyxl for CSV/XLSX, gpxpy for
-GPX, Pillow (matplotlib's image dependency) for the PNG; a PDF file starts with "%PDF-"
-(ISO 32000-1:2008, 7.5.2 File header).
+Each file is read back with an independent reader: pandas and openpyxl for CSV and XLSX,
+gpxpy for GPX (the card: tests/test_io_target_card.py).
 """
 
 from __future__ import annotations
@@ -15,24 +14,19 @@ import numpy as np
 import openpyxl
 import pandas as pd
 import pytest
-from PIL import Image
 
 from pacing.course.geometry import synthetic_course
 from pacing.display.notices import describe
 from pacing.display.units import format_duration
 from pacing.errors import InputError
 from pacing.io.exports import (
-    CARD_DPI,
-    CAUTION_LINE,
-    card_size,
     course_with_targets_gpx,
     located_warnings,
+    race_day_lines,
     segment_table,
     segment_waypoints,
     table_to_csv,
     table_to_xlsx,
-    target_card_pdf,
-    target_card_png,
 )
 from pacing.notices import note, warning
 
@@ -55,6 +49,12 @@ def make_rows(count=6, running=False, wprime=True):
             headwind=1.25 - 0.5 * i,
         ))
     return rows
+
+
+
+SAID = ["warning: W′ runs out at 3.8 km: this plan asks more than the athlete's critical power "
+        "and W′ allow (lowest balance -46.8 kJ). Lower the power or plan the fastest race "
+        "within the limits.", "note: the plan holds to the mean power asked for"]
 
 
 def clock_text(duration: datetime.timedelta) -> str:
@@ -185,6 +185,7 @@ class TestCsvAndXlsx:
         pd.testing.assert_frame_equal(back, table, check_dtype=False)
 
 
+
 class TestGpx:
     def course(self):
         distance = np.linspace(0.0, 40000.0, 2001)
@@ -245,65 +246,6 @@ class TestGpx:
         assert points[-1][2].endswith("Warning: D′ runs out")
 
 
-class TestCard:
-    @pytest.mark.parametrize("count", [1, 6, 20, 21, 45])
-    def test_png_has_the_documented_size(self, count):
-        png = target_card_png(make_rows(count), title="Test loop")
-        assert png[:8] == b"\x89PNG\r\n\x1a\n"  # PNG signature (ISO/IEC 15948, 5.2)
-        width, height = card_size(count)
-        with Image.open(io.BytesIO(png)) as image:
-            assert image.size == (round(width * CARD_DPI), round(height * CARD_DPI))
-
-    def test_a_joined_gap_is_printed_on_the_card_as_one_more_line(self):
-        from pacing.io.exports import _card_figure
-
-        rows = make_rows(4)
-        rows[2]["gap_length"] = 12_700.0
-        figure = _card_figure(rows, "metric", "x")
-        texts = " ".join(t.get_text().replace("\n", " ") for t in figure.axes[0].texts)
-        assert "joined gap 12.7 km" in texts and "segment 3" in texts
-        png = target_card_png(rows, warnings=["W′ runs out"])
-        width, height = card_size(4, 2)  # the gap line and the warning
-        with Image.open(io.BytesIO(png)) as image:  # 4.45 in · 150 dpi = 667.5 px: ±1 px
-            assert image.size == pytest.approx((width * CARD_DPI, height * CARD_DPI), abs=1)
-        figure = _card_figure(make_rows(4), "metric", "x")
-        assert "gap" not in " ".join(t.get_text() for t in figure.axes[0].texts)
-
-    def test_more_segments_add_columns(self):
-        assert card_size(45)[0] == pytest.approx(3 * card_size(5)[0])
-
-    def test_pdf_starts_with_the_pdf_header(self):
-        pdf = target_card_pdf(make_rows(running=True), "imperial", title="Test run")
-        assert pdf.startswith(b"%PDF-")
-        assert len(pdf) > 1000
-
-    def test_card_is_not_blank(self):
-        png = target_card_png(make_rows())
-        with Image.open(io.BytesIO(png)) as image:
-            grey = np.asarray(image.convert("L"), dtype=float)
-        assert (grey < 100).mean() > 0.01  # dark ink on a white card
-
-    def test_caution_line_is_printed(self):
-        # the PDF text is compressed; check the figure's texts instead
-        from pacing.io.exports import _card_figure
-
-        figure = _card_figure(make_rows(), "metric", "x")
-        texts = " ".join(t.get_text().replace("\n", " ") for t in figure.axes[0].texts)
-        assert CAUTION_LINE in texts
-
-    def test_a_running_card_speaks_of_running(self):
-        from pacing.io.exports import RUNNING_CAUTION_LINE, _card_figure
-
-        figure = _card_figure(make_rows(running=True), "metric", "x")
-        texts = " ".join(t.get_text().replace("\n", " ") for t in figure.axes[0].texts)
-        assert RUNNING_CAUTION_LINE in texts
-        assert "Ride within" not in texts
-
-    def test_no_segments_is_an_input_error(self):
-        with pytest.raises(InputError):
-            target_card_png([])
-
-
 @pytest.fixture(scope="module")
 def planned():
     from pacing.course.segments import split_every
@@ -355,16 +297,12 @@ class TestWithTheLibrary:
 
 # ------------------------------------------------------ the plan's warnings reach every file
 
-SAID = ["warning: W′ runs out at 3.8 km: this plan asks more than the athlete's critical power "
-        "and W′ allow (lowest balance -46.8 kJ). Lower the power or plan the fastest race "
-        "within the limits.", "note: limits reached: mean-power"]
-
 
 def test_csv_starts_with_the_warnings_as_comment_lines_and_reads_back():
     table = segment_table(make_rows(), "metric")
     data = table_to_csv(table, SAID).decode("utf-8")
     assert data.splitlines()[0].startswith("# warning: W′ runs out at 3.8 km")
-    assert data.splitlines()[1] == "# note: limits reached: mean-power"
+    assert data.splitlines()[1] == "# note: the plan holds to the mean power asked for"
     back = pd.read_csv(io.StringIO(data), comment="#")
     assert list(back.columns) == list(table.columns) and len(back) == len(table)
     assert not table_to_csv(table).decode("utf-8").startswith("#")  # nothing to say: bare table
@@ -378,22 +316,6 @@ def test_xlsx_keeps_the_targets_first_and_the_warnings_on_their_own_sheet():
     assert said == SAID
     assert pd.read_excel(io.BytesIO(table_to_xlsx(table, notices=SAID))).shape == table.shape
 
-
-def test_the_card_grows_to_print_its_warnings():
-    rows = make_rows()
-    plain = Image.open(io.BytesIO(target_card_png(rows, dpi=50)))
-    warned = Image.open(io.BytesIO(target_card_png(rows, dpi=50, warnings=SAID[:1])))
-    assert warned.size[0] == plain.size[0]
-    assert warned.size[1] == pytest.approx(plain.size[1] + 0.45 * 50, abs=1)
-
-
-def test_the_gpx_export_describes_the_plan_s_warnings_and_notes():
-    # the same lines as the CSV's comment lines and the XLSX's sheet, in <metadata><desc>
-    course = synthetic_course(np.arange(0.0, 20001.0, 10.0), np.zeros(2001), heading=0.0)
-    text = course_with_targets_gpx(course, make_rows(count=3), notices=SAID)
-    description = gpxpy.parse(text).description
-    assert description.splitlines() == SAID
-    assert gpxpy.parse(course_with_targets_gpx(course, make_rows(count=3))).description is None
 
 
 def test_a_race_day_adds_clock_and_weather_columns_in_both_unit_systems():
@@ -421,7 +343,6 @@ def test_a_files_comments_say_the_race_days_test_conditions_and_band():
 
     from pacing.course.geometry import synthetic_course
     from pacing.course.segments import split_every
-    from pacing.io.exports import race_day_lines
     from pacing.physics.cycling import Rider
     from pacing.plan.forecast_band import WeatherSpread
     from pacing.plan.race import RaceRequest, plan_race
@@ -442,3 +363,12 @@ def test_a_files_comments_say_the_race_days_test_conditions_and_band():
     text = table_to_csv(segment_table(result.targets), lines).decode()
     assert text.startswith("# heat and altitude: limits factor 1.0000")
     assert race_day_lines(None) == []
+
+
+def test_the_gpx_export_describes_the_plan_s_warnings_and_notes():
+    # the same lines as the CSV's comment lines and the XLSX's sheet, in <metadata><desc>
+    course = synthetic_course(np.arange(0.0, 20001.0, 10.0), np.zeros(2001), heading=0.0)
+    text = course_with_targets_gpx(course, make_rows(count=3), notices=SAID)
+    description = gpxpy.parse(text).description
+    assert description.splitlines() == SAID
+    assert gpxpy.parse(course_with_targets_gpx(course, make_rows(count=3))).description is None

@@ -13,12 +13,9 @@ from pacing.errors import InputError
 from pacing.weather.sun import solar_elevation, sun_distance
 from pacing.weather.wbgt import (
     WBGT_METHODS,
-    direct_fraction,
-    stability_class,
     wbgt_bom_approximation,
     wbgt_liljegren,
     wbgt_liljegren_parts,
-    wind_at_globe,
 )
 
 # Reference values: lwbgt 1.2.1 (PyPI), which packages the original Argonne National Laboratory
@@ -108,33 +105,6 @@ def test_saturated_shade_is_close_to_the_air_temperature():
     parts = wbgt_liljegren_parts(20.0, 1.0, 3.0, 101325.0, 0.0, -30.0)
     assert 19.0 < float(parts.natural_wet_bulb) <= 20.0
     assert 19.0 < float(parts.wbgt) <= 20.0
-
-
-def test_stability_classes_follow_the_solar_radiation_table():
-    # Liljegren et al. (2008), Table 2 (solar radiation / delta-T): strong sun and calm is A,
-    # weak sun and wind is D, night and calm is E.
-    wind = np.array([1.0, 2.5, 4.0, 5.5, 7.0, 1.0, 3.0])
-    solar = np.array([950.0, 700.0, 300.0, 100.0, 950.0, 0.0, 0.0])
-    sun_up = np.array([True, True, True, True, True, False, False])
-    assert stability_class(wind, solar, sun_up).tolist() == [1, 2, 3, 4, 3, 5, 4]
-
-
-def test_wind_at_two_metres_follows_the_power_law_with_a_floor():
-    # u₂ = u₁₀·(2/10)^p (Liljegren et al. 2008), rural p = 0.15 for class D; floor 0.13 m/s.
-    assert float(wind_at_globe(np.array(4.0), 10.0, np.array(4))) == pytest.approx(
-        4.0 * 0.2**0.15, rel=1e-12)
-    assert float(wind_at_globe(np.array(0.0), 10.0, np.array(6))) == pytest.approx(0.13)
-
-
-def test_direct_fraction_vanishes_at_night_and_stays_below_0_9():
-    cosine = np.array([0.9, 0.9, 0.001, -0.2])
-    solar = np.array([1100.0, 200.0, 5.0, 0.0])
-    fraction = direct_fraction(solar, cosine)
-    # normalised irradiance capped at 0.85: exp(3 − 1.34·0.85 − 1.65/0.85) = 0.923, then 0.9
-    assert math.exp(3 - 1.34 * 0.85 - 1.65 / 0.85) > 0.9
-    assert fraction[0] == pytest.approx(0.9, abs=1e-12)
-    assert 0.0 <= fraction[1] < fraction[0] <= 0.9
-    assert fraction[2] == 0.0 and fraction[3] == 0.0
 
 
 def bom_wbgt(celsius, humidity):

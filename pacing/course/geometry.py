@@ -10,7 +10,8 @@ Conventions (see DEVELOPERS.md):
 
 Building a course from a track (`build_course`):
 
-1. validate the positions and elevations, drop repeated consecutive points;
+1. validate the positions and elevations (pacing.course.track_checks), drop repeated
+   consecutive points;
 2. measure each raw piece on the WGS84 ellipsoid (pyproj.Geod, Karney 2013), which also handles
    tracks that cross the antimeridian;
 3. resample along the track at a uniform step, moving along each raw piece's geodesic;
@@ -30,7 +31,6 @@ Karney, C.F.F. (2013). Algorithms for geodesics. J Geodesy 87:43-55. doi:10.1007
 
 from __future__ import annotations
 
-import math
 from dataclasses import dataclass
 from typing import TYPE_CHECKING
 
@@ -50,6 +50,7 @@ from pacing.course.elevation import (
     sustained_steep_pieces,
     total_ascent,
 )
+from pacing.course.track_checks import checked_skip, checked_step, validate_track
 from pacing.errors import InputError
 from pacing.notices import Notice
 
@@ -63,12 +64,6 @@ DEFAULT_STEP = 10.0
 """Default resampling step along the course [m]: fine enough to keep the shape of a hairpin
 bend, coarse enough that 200 km make 20,000 points."""
 
-MINIMUM_STEP = 1.0
-"""Smallest resampling step accepted [m]."""
-
-MAXIMUM_STEP = 1000.0
-"""Largest resampling step accepted [m]."""
-
 MAXIMUM_COURSE_POINTS = 2_000_000
 """Most points a resampled course may have (course length / step)."""
 
@@ -78,12 +73,6 @@ radius [m]."""
 
 REPEATED_POINT_DISTANCE = 1e-3
 """Consecutive points closer than this are one point [m]; the later ones are dropped."""
-
-LOWEST_ELEVATION = -500.0
-"""Lowest plausible elevation of a course [m] (the shore of the Dead Sea is about -430 m)."""
-
-HIGHEST_ELEVATION = 9000.0
-"""Highest plausible elevation of a course [m] (Everest is 8849 m)."""
 
 METRES_PER_DEGREE = 111_195.0
 """Length of one degree on the sphere of mean radius 6 371 km [m], used to place a synthetic
@@ -177,7 +166,6 @@ class Course:
     def lowest_elevation(self) -> float:
         """Lowest point of the cleaned profile [m]."""
         return float(np.min(self.elevation))
-
 
 
 def synthetic_course(
@@ -286,68 +274,6 @@ def geodesic_pieces(latitude: ArrayLike, longitude: ArrayLike) -> tuple[np.ndarr
         return np.zeros(0), np.zeros(0)
     azimuth, _, length = WGS84.inv(longitude[:-1], latitude[:-1], longitude[1:], latitude[1:])
     return np.asarray(length, dtype=float), np.mod(np.asarray(azimuth, dtype=float), 360.0)
-
-
-def validate_track(
-    latitude: ArrayLike, longitude: ArrayLike, elevation: ArrayLike | None = None
-) -> tuple[np.ndarray, np.ndarray, np.ndarray | None]:
-    """Check the raw track's arrays and return them as float arrays.
-
-    Raises InputError for unequal lengths, fewer than two points, non-finite or out-of-range
-    positions, elevations outside LOWEST_ELEVATION..HIGHEST_ELEVATION. NaN elevations mean
-    "missing at that point" and are kept (build_course fills them).
-
-    Parameters
-    ----------
-    latitude : array_like
-        Latitude of each track point, -90..90 [deg].
-    longitude : array_like
-        Longitude of each track point, -180..180 [deg].
-    elevation : array_like, optional
-        Elevation of each track point, NaN where missing [m].
-
-    Returns
-    -------
-    latitude : numpy.ndarray
-        Flat float array [deg].
-    longitude : numpy.ndarray
-        Flat float array [deg].
-    elevation : numpy.ndarray or None
-        Flat float array, or None when none was given [m].
-    """
-    try:
-        latitude = np.asarray(latitude, dtype=float).ravel()
-        longitude = np.asarray(longitude, dtype=float).ravel()
-        heights = (None if elevation is None
-                   else np.asarray(elevation, dtype=float).ravel())
-    except (TypeError, ValueError):
-        raise InputError("positions and elevations must be numbers") from None
-    if latitude.size != longitude.size or (heights is not None
-                                           and heights.size != latitude.size):
-        raise InputError("latitude, longitude and elevation must have the same number of points")
-    if latitude.size == 0:
-        raise InputError("the course has no points")
-    if latitude.size == 1:
-        raise InputError("the course has only one point; a course needs at least two")
-    bad = ~np.isfinite(latitude) | (np.abs(latitude) > 90.0)
-    if bad.any():
-        index = int(np.argmax(bad))
-        raise InputError(f"latitude out of range -90..90 deg at point {index + 1}: "
-                         f"{latitude[index]:g}")
-    bad = ~np.isfinite(longitude) | (np.abs(longitude) > 180.0)
-    if bad.any():
-        index = int(np.argmax(bad))
-        raise InputError(f"longitude out of range -180..180 deg at point {index + 1}: "
-                         f"{longitude[index]:g}")
-    if heights is not None:
-        with np.errstate(invalid="ignore"):
-            bad = np.isinf(heights) | (heights < LOWEST_ELEVATION) | (
-                heights > HIGHEST_ELEVATION)
-        if bad.any():
-            index = int(np.argmax(bad))
-            raise InputError(f"elevation {heights[index]:g} m at point {index + 1} is outside "
-                             f"the plausible range {LOWEST_ELEVATION:g}..{HIGHEST_ELEVATION:g} m")
-    return latitude, longitude, heights
 
 
 def resample_distance(total: float, step: float) -> np.ndarray:
@@ -462,18 +388,6 @@ def corner_radius(latitude: ArrayLike, longitude: ArrayLike, step: float,
 
 # ------------------------------------------------------------------------------ build
 
-def _checked_step(step: float) -> float:
-    """The resampling step as a float, or InputError unless MINIMUM_STEP ≤ step ≤ MAXIMUM_STEP."""
-    try:
-        step = float(step)
-    except (TypeError, ValueError):
-        raise InputError(f"step must be a number of metres, got {step!r}") from None
-    if not (math.isfinite(step) and MINIMUM_STEP <= step <= MAXIMUM_STEP):
-        raise InputError(f"step must be between {MINIMUM_STEP:g} and {MAXIMUM_STEP:g} m, "
-                         f"got {step:g}")
-    return step
-
-
 def _without_repeated_points(latitude: np.ndarray, longitude: np.ndarray,
                              elevation: np.ndarray, skip: np.ndarray
                              ) -> tuple[np.ndarray, np.ndarray, np.ndarray, np.ndarray]:
@@ -486,16 +400,6 @@ def _without_repeated_points(latitude: np.ndarray, longitude: np.ndarray,
         raise InputError("all points of the course are at the same place")
     skipped_before = np.concatenate([[0], np.cumsum(skip)])[np.flatnonzero(keep)]
     return latitude, longitude, elevation, np.diff(skipped_before) > 0
-
-
-def _checked_skip(skip: ArrayLike | None, pieces: int) -> np.ndarray:
-    """The pieces left out as a boolean array of length `pieces` (none when None)."""
-    if skip is None:
-        return np.zeros(pieces, dtype=bool)
-    mask = np.asarray(skip, dtype=bool).ravel()
-    if mask.size != pieces:
-        raise InputError("skip must have one flag per piece between track points")
-    return mask
 
 
 def _level_across(heights: np.ndarray, skip: np.ndarray) -> np.ndarray:
@@ -544,7 +448,7 @@ def build_course(latitude: ArrayLike, longitude: ArrayLike, elevation: ArrayLike
         Elevation of each track point, length M; NaN where a point has none (filled by
         interpolation along the distance, with a notice saying how many) [m].
     step : float, optional
-        Resampling step, MINIMUM_STEP..MAXIMUM_STEP [m].
+        Resampling step, MINIMUM_STEP..MAXIMUM_STEP of pacing.course.track_checks [m].
     smoothing : ElevationSmoothing, optional
         Elevation cleaning.
     name : str, optional
@@ -575,7 +479,7 @@ def build_course(latitude: ArrayLike, longitude: ArrayLike, elevation: ArrayLike
     >>> round(course.total_distance, 4), course.distance.size
     (110574.3886, 11059)
     """
-    step = _checked_step(step)
+    step = checked_step(step)
     if smoothing is None:
         smoothing = ElevationSmoothing()
     if elevation is None:
@@ -583,7 +487,7 @@ def build_course(latitude: ArrayLike, longitude: ArrayLike, elevation: ArrayLike
     latitude, longitude, heights = validate_track(latitude, longitude, elevation)
     if heights is None:  # never: an elevation was given (narrows the type)
         raise InputError("the course has no elevation")
-    skipped = _checked_skip(skip, latitude.size - 1)
+    skipped = checked_skip(skip, latitude.size - 1)
     latitude, longitude, heights, skipped = _without_repeated_points(latitude, longitude,
                                                                      heights, skipped)
     missing = missing_elevation_notice(heights)

@@ -32,8 +32,9 @@ What the user must hear comes back as `FieldTestResult.warnings`, notices (pacin
 their numbers; pacing.display.fieldtest_words has their sentences.
 
 Rides, their cleaning and air are in pacing.fieldtest.ride, their laps in pacing.fieldtest.laps,
-the least squares over laps and its bootstrap in pacing.fieldtest.fit, the warnings in
-pacing.fieldtest.checks.
+the least squares over laps and its bootstrap in pacing.fieldtest.fit (with Crr held when
+needed: pacing.fieldtest.drag_fit), the warnings in pacing.fieldtest.checks, the result's
+classes in pacing.fieldtest.estimate_result.
 Conventions: point arrays (one value per sample) have length N, piece arrays (between samples i
 and i+1) length N-1. Laps are (start, end) pairs of sample indices.
 
@@ -54,14 +55,11 @@ from __future__ import annotations
 
 from collections.abc import Sequence
 from dataclasses import dataclass
-from typing import Any
 
 import numpy as np
 
-from pacing.athlete import Setup
 from pacing.errors import InputError
 from pacing.fieldtest.checks import (
-    PLAUSIBLE_ROLLING,
     conditions_notices,
     drag_area_notices,
     interval_notices,
@@ -69,26 +67,18 @@ from pacing.fieldtest.checks import (
     rolling_notices,
     separation_notices,
 )
-from pacing.fieldtest.fit import (
-    GRID_POINTS,
-    Columns,
-    Refit,
-    bootstrap_fits,
-    drag_area_per_rolling,
-    estimate_correlation,
-    normal_equations,
-    solve_normal_equations,
+from pacing.fieldtest.drag_fit import bootstrap_interval, fit_drag
+from pacing.fieldtest.estimate_result import (
+    FieldTestResult,
+    LapTrace,
+    PositionDifference,
+    PositionEstimate,
 )
+from pacing.fieldtest.fit import GRID_POINTS, Refit, drag_area_per_rolling
 from pacing.fieldtest.laps import LAP_RADIUS, LapTerms, build_laps
 from pacing.fieldtest.methods import FIELD_TEST_METHODS, FieldTestMethod
 from pacing.fieldtest.ride import Ride
-from pacing.fieldtest.wind_fit import WindEstimate
-from pacing.notices import Notice
 from pacing.physics.cycling import MARTIN_1998, Rider
-
-SEPARATION_LIMIT = 0.99
-"""|correlation| of the CdA and Crr estimates above which they are reported as inseparable
-when there is no bootstrap interval of Crr to judge by (see `estimate_drag`)."""
 
 TYPICAL_ROLLING_COEFFICIENT = MARTIN_1998["rolling_coefficient"]
 """Crr held when the laps cannot separate CdA from Crr and none is given [-]: 0.0032, the
@@ -129,182 +119,6 @@ class PositionTest:
     laps: tuple[tuple[int, int], ...] | None = None
     headwind: float | np.ndarray = 0.0
     crosswind: float | np.ndarray = 0.0
-
-
-@dataclass(frozen=True, eq=False)
-class LapTrace:
-    """Plot data of one lap (point arrays over the lap's samples).
-
-    Attributes
-    ----------
-    time : numpy.ndarray
-        Time from the lap start [s].
-    distance : numpy.ndarray
-        Distance from the lap start [m].
-    virtual_elevation : numpy.ndarray
-        Trace with the fitted CdA and Crr [m], starting at the measured elevation of the lap
-        start when known, else at 0.
-    reference_elevation : numpy.ndarray
-        What the trace should follow [m]: the measured/known profile (methods that need
-        elevation), else the mean virtual trace of the position's laps at the same place.
-    residual : numpy.ndarray
-        Virtual − reference [m].
-    measured_elevation : numpy.ndarray or None
-        The ride's elevation column over the lap [m].
-    """
-
-    time: np.ndarray
-    distance: np.ndarray
-    virtual_elevation: np.ndarray
-    reference_elevation: np.ndarray
-    residual: np.ndarray
-    measured_elevation: np.ndarray | None
-
-
-@dataclass(frozen=True, eq=False)
-class PositionEstimate:
-    """CdA of one position.
-
-    Attributes
-    ----------
-    label : str
-        Name of the position.
-    drag_area : float
-        CdA [m²].
-    drag_area_ci95 : tuple of float or None
-        Bootstrap 95 % interval [m²]; None with too few laps.
-    laps : int
-        Number of laps.
-    lap_drag_area : numpy.ndarray
-        CdA of each lap alone with Crr held at the fitted value [m²].
-    traces : tuple of LapTrace
-        Plot data per lap.
-    """
-
-    label: str
-    drag_area: float
-    drag_area_ci95: tuple[float, float] | None
-    laps: int
-    lap_drag_area: np.ndarray
-    traces: tuple[LapTrace, ...]
-
-
-@dataclass(frozen=True)
-class PositionDifference:
-    """CdA of one position minus that of the first.
-
-    Attributes
-    ----------
-    label : str
-        The position.
-    baseline : str
-        The first position.
-    difference : float
-        CdA of `label` minus CdA of `baseline` [m²].
-    ci95 : tuple of float or None
-        Bootstrap 95 % interval of the difference [m²].
-    significant : bool
-        True when the interval excludes 0.
-    """
-
-    label: str
-    baseline: str
-    difference: float
-    ci95: tuple[float, float] | None
-    significant: bool
-
-
-@dataclass(frozen=True, eq=False)
-class FieldTestResult:
-    """Estimated CdA per position and a common Crr, with intervals and warnings.
-
-    Attributes
-    ----------
-    method : str
-        Key of pacing.fieldtest.methods.FIELD_TEST_METHODS.
-    positions : tuple of PositionEstimate
-        CdA per position, in the order given.
-    rolling_coefficient : float
-        Crr [-].
-    rolling_coefficient_ci95 : tuple of float or None
-        Bootstrap 95 % interval of Crr [-]; None when held or with too few laps.
-    rolling_fixed : bool
-        True when Crr was given, not fitted.
-    estimate_correlation : float
-        Largest |correlation| between a CdA and the Crr estimate [-] (0 when Crr was given;
-        when Crr is held, the correlation that made it so).
-    differences : tuple of PositionDifference
-        Each position against the first.
-    warnings : tuple of pacing.notices.Notice
-        What may mislead (codes "fieldtest-…"; words in pacing.display.fieldtest_words).
-    bootstrap_drag_area : numpy.ndarray
-        Bootstrap draws, shape (draws, positions) [m²] (empty if none).
-    rolling_held : bool
-        True when the laps could not separate CdA from Crr, so Crr was held at a typical value
-        (`fallback_rolling_coefficient` of `estimate_drag`) and only CdA fitted; the CdA
-        intervals then hold for that Crr only.
-    drag_area_per_rolling : tuple of float
-        Change of each position's fitted CdA per unit change of the Crr it is fitted with
-        [m²], d CdA / d Crr (negative: a higher Crr leaves less drag to air).
-    wind : pacing.fieldtest.wind_fit.WindEstimate or None
-        The steady wind estimated from the laps (pacing.fieldtest.wind_estimate), None when
-        the wind was given or not estimated.
-    """
-
-    method: str
-    positions: tuple[PositionEstimate, ...]
-    rolling_coefficient: float
-    rolling_coefficient_ci95: tuple[float, float] | None
-    rolling_fixed: bool
-    estimate_correlation: float
-    differences: tuple[PositionDifference, ...]
-    warnings: tuple[Notice, ...]
-    bootstrap_drag_area: np.ndarray
-    rolling_held: bool = False
-    drag_area_per_rolling: tuple[float, ...] = ()
-    wind: WindEstimate | None = None
-
-    @property
-    def drag_area(self) -> float:
-        """CdA of the first position [m²]."""
-        return self.positions[0].drag_area
-
-    @property
-    def drag_area_ci95(self) -> tuple[float, float] | None:
-        """Bootstrap 95 % interval of the first position's CdA [m²], or None."""
-        return self.positions[0].drag_area_ci95
-
-    @property
-    def laps(self) -> int:
-        """Number of laps used, over all positions."""
-        return sum(p.laps for p in self.positions)
-
-    def setup(self, position: str | int = 0, name: str | None = None, **fields: Any) -> Setup:
-        """The measured position as a pacing.athlete.Setup.
-
-        Parameters
-        ----------
-        position : str or int
-            Label or index of the position.
-        name : str or None
-            Name of the setup (default the position's label).
-        **fields
-            Other Setup fields, e.g. bike_mass [kg].
-
-        Returns
-        -------
-        pacing.athlete.Setup
-            With drag_area [m²] rounded to 4 decimals and rolling_coefficient [-] to 5.
-        """
-        if isinstance(position, str):
-            matches = [p for p in self.positions if p.label == position]
-            if not matches:
-                raise InputError(f"no position named {position!r}")
-            estimate = matches[0]
-        else:
-            estimate = self.positions[position]
-        return Setup(name=name or estimate.label, drag_area=round(estimate.drag_area, 4),
-                     rolling_coefficient=round(self.rolling_coefficient, 5), **fields)
 
 
 # ---------------------------------------------------------------------------------------------
@@ -360,117 +174,6 @@ def _check_lap_counts(tests: Sequence[PositionTest], lap_sets: Sequence[list[Lap
 
 
 # ---------------------------------------------------------------------------------------------
-# The fit: joint, or with Crr held when the laps cannot separate CdA from Crr
-# ---------------------------------------------------------------------------------------------
-
-
-@dataclass(frozen=True, eq=False)
-class _Fit:
-    """The solved least squares.
-
-    solution : CdA per position [m²] (then Crr [-] when fitted); correlation : of the joint
-    estimates [-]; draws : bootstrap estimates; valid : enough draws for an interval;
-    held_value : Crr held [-] (given or fallback) or None; held : held at the fallback;
-    problem : values of the separation notice, or None.
-    """
-
-    solution: np.ndarray
-    correlation: float
-    draws: np.ndarray
-    valid: bool
-    held_value: float | None
-    held: bool
-    problem: dict[str, Any] | None
-
-
-def _separation_problem(solution: np.ndarray | None, correlation: float,
-                        rolling_draws: np.ndarray | None) -> dict[str, Any] | None:
-    """Why the laps cannot separate CdA from Crr (notice values), or None when they can.
-
-    With bootstrap draws of Crr: when their 95 % interval is wider than the spread of road
-    tyres (PLAUSIBLE_ROLLING), the laps say less about Crr than a typical value does. Without
-    them: when |correlation| of the two estimates exceeds SEPARATION_LIMIT.
-
-    Parameters
-    ----------
-    solution : numpy.ndarray or None
-        The joint fit (None when singular).
-    correlation : float
-        |correlation| of the CdA and Crr estimates [-].
-    rolling_draws : numpy.ndarray or None
-        Bootstrap draws of Crr [-], or None when there is no usable interval.
-
-    Returns
-    -------
-    dict or None
-        ``reason`` ("singular", "crr-interval" or "correlation") with ``correlation`` [-] and,
-        for "crr-interval", ``rolling_ci95_low``, ``rolling_ci95_high`` and
-        ``rolling_spread`` [-].
-    """
-    if solution is None:
-        return {"reason": "singular"}
-    if rolling_draws is not None:
-        low, high = np.percentile(rolling_draws, [2.5, 97.5])
-        span = PLAUSIBLE_ROLLING[1] - PLAUSIBLE_ROLLING[0]
-        if high - low > span:
-            return {"reason": "crr-interval", "correlation": correlation,
-                    "rolling_ci95_low": float(low), "rolling_ci95_high": float(high),
-                    "rolling_spread": span}
-        return None
-    if correlation > SEPARATION_LIMIT:
-        return {"reason": "correlation", "correlation": correlation}
-    return None
-
-
-def _solve(groups: Sequence[Columns], method: FieldTestMethod, rolling: float | None,
-           bootstrap: int, seed: int, bootstrap_when_singular: bool, refit: Refit | None = None,
-           ) -> tuple[np.ndarray | None, float, np.ndarray, bool]:
-    """(solution or None, correlation, bootstrap draws, enough draws) of one least squares."""
-    equations = normal_equations(groups, method.offset_per_lap, rolling)
-    solution = None if equations is None else solve_normal_equations(*equations)
-    correlation = 1.0
-    if equations is not None and solution is not None:
-        correlation = estimate_correlation(equations[0], rolling is not None)
-    draws = bootstrap_fits(groups, method.offset_per_lap, rolling,
-                           bootstrap if solution is not None or bootstrap_when_singular else 0,
-                           seed, refit)
-    valid = draws.shape[0] >= max(20, bootstrap // 2) if bootstrap else False
-    return solution, correlation, draws, valid
-
-
-def _fit(groups: Sequence[Columns], method: FieldTestMethod, rolling_coefficient: float | None,
-         fallback_rolling_coefficient: float | None, bootstrap: int, seed: int,
-         few: Sequence[str], refit: Refit | None = None) -> _Fit:
-    """Fit CdA per position and Crr; hold Crr at the fallback when the laps cannot separate
-    them. Raises InputError when no CdA can be fitted."""
-    fixed = rolling_coefficient is not None
-    solution, correlation, draws, valid = _solve(groups, method, rolling_coefficient, bootstrap,
-                                                 seed, bootstrap_when_singular=False,
-                                                 refit=refit)
-    problem = None if fixed else _separation_problem(
-        solution, correlation, draws[:, -1] if valid and not few else None)
-    held_value = rolling_coefficient
-    held = problem is not None and fallback_rolling_coefficient is not None
-    if problem is not None and fallback_rolling_coefficient is not None:
-        # CdA and Crr trade off freely: hold Crr at the typical value, fit CdA alone
-        held_value = float(fallback_rolling_coefficient)
-        solution, _, draws, valid = _solve(groups, method, held_value, bootstrap, seed,
-                                           bootstrap_when_singular=True, refit=refit)
-    if solution is None:
-        raise InputError("CdA and Crr cannot be separated from these laps: ride laps at "
-                         "clearly different speeds, or give Crr")
-    return _Fit(solution, correlation, draws, valid, held_value, held, problem)
-
-
-def _interval(values: np.ndarray, usable: bool) -> tuple[float, float] | None:
-    """Percentile 95 % interval of bootstrap values, or None when not usable."""
-    if not usable:
-        return None
-    low, high = np.percentile(values, [2.5, 97.5])
-    return float(low), float(high)
-
-
-# ---------------------------------------------------------------------------------------------
 # estimate_drag
 # ---------------------------------------------------------------------------------------------
 
@@ -480,7 +183,7 @@ def _differences(tests: Sequence[PositionTest], areas: np.ndarray, draws: np.nda
     """Each position's CdA minus the first's, with its bootstrap interval."""
     differences = []
     for p in range(1, len(tests)):
-        ci = _interval(draws[:, p] - draws[:, 0], usable) if draws.size else None
+        ci = bootstrap_interval(draws[:, p] - draws[:, 0], usable) if draws.size else None
         differences.append(PositionDifference(
             label=tests[p].label, baseline=tests[0].label, difference=float(areas[p] - areas[0]),
             ci95=ci, significant=bool(ci is not None and (ci[0] > 0 or ci[1] < 0))))
@@ -514,9 +217,9 @@ def estimate_drag(
     Crr (PLAUSIBLE_ROLLING). "Cannot separate": the fit is singular, or the bootstrap 95 %
     interval of Crr is wider than PLAUSIBLE_ROLLING (the laps tell less about Crr than a
     typical value does), or, without a bootstrap interval (bootstrap 0 or fewer than 3 laps),
-    the |correlation| of the two estimates exceeds SEPARATION_LIMIT. A joint fit there trades
-    one against the other freely and can return a negative Crr and a CdA interval reaching
-    below 0.
+    the |correlation| of the two estimates exceeds SEPARATION_LIMIT (pacing.fieldtest.drag_fit).
+    A joint fit there trades one against the other freely and can return a negative Crr and a
+    CdA interval reaching below 0.
 
     Parameters
     ----------
@@ -571,7 +274,7 @@ def estimate_drag(
     groups = [spec.columns(laps) for laps in lap_sets]
     few = [t.label for t, laps in zip(tests, lap_sets, strict=True)
            if len(laps) < INTERVAL_LAPS]
-    fit = _fit(groups, spec, rolling_coefficient, fallback_rolling_coefficient, bootstrap, seed,
+    fit = fit_drag(groups, spec, rolling_coefficient, fallback_rolling_coefficient, bootstrap, seed,
                few, bootstrap_refit)
     slopes = drag_area_per_rolling(groups, spec.offset_per_lap)
     crr = float(fit.held_value) if fit.held_value is not None else float(fit.solution[-1])
@@ -585,13 +288,13 @@ def estimate_drag(
         lap_areas, traces = _lap_results(laps, spec, float(areas[p]), crr)
         positions.append(PositionEstimate(
             label=test.label, drag_area=float(areas[p]),
-            drag_area_ci95=_interval(draws[:, p], usable) if draws.size else None,
+            drag_area_ci95=bootstrap_interval(draws[:, p], usable) if draws.size else None,
             laps=len(laps), lap_drag_area=lap_areas, traces=traces))
         notices += lap_notices(test.label, test.ride, laps, spec, lap_areas)
         notices += conditions_notices(test.label, test.ride, test.headwind, test.crosswind, spec)
         notices += drag_area_notices(test.label, float(areas[p]), positions[-1].drag_area_ci95)
     crr_interval = (None if fit.held_value is not None or not draws.size
-                    else _interval(draws[:, -1], usable))
+                    else bootstrap_interval(draws[:, -1], usable))
     notices += rolling_notices(fit.held_value is None, crr, crr_interval)
     fixed = rolling_coefficient is not None
     return FieldTestResult(

@@ -49,30 +49,26 @@ import numpy as np
 from numpy.typing import ArrayLike
 
 from pacing.errors import InputError
-from pacing.fieldtest.checks import (
-    BRAKING_POWER,
-    PLAUSIBLE_ROLLING,
-    braking_times,
-    check_bootstrap_draws,
+from pacing.fieldtest.checks import PLAUSIBLE_ROLLING, check_bootstrap_draws
+from pacing.fieldtest.race_blocks import (
+    RacePieces,
+    block_problem,
+    block_rows,
+    bootstrap_draws,
+    checked_race_arrays,
+    checked_series,
+    left_out_pieces,
+    solve_blocks,
 )
-from pacing.fieldtest.ride import MAX_GAP, STOP_SPEED, Ride
-from pacing.fieldtest.wind_fit import (
-    SEPARATION_CORRELATION,
-    AirTerms,
-    WindEstimate,
-    fit_wind,
-    heading_spread,
-    joint_correlation,
-    linear_fit,
-    loose_wind_values,
-    percentile_interval,
-    refit_wind,
-    speed_and_direction,
-    speed_at_report_height,
-    undeclared_wind_notices,
-    wind_basis,
-    wind_vector,
+from pacing.fieldtest.race_wind import (
+    checked_given_wind,
+    fitted_wind,
+    wind_notices,
+    with_wind_interval,
 )
+from pacing.fieldtest.steady_wind import WindEstimate
+from pacing.fieldtest.wind_checks import loose_wind_values, percentile_interval
+from pacing.fieldtest.wind_fit import AirTerms
 from pacing.notices import Notice, note, warning
 from pacing.physics.cycling import MARTIN_1998, Rider
 from pacing.weather.conditions import Conditions
@@ -189,227 +185,6 @@ class RaceDragFit:
                 "wind_from_deg": round(self.wind.wind_from, 1)}
 
 
-# ---------------------------------------------------------------------------------------------
-# Input, and what is left out
-# ---------------------------------------------------------------------------------------------
-
-
-def _series(values: ArrayLike, name: str, size: int | None) -> np.ndarray:
-    """A finite 1-D float array of `size` values, or a one-line InputError."""
-    try:
-        array = np.asarray(values, dtype=float)
-    except (TypeError, ValueError):
-        raise InputError(f"{name} must be numbers") from None
-    if array.ndim != 1 or (size is not None and array.size != size):
-        raise InputError(f"{name} must be a series of {size} numbers, got shape {array.shape}")
-    if not np.all(np.isfinite(array)):
-        raise InputError(f"{name} has missing or non-finite values at sample "
-                         f"{int(np.argmax(~np.isfinite(array))) + 1}")
-    return array
-
-
-def _checked(time: ArrayLike, speed: ArrayLike, power: ArrayLike, heading: ArrayLike,
-             course_elevation: ArrayLike, air_density: ArrayLike) -> dict[str, np.ndarray]:
-    """The race's arrays checked: lengths, finite, time increasing, speed and power ≥ 0."""
-    seconds = _series(time, "time", None)
-    n = seconds.size
-    if n < 3 or np.any(np.diff(seconds) <= 0):
-        raise InputError("time must increase from sample to sample (at least 3 samples)")
-    arrays = {"time": seconds}
-    for name, values in (("speed", speed), ("power", power),
-                         ("course elevation", course_elevation)):
-        arrays[name] = _series(values, name, n)
-    headings = _series(heading, "heading", None)
-    if headings.size not in (n, n - 1):
-        raise InputError(f"heading must have {n} values (one per sample) or {n - 1} (one per "
-                         f"piece), got {headings.size}")
-    arrays["heading"] = _piece_heading(headings) if headings.size == n else headings % 360.0
-    for name in ("speed", "power"):
-        if np.any(arrays[name] < 0):
-            raise InputError(f"{name} must not be negative")
-    density = np.asarray(air_density, dtype=float)
-    if density.ndim == 0:
-        density = np.full(n, float(density))
-    density = _series(density, "air density", n)
-    if np.any(density <= 0) or np.any(density > 2.0):
-        raise InputError("air density must be between 0 and 2 kg/m³")
-    arrays["density"] = 0.5 * (density[1:] + density[:-1])
-    return arrays
-
-
-def _left_out(time: np.ndarray, speed: np.ndarray,
-              power: np.ndarray) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
-    """Pieces left out: (stops and gaps, braking, coasting), bool arrays of length N-1.
-
-    Stops: an end slower than STOP_SPEED, or a step longer than MAX_GAP. Braking: the pieces
-    of pacing.fieldtest.checks.braking_times. Coasting: mean power under BRAKING_POWER.
-    """
-    steps = np.diff(time)
-    stops = (np.minimum(speed[1:], speed[:-1]) < STOP_SPEED) | (steps > MAX_GAP)
-    ride = Ride(time=time, speed=speed, power=power,
-                distance=np.concatenate(([0.0], np.cumsum(steps))), pause=stops)
-    braking = np.isin(time[1:], braking_times(ride)) & ~stops
-    coasting = (0.5 * (power[1:] + power[:-1]) < BRAKING_POWER) & ~stops & ~braking
-    return stops, braking, coasting
-
-
-def _piece_heading(heading: np.ndarray) -> np.ndarray:
-    """Heading of each piece: circular mean of its two ends [deg]."""
-    radians = np.radians(heading)
-    east = np.sin(radians[1:]) + np.sin(radians[:-1])
-    north = np.cos(radians[1:]) + np.cos(radians[:-1])
-    return np.degrees(np.arctan2(east, north)) % 360.0
-
-
-# ---------------------------------------------------------------------------------------------
-# The blocks and the linear problem at a wind
-# ---------------------------------------------------------------------------------------------
-
-
-@dataclass(frozen=True, eq=False)
-class _Race:
-    """The race's pieces (N-1) as the fit sees them: times, speeds, the still-air terms and
-    the air terms at a wind (`air`), the course's rise, what is left out, and the heights and
-    roughness that turn a wind at rider height into one at 10 m (`heights`)."""
-
-    time: np.ndarray
-    speed: np.ndarray
-    heading: np.ndarray
-    rise: np.ndarray
-    left_out: np.ndarray
-    air: AirTerms
-    heights: Conditions
-
-    def terms(self, vector: np.ndarray) -> np.ndarray:
-        """(target, per CdA, per Crr) of each piece at a wind vector, 0 where left out [m],
-        shape (3, N-1)."""
-        terms = self.air.at(vector)
-        terms[0] -= self.rise
-        return terms
-
-
-ROW_STEP = 5
-"""Every this many pieces a block gives a row to the fit (and its last piece) [-]: the
-virtual elevation changes slowly, so thinning the rows loses little and saves time."""
-
-
-def _blocks(time: np.ndarray, used_piece: np.ndarray, starts: np.ndarray,
-            length: float) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
-    """Rows of blocks: (point index, the block's starting point, block number) per row.
-
-    A block starting at point i covers the pieces starting before time[i] + length; its rows
-    are the points ending its used pieces.
-    """
-    ends = np.searchsorted(time, time[starts] + length, side="left")
-    ends = np.minimum(np.maximum(ends, starts + 1), time.size - 1)
-    points, bases, labels = [], [], []
-    for label, (start, end) in enumerate(zip(starts, ends, strict=True)):
-        pieces = np.arange(start, end)
-        pieces = pieces[used_piece[pieces]][::-1][::ROW_STEP][::-1]
-        points.append(pieces + 1)
-        bases.append(np.full(pieces.size, start))
-        labels.append(np.full(pieces.size, label))
-    return np.concatenate(points), np.concatenate(bases), np.concatenate(labels)
-
-
-def _block_problem(race: _Race, rows: tuple[np.ndarray, np.ndarray, np.ndarray],
-                   rolling: float | None):
-    """The linear problem (design, target) at a wind, on the given block rows."""
-    points, bases, labels = rows
-    count = int(labels.max()) + 1 if labels.size else 0
-    sizes = np.maximum(np.bincount(labels, minlength=count), 1)
-
-    def centred(values: np.ndarray) -> np.ndarray:
-        cumulative = np.concatenate((np.zeros((3, 1)), np.cumsum(values, axis=1)), axis=1)
-        within = cumulative[:, points] - cumulative[:, bases]
-        means = np.stack([np.bincount(labels, row, minlength=count) for row in within])
-        return within - (means / sizes)[:, labels]
-
-    def problem(vector: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
-        target, drag, rolling_column = centred(race.terms(vector))
-        if rolling is not None:
-            return drag[:, None], target - rolling * rolling_column
-        return np.column_stack((drag, rolling_column)), target
-
-    return problem
-
-
-# ---------------------------------------------------------------------------------------------
-# The fit
-# ---------------------------------------------------------------------------------------------
-
-
-def _given_wind(wind: Conditions | None) -> tuple[np.ndarray, WindEstimate]:
-    """The given wind (or calm) as a vector at rider height and as a WindEstimate."""
-    if wind is None or wind.wind_speed == 0:
-        return np.zeros(2), WindEstimate(False, 0.0, 0.0, 0.0)
-    at_rider = wind.wind_at_rider
-    return (wind_vector(at_rider, wind.wind_from),
-            WindEstimate(False, at_rider, float(wind.wind_speed), float(wind.wind_from)))
-
-
-def _solve(race: _Race, problem_rows, rolling: float | None, basis: np.ndarray | None,
-           start: np.ndarray, quick: bool = False) -> tuple[np.ndarray, np.ndarray]:
-    """(wind vector, β) of one fit: the wind fitted when a basis is given, else held; `quick`
-    (bootstrap draws): two Gauss-Newton steps from `start` (wind_fit.refit_wind)."""
-    problem = _block_problem(race, problem_rows, rolling)
-    if basis is None:
-        beta, _ = linear_fit(*problem(start))
-        return start, beta
-    if quick:
-        vector = refit_wind(problem, basis, start)
-        return vector, linear_fit(*problem(vector))[0]
-    return fit_wind(problem, basis, start)
-
-
-def _draws(race: _Race, blocks: int, length: float, rolling: float | None,
-           basis: np.ndarray | None, start: np.ndarray, count: int,
-           seed: int) -> np.ndarray:
-    """Moving-block bootstrap draws: rows (CdA, Crr, wind east, wind north) (Künsch 1989)."""
-    used_piece = ~race.left_out
-    candidates = np.flatnonzero(used_piece)
-    candidates = candidates[race.time[candidates] <= race.time[-1] - 0.5 * length] \
-        if race.time[-1] - race.time[0] > length else candidates[:1]
-    rng = np.random.default_rng(seed)
-    results = []
-    for _ in range(count):
-        starts = np.sort(rng.choice(candidates, size=blocks, replace=True))
-        rows = _blocks(race.time, used_piece, starts, length)
-        vector, beta = _solve(race, rows, rolling, basis, start, quick=True)
-        crr = rolling if rolling is not None else beta[1]
-        results.append((beta[0], crr, vector[0], vector[1]))
-    return np.array(results) if results else np.empty((0, 4))
-
-
-def _wind_result(race: _Race, rows, rolling: float | None, wind: Conditions | None,
-                 estimate: bool, notices: list[Notice]) -> tuple[np.ndarray | None, np.ndarray,
-                                                                WindEstimate]:
-    """(basis or None, wind vector, WindEstimate before intervals) of the point fit."""
-    given_vector, given = _given_wind(wind)
-    if not estimate:
-        return None, given_vector, given
-    used = ~race.left_out
-    spread = heading_spread(race.heading[used], (race.speed[1:] + race.speed[:-1])[used])
-    basis = wind_basis(spread)
-    if basis is None:
-        notices.append(warning("fieldtest-wind-inseparable", reason="one-heading",
-                               heading_spread=1.0 - spread.resultant, correlation=1.0))
-        return None, given_vector, given
-    problem = _block_problem(race, rows, rolling)
-    vector, beta = fit_wind(problem, basis, given_vector)
-    correlation = joint_correlation(problem, basis, vector, beta)
-    if correlation > SEPARATION_CORRELATION:
-        notices.append(warning("fieldtest-wind-inseparable", reason="correlation",
-                               heading_spread=1.0 - spread.resultant, correlation=correlation))
-        return None, given_vector, given
-    at_rider, wind_from = speed_and_direction(vector)
-    heights = race.heights
-    speed = speed_at_report_height(at_rider, heights.rider_height, heights.roughness_length)
-    return basis, vector, WindEstimate(True, at_rider, speed, wind_from,
-                                       correlation=correlation, spread=spread,
-                                       along_axis_only=basis.shape[1] == 1)
-
-
 def fit_race_drag(
     distance: ArrayLike,
     time: ArrayLike,
@@ -490,15 +265,15 @@ def fit_race_drag(
     Martin, J.C. et al. (1998). J Appl Biomech 14(3):276-291. doi:10.1123/jab.14.3.276
     Künsch, H.R. (1989). Ann Stat 17(3):1217-1241. doi:10.1214/aos/1176347265
     """
-    _series(distance, "distance", None)
-    arrays = _checked(time, speed, power, heading, course_elevation, air_density)
+    checked_series(distance, "distance", None)
+    arrays = checked_race_arrays(time, speed, power, heading, course_elevation, air_density)
     check_bootstrap_draws(bootstrap, "bootstrap draws")
     if rolling_coefficient is not None and not 0 <= rolling_coefficient <= 0.1:
         raise InputError(f"Crr must be 0-0.1, got {rolling_coefficient}")
     seconds = arrays["time"]
     if not np.isfinite(block_length) or block_length < 30.0:
         raise InputError(f"block length must be at least 30 s, got {block_length:g}")
-    stops, braking, coasting = _left_out(seconds, arrays["speed"], arrays["power"])
+    stops, braking, coasting = left_out_pieces(seconds, arrays["speed"], arrays["power"])
     left_out = stops | braking | coasting
     steps = np.diff(seconds)
     used_time = float(steps[~left_out].sum())
@@ -509,13 +284,13 @@ def fit_race_drag(
     headings = arrays["heading"]
     air = AirTerms.of(seconds, arrays["speed"], arrays["power"], arrays["density"], headings,
                       rider, left_out)
-    race = _Race(seconds, arrays["speed"], headings, rise, left_out, air,
+    race = RacePieces(seconds, arrays["speed"], headings, rise, left_out, air,
                  heights or wind or Conditions())
     return _fit(race, arrays, (stops, braking, coasting), wind, estimate_wind,
                 rolling_coefficient, bootstrap, float(block_length), seed)
 
 
-def _fit(race: _Race, arrays: dict[str, np.ndarray], parts: tuple[np.ndarray, ...],
+def _fit(race: RacePieces, arrays: dict[str, np.ndarray], parts: tuple[np.ndarray, ...],
          wind: Conditions | None, estimate_wind: bool | None, rolling: float | None,
          bootstrap: int, length: float, seed: int,
          earlier: Sequence[Notice] = ()) -> RaceDragFit:
@@ -526,29 +301,29 @@ def _fit(race: _Race, arrays: dict[str, np.ndarray], parts: tuple[np.ndarray, ..
     used_piece = ~race.left_out
     starts = np.flatnonzero(np.diff(np.floor((seconds[:-1] - seconds[0]) / length),
                                     prepend=-1) > 0)
-    rows = _blocks(seconds, used_piece, starts, length)
+    rows = block_rows(seconds, used_piece, starts, length)
     notices: list[Notice] = list(earlier)
     estimate = wind is None if estimate_wind is None else estimate_wind
-    basis, vector, wind_estimate = _wind_result(race, rows, rolling, wind, estimate, notices)
+    basis, vector, wind_estimate = fitted_wind(race, rows, rolling, wind, estimate, notices)
     held = False
-    vector, beta = _solve(race, rows, rolling, basis, vector)
-    draws = _draws(race, starts.size, length, rolling, basis, vector, bootstrap, seed)
+    vector, beta = solve_blocks(race, rows, rolling, basis, vector)
+    draws = bootstrap_draws(race, starts.size, length, rolling, basis, vector, bootstrap, seed)
     if rolling is None and _crr_too_loose(draws):
         held, rolling = True, TYPICAL_ROLLING_COEFFICIENT
-        vector, beta = _solve(race, rows, rolling, basis, vector)
-        draws = _draws(race, starts.size, length, rolling, basis, vector, bootstrap, seed)
+        vector, beta = solve_blocks(race, rows, rolling, basis, vector)
+        draws = bootstrap_draws(race, starts.size, length, rolling, basis, vector, bootstrap, seed)
         notices.append(warning("race-fit-crr-held", held_rolling_coefficient=rolling,
                                rolling_low=PLAUSIBLE_ROLLING[0],
                                rolling_high=PLAUSIBLE_ROLLING[1]))
     crr = float(rolling) if rolling is not None else float(beta[1])
-    wind_estimate = _with_wind_interval(wind_estimate, vector, draws, race.heights)
+    wind_estimate = with_wind_interval(wind_estimate, vector, draws, race.heights)
     loose = loose_wind_values(wind_estimate) if wind_estimate.estimated else {}
     if loose:
         return _fit(race, arrays, parts, wind, False, given_rolling, bootstrap, length, seed,
                     [*earlier, warning("fieldtest-wind-inseparable", **loose)])
-    notices += _wind_notices(wind_estimate, wind, estimate)
+    notices += wind_notices(wind_estimate, wind, estimate)
     if not estimate and wind is not None and not earlier:
-        notices += _checked_wind(race, rows, rolling, wind, starts.size, length, seed)
+        notices += checked_given_wind(race, rows, rolling, wind, starts.size, length, seed)
     notices += _excluded_notices(seconds, parts)
     virtual, rms = _virtual_elevation(race, arrays["course elevation"], vector,
                                       float(beta[0]), crr, rows)
@@ -568,64 +343,11 @@ def _fit(race: _Race, arrays: dict[str, np.ndarray], parts: tuple[np.ndarray, ..
         used=np.concatenate(([False], used_piece)), warnings=tuple(notices))
 
 
-CHECK_DRAWS = 50
-"""Bootstrap draws of the wind alone when a given wind is only checked [-]."""
-
-
-def _checked_wind(race: _Race, rows, rolling: float | None, wind: Conditions, blocks: int,
-                  length: float, seed: int) -> list[Notice]:
-    """The given wind checked against the race: a warning when the race shows a clearly
-    different one (pacing.fieldtest.wind_fit.undeclared_wind_notices), else nothing."""
-    quiet: list[Notice] = []
-    basis, vector, estimate = _wind_result(race, rows, rolling, wind, True, quiet)
-    if basis is None:
-        return []
-    draws = _draws(race, blocks, length, rolling, basis, vector, CHECK_DRAWS, seed)
-    estimate = _with_wind_interval(estimate, vector, draws, race.heights)
-    if loose_wind_values(estimate):
-        return []
-    return undeclared_wind_notices(estimate, wind)
-
-
 def _crr_too_loose(draws: np.ndarray) -> bool:
     """True when the bootstrap interval of Crr is wider than the spread of road tyres."""
     interval = percentile_interval(draws[:, 1]) if draws.size else None
     return interval is not None and interval[1] - interval[0] > (
         PLAUSIBLE_ROLLING[1] - PLAUSIBLE_ROLLING[0])
-
-
-def _with_wind_interval(estimate: WindEstimate, vector: np.ndarray, draws: np.ndarray,
-                        heights: Conditions) -> WindEstimate:
-    """The wind estimate at the final fit, with the interval of its 10 m speed (`heights`:
-    rider height and roughness of the conversion)."""
-    if not estimate.estimated:
-        return estimate
-    at_rider, wind_from = speed_and_direction(vector)
-    factor = speed_at_report_height(1.0, heights.rider_height, heights.roughness_length)
-    interval = None
-    if draws.size:
-        interval = percentile_interval(factor * np.hypot(draws[:, 2], draws[:, 3]))
-    return WindEstimate(True, at_rider, factor * at_rider, wind_from, interval,
-                        estimate.separable, estimate.correlation, estimate.spread,
-                        estimate.along_axis_only)
-
-
-def _wind_notices(estimate: WindEstimate, wind: Conditions | None,
-                  estimating: bool) -> list[Notice]:
-    """The estimated wind (note), and a detected wind that differs from the given one."""
-    if not estimate.estimated:
-        return []
-    values: dict[str, Any] = {"speed_mps": estimate.speed,
-                              "speed_at_rider_mps": estimate.speed_at_rider,
-                              "from_deg": estimate.wind_from,
-                              "along_axis_only": estimate.along_axis_only}
-    if estimate.speed_ci95 is not None:
-        values.update(speed_ci95_low_mps=estimate.speed_ci95[0],
-                      speed_ci95_high_mps=estimate.speed_ci95[1])
-    notices = [note("fieldtest-wind-estimated", **values)]
-    if wind is not None and estimating:
-        notices += undeclared_wind_notices(estimate, wind)
-    return notices
 
 
 def _excluded_notices(time: np.ndarray, parts: tuple[np.ndarray, ...]) -> list[Notice]:
@@ -641,14 +363,14 @@ def _excluded_notices(time: np.ndarray, parts: tuple[np.ndarray, ...]) -> list[N
     return notices
 
 
-def _virtual_elevation(race: _Race, elevation: np.ndarray, vector: np.ndarray, area: float,
+def _virtual_elevation(race: RacePieces, elevation: np.ndarray, vector: np.ndarray, area: float,
                        crr: float, rows) -> tuple[np.ndarray, float]:
     """(virtual elevation per sample [m], RMS residual within the blocks [m])."""
     target, drag, rolling = race.terms(vector)
     course_rise = np.diff(elevation)
     rise = np.where(race.left_out, course_rise, target + race.rise - area * drag - crr * rolling)
     virtual = elevation[0] + np.concatenate(([0.0], np.cumsum(rise)))
-    problem = _block_problem(race, rows, crr)
+    problem = block_problem(race, rows, crr)
     design, centred = problem(vector)
     residual = centred - design[:, 0] * area
     rms = float(np.sqrt(np.mean(residual ** 2))) if residual.size else 0.0

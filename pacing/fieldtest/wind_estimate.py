@@ -47,31 +47,35 @@ import numpy as np
 from pacing.errors import InputError
 from pacing.fieldtest.estimate import (
     TYPICAL_ROLLING_COEFFICIENT,
-    FieldTestResult,
     PositionTest,
     estimate_drag,
     method_named,
 )
+from pacing.fieldtest.estimate_result import FieldTestResult
 from pacing.fieldtest.fit import GRID_POINTS, normal_equations, solve_normal_equations
 from pacing.fieldtest.laps import LAP_RADIUS, LapTerms, _is_closed, build_laps, regression_row
 from pacing.fieldtest.methods import FieldTestMethod
 from pacing.fieldtest.ride import piece_heading
+from pacing.fieldtest.steady_wind import (
+    WindEstimate,
+    head_and_cross,
+    heading_spread,
+    speed_and_direction,
+    speed_at_report_height,
+    wind_basis,
+    wind_vector,
+)
+from pacing.fieldtest.wind_checks import (
+    loose_wind_values,
+    percentile_interval,
+    undeclared_wind_notices,
+)
 from pacing.fieldtest.wind_fit import (
     SEPARATION_CORRELATION,
     AirTerms,
-    WindEstimate,
     fit_wind,
-    head_and_cross,
-    heading_spread,
     joint_correlation,
-    loose_wind_values,
-    percentile_interval,
     refit_wind,
-    speed_and_direction,
-    speed_at_report_height,
-    undeclared_wind_notices,
-    wind_basis,
-    wind_vector,
 )
 from pacing.notices import Notice, note, warning
 from pacing.physics.cycling import Rider

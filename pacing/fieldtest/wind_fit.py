@@ -12,9 +12,9 @@ that of the linear least squares of CdA and Crr solved exactly inside.
 What makes the wind identifiable is the direction of travel: a headwind on one leg is a tailwind
 on the other, so the residuals depend on the heading in a way no CdA or Crr can mimic. Ridden in
 one heading only, a steady wind is just more drag; on an out-and-back only the part along the
-road shows at first order (the part across it enters as w_c², which looks like Crr): then the
-wind is fitted along that axis only (`heading_spread`). The estimate is reported at rider height
-and at 10 m, the project's convention, by inverting the log profile (pacing.physics.wind).
+road shows at first order. The directions a wind can be fitted in (`wind_basis`), the wind as a
+vector and its 10 m speed are in pacing.fieldtest.steady_wind; whether an estimate can be
+trusted in pacing.fieldtest.wind_checks.
 
 Used by pacing.fieldtest.wind_estimate (the field test) and pacing.fieldtest.race_fit (a race
 over a known course).
@@ -34,9 +34,8 @@ elevation method; no journal version).
 from __future__ import annotations
 
 import dataclasses
-from collections.abc import Callable, Sequence
+from collections.abc import Callable
 from dataclasses import dataclass
-from typing import Any
 
 import numpy as np
 from numpy.typing import ArrayLike
@@ -44,270 +43,17 @@ from scipy.optimize import least_squares
 
 from pacing.constants import STANDARD_GRAVITY
 from pacing.fieldtest.virtual_elevation import ElevationTerms, elevation_terms, unit_rider
-from pacing.notices import Notice, warning
 from pacing.physics.cycling import Rider, aerodynamic_force
-from pacing.physics.wind import log_profile_factor
-from pacing.weather.conditions import Conditions
-
-REPORT_HEIGHT = 10.0
-"""Height at which wind speeds are reported [m] (the weather-report standard, DEVELOPERS.md)."""
 
 LARGEST_WIND = 15.0
 """Largest wind at rider height the search considers [m/s] (our choice: no field test or race
 is ridden for drag in a gale; the bound keeps the search away from nonsense)."""
 
-ONE_HEADING_RESULTANT = 0.9
-"""Mean resultant length of the headings above which a ride goes one way only [-] (our choice:
-0.9 is, e.g., every piece within about ±25° of one heading)."""
-
-ONE_AXIS_SPREAD = 0.05
-"""Share of the heading spread across the main axis below which a ride is one road ridden both
-ways (an out-and-back) [-]: the wind across it is then not fitted (our choice: 0.05 is every
-piece within about ±13° of the axis)."""
 
 SEPARATION_CORRELATION = 0.98
 """|correlation| between the wind and the CdA or Crr estimate above which the data cannot
 separate them [-] (our choice)."""
 
-
-@dataclass(frozen=True)
-class HeadingSpread:
-    """How the directions of travel spread, weighted by distance.
-
-    Attributes
-    ----------
-    resultant : float
-        Mean resultant length |Σ u_i·l_i| / Σ l_i of the unit vectors of travel u_i over
-        pieces of length l_i [-]: 1 = one heading, 0 = as much one way as back.
-    across : float
-        Smaller eigenvalue of the length-weighted mean of u_i·u_iᵀ [-], 0..0.5: the share of
-        travel across the main axis (0 = one road, 0.5 = every direction alike).
-    axis : float
-        Main axis of travel [deg clockwise from north], 0-180.
-    """
-
-    resultant: float
-    across: float
-    axis: float
-
-
-@dataclass(frozen=True)
-class WindEstimate:
-    """A steady wind: estimated, or as given, with what the data said about it.
-
-    Attributes
-    ----------
-    estimated : bool
-        True when the wind was estimated from the data (else it is the given one, or calm).
-    speed_at_rider : float
-        Wind speed at rider height [m/s].
-    speed : float
-        The same wind at REPORT_HEIGHT (10 m), by the inverted log profile [m/s].
-    wind_from : float
-        Direction the wind blows FROM [deg clockwise from north] (0 when calm).
-    speed_ci95 : tuple of float or None
-        95 % bootstrap interval of `speed` [m/s] (10 m), or None.
-    separable : bool
-        False when the data could not separate the wind from CdA and Crr.
-    correlation : float
-        Largest |correlation| of a wind component with the CdA or Crr estimate [-].
-    spread : HeadingSpread or None
-        How the headings spread (None without headings).
-    along_axis_only : bool
-        True when only the wind along the main axis was fitted (an out-and-back).
-    """
-
-    estimated: bool
-    speed_at_rider: float
-    speed: float
-    wind_from: float
-    speed_ci95: tuple[float, float] | None = None
-    separable: bool = True
-    correlation: float = 0.0
-    spread: HeadingSpread | None = None
-    along_axis_only: bool = False
-
-
-# ---------------------------------------------------------------------------------------------
-# Wind as a vector; heights
-# ---------------------------------------------------------------------------------------------
-
-
-def wind_vector(speed: float, wind_from: float) -> np.ndarray:
-    """The vector a wind blows TOWARDS, (east, north) [m/s].
-
-    Parameters
-    ----------
-    speed : float
-        Wind speed [m/s].
-    wind_from : float
-        Direction the wind blows FROM [deg clockwise from north].
-
-    Returns
-    -------
-    numpy.ndarray
-        (east, north) [m/s].
-
-    Examples
-    --------
-    A 2 m/s wind from the north blows towards the south:
-
-    >>> wind_vector(2.0, 0.0).round(9).tolist()
-    [-0.0, -2.0]
-    """
-    towards = np.radians(wind_from + 180.0)
-    return np.array([speed * np.sin(towards), speed * np.cos(towards)])
-
-
-def speed_and_direction(vector: ArrayLike) -> tuple[float, float]:
-    """(speed [m/s], direction it blows FROM [deg, 0-360]) of a wind vector (east, north).
-
-    Parameters
-    ----------
-    vector : array_like
-        (east, north) the wind blows towards [m/s].
-
-    Returns
-    -------
-    tuple of float
-        Speed [m/s] and FROM direction [deg clockwise from north]; 0 deg when calm.
-
-    Examples
-    --------
-    >>> speed_and_direction([3.0, 0.0])  # blowing east: from the west
-    (3.0, 270.0)
-    """
-    east, north = (float(v) for v in np.asarray(vector, dtype=float))
-    speed = float(np.hypot(east, north))
-    if speed == 0.0:
-        return 0.0, 0.0
-    return speed, float((np.degrees(np.arctan2(east, north)) + 180.0) % 360.0)
-
-
-def head_and_cross(heading: ArrayLike, vector: ArrayLike) -> tuple[np.ndarray, np.ndarray]:
-    """Headwind and crosswind on pieces of a heading for a wind vector [m/s].
-
-        w_h = −(u_e·sin ψ + u_n·cos ψ),   w_c = u_n·sin ψ − u_e·cos ψ
-
-    the same components as pacing.physics.wind.wind_components (headwind positive against the
-    rider, crosswind positive from the rider's right).
-
-    Parameters
-    ----------
-    heading : array_like
-        Direction of travel ψ [deg clockwise from north].
-    vector : array_like
-        (east, north) the wind blows towards [m/s].
-
-    Returns
-    -------
-    tuple of numpy.ndarray
-        (headwind [m/s], crosswind [m/s]).
-    """
-    east, north = (float(v) for v in np.asarray(vector, dtype=float))
-    psi = np.radians(np.asarray(heading, dtype=float))
-    sin, cos = np.sin(psi), np.cos(psi)
-    return -(east * sin + north * cos), north * sin - east * cos
-
-
-def speed_at_report_height(speed_at_rider: float, rider_height: float = 1.0,
-                           roughness_length: float = 0.03,
-                           report_height: float = REPORT_HEIGHT) -> float:
-    """Wind at the reporting height from the wind at rider height: the log profile inverted.
-
-        u(10 m) = u(z_r) / f,   f = log_profile_factor(10 m, z_r, z0)
-
-    Parameters
-    ----------
-    speed_at_rider : float
-        Wind speed at rider height [m/s].
-    rider_height : float
-        Rider height z_r [m].
-    roughness_length : float
-        Terrain roughness length z0 [m].
-    report_height : float
-        Height wanted [m] (10 m).
-
-    Returns
-    -------
-    float
-        Wind speed at `report_height` [m/s].
-
-    References
-    ----------
-    Stull, R.B. (1988). An Introduction to Boundary Layer Meteorology. Kluwer, ch. 9.
-
-    Examples
-    --------
-    Over open grassland 1 m above the ground the wind is 0.6036 of the 10 m wind:
-
-    >>> round(speed_at_report_height(0.6036, 1.0, 0.03), 4)
-    1.0
-    """
-    factor = float(log_profile_factor(report_height, rider_height, roughness_length))
-    return speed_at_rider / factor
-
-
-def heading_spread(heading: ArrayLike, weight: ArrayLike) -> HeadingSpread:
-    """How the directions of travel spread (`HeadingSpread`), weighted by distance.
-
-    Parameters
-    ----------
-    heading : array_like
-        Direction of travel of each piece [deg].
-    weight : array_like
-        Length of each piece [m] (or any non-negative weight).
-
-    Returns
-    -------
-    HeadingSpread
-        Mean resultant length [-], share across the main axis [-] and the axis [deg].
-
-    Examples
-    --------
-    An out-and-back: no resultant, nothing across the axis, axis north-south.
-
-    >>> s = heading_spread([0.0, 180.0], [1.0, 1.0])
-    >>> round(s.resultant, 6), round(s.across, 6), round(s.axis, 6)
-    (0.0, 0.0, 0.0)
-    """
-    psi = np.radians(np.asarray(heading, dtype=float))
-    w = np.asarray(weight, dtype=float) * np.ones_like(psi)
-    total = float(w.sum())
-    if total <= 0:
-        return HeadingSpread(1.0, 0.0, 0.0)
-    east, north = np.sin(psi), np.cos(psi)
-    resultant = float(np.hypot(np.sum(w * east), np.sum(w * north)) / total)
-    tensor = np.array([[np.sum(w * east * east), np.sum(w * east * north)],
-                       [np.sum(w * east * north), np.sum(w * north * north)]]) / total
-    values, vectors = np.linalg.eigh(tensor)
-    main = vectors[:, 1]
-    axis = float(np.degrees(np.arctan2(main[0], main[1])) % 180.0)
-    axis = 0.0 if axis > 180.0 - 1e-9 else axis
-    return HeadingSpread(min(resultant, 1.0), float(max(values[0], 0.0)), axis)
-
-
-def wind_basis(spread: HeadingSpread | None) -> np.ndarray | None:
-    """The directions in which a wind can be fitted, as columns (east, north) [-].
-
-    Parameters
-    ----------
-    spread : HeadingSpread or None
-        How the ride's headings spread (None: no headings).
-
-    Returns
-    -------
-    numpy.ndarray or None
-        2×2 identity (both components), 2×1 along the main axis (an out-and-back: the wind
-        across the road cannot be told from Crr), or None (no headings, or one heading only:
-        a steady wind is then just more drag).
-    """
-    if spread is None or spread.resultant > ONE_HEADING_RESULTANT:
-        return None
-    if spread.across < ONE_AXIS_SPREAD:
-        axis = np.radians(spread.axis)
-        return np.array([[np.sin(axis)], [np.cos(axis)]])
-    return np.eye(2)
 
 
 # ---------------------------------------------------------------------------------------------
@@ -547,85 +293,3 @@ def linear_residual(problem: Problem, vector: np.ndarray, beta: np.ndarray) -> n
     """Residual target − design·β at a wind vector with the linear unknowns held [m]."""
     design, target = problem(vector)
     return target - design @ beta
-
-
-def percentile_interval(values: Sequence[float] | np.ndarray) -> tuple[float, float] | None:
-    """Percentile 95 % interval (Efron & Tibshirani 1993), or None for fewer than 20 values."""
-    array = np.asarray(values, dtype=float)
-    array = array[np.isfinite(array)]
-    if array.size < 20:
-        return None
-    low, high = np.percentile(array, [2.5, 97.5])
-    return float(low), float(high)
-
-
-WIND_INTERVAL_LIMIT = 2.0
-"""Width of the 95 % interval of the 10 m wind speed above which the laps are taken not to
-tell the wind from drag [m/s] (our choice: about two steps of the Beaufort scale's lower end;
-laps at one speed on a loop, for one, let the wind trade freely against Crr)."""
-
-
-def loose_wind_values(estimate: WindEstimate) -> dict[str, Any]:
-    """Values of the "fieldtest-wind-inseparable" notice when the data do not pin the wind
-    down (its 95 % interval wider than WIND_INTERVAL_LIMIT, or the fit at the bound), else {}.
-
-    Parameters
-    ----------
-    estimate : WindEstimate
-        The estimated wind with its interval.
-
-    Returns
-    -------
-    dict
-        ``reason`` "interval" (speed_ci95_low_mps, speed_ci95_high_mps, limit_mps) or "bound"
-        (speed_mps), with ``correlation`` [-]; empty when the wind is pinned down.
-    """
-    interval = estimate.speed_ci95
-    if interval is not None and interval[1] - interval[0] > WIND_INTERVAL_LIMIT:
-        return {"reason": "interval", "speed_ci95_low_mps": interval[0],
-                "speed_ci95_high_mps": interval[1], "limit_mps": WIND_INTERVAL_LIMIT,
-                "correlation": estimate.correlation}
-    if estimate.speed_at_rider > 0.95 * LARGEST_WIND:
-        return {"reason": "bound", "speed_mps": estimate.speed,
-                "correlation": estimate.correlation}
-    return {}
-
-
-DETECTED_DIFFERENCE = 0.5
-"""Difference between the estimated and the given wind at rider height above which the
-estimate is reported as a different wind [m/s] (our choice: half the calm-air limit of Lim et
-al. 2011), when the given wind also lies outside the estimate's 95 % interval."""
-
-
-def undeclared_wind_notices(estimate: WindEstimate, given: Conditions) -> list[Notice]:
-    """A warning when the estimated wind differs clearly from the one given.
-
-    Clearly: the two wind vectors at rider height differ by more than DETECTED_DIFFERENCE and,
-    when the estimate has an interval, the given 10 m speed lies outside it.
-
-    Parameters
-    ----------
-    estimate : WindEstimate
-        The estimated wind.
-    given : pacing.weather.conditions.Conditions
-        The given wind (speed at wind_height [m/s], FROM [deg]).
-
-    Returns
-    -------
-    list of pacing.notices.Notice
-        "fieldtest-wind-undeclared" (speed_mps, from_deg of the estimate at 10 m;
-        given_speed_mps, given_from_deg), or nothing.
-    """
-    given_vector = wind_vector(given.wind_at_rider, given.wind_from)
-    found = wind_vector(estimate.speed_at_rider, estimate.wind_from)
-    if float(np.hypot(*(found - given_vector))) <= DETECTED_DIFFERENCE:
-        return []
-    interval = estimate.speed_ci95
-    given_at_10 = speed_at_report_height(given.wind_at_rider, given.rider_height,
-                                         given.roughness_length)
-    if interval is not None and interval[0] <= given_at_10 <= interval[1] \
-            and given.wind_speed > 0:
-        return []
-    return [warning("fieldtest-wind-undeclared", speed_mps=estimate.speed,
-                    from_deg=estimate.wind_from, given_speed_mps=given_at_10,
-                    given_from_deg=float(given.wind_from))]

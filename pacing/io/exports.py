@@ -1,113 +1,40 @@
 """Segment targets leave the program here: a table with units, CSV, XLSX, GPX with waypoints,
-and a printable card (PNG or PDF) a rider can tape to the stem.
+and a printable card (PNG or PDF, drawn by pacing.io.target_card) a rider can tape to the stem.
 
-Input rows are segment targets as made by ``pacing.plan.targets.target_table`` (objects with the
-attributes below, or dicts with the same keys), all in SI units:
-
-    index, start, end, length [m], grade [-], target_power, power_low, power_high [W] or None,
-    target_pace [s/km] or None, speed [m/s], time, cumulative_time [s],
-    w_prime_balance [J] or None, headwind [m/s], walking_distance [m] (optional),
-    gap_length [m] (optional: the recording's gaps joined by a straight line in the segment)
+Input rows are segment targets as made by ``pacing.plan.targets.target_table`` (objects or
+dicts, all in SI units; the fields are listed in pacing.io.target_rows, which reads them).
 
 `segment_table` turns them into the one table the app shows; CSV and XLSX write that same
-table, so the numbers in a file are the numbers on the screen. Units are converted only here
-(through pacing.display.units).
+table, so the numbers in a file are the numbers on the screen. Units are converted only at the
+edge (through pacing.display.units).
 """
 
 from __future__ import annotations
 
 import csv
 import io
-import math
-from collections.abc import Iterable, Mapping, Sequence
+from collections.abc import Iterable, Sequence
 from typing import TYPE_CHECKING, Any
 
 import pandas as pd
 
-from pacing.display.units import (
-    format_duration,
-    format_pace,
-    format_quantity,
-    pace_per_km_to_display,
-    to_display,
-    unit_label,
-)
-from pacing.errors import InputError
+from pacing.display.units import format_duration, format_quantity, to_display, unit_label
 from pacing.io.gpx import write_gpx
+from pacing.io.target_card import card_figure
+from pacing.io.target_rows import (
+    checked_rows,
+    gap_length,
+    gap_text,
+    pace_text,
+    row_has,
+    row_number,
+    row_required,
+    row_value,
+    target_text,
+)
 
 if TYPE_CHECKING:
-    from matplotlib.figure import Figure
-
     from pacing.notices import Notice
-
-CAUTION_LINE = (
-    "Speeds are estimates, not safe limits. Ride within your skills, the road, "
-    "traffic law and race rules."
-)
-"""Printed on every cycling card and shown beside predicted speeds."""
-
-RUNNING_CAUTION_LINE = (
-    "Paces are estimates, not safe limits. Run within your fitness, the footing, the road, "
-    "traffic law and race rules."
-)
-"""Printed on every running card (a card of paces only)."""
-
-ROWS_PER_CARD_COLUMN = 20
-"""Segments per column of the printed card; more segments add columns side by side."""
-CARD_COLUMN_WIDTH = 3.4
-"""Width of one card column [in]."""
-CARD_ROW_HEIGHT = 0.40
-"""Height of one segment line on the card [in]."""
-CARD_HEADER_HEIGHT = 0.95
-"""Title and column headings [in]."""
-CARD_FOOTER_HEIGHT = 0.60
-"""Caution line [in]."""
-CARD_DPI = 150
-"""Default resolution of the PNG card [dots per inch]."""
-
-
-def _field(row: Any, name: str) -> Any:
-    """The row's value of `name`, from a mapping or an attribute; None when absent."""
-    if isinstance(row, Mapping):
-        return row.get(name)
-    return getattr(row, name, None)
-
-
-def _number(row: Any, name: str) -> float | None:
-    """The row's value of `name` as a float; None when absent or not finite."""
-    value = _field(row, name)
-    if value is None:
-        return None
-    try:
-        value = float(value)
-    except (TypeError, ValueError):
-        raise InputError(f"segment {name.replace('_', ' ')} is not a number: {value!r}") from None
-    return value if math.isfinite(value) else None
-
-
-def _required(row: Any, name: str) -> float:
-    """A number every segment row has (start, end, time, cumulative time)."""
-    value = _number(row, name)
-    if value is None:
-        raise InputError(f"segment {name.replace('_', ' ')} is missing or not finite")
-    return value
-
-
-def _rows(rows: Iterable[Any]) -> list[Any]:
-    """The rows as a list, refused when empty or missing start, end or times."""
-    rows = list(rows)
-    if not rows:
-        raise InputError("there are no segments to export")
-    for row in rows:
-        for name in ("start", "end", "time", "cumulative_time"):
-            if _number(row, name) is None:
-                raise InputError(f"a segment has no {name.replace('_', ' ')}; cannot export")
-    return rows
-
-
-def _has(rows: Sequence[Any], name: str) -> bool:
-    """Whether some row has a finite number for `name`."""
-    return any(_number(row, name) is not None for row in rows)
 
 
 def segment_table(rows: Iterable[Any], system: str = "metric") -> pd.DataFrame:
@@ -127,7 +54,7 @@ def segment_table(rows: Iterable[Any], system: str = "metric") -> pd.DataFrame:
     Parameters
     ----------
     rows : iterable of SegmentTarget or mapping
-        Segment targets in SI units (see the module docstring) [SI].
+        Segment targets in SI units (fields: pacing.io.target_rows) [SI].
     system : {"metric", "imperial"}, optional
         The unit system of the table [-].
 
@@ -141,7 +68,7 @@ def segment_table(rows: Iterable[Any], system: str = "metric") -> pd.DataFrame:
     InputError
         When there are no rows, or a row lacks start, end, time or cumulative time.
     """
-    rows = _rows(rows)
+    rows = checked_rows(rows)
     dist = unit_label("distance", system)
     speed = unit_label("speed", system)
     pace = unit_label("pace", system)
@@ -149,7 +76,7 @@ def segment_table(rows: Iterable[Any], system: str = "metric") -> pd.DataFrame:
     def col(name: str, quantity: str | None = None, factor: float = 1.0, digits: int = 1):
         values = []
         for row in rows:
-            value = _number(row, name)
+            value = row_number(row, name)
             if value is not None:
                 value = to_display(value, quantity, system) if quantity else value * factor
                 value = round(value, digits) + 0.0 if digits else int(round(value))
@@ -160,29 +87,29 @@ def segment_table(rows: Iterable[Any], system: str = "metric") -> pd.DataFrame:
     table[f"From [{dist}]"] = col("start", "distance", digits=2)
     table[f"To [{dist}]"] = col("end", "distance", digits=2)
     table[f"Length [{dist}]"] = [
-        round(to_display(_required(r, "end") - _required(r, "start"), "distance", system), 2)
+        round(to_display(row_required(r, "end") - row_required(r, "start"), "distance", system), 2)
         for r in rows
     ]
     table["Grade [%]"] = col("grade", factor=100.0, digits=1)
-    if _has(rows, "target_power"):
+    if row_has(rows, "target_power"):
         table["Target power [W]"] = col("target_power", digits=0)
-        if _has(rows, "power_low") and _has(rows, "power_high"):
+        if row_has(rows, "power_low") and row_has(rows, "power_high"):
             table["Power low [W]"] = col("power_low", digits=0)
             table["Power high [W]"] = col("power_high", digits=0)
-    if _has(rows, "target_pace"):
-        table[f"Target pace [{pace}]"] = [_pace_text(r, system) for r in rows]
+    if row_has(rows, "target_pace"):
+        table[f"Target pace [{pace}]"] = [pace_text(r, system) for r in rows]
     table[f"Speed [{speed}]"] = col("speed", "speed", digits=1)
-    if _has(rows, "headwind"):
+    if row_has(rows, "headwind"):
         table[f"Headwind [{speed}]"] = col("headwind", "wind_speed", digits=1)
-    table["Split [h:mm:ss]"] = [format_duration(_required(r, "time")) for r in rows]
-    table["Elapsed [h:mm:ss]"] = [format_duration(_required(r, "cumulative_time")) for r in rows]
-    if _has(rows, "w_prime_balance"):
+    table["Split [h:mm:ss]"] = [format_duration(row_required(r, "time")) for r in rows]
+    table["Elapsed [h:mm:ss]"] = [format_duration(row_required(r, "cumulative_time")) for r in rows]
+    if row_has(rows, "w_prime_balance"):
         table["W′ left [kJ]"] = col("w_prime_balance", factor=1e-3, digits=1)
-    walked = [_number(row, "walking_distance") or 0.0 for row in rows]
+    walked = [row_number(row, "walking_distance") or 0.0 for row in rows]
     if any(w > 0 for w in walked):
         table[f"Walked [{dist}]"] = [round(float(to_display(w, "distance", system)), 2) + 0.0
                                      for w in walked]
-    gaps = [_gap_length(row) for row in rows]
+    gaps = [gap_length(row) for row in rows]
     if any(g > 0 for g in gaps):
         table[f"Gap [{dist}]"] = [round(float(to_display(g, "distance", system)), 2) + 0.0
                                   for g in gaps]
@@ -193,30 +120,16 @@ def segment_table(rows: Iterable[Any], system: str = "metric") -> pd.DataFrame:
 def _weather_columns(rows: Sequence[Any], system: str, col: Any) -> dict[str, list]:
     """The race day's columns: clock time and the weather met (none without a race day)."""
     columns: dict[str, list] = {}
-    if any(_field(row, "clock_time") for row in rows):
-        columns["Clock [ISO 8601]"] = [_field(row, "clock_time") or None for row in rows]
-    if _has(rows, "temperature"):
+    if any(row_value(row, "clock_time") for row in rows):
+        columns["Clock [ISO 8601]"] = [row_value(row, "clock_time") or None for row in rows]
+    if row_has(rows, "temperature"):
         columns[f"Air [{unit_label('temperature', system)}]"] = col("temperature",
                                                                    "temperature", digits=1)
-    if _has(rows, "wind_speed"):
+    if row_has(rows, "wind_speed"):
         columns[f"Wind [{unit_label('wind_speed', system)}]"] = col("wind_speed", "wind_speed",
                                                                     digits=1)
         columns["Wind from [deg]"] = col("wind_from", digits=0)
     return columns
-
-
-def _gap_length(row: Any) -> float:
-    """The row's joined gap length, 0 when it has none [m]."""
-    return _number(row, "gap_length") or 0.0
-
-
-def _gap_text(row: Any, system: str) -> str | None:
-    """"joined gap 12.7 km" (or mi) for a row holding a joined gap; None without one."""
-    length = _gap_length(row)
-    if length <= 0:
-        return None
-    return (f"joined gap {to_display(length, 'distance', system):.1f} "
-            f"{unit_label('distance', system)}")
 
 
 def table_to_csv(table: pd.DataFrame, notices: Sequence[str] = ()) -> bytes:
@@ -306,26 +219,8 @@ def _durations_as_time(sheet: Any, table: pd.DataFrame) -> None:
                 cell.number_format = "[h]:mm:ss"
 
 
-def _pace_text(row: Any, system: str) -> str | None:
-    """"4:35" of the row's target pace in `system` (per km or per mile); None without one."""
-    pace = _number(row, "target_pace")
-    if pace is None:
-        return None
-    return format_pace(float(pace_per_km_to_display(pace, system)))
 
-
-def _target_text(row: Any, system: str) -> str:
-    """"285 W", "4:35 min/km", both joined by " · ", or "steady" without a target."""
-    power = _number(row, "target_power")
-    pace = _number(row, "target_pace")
-    parts = []
-    if power is not None:
-        parts.append(f"{power:.0f} W")
-    if pace is not None:
-        shown = format_pace(float(pace_per_km_to_display(pace, system)))
-        parts.append(f"{shown} {unit_label('pace', system)}")
-    return " · ".join(parts) if parts else "steady"
-
+# ------------------------------------------------------------------- GPX with waypoints
 
 LOCATED_CODES = ("w-prime-exhausted", "d-prime-exhausted")
 """Notice codes whose ``distance_m`` says where on the course they happen."""
@@ -356,7 +251,7 @@ def located_warnings(notices: Iterable[Notice], system: str = "metric"
 def _segment_at(rows: Sequence[Any], distance: float) -> int:
     """Index of the row whose [start, end) holds `distance` [m] (the last one past the end)."""
     for index, row in enumerate(rows):
-        if distance < _required(row, "end"):
+        if distance < row_required(row, "end"):
             return index
     return len(rows) - 1
 
@@ -374,7 +269,7 @@ def segment_waypoints(rows: Iterable[Any], system: str = "metric",
     Parameters
     ----------
     rows : iterable of SegmentTarget or mapping
-        Segment targets in SI units (see the module docstring) [SI].
+        Segment targets in SI units (fields: pacing.io.target_rows) [SI].
     system : {"metric", "imperial"}, optional
         The unit system of the words [-].
     warnings : sequence of (float, str), optional
@@ -390,23 +285,23 @@ def segment_waypoints(rows: Iterable[Any], system: str = "metric",
     InputError
         When there are no rows, or a row lacks start, end, time or cumulative time.
     """
-    rows = _rows(rows)
+    rows = checked_rows(rows)
     points = []
     for number, row in enumerate(rows, start=1):
-        start = _required(row, "start")
-        target = _target_text(row, system)
-        speed = _number(row, "speed")
+        start = row_required(row, "start")
+        target = target_text(row, system)
+        speed = row_number(row, "speed")
         speed_text = (f", {to_display(speed, 'speed', system):.1f} {unit_label('speed', system)}"
                       if speed is not None else "")
-        grade = _number(row, "grade")
+        grade = row_number(row, "grade")
         grade_text = f", grade {100 * grade:.1f} %" if grade is not None else ""
         description = (
             f"segment {number} from {to_display(start, 'distance', system):.2f} "
             f"{unit_label('distance', system)}: {target}{speed_text}{grade_text}, "
-            f"split {format_duration(_required(row, 'time'))}, "
-            f"elapsed {format_duration(_required(row, 'cumulative_time'))}"
+            f"split {format_duration(row_required(row, 'time'))}, "
+            f"elapsed {format_duration(row_required(row, 'cumulative_time'))}"
         )
-        gap = _gap_text(row, system)
+        gap = gap_text(row, system)
         if gap is not None:
             description += f", {gap}"
         points.append((start, f"S{number} {target}", description))
@@ -429,7 +324,7 @@ def course_with_targets_gpx(course: Any, rows: Iterable[Any], system: str = "met
     course : Course
         The course [-].
     rows : iterable of SegmentTarget or mapping
-        Segment targets in SI units (see the module docstring) [SI].
+        Segment targets in SI units (fields: pacing.io.target_rows) [SI].
     system : {"metric", "imperial"}, optional
         The unit system of the waypoints' words [-].
     warnings : sequence of (float, str), optional
@@ -452,126 +347,10 @@ def course_with_targets_gpx(course: Any, rows: Iterable[Any], system: str = "met
                      "\n".join(notices) or None)
 
 
-CARD_WARNING_HEIGHT = 0.45
-"""Height of one warning on the card [in]."""
+# ---------------------------------------------------------------- the card as PNG or PDF
 
-
-def card_size(segment_count: int, warning_count: int = 0) -> tuple[float, float]:
-    """Size of the printed card for a number of segments and of warnings.
-
-    Parameters
-    ----------
-    segment_count : int
-        Segments on the card, ≥ 1 [-].
-    warning_count : int, optional
-        Warnings printed above the caution line [-].
-
-    Returns
-    -------
-    tuple of float
-        (width, height) [in].
-
-    Raises
-    ------
-    InputError
-        When there is no segment.
-    """
-    if segment_count < 1:
-        raise InputError("there are no segments to put on the card")
-    columns = math.ceil(segment_count / ROWS_PER_CARD_COLUMN)
-    lines = min(segment_count, ROWS_PER_CARD_COLUMN)
-    return (CARD_COLUMN_WIDTH * columns,
-            CARD_HEADER_HEIGHT + CARD_ROW_HEIGHT * (lines + 1) + CARD_FOOTER_HEIGHT
-            + CARD_WARNING_HEIGHT * warning_count)
-
-
-def _card_figure(rows: Sequence[Any], system: str, title: str,
-                 warnings: Sequence[str] = ()) -> Figure:
-    """The card as a matplotlib Figure, drawn in inches (y down): title and finish, one
-    column of segments per ROWS_PER_CARD_COLUMN, warnings, caution."""
-    from matplotlib.backends.backend_agg import FigureCanvasAgg
-    from matplotlib.figure import Figure
-
-    warnings = [*_card_gap_lines(rows, system), *warnings]
-    width, height = card_size(len(rows), len(warnings))
-    figure = Figure(figsize=(width, height))
-    FigureCanvasAgg(figure)
-    axes = figure.add_axes((0, 0, 1, 1))
-    axes.set_axis_off()
-    axes.set_xlim(0, width)
-    axes.set_ylim(height, 0)  # y grows downward, in inches
-    finish = _required(rows[-1], "cumulative_time")
-    axes.text(0.12, 0.38, title[:40], fontsize=15, fontweight="bold", va="center")
-    clock = _card_clock_text(rows, system)
-    axes.text(0.12, 0.72, f"finish {format_duration(finish)}{clock}",
-              fontsize=10 if clock else 12, va="center")
-    dist = unit_label("distance", system)
-    columns = math.ceil(len(rows) / ROWS_PER_CARD_COLUMN)
-    pace_only = not _has(rows, "target_power") and _has(rows, "target_pace")
-    target_heading = f"pace [{unit_label('pace', system)}]" if pace_only else "target"
-    for column in range(columns):
-        left = column * CARD_COLUMN_WIDTH + 0.12
-        top = CARD_HEADER_HEIGHT + CARD_ROW_HEIGHT * 0.5
-        for x, heading in ((0.0, dist), (0.95, target_heading), (2.45, "split")):
-            axes.text(left + x, top, heading, fontsize=9, color="0.35", va="center")
-        part = rows[column * ROWS_PER_CARD_COLUMN:(column + 1) * ROWS_PER_CARD_COLUMN]
-        for line, row in enumerate(part, start=1):
-            y = top + CARD_ROW_HEIGHT * line
-            if line % 2:
-                axes.axhspan(y - CARD_ROW_HEIGHT / 2, y + CARD_ROW_HEIGHT / 2,
-                             xmin=column / columns, xmax=(column + 1) / columns,
-                             color="0.92", lw=0)
-            start = to_display(_required(row, "start"), "distance", system)
-            target = _target_text(row, system).replace(" min/km", "").replace(" min/mi", "")
-            split = format_duration(_required(row, "time"))
-            split = split[2:] if split.startswith("0:") else split
-            axes.text(left, y, f"{start:.1f}", fontsize=15, va="center", family="monospace")
-            axes.text(left + 0.95, y, target, fontsize=17, fontweight="bold", va="center")
-            axes.text(left + 2.45, y, split, fontsize=13, va="center", family="monospace")
-    for number, warning in enumerate(warnings):
-        y = (height - CARD_FOOTER_HEIGHT - CARD_WARNING_HEIGHT * (len(warnings) - number)
-             + CARD_WARNING_HEIGHT / 2)
-        axes.text(0.12, y, wrap_text("⚠ " + warning, width), fontsize=7, va="center",
-                  color="#8a2c0d", fontweight="bold")
-    caution = RUNNING_CAUTION_LINE if pace_only else CAUTION_LINE
-    axes.text(0.12, height - CARD_FOOTER_HEIGHT / 2, wrap_text(caution, width), fontsize=7,
-              va="center", color="0.2")
-    return figure
-
-
-def _card_clock_text(rows: Sequence[Any], system: str) -> str:
-    """" · start 09:00 · 24–31 °C" on a race day (clock at the start, the air met on the first
-    and last segments); "" without one."""
-    clock = _field(rows[0], "clock_time")
-    if not clock:
-        return ""
-    text = f" · start {str(clock)[11:16]}"
-    first, last = _number(rows[0], "temperature"), _number(rows[-1], "temperature")
-    if first is not None and last is not None:
-        label = unit_label("temperature", system)
-        text += (f" · {to_display(first, 'temperature', system):.0f}–"
-                 f"{to_display(last, 'temperature', system):.0f} {label}")
-    return text
-
-
-def _card_gap_lines(rows: Sequence[Any], system: str) -> list[str]:
-    """One card line per segment holding a joined gap: "segment 2 from 5.0 km: joined gap
-    12.7 km"."""
-    lines = []
-    for number, row in enumerate(rows, start=1):
-        gap = _gap_text(row, system)
-        if gap is not None:
-            start = to_display(_required(row, "start"), "distance", system)
-            lines.append(f"segment {number} from {start:.1f} {unit_label('distance', system)}: "
-                         f"{gap}")
-    return lines
-
-
-def wrap_text(text: str, width_inches: float) -> str:
-    """The text wrapped to about 15 characters per inch of width [in]."""
-    import textwrap
-
-    return "\n".join(textwrap.wrap(text, width=max(20, int(width_inches * 15))))
+CARD_DPI = 150
+"""Default resolution of the PNG card [dots per inch]."""
 
 
 def target_card_png(rows: Iterable[Any], system: str = "metric", title: str = "race plan",
@@ -587,7 +366,7 @@ def target_card_png(rows: Iterable[Any], system: str = "metric", title: str = "r
     Parameters
     ----------
     rows : iterable of SegmentTarget or mapping
-        Segment targets in SI units (see the module docstring) [SI].
+        Segment targets in SI units (fields: pacing.io.target_rows) [SI].
     system : {"metric", "imperial"}, optional
         The unit system of the card [-].
     title : str, optional
@@ -607,9 +386,9 @@ def target_card_png(rows: Iterable[Any], system: str = "metric", title: str = "r
     InputError
         When there are no rows, or a row lacks start, end, time or cumulative time.
     """
-    rows = _rows(rows)
+    rows = checked_rows(rows)
     buffer = io.BytesIO()
-    _card_figure(rows, system, title, warnings).savefig(buffer, format="png", dpi=dpi)
+    card_figure(rows, system, title, warnings).savefig(buffer, format="png", dpi=dpi)
     return buffer.getvalue()
 
 
@@ -620,7 +399,7 @@ def target_card_pdf(rows: Iterable[Any], system: str = "metric", title: str = "r
     Parameters
     ----------
     rows : iterable of SegmentTarget or mapping
-        Segment targets in SI units (see the module docstring) [SI].
+        Segment targets in SI units (fields: pacing.io.target_rows) [SI].
     system : {"metric", "imperial"}, optional
         The unit system of the card [-].
     title : str, optional
@@ -638,11 +417,13 @@ def target_card_pdf(rows: Iterable[Any], system: str = "metric", title: str = "r
     InputError
         When there are no rows, or a row lacks start, end, time or cumulative time.
     """
-    rows = _rows(rows)
+    rows = checked_rows(rows)
     buffer = io.BytesIO()
-    _card_figure(rows, system, title, warnings).savefig(buffer, format="pdf")
+    card_figure(rows, system, title, warnings).savefig(buffer, format="pdf")
     return buffer.getvalue()
 
+
+# ------------------------------------------------------------------------------ race day
 
 def race_day_lines(race_day: Any, system: str = "metric") -> list[str]:
     """Lines for a file's comments about the race day: where the athlete's limits were taken
