@@ -107,6 +107,29 @@ def test_a_saved_plan_shows_its_race_reviews_and_each_one_shows_its_json(capsys,
     assert json.loads(out[out.index("\n{"):]) == review
 
 
+def test_list_counts_each_plans_reviews_and_lists_them_with_their_ids(capsys, database):
+    review = {"planned_time_s": 3725.0, "actual_time_s": 3790.5, "segments": [],
+              "attribution": {"power_s": 65.5}, "fitted": {"cda_m2": 0.236}, "warnings": []}
+    code, out, _ = run(capsys, "library", "--database", database, "list")
+    assert code == 0 and "race reviews (0)" in out
+    with open_library(database) as library:
+        library.add_plan_review(1, review, ride_name="Hill TT.csv", ride_sha256="ab" * 32)
+        library.add_plan_review(1, dict(review, actual_time_s=3700.0, fitted=None),
+                                ride_name="Hill TT again.gpx", ride_sha256="cd" * 32)
+    code, out, _ = run(capsys, "library", "--database", database, "list")
+    assert code == 0
+    plans = out.split("saved plans (1)\n")[1].splitlines()
+    column = plans[0].index("race reviews")
+    assert plans[1][column:].startswith("2 ")
+    rows = out.split("race reviews (2)\n")[1].splitlines()
+    assert rows[0].split()[:4] == ["id", "saved", "plan", "race"]
+    assert rows[1].split()[:5] == ["1", "1", "Race", "day", "Hill"]
+    assert "+65.5" in rows[1] and "0.2360" in rows[1] and "1:03:10" in rows[1]
+    assert "-25.0" in rows[2] and rows[2].rstrip().endswith("-")  # no fit: no CdA
+    code, out, _ = run(capsys, "library", "--database", database, "show", "review", "2")
+    assert code == 0 and "Hill TT again.gpx" in out
+
+
 def test_saved_plans_show_the_version_of_pacing_that_made_them(capsys, database):
     code, out, _ = run(capsys, "library", "--database", database, "list")
     header, row = out.split("saved plans (1)\n")[1].splitlines()[:2]

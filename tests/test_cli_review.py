@@ -79,6 +79,12 @@ def test_the_table_and_the_csv_export(capsys, files, tmp_path):
     out = capsys.readouterr().out
     assert "where the time went" in out and "Caution" in out
     assert target.read_text(encoding="utf-8").count("\n") > 5
+    workbook = tmp_path / "review.xlsx"
+    assert main(["review", str(route), str(race), *PLAN, "--no-fit", "--xlsx",
+                 str(workbook)]) == 0
+    from openpyxl import load_workbook
+
+    assert load_workbook(workbook).sheetnames[0] == "race review"
 
 
 def test_a_known_day_wind_is_used(capsys, files):
@@ -115,10 +121,11 @@ def test_the_review_is_kept_with_a_saved_plan_of_the_library(capsys, files, tmp_
 
     route, race, _ = files
     database = tmp_path / "library.sqlite3"
+    planned = run_json(capsys, route, race, *PLAN, "--no-fit")["planned_time_s"]
     with open_library(database) as library:
         plan = library.save_plan("Loop TT", {"sport": "cycling"},
                                  {"strategy": {}, "weather": {}, "targets": [],
-                                  "time_saved": None, "finish_time": 1000.0})
+                                  "time_saved": None, "finish_time": planned + 0.4})
     result = run_json(capsys, route, race, *PLAN, "--no-fit", "--save-to-plan", plan.id,
                       "--database", database)
     with open_library(database) as library:
@@ -126,6 +133,24 @@ def test_the_review_is_kept_with_a_saved_plan_of_the_library(capsys, files, tmp_
     assert kept.review == json.loads(json.dumps(result))
     assert kept.ride_name == "race.csv"
     assert kept.ride_sha256 == hashlib.sha256(race.read_bytes()).hexdigest()  # FIPS 180-4
+
+
+def test_a_review_is_not_kept_with_a_saved_plan_of_other_flags(capsys, files, tmp_path):
+    from pacing.store.library import open_library
+
+    route, race, _ = files
+    database = tmp_path / "library.sqlite3"
+    planned = run_json(capsys, route, race, *PLAN, "--no-fit")["planned_time_s"]
+    with open_library(database) as library:
+        plan = library.save_plan("Loop TT at 230 W", {"sport": "cycling"},
+                                 {"targets": [], "finish_time": planned + 30.0})
+    code = main(["review", str(route), str(race), *PLAN, "--no-fit", "--save-to-plan",
+                 str(plan.id), "--database", str(database)])
+    err = capsys.readouterr().err
+    assert code == 2 and len(err.strip().splitlines()) == 1
+    assert "'Loop TT at 230 W') finishes in" in err and "give the flags" in err
+    with open_library(database) as library:
+        assert library.plan_reviews(plan.id) == ()
 
 
 def test_keeping_with_a_plan_that_is_not_there_exits_with_code_2(capsys, files, tmp_path):

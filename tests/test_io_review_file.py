@@ -1,4 +1,5 @@
-"""The race review's table as CSV (pacing.io.review_file)."""
+"""The race review's table as CSV and XLSX (pacing.io.review_file); the workbook read back with
+openpyxl (the reference reader of the Office Open XML format in Python)."""
 
 from __future__ import annotations
 
@@ -12,7 +13,13 @@ from test_review_synthetic import STEP, Day, loop_heading, loop_profile, ride
 from pacing.course.geometry import synthetic_course
 from pacing.course.segments import split_by_grade
 from pacing.errors import InputError
-from pacing.io.review_file import review_table, review_to_csv, write_review_csv
+from pacing.io.review_file import (
+    review_table,
+    review_to_csv,
+    review_to_xlsx,
+    write_review_csv,
+    write_review_xlsx,
+)
 from pacing.physics.cycling import Rider
 from pacing.plan.prediction import SimulationOptions
 from pacing.plan.race import RaceRequest, plan_race
@@ -59,7 +66,7 @@ def test_imperial_swaps_km_for_miles(review):
 def test_the_csv_reads_back_with_the_notices_and_the_split_as_comments(review, tmp_path):
     data = review_to_csv(review)
     text = data.decode("utf-8")
-    assert text.startswith("# note: 1 stop(s)")
+    assert text.startswith("# note: 1 stop (")
     assert "# time split (positive: slower than planned): power_s" in text
     back = pd.read_csv(io.BytesIO(data), comment="#")
     assert len(back) == len(review.segments)
@@ -71,3 +78,23 @@ def test_the_csv_reads_back_with_the_notices_and_the_split_as_comments(review, t
 def test_an_unwritable_path_is_refused_in_one_line(review, tmp_path):
     with pytest.raises(InputError, match="cannot write"):
         write_review_csv(review, tmp_path / "missing" / "review.csv")
+
+
+def test_the_workbook_holds_the_table_then_the_notices_and_the_split(review, tmp_path):
+    from openpyxl import load_workbook
+
+    data = review_to_xlsx(review)
+    book = load_workbook(io.BytesIO(data))
+    assert book.sheetnames == ["race review", "warnings and notes"]
+    table = review_table(review)
+    rows = list(book["race review"].values)
+    assert list(rows[0]) == list(table.columns)
+    assert len(rows) == len(table) + 1
+    assert rows[1][table.columns.get_loc("Lost [s]")] == table["Lost [s]"].iloc[0]
+    notes = [row[0] for row in book["warnings and notes"].values]
+    assert notes[1].startswith("note: 1 stop (")
+    assert any(str(n).startswith("time split (positive: slower than planned)") for n in notes)
+    assert book.properties.title == "race review"
+    assert write_review_xlsx(review, tmp_path / "review.xlsx").read_bytes()[:2] == b"PK"
+    with pytest.raises(InputError, match="cannot write"):
+        write_review_xlsx(review, tmp_path / "missing" / "review.xlsx")

@@ -224,7 +224,7 @@ def test_a_file_over_the_size_limit_is_refused_at_once_with_little_memory(librar
     import time
     import tracemalloc
 
-    from pacing.store.library_file import FILE_SIZE_LIMIT
+    from pacing.store.library_file_json import FILE_SIZE_LIMIT
 
     data = b" " * 56_000_000  # 56 MB: 15 s and 1.2 GB before (issue 14)
     assert len(data) > FILE_SIZE_LIMIT

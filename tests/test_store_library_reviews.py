@@ -137,3 +137,105 @@ def test_a_bad_review_in_a_file_names_its_place(library):
     document["plans"][plan_index]["reviews"][0]["review"]["actual_time_s"] = -1
     with pytest.raises(InputError, match=rf"plans\[{plan_index}\]\.reviews\[0\].*positive"):
         read_library_file(json.dumps(document))
+
+
+# ---------------------------------------------------------------------------------------------
+# a plan saved with its review in one step; every review listed and counted
+
+def test_every_plans_reviews_are_listed_together_and_counted(library):
+    ids, first = _kept(library)
+    other = library.add_plan_review(ids["easy"], REVIEW, ride_name="b.csv",
+                                    ride_sha256="1" * 64)
+    second = library.add_plan_review(ids["race"], REVIEW, ride_name="c.csv",
+                                     ride_sha256="2" * 64)
+    listed = library.plan_reviews()
+    assert [r.id for r in listed] == sorted(
+        [first.id, second.id, other.id], key=lambda i: (library.plan_review(i).plan_id, i))
+    assert library.review_counts() == {ids["race"]: 2, ids["easy"]: 1}
+    library.delete_plan(ids["race"], confirm=True)
+    assert library.review_counts() == {ids["easy"]: 1}
+
+
+def test_no_reviews_no_counts(library):
+    fill(library)
+    assert library.plan_reviews() == () and library.review_counts() == {}
+
+
+def _save_both(library, ids, name="Raced", **options):
+    from tests.store_fixtures import plan_inputs, plan_result
+
+    return library.save_plan_with_review(
+        name, plan_inputs(ids["ann"], ids["tt"], ids["hill"]), plan_result(), REVIEW,
+        ride_name="Hill TT.csv", ride_sha256=ride_digest(RIDE), **options)
+
+
+def test_a_plan_and_its_review_are_saved_in_one_step(library):
+    ids = fill(library)
+    plan, kept = _save_both(library, ids, notes="raced it")
+    assert plan.name == "Raced" and plan.summary.notes == "raced it"
+    assert plan.summary.athlete_id == ids["ann"] and plan.summary.course_id == ids["hill"]
+    assert kept.plan_id == plan.id and kept.review == REVIEW
+    assert library.plan_reviews(plan.id) == (kept,)
+
+
+def test_a_taken_name_saves_neither_until_told_to_keep_both(library):
+    from pacing.store.statements import NameTaken
+    from tests.store_fixtures import dump
+
+    ids = fill(library)
+    before = dump(library)
+    with pytest.raises(NameTaken):
+        _save_both(library, ids, name="Race day")
+    assert dump(library) == before
+    with pytest.raises(InputError, match="never replaces"):
+        _save_both(library, ids, name="Race day", on_existing="replace")
+    assert dump(library) == before
+    plan, kept = _save_both(library, ids, name="Race day", on_existing="keep-both")
+    assert plan.name == "Race day (2)" and kept.plan_id == plan.id
+    assert library.plan(ids["race"]).summary.finish_time == 3725.0  # the first one kept
+    assert library.plan_reviews(ids["race"]) == ()
+
+
+def test_when_the_review_cannot_be_written_the_plan_is_not_saved_either(library, monkeypatch):
+    from pacing.store import library_reviews
+    from tests.store_fixtures import dump
+
+    ids = fill(library)
+    before = dump(library)
+    real = library_reviews.insert_row
+
+    def failing(connection, table, values, *args):
+        if table.name == "plan_reviews":
+            raise InputError("disk full (simulated)")
+        return real(connection, table, values, *args)
+
+    monkeypatch.setattr(library_reviews, "insert_row", failing)
+    with pytest.raises(InputError, match="simulated"):
+        _save_both(library, ids)
+    assert dump(library) == before
+
+
+@pytest.mark.parametrize("change, match", [
+    ({"review": {"planned_time_s": 1.0}}, "lacks"),
+    ({"ride_sha256": "xyz"}, "SHA-256"),
+    ({"name": " "}, "needs a name"),
+])
+def test_a_bad_plan_or_review_saves_nothing(library, change, match):
+    from tests.store_fixtures import dump, plan_inputs, plan_result
+
+    ids = fill(library)
+    before = dump(library)
+    values = {"name": "Raced", "review": REVIEW, "ride_sha256": ride_digest(RIDE), **change}
+    with pytest.raises(InputError, match=match):
+        library.save_plan_with_review(
+            values["name"], plan_inputs(ids["ann"], ids["tt"], ids["hill"]), plan_result(),
+            values["review"], ride_name="a.csv", ride_sha256=values["ride_sha256"])
+    assert dump(library) == before
+
+
+def test_a_review_is_of_a_saved_plan_when_their_times_agree_within_a_second():
+    from pacing.store.library_reviews import SAME_PLAN_TOLERANCE, same_plan_time
+
+    assert SAME_PLAN_TOLERANCE == 1.0
+    assert same_plan_time(1000.0, 1000.99) and same_plan_time(1000.0, 999.0)
+    assert not same_plan_time(1000.0, 1001.01) and not same_plan_time(1000.0, 970.0)

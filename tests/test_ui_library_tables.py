@@ -50,6 +50,19 @@ def test_the_plans_table_names_the_athlete_and_the_summary_the_pacing_in_words()
     assert running == ["pacing: Equal effort on every grade"]
 
 
+def test_the_plans_table_counts_the_race_reviews_each_plan_keeps():
+    import datetime
+    import types
+
+    plans = [types.SimpleNamespace(id=i, name=f"plan {i}", athlete_id=None, finish_time=900.0,
+                                   time_saved=None, updated_at=datetime.datetime(2026, 5, i),
+                                   library_version="0.2.0", notes="") for i in (1, 2)]
+    assert "Race reviews" not in library_tables.plans_table(plans).columns
+    table = library_tables.plans_table(plans, {}, {2: 3})
+    assert table["Race reviews"].tolist() == [0, 3]
+    assert list(table.columns).index("Race reviews") == 4  # after the finish and the gain
+
+
 def test_a_setup_says_where_its_cda_came_from():
     import types
 

@@ -119,7 +119,7 @@ def _panel_page(path):
 
     fit = types.SimpleNamespace(as_json=lambda: {"cda_m2": 0.23637,
                                                  "cda_ci95": [0.22812, 0.24455]})
-    fake = types.SimpleNamespace(fitted=fit, as_json=lambda words: {
+    fake = types.SimpleNamespace(fitted=fit, planned_time=1000.0, as_json=lambda words: {
         "planned_time_s": 1000.0, "actual_time_s": 1010.0, "segments": [],
         "attribution": {}, "fitted": fit.as_json(), "warnings": words(())})
     st.session_state.setdefault("library:location", path)
@@ -172,3 +172,191 @@ def test_without_a_library_plan_in_the_page_the_review_cannot_be_kept(tmp_path):
     assert not app.exception
     captions = " ".join(c.value for c in app.caption)
     assert "choose an athlete" in captions and "Show a saved plan" in captions
+
+
+# ------------------------------------------------------------------- the review kept with its plan
+
+PAGE_PLAN_INPUTS = {"course_gpx": b"<gpx/>", "course_name": "Hill loop",
+                    "course_distance": 10000.0, "course_ascent": 120.0,
+                    "athlete": {"sport": "cycling", "body_mass": 61.0},
+                    "weather": {}, "approach": {"strategy": "constant", "mean_power": 250.0},
+                    "bounds": [0, 1000]}
+
+
+def _page_plan(finish_time=1000.0):
+    return {"inputs": PAGE_PLAN_INPUTS, "result": {
+        "strategy": {}, "weather": {}, "targets": [{"segment": 1, "power": 250.0}],
+        "time_saved": None, "finish_time": finish_time}}
+
+
+def _library_with_ann(path):
+    from pacing.athlete import Athlete
+    from pacing.store.library import open_library
+
+    with open_library(path) as library:
+        return library.add_athlete(Athlete(name="Ann", body_mass=61.0)).id
+
+
+def test_a_plan_made_on_the_page_is_saved_with_its_review_in_one_step(tmp_path):
+    from streamlit.testing.v1 import AppTest
+
+    from pacing.store.library import open_library
+
+    path = str(tmp_path / "library.sqlite3")
+    ann = _library_with_ann(path)
+    app = AppTest.from_function(_panel_page, args=(path,))
+    app.session_state["library:athlete_id"] = ann
+    app.session_state["library:filed_under"] = "Ann"
+    app.session_state["library:page_plan"] = _page_plan()
+    app.run(timeout=30)
+    assert not app.exception
+    name = app.text_input(key="review_plan_name:" + "ab" * 8)  # one per race file
+    assert name.value == "Hill TT"  # the race file's name
+    name.input("Hill TT, June")
+    app.button(key="review_save_plan").click().run(timeout=30)
+    assert not app.exception
+    assert "Saved the plan 'Hill TT, June' with the review of Hill TT.csv" in app.success[-1].value
+    with open_library(path) as library:
+        (plan,) = library.plans()
+        (kept,) = library.plan_reviews(plan.id)
+        stored = library.plan(plan.id)
+    assert plan.name == "Hill TT, June" and plan.athlete_id == ann
+    assert stored.inputs["course_id"] == 1 and "course_gpx" not in stored.inputs
+    assert kept.review["actual_time_s"] == 1010.0 and kept.ride_sha256 == "ab" * 32
+    # the next run names where it is kept instead of offering it again
+    assert not [b for b in app.button if b.key == "review_save_plan"]
+    assert any("kept with the saved plan 'Hill TT, June' (race review 1)" in c.value
+               for c in app.caption)
+
+
+def test_a_taken_plan_name_is_asked_about_and_nothing_saved_is_replaced(tmp_path):
+    from streamlit.testing.v1 import AppTest
+
+    from pacing.store.library import open_library
+
+    path = str(tmp_path / "library.sqlite3")
+    with open_library(path) as library:
+        first = library.save_plan("Hill TT", {"sport": "cycling"},
+                                  {"targets": [], "finish_time": 990.0})
+    app = AppTest.from_function(_panel_page, args=(path,))
+    app.session_state["library:page_plan"] = _page_plan()
+    app.run(timeout=30)
+    app.button(key="review_save_plan").click().run(timeout=30)
+    assert not app.exception
+    assert any("already in the library" in w.value for w in app.warning)
+    with open_library(path) as library:
+        assert [p.name for p in library.plans()] == ["Hill TT"]
+    app.button(key="review_save_plan_keep_both").click().run(timeout=30)
+    assert not app.exception
+    with open_library(path) as library:
+        names = sorted(p.name for p in library.plans())
+        assert library.plan(first.id).summary.finish_time == 990.0  # kept as it was
+        assert library.plan_reviews(first.id) == ()
+        copy = next(p for p in library.plans() if p.name == "Hill TT (2)")
+        assert len(library.plan_reviews(copy.id)) == 1
+    assert names == ["Hill TT", "Hill TT (2)"]
+
+
+def test_a_saved_plan_the_page_no_longer_plans_is_not_given_the_review(tmp_path):
+    from streamlit.testing.v1 import AppTest
+
+    from pacing.store.library import open_library
+
+    path = str(tmp_path / "library.sqlite3")
+    with open_library(path) as library:
+        old = library.save_plan("Hill TT", {"sport": "cycling"},
+                                {"targets": [], "finish_time": 1060.0})
+    app = AppTest.from_function(_panel_page, args=(path,))
+    app.session_state["library:course"] = {"gpx": b"<gpx/>", "name": "c", "plan": "Hill TT",
+                                           "plan_id": old.id}
+    app.session_state["library:page_plan"] = _page_plan()
+    app.run(timeout=30)
+    assert not app.exception
+    assert not [b for b in app.button if b.key == "review_keep_review"]
+    assert any("no longer plans as the saved plan 'Hill TT' did" in c.value
+               for c in app.caption)
+    assert [b for b in app.button if b.key == "review_save_plan"]
+
+
+def test_a_stale_page_plan_is_not_saved_with_the_review(tmp_path):
+    from streamlit.testing.v1 import AppTest
+
+    path = str(tmp_path / "library.sqlite3")
+    app = AppTest.from_function(_panel_page, args=(path,))
+    app.session_state["library:page_plan"] = _page_plan(finish_time=1200.0)
+    app.run(timeout=30)
+    assert not app.exception
+    assert not [b for b in app.button if b.key == "review_save_plan"]
+
+
+def test_a_review_already_kept_is_found_by_its_file_and_the_plans_finish():
+    import types
+
+    from ui.review_panel import kept_with
+
+    reviews = [types.SimpleNamespace(id=4, plan_id=1, ride_sha256="ab" * 32),
+               types.SimpleNamespace(id=5, plan_id=2, ride_sha256="ab" * 32)]
+    assert kept_with(reviews, "ab" * 32, 1000.0, {1: 900.0, 2: 1000.4}).id == 5
+    assert kept_with(reviews, "ab" * 32, 1000.0, {1: 900.0}) is None  # plan 2 deleted
+    assert kept_with(reviews, "cd" * 32, 1000.0, {1: 1000.0, 2: 1000.0}) is None
+
+
+def _picker_page(path):
+    import streamlit as st
+
+    from ui import review_panel
+
+    st.session_state.setdefault("library:location", path)
+    review_panel._pick_saved_plan()
+
+
+def test_a_saved_plan_is_picked_for_the_review_and_shown_in_the_page(tmp_path):
+    from streamlit.testing.v1 import AppTest
+
+    from pacing.store.library import open_library
+
+    path = str(tmp_path / "library.sqlite3")
+    with open_library(path) as library:
+        course = library.add_course("Hill loop", b"<gpx/>", 10000.0, 120.0)
+        library.save_plan("no course", {"sport": "cycling"}, {"targets": [],
+                                                              "finish_time": 900.0})
+        plan = library.save_plan(
+            "Hill TT", {"course_id": course.id, "course_name": "Hill loop",
+                        "athlete": {"sport": "cycling", "body_mass": 61.0},
+                        "weather": {}, "approach": {"strategy": "constant",
+                                                    "mean_power": 250.0}},
+            {"targets": [], "finish_time": 1000.0})
+    app = AppTest.from_function(_picker_page, args=(path,)).run(timeout=30)
+    assert not app.exception
+    picker = app.selectbox(key="review_pick_plan")
+    assert picker.options == ["Hill TT · 0:16:40"]  # only plans with their course
+    picker.set_value("Hill TT · 0:16:40").run(timeout=30)
+    app.button(key="review_show_plan").click().run(timeout=30)
+    assert not app.exception
+    assert app.session_state["library:course"]["plan_id"] == plan.id
+    assert app.session_state["si:body_mass"] == 61.0
+    assert any("The page shows the saved plan 'Hill TT'" in c.value for c in app.caption)
+
+
+def test_a_page_plan_saved_before_the_race_is_given_the_review_not_saved_again(tmp_path):
+    from streamlit.testing.v1 import AppTest
+
+    from pacing.store.library import open_library
+    from ui.library_data import save_current_plan
+
+    path = str(tmp_path / "library.sqlite3")
+    page_plan = _page_plan()
+    with open_library(path) as library:
+        before = save_current_plan(library, "Hill TT plan", "", page_plan["inputs"],
+                                   page_plan["result"])
+    app = AppTest.from_function(_panel_page, args=(path,))
+    app.session_state["library:page_plan"] = page_plan
+    app.run(timeout=30)
+    assert not app.exception
+    assert any("saved in the library as 'Hill TT plan'" in c.value for c in app.caption)
+    assert not [b for b in app.button if b.key == "review_save_plan"]
+    app.button(key="review_keep_review").click().run(timeout=30)
+    assert not app.exception
+    with open_library(path) as library:
+        assert [p.id for p in library.plans()] == [before.id]
+        assert len(library.plan_reviews(before.id)) == 1

@@ -24,7 +24,13 @@ SETUP_KEYS = ("bike_mass", "drag_area", "power_share", "rolling_coefficient",
 
 LIBRARY_COURSE = "library:course"
 """Session key of the course file the page shows instead of its demo or upload after "Show
-in the page": {"gpx": bytes, "name": str, "plan": the saved plan's name}."""
+in the page": {"gpx": bytes, "name": str, "plan": the saved plan's name, "plan_id": its id}."""
+
+PAGE_PLAN = "library:page_plan"
+"""Session key of the page's plan as the library would save it, left by the library panel
+(ui.library_panel.render_library_for_page) in every run it is drawn: {"inputs":
+page_plan_inputs(...), "result": plan_result(...)}; absent when the page has no plan. The
+race review (ui.review_panel) saves it together with a review."""
 
 
 def error_message(error: Exception) -> str:
@@ -253,6 +259,15 @@ def save_current_plan(library, name: str, notes: str, current_inputs: Mapping[st
     pacing.store.records.PlanRecord
         The saved plan.
     """
+    inputs = _library_inputs(library, current_inputs, athlete_id, setup_id)
+    return library.save_plan(name, inputs, dict(current_result), notes=notes,
+                             on_existing=on_existing)
+
+
+def _library_inputs(library, current_inputs: Mapping[str, Any], athlete_id: int | None,
+                    setup_id: int | None) -> dict:
+    """The page's plan inputs as the library keeps them: the course file stored once
+    (store_course) and named by ``course_id``, the athlete and setup linked."""
     inputs = {k: v for k, v in current_inputs.items() if k != "course_gpx"}
     gpx = current_inputs.get("course_gpx")
     if gpx:
@@ -264,8 +279,78 @@ def save_current_plan(library, name: str, notes: str, current_inputs: Mapping[st
         inputs["athlete_id"] = int(athlete_id)
     if setup_id is not None:
         inputs["setup_id"] = int(setup_id)
-    return library.save_plan(name, inputs, dict(current_result), notes=notes,
-                             on_existing=on_existing)
+    return inputs
+
+
+PLAN_DEFINING_KEYS = ("course_name", "course_distance", "course_ascent", "smoothing", "bounds",
+                      "athlete", "weather", "approach", "split")
+"""Keys of the page's plan inputs that make the plan (the course file, named by its id once
+stored, and the library links are left out)."""
+
+
+def same_page_plan(saved_inputs: Mapping[str, Any], page_inputs: Mapping[str, Any]) -> bool:
+    """Whether a saved plan's inputs are the page's plan inputs (PLAN_DEFINING_KEYS equal as
+    JSON): the page's plan was saved before (e.g. before the race) and not reopened since.
+
+    Parameters
+    ----------
+    saved_inputs : Mapping
+        A saved plan's inputs (as save_current_plan stored them).
+    page_inputs : Mapping
+        The page's plan inputs (page_plan_inputs).
+
+    Returns
+    -------
+    bool
+    """
+    import json
+
+    def defining(inputs: Mapping[str, Any]) -> str:
+        return json.dumps({k: inputs.get(k) for k in PLAN_DEFINING_KEYS}, sort_keys=True,
+                          default=str)
+
+    return defining(saved_inputs) == defining(page_inputs)
+
+
+def save_current_plan_with_review(library, name: str, current_inputs: Mapping[str, Any],
+                                  current_result: Mapping[str, Any],
+                                  review: Mapping[str, Any], ride_name: str,
+                                  ride_sha256: str, athlete_id: int | None = None,
+                                  setup_id: int | None = None, on_existing: str = "refuse"):
+    """Save the page's plan and keep a race review with it in one step (the race review of a
+    plan made on the page): the course file stored once (store_course), then the plan and
+    the review in one transaction (Library.save_plan_with_review), never replacing a saved
+    plan.
+
+    Parameters
+    ----------
+    library : pacing.store.library.Library
+        The open library.
+    name : str
+        The plan's label.
+    current_inputs, current_result : Mapping
+        The page's plan inputs and result (PAGE_PLAN: page_plan_inputs, plan_result).
+    review : Mapping
+        The review as JSON (ui.review_panel.review_json: what ``pacing review --json``
+        prints).
+    ride_name : str
+        The race file's name.
+    ride_sha256 : str
+        SHA-256 of the race file.
+    athlete_id, setup_id : int or None
+        Library ids to file the plan under, or None.
+    on_existing : str
+        "refuse" (pacing.store.statements.NameTaken) or "keep-both" [-].
+
+    Returns
+    -------
+    tuple of (PlanRecord, PlanReviewRecord)
+        The saved plan and the review kept with it.
+    """
+    inputs = _library_inputs(library, current_inputs, athlete_id, setup_id)
+    return library.save_plan_with_review(name, inputs, dict(current_result), review,
+                                         ride_name=ride_name, ride_sha256=ride_sha256,
+                                         on_existing=on_existing)
 
 
 # ------------------------------------------------------------------------ page values

@@ -5,7 +5,10 @@ and the whole library as a JSON file to take away or bring in.
 All storage goes through pacing.store (SQLAlchemy; SQLite file by default, any URL through
 PACING_DATABASE_URL). Pure helpers build the plan inputs and results (ui.library_data), the
 page's widget states of a saved plan (ui.library_page_state) and the tables
-(ui.library_tables); `render_library` draws the panel with Streamlit.
+(ui.library_tables); the "Backup" tab is ui.library_backup, a saved plan's race reviews
+ui.library_reviews; `render_library` draws the panel with Streamlit.
+`render_library_for_page` also leaves the page's plan (its inputs and result) in the session
+(ui.library_data.PAGE_PLAN) for the race review, which can save it together with a review.
 
 Plan inputs saved by this panel (`page_plan_inputs`, all SI)::
 
@@ -21,8 +24,6 @@ the plan names it by ``course_id``; `recompute_plan` reads it back to work the p
 
 from __future__ import annotations
 
-import functools
-import hashlib
 from collections.abc import Callable, Mapping
 from typing import Any
 
@@ -34,6 +35,7 @@ from pacing.errors import ConflictError, InputError
 from pacing.store.statements import NameTaken
 from ui.library_data import (
     LIBRARY_COURSE,
+    PAGE_PLAN,
     athlete_from_page,
     error_message,
     library_compute,
@@ -256,7 +258,9 @@ def render_library(current_inputs: dict | None, current_result: dict | None, sys
     with tabs[2]:
         chosen = _plans_tab(library, system, compute or library_compute(library)) or chosen
     with tabs[3]:
-        _backup_tab(library)
+        from ui.library_backup import render_backup
+
+        render_backup(st, library)
     return chosen
 
 
@@ -429,7 +433,8 @@ def _plans_tab(library, system: str, compute) -> dict | None:
         st.caption("No saved plans yet.")
         return None
     names = {a.id: a.athlete.name for a in library.athletes()}
-    st.dataframe(plans_table(plans, names), hide_index=True, key="library_plans")
+    st.dataframe(plans_table(plans, names, library.review_counts()), hide_index=True,
+                 key="library_plans")
     labels = {f"{p.name} · {format_duration(p.finish_time)}"
               + (f" · {names[p.athlete_id]}" if p.athlete_id in names else ""): p
               for p in plans}
@@ -464,12 +469,9 @@ def _plan_details(library, record, system: str) -> None:
     if record.summary.notes:
         st.caption(f"notes: {record.summary.notes}")
     st.caption(version_caption(record.summary))
-    from ui.library_tables import reviews_frame
+    from ui.library_reviews import render_plan_reviews
 
-    reviews = library.plan_reviews(record.id)
-    if reviews:
-        st.markdown(f"**Race reviews kept with this plan** ({len(reviews)})")
-        st.dataframe(reviews_frame(reviews), hide_index=True, key="library_plan_reviews")
+    render_plan_reviews(st, library, record.id)
     try:
         st.dataframe(targets_frame(record.targets, system), hide_index=True,
                      key="library_plan_targets")
@@ -507,58 +509,6 @@ def _delete_plan(library, record) -> None:
             _report(lambda: library.delete_plan(record.id, confirm=True,
                                                 revision=record.revision),
                     f"Deleted {record.name!r}.")
-
-
-def _backup_tab(library) -> None:
-    """The "Backup" tab: download the library file, or bring one in (all or nothing)."""
-    from pacing.store.library_export import dump_library_file
-    from pacing.store.library_file import check_file_size
-    from pacing.store.library_import import import_library
-
-    st.download_button("Download the library (JSON)",
-                       functools.partial(dump_library_file, library),
-                       file_name="pacing-library.json", mime="application/json",
-                       key="library_export", on_click="ignore")
-    upload = st.file_uploader("Add a library file (JSON)", type=["json"],
-                              key="library_import_file")
-    if upload is None:
-        return
-    try:
-        check_file_size(upload.size)
-    except InputError as error:
-        st.error(f"The file was refused, nothing changed: {error_message(error)}", icon="⚠️")
-        return
-    data = upload.getvalue()
-    digest = hashlib.sha256(data).hexdigest()
-    if st.session_state.get("library:imported") == digest:
-        st.caption("This file has been brought in.")
-        return
-    pressed = st.button("Add the file's athletes, setups and plans", key="library_import")
-    on_existing = "refuse"
-    if st.session_state.get("library:import_asking") == digest:
-        st.warning("Some names of the file are already in the library. Add the file keeping "
-                   "both (the file's entries get a number, e.g. \"Ann (2)\")?")
-        if st.button("Add them, keeping both", key="library_import_keep_both"):
-            pressed, on_existing = True, "keep-both"
-    if pressed:
-        try:
-            summary = import_library(library, data, on_existing=on_existing)
-        except NameTaken:
-            st.session_state["library:import_asking"] = digest
-            st.rerun()
-        except (InputError, ConflictError) as error:
-            st.error(f"The file was refused, nothing changed: {error_message(error)}",
-                     icon="⚠️")
-            return
-        except (UnicodeDecodeError, ValueError) as error:
-            st.error(f"The file was refused, nothing changed: {error_message(error)}",
-                     icon="⚠️")
-            return
-        st.session_state["library:imported"] = digest
-        st.session_state.pop("library:import_asking", None)
-        st.session_state["library:message"] = summary.message().capitalize() + "."
-        st.rerun()
-
 
 
 def render_library_for_page(course_gpx: bytes | None, course_name: str | None, course, bounds,
@@ -611,4 +561,8 @@ def render_library_for_page(course_gpx: bytes | None, course_name: str | None, c
                                   split)
     result = None if outcome is None or inputs is None else plan_result(outcome, weather,
                                                                          approach)
+    if result is None:
+        st.session_state.pop(PAGE_PLAN, None)
+    else:
+        st.session_state[PAGE_PLAN] = {"inputs": inputs, "result": result}
     return render_library(inputs, result, system, location=location)

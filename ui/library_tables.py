@@ -27,7 +27,8 @@ def strategy_label(strategy: str, sport: str | None) -> str:
     return next((label for label, key in choices.items() if key == strategy), strategy)
 
 
-def plans_table(plans, athlete_names: Mapping[int, str] | None = None) -> pd.DataFrame:
+def plans_table(plans, athlete_names: Mapping[int, str] | None = None,
+                review_counts: Mapping[int, int] | None = None) -> pd.DataFrame:
     """Saved plans as a table, in the order given (the library lists newest first).
 
     Parameters
@@ -36,15 +37,18 @@ def plans_table(plans, athlete_names: Mapping[int, str] | None = None) -> pd.Dat
         The saved plans.
     athlete_names : Mapping or None
         Athlete id → name, for the athlete column ("–" for a plan filed under nobody).
+    review_counts : Mapping or None
+        Plan id → how many race reviews it keeps (Library.review_counts); None leaves the
+        column out.
 
     Returns
     -------
     pandas.DataFrame
-        Plan, athlete, finish [h:mm:ss], time gained on even power [s], when saved (UTC),
-        the version of pacing that made it, notes.
+        Plan, athlete, finish [h:mm:ss], time gained on even power [s], race reviews (with
+        `review_counts`), when saved (UTC), the version of pacing that made it, notes.
     """
     names = athlete_names or {}
-    return pd.DataFrame({
+    table = pd.DataFrame({
         "Plan": [p.name for p in plans],
         "Athlete": [names.get(p.athlete_id, "–") if p.athlete_id is not None else "–"
                     for p in plans],
@@ -56,6 +60,9 @@ def plans_table(plans, athlete_names: Mapping[int, str] | None = None) -> pd.Dat
         "Notes": [p.notes for p in plans],
     }, columns=["Plan", "Athlete", "Finish [h:mm:ss]", "Gained on even power [s]", "Saved",
                 "Made with pacing", "Notes"])
+    if review_counts is not None:
+        table.insert(4, "Race reviews", [int(review_counts.get(p.id, 0)) for p in plans])
+    return table
 
 
 def version_caption(summary) -> str:

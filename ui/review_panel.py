@@ -8,8 +8,12 @@ pacing.io.rides.read_race. Pure helpers build the tables and plotly figures (`ga
 day's CdA to keep (`day_drag_area`); `render` draws the panel. The CdA on the day can be kept
 on a setup of the library with its 95 % interval and the race it came from (Library.update_setup
 with a DragAreaOrigin) when the library panel has an athlete chosen, and then put in the page's
-CdA box to plan the next race (ui.library_panel.fill_page_inputs). The review can be kept with
-the saved plan the page shows when it was opened from the library (Library.add_plan_review).
+CdA box to plan the next race (ui.library_panel.fill_page_inputs). The review is kept with its
+plan in the library: with the saved plan the page shows when it was opened from the library
+and the page still plans as it did (Library.add_plan_review); otherwise with the page's own
+plan, saved together with the review in one step (one transaction, never replacing a saved
+plan: ui.library_data.save_current_plan_with_review). A race file's review already kept with
+a plan of the same finish time is named instead of offered again (`kept_with`).
 """
 
 from __future__ import annotations
@@ -256,27 +260,198 @@ def _keep_cda(review: Any, ride_name: str) -> None:
                   help="puts the day's CdA in the page's CdA box (my own value)")
 
 
+def kept_with(reviews: Any, digest: str, planned_time: float, finish_times: dict[int, float]
+              ) -> Any:
+    """The review of this race file already kept with a saved plan of this finish time, or
+    None (so a second click keeps no copy).
+
+    Parameters
+    ----------
+    reviews : sequence of pacing.store.records.PlanReviewRecord
+        The kept reviews (Library.plan_reviews()).
+    digest : str
+        SHA-256 of the race file.
+    planned_time : float
+        The reviewed plan's finish time [s].
+    finish_times : dict
+        Saved plan id → its finish time [s].
+
+    Returns
+    -------
+    pacing.store.records.PlanReviewRecord or None
+    """
+    from pacing.store.library_reviews import same_plan_time
+
+    return next((r for r in reviews if r.ride_sha256 == digest and r.plan_id in finish_times
+                 and same_plan_time(finish_times[r.plan_id], planned_time)), None)
+
+
 def _keep_review(review: Any, ride_name: str, digest: str) -> None:
-    """Offer to keep the review with the saved plan the page shows (opened from the
-    library)."""
+    """Offer to keep the review with its plan in the library: the saved plan the page shows
+    (opened from the library) when the page still plans as it did, else the page's plan saved
+    together with the review in one step."""
+    from pacing.store.library_reviews import same_plan_time
     from ui.library_data import LIBRARY_COURSE
 
-    shown = st.session_state.get(LIBRARY_COURSE) or {}
+    message = st.session_state.pop("review:message", None)
+    if message:
+        st.success(message)
     library = _library_or_none()
-    if library is None or shown.get("plan_id") is None:
-        st.caption("Show a saved plan of the library in the page (Library → Saved plans → "
-                   "Show in the page) to keep this review with it.")
+    if library is None:
+        st.caption("Open the coach's library to keep this review with its plan (a saved plan "
+                   "shown in the page, or the page's plan saved with it).")
         return
-    if st.button(f"Keep this review with the saved plan {shown.get('plan')!r}",
+    plans = {p.id: p for p in library.plans()}
+    kept = kept_with(library.plan_reviews(), digest, review.planned_time,
+                     {i: p.finish_time for i, p in plans.items()})
+    if kept is not None:
+        st.caption(f"This race's review is kept with the saved plan "
+                   f"{plans[kept.plan_id].name!r} (race review {kept.id}).")
+        return
+    shown = st.session_state.get(LIBRARY_COURSE) or {}
+    saved = plans.get(shown.get("plan_id"))
+    if saved is not None and same_plan_time(saved.finish_time, review.planned_time):
+        _keep_with_saved_plan(library, review, ride_name, digest, saved)
+        return
+    if saved is not None:
+        st.caption(f"The page no longer plans as the saved plan {saved.name!r} did (finish "
+                   f"{_clock(saved.finish_time)}, now {_clock(review.planned_time)}): the "
+                   "review is of the page's plan.")
+    saved = _saved_page_plan(library, plans, review.planned_time)
+    if saved is not None:
+        st.caption(f"The page's plan is saved in the library as {saved.name!r}.")
+        _keep_with_saved_plan(library, review, ride_name, digest, saved)
+        return
+    _save_plan_with_review(library, review, ride_name, digest)
+
+
+def _saved_page_plan(library: Any, plans: dict[int, Any], planned_time: float) -> Any:
+    """The newest saved plan whose inputs are the page's plan (ui.library_data.PAGE_PLAN),
+    e.g. saved before the race without being reopened since; None when there is none."""
+    from pacing.store.library_reviews import same_plan_time
+    from ui.library_data import PAGE_PLAN, same_page_plan
+
+    page_plan = st.session_state.get(PAGE_PLAN)
+    if not page_plan:
+        return None
+    for summary in plans.values():  # newest first
+        if not same_plan_time(summary.finish_time, planned_time):
+            continue
+        try:
+            if same_page_plan(library.plan(summary.id).inputs, page_plan["inputs"]):
+                return summary
+        except (InputError, ConflictError):
+            continue
+    return None
+
+
+def _keep_with_saved_plan(library: Any, review: Any, ride_name: str, digest: str,
+                          saved: Any) -> None:
+    """"Keep this review with the saved plan …" (the plan the page shows)."""
+    if st.button(f"Keep this review with the saved plan {saved.name!r}",
                  key="review_keep_review"):
         try:
-            kept = library.add_plan_review(int(shown["plan_id"]), review_json(review),
+            kept = library.add_plan_review(saved.id, review_json(review),
                                            ride_name=ride_name, ride_sha256=digest)
         except (InputError, ConflictError) as error:
             st.error(first_line(error), icon="⚠️")
             return
-        st.success(f"Kept the review of {ride_name} with the saved plan {shown.get('plan')!r} "
-                   f"(race review {kept.id}).")
+        st.session_state["review:message"] = (
+            f"Kept the review of {ride_name} with the saved plan {saved.name!r} "
+            f"(race review {kept.id}).")
+        st.rerun()
+
+
+def _save_plan_with_review(library: Any, review: Any, ride_name: str, digest: str) -> None:
+    """"Save the page's plan with this review": the plan the page made (left by the library
+    panel, ui.library_data.PAGE_PLAN) and the review in one transaction; a name already
+    stored is asked about (keep both or cancel: a saved plan is never replaced)."""
+    from pacing.store.library_reviews import same_plan_time
+    from pacing.store.statements import NameTaken
+    from ui.library_data import PAGE_PLAN, save_current_plan_with_review
+
+    page_plan = st.session_state.get(PAGE_PLAN)
+    if not page_plan or not same_plan_time(page_plan["result"]["finish_time"],
+                                           review.planned_time):
+        st.caption("Show a saved plan of the library in the page (Library → Saved plans → "
+                   "Show in the page), or open the library with the page's plan, to keep "
+                   "this review with it.")
+        return
+    name = st.text_input("Save the plan as", value=ride_name.rsplit(".", 1)[0][:200],
+                         key=f"review_plan_name:{digest[:16]}",
+                         help="the page's plan is saved in the library with this review")
+    owner = st.session_state.get("library:athlete_id")
+    filed = owner is not None and st.checkbox(
+        f"File it under {st.session_state.get('library:filed_under') or 'the chosen athlete'}",
+        value=True, key="review_plan_link")
+    pressed = st.button("Save the page's plan with this review", key="review_save_plan",
+                        type="primary")
+    asking = st.session_state.get("review:asking") == name
+    if asking:
+        st.warning(f"A saved plan {name!r} is already in the library. Keep both (this one "
+                   "gets a number) or cancel?")
+        cols = st.columns(2)
+        if cols[1].button("Cancel", key="review_save_plan_cancel"):
+            st.session_state.pop("review:asking", None)
+            st.rerun()
+        if not cols[0].button("Keep both", key="review_save_plan_keep_both"):
+            return
+    elif not pressed:
+        return
+    try:
+        plan, kept = save_current_plan_with_review(
+            library, name, page_plan["inputs"], page_plan["result"], review_json(review),
+            ride_name, digest, owner if filed else None,
+            st.session_state.get("library:setup_id") if filed else None,
+            "keep-both" if asking else "refuse")
+    except NameTaken:
+        st.session_state["review:asking"] = name
+        st.rerun()
+    except (InputError, ConflictError) as error:
+        st.error(first_line(error), icon="⚠️")
+        return
+    st.session_state.pop("review:asking", None)
+    st.session_state["review:message"] = (
+        f"Saved the plan {plan.name!r} with the review of {ride_name} (race review "
+        f"{kept.id}).")
+    st.rerun()
+
+
+def _pick_saved_plan() -> None:
+    """"Review a saved plan instead": a saved plan of the open library shown in the page (the
+    library's own "Show in the page", ui.library_panel.open_plan_in_page), so the page's plan,
+    the plan reviewed, becomes it."""
+    from ui.library_data import LIBRARY_COURSE
+
+    library = _library_or_none()
+    if library is None:
+        return
+    shown = st.session_state.get(LIBRARY_COURSE) or {}
+    if shown.get("plan"):
+        st.caption(f"The page shows the saved plan {shown['plan']!r} of the library.")
+    try:
+        plans = [p for p in library.plans() if p.course_id is not None]
+    except (InputError, ConflictError):
+        return
+    if not plans:
+        return
+    labels = {f"{p.name} · {_clock(p.finish_time)}": p for p in plans}
+    cols = st.columns([3, 1], vertical_alignment="bottom")
+    label = cols[0].selectbox("Review a saved plan instead", list(labels), index=None,
+                              placeholder="the page's plan", key="review_pick_plan",
+                              help="the saved plan is shown in the page, as the library's "
+                                   "\"Show in the page\" does")
+    if label is None:
+        return
+    from ui.library_panel import open_plan_in_page
+
+    try:
+        record = library.plan(labels[label].id)
+    except (InputError, ConflictError) as error:
+        st.error(first_line(error), icon="⚠️")
+        return
+    cols[1].button("Show it in the page", key="review_show_plan", on_click=open_plan_in_page,
+                   args=(library, record.inputs, record.name, record.id))
 
 
 def _show(review: Any, system: str) -> None:
@@ -302,10 +477,15 @@ def _show(review: Any, system: str) -> None:
     for notice in review.notices:
         if notice.level != "warning":
             st.caption(describe(notice, system))
-    from pacing.io.review_file import review_to_csv
+    from pacing.io.review_file import review_to_csv, review_to_xlsx
 
-    st.download_button("Download the review table (CSV)", review_to_csv(review, system),
-                       file_name="race_review.csv", mime="text/csv", key="review_csv")
+    cols = st.columns(2)
+    cols[0].download_button("Download the review table (CSV)", review_to_csv(review, system),
+                            file_name="race_review.csv", mime="text/csv", key="review_csv")
+    cols[1].download_button(
+        "Download the review table (Excel)", review_to_xlsx(review, system),
+        file_name="race_review.xlsx", key="review_xlsx",
+        mime="application/vnd.openxmlformats-officedocument.spreadsheetml.sheet")
     st.caption(CAUTION)
 
 
@@ -334,6 +514,7 @@ def render(course: Any, bounds: Any, athlete: dict, weather: dict, approach: dic
     st.caption("Upload the ride of the race (CSV with time_s, power_w and speed_mps or "
                "distance_m, latitude and longitude when recorded; or GPX with power in the "
                "track-point extensions). The page's plan is the plan reviewed.")
+    _pick_saved_plan()
     upload = st.file_uploader("Race file", type=["csv", "gpx"], key="review_file")
     fit = st.checkbox("Fit the drag area (and the wind) on the day", value=True,
                       key="review_fit")

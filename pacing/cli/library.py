@@ -7,8 +7,9 @@
 
 The library is the SQLite file in the user's data directory unless --database or the
 environment variable PACING_DATABASE_URL names another (a file path or an SQLAlchemy URL).
-Values are shown in SI units, times as H:MM:SS. Saved plans show the version of pacing that
-made them, with the race reviews kept with them (``show review ID`` prints one as JSON); setups
+Values are shown in SI units, times as H:MM:SS. ``list`` counts each saved plan's race reviews
+and lists every review with its id. Saved plans show the version of pacing that made them, with
+the race reviews kept with them (``show review ID`` prints one as JSON); setups
 show where their CdA came from (its 95 % interval and the race review) when it was measured.
 """
 
@@ -51,7 +52,8 @@ def add_parser(subparsers: argparse._SubParsersAction) -> None:
                              "$PACING_DATABASE_URL, else library.sqlite3 in the user's data "
                              "folder)")
     actions = parser.add_subparsers(dest="action", required=True, metavar="ACTION")
-    actions.add_parser("list", help="list athletes, setups, courses and saved plans")
+    actions.add_parser("list", help="list athletes, setups, courses, saved plans and the race "
+                                    "reviews kept with them")
     show = actions.add_parser("show", help="show one entry")
     show.add_argument("kind", choices=KINDS)
     show.add_argument("id", type=int)
@@ -164,7 +166,13 @@ def _section(title: str, headers: list[str], rows: list[list[str]]) -> None:
 
 
 def _list(library: Library, _args: argparse.Namespace) -> int:
-    """``library list``: every athlete, setup, course and saved plan, one table each."""
+    """``library list``: every athlete, setup, course and saved plan, one table each, then
+    every race review kept with a plan.
+
+    A saved plan's row counts its reviews (which plans were raced, at a glance); the race
+    reviews follow in a table of their own, plan by plan, with their ids for ``show review``
+    and the numbers a coach looks for first (planned, ridden, the difference, the CdA on the
+    day), so a race is found by its plan or its file without opening every plan."""
     athletes = library.athletes()
     names = {record.id: record.athlete.name for record in athletes}
     courses = library.courses()
@@ -181,13 +189,22 @@ def _list(library: Library, _args: argparse.Namespace) -> int:
     _section("courses", ["id", "name", "distance [m]", "ascent [m]", "GPX [bytes]"],
              [[str(c.id), c.name, number(c.distance_m, 0), number(c.ascent_m, 0),
                str(c.gpx_size)] for c in courses])
+    plans = library.plans()
+    counts = library.review_counts()
     _section("saved plans", ["id", "name", "athlete", "course", "finish", "saved [s]",
-                             "updated (UTC)", "made by pacing"],
+                             "race reviews", "updated (UTC)", "made by pacing"],
              [[str(p.id), p.name, names.get(p.athlete_id, "-") if p.athlete_id else "-",
                course_names.get(p.course_id, "-") if p.course_id else "-",
-               clock(p.finish_time), number(p.time_saved),
+               clock(p.finish_time), number(p.time_saved), str(counts.get(p.id, 0)),
                p.updated_at.strftime("%Y-%m-%d %H:%M"), p.library_version]
-              for p in library.plans()])
+              for p in plans])
+    plan_names = {p.id: p.name for p in plans}
+    rows = []
+    for record in library.plan_reviews():
+        review_id, *rest = _review_row(record)
+        rows.append([review_id, f"{record.plan_id} {plan_names.get(record.plan_id, '')}"
+                     .rstrip(), *rest])
+    _section("race reviews", ["id", "saved plan", *REVIEW_HEADERS[1:]], rows)
     return 0
 
 
@@ -281,11 +298,12 @@ def _show_saved_plan(library: Library, args: argparse.Namespace) -> None:
     """A saved plan (see _show_plan) and the race reviews kept with it."""
     _show_plan(library.plan(args.id))
     reviews = library.plan_reviews(args.id)
-    print(f"\nrace reviews ({len(reviews)})")
-    if reviews:
-        print(table(["id", "race file", "SHA-256", "kept (UTC)", "planned", "ridden",
-                     "ridden − planned [s]", "CdA on the day [m²]"],
-                    [_review_row(r) for r in reviews]))
+    _section("race reviews", REVIEW_HEADERS, [_review_row(r) for r in reviews])
+
+
+#: Columns of a table of kept race reviews (_review_row).
+REVIEW_HEADERS = ["id", "race file", "SHA-256", "kept (UTC)", "planned", "ridden",
+                  "ridden − planned [s]", "CdA on the day [m²]"]
 
 
 def _review_row(record: Any) -> list[str]:
@@ -392,7 +410,7 @@ def _import(library: Library, args: argparse.Namespace) -> int:
 
     The size is checked before the file is read whole (FILE_SIZE_LIMIT), so a file too large
     is refused at once with little memory."""
-    from pacing.store.library_file import FILE_SIZE_LIMIT, check_file_size
+    from pacing.store.library_file_json import FILE_SIZE_LIMIT, check_file_size
     from pacing.store.library_import import import_library
     from pacing.store.statements import NameTaken
 

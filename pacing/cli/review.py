@@ -9,7 +9,7 @@ the wind on the day, compares segment by segment and splits the time difference 
 Output: a table (segments, the split, the fitted drag area; warnings on stderr, notes under
 it), or with --json the numbers: planned_time_s, actual_time_s, segments, attribution, fitted,
 warnings (every notice: code, level, values, text), and alignment, day_conditions,
-attribution_detail. --csv FILE writes the review table (pacing.io.review_file).
+attribution_detail. --csv FILE and --xlsx FILE write the review table (pacing.io.review_file).
 --save-to-plan ID keeps that JSON, with the race file's name and SHA-256, with a saved plan of
 the library (pacing.store.library_reviews; see ``pacing library show plan ID``);
 --keep-cda-on-setup ID stores the CdA on the day on a setup of the library, with its interval
@@ -66,6 +66,8 @@ def add_parser(subparsers: argparse._SubParsersAction) -> None:
                      help="bootstrap draws of the fit's intervals (default 200; 0: none)")
     parser.add_argument("--csv", default=None, metavar="FILE",
                         help="also write the review table as CSV")
+    parser.add_argument("--xlsx", default=None, metavar="FILE",
+                        help="also write the review table as an Excel workbook")
     keep = parser.add_argument_group("the library", "keep the review with the saved plan")
     keep.add_argument("--save-to-plan", type=int, default=None, metavar="ID",
                       help="keep the review (its JSON, the race file's name and SHA-256) with "
@@ -196,7 +198,9 @@ def review_from_args(args: argparse.Namespace) -> RaceReview:
 
 
 def keep_with_plan(review: RaceReview, args: argparse.Namespace) -> str:
-    """Keep the review (review_as_dict) with the saved plan --save-to-plan of the library.
+    """Keep the review (review_as_dict) with the saved plan --save-to-plan of the library, when
+    that plan is the one reviewed: its finish time the planned time of these flags (within
+    pacing.store.library_reviews.SAME_PLAN_TOLERANCE; InputError otherwise).
 
     Parameters
     ----------
@@ -211,13 +215,21 @@ def keep_with_plan(review: RaceReview, args: argparse.Namespace) -> str:
     """
     from pathlib import Path
 
+    from pacing.display.units import format_duration
     from pacing.errors import ConflictError
     from pacing.store.library import open_library
-    from pacing.store.library_reviews import ride_digest
+    from pacing.store.library_reviews import ride_digest, same_plan_time
 
     ride = Path(args.ride)
     try:
         with open_library(args.database) as library:
+            saved = library.plan(args.save_to_plan).summary
+            if not same_plan_time(saved.finish_time, review.planned_time):
+                raise InputError(
+                    f"saved plan {saved.id} ({saved.name!r}) finishes in "
+                    f"{format_duration(saved.finish_time)}, the plan of these flags in "
+                    f"{format_duration(review.planned_time)}: give the flags the saved plan "
+                    "was made with, so the review kept with it is a review of it")
             kept = library.add_plan_review(args.save_to_plan, review_as_dict(review),
                                            ride_name=ride.name,
                                            ride_sha256=ride_digest(ride.read_bytes()))
@@ -296,6 +308,10 @@ def run(args: argparse.Namespace) -> int:
         from pacing.io.review_file import write_review_csv
 
         write_review_csv(review, args.csv)
+    if args.xlsx:
+        from pacing.io.review_file import write_review_xlsx
+
+        write_review_xlsx(review, args.xlsx)
     if args.json:
         json.dump(review_as_dict(review), sys.stdout, indent=2, allow_nan=False)
         print()

@@ -1,9 +1,10 @@
-"""The race review's table as a file: segment by segment, planned against ridden (CSV).
+"""The race review's table as a file: segment by segment, planned against ridden (CSV, XLSX).
 
 `review_table` gives the table with a unit on every column in the chosen unit system;
 `review_to_csv` writes it as UTF-8 CSV with the review's notices and the time split as comment
-lines first ("# …", read back with ``pandas.read_csv(..., comment="#")``). Missing values are
-empty cells, never NaN text.
+lines first ("# …", read back with ``pandas.read_csv(..., comment="#")``); `review_to_xlsx`
+as an Excel workbook, the table on its first sheet and the notices and the split on a second
+(pacing.io.exports.table_to_xlsx). Missing values are empty cells, never NaN text.
 """
 
 from __future__ import annotations
@@ -17,7 +18,7 @@ import pandas as pd
 from pacing.display.notices import labelled
 from pacing.display.units import format_duration, to_display, unit_label
 from pacing.errors import InputError
-from pacing.io.exports import table_to_csv
+from pacing.io.exports import table_to_csv, table_to_xlsx
 from pacing.review.race import RaceReview
 
 
@@ -109,11 +110,42 @@ def review_to_csv(review: RaceReview, system: str = "metric",
     return table_to_csv(review_table(review, system), notices)
 
 
+def review_to_xlsx(review: RaceReview, system: str = "metric") -> bytes:
+    """The review table as an Excel workbook: the table on the sheet "race review" (header
+    frozen), the notices in words and the time split on the sheet "warnings and notes".
+
+    Parameters
+    ----------
+    review : pacing.review.race.RaceReview
+        The review.
+    system : {"metric", "imperial"}
+        Unit system of the table and of the notices' words.
+
+    Returns
+    -------
+    bytes
+        The .xlsx file.
+    """
+    notices = [*(labelled(n, system) for n in review.notices), *split_lines(review)]
+    return table_to_xlsx(review_table(review, system), sheet_name="race review",
+                         title="race review", notices=notices)
+
+
 def write_review_csv(review: RaceReview, path: str | Path, system: str = "metric") -> Path:
     """Write `review_to_csv` to a file (replaced if it exists) and return its path."""
+    return _write(review_to_csv(review, system), path)
+
+
+def write_review_xlsx(review: RaceReview, path: str | Path, system: str = "metric") -> Path:
+    """Write `review_to_xlsx` to a file (replaced if it exists) and return its path."""
+    return _write(review_to_xlsx(review, system), path)
+
+
+def _write(data: bytes, path: str | Path) -> Path:
+    """Write `data` to `path` (InputError in one line when it cannot)."""
     target = Path(path)
     try:
-        target.write_bytes(review_to_csv(review, system))
+        target.write_bytes(data)
     except OSError as error:
         raise InputError(f"cannot write {target}: {error.strerror or error}") from None
     return target

@@ -8,9 +8,10 @@ open_library(location=None) -> Library     location: path or URL, else $PACING_D
                                            created and migrated (Alembic) on open
 Library: add_/update_/delete_athlete, add_/update_/delete_setup, add_course, rename_course,
     find_courses, delete_course, save_plan, update_plan, delete_plan, add_plan_review,
-    delete_plan_review; athlete(id),
+    save_plan_with_review (both in one transaction), delete_plan_review; athlete(id),
     athletes(), setup(id), setups(athlete_id=None), course(id), courses(), plan(id),
-    plans(athlete_id=None, course_id=None), plan_review(id), plan_reviews(plan_id). Setups
+    plans(athlete_id=None, course_id=None), plan_review(id), plan_reviews(plan_id=None),
+    review_counts(). Setups
     take ``drag_area_origin=`` (DragAreaOrigin: the drag area's interval and source, e.g. a
     race review; pacing.store.drag_origin). Changes take ``revision=`` (ConflictError when
     stale); deletes take ``confirm=True``; adds and saves take ``on_existing=`` ("refuse",

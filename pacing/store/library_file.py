@@ -48,12 +48,12 @@ Ids are those of the exporting library; the plans' link keys (``athlete_id``, ``
 ``course_id`` in their inputs) refer to them. Import gives every entry a new id and rewrites
 those links. Units: SI as everywhere in pacing (kg, W, J, m, s/km for flat pace, m/s, m², s).
 
-Import reads and checks the whole file first (its size, at most FILE_SIZE_LIMIT, and nesting,
-at most DEPTH_LIMIT; structure, numbers and their physical ranges, times within TIME_RANGE,
-names, the GPX checksums, every link) and refuses a bad file with a one-line InputError naming the
-place; only then does it write everything in one transaction, so the database is either
-unchanged or holds the whole file. A course whose GPX file and name are already in the library
-is not stored twice.
+Import reads and checks the whole file first (its size, at most FILE_SIZE_LIMIT, nesting, at
+most DEPTH_LIMIT, and times within TIME_RANGE: pacing.store.library_file_json; structure,
+numbers and their physical ranges, names, the GPX checksums, every link) and refuses a bad
+file with a one-line InputError naming the place; only then does it write everything in one
+transaction, so the database is either unchanged or holds the whole file. A course whose GPX
+file and name are already in the library is not stored twice.
 """
 
 from __future__ import annotations
@@ -62,14 +62,23 @@ import base64
 import binascii
 import datetime
 import hashlib
-import json
-from collections.abc import Callable, Mapping
+from collections.abc import Mapping
 from dataclasses import dataclass
 from typing import TYPE_CHECKING, Any
 
 from pacing.athlete import Athlete, Setup
 from pacing.errors import InputError
 from pacing.store.drag_origin import origin_from_entry
+from pacing.store.library_file_json import (
+    build_entry,
+    checked_at,
+    entry_stamps,
+    file_time,
+    json_list,
+    json_object,
+    new_id,
+    parse_json_text,
+)
 from pacing.store.records import PLAN_LINK_KEYS, PLAN_RESULT_KEYS, DragAreaOrigin
 from pacing.store.rows import (
     ATHLETE_NUMBERS,
@@ -91,16 +100,6 @@ if TYPE_CHECKING:
 FORMAT_NAME = "pacing library"
 #: Version of the format this pacing writes; it reads this one and older.
 FORMAT_VERSION = 3
-#: Largest library file read [bytes] (as GPX files, pacing.io.safe_xml): checked before the
-#: file is read whole, so a larger one is refused at once with little memory.
-FILE_SIZE_LIMIT = 50 * 2**20
-#: Deepest nesting of JSON lists and objects read [-]: a library file needs about 7 (plans'
-#: inputs and targets hold small records); Python's own parser fails near 1000.
-DEPTH_LIMIT = 32
-#: Times a file may give, naive UTC: from 1970 to 9998 (year 1 or 9999 overflow once a time
-#: zone is applied).
-TIME_RANGE = (datetime.datetime(1970, 1, 1), datetime.datetime(9998, 12, 31))
-
 _STAMPS = ("created_at", "updated_at")
 _ATHLETE_KEYS = {"id", "name", *ATHLETE_NUMBERS, "setups", *_STAMPS}
 _SETUP_KEYS = {"id", "name", *SETUP_NUMBERS, "yaw_drag_table", "drag_area_origin", *_STAMPS}
@@ -264,152 +263,12 @@ class LibraryFile:
 
 
 # ---------------------------------------------------------------------------------------------
-# reading and checking: small checks
-
-
-def _object(value: Any, where: str, allowed: set[str], required: set[str]
-            ) -> Mapping[str, Any]:
-    """`value` as a JSON object with only `allowed` fields and every `required` one."""
-    if not isinstance(value, Mapping):
-        raise InputError(f"{where} must be a JSON object")
-    unknown = sorted(set(value) - allowed)
-    if unknown:
-        raise InputError(f"{where} has unknown fields {unknown}")
-    missing = sorted(required - set(value))
-    if missing:
-        raise InputError(f"{where} lacks fields {missing}")
-    return value
-
-
-def _list(value: Any, where: str) -> list[Any]:
-    """`value` as a JSON list."""
-    if not isinstance(value, list):
-        raise InputError(f"{where} must be a JSON list")
-    return value
-
-
-def _time(value: Any, where: str) -> datetime.datetime:
-    """An ISO 8601 time as the library stores it (naive UTC; no offset means UTC), within
-    TIME_RANGE."""
-    if not isinstance(value, str) or len(value) > 64:
-        raise InputError(f"{where} must be an ISO 8601 time")
-    try:
-        parsed = datetime.datetime.fromisoformat(value)
-        if parsed.tzinfo is None:
-            parsed = parsed.replace(tzinfo=datetime.UTC)
-        stored = parsed.astimezone(datetime.UTC).replace(tzinfo=None)
-    except (ValueError, OverflowError):
-        raise InputError(f"{where} is not an ISO 8601 time from 1970 to 9998: "
-                         f"{value!r}") from None
-    low, high = TIME_RANGE
-    if not low <= stored <= high:
-        raise InputError(f"{where} is not an ISO 8601 time from 1970 to 9998: {value!r}")
-    return stored
-
-
-def _stamps(entry: Mapping[str, Any], where: str
-            ) -> tuple[datetime.datetime, datetime.datetime]:
-    """An entry's creation and last-change times."""
-    return _time(entry["created_at"], f"{where} created_at"), \
-        _time(entry["updated_at"], f"{where} updated_at")
-
-
-def _new_id(entry: Mapping[str, Any], where: str, seen: set[int]) -> int:
-    """An entry's id, refused if `seen` already holds it (which it is added to)."""
-    entry_id = check_id(entry["id"], f"{where} id")
-    if entry_id in seen:
-        raise InputError(f"{where}: id {entry_id} appears twice")
-    seen.add(entry_id)
-    return entry_id
-
-
-def _build(kind: type, values: dict[str, Any], where: str) -> Any:
-    """``kind(**values)``, its refusal as a one-line InputError naming `where`."""
-    try:
-        return kind(**values)
-    except InputError as error:
-        raise InputError(f"{where}: {error}") from None
-    except (TypeError, ValueError) as error:
-        raise InputError(f"{where}: {str(error).splitlines()[0]}") from None
-
-
-def _checked(function: Callable[..., Any], where: str, *args: Any) -> Any:
-    """``function(*args)``, its InputError prefixed with `where`."""
-    try:
-        return function(*args)
-    except InputError as error:
-        raise InputError(f"{where}: {error}") from None
-
-
-def _refuse_constant(name: str) -> Any:
-    """Refuse NaN and Infinity, which Python's json reads but JSON does not have (RFC 8259
-    section 6)."""
-    raise InputError(f"the library file holds {name}, which is not a number")
-
-
-# ---------------------------------------------------------------------------------------------
 # reading and checking: the document, entry by entry
 
 
-def check_file_size(size: int, exact: bool = True) -> None:
-    """Refuse a library file larger than FILE_SIZE_LIMIT before it is read whole.
-
-    Parameters
-    ----------
-    size : int
-        The file's size, or how much of it was read [bytes].
-    exact : bool
-        `size` is the whole file's (shown in the message); False when only a part was read.
-
-    Raises
-    ------
-    InputError
-        The file is larger than FILE_SIZE_LIMIT, in one line.
-    """
-    if size > FILE_SIZE_LIMIT:
-        shown = f" ({size / 2**20:.1f} MiB)" if exact else ""
-        raise InputError(f"the library file is larger than {FILE_SIZE_LIMIT // 2**20} MiB"
-                         f"{shown}; split it by athlete (export --athlete)")
-
-
-def _check_depth(document: Any) -> None:
-    """Refuse JSON nested deeper than DEPTH_LIMIT (walked without recursion)."""
-    stack = [(document, 1)]
-    while stack:
-        value, depth = stack.pop()
-        if depth > DEPTH_LIMIT:
-            raise InputError(f"the library file nests lists and objects deeper than "
-                             f"{DEPTH_LIMIT} levels")
-        if isinstance(value, dict):
-            stack.extend((item, depth + 1) for item in value.values()
-                         if isinstance(item, (dict, list)))
-        elif isinstance(value, list):
-            stack.extend((item, depth + 1) for item in value if isinstance(item, (dict, list)))
-
-
 def _parse_document(source: str | bytes) -> Mapping[str, Any]:
-    """The file's JSON object, marked as a pacing library file (UTF-8, a BOM allowed), within
-    FILE_SIZE_LIMIT and DEPTH_LIMIT."""
-    if isinstance(source, (bytes, bytearray)):
-        check_file_size(len(source))
-        try:
-            source = bytes(source).decode("utf-8-sig")
-        except UnicodeDecodeError:
-            raise InputError("the library file is not UTF-8 text") from None
-    if not isinstance(source, str):
-        raise InputError("a library file is text (JSON)")
-    check_file_size(len(source))
-    try:
-        document = json.loads(source, parse_constant=_refuse_constant)
-    except json.JSONDecodeError as error:
-        raise InputError(f"the library file is not valid JSON (line {error.lineno}, column "
-                         f"{error.colno}: {error.msg})") from None
-    except RecursionError:
-        raise InputError(f"the library file nests lists and objects deeper than "
-                         f"{DEPTH_LIMIT} levels") from None
-    except ValueError:  # an integer of more than sys.get_int_max_str_digits() digits
-        raise InputError("the library file holds a number too long to read") from None
-    _check_depth(document)
+    """The file's JSON (parse_json_text), marked as a pacing library file."""
+    document = parse_json_text(source)
     if not isinstance(document, Mapping) or document.get("format") != FORMAT_NAME:
         raise InputError(f"not a pacing library file (it lacks \"format\": \"{FORMAT_NAME}\")")
     return document
@@ -425,10 +284,10 @@ def _read_header(document: Mapping[str, Any]
     if version > FORMAT_VERSION:
         raise InputError(f"the library file has format version {version}, newer than this "
                          f"pacing reads ({FORMAT_VERSION}); update pacing")
-    _object(document, "the library file", _TOP_KEYS,
+    json_object(document, "the library file", _TOP_KEYS,
             {"format", "format_version", "athletes", "courses", "plans"})
     exported_text = document.get("exported_at")
-    exported_at = None if exported_text is None else _time(exported_text, "exported_at")
+    exported_at = None if exported_text is None else file_time(exported_text, "exported_at")
     exported_by = document.get("exported_by") or ""
     if not isinstance(exported_by, str):
         raise InputError("exported_by must be text")
@@ -437,12 +296,12 @@ def _read_header(document: Mapping[str, Any]
 
 def _read_athlete(entry: Any, where: str, seen: set[int]) -> FileAthlete:
     """One athlete entry (without its setups), checked as the library checks a new one."""
-    entry = _object(entry, where, _ATHLETE_KEYS, {"id", "name", "body_mass", *_STAMPS})
-    athlete_id = _new_id(entry, where, seen)
-    athlete = _build(Athlete, {"name": entry["name"],
+    entry = json_object(entry, where, _ATHLETE_KEYS, {"id", "name", "body_mass", *_STAMPS})
+    athlete_id = new_id(entry, where, seen)
+    athlete = build_entry(Athlete, {"name": entry["name"],
                                **{f: entry.get(f) for f in ATHLETE_NUMBERS}}, where)
-    _checked(athlete_row, where, athlete)
-    return FileAthlete(athlete_id, athlete, *_stamps(entry, where))
+    checked_at(athlete_row, where, athlete)
+    return FileAthlete(athlete_id, athlete, *entry_stamps(entry, where))
 
 
 def _yaw_table(value: Any, where: str) -> tuple[tuple[Any, ...], ...] | None:
@@ -459,17 +318,17 @@ def _read_setup(entry: Any, where: str, athlete_id: int, setup_owner: dict[int, 
                 ) -> FileSetup:
     """One setup entry of the athlete `athlete_id`; `setup_owner` (setup id → athlete id)
     gains it."""
-    entry = _object(entry, where, _SETUP_KEYS, {"id", "name", *SETUP_NUMBERS, *_STAMPS})
+    entry = json_object(entry, where, _SETUP_KEYS, {"id", "name", *SETUP_NUMBERS, *_STAMPS})
     setup_id = check_id(entry["id"], f"{where} id")
     if setup_id in setup_owner:
         raise InputError(f"{where}: setup id {setup_id} appears twice")
     setup_owner[setup_id] = athlete_id
     table = _yaw_table(entry.get("yaw_drag_table"), where)
-    setup = _build(Setup, {"name": entry["name"], "yaw_drag_table": table,
+    setup = build_entry(Setup, {"name": entry["name"], "yaw_drag_table": table,
                            **{f: entry[f] for f in SETUP_NUMBERS}}, where)
-    _checked(setup_row, where, setup)
+    checked_at(setup_row, where, setup)
     origin = origin_from_entry(entry.get("drag_area_origin"), where, setup.drag_area)
-    return FileSetup(setup_id, athlete_id, setup, *_stamps(entry, where), origin)
+    return FileSetup(setup_id, athlete_id, setup, *entry_stamps(entry, where), origin)
 
 
 def _read_athletes(entries: Any
@@ -479,11 +338,11 @@ def _read_athletes(entries: Any
     file_setups: list[FileSetup] = []
     athlete_ids: set[int] = set()
     setup_owner: dict[int, int] = {}
-    for index, entry in enumerate(_list(entries, "athletes")):
+    for index, entry in enumerate(json_list(entries, "athletes")):
         where = f"athletes[{index}]"
         athlete = _read_athlete(entry, where, athlete_ids)
         file_athletes.append(athlete)
-        for setup_index, setup_entry in enumerate(_list(entry.get("setups", []),
+        for setup_index, setup_entry in enumerate(json_list(entry.get("setups", []),
                                                         f"{where}.setups")):
             file_setups.append(_read_setup(setup_entry, f"{where}.setups[{setup_index}]",
                                            athlete.id, setup_owner))
@@ -507,20 +366,20 @@ def _gpx_bytes(entry: Mapping[str, Any], where: str) -> bytes:
 
 def _read_course(entry: Any, where: str, seen: set[int]) -> FileCourse:
     """One course entry, checked as the library checks a new one."""
-    entry = _object(entry, where, _COURSE_KEYS, _COURSE_KEYS)
-    course_id = _new_id(entry, where, seen)
+    entry = json_object(entry, where, _COURSE_KEYS, _COURSE_KEYS)
+    course_id = new_id(entry, where, seen)
     gpx = _gpx_bytes(entry, where)
-    row = _checked(course_row, where, entry["name"], gpx, entry["distance_m"],
+    row = checked_at(course_row, where, entry["name"], gpx, entry["distance_m"],
                    entry["ascent_m"])
     return FileCourse(course_id, row["name"], gpx, row["distance_m"], row["ascent_m"],
-                      *_stamps(entry, where))
+                      *entry_stamps(entry, where))
 
 
 def _read_courses(entries: Any) -> list[FileCourse]:
     """The file's courses."""
     course_ids: set[int] = set()
     return [_read_course(entry, f"courses[{index}]", course_ids)
-            for index, entry in enumerate(_list(entries, "courses"))]
+            for index, entry in enumerate(json_list(entries, "courses"))]
 
 
 def _check_plan_links(links: Mapping[str, int | None], where: str, athlete_ids: set[int],
@@ -543,24 +402,24 @@ def _read_plan(entry: Any, where: str, seen: set[int], athlete_ids: set[int],
                setup_owner: Mapping[int, int], course_ids: set[int]) -> FilePlan:
     """One saved plan entry, checked as the library checks a new one, its links against the
     file's entries."""
-    entry = _object(entry, where, _PLAN_KEYS,
+    entry = json_object(entry, where, _PLAN_KEYS,
                     {"id", "name", "inputs", "finish_time", "targets", "library_version",
                      *_STAMPS})
-    plan_id = _new_id(entry, where, seen)
-    name = _checked(check_name, where, entry["name"], "a plan")
-    _text, links = _checked(plan_inputs_text, where, entry["inputs"])
+    plan_id = new_id(entry, where, seen)
+    name = checked_at(check_name, where, entry["name"], "a plan")
+    _text, links = checked_at(plan_inputs_text, where, entry["inputs"])
     result = {key: entry[key] for key in PLAN_RESULT_KEYS if key in entry}
-    _checked(plan_result_values, where, result)
+    checked_at(plan_result_values, where, result)
     _check_plan_links(links, where, athlete_ids, setup_owner, course_ids)
     version = entry["library_version"]
     notes = entry.get("notes", "")
     if not isinstance(version, str) or not version or len(version) > 50:
         raise InputError(f"{where}: library_version must be short text")
-    notes = _checked(check_notes, where, notes)
+    notes = checked_at(check_notes, where, notes)
     from pacing.store.library_reviews import read_file_reviews
 
     return FilePlan(plan_id, name, dict(entry["inputs"]), result, version, notes,
-                    *_stamps(entry, where),
+                    *entry_stamps(entry, where),
                     read_file_reviews(entry.get("reviews", []), f"{where}.reviews"))
 
 
@@ -570,7 +429,7 @@ def _read_plans(entries: Any, athlete_ids: set[int], setup_owner: Mapping[int, i
     plan_ids: set[int] = set()
     return [_read_plan(entry, f"plans[{index}]", plan_ids, athlete_ids, setup_owner,
                        course_ids)
-            for index, entry in enumerate(_list(entries, "plans"))]
+            for index, entry in enumerate(json_list(entries, "plans"))]
 
 
 def read_library_file(source: str | bytes) -> LibraryFile:

@@ -6,6 +6,7 @@ that made it; changed at a revision, deleted with confirmation.
 from __future__ import annotations
 
 from collections.abc import Mapping
+from dataclasses import dataclass
 from typing import Any
 
 import sqlalchemy as sa
@@ -76,6 +77,77 @@ def resolve_plan_links(connection: Connection, links: Mapping[str, int | None]
     return {"athlete_id": athlete_id, "setup_id": setup_id, "course_id": course_id}
 
 
+@dataclass(frozen=True)
+class CheckedPlan:
+    """A plan to save, checked before any transaction (checked_plan).
+
+    Attributes
+    ----------
+    name : str
+        The checked label.
+    inputs_text : str
+        The inputs as JSON text.
+    links : dict
+        The inputs' link keys (PLAN_LINK_KEYS), checked against the library when written.
+    values : dict
+        The result's columns (plan_result_values).
+    notes : str
+        The checked notes.
+    on_existing : str
+        "refuse", "replace" or "keep-both" [-].
+    """
+
+    name: str
+    inputs_text: str
+    links: dict[str, int | None]
+    values: dict[str, Any]
+    notes: str
+    on_existing: str
+
+
+def checked_plan(name: str, inputs: Mapping[str, Any], result: Mapping[str, Any],
+                 notes: str = "", on_existing: str = "refuse") -> CheckedPlan:
+    """Check a plan to save (as PlanMethods.save_plan takes it) without touching the library.
+
+    Raises
+    ------
+    InputError
+        A bad name, inputs, result, notes or `on_existing`, in one line.
+    """
+    name = check_name(name, "a plan")
+    inputs_text, links = plan_inputs_text(inputs)
+    values = plan_result_values(result)
+    notes = check_notes(notes)
+    check_on_existing(on_existing)
+    return CheckedPlan(name, inputs_text, dict(links), values, notes, on_existing)
+
+
+def write_plan(connection: Connection, plan: CheckedPlan) -> int:
+    """Write a checked plan inside the caller's transaction: links resolved, the name placed
+    (NameTaken, or replace, or "name (2)"), the version of pacing recorded.
+
+    Parameters
+    ----------
+    connection : sqlalchemy.engine.Connection
+        A connection inside a writing transaction (LibraryBase.transaction).
+    plan : CheckedPlan
+        What checked_plan gave.
+
+    Returns
+    -------
+    int
+        The saved plan's id (the replaced plan's when replacing).
+    """
+    link_columns = resolve_plan_links(connection, plan.links)
+    name, replaced = place_name(connection, plans, "saved plan", plan.name, plan.on_existing)
+    row = dict(plan.values, **link_columns, name=name, inputs=plan.inputs_text,
+               notes=plan.notes, library_version=pacing.__version__)
+    if replaced is None:
+        return insert_row(connection, plans, row)
+    replace_row(connection, plans, replaced, row)
+    return replaced
+
+
 class PlanMethods(LibraryBase):
     """The methods of pacing.store.library.Library on saved plans.
 
@@ -122,21 +194,9 @@ class PlanMethods(LibraryBase):
         NameTaken
             The name is taken and `on_existing` is "refuse".
         """
-        name = check_name(name, "a plan")
-        inputs_text, links = plan_inputs_text(inputs)
-        values = plan_result_values(result)
-        notes = check_notes(notes)
-        check_on_existing(on_existing)
+        checked = checked_plan(name, inputs, result, notes, on_existing)
         with self.transaction() as connection:
-            link_columns = resolve_plan_links(connection, links)
-            name, replaced = place_name(connection, plans, "saved plan", name, on_existing)
-            row = dict(values, **link_columns, name=name, inputs=inputs_text, notes=notes,
-                       library_version=pacing.__version__)
-            if replaced is None:
-                entry_id = insert_row(connection, plans, row)
-            else:
-                replace_row(connection, plans, replaced, row)
-                entry_id = replaced
+            entry_id = write_plan(connection, checked)
         return self.plan(entry_id)
 
     def plan(self, plan_id: int) -> PlanRecord:

@@ -1,6 +1,7 @@
 """Reviews of the races ridden to saved plans (migration 0004): the review's JSON as the review
 command prints it (pacing.cli.review.review_as_dict), with the race file's name and SHA-256.
-Stored, listed by plan, read, deleted with confirmation; they go with their plan.
+Stored (with an existing plan, or with a new plan in one transaction), listed by plan or all
+together, counted per plan, read, deleted with confirmation; they go with their plan.
 """
 
 from __future__ import annotations
@@ -19,8 +20,10 @@ from pacing.errors import InputError
 from pacing.store import jsontext
 from pacing.store.database import as_utc
 from pacing.store.library_base import LibraryBase
-from pacing.store.records import PlanReviewRecord
-from pacing.store.rows import check_name
+from pacing.store.library_file_json import checked_at, entry_stamps, json_list, json_object
+from pacing.store.library_plans import checked_plan, write_plan
+from pacing.store.records import PlanRecord, PlanReviewRecord
+from pacing.store.rows import check_name, plan_record
 from pacing.store.schema import plan_reviews, plans
 from pacing.store.statements import delete_row, insert_row
 
@@ -28,6 +31,28 @@ from pacing.store.statements import delete_row, insert_row
 REVIEW_KEYS = ("planned_time_s", "actual_time_s", "segments", "attribution", "fitted",
                "warnings")
 _SHA256 = re.compile(r"[0-9a-f]{64}")
+#: Largest difference between a saved plan's finish time and the planned time of a review for
+#: the review to count as one of that plan [s]: the same inputs give the same plan to far
+#: better than a second; a review of another plan kept with it would mislead.
+SAME_PLAN_TOLERANCE = 1.0
+
+
+def same_plan_time(saved_finish_time: float, planned_time: float) -> bool:
+    """Whether a review's planned time is the saved plan's finish time (within
+    SAME_PLAN_TOLERANCE).
+
+    Parameters
+    ----------
+    saved_finish_time : float
+        The saved plan's finish time [s].
+    planned_time : float
+        The planned time of the plan the review was made against [s].
+
+    Returns
+    -------
+    bool
+    """
+    return abs(float(saved_finish_time) - float(planned_time)) <= SAME_PLAN_TOLERANCE
 
 
 def ride_digest(ride: bytes) -> str:
@@ -108,12 +133,70 @@ class ReviewMethods(LibraryBase):
         """The stored review with this id (InputError if there is none)."""
         return plan_review_record(self._one(plan_reviews, "race review", review_id))
 
-    def plan_reviews(self, plan_id: int) -> tuple[PlanReviewRecord, ...]:
-        """The reviews kept with a saved plan, oldest first (InputError if no such plan)."""
-        self._one(plans, "plan", plan_id)
-        query = (sa.select(plan_reviews).where(plan_reviews.c.plan_id == plan_id)
-                 .order_by(plan_reviews.c.created_at, plan_reviews.c.id))
+    def save_plan_with_review(self, name: str, inputs: Mapping[str, Any],
+                              result: Mapping[str, Any], review: Mapping[str, Any], *,
+                              ride_name: str, ride_sha256: str, notes: str = "",
+                              on_existing: str = "refuse"
+                              ) -> tuple[PlanRecord, PlanReviewRecord]:
+        """Save a new plan and keep a race review with it, in one transaction: both are
+        stored or neither. It never replaces a saved plan (whose reviews would then belong to
+        another plan): a name already stored is refused (NameTaken) or, with
+        ``on_existing="keep-both"``, this plan is saved as "name (2)".
+
+        Parameters
+        ----------
+        name, inputs, result, notes
+            As PlanMethods.save_plan.
+        review : Mapping
+            The review as JSON (as add_plan_review).
+        ride_name : str
+            The race file's name.
+        ride_sha256 : str
+            SHA-256 of the race file (ride_digest).
+        on_existing : str
+            "refuse" or "keep-both" [-].
+
+        Returns
+        -------
+        tuple of (PlanRecord, PlanReviewRecord)
+            As stored (new ids, revision 1).
+
+        Raises
+        ------
+        NameTaken
+            The name is taken and `on_existing` is "refuse".
+        InputError
+            A bad plan or review, or ``on_existing="replace"``, in one line.
+        """
+        if on_existing == "replace":
+            raise InputError("a plan saved with its race review never replaces a saved plan: "
+                             "keep both or choose another name")
+        checked = checked_plan(name, inputs, result, notes, on_existing)
+        values = review_columns(review, ride_name, ride_sha256)
+        with self.transaction() as connection:
+            plan_id = write_plan(connection, checked)
+            review_id = insert_row(connection, plan_reviews, dict(values, plan_id=plan_id))
+        return plan_record(self._one(plans, "plan", plan_id)), self.plan_review(review_id)
+
+    def plan_reviews(self, plan_id: int | None = None) -> tuple[PlanReviewRecord, ...]:
+        """The reviews kept with a saved plan, oldest first (InputError if no such plan); with
+        no `plan_id`, every saved plan's, plan by plan (by id), each plan's oldest first."""
+        query = sa.select(plan_reviews)
+        if plan_id is None:
+            query = query.order_by(plan_reviews.c.plan_id, plan_reviews.c.created_at,
+                                   plan_reviews.c.id)
+        else:
+            self._one(plans, "plan", plan_id)
+            query = (query.where(plan_reviews.c.plan_id == plan_id)
+                     .order_by(plan_reviews.c.created_at, plan_reviews.c.id))
         return tuple(plan_review_record(row) for row in self._rows(query))
+
+    def review_counts(self) -> dict[int, int]:
+        """How many race reviews each saved plan keeps: plan id → count (plans without
+        reviews left out)."""
+        query = (sa.select(plan_reviews.c.plan_id, sa.func.count(plan_reviews.c.id))
+                 .group_by(plan_reviews.c.plan_id))
+        return {int(plan_id): int(count) for plan_id, count in self._rows(query)}
 
     def delete_plan_review(self, review_id: int, *, confirm: bool = False,
                            revision: int | None = None) -> None:
@@ -162,13 +245,11 @@ def file_review_entry(row: Any) -> dict[str, Any]:
 
 def read_file_reviews(entries: Any, where: str) -> tuple[FileReview, ...]:
     """A plan's "reviews" list of a library file, checked as add_plan_review checks them."""
-    from pacing.store.library_file import _checked, _list, _object, _stamps
-
     found = []
-    for index, entry in enumerate(_list(entries, where)):
+    for index, entry in enumerate(json_list(entries, where)):
         place = f"{where}[{index}]"
-        entry = _object(entry, place, set(FILE_REVIEW_KEYS), set(FILE_REVIEW_KEYS))
-        row = _checked(review_columns, place, entry["review"], entry["ride_name"],
+        entry = json_object(entry, place, set(FILE_REVIEW_KEYS), set(FILE_REVIEW_KEYS))
+        row = checked_at(review_columns, place, entry["review"], entry["ride_name"],
                        entry["ride_sha256"])
-        found.append(FileReview(row, *_stamps(entry, place)))
+        found.append(FileReview(row, *entry_stamps(entry, place)))
     return tuple(found)

@@ -18,7 +18,13 @@ from pacing.errors import InputError
 from pacing.store import jsontext
 from pacing.store.database import as_utc
 from pacing.store.library_base import LibraryBase
-from pacing.store.library_file import _checked, _list, _new_id, _object, _stamps
+from pacing.store.library_file_json import (
+    checked_at,
+    entry_stamps,
+    json_list,
+    json_object,
+    new_id,
+)
 from pacing.store.records import TeamRecord
 from pacing.store.rows import check_id, check_name
 from pacing.store.schema import teams
@@ -203,14 +209,14 @@ def read_file_teams(entries: Any) -> tuple[FileTeam, ...]:
     seen: set[int] = set()
     found = []
     keys = set(TEAM_FILE_KEYS)
-    for index, entry in enumerate(_list(entries, "teams")):
+    for index, entry in enumerate(json_list(entries, "teams")):
         where = f"teams[{index}]"
-        entry = _object(entry, where, keys, keys)
-        _new_id(entry, where, seen)
-        team = _checked(team_from_values, where, entry["riders"], "riders")
-        row = _checked(team_row, where, entry["name"], team, entry["drafting"],
+        entry = json_object(entry, where, keys, keys)
+        new_id(entry, where, seen)
+        team = checked_at(team_from_values, where, entry["riders"], "riders")
+        row = checked_at(team_row, where, entry["name"], team, entry["drafting"],
                        entry["counts_rider"])
-        found.append(FileTeam(row["name"], row, *_stamps(entry, where)))
+        found.append(FileTeam(row["name"], row, *entry_stamps(entry, where)))
     return tuple(found)
 
 
