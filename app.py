@@ -3,15 +3,19 @@
 One page, top to bottom: route → athlete and equipment → weather → pacing approach → predicted
 race → downloads, then three sections opened on request (setups side by side, the coach's
 library, drag area from road tests: their imports and work are paid only when asked for). The
-page only calls the library (ui.pipeline). Results and figures are cached with st.cache_data on
-the file's digest and the inputs (each session gets its own copy); the library's compiled
-kernels are made ready once per server process, in the background after the first page. Run
-with ``make app`` (``streamlit run app.py``).
+folds "Where the watts go" and the segments' table work out their content only while open,
+and a session's first page sends the course's figures after the headline, so the browser
+shows the finish time before it loads the plotting library. The page only calls the library
+(ui.pipeline). Results and figures are cached with st.cache_data on the file's digest and the
+inputs (each session gets its own copy); the library's compiled kernels are made ready once
+per server process, in the background after the first page. Run with ``make app``
+(``streamlit run app.py``).
 """
 
 from __future__ import annotations
 
 import contextlib
+import functools
 import hashlib
 import os
 import subprocess
@@ -23,13 +27,11 @@ from concurrent.futures import Future
 from pathlib import Path
 
 import numpy as np
-import pandas as pd
 import streamlit as st
 
 from pacing.display.notices import describe
 from pacing.display.units import format_duration, to_display, unit_label
 from pacing.errors import InputError, first_line
-from pacing.io.exports import segment_table
 from pacing.physics.wind import ROUGHNESS_LENGTHS
 from ui import figures, library_data, pipeline, sections, text
 
@@ -43,14 +45,16 @@ st.set_page_config(page_title="pacing · race plan", layout="wide")
 # recomputes nothing, and a refusal is cached like a result. Figures are cached as plotly's
 # plain data (ui.figures *_spec) and drawn from it without validating it again.
 
+# (Constants are described in comments, not strings: Streamlit's "magic" would print a bare
+# string of this script on the page.)
+# Longest wait for the library's kernels to compile in their own process [s].
 KERNEL_COMPILE_TIMEOUT = 900.0
-"""Longest wait for the library's kernels to compile in their own process [s]."""
+# Environment variable: "0" keeps the page from warming up the kernels (the app's tests set
+# it, so no background compilation runs beside the rest of a test session).
 WARM_UP_VARIABLE = "PACING_APP_WARM_UP"
-"""Environment variable: "0" keeps the page from warming up the kernels (the app's tests set
-it, so no background compilation runs beside the rest of a test session)."""
+# Seconds between the end of the first page and the kernels' warm-up: the page reaches the
+# browser and is drawn before the warm-up takes a core (a coach reads the page longer).
 KERNEL_WARM_UP_DELAY = 2.0
-"""Seconds between the end of the first page and the kernels' warm-up: the page reaches the
-browser and is drawn before the warm-up takes a core (a coach reads the page longer)."""
 
 
 def ready_kernels(warm_up: Callable[[], float]) -> float:
@@ -138,6 +142,8 @@ def recording_choices(course, system: str) -> tuple[tuple[int, ...] | None, str]
     more than one track or gaps; shows the tracks and the gaps found."""
     tracks, gaps = None, "join"
     if len(course.tracks) > 1 or course.gaps:
+        import pandas as pd  # only for a file with more tracks or gaps: not on the first page
+
         with st.expander("What the file holds: tracks and gaps", expanded=bool(course.gaps)):
             st.dataframe(pd.DataFrame([{
                 "Track": t.index, "Name": t.name or "–", "Points": t.points,
@@ -217,10 +223,37 @@ def cached_along(outcome_key: str, _outcome, system: str) -> dict:
 @st.cache_data(max_entries=32, show_spinner=False)
 def cached_targets(outcome_key: str, _rows: list, system: str):
     """(segment target table, None) or (None, the refusal in one line)."""
+    from pacing.io.exports import segment_table  # pandas: paid after the headline is out
+
     try:
         return segment_table(_rows, system), None
     except InputError as error:
         return None, first_line(error)
+
+
+# Session state: this session's first page is out (its figures are drawn in place after).
+FIRST_PAGE_DRAWN = "first_page_drawn"
+
+
+def in_turn(queue: list[Callable[[], None]] | None, draw: Callable[[], None]) -> None:
+    """`draw` now, or later (appended to `queue`) when a queue is given."""
+    if queue is None:
+        draw()
+    else:
+        queue.append(draw)
+
+
+def draw_profile(slot, course_key: str, course, system: str, bounds: tuple | None) -> None:
+    """The course's profile in its `slot` (an st.empty)."""
+    slot.plotly_chart(figures.drawable(cached_profile(course_key, course, system, bounds)),
+                      key="profile")
+
+
+def draw_map(slot, course_key: str, course, system: str, wind_speed: float,
+             wind_from: float) -> None:
+    """The route's map with the wind's arrow in its `slot` (an st.empty)."""
+    slot.plotly_chart(figures.drawable(cached_map(course_key, course, system, wind_speed,
+                                                  wind_from)), key="map")
 
 
 def show_error(error: Exception, where: str = "") -> None:
@@ -244,6 +277,11 @@ split = None
 course_key = ""
 bounds = None
 map_slot = None
+# a session's first page draws the course's figures after the headline (their slots are kept
+# in place): the browser shows the finish time before it loads and runs the plotting
+# library; later runs draw them in place, so nothing on screen blinks
+first_page = not st.session_state.get(FIRST_PAGE_DRAWN)
+later: list[Callable[[], None]] = []
 
 # 1 · route -----------------------------------------------------------------------------
 st.header(text.SECTION_ROUTE)
@@ -306,11 +344,10 @@ if course is not None:
     except InputError as error:
         show_error(error, "Segments")
     cols = st.columns([3, 2])
-    with cols[0]:
-        st.plotly_chart(figures.drawable(cached_profile(
-            course_key, course, system, None if bounds is None else tuple(map(int, bounds)))),
-            key="profile")
-    map_slot = cols[1].empty()
+    profile_slot, map_slot = cols[0].empty(), cols[1].empty()
+    in_turn(later if first_page else None, functools.partial(
+        draw_profile, profile_slot, course_key, course, system,
+        None if bounds is None else tuple(map(int, bounds))))
 
 # 2 · athlete and equipment ---------------------------------------------------------------
 st.header(text.SECTION_RIDER)
@@ -332,10 +369,9 @@ if race_day is not None:
 # a weather table that does not read (said in the panel) plans no race: not another day's
 race_day_unread = race_day is None and bool(st.session_state.get("race_day_table"))
 if map_slot is not None:
-    with map_slot:
-        st.plotly_chart(figures.drawable(cached_map(
-            course_key, course, system, float(weather.get("wind_speed", 0.0)),
-            float(weather.get("wind_from", 0.0)))), key="map")
+    in_turn(later if first_page else None, functools.partial(
+        draw_map, map_slot, course_key, course, system, float(weather.get("wind_speed", 0.0)),
+        float(weather.get("wind_from", 0.0))))
 
 # 4 · approach ----------------------------------------------------------------------------
 st.header(text.SECTION_APPROACH)
@@ -365,6 +401,10 @@ else:
         show_error(error, "Prediction")
 if outcome is not None:
     sections.outcome_headline(outcome, system)
+for draw in later:  # the course's figures of a first page (see first_page)
+    draw()
+st.session_state[FIRST_PAGE_DRAWN] = True
+if outcome is not None:
     race_day_panel.show_environment(outcome.race_day, (), system)
     if race_day is not None and race_day.get("rows"):
         with st.expander("Best start time within a window"):
@@ -406,8 +446,11 @@ if outcome is not None:
             st.dataframe(energy_panel.easing_frame(outcome.easing, system), hide_index=True,
                          key="easing_table")
             st.caption(text.speed_caution(outcome.sport))
-    with st.expander("Where the watts go"):
-        sections.where_the_watts_go(outcome, system)
+    # worked out and drawn only while open (its chart and table are not on the first page)
+    watts = st.expander("Where the watts go", key="watts_open", on_change="rerun")
+    if watts.open:
+        with watts:
+            sections.where_the_watts_go(outcome, system)
     st.caption(text.EXERTION_CAUTION)
 
 # 6 · take it with you --------------------------------------------------------------------

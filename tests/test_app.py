@@ -707,8 +707,41 @@ def test_a_target_time_plan_does_not_claim_time_gained():
     assert all(m.label != "Gained on even power" for m in app.metric)
 
 
+def open_fold(app: AppTest, key: str) -> None:
+    """Open a fold that works out its content only while open (st.expander with
+    on_change="rerun"), as a click on it does."""
+    app.session_state[key] = True
+    app.run()
+    no_failure(app)
+
+
+def test_the_first_page_leaves_the_folded_tables_and_charts_for_later():
+    # issue 15: "Where the watts go" and the segments' table cost the first page a chart, two
+    # tables and pandas; they are worked out when opened
+    app = started()
+    labels = [e.label for e in app.expander]
+    assert "Where the watts go" in labels
+    assert any(label.endswith(" segments") for label in labels)
+    assert not any("Air drag [%]" in f.value.columns for f in app.dataframe)
+    assert not any("Terrain" in f.value.columns for f in app.dataframe)
+    assert [c.proto.id for c in app.get("plotly_chart")]  # profile, map, along the course
+    open_fold(app, "segments_open")
+    overview = next(f.value for f in app.dataframe if "Terrain" in f.value.columns)
+    assert len(overview) == len(targets(app))
+
+
+def test_a_later_run_draws_the_course_figures_in_place():
+    app = started()
+    first = len(app.get("plotly_chart"))
+    app.number_input(key="mean_power:metric").set_value(250.0).run()
+    no_failure(app)
+    assert app.session_state["first_page_drawn"] is True
+    assert len(app.get("plotly_chart")) == first
+
+
 def test_where_the_watts_go_closes_and_explains_the_square_law():
     app = started()
+    open_fold(app, "watts_open")
     table = next(f.value for f in app.dataframe if "Air drag [%]" in f.value.columns)
     race = table[table["Segment"] == "whole race"].iloc[0]
     shares = [race[c] for c in table.columns if c.endswith("[%]")]
@@ -792,6 +825,7 @@ def test_a_runner_sees_where_the_energy_goes_too():
     app = started()
     app.radio(key="sport").set_value("running").run()
     no_failure(app)
+    open_fold(app, "watts_open")
     table = next(f.value for f in app.dataframe if "Running on the flat [%]" in f.value.columns)
     race = table[table["Segment"] == "whole race"].iloc[0]
     assert 80.0 < race["Running on the flat [%]"] < 100.0
@@ -890,3 +924,14 @@ def test_a_reopened_plan_brings_back_its_race_day(tmp_path, monkeypatch):
     app.run()  # any rerun: the widgets send back what they hold, the saved race day
     assert metric(app, "Finish time") == saved
     assert race_day_panel(app) == panel
+
+
+def test_the_script_holds_no_bare_string_streamlit_would_print_on_the_page():
+    # Streamlit's "magic" writes any bare expression of the script to the page, a string
+    # under a constant included; only the module's docstring is exempt
+    import ast
+
+    tree = ast.parse(Path(APP).read_text())
+    bare = [node.lineno for node in tree.body[1:]
+            if isinstance(node, ast.Expr) and isinstance(node.value, ast.Constant)]
+    assert bare == []

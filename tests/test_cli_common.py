@@ -55,7 +55,7 @@ def test_warnings_go_to_stderr_and_notes_under_the_table():
         warnings.simplefilter("always")
         lines = report_notices(SAID, table=True)
     assert [str(w.message)[:20] for w in caught] == ["W′ runs out at 3.8 k"]
-    assert lines == ["note: limits reached: mean-power"]
+    assert lines == ["note: the plan holds to the mean power asked for"]
     with warnings.catch_warnings(record=True) as caught:
         warnings.simplefilter("always")
         assert report_notices(SAID, table=False) == []

@@ -3,7 +3,7 @@
 from __future__ import annotations
 
 import math
-from datetime import datetime
+from datetime import date, datetime
 
 import numpy as np
 import pytest
@@ -89,8 +89,8 @@ def test_the_inputs_make_the_request_race_day_and_a_plan_through_the_weather():
     result = plan_race(request(inputs))
     assert result.race_day.band is not None
     lines = environment_lines(result.race_day, "metric")
-    assert lines[0].startswith("WBGT up to") and any("Forecast band" in s for s in lines)
-    assert any("25 °C" in s for s in lines)
+    assert lines[0].startswith("Heat: WBGT up to") and any("Forecast band" in s for s in lines)
+    assert any("limits measured at 25 °C" in s for s in lines)
     # no spread at all: no band asked
     assert race_day_inputs([], None, spread={"wind_speed_mps": 0.0})["spread"] is None
 
@@ -153,7 +153,11 @@ def test_the_summary_shows_the_heat_caution_and_the_cost():
     app = testing.AppTest.from_string(SUMMARY_SCRIPT, default_timeout=60).run()
     assert not app.exception
     assert any("extreme" in w.value for w in app.warning)
-    assert any("heat costs about" in m.value for m in app.markdown)
+    heat = next(m.value for m in app.markdown if "Heat: WBGT" in m.value)
+    # the cost of the heat is said with what it means for a plan at a set power
+    assert "would take about" in heat and "Quickest within my limits" in heat
+    # the assumed test conditions are said once, by their note, not again in the summary
+    assert not any("limits measured at" in m.value for m in app.markdown)
 
 
 def test_the_best_start_figure_marks_the_best():
@@ -163,8 +167,11 @@ def test_the_best_start_figure_marks_the_best():
     race = request(inputs)
     best = best_start(race, race.race_day.start, race.race_day.start + 3600.0)
     figure = best_start_figure(best)
-    assert list(figure.data[1].x) == [best_start_clock(best)]
-    assert figure.data[1].y[0] == pytest.approx(best.finish_time / 60.0)
+    # a time axis (the closer starts near the best sit where they belong), seconds behind
+    # the best start, the best marked at 0
+    assert figure.data[1].x[0].strftime("%H:%M") == best_start_clock(best)
+    assert figure.data[1].y[0] == 0.0 and min(figure.data[0].y) == pytest.approx(0.0)
+    assert list(figure.data[0].x) == sorted(set(figure.data[0].x))  # in time order
 
 
 # ------------------------------------------------ a saved race day shown in the panel again
@@ -182,7 +189,7 @@ SAVED = race_day_inputs(
 def test_the_panel_state_of_a_saved_race_day_gives_the_same_race_day_back():
     # The state mapping inverts what the panel returns: the panel's values read back from
     # the state (as the panel reads its widgets) make the saved race-day dict again.
-    from datetime import date, time
+    from datetime import time
 
     from ui.race_day_data import PANEL_KEYS, ROWS_TO_SHOW, SPREAD_FIELDS, panel_state
 
@@ -228,6 +235,7 @@ def test_the_panel_drawn_from_a_saved_state_returns_the_saved_race_day():
     app.session_state["race_day_table"] = True
     app.session_state["race_day_rows"] = [dict(ROWS[1], time="2026-07-14T07:00+02:00"),
                                           dict(ROWS[1])]
+    app.session_state["race_day_date"] = date(2026, 7, 14)  # a start within the table
     app.run()
     assert not app.exception
     assert app.session_state["race_day_result"]["rows"][0]["time"].startswith(
@@ -239,3 +247,80 @@ def test_the_panel_drawn_from_a_saved_state_returns_the_saved_race_day():
     assert app.session_state["race_day_result"] == SAVED
     app.run()  # the widgets hold it
     assert app.session_state["race_day_result"] == SAVED
+
+
+# ------------------------------------------------ what a new coach met in the browser (issue 18)
+
+def test_times_read_as_a_coach_writes_them_and_read_back():
+    from ui.race_day_data import clock_cell
+
+    rows = rows_from_csv(b"time,temperature_c,relative_humidity_pct,wind_speed_mps,"
+                         b"wind_from_deg\n2026-07-14T08:00,24,55,2,200\n"
+                         b"2026-07-14T10:00:30+02:00,29,45,3,220\n")
+    assert [row["time"] for row in rows] == ["2026-07-14 08:00", "2026-07-14 10:00:30+02:00"]
+    assert clock_cell(datetime(2026, 7, 14, 9, 5)) == "2026-07-14 09:05"
+
+
+def test_a_table_turned_on_starts_from_the_pages_weather():
+    rows = starter_rows(datetime(2026, 7, 14, 9, 0), weather={
+        "temperature": 31.0, "relative_humidity": 0.35, "wind_speed": 4.0, "wind_from": 250.0})
+    assert {row["temperature_c"] for row in rows} == {31.0}
+    assert {row["relative_humidity_pct"] for row in rows} == {35.0}
+    assert {(row["wind_speed_mps"], row["wind_from_deg"]) for row in rows} == {(4.0, 250.0)}
+    assert rows[0]["time"] == "2026-07-14 07:00"
+
+
+def test_an_upload_on_another_day_moves_the_start_into_the_table():
+    from ui.race_day_data import start_within_table
+
+    rows = [{"time": "2026-07-14 08:00"}, {"time": "2026-07-14 16:00"}]
+    # the date input still showed today: the table's day, the same clock
+    moved, said = start_within_table(rows, datetime(2026, 12, 5, 9, 0))
+    assert moved == datetime(2026, 7, 14, 9, 0) and "2026-07-14 09:00" in said
+    # the right day but a clock outside the table: its first row
+    assert start_within_table(rows, datetime(2026, 7, 14, 6, 0))[0] == datetime(2026, 7, 14, 8)
+    # a start within the table is kept, without a word
+    assert start_within_table(rows, datetime(2026, 7, 14, 13, 0)) == (
+        datetime(2026, 7, 14, 13, 0), None)
+
+
+def test_a_start_outside_the_table_is_said_in_one_line_naming_both():
+    # the prediction said "predicted to finish at <the start>" for a start after the table
+    rows = clean_rows([{**ROWS[0], "time": "2026-07-14T08:00"},
+                       {**ROWS[1], "time": "2026-07-14T16:00"}])
+    problem = check_rows(rows, "2026-12-05T09:00")
+    assert problem is not None and "\n" not in problem
+    assert "2026-12-05 09:00" in problem and "2026-07-14 08:00 to 2026-07-14 16:00" in problem
+    assert check_rows(rows, "2026-07-14T09:00") is None
+
+
+def test_a_check_reads_as_a_line_of_the_weather_table():
+    from ui.race_day_panel import table_problem
+
+    assert table_problem("weather row 3: time comes before row 2") == (
+        "Weather table, row 3: time comes before row 2")
+    assert table_problem("the start is outside").startswith("Weather table: the start")
+
+
+def test_the_heat_and_altitude_models_are_named_by_their_authors_not_their_keys():
+    from pacing.display.weather_words import WORDS
+
+    text = WORDS["heat-model-outside-validity"](
+        {"wbgt_c": 31.5, "low_c": 8.0, "high_c": 28.0, "model": "racinais-2015"}, "metric")
+    assert "Racinais et al. 2015" in text and "racinais-2015" not in text
+    text = WORDS["altitude-model-outside-validity"](
+        {"elevation_m": 3500.0, "high_m": 2800.0, "model": "wehrlin-hallen-2006"}, "metric")
+    assert "Wehrlin & Hallén 2006" in text and "wehrlin-hallen" not in text
+
+
+def test_a_best_start_stays_found_only_for_the_same_race_and_window():
+    from dataclasses import replace
+
+    from ui.race_day_data import request_digest
+
+    race = request(race_day_inputs(clean_rows(ROWS), "2026-07-14T08:00"))
+    same = request(race_day_inputs(clean_rows(ROWS), "2026-07-14T08:00"))
+    assert request_digest(race, "08:00", "12:00") == request_digest(same, "08:00", "12:00")
+    assert request_digest(race, "08:00", "12:00") != request_digest(race, "08:00", "11:00")
+    stronger = replace(race, cycling=PlanRequest(mean_power=230.0))
+    assert request_digest(stronger, "08:00", "12:00") != request_digest(race, "08:00", "12:00")

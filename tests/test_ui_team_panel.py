@@ -61,7 +61,7 @@ def test_the_chart_has_one_line_per_rider_in_kilojoules():
     assert len(figure.data) == 4
     assert max(np.max(trace.y) for trace in figure.data) <= 24.0 + 1e-9
     assert figure.layout.xaxis.title.text == "distance [mi]"
-    assert "gain" in summary_line(plan, race) and "rider 3" in summary_line(plan, race)
+    assert "gain" in summary_line(plan, race) and "3rd rider" in summary_line(plan, race)
 
 
 def test_the_track_race_takes_the_air_density_of_the_day():
@@ -188,6 +188,13 @@ def test_the_panel_stores_the_table_and_asks_before_replacing_a_name(tmp_path):
     with open_library(database) as library:
         teams = library.teams()
     assert [(t.name, t.revision) for t in teams] == [("Squad", 2)]
+    # kept both: the menu of stored teams shows the one just stored, not the first
+    app.button(key="team_library_store").click().run()
+    app.button(key="team_library_keep_both").click().run()
+    assert not app.exception
+    with open_library(database) as library:
+        newest = next(t for t in library.teams() if t.name == "Squad (2)")
+    assert app.selectbox(key="team_library_pick").value == newest.id
 
 
 def test_the_panel_fills_the_rider_table_from_a_stored_team(tmp_path):
@@ -207,3 +214,60 @@ def test_the_panel_fills_the_rider_table_from_a_stored_team(tmp_path):
     assert shown["name"].tolist() == ["Ann", "Bea", "Cat"]
     app.button(key="team_plan").click().run()
     assert not app.exception and any("Finish" in s.value for s in app.success)
+
+
+# ------------------------------------------------ what a new coach met in the browser (issue 18)
+
+def test_the_pages_weather_with_a_race_day_makes_the_teams_air():
+    # "Plan the team" raised a TypeError: the page's weather carries the race day's table
+    from ui.team_panel import conditions_of
+
+    weather = {"temperature": 30.0, "relative_humidity": 0.4, "sea_level_pressure": 101000.0,
+               "wind_speed": 2.0, "wind_from": 90.0, "wind_height": 10.0,
+               "roughness_length": 0.03, "race_day": {"rows": [], "start": None}}
+    conditions = conditions_of(weather)
+    assert conditions.temperature == 30.0 and conditions.wind_from == 90.0
+    assert conditions_of(None) is None and conditions_of({}) is None
+
+
+def test_drafting_sets_read_as_studies_with_their_reductions_not_keys():
+    from ui.team_panel import drafting_caption, drafting_label
+
+    labels = {key: drafting_label(key) for key in DRAFTING_SETS}
+    assert labels["broker-1999"] == "Broker et al. 1999: 0/32/39/39 %"
+    assert len(set(labels.values())) == len(labels)  # the two Blocken sets stay apart
+    assert all(key not in label for key, label in labels.items())
+    assert all("docs/" not in drafting_caption(key) for key in DRAFTING_SETS)
+
+
+def test_the_rider_table_shows_headers_with_units():
+    import streamlit as st
+
+    from ui.team_panel import RIDER_COLUMNS, rider_columns
+
+    config = rider_columns(st)
+    assert set(config) >= set(DEFAULT_RIDERS.columns)
+    assert all("[" in RIDER_COLUMNS[name][0] for name in DEFAULT_RIDERS.columns if name != "name")
+
+
+def test_the_plan_stays_on_the_page_after_a_rerun_until_the_inputs_change():
+    # a download reran the page and the plan (and the other downloads) went away
+    from streamlit.testing.v1 import AppTest
+
+    def page():
+        import streamlit as st
+
+        from ui.team_panel import render
+
+        render(st, "metric", weather={"temperature": 20.0, "race_day": {"rows": [{}]}})
+
+    app = AppTest.from_function(page, default_timeout=60)
+    app.run()
+    app.button(key="team_plan").click().run()
+    assert not app.exception and any("Finish" in s.value for s in app.success)
+    app.run()  # a rerun without the button: the plan is still shown
+    assert any("Finish" in s.value for s in app.success)
+    assert any("single weather" in c.value for c in app.caption)
+    app.number_input(key="team_reserve").set_value(1.0).run()
+    assert not any("Finish" in s.value for s in app.success)
+    assert any("Plan the team" in i.value for i in app.info)

@@ -117,6 +117,8 @@ def test_a_race_outside_the_table_is_refused():
         check_covers(table(), -1.0, 3600.0)
     with pytest.raises(InputError, match="after the weather table's last row"):
         check_covers(table(), 0.0, 7300.0)
+    with pytest.raises(InputError, match="starts at .*, after the weather table's last row"):
+        check_covers(table(), 7300.0, 7300.0)
     check_covers(table(), 0.0, 7200.0)
 
 

@@ -16,18 +16,38 @@ from typing import Any
 from pacing.errors import InputError
 
 WEATHER_COLUMNS: tuple[tuple[str, str, str], ...] = (
-    ("time", "time (ISO 8601, local or +HH:MM)", "text"),
-    ("temperature_c", "temperature [°C]", "number"),
-    ("relative_humidity_pct", "relative humidity [%]", "number"),
-    ("wind_speed_mps", "wind speed at 10 m [m/s]", "number"),
-    ("wind_from_deg", "wind from [deg, clockwise from north]", "number"),
-    ("sea_level_pressure_hpa", "sea-level pressure, MSLP [hPa] (optional)", "number"),
-    ("station_pressure_hpa", "pressure at the start [hPa] (optional)", "number"),
-    ("latitude", "latitude [deg] (optional)", "number"),
-    ("longitude", "longitude [deg] (optional)", "number"),
+    ("time", "clock time", "text"),
+    ("temperature_c", "temp. [°C]", "number"),
+    ("relative_humidity_pct", "humidity [%]", "number"),
+    ("wind_speed_mps", "wind [m/s]", "number"),
+    ("wind_from_deg", "wind from [°]", "number"),
+    ("sea_level_pressure_hpa", "sea-level pressure [hPa]", "number"),
+    ("station_pressure_hpa", "pressure at start [hPa]", "number"),
+    ("latitude", "latitude [°]", "number"),
+    ("longitude", "longitude [°]", "number"),
 )
-"""(CSV column, header with its unit, kind) of the editable weather table: the columns of
-pacing.io.weather_file, in its units."""
+"""(CSV column, short header with its unit, kind) of the editable weather table: the columns
+of pacing.io.weather_file, in its units (short, so the table fits the page; COLUMN_HELP says
+the rest)."""
+
+COLUMN_HELP = {
+    "time": "local time of the race, like 2026-07-14 14:00 (or with the offset from UTC, "
+            "2026-07-14 14:00+02:00); rows go forward in time",
+    "temperature_c": "air temperature in the shade [°C]",
+    "relative_humidity_pct": "relative humidity [%], 0 to 100",
+    "wind_speed_mps": "wind speed [m/s] at the height set under 'Wind measured at' above "
+                      "(10 m, as weather reports give it)",
+    "wind_from_deg": "where the wind blows FROM, degrees clockwise from north (0 north, "
+                     "90 east, 180 south, 270 west)",
+    "sea_level_pressure_hpa": "optional: pressure reduced to sea level as weather reports "
+                              "give it (QNH); blank: the sea-level pressure above",
+    "station_pressure_hpa": "optional: pressure measured at the start, not reduced to sea "
+                            "level; give this or sea-level pressure, not both",
+    "latitude": "optional, with longitude: where the row's weather was forecast (long "
+                "courses; the weather between places is interpolated)",
+    "longitude": "optional, with latitude",
+}
+"""What each column of the weather table holds, shown when the header is pointed at."""
 
 COLUMN_NAMES = tuple(name for name, _, _ in WEATHER_COLUMNS)
 
@@ -56,13 +76,94 @@ SPREAD_FIELDS = ("wind_speed_mps", "wind_from_deg", "temperature_c")
 """The forecast spread's standard deviations the panel asks for [m/s, deg, °C]."""
 
 
-def starter_rows(day: datetime, hours: int = 4) -> list[dict[str, Any]]:
-    """A first table to edit: the day's single weather every two hours from two hours before
-    `day`'s clock (20 °C, 50 %, calm)."""
+def clock_cell(moment: datetime) -> str:
+    """A row's time as the table shows it: "2026-07-14 08:00" (seconds only when there are
+    some, the offset from UTC when the time has one) [-]."""
+    whole = moment.second == 0 and moment.microsecond == 0
+    return moment.isoformat(sep=" ", timespec="minutes" if whole else "seconds")
+
+
+def starter_rows(day: datetime, hours: int = 4,
+                 weather: Mapping[str, Any] | None = None) -> list[dict[str, Any]]:
+    """A first table to edit: the page's single weather every two hours from two hours
+    before `day`'s clock.
+
+    Parameters
+    ----------
+    day : datetime.datetime
+        The start [-].
+    hours : int
+        Hours after the start the table covers at least [h].
+    weather : mapping, optional
+        The page's weather in SI (ui.sections.weather_inputs: temperature [°C],
+        relative_humidity [0..1], wind_speed [m/s], wind_from [deg]); None: 20 °C, 50 %,
+        calm.
+
+    Returns
+    -------
+    list of dict
+        Rows with the CSV's columns [file units].
+    """
+    weather = weather or {}
     first = day - timedelta(hours=2)
-    return [{"time": (first + timedelta(hours=2 * k)).isoformat(timespec="minutes"),
-             "temperature_c": 20.0, "relative_humidity_pct": 50.0, "wind_speed_mps": 0.0,
-             "wind_from_deg": 0.0} for k in range(hours // 2 + 2)]
+    cells = {"temperature_c": float(weather.get("temperature", 20.0)),
+             "relative_humidity_pct": round(100.0 * float(weather.get("relative_humidity",
+                                                                      0.5)), 1),
+             "wind_speed_mps": float(weather.get("wind_speed", 0.0)),
+             "wind_from_deg": float(weather.get("wind_from", 0.0))}
+    return [{"time": clock_cell(first + timedelta(hours=2 * k)), **cells}
+            for k in range(hours // 2 + 2)]
+
+
+def local_clock(text: Any) -> datetime | None:
+    """The local clock of a row's time or a start (its offset from UTC dropped: the race's
+    own clock), None when it does not read [-]."""
+    try:
+        return datetime.fromisoformat(str(text).strip()).replace(tzinfo=None)
+    except ValueError:
+        return None
+
+
+def table_span(rows: Sequence[Mapping[str, Any]]) -> tuple[datetime, datetime] | None:
+    """(first, last) local clock of the rows' times, None when a time does not read or
+    there is none [-]."""
+    clocks = [local_clock(row.get("time")) for row in rows]
+    if not clocks or any(clock is None for clock in clocks):
+        return None
+    known = [clock for clock in clocks if clock is not None]
+    return min(known), max(known)
+
+
+def start_within_table(rows: Sequence[Mapping[str, Any]], start: datetime
+                       ) -> tuple[datetime, str | None]:
+    """The start moved into the weather table's span after an upload: the table's first day
+    when the start's day is not in the table, and the first row's time when the start's
+    clock is still outside; with the one line that says what was moved (None: kept).
+
+    Parameters
+    ----------
+    rows : sequence of mapping
+        The table's rows (times as text) [-].
+    start : datetime.datetime
+        The panel's start (local, naive) [-].
+
+    Returns
+    -------
+    tuple of (datetime.datetime, str or None)
+        The start to show and what changed [-].
+    """
+    span = table_span(rows)
+    if span is None or span[0] <= start <= span[1]:
+        return start, None
+    first, last = span
+    moved = start
+    if not first.date() <= start.date() <= last.date():
+        moved = datetime.combine(first.date(), start.time())
+    if not first <= moved <= last:
+        moved = first
+    return moved, (f"Start set to {clock_cell(moved)}, within the weather table "
+                   f"({clock_cell(first)} to {clock_cell(last)}); change it above if the "
+                   "race starts at another time.")
 
 
 def _blank(value: Any) -> bool:
@@ -102,7 +203,7 @@ def rows_from_csv(data: bytes) -> list[dict[str, Any]]:
     from pacing.io.weather_file import read_weather_columns
 
     times, columns = read_weather_columns(data)
-    return [{"time": moment.isoformat(), **{name: float(columns[name][k])
+    return [{"time": clock_cell(moment), **{name: float(columns[name][k])
                                             for name in COLUMN_NAMES[1:] if name in columns}}
             for k, moment in enumerate(times)]
 
@@ -125,6 +226,11 @@ def check_rows(rows: Sequence[Mapping[str, Any]], start: str | None) -> str | No
         race_day_from_inputs({"rows": list(rows), "start": start})
     except InputError as error:
         return str(error)
+    span, begin = table_span(rows), local_clock(start) if start else None
+    if span is not None and begin is not None and not span[0] <= begin <= span[1]:
+        return (f"the start {clock_cell(begin)} is outside the weather table "
+                f"({clock_cell(span[0])} to {clock_cell(span[1])}): set the race date and "
+                "start time above within it, or add rows")
     return None
 
 
@@ -212,6 +318,26 @@ def panel_state(race_day: Mapping[str, Any] | None) -> dict[str, Any]:
     return state
 
 
+def request_digest(request: Any, *extra: Any) -> str:
+    """A digest of a planning request (pacing.plan.race.RaceRequest) and `extra`: the
+    course's arrays and segment bounds by their bytes, every other field by its text; the
+    same digest means the same plan (a best start found for it still holds) [-]."""
+    import dataclasses
+    import hashlib
+
+    import numpy as np
+
+    digest = hashlib.sha1()
+    course = request.course
+    for array in (course.distance, course.elevation, course.latitude, course.longitude,
+                  request.bounds):
+        digest.update(np.ascontiguousarray(array, dtype=float).tobytes())
+    rest = [(field.name, getattr(request, field.name)) for field in dataclasses.fields(request)
+            if field.name not in ("course", "bounds")]
+    digest.update(repr((rest, extra)).encode())
+    return digest.hexdigest()
+
+
 def best_start_points(best: Any) -> tuple[list[str], list[float]]:
     """(start clock "HH:MM", finish time [s]) of every start of a best-start search, in time
     order (pacing.plan.race_day.BestStart)."""
@@ -229,8 +355,10 @@ def best_start_clock(best: Any) -> str:
 
 
 def environment_lines(race_day: Any, system: str = "metric") -> list[str]:
-    """The environment summary in words: heat factor and cost, the altitude trade-off, the
-    highest WBGT and its band, the test conditions and the forecast band.
+    """The environment summary in words: the heat (WBGT, its band, the loss of the limit and
+    what that loss costs), the altitude trade-off, where the limits were measured and the
+    forecast band. What the race day's notices say in full (the heat-illness caution, the
+    assumed test conditions) is only pointed at, not said twice.
 
     Parameters
     ----------
@@ -244,31 +372,72 @@ def environment_lines(race_day: Any, system: str = "metric") -> list[str]:
     list of str
         One sentence each; none without a race day [-].
     """
-    from pacing.display.units import format_duration, format_quantity
+    from pacing.display.units import format_duration
 
     if race_day is None or race_day.environment is None:
         return []
-    environment, costs = race_day.environment, race_day.costs
-    lines = [f"WBGT up to {format_quantity(environment.wbgt_max_c, 'temperature', system, 1)}:"
-             f" {environment.heat_category} heat-illness risk band."]
-    heat = 100.0 * (1.0 - environment.heat_power_factor)
-    if costs is not None and heat > 0.05:
-        watts = f"{costs.heat_power:.0f} W / " if costs.heat_power > 0 else ""
-        lines.append(f"Heat lowers the limit by {heat:.1f} %: heat costs about {watts}"
-                     f"{costs.heat_time:.0f} s today.")
-    if costs is not None and (costs.altitude_power_loss > 0 or costs.altitude_air_gain > 0.5):
-        lines.append(f"Altitude: thinner air gains {costs.altitude_air_gain:.0f} s, lower "
-                     f"power costs {costs.altitude_power_loss:.0f} s "
-                     f"(limit × {environment.altitude_power_factor:.3f}).")
-    temperature, humidity, elevation = race_day.limits_measured
-    lines.append(f"Relative to limits measured at "
-                 f"{format_quantity(temperature, 'temperature', system, 0)}, "
-                 f"{100.0 * humidity:.0f} % humidity, "
-                 f"{format_quantity(elevation, 'elevation', system, 0)}"
-                 + (" (assumed)." if race_day.limits_assumed else "."))
+    lines = [_heat_line(race_day, system)]
+    altitude = _altitude_line(race_day)
+    if altitude:
+        lines.append(altitude)
+    codes = {notice.code for notice in race_day.environment.notices}
+    if "limits-test-conditions-assumed" not in codes:
+        lines.append(_limits_line(race_day, system))
     band = race_day.band
     if band is not None:
         lines.append(f"Forecast band (5-50-95 %): {format_duration(band.p5)} – "
                      f"{format_duration(band.p50)} – {format_duration(band.p95)} "
                      f"({band.samples} sampled weathers, seed {band.seed}).")
     return lines
+
+
+def _heat_line(race_day: Any, system: str) -> str:
+    """WBGT and its band; the heat's loss of the limit and its cost in watts and seconds."""
+    from pacing.display.units import format_quantity
+
+    environment, costs = race_day.environment, race_day.costs
+    codes = {notice.code for notice in environment.notices}
+    wbgt = format_quantity(environment.wbgt_max_c, "temperature", system, 1)
+    band = environment.heat_category.replace("-", " ")
+    line = (f"Heat: WBGT up to {wbgt}, {band} heat-illness risk"
+            + (" (its cautions below)." if "heat-risk" in codes else "."))
+    loss = 100.0 * (1.0 - environment.heat_power_factor)
+    if costs is None or loss <= 0.05:
+        return line
+    if costs.heat_power > 0:
+        what = (f"power the athlete can sustain by {loss:.1f} % (about "
+                f"{costs.heat_power:.0f} W): riding that much less")
+        plan = "power"
+    else:
+        what = f"speed the athlete can sustain by {loss:.1f} %: running that much slower"
+        plan = "pace"
+    return (f"{line} It lowers the {what} would take about {costs.heat_time:.0f} s longer. "
+            f"A plan at a set {plan} keeps it as set (mind the limit); “Quickest within my "
+            "limits” plans within the lowered limit.")
+
+
+def _altitude_line(race_day: Any) -> str | None:
+    """The thinner air's gain against the lower aerobic power's loss, None when both are
+    negligible."""
+    environment, costs = race_day.environment, race_day.costs
+    if costs is None or (costs.altitude_power_loss <= 0 and costs.altitude_air_gain <= 0.5):
+        return None
+    net = costs.altitude_air_gain - costs.altitude_power_loss
+    verdict = (f"net {net:.0f} s gained" if net >= 0.5
+               else f"net {-net:.0f} s lost" if net <= -0.5 else "about even")
+    loss = 100.0 * (1.0 - environment.altitude_power_factor)
+    return (f"Altitude: the thinner air saves {costs.altitude_air_gain:.0f} s; the lower "
+            f"aerobic power ({loss:.1f} % less) costs {costs.altitude_power_loss:.0f} s: "
+            f"{verdict}.")
+
+
+def _limits_line(race_day: Any, system: str) -> str:
+    """Where the athlete's limits count as measured."""
+    from pacing.display.units import format_quantity
+
+    temperature, humidity, elevation = race_day.limits_measured
+    return (f"Heat and altitude count against limits measured at "
+            f"{format_quantity(temperature, 'temperature', system, 0)}, "
+            f"{100.0 * humidity:.0f} % humidity, "
+            f"{format_quantity(elevation, 'elevation', system, 0)}"
+            + (" (assumed)." if race_day.limits_assumed else "."))

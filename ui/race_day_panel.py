@@ -13,7 +13,7 @@ plan sets them before the panel is drawn (ui.race_day_data.panel_state); rows pu
 
 from __future__ import annotations
 
-from datetime import date, datetime, time
+from datetime import date, datetime, time, timedelta
 from typing import Any
 
 import plotly.graph_objects as go
@@ -22,6 +22,7 @@ import streamlit as st
 from pacing.display.notices import describe
 from pacing.errors import InputError, first_line
 from ui.race_day_data import (
+    COLUMN_HELP,
     DEFAULT_START,
     PANEL_KEYS,
     ROWS,
@@ -33,7 +34,9 @@ from ui.race_day_data import (
     clean_rows,
     environment_lines,
     race_day_inputs,
+    request_digest,
     rows_from_csv,
+    start_within_table,
     starter_rows,
 )
 
@@ -47,6 +50,18 @@ without the edits made to the old ones."""
 CSV_TAKEN = "race_day:csv_taken"
 """Session key: the id of the uploaded weather CSV already taken into the rows (an upload
 is taken once, so a reopened plan's rows are not overwritten by a file still shown)."""
+
+BEST_FOUND = "race_day:best_start"
+"""Session key: (digest of the request and window, the best start found for it): the curve
+stays on the page through reruns while the race and the window are the same."""
+
+UPLOAD_KEY = "race_day_csv"
+"""Widget key of the weather CSV's uploader."""
+
+UPLOAD_MESSAGE = "race_day:upload_message"
+"""Session key: what taking the upload did ("info", text, the start it set, ISO text) or why
+it was refused ("error", text, ""), shown under the uploader (the info while the start is
+the one it set)."""
 
 
 def _given(key: str, value: Any) -> Any:
@@ -64,12 +79,50 @@ def _show_rows(rows: list[dict[str, Any]]) -> None:
 
 
 def _column_config() -> dict[str, Any]:
-    """The editor's columns: the CSV's names, headers with their units."""
+    """The editor's columns: the CSV's names, short headers with their units, and what each
+    holds on pointing at the header."""
     config: dict[str, Any] = {}
     for name, label, kind in WEATHER_COLUMNS:
-        config[name] = (st.column_config.TextColumn(label) if kind == "text"
-                        else st.column_config.NumberColumn(label, format="%.2f"))
+        config[name] = (st.column_config.TextColumn(label, help=COLUMN_HELP[name],
+                                                    width="medium")
+                        if kind == "text"
+                        else st.column_config.NumberColumn(label, help=COLUMN_HELP[name],
+                                                           format="%g", width="small"))
     return config
+
+
+def _take_upload() -> None:
+    """The uploader's on_change (run before the page is drawn): the CSV's rows into the
+    table, and the start moved within the table's span when it was outside (the date
+    inputs can still be set then); a refusal kept to show in one line."""
+    upload = st.session_state.get(UPLOAD_KEY)
+    if upload is None:  # the file taken away: the table stays, the message goes
+        st.session_state.pop(UPLOAD_MESSAGE, None)
+        return
+    if upload.file_id == st.session_state.get(CSV_TAKEN):
+        return
+    try:
+        rows = rows_from_csv(upload.getvalue())
+    except InputError as error:
+        st.session_state[UPLOAD_MESSAGE] = ("error", f"Weather CSV: {first_line(error)}", "")
+        return
+    st.session_state[CSV_TAKEN] = upload.file_id
+    _show_rows(rows)
+    day = st.session_state.get(PANEL_KEYS["date"]) or date.today()
+    clock = st.session_state.get(PANEL_KEYS["time"]) or time.fromisoformat(DEFAULT_START)
+    moved, said = start_within_table(rows, datetime.combine(day, clock))
+    st.session_state[PANEL_KEYS["date"]] = moved.date()
+    st.session_state[PANEL_KEYS["time"]] = moved.time()
+    st.session_state[UPLOAD_MESSAGE] = (
+        ("info", said, moved.isoformat(timespec="minutes")) if said else None)
+
+
+def table_problem(problem: str) -> str:
+    """A check's one line as the page says it: "Weather table, row 3: …" [-]."""
+    import re
+
+    return re.sub(r"^weather row (\d+): ", r"Weather table, row \1: ",
+                  problem if problem.startswith("weather row") else f"Weather table: {problem}")
 
 
 def _start_inputs() -> str:
@@ -84,27 +137,33 @@ def _start_inputs() -> str:
     return datetime.combine(day, clock).isoformat(timespec="minutes")
 
 
-def _weather_rows(start: str) -> list[dict[str, Any]] | None:
+def _weather_rows(start: str, weather: dict[str, Any] | None) -> list[dict[str, Any]] | None:
     """The weather table as edited (a new upload replaces it), or None when it does not
     read."""
-    upload = st.file_uploader("Weather table (CSV, same columns)", type=["csv"],
-                              key="race_day_csv")
-    if upload is not None and upload.file_id != st.session_state.get(CSV_TAKEN):
-        try:
-            rows = rows_from_csv(upload.getvalue())
-        except InputError as error:
-            st.error(f"Weather CSV: {first_line(error)}")
-            return None
-        st.session_state[CSV_TAKEN] = upload.file_id
-        _show_rows(rows)
-    rows = st.session_state.get(ROWS) or starter_rows(datetime.fromisoformat(start))
+    st.caption("The table's rows replace the single temperature, humidity and wind above "
+               "(the sea-level pressure above, the wind's height and the terrain still "
+               "apply). Units as in the headers, in both unit systems; type in the table or "
+               "upload a CSV with the same columns.")
+    st.file_uploader("Weather table from a CSV file", type=["csv"], key=UPLOAD_KEY,
+                     on_change=_take_upload,
+                     help="columns time, temperature_c, relative_humidity_pct, "
+                          "wind_speed_mps, wind_from_deg; optional sea_level_pressure_hpa "
+                          "or station_pressure_hpa, latitude and longitude")
+    message = st.session_state.get(UPLOAD_MESSAGE)
+    if message and message[0] == "error":
+        st.error(message[1])
+        return None
+    if message and message[2] == start:  # said while the start is the one it moved to
+        st.info(message[1])
+    rows = st.session_state.get(ROWS) or starter_rows(datetime.fromisoformat(start),
+                                                      weather=weather)
     version = int(st.session_state.get(EDITOR_VERSION, 0))
     edited = st.data_editor(rows, column_config=_column_config(), num_rows="dynamic",
                             key=f"race_day_editor:{version}", width="stretch")
     cleaned = clean_rows(edited if isinstance(edited, list) else edited.to_dict("records"))
     problem = check_rows(cleaned, start)
     if problem is not None:
-        st.error(f"Weather table: {problem}")
+        st.error(table_problem(problem))
         return None
     return cleaned
 
@@ -138,7 +197,8 @@ def _spread_inputs() -> dict[str, float]:
     return {**spread, "samples": 200, "seed": 0}
 
 
-def render(course: Any, system: str) -> dict[str, Any] | None:
+def render(course: Any, system: str,
+           weather: dict[str, Any] | None = None) -> dict[str, Any] | None:
     """Draw the race-day inputs; the dict ui/pipeline.py passes on, or None when the weather
     table does not read (the reason shown in one line).
 
@@ -148,6 +208,9 @@ def render(course: Any, system: str) -> dict[str, Any] | None:
         The course (its span and place; kept for a later map of the places) [-].
     system : str
         "metric" or "imperial" (the table stays in the CSV's units) [-].
+    weather : dict, optional
+        The page's single weather in SI (ui.sections.weather_inputs): the table a coach
+        turns on starts from it; None: 20 °C, 50 %, calm [-].
 
     Returns
     -------
@@ -160,7 +223,7 @@ def render(course: Any, system: str) -> dict[str, Any] | None:
         _show_rows(list(st.session_state.pop(ROWS_TO_SHOW) or []))
     start = _start_inputs()
     through = st.toggle("Weather changes through the race (a table)", key=PANEL_KEYS["table"])
-    rows = _weather_rows(start) if through else []
+    rows = _weather_rows(start, weather) if through else []
     left, right = st.columns(2)
     heat = left.checkbox("Heat-acclimatised (about two weeks of training in the heat)",
                          key=PANEL_KEYS["heat"])
@@ -175,17 +238,59 @@ def render(course: Any, system: str) -> dict[str, Any] | None:
 
 
 def best_start_figure(best: Any) -> go.Figure:
-    """Finish time against start time over the window, the best start marked (plotly)."""
-    starts, finishes = best_start_points(best)
-    minutes = [finish / 60.0 for finish in finishes]
-    figure = go.Figure(go.Scatter(x=starts, y=minutes, mode="lines+markers",
-                                  line={"color": INK}, name="finish"))
-    best_clock = best_start_clock(best)
-    figure.add_trace(go.Scatter(x=[best_clock], y=[best.finish_time / 60.0], mode="markers",
-                                marker={"color": BEST_COLOR, "size": 12}, name="best start"))
-    figure.update_layout(xaxis_title="start", yaxis_title="finish time [min]", height=300,
-                         margin={"l": 50, "r": 10, "t": 10, "b": 40}, showlegend=False)
+    """Seconds slower than the best start against the start's clock time over the window
+    (a time axis: the search's closer starts near the best sit where they belong), the best
+    start marked, each point's finish time on hovering (plotly)."""
+    from pacing.display.units import format_duration
+
+    starts, finishes = best_start_moments(best), best_start_points(best)[1]
+    slower = [finish - best.finish_time for finish in finishes]
+    figure = go.Figure(go.Scatter(
+        x=starts, y=slower, mode="lines+markers", line={"color": INK}, name="finish",
+        customdata=[format_duration(finish) for finish in finishes],
+        hovertemplate="start %{x|%H:%M}: finish %{customdata} (+%{y:.0f} s)<extra></extra>"))
+    best_moment = best_start_moments(best, best.start)[0]
+    figure.add_trace(go.Scatter(x=[best_moment], y=[0.0], mode="markers",
+                                marker={"color": BEST_COLOR, "size": 12}, name="best start",
+                                hovertemplate="best start %{x|%H:%M}<extra></extra>"))
+    figure.update_layout(xaxis_title="start time", yaxis_title="slower than the best [s]",
+                         height=300, margin={"l": 50, "r": 10, "t": 10, "b": 40},
+                         showlegend=False, xaxis={"tickformat": "%H:%M"})
     return figure
+
+
+def best_start_moments(best: Any, *starts: float) -> list[datetime]:
+    """The local clock (naive datetime) of `starts` [s in the frame], or of every start of
+    the search when none is given (pacing.plan.best_start.BestStart) [-]."""
+    from pacing.weather.timeline import clock_text
+
+    seconds = starts or tuple(start for start, _ in best.grid)
+    return [datetime.fromisoformat(clock_text(moment, best.utc_offset)).replace(tzinfo=None)
+            for moment in seconds]
+
+
+def best_start_summary(best: Any) -> str:
+    """"Best start 09:40: finish 1:11:58; the window's starts differ by up to 9 s." [-]."""
+    from pacing.display.units import format_duration
+
+    finishes = best_start_points(best)[1]
+    spread = max(finishes) - min(finishes) if finishes else 0.0
+    return (f"Best start **{best_start_clock(best)}**: finish {format_duration(best.finish_time)}"
+            f"; the starts in this window differ by up to {spread:.0f} s.")
+
+
+def _window_defaults(day: Any, race_date: date) -> tuple[time, time]:
+    """The window offered first: from the weather table's first row on the race day (or
+    midnight) to four hours later, within the table's last row."""
+    from pacing.weather.timeline import clock_text
+
+    first, last = (datetime.fromisoformat(clock_text(moment, day.offset)).replace(tzinfo=None)
+                   for moment in day.weather.span)
+    begin = first if first.date() == race_date else datetime.combine(race_date, time(0, 0))
+    end = min(last, begin + timedelta(hours=4))
+    if end.date() != begin.date():
+        end = datetime.combine(begin.date(), time(23, 55))
+    return begin.time(), max(end, begin).time()
 
 
 def show_environment(race_day: Any, notices: Any, system: str) -> None:
@@ -229,20 +334,33 @@ def show_best_start(request: Any) -> None:
         return
     anchor = day.start if day.start is not None else day.weather.span[0]
     race_date = datetime.fromisoformat(clock_text(anchor, day.offset)).date()
+    earliest, latest = _window_defaults(day, race_date)
+    span = f"{earliest:%H%M}-{latest:%H%M}"  # a new table offers its own window
     left, right = st.columns(2)
-    first = left.time_input("Earliest start", value=time(8, 0), key="best_start_first")
-    last = right.time_input("Latest start", value=time(12, 0), key="best_start_last")
-    if not st.button("Find the best start in this window", key="best_start_go"):
+    first = left.time_input("Earliest start", value=earliest, key=f"best_start_first:{span}",
+                            step=300)
+    last = right.time_input("Latest start", value=latest, key=f"best_start_last:{span}",
+                            step=300)
+    st.caption("Finish time of every start in the window (every 10 minutes, then closer near "
+               "the best). A plan at a set power or pace feels the heat only through the "
+               "air; mind the heat-illness risk of a later start.")
+    asked = request_digest(request, race_date, first, last)
+    if st.button("Find the best start in this window", key="best_start_go"):
+        try:
+            if last < first:
+                raise InputError("the latest start must come after the earliest (same day)")
+            with st.spinner("Planning the race for every start in the window…"):
+                found = best_start(
+                    request, clock_seconds(datetime.combine(race_date, first), day.offset),
+                    clock_seconds(datetime.combine(race_date, last), day.offset))
+        except InputError as error:
+            st.session_state.pop(BEST_FOUND, None)
+            st.error(first_line(error))
+            return
+        st.session_state[BEST_FOUND] = (asked, found)
+    shown = st.session_state.get(BEST_FOUND)
+    if shown is None or shown[0] != asked:  # none yet, or found for another race or window
         return
-    try:
-        if last < first:
-            raise InputError("the latest start must come after the earliest (same day)")
-        best = best_start(request,
-                          clock_seconds(datetime.combine(race_date, first), day.offset),
-                          clock_seconds(datetime.combine(race_date, last), day.offset))
-    except InputError as error:
-        st.error(first_line(error))
-        return
-    st.markdown(f"Best start **{best_start_clock(best)}**: finish time "
-                f"{best.finish_time / 60.0:.1f} min.")
+    best = shown[1]
+    st.markdown(best_start_summary(best))
     st.plotly_chart(best_start_figure(best), key="best_start_plot")

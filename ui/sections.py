@@ -42,14 +42,19 @@ def route_facts(course, system: str) -> None:
 
 def segment_overview(course, bounds, system: str) -> None:
     """Show the segments as a small table, folded away: kind, start and length [km or mi],
-    mean and steepest grade [%], climbing [m or ft]."""
+    mean and steepest grade [%], climbing [m or ft]. The table is worked out and drawn only
+    while the fold is open (pandas and the table are not on the first page)."""
+    fold = st.expander(f"The {len(bounds) - 1} segments", expanded=False, key="segments_open",
+                       on_change="rerun")
+    if not fold.open:
+        return
     import pandas as pd
 
     from pacing.course.segments import describe_segments
 
     segments = describe_segments(course, bounds)
     dist, elev = unit_label("distance", system), unit_label("elevation", system)
-    with st.expander(f"The {len(segments)} segments", expanded=False):
+    with fold:
         st.dataframe(pd.DataFrame({
             "Segment": [s.index + 1 for s in segments],
             "Terrain": [s.kind for s in segments],

@@ -50,9 +50,27 @@ ASKING = "team:asking"
 """Session key of the question asked when a team's name is already in the library."""
 LIBRARY_MESSAGE = "team:library_message"
 """Session key of the last library write's message, shown after the page is drawn again."""
+PICK_STORED = "team:pick_stored"
+"""Session key of the id of the team just stored: the stored-team menu shows it next."""
+PLANNED = "team:planned"
+"""Session key of the last plan and the inputs it was made from: it stays on the page (a
+download or any other rerun does not clear it) until the inputs change."""
 
-CAUTION = ("Targets are model estimates. Keep the line safe at every change of lead, obey race "
-           "rules and the commissaires, and consult a physician before hard efforts.")
+RIDER_COLUMNS = {  # the table keeps the SI names of the library and team_from_frame
+    "name": ("Rider", "text", "the rider's name, as on the schedule"),
+    "mass_kg": ("Mass [kg]", "%.1f", "rider and bike"),
+    "cda_m2": ("CdA [m²]", "%.3f", "drag area riding alone, in the team's position"),
+    "cp_w": ("CP [W]", "%.0f", "critical power"),
+    "w_prime_j": ("W′ [J]", "%.0f", "work above critical power, in joules (20 kJ = 20000)"),
+    "max_power_w": ("Power cap [W]", "%.0f", "highest power in a turn; blank: CP + W′/60 s"),
+    "crr": ("Crr [-]", "%.4f", "rolling resistance coefficient; blank: the default"),
+}
+"""Headers of the rider table: column → (header with its unit, number format, help)."""
+
+CAUTION = ("Targets and speeds are model estimates, not safe limits. Keep the line safe at every "
+           "change of lead; on the road ride within your skills and the road and obey traffic "
+           "law; obey race rules and the commissaires, and consult a physician before hard "
+           "efforts.")
 
 
 def team_from_frame(frame: pd.DataFrame) -> Team:
@@ -113,6 +131,57 @@ def frame_from_team(team: Team) -> pd.DataFrame:
     if any(r.rolling_coefficient != MARTIN_1998["rolling_coefficient"] for r in riders):
         frame["crr"] = [r.rolling_coefficient for r in riders]
     return frame
+
+
+def rider_columns(st: Any) -> dict[str, Any]:
+    """The rider editor's column headers with units and help (RIDER_COLUMNS) [-]."""
+    config: dict[str, Any] = {}
+    for name, (label, number_format, helptext) in RIDER_COLUMNS.items():
+        config[name] = (st.column_config.TextColumn(label, help=helptext)
+                        if number_format == "text"
+                        else st.column_config.NumberColumn(label, help=helptext,
+                                                           format=number_format))
+    return config
+
+
+def drafting_label(key: str) -> str:
+    """A drafting set as the menu shows it, short enough for its box: the study's first
+    author and year, what the key adds (a position), and the reductions by place,
+    "Broker et al. 1999: 0/32/39/39 %", "Blocken et al. 2013, dropped: 2/23 %" [-]."""
+    import re
+
+    found = DRAFTING_SETS[key]
+    authors = found.source.split("(")[0].strip()
+    first = re.split(r",| &| and ", authors)[0].strip()
+    year = re.search(r"\((\d{4})\)", found.source)
+    study = f"{first}{' et al.' if first != authors else ''}" + (f" {year[1]}" if year else "")
+    tail = re.sub(r"^[a-z]+-\d{4}-?", "", key).replace("-", " ")
+    places = "/".join(f"{100.0 * value:.0f}" for value in found.reductions)
+    return f"{study}{', ' + tail if tail else ''}: {places} %"
+
+
+def drafting_caption(key: str) -> str:
+    """How a drafting set was measured, for the page (without pointers into the project's
+    files, which a coach does not have) [-]."""
+    import re
+
+    text = re.sub(r",\s*docs/[\w./-]+", "", DRAFTING_SETS[key].conditions)
+    return (f"Drag reduction by place in the line, leader first. {text[0].upper()}{text[1:]}."
+            " Places beyond the study's take its last value.")
+
+
+def conditions_of(weather: dict | None) -> Any:
+    """The page's single weather (ui.sections.weather_inputs, perhaps with the race day's
+    table, which the team plan does not use) as pacing.weather.conditions.Conditions of its
+    fields; None for no weather [-]."""
+    import dataclasses
+
+    from pacing.weather.conditions import Conditions
+
+    if not weather:
+        return None
+    names = {field.name for field in dataclasses.fields(Conditions)}
+    return Conditions(**{key: value for key, value in weather.items() if key in names})
 
 
 def drafting_key(reductions: Any) -> str | None:
@@ -256,8 +325,12 @@ def summary_line(plan: TeamPlan, race: TeamRace) -> str:
         head = f"{hours}:{minutes:02d}" if hours else f"{minutes}"
         return f"{head}:{rest:04.1f}"
 
-    return (f"Finish {clock(plan.ride.finish_time)} (rider {race.counts_rider}); equal turns "
-            f"at constant speed {clock(plan.equal_turns.finish_time)}; gain {plan.gain:.1f} s")
+    place = race.counts_rider
+    suffix = "th" if 10 <= place % 100 <= 20 else {1: "st", 2: "nd", 3: "rd"}.get(place % 10, "th")
+    ordinal = f"{place}{suffix}"
+    return (f"Finish {clock(plan.ride.finish_time)} (time of the {ordinal} rider across the "
+            f"line); equal turns at constant speed {clock(plan.equal_turns.finish_time)}; "
+            f"gain {clock(plan.gain) if plan.gain >= 60.0 else f'{plan.gain:.1f} s'}")
 
 
 def race_from_inputs(choice: dict[str, Any], course: Any = None,
@@ -300,7 +373,8 @@ def _inputs(st: Any, system: str, has_course: bool) -> tuple[pd.DataFrame, dict[
     st.caption("One row per rider, in starting order (the first leads off). Leave the cap "
                "blank for CP + W′/60 s.")
     frame = st.data_editor(st.session_state.get(FILLED_RIDERS, DEFAULT_RIDERS),
-                           num_rows="dynamic", key="team_riders", hide_index=True)
+                           num_rows="dynamic", key="team_riders", hide_index=True,
+                           column_config=rider_columns(st))
     columns = st.columns(3)
     kinds = ["track", "road"] if has_course else ["track"]
     kind = columns[0].radio("Race", kinds, key="team_kind", horizontal=True,
@@ -311,17 +385,20 @@ def _inputs(st: Any, system: str, has_course: bool) -> tuple[pd.DataFrame, dict[
     lap = columns[0].number_input("Lap length [m]", 133.0, 500.0, 250.0, 1.0,
                                   key="team_lap", disabled=kind != "track")
     riders = max(int(frame.dropna(how="all").shape[0]), 1)
-    counts = columns[1].number_input("Rider whose time counts", 1, max(riders, 1),
+    counts = columns[1].number_input("Team time taken on rider no. (across the line)",
+                                     1, max(riders, 1),
                                      min(3 if kind == "track" else riders, riders), 1,
-                                     key="team_counts")
+                                     key="team_counts",
+                                     help="3: the team's time is the third rider's (team "
+                                          "pursuit); the 4th or 5th in a road team time trial")
     reserve = columns[1].number_input("W′ reserve [kJ]", 0.0, 20.0, 0.0, 0.5,
                                       key="team_reserve") * 1000.0
     standing = columns[1].toggle("Standing start", value=True, key="team_standing")
     key = columns[2].selectbox("Drafting by position", sorted(DRAFTING_SETS),
                                index=sorted(DRAFTING_SETS).index(DEFAULT_DRAFTING_SET),
-                               key="team_drafting",
+                               key="team_drafting", format_func=drafting_label,
                                help="published drag reductions by place in the line")
-    columns[2].caption(DRAFTING_SETS[key].conditions)
+    columns[2].caption(drafting_caption(key))
     parts = columns[2].number_input(
         "Parts with a leader power of their own", 1, 8, PlanOptions().power_parts, 1,
         key="team_power_parts",
@@ -362,18 +439,20 @@ def _show(st: Any, race: TeamRace, plan: TeamPlan, system: str) -> None:
     columns = st.columns(4)
     columns[0].download_button("Turn schedule (CSV)",
                                schedule_csv(turns, words, system, race.lap_length),
-                               "team_schedule.csv", "text/csv", key="team_csv")
+                               "team_schedule.csv", "text/csv", key="team_csv", on_click="ignore")
     columns[1].download_button("Turn schedule and W′ (XLSX)",
                                schedule_xlsx(turns, riders, balance, words, system,
                                              race.lap_length),
-                               "team_schedule.xlsx", key="team_xlsx",
+                               "team_schedule.xlsx", key="team_xlsx", on_click="ignore",
                                mime="application/vnd.openxmlformats-officedocument."
                                     "spreadsheetml.sheet")
     card = team_card_inputs(race, plan, system)
     columns[2].download_button("Printable card (PNG)", team_card_png(**card),
-                               "team_card.png", "image/png", key="team_card_png")
+                               "team_card.png", "image/png", key="team_card_png",
+                               on_click="ignore")
     columns[3].download_button("Printable card (PDF)", team_card_pdf(**card),
-                               "team_card.pdf", "application/pdf", key="team_card_pdf")
+                               "team_card.pdf", "application/pdf", key="team_card_pdf",
+                               on_click="ignore")
     st.caption(CAUTION)
 
 
@@ -407,6 +486,7 @@ def ask_before_replacing(st: Any, pressed: bool, action: Callable[[str], Any],
             st.error(first_line(error), icon="⚠️")
             return
         st.session_state[LIBRARY_MESSAGE] = success(stored)
+        st.session_state[PICK_STORED] = getattr(stored, "id", None)
         st.rerun()
 
     if pressed:
@@ -438,6 +518,9 @@ def _library_part(st: Any, frame: pd.DataFrame, choice: dict[str, Any],
             records = library.teams()
             if records:
                 labels = {r.id: f"{r.name} ({r.team.size} riders)" for r in records}
+                stored = st.session_state.pop(PICK_STORED, None)
+                if stored in labels:  # the team just stored is the one shown
+                    st.session_state["team_library_pick"] = stored
                 chosen = st.selectbox("Stored team", list(labels), format_func=labels.get,
                                       key="team_library_pick")
                 record = next(r for r in records if r.id == chosen)
@@ -475,23 +558,46 @@ def render(st: Any, system: str, course: Any = None, weather: dict | None = None
         The coach's library (pacing.store.library.open_library; None: PACING_DATABASE_URL,
         else the default file) [-].
     """
-    from pacing.weather.conditions import Conditions
-
     st.subheader("Team time trial or team pursuit")
     frame, choice = _inputs(st, system, course is not None)
+    if weather and (weather.get("race_day") or {}).get("rows"):
+        st.caption("The team plan rides in the page's single weather (section 3), not in the "
+                   "race day's weather table.")
     if st.toggle("Teams in the library", key="team_library",
                  help="fill the rider table from a stored team, or store it as one"):
         _library_part(st, frame, choice, library_location)
-    if not st.button("Plan the team", key="team_plan", type="primary"):
-        return
+    pressed = st.button("Plan the team", key="team_plan", type="primary")
     try:
-        team = team_from_frame(frame)
-        conditions = Conditions(**weather) if weather else None
-        race = race_from_inputs(choice, course, conditions)
-        with st.spinner("Choosing turns and powers…"):
-            plan = plan_team(team, race, PlanOptions(
-                power_parts=int(choice.get("power_parts", PlanOptions().power_parts))))
+        conditions = conditions_of(weather)
+        key = plan_key(frame, choice, conditions, course)
+        if pressed:
+            team = team_from_frame(frame)
+            race = race_from_inputs(choice, course, conditions)
+            with st.spinner("Choosing turns and powers…"):
+                plan = plan_team(team, race, PlanOptions(
+                    power_parts=int(choice.get("power_parts", PlanOptions().power_parts))))
+            st.session_state[PLANNED] = (key, race, plan)
     except (InputError, ValueError) as error:
+        st.session_state.pop(PLANNED, None)
         st.error(first_line(error), icon="⚠️")
         return
-    _show(st, race, plan, system)
+    planned = st.session_state.get(PLANNED)
+    if planned is None:
+        return
+    if planned[0] != key:
+        st.info("The riders or the race changed: press “Plan the team” for a new plan.")
+        return
+    _show(st, planned[1], planned[2], system)
+
+
+def plan_key(frame: pd.DataFrame, choice: dict[str, Any], conditions: Any,
+             course: Any) -> str:
+    """A digest of everything a team plan is made from: the rider table, the race choices,
+    the air and the course (its name and points) [-]."""
+    import hashlib
+
+    points = None if course is None else (course.name, course.distance.size,
+                                           float(course.distance[-1]),
+                                           float(np.sum(course.elevation)))
+    text = repr((frame.to_csv(index=False), sorted(choice.items()), conditions, points))
+    return hashlib.sha1(text.encode()).hexdigest()

@@ -43,7 +43,7 @@ def add_course_flags(parser: argparse.ArgumentParser) -> None:
         The command's parser: gets ROUTE, --step [m], --segment-length [m], --flat,
         --track N[,N], --gaps join|drop|refuse and --json [-].
     """
-    from pacing.course.recording import GAP_CHOICES
+    from pacing.course.gaps import GAP_CHOICES
 
     parser.add_argument("route", help="GPX file of the course")
     parser.add_argument("--step", type=float, default=None,

@@ -37,7 +37,8 @@ from pacing.fieldtest.checks import MAX_BOOTSTRAP_DRAWS, check_bootstrap_draws
 from pacing.fieldtest.methods import FIELD_TEST_METHODS
 
 if TYPE_CHECKING:
-    from pacing.fieldtest.estimate import FieldTestResult, PositionTest
+    from pacing.fieldtest.estimate import PositionTest
+    from pacing.fieldtest.estimate_result import FieldTestResult
     from pacing.notices import Notice
     from pacing.weather.conditions import Conditions
 

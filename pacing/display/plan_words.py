@@ -152,9 +152,28 @@ def _d_prime_recovery_by_analogy(values: Values, system: str) -> str:
     return "D′ recovery below critical speed uses Skiba's constants from cycling"
 
 
+LIMIT_WORDS = {
+    "mean-power": "the mean power asked for",
+    "work": "the total work asked for",
+    "max-power": "the power cap",
+    "min-power": "the lowest power allowed",
+    "w-prime-reserve": "the W′ reserve",
+    "effort-cap": "the effort cap",
+}
+"""A binding limit's key (pacing.plan.cycling RacePlan.binding) in words."""
+
+
+def _limit_words(limit: str) -> str:
+    """One binding limit in words: "max-power on 3 segments" → "the power cap on 3
+    segments"; a key without words stays as it is."""
+    key, _, where = str(limit).partition(" on ")
+    words = LIMIT_WORDS.get(key, str(limit) if not where else key)
+    return f"{words} on {where}" if where else words
+
+
 def _limits_reached(values: Values, system: str) -> str:
     """limits: the names of the limits that bind."""
-    return "limits reached: " + ", ".join(str(b) for b in values["limits"])
+    return "the plan holds to " + ", ".join(_limit_words(b) for b in values["limits"])
 
 
 def _w_prime_exhausted(values: Values, system: str) -> str:

@@ -56,6 +56,14 @@ def _count(value: Any) -> str:
     return UNKNOWN if number is None else f"{number:.0f}"
 
 
+def _counted(value: Any, one: str, many: str) -> str:
+    """A count with its noun in the singular or plural, "1 stop", "3 stops"."""
+    number = _number(value)
+    if number is None:
+        return f"{UNKNOWN} {many}"
+    return f"{number:.0f} {one if round(number) == 1 else many}"
+
+
 def _filled(values: Values, system: str) -> str:
     return (f"{_count(values['count'])} blank {values['label']} reading(s) were interpolated in "
             f"time (longest gap {_seconds(values['longest_s'])})")
@@ -118,12 +126,12 @@ def _crr_held(values: Values, system: str) -> str:
 
 def _stops(values: Values, system: str) -> str:
     speed = format_quantity(_number(values["speed_mps"]), "speed", system)
-    return (f"{_count(values['count'])} stop(s) (below {speed}), "
+    return (f"{_counted(values['count'], 'stop', 'stops')} (below {speed}), "
             f"{_clock(values['duration_s'])} stationary in all")
 
 
 def _braking(values: Values, system: str) -> str:
-    return (f"{_count(values['count'])} stretch(es) of braking: the model is made to slow down "
+    return (f"{_counted(values['count'], 'stretch', 'stretches')} of braking: the model is made to slow down "
             "there as the rider did, and that time counts with the stops")
 
 
@@ -135,10 +143,17 @@ def _not_reached(values: Values, system: str) -> str:
 
 def _unexplained(values: Values, system: str) -> str:
     share = _number(values["share"])
-    shown = UNKNOWN if share is None else f"{100 * share:.1f} %"
-    return (f"the model with the day's power, drag, rolling, wind and stops still misses "
-            f"{_seconds(values['other_s'])} ({shown} of the race time): drafting, position "
-            "changes or a course that differs from the plan's may explain it")
+    shown = UNKNOWN if share is None else f"{100 * abs(share):.1f} %"
+    other = _number(values["other_s"])
+    if other is None:
+        gap = f"{UNKNOWN} off what the model explains"
+    elif other < 0:
+        gap = f"{_seconds(-other)} faster than the model explains"
+    else:
+        gap = f"{_seconds(other)} slower than the model explains"
+    return (f"with the day's power, drag, rolling, wind and stops the race is still {gap} "
+            f"({shown} of the race time): drafting, position changes or a course that "
+            "differs from the plan's may explain it")
 
 
 WORDS: dict[str, Callable[[Values, str], str]] = {

@@ -116,6 +116,22 @@ def _heat_loss(factor: Any) -> str:
     return _weather_number(100.0 * (1.0 - float(factor)) if _is_number(factor) else None, ".1f")
 
 
+def _model_name(key: Any) -> str:
+    """A heat or altitude model's key as a reader knows it: its authors and year from the
+    registry's source ("racinais-2015" → "Racinais et al. 2015"); the key when unknown."""
+    import re
+
+    from pacing.physiology.altitude import ALTITUDE_MODELS
+    from pacing.physiology.heat import HEAT_MODELS
+
+    for registry in (HEAT_MODELS, ALTITUDE_MODELS):
+        if key in registry:
+            source = registry[key].source
+            name = source.split("),")[0] + ")" if ")," in source else source
+            return re.sub(r" \((\d{4})\)$", r" \1", name)
+    return str(key)
+
+
 def _is_number(value: Any) -> bool:
     try:
         float(value)
@@ -136,20 +152,21 @@ def _heat_power_loss(values: Values, system: str) -> str:
     limit = "critical power" if values.get("quantity") == "power" else "critical speed"
     state = "heat-acclimatised" if values.get("acclimatised") else "not heat-acclimatised"
     return (f"heat lowers the {limit} you can sustain today by about "
-            f"{_heat_loss(values['factor'])} % ({state}; model {values.get('model')}).")
+            f"{_heat_loss(values['factor'])} % ({state}; {_model_name(values.get('model'))}).")
 
 
 def _heat_model_outside_validity(values: Values, system: str) -> str:
     """model, wbgt_c, low_c, high_c [°C]."""
-    return (f"WBGT {_heat_temperature(values['wbgt_c'], system)} is beyond the heat the "
-            f"model {values.get('model')} was measured in (up to "
+    return (f"WBGT {_heat_temperature(values['wbgt_c'], system)} is beyond the heat "
+            f"{_model_name(values.get('model'))} measured in (up to "
             f"{_heat_temperature(values['high_c'], system)}): its loss is extended and the "
             "true loss may be larger.")
 
 
 def _heat_acclimatisation_not_modelled(values: Values, system: str) -> str:
     """model."""
-    return (f"the heat model {values.get('model')} does not separate acclimatised runners: "
+    return (f"the heat model ({_model_name(values.get('model'))}) does not separate "
+            "acclimatised runners: "
             "the same loss is used, so the benefit of acclimatisation is not counted.")
 
 
@@ -158,15 +175,16 @@ def _altitude_power_loss(values: Values, system: str) -> str:
     limit = "critical power" if values.get("sport") == "cycling" else "critical speed"
     state = "acclimatised" if values.get("acclimatised") else "not acclimatised"
     return (f"altitude lowers the {limit} you can sustain today by about "
-            f"{_heat_loss(values['factor'])} % ({state} to altitude; model "
-            f"{values.get('model')}); the thinner air lowers drag at the same time.")
+            f"{_heat_loss(values['factor'])} % ({state} to altitude; "
+            f"{_model_name(values.get('model'))}); the thinner air lowers drag at the same time.")
 
 
 def _altitude_model_outside_validity(values: Values, system: str) -> str:
     """model, elevation_m, high_m [m]."""
     return (f"the course reaches {_heat_elevation(values['elevation_m'], system)}, above the "
             f"{_heat_elevation(values['high_m'], system)} the altitude model "
-            f"{values.get('model')} covers: its loss is extended and may be off.")
+            f"({_model_name(values.get('model'))}) covers: its loss is extended and may be "
+            "off.")
 
 
 def _wbgt_without_sun(values: Values, system: str) -> str:

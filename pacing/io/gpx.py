@@ -10,7 +10,7 @@ included) are read. Every problem becomes pacing.errors.InputError with a one-li
 
 Points are taken from all tracks and their segments (or, without any, from the routes) with
 their times; `load_course` keeps the tracks asked for, finds the gaps between points and
-builds the course (pacing.course.recording). Waypoints are counted, not used.
+builds the course (pacing.course.recorded_course). Waypoints are counted, not used.
 
 The demo courses (invented places) live in demo_routes/ beside the package; DEMO_ROUTES_DIR,
 demo_route_paths() and DEFAULT_DEMO_ROUTE find them.
@@ -33,8 +33,10 @@ import numpy as np
 from numpy.typing import ArrayLike
 
 from pacing.course.elevation import ElevationSmoothing
-from pacing.course.geometry import DEFAULT_STEP, Course, validate_track
-from pacing.course.recording import Recording, RecordingPart, course_from_recording
+from pacing.course.geometry import DEFAULT_STEP, Course
+from pacing.course.recorded_course import course_from_recording
+from pacing.course.recording import Recording, RecordingPart
+from pacing.course.track_checks import validate_track
 from pacing.errors import InputError, first_line
 from pacing.io.files import read_bounded
 from pacing.io.safe_xml import local_name, walk_xml
@@ -350,7 +352,7 @@ def load_course(source: str | os.PathLike | bytes | bytearray | memoryview | Any
                 smoothing: ElevationSmoothing | None = None,
                 allow_missing_elevation: bool = False, name: str | None = None,
                 tracks: Sequence[int] | None = None, gaps: str = "join") -> Course:
-    """Read a GPX file and build its Course (pacing.course.recording.course_from_recording).
+    """Read a GPX file and build its Course (pacing.course.recorded_course.course_from_recording).
 
     Raises InputError for everything read_track and course_from_recording refuse, and for a
     course shorter than MINIMUM_COURSE_LENGTH.

@@ -20,7 +20,8 @@ import pandas as pd
 
 from pacing.display.units import format_pace, to_display, unit_label
 from pacing.errors import InputError
-from pacing.io.exports import CARD_DPI, table_to_csv, wrap_text
+from pacing.io.exports import CARD_DPI, table_to_csv
+from pacing.io.target_card import wrap_text
 from pacing.team.schedule import RiderRow, TurnRow, plan_notices, turn_rows
 
 if TYPE_CHECKING:

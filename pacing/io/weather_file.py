@@ -4,7 +4,8 @@ Columns, named exactly so in a header row (any order):
 
 - ``time``: ISO 8601, with an offset from UTC ("2026-07-14T14:00+02:00", "…Z") or without
   one (local to the race);
-- ``temperature_c`` [°C], ``relative_humidity_pct`` [%], ``wind_speed_mps`` [m/s at 10 m],
+- ``temperature_c`` [°C], ``relative_humidity_pct`` [%], ``wind_speed_mps`` [m/s at 10 m,
+  or at the height ``--wind-height`` states],
   ``wind_from_deg`` [deg clockwise from north, where the wind blows FROM];
 - optional: ``sea_level_pressure_hpa`` (as weather reports publish it) or
   ``station_pressure_hpa`` (measured at the start's elevation), not both [hPa];

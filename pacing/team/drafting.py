@@ -61,7 +61,7 @@ DRAFTING_SETS: dict[str, DraftingSet] = {
         "field crank power (SRM) of a men's team pursuit line at 57-60 km/h on a velodrome: "
         "positions 2-4 rode at 70.8 %, 64.1 % and 64.0 % of the leader's 607 W; the drag "
         "reductions are those power ratios divided by the aerodynamic share of the leader's "
-        "power at 60 km/h (about 0.92, docs/team.md); the leader is the reference (0)"),
+        "power at 60 km/h (about 0.92 by the power balance); the leader is the reference (0)"),
     "fitton-2018": DraftingSet(
         (0.04, 0.42, 0.48, 0.47),
         "Fitton, Symons & Caddy (2018), Proc IMechE P, doi:10.1177/1754337117692280",

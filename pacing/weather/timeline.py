@@ -487,6 +487,10 @@ def check_covers(table: WeatherTable, start: float, finish: float) -> None:
         raise WeatherSpanError(f"the race starts at {clock_text(start, table.utc_offset)}, before "
                          f"the weather table's first row ({clock_text(first, table.utc_offset)})"
                          "; add a row at or before the start")
+    if start > last + 1e-6:
+        raise WeatherSpanError(f"the race starts at {clock_text(start, table.utc_offset)}, after "
+                         f"the weather table's last row ({clock_text(last, table.utc_offset)})"
+                         "; add rows from the start to the finish, or start earlier")
     if finish > last + 1e-6:
         raise WeatherSpanError(f"the race is predicted to finish at "
                          f"{clock_text(finish, table.utc_offset)}, after the weather table's "
