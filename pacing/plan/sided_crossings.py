@@ -348,8 +348,8 @@ def kept_finish(scaled: ScaledProblem, limits: SolverLimits, power: np.ndarray) 
     float
         Finish time over the constant plan's, or infinity [-].
     """
-    x = power / scaled.mean
-    kept = abs(float(scaled.coupling(x)[0])) <= 1e-8 and (
+    ratio = power / scaled.mean
+    kept = abs(float(scaled.coupling(ratio)[0])) <= 1e-8 and (
         limits.reserve is None
-        or float(scaled.balance_constraint(limits.reserve)["fun"](x).min()) >= -1e-8)
-    return scaled.objective(x) if kept else np.inf
+        or float(scaled.balance_constraint(limits.reserve)["fun"](ratio).min()) >= -1e-8)
+    return scaled.objective(ratio) if kept else np.inf
