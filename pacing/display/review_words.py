@@ -131,8 +131,8 @@ def _stops(values: Values, system: str) -> str:
 
 
 def _braking(values: Values, system: str) -> str:
-    return (f"{_counted(values['count'], 'stretch', 'stretches')} of braking: the model is made to slow down "
-            "there as the rider did, and that time counts with the stops")
+    return (f"{_counted(values['count'], 'stretch', 'stretches')} of braking: the model is "
+            "made to slow down there as the rider did, and that time counts with the stops")
 
 
 def _not_reached(values: Values, system: str) -> str:
