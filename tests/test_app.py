@@ -812,6 +812,7 @@ def test_the_page_table_shows_the_weather_met_only_where_it_changes():
     from ui import sections
 
     table = pd.DataFrame({"Segment": [1, 2], "Split [h:mm:ss]": ["0:02:40"] * 2,
+                          "Clock [hh:mm]": ["09:00", "09:02"],
                           "Clock [ISO 8601]": ["2026-07-14T09:00:00+02:00",
                                                "2026-07-14T09:02:40+02:00"],
                           "Air [°C]": [24.0, 25.5], "Wind [km/h]": [10.0, 10.0],

@@ -327,6 +327,7 @@ def test_a_race_day_adds_clock_and_weather_columns_in_both_unit_systems():
     metric = segment_table(rows)
     assert list(metric["Clock [ISO 8601]"]) == ["2026-07-14T09:00:00+02:00",
                                                 "2026-07-14T09:08:20+02:00"]
+    assert list(metric["Clock [hh:mm]"]) == ["09:00", "09:08"]  # the race's local clock
     assert list(metric["Air [°C]"]) == [25.0, 25.0]
     assert list(metric["Wind [km/h]"]) == [18.0, 18.0]
     assert list(metric["Wind from [deg]"]) == [350, 350]

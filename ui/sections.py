@@ -482,14 +482,13 @@ def page_targets(table, easing: list[str] | None = None):
         shown.insert(list(shown.columns).index(next(
             c for c in shown.columns if str(c).startswith("Target power"))) + 1,
             "Range [W]", band)
-    # the weather met: the clock as HH:MM; a column the same on every row (one weather all
-    # day) says nothing the weather inputs above do not
+    # the weather met: the clock as HH:MM (the files' "Clock [hh:mm]"; the ISO text stays in
+    # the files); a column the same on every row (one weather all day) says nothing the
+    # weather inputs above do not
     for column in list(shown.columns):
         name = str(column)
-        if name.startswith("Clock"):
-            shown[column] = [str(v)[11:16] if isinstance(v, str) and len(v) >= 16 else v
-                             for v in shown[column]]
-            shown = shown.rename(columns={column: "Clock [hh:mm]"})
+        if name == "Clock [ISO 8601]":
+            shown = shown.drop(columns=[column])
         elif name.split(" [")[0] in WEATHER_MET_COLUMNS and shown[column].nunique() <= 1:
             shown = shown.drop(columns=[column])
     if easing is not None:  # beside the plan's numbers, before the weather's columns

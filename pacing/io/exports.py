@@ -45,9 +45,9 @@ def segment_table(rows: Iterable[Any], system: str = "metric") -> pd.DataFrame:
     "Power high [W]", "Target pace [min/km]", "Speed [km/h]", "Headwind [km/h]",
     "Split [h:mm:ss]", "Elapsed [h:mm:ss]", "W′ left [kJ]", "Walked [km]" (bike pushed on
     foot), "Gap [km]" (a gap in the recording joined by a straight line), and on a race day
-    "Clock [ISO 8601]" (at the segment's start), "Air [°C]" (°F imperial), "Wind [km/h]" and
-    "Wind from [deg]" (the weather met). Power, pace, W′, walking, gap and race-day columns
-    appear only when some segment has them.
+    "Clock [hh:mm]" and "Clock [ISO 8601]" (at the segment's start), "Air [°C]" (°F
+    imperial), "Wind [km/h]" and "Wind from [deg]" (the weather met). Power, pace, W′,
+    walking, gap and race-day columns appear only when some segment has them.
     Rounded for reading (distances 0.01, grade and speeds 0.1, power 1 W, W′ 0.1 kJ); a
     missing value is an empty cell, never NaN text.
 
@@ -121,7 +121,9 @@ def _weather_columns(rows: Sequence[Any], system: str, col: Any) -> dict[str, li
     """The race day's columns: clock time and the weather met (none without a race day)."""
     columns: dict[str, list] = {}
     if any(row_value(row, "clock_time") for row in rows):
-        columns["Clock [ISO 8601]"] = [row_value(row, "clock_time") or None for row in rows]
+        clock = [row_value(row, "clock_time") or None for row in rows]
+        columns["Clock [hh:mm]"] = [_local_clock(text) for text in clock]
+        columns["Clock [ISO 8601]"] = clock
     if row_has(rows, "temperature"):
         columns[f"Air [{unit_label('temperature', system)}]"] = col("temperature",
                                                                    "temperature", digits=1)
@@ -130,6 +132,16 @@ def _weather_columns(rows: Sequence[Any], system: str, col: Any) -> dict[str, li
                                                                     digits=1)
         columns["Wind from [deg]"] = col("wind_from", digits=0)
     return columns
+
+
+def _local_clock(text: Any) -> str | None:
+    """An ISO 8601 clock time as the race's local "hh:mm" (its own offset kept), for a coach
+    reading the table; None stays None."""
+    if not text:
+        return None
+    from datetime import datetime
+
+    return datetime.fromisoformat(str(text)).strftime("%H:%M")
 
 
 def table_to_csv(table: pd.DataFrame, notices: Sequence[str] = ()) -> bytes:
