@@ -36,12 +36,17 @@ class TurnChoice:
         Factor on every leader's power in each of equal parts of the distance (a turn takes
         the factor of the part where it starts), so that one rider's turns need not share one
         power; None for one power per rider [-].
+    ride_on_to_finish : bool
+        The leader of the turn before the last rides on to the finish: no last change of lead
+        (pacing.team.plan sets it after the search when the last turn would be a scrap; the
+        search itself never does, so its objective stays continuous) [-].
     """
 
     turn_length: np.ndarray
     turn_power: np.ndarray
     drop_distance: np.ndarray
     power_profile: np.ndarray | None = None
+    ride_on_to_finish: bool = False
 
 
 @dataclass(frozen=True, eq=False)
@@ -104,6 +109,14 @@ def build_turns(choice: TurnChoice, distance: float, counts_rider: int) -> Turns
     >>> turns = build_turns(choice, 1000.0, 2)
     >>> turns.leader.tolist(), turns.end.tolist()
     ([0, 1, 0, 1], [300.0, 500.0, 800.0, 1000.0])
+
+    Over 1050 m the last turn would be 50 m; with ride_on_to_finish rider 1 rides on:
+
+    >>> on = TurnChoice(choice.turn_length, choice.turn_power, choice.drop_distance,
+    ...                 ride_on_to_finish=True)
+    >>> turns = build_turns(on, 1050.0, 2)
+    >>> turns.leader.tolist(), turns.end.tolist()
+    ([0, 1, 0, 1], [300.0, 500.0, 800.0, 1050.0])
     """
     riders = choice.turn_length.size
     lengths = [float(value) for value in choice.turn_length]
@@ -134,8 +147,23 @@ def build_turns(choice: TurnChoice, distance: float, counts_rider: int) -> Turns
         if last and end < distance - 1e-6:
             dropped[leader] = end
         start = end
+    if choice.ride_on_to_finish and len(leaders) > 1:
+        _ride_on(leaders, ends, lines, dropped)
+        starts.pop()
     return Turns(np.array(leaders, dtype=int), np.array(starts), np.array(ends),
                  _places(lines, riders), dropped)
+
+
+def _ride_on(leaders: list[int], ends: list[float], lines: list[list[int]],
+             dropped: np.ndarray) -> None:
+    """The last turn merged into the one before (in place): its leader rides on to the finish
+    and so does not drop out where his turn would have ended."""
+    finish = ends.pop()
+    leaders.pop()
+    lines.pop()
+    if dropped[leaders[-1]] == ends[-1]:
+        dropped[leaders[-1]] = np.inf
+    ends[-1] = finish
 
 
 def _places(lines: list[list[int]], riders: int) -> np.ndarray:
