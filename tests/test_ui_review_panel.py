@@ -15,6 +15,7 @@ from ui.review_panel import (
     power_figure,
     review_for_page,
     review_json,
+    segment_frame,
     split_table,
 )
 
@@ -44,6 +45,16 @@ def test_the_split_table_ends_with_the_total_of_its_parts(review):
     assert table["Cause"].iloc[-1].startswith("total")
     assert table["Time [s]"].iloc[:-1].sum() == pytest.approx(table["Time [s]"].iloc[-1],
                                                               abs=0.35)
+
+
+def test_the_page_segment_table_leaves_out_what_repeats_and_the_files_keep_it(review):
+    from pacing.io.review_file import review_table
+
+    page, full = segment_frame(review, "metric"), review_table(review, "metric")
+    assert "From [km]" in full.columns and "From [km]" not in page.columns
+    assert "Stopped [s]" not in page.columns  # this rider never stopped
+    assert set(page.columns) < set(full.columns)
+    assert len(page) == len(full)
 
 
 def test_figures_along_the_course_in_the_page_units(review):

@@ -72,10 +72,16 @@ def split_table(review: Any) -> pd.DataFrame:
 
 
 def segment_frame(review: Any, system: str) -> pd.DataFrame:
-    """The segment table (pacing.io.review_file.review_table) in the page's units."""
+    """The segment table (pacing.io.review_file.review_table) in the page's units, narrower
+    so it fits the page: "From" left out (it is the row above's "To") and "Stopped" only when
+    the rider stopped somewhere. The downloads keep the full table."""
     from pacing.io.review_file import review_table
 
-    return review_table(review, system)
+    table = review_table(review, system)
+    narrow = table.drop(columns=[c for c in table.columns if str(c).startswith("From [")])
+    if "Stopped [s]" in narrow.columns and not (narrow["Stopped [s]"] > 0).any():
+        narrow = narrow.drop(columns=["Stopped [s]"])
+    return narrow
 
 
 def gap_figure(review: Any, system: str) -> go.Figure:
