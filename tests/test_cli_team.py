@@ -39,6 +39,9 @@ def test_team_pursuit_json_has_the_documented_keys(capsys):
                                        "speed_mps"}
     assert result["turns"][0]["start_m"] == 0.0 and result["turns"][-1]["end_m"] == 4000.0
     assert result["finish_time_s"] <= result["equal_turns_time_s"]
+    assert result["finish_time_s"] <= result["equal_power_time_s"]  # the second reference
+    assert result["equal_power_gain_s"] == pytest.approx(
+        result["equal_power_time_s"] - result["finish_time_s"])
     assert 180.0 < result["finish_time_s"] < 330.0  # women's team pursuit times, from memory
     assert sum(r["dropped_at_m"] is not None for r in result["riders"]) <= 1  # 3rd counts
     assert all(r["min_w_prime_balance_j"] >= -1e-6 for r in result["riders"])
@@ -48,6 +51,7 @@ def test_team_pursuit_table_shows_laps_lap_times_and_the_caution(capsys):
     code, out, _ = run(capsys, *TRACK, *RIDERS, "--w-prime-reserve", "1000")
     assert code == 0
     assert "Lap time [s]" in out and "Laps" in out and "gain" in out
+    assert "equal turns at constant speed" in out and "equal turns, every leader at" in out
     assert "Caution" in out
     assert "nan" not in out.lower() and "inf" not in out.lower()
 

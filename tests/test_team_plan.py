@@ -142,3 +142,74 @@ def test_a_power_per_part_of_the_race_is_never_slower_and_keeps_every_reserve():
         expected = min(four.choice.turn_power[index] * profile[int(row.start_m // 1000.0)],
                        four.team.power_caps[index])
         assert row.power_w == pytest.approx(expected, rel=1e-3)
+
+
+def test_no_change_of_lead_a_few_metres_before_the_finish():
+    from dataclasses import replace
+
+    from pacing.team.plan import FINISH_SLACK, SCRAP_TURN_SHARE, ride_choice
+
+    team = Team((rider("A", 450.0), rider("B"), rider("C"), rider("D", 380.0)))
+    race = track(3, standing_start=True)
+    plan = plan_team(team, race)
+    # the search's own turns end with a last turn of under a metre (measured: a scrap)
+    searched = ride_choice(plan.team, race, replace(plan.choice, ride_on_to_finish=False))
+    assert searched.turns.end[-1] - searched.turns.start[-1] < 1.0
+    # the plan has the rider before ride on to the finish instead
+    turns = plan.ride.turns
+    last = turns.end[-1] - turns.start[-1]
+    assert last >= SCRAP_TURN_SHARE * plan.choice.turn_length[turns.leader[-1]]
+    assert turns.leader.size == searched.turns.leader.size - 1
+    assert np.all(plan.ride.lowest_balance >= -1e-6)
+    assert plan.ride.finish_time <= searched.finish_time + FINISH_SLACK
+    assert "team-last-turn-short" not in [n.code for n in plan.notices]
+
+
+def test_a_scrap_last_turn_that_costs_too_much_to_remove_is_said():
+    from pacing.display.notices import describe
+    from pacing.team.plan import SCRAP_TURN_SHARE
+
+    distance = np.arange(0.0, 10001.0, 10.0)
+    course = synthetic_course(distance, 15.0 * np.sin(distance / 1500.0), heading=90.0)
+    air = air_along_course(course, Conditions(wind_speed=4.0, wind_from=45.0))
+    team = Team(tuple(rider(f"R{i}", 380.0 + 15 * i, cda=0.24) for i in range(5)))
+    plan = plan_team(team, race_on_road(course, air, counts_rider=4))
+    turns = plan.ride.turns
+    last = turns.end[-1] - turns.start[-1]
+    # measured: a last turn of about 250 m where his turns are about 770 m, and the rider
+    # before cannot ride on within his W′
+    assert last < SCRAP_TURN_SHARE * plan.choice.turn_length[turns.leader[-1]]
+    short = [n for n in plan.notices if n.code == "team-last-turn-short"]
+    assert len(short) == 1 and short[0].values["distance_m"] == pytest.approx(last)
+    assert f"{last:.0f} m before the finish" in describe(short[0], "metric")
+    assert np.all(plan.ride.lowest_balance >= -1e-6)
+
+
+def test_on_the_flat_a_symmetric_team_at_one_power_rides_one_speed():
+    team = Team(tuple(rider(n) for n in "ABCD"))
+    plan = plan_team(team, track())  # flying start: every leader at one power, one speed
+    reference = plan.equal_power
+    assert np.ptp(reference.speed) < 1e-9
+    # the leader's power at that speed by Martin et al.'s balance written out above
+    assert martin_power(reference.speed[0], 0.20, 80.0) == pytest.approx(plan.equal_power_w,
+                                                                          rel=1e-6)
+    # so both references coincide (to their bisections' tolerances)
+    assert reference.finish_time == pytest.approx(plan.equal_turns.finish_time, abs=0.05)
+    assert np.all(reference.lowest_balance >= -1e-6)
+    assert plan.ride.finish_time <= min(reference.finish_time, plan.equal_turns.finish_time)
+
+
+def test_on_a_hilly_road_one_leader_power_beats_one_speed_and_the_plan_beats_both():
+    distance = np.arange(0.0, 10001.0, 10.0)
+    course = synthetic_course(distance, 40.0 * np.sin(distance / 1000.0), heading=90.0)
+    air = air_along_course(course, Conditions())
+    team = Team(tuple(rider(f"R{i}", 380.0 + 15 * i, cda=0.24) for i in range(5)))
+    plan = plan_team(team, race_on_road(course, air, counts_rider=4, w_prime_reserve=1000.0))
+    reference = plan.equal_power
+    assert reference.finish_time < plan.equal_turns.finish_time
+    assert np.all(reference.lowest_balance >= 1000.0 - 1e-6)
+    leader = reference.turns.leader[reference.cells.turn]
+    power = reference.power[leader, np.arange(leader.size)]
+    assert np.all(power <= plan.team.power_caps[leader] + 1e-9)
+    assert plan.ride.finish_time <= reference.finish_time
+    assert plan.power_gain == pytest.approx(reference.finish_time - plan.ride.finish_time)

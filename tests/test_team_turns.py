@@ -50,3 +50,25 @@ def test_the_line_never_gets_smaller_than_the_counting_rider():
 def test_far_too_short_turns_are_refused():
     with pytest.raises(InputError, match="turns too short"):
         build_turns(choice([0.01, 0.01]), 1000.0, 2)
+
+
+def test_riding_on_to_the_finish_merges_the_last_turn_into_the_one_before():
+    plain = build_turns(choice([300.0, 250.0]), 870.0, 2)
+    assert plain.end[-1] - plain.start[-1] == pytest.approx(20.0)  # a 20 m scrap
+    lengths = choice([300.0, 250.0])
+    on = build_turns(TurnChoice(lengths.turn_length, lengths.turn_power, lengths.drop_distance,
+                                ride_on_to_finish=True), 870.0, 2)
+    assert on.leader.tolist() == plain.leader.tolist()[:-1]
+    assert on.end.tolist() == [300.0, 550.0, 870.0]
+    assert np.array_equal(on.position, plain.position[:-1])
+
+
+def test_a_rider_who_rides_on_to_the_finish_does_not_drop_out():
+    drops = [np.inf, np.inf, 980.0]  # his last long turn ends 20 m before the finish
+    plain = build_turns(choice([300.0] * 3, drops), 1000.0, 2)
+    assert plain.dropped_at[2] == 980.0 and plain.leader.tolist() == [0, 1, 2, 0]
+    merged = choice([300.0] * 3, drops)
+    on = build_turns(TurnChoice(merged.turn_length, merged.turn_power, merged.drop_distance,
+                                ride_on_to_finish=True), 1000.0, 2)
+    assert on.leader.tolist() == [0, 1, 2] and on.end[-1] == 1000.0
+    assert np.all(np.isinf(on.dropped_at))

@@ -27,9 +27,9 @@ from ui.team_panel import (
     race_from_inputs,
     shown_riders,
     store_team,
-    summary_line,
     team_from_frame,
 )
+from ui.team_panel_summary import summary_line
 
 CHOICE = {"kind": "track", "distance_m": 4000.0, "lap_m": 250.0, "counts_rider": 3,
           "drafting": (0.0, 0.3, 0.38), "reserve_j": 0.0, "standing_start": True}
@@ -61,7 +61,10 @@ def test_the_chart_has_one_line_per_rider_in_kilojoules():
     assert len(figure.data) == 4
     assert max(np.max(trace.y) for trace in figure.data) <= 24.0 + 1e-9
     assert figure.layout.xaxis.title.text == "distance [mi]"
-    assert "gain" in summary_line(plan, race) and "3rd rider" in summary_line(plan, race)
+    line = summary_line(plan, race)
+    assert "3rd rider" in line
+    assert f"{plan.gain:.1f} s faster than equal turns at constant speed" in line
+    assert f"{plan.power_gain:.1f} s faster than equal turns at one power" in line
 
 
 def test_the_track_race_takes_the_air_density_of_the_day():

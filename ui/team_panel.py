@@ -1,8 +1,9 @@
 """The team part of the web app: a team time trial on the page's course or a team pursuit on a
 velodrome. The coach lists the riders (name, mass, CdA, CP, W′, cap), picks the race and the
 counting rider, the drafting set and the W′ reserve, and reads the turn schedule, each rider's
-W′ balance along the race, the gain over equal turns, and downloads the schedule (CSV, XLSX)
-and its printable card (PNG, PDF). Teams come from and go to the coach's library (the rider
+W′ balance along the race, the gains over equal turns (at one speed, at one power; summary
+line in ui.team_panel_summary), and downloads the schedule (CSV, XLSX) and its printable card
+(PNG, PDF). Teams come from and go to the coach's library (the rider
 table filled from a stored team; the table stored as one, asking before replacing a name).
 
 The panel draws with the Streamlit module it is given (``render(st, …)``): app.py passes its
@@ -28,6 +29,7 @@ from pacing.team.plan import PlanOptions, TeamPlan, plan_team
 from pacing.team.race import TeamRace, race_on_road, race_on_track
 from pacing.team.riders import Team, TeamRider
 from pacing.team.schedule import plan_notices, rider_rows, turn_rows
+from ui.team_panel_summary import summary_line
 
 RIDER_COLORS = ("#0f6e8c", "#b5542c", "#6a3d9a", "#5a6b2f", "#c28f1a", "#1b7f79", "#8c2d5a",
                 "#3d5a80")
@@ -302,35 +304,6 @@ def shown_riders(table: pd.DataFrame) -> pd.DataFrame:
     shown[column] = [("" if value is None or pd.isna(value) else f"{value:.3f}")
                      for value in shown[column]]
     return shown
-
-
-def summary_line(plan: TeamPlan, race: TeamRace) -> str:
-    """"Finish 4:01.3 (rider 3); equal turns 4:05.1; gain 3.8 s".
-
-    Parameters
-    ----------
-    plan : pacing.team.plan.TeamPlan
-        The plan [-].
-    race : pacing.team.race.TeamRace
-        The race (counting rider) [-].
-
-    Returns
-    -------
-    str
-        One line [-].
-    """
-    def clock(seconds: float) -> str:
-        minutes, rest = divmod(seconds, 60.0)
-        hours, minutes = divmod(int(minutes), 60)
-        head = f"{hours}:{minutes:02d}" if hours else f"{minutes}"
-        return f"{head}:{rest:04.1f}"
-
-    place = race.counts_rider
-    suffix = "th" if 10 <= place % 100 <= 20 else {1: "st", 2: "nd", 3: "rd"}.get(place % 10, "th")
-    ordinal = f"{place}{suffix}"
-    return (f"Finish {clock(plan.ride.finish_time)} (time of the {ordinal} rider across the "
-            f"line); equal turns at constant speed {clock(plan.equal_turns.finish_time)}; "
-            f"gain {clock(plan.gain) if plan.gain >= 60.0 else f'{plan.gain:.1f} s'}")
 
 
 def race_from_inputs(choice: dict[str, Any], course: Any = None,

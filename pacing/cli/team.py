@@ -4,8 +4,9 @@
     pacing team --track-distance 4000 --lap-length 250 --rider … --counts-rider 3
 
 Prints the turn schedule (leader, from, to, laps or km, power, speed, lap or km time), each
-rider's lowest W′ balance and the gain over equal turns at constant speed; --json the numbers;
---csv / --xlsx write the schedule, --card-png / --card-pdf the printable card.
+rider's lowest W′ balance and the gains over equal turns at constant speed and at one leader
+power; --json the numbers; --csv / --xlsx write the schedule, --card-png / --card-pdf the
+printable card.
 """
 
 from __future__ import annotations
@@ -244,7 +245,9 @@ def plan_as_dict(plan: TeamPlan) -> dict[str, Any]:
     Returns
     -------
     dict
-        finish_time_s, equal_turns_time_s, gain_s, equal_turns_speed_mps, optimised, riders
+        finish_time_s, equal_turns_time_s, gain_s, equal_turns_speed_mps, equal_power_time_s
+        (equal turns, every leader at one power), equal_power_gain_s, equal_power_w,
+        optimised, riders
         in starting order (name, min_w_prime_balance_j, lead_time_s, mean_power_w,
         dropped_at_m), turns (leader,
         start_m, end_m, duration_s, power_w, speed_mps), warnings and notices [SI].
@@ -262,6 +265,9 @@ def plan_as_dict(plan: TeamPlan) -> dict[str, Any]:
         "equal_turns_time_s": plan.equal_turns.finish_time,
         "gain_s": plan.gain,
         "equal_turns_speed_mps": plan.equal_turns_speed,
+        "equal_power_time_s": plan.equal_power.finish_time,
+        "equal_power_gain_s": plan.power_gain,
+        "equal_power_w": plan.equal_power_w,
         "optimised": plan.optimised,
         "riders": [asdict(row) for row in rider_rows(plan.team, plan.ride)],
         "turns": turns,
@@ -292,11 +298,14 @@ def plan_as_text(race: TeamRace, plan: TeamPlan) -> str:
     turns = turn_table(turn_rows(plan.team, plan.ride), "metric", race.lap_length)
     riders = rider_table(rider_rows(plan.team, plan.ride), "metric")
     finish, equal = plan.ride.finish_time, plan.equal_turns.finish_time
+    power = plan.equal_power.finish_time
     return "\n".join([
         turns.to_string(index=False), "", riders.to_string(index=False, na_rep=""), "",
         f"finish (rider {race.counts_rider}): {format_duration(finish)} ({finish:.2f} s); "
         f"equal turns at constant speed {format_duration(equal)} ({equal:.2f} s); "
         f"gain {plan.gain:.2f} s",
+        f"equal turns, every leader at {plan.equal_power_w:.0f} W: "
+        f"{format_duration(power)} ({power:.2f} s); gain {plan.power_gain:.2f} s",
     ])
 
 

@@ -30,9 +30,17 @@ def _rider_drops(values: Values, system: str) -> str:
     return f"{values['name']} does a last long turn and drops out at {where}"
 
 
+def _last_turn_short(values: Values, system: str) -> str:
+    where = format_quantity(values["distance_m"], "elevation", system, 0)
+    return (f"the last change of lead is {where} before the finish ({values['name']} leads "
+            "that last turn): the rider before could not ride on to the finish within his W′ "
+            "reserve and cap without losing more than half a second")
+
+
 WORDS: dict[str, Callable[[Values, str], str]] = {
     "team-reserve-unreachable": _reserve_unreachable,
     "team-equal-turns-kept": _equal_turns_kept,
     "team-rider-drops": _rider_drops,
+    "team-last-turn-short": _last_turn_short,
 }
 """Each notice code of this area and the function that writes it in words."""

@@ -14,6 +14,10 @@ Two plans are made and compared:
   rider's turns need not share one power. The fastest of these is the plan (the optimiser
   never returns a slower plan than the equal turns, nor the profile one slower than one
   power per rider).
+- *Equal turns at one power* (second reference): equal turns, every leader at the highest
+  common power within every reserve and cap (bisection); the plan if faster.
+
+Then a scrap of a last turn goes where cheap (finish_without_scrap).
 
 References
 ----------
@@ -24,7 +28,7 @@ docs/team.md, "The plan".
 
 from __future__ import annotations
 
-from dataclasses import dataclass
+from dataclasses import dataclass, replace
 
 import numpy as np
 from scipy.optimize import minimize
@@ -53,6 +57,16 @@ PROFILE_RANGE = (0.85, 1.15)
 
 PROFILE_ITERATIONS = 10
 """Most SLSQP iterations of the search that also moves the power profile [-]."""
+
+POWER_TOLERANCE = 0.1
+"""Last bracket of the equal-power plan's bisection [W]."""
+
+SCRAP_TURN_SHARE = 0.5
+"""A last turn shorter than this share of its leader's turn length is a scrap: no change of
+lead a few metres before the finish, the rider before rides on to it (common practice) [-]."""
+
+FINISH_SLACK = 0.5
+"""Time the plan may lose to have no scrap last turn [s]."""
 
 FEASIBLE = -1e-9
 """Constraint value accepted as met [-] (SLSQP's answer is first pulled inside by
@@ -111,6 +125,10 @@ class TeamPlan:
         True when the optimiser's plan beat the equal turns [-].
     notices : tuple of Notice
         What the coach must hear [-].
+    equal_power : TeamRide
+        The second reference: equal turns, every leader at one power (equal_power_plan) [-].
+    equal_power_w : float
+        Its leaders' power [W].
     """
 
     team: Team
@@ -120,11 +138,18 @@ class TeamPlan:
     equal_turns_speed: float
     optimised: bool
     notices: tuple[Notice, ...]
+    equal_power: TeamRide
+    equal_power_w: float
 
     @property
     def gain(self) -> float:
-        """Time the plan gains on the equal turns [s]."""
+        """Time the plan gains on the equal turns at constant speed [s]."""
         return self.equal_turns.finish_time - self.ride.finish_time
+
+    @property
+    def power_gain(self) -> float:
+        """Time the plan gains on the equal turns at one leader power [s]."""
+        return self.equal_power.finish_time - self.ride.finish_time
 
 
 def _margins(team: Team, race: TeamRace, ride: TeamRide) -> np.ndarray:
@@ -232,6 +257,60 @@ def equal_turns_plan(team: Team, race: TeamRace, turn_length: float,
             high = middle
         if high - low < tolerance:
             break
+    return best, low, True
+
+
+def equal_power_plan(team: Team, race: TeamRace, turn_length: float,
+                     tolerance: float = POWER_TOLERANCE) -> tuple[TeamRide, float, bool]:
+    """The highest power that every leader holds through equal turns, nobody dropping out.
+
+    What a team without a plan rides: every rider leads turns of one length at one common
+    power P [W] (the line's speed follows the course); P is the highest (bisection between
+    LOWEST_POWER_SHARE of the smallest CP and the smallest cap) at which every rider's W′
+    balance stays at or above the reserve and no leader passes his cap.
+
+    Parameters
+    ----------
+    team : Team
+        The riders [-].
+    race : TeamRace
+        The race, with its W′ reserve [J].
+    turn_length : float
+        Every turn's length [m].
+    tolerance : float, optional
+        Width of the last power bracket [W].
+
+    Returns
+    -------
+    tuple of (TeamRide, float, bool)
+        The ride, the leaders' power [W], and whether it keeps every reserve (False: even the
+        lowest power searched does not) [-].
+    """
+    riders = team.size
+    memo = LeaderSpeeds(team, race)
+
+    def holds(power: float) -> tuple[bool, TeamRide]:
+        choice = TurnChoice(np.full(riders, turn_length), np.full(riders, power),
+                            np.full(riders, np.inf))
+        ride = ride_choice(team, race, choice, memo)
+        return bool(np.all(_margins(team, race, ride) >= 0)) and _leaders_within_caps(
+            team, ride), ride
+
+    low = LOWEST_POWER_SHARE * float(team.array("critical_power").min())
+    high = float(team.power_caps.min())
+    ok, best = holds(low)
+    if not ok:
+        return best, low, False
+    top_ok, top = holds(high)
+    if top_ok:
+        return top, high, True
+    while high - low > tolerance:
+        middle = 0.5 * (low + high)
+        ok, ride = holds(middle)
+        if ok:
+            low, best = middle, ride
+        else:
+            high = middle
     return best, low, True
 
 
@@ -378,12 +457,80 @@ def plan_team(team: Team, race: TeamRace, options: PlanOptions | None = None) ->
         for k in range(team.size)])
     droppers = drop_out_riders(team, race) if options.allow_drop_outs else np.zeros(0, int)
     best = _optimised(team, race, options, base, shortest, droppers, lead_power, equal)
+    power_ride, power, power_holds = equal_power_plan(team, race, base)
+    if power_holds and (best is None or power_ride.finish_time < best[1].finish_time):
+        best = (TurnChoice(np.full(team.size, base), np.full(team.size, power),
+                           np.full(team.size, np.inf)), power_ride)
     if best is None or best[1].finish_time >= equal.finish_time:
         choice = TurnChoice(np.full(team.size, base), lead_power, np.full(team.size, np.inf))
         notices.append(note("team-equal-turns-kept", time_s=equal.finish_time))
-        return TeamPlan(team, equal, choice, equal, speed, False, tuple(notices))
-    choice, ride = best
-    return TeamPlan(team, ride, choice, equal, speed, True, tuple(notices))
+        notices.extend(_scrap_notices(team, equal, base))
+        return TeamPlan(team, equal, choice, equal, speed, False, tuple(notices), power_ride,
+                        power)
+    choice, ride, scrap = finish_without_scrap(team, race, *best, not_after=min(
+        equal.finish_time, power_ride.finish_time if power_holds else np.inf))
+    notices.extend(scrap)
+    return TeamPlan(team, ride, choice, equal, speed, True, tuple(notices), power_ride, power)
+
+
+def _scrap_length(ride: TeamRide, turn_length: float) -> float | None:
+    """The last turn's length when it is shorter than SCRAP_TURN_SHARE of `turn_length`
+    (and not the only turn), else None [m]."""
+    turns = ride.turns
+    last = float(turns.end[-1] - turns.start[-1])
+    if turns.leader.size > 1 and last < SCRAP_TURN_SHARE * turn_length:
+        return last
+    return None
+
+
+def _scrap_notices(team: Team, ride: TeamRide, turn_length: float) -> list[Notice]:
+    """A "team-last-turn-short" note when the ride's last turn is a scrap, else none."""
+    last = _scrap_length(ride, turn_length)
+    if last is None:
+        return []
+    return [note("team-last-turn-short", distance_m=last,
+                 name=team.riders[int(ride.turns.leader[-1])].name)]
+
+
+def finish_without_scrap(team: Team, race: TeamRace, choice: TurnChoice, ride: TeamRide,
+                         not_after: float = np.inf
+                         ) -> tuple[TurnChoice, TeamRide, list[Notice]]:
+    """The plan without a scrap last turn where that costs little.
+
+    When the last turn is shorter than SCRAP_TURN_SHARE of its leader's turn length, the
+    plan with the leader before riding on to the finish (TurnChoice.ride_on_to_finish) is
+    taken if every rider's W′ balance stays at or above the reserve, every leader within his
+    cap and the finish at most FINISH_SLACK later (and not after `not_after`, so that the plan
+    stays no slower than its references); else the plan is kept with a
+    "team-last-turn-short" note (how far before the finish the last change of lead is).
+
+    Parameters
+    ----------
+    team : Team
+        The riders [-].
+    race : TeamRace
+        The race, with its W′ reserve [J].
+    choice : TurnChoice
+        The plan's turn lengths [m], leader powers [W] and drop distances [m].
+    ride : TeamRide
+        Its ride [-].
+    not_after : float, optional
+        Latest finish accepted without the scrap turn (the references' best) [s].
+
+    Returns
+    -------
+    tuple of (TurnChoice, TeamRide, list of Notice)
+        The choice and ride kept, and the note when the scrap stays [-].
+    """
+    leader = int(ride.turns.leader[-1])
+    if _scrap_length(ride, float(choice.turn_length[leader])) is None:
+        return choice, ride, []
+    on = replace(choice, ride_on_to_finish=True)
+    merged = ride_choice(team, race, on)
+    if (np.all(_margins(team, race, merged) >= FEASIBLE) and _leaders_within_caps(team, merged)
+            and merged.finish_time <= min(ride.finish_time + FINISH_SLACK, not_after)):
+        return on, merged, []
+    return choice, ride, _scrap_notices(team, ride, float(choice.turn_length[leader]))
 
 
 def starting_order(team: Team, race: TeamRace, turn_length: float) -> Team:
