@@ -70,12 +70,7 @@ from pacing import kernels
 from pacing.constants import STANDARD_GRAVITY
 from pacing.course.geometry import Course, synthetic_course
 from pacing.errors import InputError
-from pacing.physics.cycling import (
-    Rider,
-    air_speed_components,
-    gravity_force,
-    rolling_force,
-)
+from pacing.physics.cycling import Rider
 from pacing.plan import simulate_kernels
 from pacing.plan.prediction import (
     REAR_WHEEL_LOAD_SHARE,
@@ -128,7 +123,7 @@ def _compiled() -> SimpleNamespace:
     return kernels.compiled(vars(simulate_kernels), simulate_kernels.KERNELS,
                             parallel=("ride_draws",),
                             inline=("yaw_factor", "aero_force", "step_drive_work",
-                                    "step_speed", "ride_piece"))
+                                    "step_speed", "ride_piece", "held_at", "capped_ride"))
 
 
 def _yaw_table(rider: Rider) -> tuple[np.ndarray, np.ndarray]:
@@ -241,41 +236,61 @@ def simulate(course: Course, power: ArrayLike, rider: Rider, air: CourseAir,
     options = options or SimulationOptions()
     power, density, headwind, crosswind = piece_inputs(course, power, air)
     grade = np.asarray(course.grade, dtype=float)
-    horizontal = np.diff(np.asarray(course.distance, dtype=float))
-    road = horizontal * np.sqrt(1.0 + grade**2)
+    # in place where an array is fresh: every new array of 20,000 floats costs page faults
+    root = np.sqrt(1.0 + grade**2)
+    road = np.diff(np.asarray(course.distance, dtype=float))
+    road *= root
     drag_area, _ = per_piece_rider(rider, len(road))
     m_eff = rider.effective_mass
     eta = rider.drivetrain_efficiency
-    rolling_per_piece = np.broadcast_to(rolling_force(grade, rider), grade.shape).astype(float)
-    gravity_per_piece = gravity_force(grade, rider)
+    # rolling_force and gravity_force (pacing.physics.cycling), the same operations
+    rolling_per_piece = np.broadcast_to(
+        rider.rolling_coefficient * rider.mass * STANDARD_GRAVITY / root, grade.shape)
+    gravity_per_piece = rider.mass * STANDARD_GRAVITY * grade
+    gravity_per_piece /= root
+    constant = rolling_per_piece + gravity_per_piece
+    constant += rider.bearing_force_constant
     pieces = _Pieces(
         road=road, density=density, headwind=headwind, crosswind=crosswind,
-        constant=(rolling_per_piece + gravity_per_piece) + rider.bearing_force_constant,
-        drag_area=drag_area, power=power,
+        constant=constant, drag_area=drag_area, power=power,
         limit=np.maximum(speed_limits(course, road, options), 0.1))
     ride = _ride_pieces_compiled if kernels.use_compiled(road.size) else _ride_pieces_python
     trace = ride(pieces, _rider_tuple(rider, m_eff, _drive_force_cap(rider, options),
                                       options.minimum_speed),
                  _yaw_table(rider), float(eta), float(options.start_speed), _coasting(options))
+    del pieces, constant
     piece_time = np.diff(trace.time)
     mean_speed = road / piece_time
-    _, apparent, yaw = air_speed_components(mean_speed, headwind, crosswind)
+    # air_speed_components (pacing.physics.cycling), the same operations
+    along = mean_speed + headwind
+    apparent = np.hypot(along, crosswind)
+    yaw = np.arctan2(crosswind, along, out=along)
+    np.degrees(yaw, out=yaw)
+    walking = trace.walked
+    walking |= mean_speed < options.minimum_speed
+    del mean_speed
+    drivetrain_loss = trace.applied_work * (1.0 - eta)
+    applied_power = np.divide(trace.applied_work, piece_time, out=piece_time)
+    kinetic = np.diff(trace.speed**2)
+    kinetic *= 0.5 * m_eff
+    rolling = rolling_per_piece * road
+    gravity_per_piece *= road
     return Prediction(
         distance=np.asarray(course.distance, dtype=float).copy(),
         time=trace.time,
         speed=trace.speed,
-        power=trace.applied_work / piece_time,
+        power=applied_power,
         air_speed=apparent,
         yaw=yaw,
         headwind=headwind.copy(),
         aero=trace.aero,
-        rolling=rolling_per_piece * road,
+        rolling=rolling,
         bearing=trace.bearing,
-        drivetrain_loss=trace.applied_work * (1.0 - eta),
-        potential=gravity_per_piece * road,
-        kinetic=0.5 * m_eff * np.diff(trace.speed**2),
+        drivetrain_loss=drivetrain_loss,
+        potential=gravity_per_piece,
+        kinetic=kinetic,
         braking=trace.braking,
-        walking=trace.walked | (mean_speed < options.minimum_speed),
+        walking=walking,
         walking_work=trace.walking_work,
     )
 

@@ -345,11 +345,13 @@ _NEWTON_STEPS = 8  # most Newton steps from the previous speeds before the fallb
 def _newton_speeds(speed: np.ndarray, step: np.ndarray, headwind: np.ndarray,
                    crosswind: np.ndarray, drag: np.ndarray, constant: np.ndarray,
                    bearing: float, drive: np.ndarray, has_headwind: bool, calm_cross: bool
-                   ) -> None:
+                   ) -> int:
     """Newton steps on g(v) = F(v) − η·P/v for every piece, all pieces per step, until every
     step is within 1e-12 of the slowest speed (at most _NEWTON_STEPS): `speed` [m/s] and the
     last `step` [m/s] of each piece are written in place. A step that is not a number (or a
-    zero speed) leaves the piece to the caller's fallback."""
+    zero speed) leaves the piece to the caller's fallback. Returns the number of pieces the
+    caller must solve again: step not within 1e-12 of the piece's speed, or a speed not a
+    number, infinite or at most _MINIMUM_SPEED [-] (0: no check of the arrays needed)."""
     count = speed.size
     for _ in range(_NEWTON_STEPS):
         largest = 0.0
@@ -383,7 +385,13 @@ def _newton_speeds(speed: np.ndarray, step: np.ndarray, headwind: np.ndarray,
                 largest = max(largest, abs(change))
                 smallest = min(smallest, abs(v))
         if not undefined and largest <= 1e-12 * smallest:
-            return
+            break
+    unsolved = 0
+    for i in range(count):
+        v = speed[i]
+        if not (abs(step[i]) <= 1e-12 * abs(v) and _MINIMUM_SPEED < v < math.inf):
+            unsolved += 1
+    return unsolved
 
 
 def _pairwise_sum(values: np.ndarray, first: int, count: int) -> float:
@@ -530,15 +538,17 @@ def _steady_speed(model: SegmentModel, power: np.ndarray) -> np.ndarray:
     speed = guess.copy()
     if _use_kernel(speed.size):
         step = np.empty(speed.size)
-        _compiled()._newton_speeds(speed, step, model.headwind, model.crosswind, piece.drag,
-                                   piece.constant, piece.bearing, drive, piece.headwind,
-                                   piece.calm_cross)
+        unsolved = _compiled()._newton_speeds(
+            speed, step, model.headwind, model.crosswind, piece.drag, piece.constant,
+            piece.bearing, drive, piece.headwind, piece.calm_cross)
     else:
         step = _newton_speeds_numpy(model, piece, drive, speed)
-    converged = np.abs(step) <= 1e-12 * np.abs(speed)
-    bad = ~(converged & np.isfinite(speed) & (speed > _MINIMUM_SPEED))
-    if bad.any():
-        speed[bad] = speed_for_power(power[bad], model.grade[bad], model.density[bad], rider,
-                                     model.headwind[bad], model.crosswind[bad])
+        unsolved = 1  # not counted: check the arrays
+    if unsolved:
+        converged = np.abs(step) <= 1e-12 * np.abs(speed)
+        bad = ~(converged & np.isfinite(speed) & (speed > _MINIMUM_SPEED))
+        if bad.any():
+            speed[bad] = speed_for_power(power[bad], model.grade[bad], model.density[bad],
+                                         rider, model.headwind[bad], model.crosswind[bad])
     model.speed_guess["speed"] = speed
     return speed
