@@ -37,6 +37,8 @@ def test_road_table_gives_the_time_per_kilometre_or_mile():
     imperial = turn_table(TURNS, "imperial")
     # 1 mi = 1609.344 m exactly (international mile, 1959)
     assert imperial["Time per mi [s]"].iloc[0] == pytest.approx(1609.344 / 12.5, abs=0.05)
+    assert imperial["Time per mi [m:ss]"].iloc[0] == "2:09"  # 128.7 s
+    assert turn_table(TURNS, "metric")["Time per km [m:ss]"].tolist() == ["1:20", "1:00"]
     assert imperial["To [mi]"].iloc[0] == pytest.approx(375.0 / 1609.344, abs=1e-3)
 
 

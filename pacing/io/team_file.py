@@ -64,7 +64,8 @@ def turn_table(rows: Sequence[TurnRow], system: str = "metric",
     Returns
     -------
     pandas.DataFrame
-        Turn, leader, from, to, length (laps), time [s], power [W], speed, lap/km time [s].
+        Turn, leader, from, to, length (laps), time [s], power [W], speed, lap/km time [s]
+        (and on the road also as m:ss).
     """
     distance = unit_label("distance", system)
     speed = unit_label("speed", system)
@@ -87,8 +88,16 @@ def turn_table(rows: Sequence[TurnRow], system: str = "metric",
     else:
         unit = 1000.0 if system == "metric" else 1609.344
         name = "km" if system == "metric" else "mi"
-        table[f"Time per {name} [s]"] = np.round(unit / np.maximum(speeds, 1e-9), 1)
+        per_unit = unit / np.maximum(speeds, 1e-9)
+        table[f"Time per {name} [s]"] = np.round(per_unit, 1)
+        table[f"Time per {name} [m:ss]"] = [_minutes_seconds(t) for t in per_unit]
     return table
+
+
+def _minutes_seconds(seconds: float) -> str:
+    """A split as a coach reads it: 80.4 s → "1:20" (whole seconds, rounded) [-]."""
+    whole = int(round(float(seconds)))
+    return f"{whole // 60}:{whole % 60:02d}"
 
 
 def rider_table(rows: Sequence[RiderRow], system: str = "metric") -> pd.DataFrame:
