@@ -179,6 +179,18 @@ class TestCsvAndXlsx:
             assert cell.number_format == "[h]:mm:ss"
             assert clock_text(cell.value) == table[name].iloc[0]
 
+    def test_xlsx_clock_is_a_time_of_day(self):
+        rows = make_rows(2)
+        for row, clock in zip(rows, ("2026-07-14T09:00:00+02:00", "2026-07-14T09:08:20+02:00"),
+                              strict=True):
+            row.update(clock_time=clock)
+        table = segment_table(rows)
+        sheet = openpyxl.load_workbook(io.BytesIO(table_to_xlsx(table))).active
+        header = [cell.value for cell in sheet[1]]
+        cells = [sheet.cell(row=r, column=header.index("Clock [hh:mm]") + 1) for r in (2, 3)]
+        assert [c.value for c in cells] == [datetime.time(9, 0), datetime.time(9, 8)]
+        assert {c.number_format for c in cells} == {"hh:mm"}
+
     def test_xlsx_reads_back_with_pandas(self):
         table = segment_table(make_rows())
         back = with_clock_texts(pd.read_excel(io.BytesIO(table_to_xlsx(table))))

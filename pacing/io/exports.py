@@ -212,13 +212,17 @@ def table_to_xlsx(table: pd.DataFrame, sheet_name: str = "segment targets",
     return buffer.getvalue()
 
 
-DURATION_COLUMNS = ("Split [h:mm:ss]", "Elapsed [h:mm:ss]")
-"""Columns written in the XLSX as durations (Excel time values, format [h]:mm:ss)."""
+CLOCK_COLUMN = "Clock [hh:mm]"
+"""The race's local clock, written in the XLSX as a time of day (format hh:mm)."""
+
+DURATION_COLUMNS = ("Split [h:mm:ss]", "Elapsed [h:mm:ss]", CLOCK_COLUMN)
+"""Columns written in the XLSX as time values: durations ([h]:mm:ss) and the clock (hh:mm)."""
 
 
 def _durations_as_time(sheet: Any, table: pd.DataFrame) -> None:
     """Write the "H:MM:SS" texts of DURATION_COLUMNS as Excel durations: a fraction of a day
-    [d] shown as [h]:mm:ss, so a spreadsheet can add and compare them."""
+    [d] shown as [h]:mm:ss, so a spreadsheet can add and compare them; the "hh:mm" clock as
+    a time of day."""
     for position, name in enumerate(table.columns, start=1):
         if name not in DURATION_COLUMNS:
             continue
@@ -229,6 +233,9 @@ def _durations_as_time(sheet: Any, table: pd.DataFrame) -> None:
                 hours, minutes, seconds = (int(part) for part in parts)
                 cell.value = (hours * 3600 + minutes * 60 + seconds) / 86400.0
                 cell.number_format = "[h]:mm:ss"
+            elif name == CLOCK_COLUMN and len(parts) == 2 and all(p.isdigit() for p in parts):
+                cell.value = (int(parts[0]) * 60 + int(parts[1])) / 1440.0  # time of day [d]
+                cell.number_format = "hh:mm"
 
 
 
