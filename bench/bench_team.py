@@ -57,6 +57,9 @@ def main() -> None:
         print(f"{name}: {seconds:.2f} s (target < {target:g} s, {verdict}); finish "
               f"{plan.ride.finish_time:.1f} s, equal turns {plan.equal_turns.finish_time:.1f} s, "
               f"gain {plan.gain:.1f} s, turns {plan.ride.turns.leader.size}")
+        print(f"  equal turns at one power ({plan.equal_power_w:.0f} W): "
+              f"{plan.equal_power.finish_time:.1f} s, the plan gains "
+              f"{plan.equal_power.finish_time - plan.ride.finish_time:.1f} s on it")
         one_seconds, one = best_of(case, 1, PlanOptions(power_parts=1))
         print(f"  one power per rider: {one_seconds:.2f} s; finish {one.ride.finish_time:.1f} s "
               f"(the power per part gains {one.ride.finish_time - plan.ride.finish_time:.1f} s)")
