@@ -28,6 +28,7 @@ docs/team.md, "The plan".
 
 from __future__ import annotations
 
+from collections.abc import Callable
 from dataclasses import dataclass, replace
 
 import numpy as np
@@ -217,6 +218,38 @@ def _leaders_within_caps(team: Team, ride: TeamRide) -> bool:
     return bool(np.all(power <= team.power_caps[leader] + 1e-9))
 
 
+def _keeps_limits(team: Team, race: TeamRace, ride: TeamRide, floor: float = 0.0) -> bool:
+    """Whether every rider's W′ balance stays at or above the reserve (margins ≥ `floor`
+    [J]) and every leader within his cap [-]."""
+    return bool(np.all(_margins(team, race, ride) >= floor)) and _leaders_within_caps(team, ride)
+
+
+def _highest_kept(ride_at: Callable[[float], TeamRide], keeps: Callable[[TeamRide], bool],
+                  low: float, high: float, tolerance: float, try_high: bool = False
+                  ) -> tuple[TeamRide, float, bool]:
+    """The highest value in [low, high] (a speed or a power) whose ride keeps every limit,
+    by bisection to `tolerance`; `try_high` rides `high` itself first.
+
+    Returns (the ride, the value, True), or (the ride at `low`, low, False) when even `low`
+    does not keep the limits.
+    """
+    best = ride_at(low)
+    if not keeps(best):
+        return best, low, False
+    if try_high:
+        top = ride_at(high)
+        if keeps(top):
+            return top, high, True
+    while high - low > tolerance:
+        middle = 0.5 * (low + high)
+        ride = ride_at(middle)
+        if keeps(ride):
+            low, best = middle, ride
+        else:
+            high = middle
+    return best, low, True
+
+
 def equal_turns_plan(team: Team, race: TeamRace, turn_length: float,
                      tolerance: float = 1e-3) -> tuple[TeamRide, float, bool]:
     """The fastest constant speed with equal turns that every rider can hold.
@@ -238,26 +271,8 @@ def equal_turns_plan(team: Team, race: TeamRace, turn_length: float,
         The ride, its speed [m/s], and whether it keeps every reserve (False: even the lowest
         speed searched does not) [-].
     """
-    def holds(speed: float) -> tuple[bool, TeamRide]:
-        ride = ride_at_constant_speed(team, race, turn_length, speed)
-        return bool(np.all(_margins(team, race, ride) >= 0)) and _leaders_within_caps(
-            team, ride), ride
-
-    low, high = SPEED_RANGE
-    ok, ride = holds(low)
-    if not ok:
-        return ride, low, False
-    best = ride
-    for _ in range(40):
-        middle = 0.5 * (low + high)
-        ok, ride = holds(middle)
-        if ok:
-            low, best = middle, ride
-        else:
-            high = middle
-        if high - low < tolerance:
-            break
-    return best, low, True
+    return _highest_kept(lambda speed: ride_at_constant_speed(team, race, turn_length, speed),
+                         lambda ride: _keeps_limits(team, race, ride), *SPEED_RANGE, tolerance)
 
 
 def equal_power_plan(team: Team, race: TeamRace, turn_length: float,
@@ -289,29 +304,14 @@ def equal_power_plan(team: Team, race: TeamRace, turn_length: float,
     riders = team.size
     memo = LeaderSpeeds(team, race)
 
-    def holds(power: float) -> tuple[bool, TeamRide]:
+    def ride_at(power: float) -> TeamRide:
         choice = TurnChoice(np.full(riders, turn_length), np.full(riders, power),
                             np.full(riders, np.inf))
-        ride = ride_choice(team, race, choice, memo)
-        return bool(np.all(_margins(team, race, ride) >= 0)) and _leaders_within_caps(
-            team, ride), ride
+        return ride_choice(team, race, choice, memo)
 
-    low = LOWEST_POWER_SHARE * float(team.array("critical_power").min())
-    high = float(team.power_caps.min())
-    ok, best = holds(low)
-    if not ok:
-        return best, low, False
-    top_ok, top = holds(high)
-    if top_ok:
-        return top, high, True
-    while high - low > tolerance:
-        middle = 0.5 * (low + high)
-        ok, ride = holds(middle)
-        if ok:
-            low, best = middle, ride
-        else:
-            high = middle
-    return best, low, True
+    return _highest_kept(ride_at, lambda ride: _keeps_limits(team, race, ride),
+                         LOWEST_POWER_SHARE * float(team.array("critical_power").min()),
+                         float(team.power_caps.min()), tolerance, try_high=True)
 
 
 def drop_out_riders(team: Team, race: TeamRace) -> np.ndarray:
@@ -527,7 +527,7 @@ def finish_without_scrap(team: Team, race: TeamRace, choice: TurnChoice, ride: T
         return choice, ride, []
     on = replace(choice, ride_on_to_finish=True)
     merged = ride_choice(team, race, on)
-    if (np.all(_margins(team, race, merged) >= FEASIBLE) and _leaders_within_caps(team, merged)
+    if (_keeps_limits(team, race, merged, FEASIBLE)
             and merged.finish_time <= min(ride.finish_time + FINISH_SLACK, not_after)):
         return on, merged, []
     return choice, ride, _scrap_notices(team, ride, float(choice.turn_length[leader]))
