@@ -187,6 +187,21 @@ def _open_page(page, server) -> None:
     _wait_idle(page)
 
 
+def _open_page_on_route(page, server, route, distance_km: str, power_w: str) -> None:
+    """The page on the GPX file `route`, once its distance shows (its metric starts with
+    `distance_km`), planned at `power_w`."""
+    _open_page(page, server)
+    page.locator('input[type="file"][accept*=".gpx"]').first.set_input_files(str(route))
+    page.wait_for_function(
+        "(km) => [...document.querySelectorAll('[data-testid=\"stMetricValue\"]')]"
+        ".some(e => e.innerText.trim().startsWith(km))", arg=distance_km,
+        timeout=CONTENT_TIMEOUT_MS)
+    _wait_idle(page)
+    _type_number(page, "Average power [W]", power_w)
+    page.wait_for_timeout(1000)
+    _wait_idle(page)
+
+
 def _wait_finish_change(page, before: str) -> str:
     page.wait_for_function(
         "(old) => { const m = [...document.querySelectorAll('[data-testid=\"stMetric\"]')]"

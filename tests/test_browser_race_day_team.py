@@ -202,16 +202,7 @@ def test_the_review_takes_a_ride_and_splits_the_time_difference(
     # 200 W instead of 250 W on the first climb and a 20 s stop (an invented race)
     race.write_bytes(race_csv(ride(Day(power=lambda x: 200.0 if 500.0 <= x < 1500.0
                                        else 250.0, stops=((6000.0, 20.0),)))))
-    test_browser._open_page(page, server)
-    page.locator('input[type="file"][accept*=".gpx"]').first.set_input_files(str(course))
-    page.wait_for_function(
-        "() => [...document.querySelectorAll('[data-testid=\"stMetricValue\"]')]"
-        ".some(e => e.innerText.trim().startsWith('9.98'))",
-        timeout=test_browser.CONTENT_TIMEOUT_MS)
-    test_browser._wait_idle(page)
-    test_browser._type_number(page, "Average power [W]", "250")
-    page.wait_for_timeout(1000)
-    test_browser._wait_idle(page)
+    test_browser._open_page_on_route(page, server, course, "9.98", "250")
     page.get_by_text("Review a race against this plan").click()
     test_browser._wait_idle(page)
     page.locator('input[type="file"][accept*=".csv"]').last.set_input_files(str(race))

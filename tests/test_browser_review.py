@@ -47,18 +47,7 @@ def test_a_race_reviewed_on_the_page_is_saved_with_its_plan_and_found_again(
     race.write_bytes(race_csv(ride(Day(power=lambda x: 200.0 if 500.0 <= x < 1500.0
                                        else 250.0, rolling=0.0032, start_speed=0.0))))
 
-    page.goto(server)
-    page.get_by_text("Finish time", exact=True).wait_for()
-    test_browser._wait_idle(page)
-    page.locator('input[type="file"][accept*=".gpx"]').first.set_input_files(str(course))
-    page.wait_for_function(
-        "() => [...document.querySelectorAll('[data-testid=\"stMetricValue\"]')]"
-        ".some(e => e.innerText.trim().startsWith('9.98'))",
-        timeout=test_browser.CONTENT_TIMEOUT_MS)
-    test_browser._wait_idle(page)
-    test_browser._type_number(page, "Average power [W]", "250")
-    page.wait_for_timeout(1000)
-    test_browser._wait_idle(page)
+    test_browser._open_page_on_route(page, server, course, "9.98", "250")
     planned = test_browser._metric_value(page, "Finish time")
 
     page.get_by_text("Open the coach's library").click()
