@@ -32,6 +32,7 @@ editing this module (the compiled hypot is inlined into every kernel) delete the
 
 from __future__ import annotations
 
+import contextlib
 import importlib
 import importlib.util
 import math
@@ -40,7 +41,7 @@ import sys
 import threading
 import time
 import types
-from collections.abc import Callable, Iterable, Mapping
+from collections.abc import Callable, Iterable, Iterator, Mapping
 from typing import Any
 
 from pacing.errors import InputError
@@ -68,6 +69,27 @@ PARALLEL_LOCK = threading.Lock()
 """Held around every call of a parallel kernel: one at a time per process (numba's workqueue
 threading layer must not be entered from two threads at once; the app serves sessions on
 threads)."""
+
+@contextlib.contextmanager
+def parallel_turn() -> Iterator[bool]:
+    """Take PARALLEL_LOCK unless another thread holds it; released on leaving.
+
+    Yields whether this thread may run a parallel kernel now: a caller told False runs its
+    serial path (numpy steps giving the same numbers), never waits for another session's long
+    kernel (a Monte Carlo ride holds the lock for seconds).
+
+    Yields
+    ------
+    bool
+        True when the lock was taken [-].
+    """
+    taken = PARALLEL_LOCK.acquire(blocking=False)
+    try:
+        yield taken
+    finally:
+        if taken:
+            PARALLEL_LOCK.release()
+
 
 _SMALLEST_NORMAL = 2.2250738585072014e-308
 """The smallest positive normal float, DBL_MIN [-]."""

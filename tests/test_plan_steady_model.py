@@ -10,6 +10,7 @@ docs/references.md, "Cycling power balance (Martin et al. 1998)" (from memory th
 
 from __future__ import annotations
 
+import contextlib
 import math
 import os
 from dataclasses import replace
@@ -20,6 +21,7 @@ from hypothesis import given, settings
 from hypothesis import strategies as st
 from scipy import optimize
 
+from pacing import kernels
 from pacing.course.geometry import synthetic_course
 from pacing.errors import InputError
 from pacing.physics.cycling import Rider, speed_for_power
@@ -228,16 +230,20 @@ def test_the_compiled_and_the_numpy_steady_times_are_the_same_to_the_last_bit(
     # use numpy (steady_model._use_kernel), and the crosswind case is not comparable.
     if crosswind and os.environ.get("NUMBA_DISABLE_JIT", "0") not in ("", "0"):
         pytest.skip("plain-Python kernel: CPython's math.hypot differs from the C library's")
+    # The compiled loops run on every core, and another thread's parallel kernel (holding
+    # kernels.PARALLEL_LOCK) sends a call to numpy's steps: the same numbers every way.
     results = {}
-    for compiled in (False, True):
+    for compiled, busy in ((False, False), (True, False), (True, True)):
         model = windy_rolling_model(crosswind)
         monkeypatch.setattr(steady_model, "_use_kernel", lambda pieces, c=compiled: c)
         power = np.linspace(120.0, 380.0, model.count)
         steady_segment_times(model, 0.8 * power)  # a previous solve's speeds to start from
-        full = steady_segment_times(model, power)
-        results[compiled] = (*full, *steady_times(model, 1.1 * power))
-    for numpy_result, compiled_result in zip(results[False], results[True], strict=True):
-        assert np.array_equal(numpy_result, compiled_result)
+        with kernels.PARALLEL_LOCK if busy else contextlib.nullcontext():
+            full = steady_segment_times(model, power)
+            results[compiled, busy] = (*full, *steady_times(model, 1.1 * power))
+    for way in ((True, False), (True, True)):
+        for numpy_result, other in zip(results[False, False], results[way], strict=True):
+            assert np.array_equal(numpy_result, other)
 
 
 def test_steady_times_are_the_first_two_results_of_steady_segment_times():

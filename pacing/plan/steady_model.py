@@ -39,6 +39,10 @@ from pacing.errors import InputError
 from pacing.physics.cycling import Rider, gravity_force, rolling_force, speed_for_power
 from pacing.weather.conditions import CourseAir
 
+prange = range
+"""The pieces' loops of `_newton_speeds` and `_time_sums`: plain `range` here, numba.prange in
+the compiled family (pacing.kernels.compiled), where they run on every core."""
+
 _MINIMUM_SPEED = 0.05  # speed_for_power's floor (a stalled rider) [m/s]
 
 
@@ -233,11 +237,14 @@ def steady_times(model: SegmentModel, segment_power: ArrayLike
     piece = _piece_constants(model)
     efficiency = model.rider.drivetrain_efficiency
     if piece.starts is not None and _use_kernel(speed.size):
-        time, dtime = np.empty(model.count), np.empty(model.count)
-        _compiled()._time_sums(speed, power, model.length, model.headwind, model.crosswind,
-                               piece.drag, piece.bearing, efficiency, piece.headwind,
-                               piece.calm_cross, piece.starts, time, dtime)
-        return time, dtime
+        with kernels.parallel_turn() as ours:
+            if ours:
+                time, dtime = np.empty(model.count), np.empty(model.count)
+                _compiled()._time_sums(speed, power, model.length, model.headwind,
+                                       model.crosswind, piece.drag, piece.bearing, efficiency,
+                                       piece.headwind, piece.calm_cross, piece.starts, time,
+                                       dtime)
+                return time, dtime
     slope = _force_slope(model, piece, speed)
     inverse = 1.0 / speed
     force = efficiency * np.maximum(power, 0.0) * inverse
@@ -334,7 +341,9 @@ def _piece_constants(model: SegmentModel) -> _PieceConstants:
 # ------------------------------------------------------------------ kernel
 # A plain function of floats, bools and arrays (pacing.kernels): compiled by numba for long
 # courses or once the kernels are loaded; the same steps as `_newton_speeds_numpy`, operation
-# for operation, so both give the same speeds to the last bit.
+# for operation, so both give the same speeds to the last bit. The pieces' loops run on every
+# core (prange): each piece is its own, and the only reductions are a max and a min, which
+# give the same number in any order, so the result does not depend on the threads.
 
 KERNELS = ("_newton_speeds", "_pairwise_sum", "_segment_sum", "_time_sums")
 """The kernel functions of this module (pacing.kernels.compiled)."""
@@ -346,21 +355,22 @@ def _newton_speeds(speed: np.ndarray, step: np.ndarray, headwind: np.ndarray,
                    crosswind: np.ndarray, drag: np.ndarray, constant: np.ndarray,
                    bearing: float, drive: np.ndarray, has_headwind: bool, calm_cross: bool
                    ) -> int:
-    """Newton steps on g(v) = F(v) − η·P/v for every piece, all pieces per step, until every
-    step is within 1e-12 of the slowest speed (at most _NEWTON_STEPS): `speed` [m/s] and the
-    last `step` [m/s] of each piece are written in place. A step that is not a number (or a
-    zero speed) leaves the piece to the caller's fallback. Returns the number of pieces the
-    caller must solve again: step not within 1e-12 of the piece's speed, or a speed not a
-    number, infinite or at most _MINIMUM_SPEED [-] (0: no check of the arrays needed)."""
+    """Newton steps on g(v) = F(v) − η·P/v for every piece, all pieces per step (on every core
+    when compiled; called holding kernels.PARALLEL_LOCK), until every step is within 1e-12 of
+    the slowest speed (at most _NEWTON_STEPS): `speed` [m/s] and the last `step` [m/s] of each
+    piece are written in place. A step that is not a number (or a zero speed) leaves the piece
+    to the caller's fallback. Returns the number of pieces the caller must solve again: step
+    not within 1e-12 of the piece's speed, or a speed not a number, infinite or at most
+    _MINIMUM_SPEED [-] (0: no check of the arrays needed)."""
     count = speed.size
     for _ in range(_NEWTON_STEPS):
         largest = 0.0
         smallest = math.inf
-        undefined = False
-        for i in range(count):
+        undefined = 0
+        for i in prange(count):
             v = speed[i]
             if v == 0.0:
-                undefined = True
+                undefined += 1
                 step[i] = math.nan
                 speed[i] = math.nan
                 continue
@@ -380,14 +390,14 @@ def _newton_speeds(speed: np.ndarray, step: np.ndarray, headwind: np.ndarray,
             step[i] = change
             speed[i] = v
             if change != change or v != v:
-                undefined = True
+                undefined += 1
             else:
                 largest = max(largest, abs(change))
                 smallest = min(smallest, abs(v))
         if not undefined and largest <= 1e-12 * smallest:
             break
     unsolved = 0
-    for i in range(count):
+    for i in prange(count):
         v = speed[i]
         if not (abs(step[i]) <= 1e-12 * abs(v) and _MINIMUM_SPEED < v < math.inf):
             unsolved += 1
@@ -442,11 +452,12 @@ def _time_sums(speed: np.ndarray, power: np.ndarray, length: np.ndarray,
                efficiency: float, has_headwind: bool, calm_cross: bool, starts: np.ndarray,
                time: np.ndarray, dtime: np.ndarray) -> None:
     """Segment times t_k = Σ L/v [s] and t_k′ = −Σ L·v′/v² [s/W] written into `time` and
-    `dtime`, operation for operation as `steady_times` does them with numpy."""
+    `dtime`, operation for operation as `steady_times` does them with numpy (pieces, then
+    segments, on every core when compiled; called holding kernels.PARALLEL_LOCK)."""
     count = speed.size
     length_time = np.empty(count)
     first_time = np.empty(count)
-    for i in range(count):
+    for i in prange(count):
         v = speed[i]
         along = v + headwind[i] if has_headwind else v
         if calm_cross:
@@ -461,15 +472,16 @@ def _time_sums(speed: np.ndarray, power: np.ndarray, length: np.ndarray,
         length_time[i] = length[i] * inverse
         first_time[i] = -(length_time[i] * first * inverse)
     segments = starts.size
-    for k in range(segments):
+    for k in prange(segments):
         stop = starts[k + 1] if k + 1 < segments else count
         time[k] = _segment_sum(length_time, starts[k], stop)
         dtime[k] = _segment_sum(first_time, starts[k], stop)
 
 
 def _compiled() -> SimpleNamespace:
-    """This module's kernel compiled by numba (built once per process)."""
-    return kernels.compiled(globals(), KERNELS)
+    """This module's kernels compiled by numba (built once per process), the pieces' loops
+    parallel."""
+    return kernels.compiled(globals(), KERNELS, parallel=("_newton_speeds", "_time_sums"))
 
 
 def _use_kernel(pieces: int) -> bool:
@@ -485,11 +497,12 @@ def warm_up_kernels() -> None:
     """Load (or compile) this module's kernel on two pieces (pacing.kernels.warm_up)."""
     two = np.ones(2)
     for calm in (True, False):
-        _compiled()._newton_speeds(np.full(2, 8.0), np.empty(2), two, two, 0.2 * two,
-                                   3.0 * two, 0.01, 200.0 * two, True, calm)
-        _compiled()._time_sums(np.full(2, 8.0), 200.0 * two, 10.0 * two, two, two, 0.2 * two,
-                               0.01, 0.976, True, calm, np.array([0, 1]), np.empty(2),
-                               np.empty(2))
+        with kernels.PARALLEL_LOCK:
+            _compiled()._newton_speeds(np.full(2, 8.0), np.empty(2), two, two, 0.2 * two,
+                                       3.0 * two, 0.01, 200.0 * two, True, calm)
+            _compiled()._time_sums(np.full(2, 8.0), 200.0 * two, 10.0 * two, two, two,
+                                   0.2 * two, 0.01, 0.976, True, calm, np.array([0, 1]),
+                                   np.empty(2), np.empty(2))
 
 
 def _newton_speeds_numpy(model: SegmentModel, piece: _PieceConstants, drive: np.ndarray,
@@ -536,12 +549,15 @@ def _steady_speed(model: SegmentModel, power: np.ndarray) -> np.ndarray:
     piece = _piece_constants(model)
     drive = rider.drivetrain_efficiency * np.maximum(power, 0.0)
     speed = guess.copy()
+    step = None
     if _use_kernel(speed.size):
-        step = np.empty(speed.size)
-        unsolved = _compiled()._newton_speeds(
-            speed, step, model.headwind, model.crosswind, piece.drag, piece.constant,
-            piece.bearing, drive, piece.headwind, piece.calm_cross)
-    else:
+        with kernels.parallel_turn() as ours:
+            if ours:
+                step = np.empty(speed.size)
+                unsolved = _compiled()._newton_speeds(
+                    speed, step, model.headwind, model.crosswind, piece.drag, piece.constant,
+                    piece.bearing, drive, piece.headwind, piece.calm_cross)
+    if step is None:  # plain numpy, or another thread runs a parallel kernel
         step = _newton_speeds_numpy(model, piece, drive, speed)
         unsolved = 1  # not counted: check the arrays
     if unsolved:
