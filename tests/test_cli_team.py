@@ -71,7 +71,7 @@ def test_the_printable_card_is_written_as_png_and_pdf(capsys, tmp_path):
     from PIL import Image
 
     from pacing.io.exports import CARD_DPI
-    from pacing.io.team_file import team_card_size
+    from pacing.io.team_file import TEAM_CARD
 
     png, pdf = tmp_path / "card.png", tmp_path / "card.pdf"
     code, out, err = run(capsys, *TRACK, *RIDERS, "--json", "--card-png", png, "--card-pdf", pdf)
@@ -79,8 +79,8 @@ def test_the_printable_card_is_written_as_png_and_pdf(capsys, tmp_path):
     result = json.loads(out)
     assert pdf.read_bytes().startswith(b"%PDF")
     # one line per turn and one per notice (warnings and drop-out notes) above the caution
-    width, height = team_card_size(len(result["turns"]), len(result["notices"]))
-    assert Image.open(png).size == (round(width * CARD_DPI), round(height * CARD_DPI))
+    width, height = TEAM_CARD.size(len(result["turns"]), len(result["notices"]))
+    assert Image.open(png).size == pytest.approx((width * CARD_DPI, height * CARD_DPI), abs=1)
 
 
 def test_a_team_time_trial_on_a_gpx_course_with_wind(capsys, tmp_path):

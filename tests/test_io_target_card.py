@@ -13,7 +13,12 @@ from test_io_exports import SAID, make_rows
 
 from pacing.errors import InputError
 from pacing.io.exports import CARD_DPI, target_card_pdf, target_card_png
-from pacing.io.target_card import CAUTION_LINE, RUNNING_CAUTION_LINE, card_figure, card_size
+from pacing.io.target_card import (
+    CAUTION_LINE,
+    RUNNING_CAUTION_LINE,
+    TARGET_CARD,
+    card_figure,
+)
 
 
 class TestCard:
@@ -21,9 +26,9 @@ class TestCard:
     def test_png_has_the_documented_size(self, count):
         png = target_card_png(make_rows(count), title="Test loop")
         assert png[:8] == b"\x89PNG\r\n\x1a\n"  # PNG signature (ISO/IEC 15948, 5.2)
-        width, height = card_size(count)
-        with Image.open(io.BytesIO(png)) as image:
-            assert image.size == (round(width * CARD_DPI), round(height * CARD_DPI))
+        width, height = TARGET_CARD.size(count)
+        with Image.open(io.BytesIO(png)) as image:  # half a pixel rounds either way: ±1 px
+            assert image.size == pytest.approx((width * CARD_DPI, height * CARD_DPI), abs=1)
 
     def test_a_joined_gap_is_printed_on_the_card_as_one_more_line(self):
         rows = make_rows(4)
@@ -32,14 +37,14 @@ class TestCard:
         texts = " ".join(t.get_text().replace("\n", " ") for t in figure.axes[0].texts)
         assert "joined gap 12.7 km" in texts and "segment 3" in texts
         png = target_card_png(rows, warnings=["W′ runs out"])
-        width, height = card_size(4, 2)  # the gap line and the warning
+        width, height = TARGET_CARD.size(4, 2)  # the gap line and the warning
         with Image.open(io.BytesIO(png)) as image:  # 4.45 in · 150 dpi = 667.5 px: ±1 px
             assert image.size == pytest.approx((width * CARD_DPI, height * CARD_DPI), abs=1)
         figure = card_figure(make_rows(4), "metric", "x")
         assert "gap" not in " ".join(t.get_text() for t in figure.axes[0].texts)
 
     def test_more_segments_add_columns(self):
-        assert card_size(45)[0] == pytest.approx(3 * card_size(5)[0])
+        assert TARGET_CARD.size(45)[0] == pytest.approx(3 * TARGET_CARD.size(5)[0])
 
     def test_pdf_starts_with_the_pdf_header(self):
         pdf = target_card_pdf(make_rows(running=True), "imperial", title="Test run")

@@ -112,16 +112,16 @@ def test_a_road_card_gives_distances_and_time_per_kilometre_or_mile():
 def test_the_card_renders_as_png_and_pdf_growing_with_its_turns():
     from PIL import Image
 
-    from pacing.io.team_file import team_card_pdf, team_card_png, team_card_size
+    from pacing.io.team_file import TEAM_CARD, team_card_pdf, team_card_png
 
     png = team_card_png(TURNS, ORDERS, 2, lap_length=250.0, dpi=50)
     image = Image.open(io.BytesIO(png))
-    width, height = team_card_size(2)
-    assert image.size == (round(width * 50), round(height * 50))
+    width, height = TEAM_CARD.size(2)
+    assert image.size == pytest.approx((width * 50, height * 50), abs=1)  # ±1 px rounding
     grey = np.asarray(image.convert("L"))
     assert (grey < 100).mean() > 0.01  # dark ink on a white card
     assert team_card_pdf(TURNS, ORDERS, 2).startswith(b"%PDF")
-    assert team_card_size(61)[0] == pytest.approx(3 * team_card_size(5)[0])  # 30 a column
+    assert TEAM_CARD.size(61)[0] == pytest.approx(3 * TEAM_CARD.size(5)[0])  # 30 a column
 
 
 def test_a_card_without_turns_or_with_orders_missing_is_refused():

@@ -374,8 +374,8 @@ CARD_DPI = 150
 
 def target_card_png(rows: Iterable[Any], system: str = "metric", title: str = "race plan",
                     dpi: int = CARD_DPI, warnings: Sequence[str] = ()) -> bytes:
-    """The printable target card as PNG: card_size(len(rows), len(warnings) + G) inches at
-    `dpi`, G the number of segments holding a joined gap.
+    """The printable target card as PNG: TARGET_CARD.size(len(rows), len(warnings) + G)
+    inches at `dpi`, G the number of segments holding a joined gap.
 
     Large type: segment start (km or mi), target power or pace, expected split; a line per
     segment holding a gap in the recording joined by a straight line ("joined gap 12.7 km")

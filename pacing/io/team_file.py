@@ -10,7 +10,6 @@ apostrophe.
 from __future__ import annotations
 
 import io
-import math
 from collections.abc import Sequence
 from pathlib import Path
 from typing import TYPE_CHECKING, Any
@@ -21,7 +20,7 @@ import pandas as pd
 from pacing.display.units import format_pace, to_display, unit_label
 from pacing.errors import InputError
 from pacing.io.exports import CARD_DPI, table_to_csv
-from pacing.io.target_card import wrap_text
+from pacing.io.target_card import CardLayout, stripe_line, wrap_text
 from pacing.team.schedule import RiderRow, TurnRow, plan_notices, turn_rows
 
 if TYPE_CHECKING:
@@ -220,18 +219,11 @@ def write_bytes(path: str | Path, data: bytes) -> None:
 
 # ------------------------------------------------------------------------ printable card
 
-TEAM_CARD_ROWS_PER_COLUMN = 30
-"""Turns per column of the printed card; more turns add columns side by side [-]."""
-TEAM_CARD_COLUMN_WIDTH = 6.4
-"""Width of one card column [in]."""
-TEAM_CARD_ROW_HEIGHT = 0.34
-"""Height of one turn line on the card [in]."""
-TEAM_CARD_HEADER_HEIGHT = 1.45
-"""Title, finish, counting rule, starting order and column headings [in]."""
-TEAM_CARD_FOOTER_HEIGHT = 0.70
-"""The caution [in]."""
-TEAM_CARD_WARNING_HEIGHT = 0.40
-"""One warning above the caution [in]."""
+TEAM_CARD = CardLayout(rows_per_column=30, column_width=6.4, row_height=0.34,
+                       headings_at=1.28, footer_height=0.70, warning_height=0.40,
+                       rows_are="turns")
+"""The team card: title, finish, counting rule and starting order above the headings, one
+turn a line."""
 TEAM_CARD_NAME_LENGTH = 10
 """Characters of the leader's name kept on the card [-]."""
 
@@ -285,35 +277,6 @@ def clock_tenths(seconds: float) -> str:
     hours, minutes = divmod(minutes, 60)
     head = f"{hours}:{minutes:02d}" if hours else f"{minutes}"
     return f"{head}:{rest // 10:02d}.{rest % 10}"
-
-
-def team_card_size(turn_count: int, warning_count: int = 0) -> tuple[float, float]:
-    """Size of the team card for a number of turns and of warnings.
-
-    Parameters
-    ----------
-    turn_count : int
-        Turns on the card, ≥ 1 [-].
-    warning_count : int, optional
-        Warnings printed above the caution [-].
-
-    Returns
-    -------
-    tuple of float
-        (width, height) [in].
-
-    Raises
-    ------
-    InputError
-        When there is no turn.
-    """
-    if turn_count < 1:
-        raise InputError("there are no turns to put on the card")
-    columns = math.ceil(turn_count / TEAM_CARD_ROWS_PER_COLUMN)
-    lines = min(turn_count, TEAM_CARD_ROWS_PER_COLUMN)
-    return (TEAM_CARD_COLUMN_WIDTH * columns,
-            TEAM_CARD_HEADER_HEIGHT + TEAM_CARD_ROW_HEIGHT * (lines + 0.5)
-            + TEAM_CARD_FOOTER_HEIGHT + TEAM_CARD_WARNING_HEIGHT * warning_count)
 
 
 def _turn_cells(row: TurnRow, system: str, lap_length: float | None) -> list[str]:
@@ -379,7 +342,8 @@ def team_card_figure(turns: Sequence[TurnRow], orders: Sequence[Sequence[str]],
     if len(orders) != len(turns):
         raise InputError(f"the card needs a line order per turn: {len(turns)} turns, "
                          f"{len(orders)} orders")
-    width, height = team_card_size(len(turns), len(warnings) + len(notes))
+    layout = TEAM_CARD
+    width, height = layout.size(len(turns), len(warnings) + len(notes))
     figure = Figure(figsize=(width, height))
     FigureCanvasAgg(figure)
     axes = figure.add_axes((0, 0, 1, 1))
@@ -388,19 +352,17 @@ def team_card_figure(turns: Sequence[TurnRow], orders: Sequence[Sequence[str]],
     axes.set_ylim(height, 0)
     _card_head(axes, turns, orders, counts_rider, finish_time_s, title, width)
     start_number = {name: place for place, name in enumerate(orders[0], start=1)}
-    columns = math.ceil(len(turns) / TEAM_CARD_ROWS_PER_COLUMN)
-    top = TEAM_CARD_HEADER_HEIGHT - TEAM_CARD_ROW_HEIGHT / 2
+    columns = layout.columns(len(turns))
     for column in range(columns):
-        left = column * TEAM_CARD_COLUMN_WIDTH + 0.12
+        left = column * layout.column_width + 0.12
         for x, heading in zip(TEAM_CARD_COLUMNS, _headings(system, lap_length), strict=True):
-            axes.text(left + x, top, heading, fontsize=9, color="0.35", va="center")
-        first = column * TEAM_CARD_ROWS_PER_COLUMN
-        for line, row in enumerate(turns[first:first + TEAM_CARD_ROWS_PER_COLUMN], start=1):
-            y = top + TEAM_CARD_ROW_HEIGHT * line
+            axes.text(left + x, layout.headings_at, heading, fontsize=9, color="0.35",
+                      va="center")
+        first = column * layout.rows_per_column
+        for line, row in enumerate(turns[first:first + layout.rows_per_column], start=1):
+            y = layout.line_y(line)
             if line % 2:
-                axes.axhspan(y - TEAM_CARD_ROW_HEIGHT / 2, y + TEAM_CARD_ROW_HEIGHT / 2,
-                             xmin=column / columns, xmax=(column + 1) / columns,
-                             color="0.92", lw=0)
+                stripe_line(axes, layout, y, column, columns)
             behind = " ".join(str(start_number[name])
                               for name in orders[first + line - 1][1:])
             cells = [*_turn_cells(row, system, lap_length), behind]
@@ -412,11 +374,10 @@ def team_card_figure(turns: Sequence[TurnRow], orders: Sequence[Sequence[str]],
     lines = [("⚠ " + w, "#8a2c0d", "bold") for w in warnings] + [
         (n, "0.2", "normal") for n in notes]
     for number, (text, colour, weight) in enumerate(lines):
-        y = (height - TEAM_CARD_FOOTER_HEIGHT
-             - TEAM_CARD_WARNING_HEIGHT * (len(lines) - number - 0.5))
+        y = layout.warning_y(height, len(lines), number)
         axes.text(0.12, y, wrap_text(text, width), fontsize=7, va="center", color=colour,
                   fontweight=weight)
-    axes.text(0.12, height - TEAM_CARD_FOOTER_HEIGHT / 2, wrap_text(TEAM_CAUTION, width),
+    axes.text(0.12, height - layout.footer_height / 2, wrap_text(TEAM_CAUTION, width),
               fontsize=7, va="center", color="0.2")
     return figure
 
@@ -458,7 +419,7 @@ def team_card_png(turns: Sequence[TurnRow], orders: Sequence[Sequence[str]],
                   title: str = "team plan", finish_time_s: float | None = None,
                   warnings: Sequence[str] = (), notes: Sequence[str] = (),
                   dpi: int = CARD_DPI) -> bytes:
-    """The printable turn schedule as PNG (team_card_size inches at `dpi`).
+    """The printable turn schedule as PNG (TEAM_CARD.size inches at `dpi`).
 
     At the top the title, the finish time, the counting rule ("time taken on the 3rd rider of
     4 across the line") and the starting order; one line per turn: turn, leader, laps (track)
